@@ -1,0 +1,48 @@
+// The command-line front end: shared plumbing for the command files.
+//
+// Each command lives in its own file src/cli/<name>_command.cc and exposes one
+// Register function that adds a CLI11 subcommand to the application. When the
+// subcommand runs, its callback stores the process exit code in *exit_code.
+// Library errors arrive as absl::Status; Fail() prints one clear message on
+// stderr and returns the documented exit code.
+#ifndef KINDRED_CLI_CLI_H_
+#define KINDRED_CLI_CLI_H_
+
+#include <string_view>
+
+#include "CLI/CLI.hpp"
+#include "absl/status/status.h"
+
+namespace kindred::cli {
+
+// Exit codes. Documented in README.md ("Exit codes"); keep the two in step.
+enum ExitCode : int {
+  kExitOk = 0,
+  kExitMatched = 1,        // check --fail-on-match: at least one upload matched
+  kExitUsage = 2,          // bad command line or invalid settings
+  kExitInput = 3,          // unreadable or malformed input, a limit exceeded
+  kExitIndexCorrupt = 4,   // index file corrupt, truncated or not an index
+  kExitIndexMismatch = 5,  // index made with other settings or a newer format
+  kExitIndexBusy = 6,      // another writer holds the index lock
+  kExitOutput = 7,         // an output could not be written (disk full, ...)
+  kExitInternal = 8,       // a bug: please report it
+};
+
+// The exit code a library status maps to when the command has no better
+// knowledge: DataLoss -> 4, FailedPrecondition -> 5, Unavailable -> 6,
+// InvalidArgument/NotFound/OutOfRange/ResourceExhausted/PermissionDenied -> 3,
+// anything else -> 8.
+int ExitCodeFor(const absl::Status& status);
+
+// Prints "kindred: <status message>" on stderr and returns `exit_code`.
+int Fail(int exit_code, const absl::Status& status);
+// Same, with the exit code chosen by ExitCodeFor(status).
+int Fail(const absl::Status& status);
+
+// Registration of each command (one per file).
+void RegisterSweep(CLI::App& app, int* exit_code);
+void RegisterPlan(CLI::App& app, int* exit_code);
+
+}  // namespace kindred::cli
+
+#endif  // KINDRED_CLI_CLI_H_

@@ -1,0 +1,53 @@
+// kindred: find near-duplicate text documents.
+#include <cstdio>
+
+#include "cli/cli.h"
+
+namespace kindred::cli {
+
+int ExitCodeFor(const absl::Status& status) {
+  switch (status.code()) {
+    case absl::StatusCode::kOk:
+      return kExitOk;
+    case absl::StatusCode::kDataLoss:
+      return kExitIndexCorrupt;
+    case absl::StatusCode::kFailedPrecondition:
+      return kExitIndexMismatch;
+    case absl::StatusCode::kUnavailable:
+      return kExitIndexBusy;
+    case absl::StatusCode::kInvalidArgument:
+    case absl::StatusCode::kNotFound:
+    case absl::StatusCode::kOutOfRange:
+    case absl::StatusCode::kResourceExhausted:
+    case absl::StatusCode::kPermissionDenied:
+      return kExitInput;
+    default:
+      return kExitInternal;
+  }
+}
+
+int Fail(int exit_code, const absl::Status& status) {
+  std::fprintf(stderr, "kindred: %s\n", std::string(status.message()).c_str());
+  return exit_code;
+}
+
+int Fail(const absl::Status& status) { return Fail(ExitCodeFor(status), status); }
+
+}  // namespace kindred::cli
+
+int main(int argc, char** argv) {
+  using namespace kindred::cli;
+  CLI::App app{"kindred: find near-duplicate text documents", "kindred"};
+  app.require_subcommand(1);
+  app.set_version_flag("--version", "kindred 0.1.0");
+  int exit_code = kExitOk;
+  RegisterSweep(app, &exit_code);
+  RegisterPlan(app, &exit_code);
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::ParseError& e) {
+    int code = app.exit(e);
+    return code == 0 ? kExitOk : kExitUsage;
+  }
+  return exit_code;
+}
