@@ -1,0 +1,167 @@
+// kindred: reading a corpus of documents from files, directory trees and
+// standard input.
+//
+// A corpus is a list of inputs, read in order. Each input is one of:
+//   - a directory tree: every regular file under it is one document whose id
+//     is its path relative to the root, '/'-separated. Files are visited in
+//     byte-wise sorted order of that relative path, so the stream is the same
+//     on every run. Symbolic links (to files or to directories) and special
+//     files are skipped. With InputFormat::kJsonLines every file of the tree
+//     is read as JSON Lines instead.
+//   - a JSON Lines file: one JSON object per line. The id field (a string or
+//     an integer, rendered in decimal), the text field (a string) and an
+//     optional numeric priority field are named by InputOptions. A line that
+//     is empty or holds only whitespace is skipped and makes no document.
+//     Lines may end in "\n" or "\r\n"; the last line may lack its newline.
+//   - a plain text file: one document, id = the path as given.
+//   - standard input, named "-": JSON Lines when its first non-whitespace
+//     byte is '{', else one text document with id "-".
+// Any file (and standard input) may be compressed with gzip (several members
+// allowed) or zstd (several frames allowed); compression is detected from the
+// first bytes, never from the name, and decompressed as a stream.
+//
+// With InputFormat::kAuto a directory is a tree of text documents; a file
+// whose name, after stripping ".gz", ".zst" or ".zstd", ends in ".jsonl",
+// ".ndjson" or ".json" is JSON Lines; any other file is one text document.
+// kText or kJsonLines force the format of every input.
+//
+// Document text is the raw bytes as stored (decompressed): it may hold
+// invalid UTF-8 or NUL bytes; decoding is the text module's job. Text from a
+// JSON string is unescaped. JSON Lines input must itself be valid UTF-8 (RFC
+// 8259); a line with invalid UTF-8 is an error naming the line.
+//
+// Memory stays bounded: no more than max_document_bytes of one document or
+// line plus a fixed-size read buffer (256 KiB) is held besides the batch.
+//
+// Errors name the input and line (or the document): "corpus.jsonl:17:
+// missing field \"text\"", "corpus.jsonl.gz: truncated gzip stream after
+// 81920 bytes". Codes: NotFound for a missing input; InvalidArgument for
+// malformed JSON, missing fields, fields of the wrong type and truncated or
+// corrupt compressed data; ResourceExhausted for a document, line or
+// decompressed size over its limit; the errno's code for other I/O failures.
+// Duplicate ids are not detected here.
+//
+// Thread-safety: a CorpusReader is single-threaded (thread-compatible); the
+// caller hands the documents of each batch to worker threads.
+#ifndef KINDRED_CORPUS_H_
+#define KINDRED_CORPUS_H_
+
+#include <cstddef>
+#include <cstdint>
+#include <memory>
+#include <string>
+#include <vector>
+
+#include "absl/status/status.h"
+#include "absl/status/statusor.h"
+
+namespace kindred {
+
+enum class InputFormat : uint8_t {
+  kAuto,       // decided per input, as described above
+  kText,       // a file (or each file of a tree) is one document
+  kJsonLines,  // a file (or each file of a tree) holds one document per line
+};
+
+// "auto", "text", "jsonl".
+const char* InputFormatName(InputFormat format);
+
+struct InputOptions {
+  // Format of every input; kAuto decides per input.
+  InputFormat format = InputFormat::kAuto;
+  // JSON Lines field holding the id: a string or an integer. The special
+  // value "@line" makes the id "<input name>:<line number>" instead (for a
+  // tree read as JSON Lines, "<file path>:<line number>").
+  std::string id_field = "id";
+  // JSON Lines field holding the text: a string.
+  std::string text_field = "text";
+  // JSON Lines field holding a numeric priority (for the keep policy).
+  // Empty: none. A line without the field has no priority.
+  std::string priority_field;
+  // Largest document (text file) or JSON line, in bytes. Default 64 MiB.
+  // Larger is a ResourceExhausted error naming the file and line. Memory is
+  // about this much plus the read buffer.
+  uint64_t max_document_bytes = 64ull << 20;
+  // Largest decompressed size of one compressed file or stream, in bytes;
+  // 0 = unlimited. Guards against decompression bombs.
+  uint64_t max_decompressed_bytes = 0;
+  // When not empty, the decompressed bytes read from standard input are also
+  // written to this file (created or truncated, mode 0600), so that a second
+  // pass (WriteKept) can read them again. The caller chooses the path and
+  // removes the file when done.
+  std::string stdin_copy_path;
+};
+
+// Where a document came from: enough to name it in messages and to find it
+// again.
+struct DocumentSource {
+  uint32_t input = 0;  // index into the reader's input list
+  uint64_t line = 0;   // 1-based line for JSON Lines, 0 otherwise
+  std::string path;    // the file read: for trees, the full path of the file;
+                       // "-" for standard input
+};
+
+struct Document {
+  std::string id;
+  // Raw bytes as read (text files) or the unescaped JSON string. May be
+  // invalid UTF-8.
+  std::string text;
+  double priority = 0;
+  bool has_priority = false;
+  DocumentSource source;
+  // 0-based position in the whole stream of all inputs ("first seen" order).
+  uint64_t ordinal = 0;
+};
+
+// An input as the reader resolved it: what it is and how to read it again.
+struct ResolvedInput {
+  std::string name;       // as given; "-" for standard input
+  std::string read_path;  // where its bytes can be read again: the name, or
+                          // for standard input InputOptions::stdin_copy_path
+                          // ("" when no copy was asked for)
+  bool is_directory = false;
+  bool is_stdin = false;
+  // kText or kJsonLines once known; kAuto for standard input before its
+  // first byte was read.
+  InputFormat format = InputFormat::kAuto;
+};
+
+// Reads documents from a list of inputs, in order, in batches.
+//
+// Call order: Open, then ReadBatch until it returns 0 (end of all inputs) or
+// an error. After an error every later ReadBatch returns the same error.
+class CorpusReader {
+ public:
+  // Checks that every input exists (NotFound otherwise; "-" is standard
+  // input, allowed once) and resolves the format of every file and tree.
+  // Requires a non-empty input list.
+  static absl::StatusOr<std::unique_ptr<CorpusReader>> Open(std::vector<std::string> inputs,
+                                                            InputOptions options);
+  ~CorpusReader();
+  CorpusReader(const CorpusReader&) = delete;
+  CorpusReader& operator=(const CorpusReader&) = delete;
+
+  // Replaces *batch with the next documents: up to max_docs documents, and
+  // stops early once their texts total max_bytes or more (a batch holds at
+  // least one document). Returns the number read; 0 means end of all inputs.
+  // Requires max_docs >= 1. Strings already in *batch are reused.
+  absl::StatusOr<size_t> ReadBatch(std::vector<Document>* batch, size_t max_docs, size_t max_bytes);
+
+  // Resolved format of input `input` (kAuto for standard input before it
+  // was first read). Requires input < inputs().size().
+  InputFormat FormatOf(uint32_t input) const;
+  const std::vector<std::string>& inputs() const;
+  // Every input as resolved so far; complete once ReadBatch returned 0.
+  std::vector<ResolvedInput> ResolvedInputs() const;
+  // Documents returned so far.
+  uint64_t documents_read() const;
+
+ private:
+  class Impl;
+  explicit CorpusReader(std::unique_ptr<Impl> impl);
+  std::unique_ptr<Impl> impl_;
+};
+
+}  // namespace kindred
+
+#endif  // KINDRED_CORPUS_H_
