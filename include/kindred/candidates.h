@@ -1,0 +1,41 @@
+// kindred: candidate pairs from LSH banding.
+//
+// Each document's signature is cut into `bands` bands of `rows` slots; two
+// documents become a candidate pair when any band of theirs hashes to the same
+// bucket (band key). A pair of similarity s becomes a candidate with
+// probability 1-(1-s^r)^b (see banding.h). Empty documents have no band keys
+// and are never candidates.
+//
+// Pure function of its input; thread count does not change the result.
+#ifndef KINDRED_CANDIDATES_H_
+#define KINDRED_CANDIDATES_H_
+
+#include <cstdint>
+#include <vector>
+
+#include "kindred/banding.h"
+#include "kindred/signed_corpus.h"
+
+namespace kindred {
+
+// A candidate pair as (a << 32 | b) with a < b: sorting the packed value
+// sorts by a, then b.
+using PackedPair = uint64_t;
+inline PackedPair PackPair(uint32_t a, uint32_t b) { return (uint64_t{a} << 32) | b; }
+inline uint32_t PairFirst(PackedPair pair) { return static_cast<uint32_t>(pair >> 32); }
+inline uint32_t PairSecond(PackedPair pair) { return static_cast<uint32_t>(pair); }
+
+struct CandidateStats {
+  uint64_t bucket_entries = 0;   // (band key, document) entries
+  uint64_t largest_bucket = 0;   // documents in the most crowded bucket
+  uint64_t candidate_pairs = 0;  // distinct pairs
+};
+
+// The distinct candidate pairs of `corpus` under `banding`, ascending.
+// Requires banding.bands * banding.rows <= corpus.perms().
+std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding banding,
+                                           int threads, CandidateStats* stats);
+
+}  // namespace kindred
+
+#endif  // KINDRED_CANDIDATES_H_

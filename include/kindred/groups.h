@@ -1,0 +1,65 @@
+// kindred: grouping confirmed pairs and choosing what to keep.
+//
+// A group is a connected component of the graph whose edges are the confirmed
+// pairs (union-find). One member of each group is the keeper, chosen by a keep
+// policy; the other members are drops. Documents are named by their dense
+// index 0..n-1 in the order they were read ("first seen" order).
+//
+// Pure functions over plain data; thread-safe.
+#ifndef KINDRED_GROUPS_H_
+#define KINDRED_GROUPS_H_
+
+#include <cstdint>
+#include <string_view>
+#include <vector>
+
+#include "absl/status/statusor.h"
+#include "absl/types/span.h"
+
+namespace kindred {
+
+// A confirmed pair of documents, a < b (indices in first-seen order).
+struct ScoredPair {
+  uint32_t a = 0;
+  uint32_t b = 0;
+  uint32_t shared = 0;    // |A n B| (exact)
+  uint32_t size_a = 0;    // |A|
+  uint32_t size_b = 0;    // |B|
+  double jaccard = 0;     // exact
+  double estimate = 0;    // MinHash signature estimate
+
+  friend bool operator==(const ScoredPair&, const ScoredPair&) = default;
+};
+
+// How the keeper of a group is chosen. Ties always go to the document seen
+// first, so the choice is deterministic.
+enum class KeepPolicy : uint8_t {
+  kFirst = 0,     // the document seen first
+  kLongest = 1,   // the longest text (bytes)
+  kPriority = 2,  // the highest priority value; documents without one rank lowest
+};
+
+// Parses "first", "longest", "priority".
+absl::StatusOr<KeepPolicy> ParseKeepPolicy(std::string_view name);
+const char* KeepPolicyName(KeepPolicy policy);
+
+// What the keep policies look at, per document.
+struct KeepFacts {
+  uint64_t length = 0;     // text length in bytes
+  double priority = 0;
+  bool has_priority = false;
+};
+
+struct Group {
+  uint32_t keeper = 0;
+  std::vector<uint32_t> members;  // ascending, keeper included
+};
+
+// Groups `pairs` over documents 0..facts.size()-1. Returns the groups of two
+// or more members, ordered by their smallest member; members ascending.
+std::vector<Group> GroupPairs(absl::Span<const ScoredPair> pairs,
+                              absl::Span<const KeepFacts> facts, KeepPolicy policy);
+
+}  // namespace kindred
+
+#endif  // KINDRED_GROUPS_H_

@@ -1,0 +1,80 @@
+// kindred: output records (pairs, groups, keep/drop decisions) as JSON Lines,
+// TSV or CSV.
+//
+// The field names and their meaning are documented in README.md ("Output
+// fields"); keep the two in step. Numbers are printed with fixed precision so
+// output is byte-identical across runs and machines.
+//
+// RecordWriter appends to a caller-owned string; not thread-safe (one writer
+// per output).
+#ifndef KINDRED_RECORDS_H_
+#define KINDRED_RECORDS_H_
+
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "absl/status/statusor.h"
+#include "absl/types/span.h"
+#include "kindred/groups.h"
+
+namespace kindred {
+
+enum class RecordFormat : uint8_t { kJsonLines, kTsv, kCsv };
+
+// Parses "jsonl", "tsv", "csv".
+absl::StatusOr<RecordFormat> ParseRecordFormat(std::string_view name);
+// "jsonl", "tsv", "csv": the file suffix of each format.
+const char* RecordFormatSuffix(RecordFormat format);
+
+// Appends `text` as a JSON string literal (quotes included). Invalid UTF-8
+// bytes are written as U+FFFD so the output is always valid JSON.
+void AppendJsonString(std::string* out, std::string_view text);
+// Appends a similarity with 6 decimals ("0.912345").
+void AppendSimilarity(std::string* out, double value);
+
+// One row of a table with named columns, written in the chosen format: a JSON
+// object per line, or a header line then one line per row for TSV/CSV (TSV
+// escapes tab, newline, CR and backslash as \t \n \r \\; CSV quotes fields per
+// RFC 4180).
+class RecordWriter {
+ public:
+  // `columns` are the field names, in order. The header (TSV/CSV) is
+  // appended at once.
+  RecordWriter(RecordFormat format, std::vector<std::string> columns, std::string* out);
+
+  // Fields of the current row, in column order. A row holds exactly one
+  // field per column; EndRow() finishes it.
+  void String(std::string_view value);
+  void Number(uint64_t value);
+  void Similarity(double value);
+  void Null();  // JSON null, empty TSV/CSV field
+  // A list of strings: a JSON array; in TSV/CSV the items joined by a space.
+  void StringList(absl::Span<const std::string_view> values);
+  void EndRow();
+
+ private:
+  void BeginField();
+
+  RecordFormat format_;
+  std::vector<std::string> columns_;
+  std::string* out_;
+  size_t field_ = 0;
+};
+
+// The three record kinds of a sweep. `ids` maps document index to id.
+void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
+                      absl::Span<const std::string> ids, std::string* out);
+void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
+                       absl::Span<const std::string> ids, KeepPolicy policy, std::string* out);
+// One decision per document that belongs to a group (keep for its keeper,
+// drop for the others), in document order. Documents in no group are kept and
+// not listed. `empty` marks documents with no shingles, which are listed as
+// kept with that reason.
+void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
+                          absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
+                          absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out);
+
+}  // namespace kindred
+
+#endif  // KINDRED_RECORDS_H_

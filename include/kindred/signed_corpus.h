@@ -1,0 +1,100 @@
+// kindred: the signed form of a corpus.
+//
+// SignedCorpus holds, for every document in first-seen order, what the later
+// stages need: its id, its keep-policy facts, its MinHash signature and its
+// shingle set (for exact verification). Storage is flat (one arena for all
+// shingle sets, one for all signatures), so a million documents cost a few
+// allocations, not millions.
+//
+// SignCorpus() fills one from a CorpusReader, shingling and signing on a pool
+// of threads while the next batch is read; the result does not depend on the
+// thread count.
+//
+// Thread-safety: const methods may be called concurrently; Add() may not.
+#ifndef KINDRED_SIGNED_CORPUS_H_
+#define KINDRED_SIGNED_CORPUS_H_
+
+#include <cstdint>
+#include <functional>
+#include <string>
+#include <vector>
+
+#include "absl/status/status.h"
+#include "absl/types/span.h"
+#include "kindred/corpus.h"
+#include "kindred/groups.h"
+#include "kindred/settings.h"
+
+namespace kindred {
+
+// Where a document was read: enough to name it in a message.
+struct DocumentOrigin {
+  uint32_t input = 0;  // index into the reader's input list
+  uint64_t line = 0;   // 1-based line for JSON Lines, 0 for whole files
+};
+
+class SignedCorpus {
+ public:
+  explicit SignedCorpus(uint32_t perms) : perms_(perms) {}
+
+  uint32_t perms() const { return perms_; }
+  size_t size() const { return ids_.size(); }
+
+  // Appends one document; `signature.size()` must equal perms(). Copies the
+  // data (borrows nothing).
+  void Add(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
+           absl::Span<const uint64_t> shingles, absl::Span<const uint32_t> signature);
+
+  const std::string& id(size_t doc) const { return ids_[doc]; }
+  absl::Span<const std::string> ids() const { return ids_; }
+  const KeepFacts& facts(size_t doc) const { return facts_[doc]; }
+  absl::Span<const KeepFacts> all_facts() const { return facts_; }
+  const DocumentOrigin& origin(size_t doc) const { return origins_[doc]; }
+  absl::Span<const uint64_t> shingles(size_t doc) const {
+    return absl::MakeConstSpan(shingles_.data() + shingle_begin_[doc],
+                               shingle_begin_[doc + 1] - shingle_begin_[doc]);
+  }
+  absl::Span<const uint32_t> signature(size_t doc) const {
+    return absl::MakeConstSpan(signatures_.data() + doc * perms_, perms_);
+  }
+
+ private:
+  uint32_t perms_;
+  std::vector<std::string> ids_;
+  std::vector<KeepFacts> facts_;
+  std::vector<DocumentOrigin> origins_;
+  std::vector<uint64_t> shingle_begin_{0};
+  std::vector<uint64_t> shingles_;
+  std::vector<uint32_t> signatures_;
+};
+
+// What signing saw, beyond the documents themselves.
+struct SignStats {
+  uint64_t documents = 0;
+  uint64_t empty_documents = 0;     // no shingles: never anyone's duplicate
+  uint64_t bytes = 0;               // text bytes read
+  uint64_t invalid_utf8_documents = 0;
+  uint64_t invalid_utf8_sequences = 0;
+};
+
+struct SignOptions {
+  int threads = 1;
+  size_t batch_documents = 4096;
+  size_t batch_bytes = 16 << 20;
+  // Called after each batch with the running totals (on the calling thread).
+  std::function<void(const SignStats&)> progress;
+  // Called for each document whose text held invalid UTF-8 (on the calling
+  // thread, in document order): the document's id and the count.
+  std::function<void(const std::string& id, uint32_t invalid)> on_invalid_utf8;
+};
+
+// Reads every document of `reader`, shingles and signs it per `settings`, and
+// appends it to *out (whose perms() must equal settings.perms). Rejects a
+// repeated id with InvalidArgument naming both places. On error *out holds a
+// prefix of the corpus and must not be used as complete.
+absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
+                        const SignOptions& options, SignedCorpus* out, SignStats* stats);
+
+}  // namespace kindred
+
+#endif  // KINDRED_SIGNED_CORPUS_H_

@@ -1,0 +1,81 @@
+// kindred: the one-shot pipeline behind `kindred sweep`.
+//
+//   reader -> SignCorpus -> FindCandidatePairs (or all pairs) -> VerifyPairs
+//          -> GroupPairs (keep policy)
+//
+// Every reported pair is confirmed by the exact measure on the shingle sets.
+// Results are identical for any thread count and from run to run.
+//
+// Functions here are thread-safe; each uses `threads` worker threads inside.
+#ifndef KINDRED_SWEEP_H_
+#define KINDRED_SWEEP_H_
+
+#include <cstdint>
+#include <functional>
+#include <vector>
+
+#include "absl/status/statusor.h"
+#include "absl/types/span.h"
+#include "kindred/banding.h"
+#include "kindred/candidates.h"
+#include "kindred/corpus.h"
+#include "kindred/groups.h"
+#include "kindred/settings.h"
+#include "kindred/signed_corpus.h"
+
+namespace kindred {
+
+// True when `overlap` passes `match` (measure >= threshold, compared exactly
+// on the counts, with a 1e-9 allowance for the decimal threshold).
+bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b,
+                     const MatchSettings& match);
+
+// Confirms each candidate pair on the shingle sets; returns the pairs that
+// pass, in the order of `candidates` (ascending), with exact and estimated
+// similarity.
+std::vector<ScoredPair> VerifyPairs(const SignedCorpus& corpus,
+                                    absl::Span<const PackedPair> candidates,
+                                    const MatchSettings& match, int threads);
+
+// The reference: every pair compared exactly, no LSH. Quadratic; for small
+// corpora and for measuring LSH recall.
+std::vector<ScoredPair> ExhaustivePairs(const SignedCorpus& corpus, const MatchSettings& match,
+                                        int threads);
+
+struct SweepOptions {
+  SignatureSettings signature;
+  MatchSettings match;  // bands/rows 0: chosen by ChooseBanding()
+  KeepPolicy keep = KeepPolicy::kFirst;
+  bool exhaustive = false;
+  SignOptions sign;     // threads, batch sizes, progress
+};
+
+struct SweepStats {
+  SignStats sign;
+  CandidateStats candidates;
+  Banding banding;       // the banding used (zero when exhaustive)
+  uint64_t confirmed_pairs = 0;
+  uint64_t groups = 0;
+  uint64_t drops = 0;
+  double sign_seconds = 0, match_seconds = 0;
+};
+
+struct SweepResult {
+  explicit SweepResult(uint32_t perms) : corpus(perms) {}
+  SignedCorpus corpus;
+  std::vector<ScoredPair> pairs;  // ascending (a, b)
+  std::vector<Group> groups;      // ordered by smallest member
+  SweepStats stats;
+};
+
+// Runs the whole pipeline over `reader`. Errors: the reader's, a duplicate
+// id, invalid settings.
+absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& options);
+
+// The pairs and groups of an already signed corpus (used by RunSweep and by
+// sweeps over an index).
+void MatchCorpus(const SignedCorpus& corpus, const SweepOptions& options, SweepResult* result);
+
+}  // namespace kindred
+
+#endif  // KINDRED_SWEEP_H_

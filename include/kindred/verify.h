@@ -1,0 +1,40 @@
+// kindred: exact verification of a candidate pair on its shingle sets.
+//
+// Every pair kindred reports is confirmed here, on the full sets of 64-bit
+// shingle hashes, never on signatures alone. Sets are sorted ascending and hold
+// no repeats (the ShingleSet contract of shingles.h).
+//
+// Pure functions over borrowed spans; thread-safe.
+#ifndef KINDRED_VERIFY_H_
+#define KINDRED_VERIFY_H_
+
+#include <cstdint>
+
+#include "absl/types/span.h"
+
+namespace kindred {
+
+// The sizes that every exact measure derives from.
+struct Overlap {
+  uint32_t shared = 0;  // |A n B|
+  uint32_t size_a = 0;  // |A|
+  uint32_t size_b = 0;  // |B|
+
+  // |A n B| / |A u B|; 0 when both sets are empty (an empty document is
+  // never anyone's duplicate).
+  double Jaccard() const;
+  // |A n B| / |A|: how much of A lies inside B; 0 when A is empty.
+  double ContainmentOfAInB() const;
+  // |A n B| / |B|; 0 when B is empty.
+  double ContainmentOfBInA() const;
+  // |A n B| / min(|A|, |B|): the larger of the two containments.
+  double Containment() const;
+};
+
+// Counts the shared hashes of two sorted, repeat-free sets. Linear merge for
+// sets of similar size, galloping search when one is much smaller.
+Overlap MeasureOverlap(absl::Span<const uint64_t> a, absl::Span<const uint64_t> b);
+
+}  // namespace kindred
+
+#endif  // KINDRED_VERIFY_H_

@@ -1,0 +1,80 @@
+#include "kindred/candidates.h"
+
+#include <algorithm>
+
+#include "kindred/parallel.h"
+
+namespace kindred {
+namespace {
+
+struct BucketEntry {
+  uint64_t key;
+  uint32_t doc;
+  bool operator<(const BucketEntry& other) const {
+    return key != other.key ? key < other.key : doc < other.doc;
+  }
+};
+
+// Pairs of one band: every two documents that share a bucket.
+void PairsOfBand(std::vector<BucketEntry>& entries, std::vector<PackedPair>* pairs,
+                 uint64_t* largest) {
+  std::sort(entries.begin(), entries.end());
+  size_t run_begin = 0;
+  for (size_t i = 1; i <= entries.size(); ++i) {
+    if (i < entries.size() && entries[i].key == entries[run_begin].key) continue;
+    const size_t run = i - run_begin;
+    *largest = std::max<uint64_t>(*largest, run);
+    for (size_t x = run_begin; x < i; ++x) {
+      for (size_t y = x + 1; y < i; ++y) {
+        pairs->push_back(PackPair(entries[x].doc, entries[y].doc));
+      }
+    }
+    run_begin = i;
+  }
+}
+
+}  // namespace
+
+std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding banding,
+                                           int threads, CandidateStats* stats) {
+  const size_t n = corpus.size();
+  const uint32_t bands = banding.bands;
+  // keys[doc * bands + band]; documents with no key for a band are skipped.
+  std::vector<uint64_t> keys(n * bands);
+  std::vector<uint8_t> has_keys(n);
+  ParallelFor(n, threads, [&](size_t begin, size_t end, int) {
+    for (size_t doc = begin; doc < end; ++doc) {
+      has_keys[doc] = !corpus.shingles(doc).empty();
+      if (has_keys[doc]) {
+        BandKeys(corpus.signature(doc), banding, absl::MakeSpan(&keys[doc * bands], bands));
+      }
+    }
+  });
+  std::vector<std::vector<PackedPair>> band_pairs(bands);
+  std::vector<uint64_t> band_largest(bands, 0), band_entries(bands, 0);
+  ParallelFor(bands, threads, [&](size_t begin, size_t end, int) {
+    std::vector<BucketEntry> entries;
+    for (size_t band = begin; band < end; ++band) {
+      entries.clear();
+      for (size_t doc = 0; doc < n; ++doc) {
+        if (has_keys[doc]) entries.push_back({keys[doc * bands + band], static_cast<uint32_t>(doc)});
+      }
+      band_entries[band] = entries.size();
+      PairsOfBand(entries, &band_pairs[band], &band_largest[band]);
+      std::sort(band_pairs[band].begin(), band_pairs[band].end());
+    }
+  });
+  std::vector<PackedPair> pairs;
+  for (uint32_t band = 0; band < bands; ++band) {
+    stats->bucket_entries += band_entries[band];
+    stats->largest_bucket = std::max(stats->largest_bucket, band_largest[band]);
+    pairs.insert(pairs.end(), band_pairs[band].begin(), band_pairs[band].end());
+    std::vector<PackedPair>().swap(band_pairs[band]);
+  }
+  std::sort(pairs.begin(), pairs.end());
+  pairs.erase(std::unique(pairs.begin(), pairs.end()), pairs.end());
+  stats->candidate_pairs = pairs.size();
+  return pairs;
+}
+
+}  // namespace kindred

@@ -1,0 +1,99 @@
+#include "kindred/groups.h"
+
+#include <algorithm>
+#include <numeric>
+
+#include "absl/strings/str_cat.h"
+
+namespace kindred {
+namespace {
+
+// Union-find with path halving and union by smaller root index, so the
+// representative of a component is always its smallest member.
+class UnionFind {
+ public:
+  explicit UnionFind(size_t n) : parent_(n) { std::iota(parent_.begin(), parent_.end(), 0u); }
+
+  uint32_t Find(uint32_t x) {
+    while (parent_[x] != x) {
+      parent_[x] = parent_[parent_[x]];
+      x = parent_[x];
+    }
+    return x;
+  }
+
+  void Unite(uint32_t x, uint32_t y) {
+    x = Find(x);
+    y = Find(y);
+    if (x == y) return;
+    if (x < y) std::swap(x, y);
+    parent_[x] = y;
+  }
+
+ private:
+  std::vector<uint32_t> parent_;
+};
+
+// True when `candidate` should replace `best` as keeper. Members arrive in
+// ascending order, so keeping the incumbent on ties favours the first seen.
+bool Better(const KeepFacts& candidate, const KeepFacts& best, KeepPolicy policy) {
+  switch (policy) {
+    case KeepPolicy::kFirst:
+      return false;
+    case KeepPolicy::kLongest:
+      return candidate.length > best.length;
+    case KeepPolicy::kPriority:
+      if (candidate.has_priority != best.has_priority) return candidate.has_priority;
+      return candidate.priority > best.priority;
+  }
+  return false;
+}
+
+}  // namespace
+
+absl::StatusOr<KeepPolicy> ParseKeepPolicy(std::string_view name) {
+  if (name == "first") return KeepPolicy::kFirst;
+  if (name == "longest") return KeepPolicy::kLongest;
+  if (name == "priority") return KeepPolicy::kPriority;
+  return absl::InvalidArgumentError(
+      absl::StrCat("unknown keep policy \"", name, "\" (expected first, longest or priority)"));
+}
+
+const char* KeepPolicyName(KeepPolicy policy) {
+  switch (policy) {
+    case KeepPolicy::kFirst:
+      return "first";
+    case KeepPolicy::kLongest:
+      return "longest";
+    case KeepPolicy::kPriority:
+      return "priority";
+  }
+  return "?";
+}
+
+std::vector<Group> GroupPairs(absl::Span<const ScoredPair> pairs,
+                              absl::Span<const KeepFacts> facts, KeepPolicy policy) {
+  UnionFind components(facts.size());
+  for (const ScoredPair& pair : pairs) components.Unite(pair.a, pair.b);
+
+  // Collect members per root; roots are smallest members, so visiting
+  // documents in order yields groups ordered by their smallest member.
+  std::vector<int64_t> group_of_root(facts.size(), -1);
+  std::vector<Group> groups;
+  std::vector<uint8_t> touched(facts.size(), 0);
+  for (const ScoredPair& pair : pairs) touched[pair.a] = touched[pair.b] = 1;
+  for (uint32_t doc = 0; doc < facts.size(); ++doc) {
+    if (!touched[doc]) continue;
+    const uint32_t root = components.Find(doc);
+    if (group_of_root[root] < 0) {
+      group_of_root[root] = static_cast<int64_t>(groups.size());
+      groups.push_back(Group{doc, {}});
+    }
+    Group& group = groups[group_of_root[root]];
+    group.members.push_back(doc);
+    if (Better(facts[doc], facts[group.keeper], policy)) group.keeper = doc;
+  }
+  return groups;
+}
+
+}  // namespace kindred

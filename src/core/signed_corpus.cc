@@ -1,0 +1,115 @@
+#include "kindred/signed_corpus.h"
+
+#include <future>
+#include <memory>
+
+#include "absl/container/flat_hash_map.h"
+#include "absl/strings/str_cat.h"
+#include "kindred/parallel.h"
+#include "kindred/shingles.h"
+#include "kindred/signer.h"
+
+namespace kindred {
+
+void SignedCorpus::Add(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
+                       absl::Span<const uint64_t> shingles,
+                       absl::Span<const uint32_t> signature) {
+  ids_.push_back(std::move(id));
+  facts_.push_back(facts);
+  origins_.push_back(origin);
+  shingles_.insert(shingles_.end(), shingles.begin(), shingles.end());
+  shingle_begin_.push_back(shingles_.size());
+  signatures_.insert(signatures_.end(), signature.begin(), signature.end());
+}
+
+namespace {
+
+// Per-batch results, reused from batch to batch so their buffers are
+// allocated once.
+struct BatchResults {
+  std::vector<ShingleSet> sets;
+  std::vector<uint32_t> signatures;
+  std::vector<TextStats> text_stats;
+  std::vector<absl::Status> errors;
+};
+
+std::string Place(const CorpusReader& reader, const Document& doc) {
+  const std::string& input = reader.inputs()[doc.source.input];
+  if (doc.source.line == 0) return doc.source.path.empty() ? input : doc.source.path;
+  return absl::StrCat(input, ":", doc.source.line);
+}
+
+}  // namespace
+
+absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
+                        const SignOptions& options, SignedCorpus* out, SignStats* stats) {
+  const int threads = std::max(1, options.threads);
+  std::vector<std::unique_ptr<Shingler>> shinglers;
+  for (int i = 0; i < threads; ++i) {
+    auto shingler = Shingler::Create(settings);
+    if (!shingler.ok()) return shingler.status();
+    shinglers.push_back(*std::move(shingler));
+  }
+  const Signer signer(settings);
+  const uint32_t perms = settings.perms;
+  // First place each id was seen, to reject repeats with both places named.
+  absl::flat_hash_map<std::string, std::string> first_place;
+
+  std::vector<Document> batch, next_batch;
+  BatchResults results;
+  auto read = [&](std::vector<Document>* into) {
+    return reader.ReadBatch(into, options.batch_documents, options.batch_bytes);
+  };
+  absl::StatusOr<size_t> count = read(&batch);
+  while (count.ok() && *count > 0) {
+    // Read the next batch while this one is signed.
+    std::future<absl::StatusOr<size_t>> pending =
+        std::async(std::launch::async, read, &next_batch);
+    const size_t n = batch.size();
+    results.sets.resize(n);
+    results.signatures.resize(n * perms);
+    results.text_stats.assign(n, TextStats{});
+    results.errors.assign(n, absl::OkStatus());
+    ParallelFor(n, threads, [&](size_t begin, size_t end, int worker) {
+      for (size_t i = begin; i < end; ++i) {
+        results.errors[i] =
+            shinglers[worker]->Shingle(batch[i].text, &results.sets[i], &results.text_stats[i]);
+        signer.Sign(results.sets[i], absl::MakeSpan(&results.signatures[i * perms], perms));
+      }
+    });
+    for (size_t i = 0; i < n; ++i) {
+      Document& doc = batch[i];
+      if (!results.errors[i].ok()) {
+        pending.wait();
+        return absl::Status(results.errors[i].code(),
+                            absl::StrCat(Place(reader, doc), ": document \"", doc.id,
+                                         "\": ", results.errors[i].message()));
+      }
+      auto [it, fresh] = first_place.try_emplace(doc.id, Place(reader, doc));
+      if (!fresh) {
+        pending.wait();
+        return absl::InvalidArgumentError(absl::StrCat(Place(reader, doc), ": duplicate id \"",
+                                                       doc.id, "\" (first seen at ", it->second,
+                                                       ")"));
+      }
+      const TextStats& text = results.text_stats[i];
+      stats->documents++;
+      stats->bytes += doc.text.size();
+      if (results.sets[i].empty()) stats->empty_documents++;
+      if (text.invalid_utf8 > 0) {
+        stats->invalid_utf8_documents++;
+        stats->invalid_utf8_sequences += text.invalid_utf8;
+        if (options.on_invalid_utf8) options.on_invalid_utf8(doc.id, text.invalid_utf8);
+      }
+      const KeepFacts facts{doc.text.size(), doc.priority, doc.has_priority};
+      out->Add(std::move(doc.id), facts, DocumentOrigin{doc.source.input, doc.source.line},
+               results.sets[i], absl::MakeConstSpan(&results.signatures[i * perms], perms));
+    }
+    if (options.progress) options.progress(*stats);
+    count = pending.get();
+    std::swap(batch, next_batch);
+  }
+  return count.status();
+}
+
+}  // namespace kindred

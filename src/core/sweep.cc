@@ -1,0 +1,137 @@
+#include "kindred/sweep.h"
+
+#include <algorithm>
+#include <chrono>
+
+#include "kindred/parallel.h"
+#include "kindred/signer.h"
+#include "kindred/verify.h"
+
+namespace kindred {
+namespace {
+
+double SecondsSince(std::chrono::steady_clock::time_point start) {
+  return std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+}
+
+ScoredPair Score(const SignedCorpus& corpus, uint32_t a, uint32_t b, const Overlap& overlap) {
+  ScoredPair pair;
+  pair.a = a;
+  pair.b = b;
+  pair.shared = overlap.shared;
+  pair.size_a = overlap.size_a;
+  pair.size_b = overlap.size_b;
+  pair.jaccard = overlap.Jaccard();
+  pair.estimate = EstimateJaccard(corpus.signature(a), corpus.signature(b));
+  return pair;
+}
+
+// Concatenates per-chunk results in chunk order.
+template <typename T>
+std::vector<T> Concatenate(std::vector<std::vector<T>>& parts) {
+  std::vector<T> all;
+  for (auto& part : parts) {
+    all.insert(all.end(), part.begin(), part.end());
+    std::vector<T>().swap(part);
+  }
+  return all;
+}
+
+}  // namespace
+
+bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b,
+                     const MatchSettings& match) {
+  if (shared == 0) return false;
+  const double denominator = match.measure == Measure::kJaccard
+                                 ? double{size_a} + size_b - shared
+                                 : double{std::min(size_a, size_b)};
+  return shared >= match.threshold * denominator - 1e-9;
+}
+
+std::vector<ScoredPair> VerifyPairs(const SignedCorpus& corpus,
+                                    absl::Span<const PackedPair> candidates,
+                                    const MatchSettings& match, int threads) {
+  constexpr size_t kChunk = 1 << 14;
+  const size_t chunks = (candidates.size() + kChunk - 1) / kChunk;
+  std::vector<std::vector<ScoredPair>> parts(chunks);
+  ParallelFor(chunks, threads, [&](size_t begin, size_t end, int) {
+    for (size_t chunk = begin; chunk < end; ++chunk) {
+      const size_t stop = std::min(candidates.size(), (chunk + 1) * kChunk);
+      for (size_t i = chunk * kChunk; i < stop; ++i) {
+        const uint32_t a = PairFirst(candidates[i]);
+        const uint32_t b = PairSecond(candidates[i]);
+        const Overlap overlap = MeasureOverlap(corpus.shingles(a), corpus.shingles(b));
+        if (PassesThreshold(overlap.shared, overlap.size_a, overlap.size_b, match)) {
+          parts[chunk].push_back(Score(corpus, a, b, overlap));
+        }
+      }
+    }
+  });
+  return Concatenate(parts);
+}
+
+std::vector<ScoredPair> ExhaustivePairs(const SignedCorpus& corpus, const MatchSettings& match,
+                                        int threads) {
+  const size_t n = corpus.size();
+  std::vector<std::vector<ScoredPair>> parts(n);
+  ParallelFor(n, threads, [&](size_t begin, size_t end, int) {
+    for (size_t a = begin; a < end; ++a) {
+      const auto set_a = corpus.shingles(a);
+      for (size_t b = a + 1; b < n; ++b) {
+        const auto set_b = corpus.shingles(b);
+        // Exact pruning for Jaccard: J <= min/max of the set sizes.
+        if (match.measure == Measure::kJaccard &&
+            std::min(set_a.size(), set_b.size()) <
+                match.threshold * std::max(set_a.size(), set_b.size()) - 1e-9) {
+          continue;
+        }
+        const Overlap overlap = MeasureOverlap(set_a, set_b);
+        if (PassesThreshold(overlap.shared, overlap.size_a, overlap.size_b, match)) {
+          parts[a].push_back(Score(corpus, a, b, overlap));
+        }
+      }
+    }
+  });
+  return Concatenate(parts);
+}
+
+void MatchCorpus(const SignedCorpus& corpus, const SweepOptions& options, SweepResult* result) {
+  const auto start = std::chrono::steady_clock::now();
+  const int threads = std::max(1, options.sign.threads);
+  SweepStats& stats = result->stats;
+  if (options.exhaustive) {
+    result->pairs = ExhaustivePairs(corpus, options.match, threads);
+  } else {
+    stats.banding = options.match.bands != 0
+                        ? Banding{options.match.bands, options.match.rows}
+                        : ChooseBanding(options.match.threshold, corpus.perms());
+    const std::vector<PackedPair> candidates =
+        FindCandidatePairs(corpus, stats.banding, threads, &stats.candidates);
+    result->pairs = VerifyPairs(corpus, candidates, options.match, threads);
+  }
+  result->groups = GroupPairs(result->pairs, corpus.all_facts(), options.keep);
+  stats.confirmed_pairs = result->pairs.size();
+  stats.groups = result->groups.size();
+  stats.drops = 0;
+  for (const Group& group : result->groups) stats.drops += group.members.size() - 1;
+  stats.match_seconds = SecondsSince(start);
+}
+
+absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& options) {
+  if (absl::Status status = options.signature.Validate(); !status.ok()) return status;
+  if (absl::Status status = options.match.Validate(options.signature); !status.ok()) {
+    return status;
+  }
+  SweepResult result(options.signature.perms);
+  const auto start = std::chrono::steady_clock::now();
+  if (absl::Status status = SignCorpus(reader, options.signature, options.sign, &result.corpus,
+                                       &result.stats.sign);
+      !status.ok()) {
+    return status;
+  }
+  result.stats.sign_seconds = SecondsSince(start);
+  MatchCorpus(result.corpus, options, &result);
+  return result;
+}
+
+}  // namespace kindred
