@@ -1,0 +1,102 @@
+#include "kindred/text.h"
+
+#include <limits>
+#include <memory>
+#include <utility>
+
+#include "absl/status/status.h"
+#include "absl/strings/str_format.h"
+#include "text/ascii_words.h"
+#include "text/icu_words.h"
+#include "text/utf8.h"
+#include "unicode/uchar.h"
+#include "unicode/uversion.h"
+
+namespace kindred {
+namespace {
+
+using text_internal::IcuWords;
+
+absl::Status CheckLength(std::string_view utf8) {
+  if (utf8.size() >= std::numeric_limits<uint32_t>::max()) {
+    return absl::OutOfRangeError(absl::StrFormat(
+        "document of %u bytes is over the 4 GiB limit", utf8.size()));
+  }
+  return absl::OkStatus();
+}
+
+std::vector<Token> AsciiTokens(std::string_view text) {
+  std::vector<Token> tokens;
+  const auto* p = reinterpret_cast<const unsigned char*>(text.data());
+  text_internal::ForEachAsciiWord(p, text.size(), [&](size_t b, size_t e) {
+    Token token;
+    token.text.reserve(e - b);
+    for (size_t i = b; i < e; ++i) {
+      token.text.push_back(text_internal::AsciiFold(p[i]));
+    }
+    token.begin = static_cast<uint32_t>(b);
+    token.end = static_cast<uint32_t>(e);
+    tokens.push_back(std::move(token));
+  });
+  return tokens;
+}
+
+absl::StatusOr<std::vector<Token>> IcuTokens(std::string_view utf8) {
+  absl::StatusOr<std::unique_ptr<IcuWords>> icu = IcuWords::Create();
+  if (!icu.ok()) return icu.status();
+  IcuWords& words = **icu;
+  absl::StatusOr<uint32_t> replaced = words.NormalizeWithSpans(utf8);
+  if (!replaced.ok()) return replaced.status();
+  const char16_t* units = words.normalized().getBuffer();
+  std::vector<Token> tokens;
+  words.ForEachWord([&](int32_t b, int32_t e) {
+    Token token;
+    text_internal::AppendUtf8(units, b, e, &token.text);
+    token.begin = words.span_begin()[b];
+    token.end = words.span_end()[e - 1];
+    tokens.push_back(std::move(token));
+  });
+  return tokens;
+}
+
+}  // namespace
+
+absl::StatusOr<std::string> NormalizeText(std::string_view utf8,
+                                          TextStats* stats) {
+  absl::StatusOr<std::unique_ptr<IcuWords>> icu = IcuWords::Create();
+  if (!icu.ok()) return icu.status();
+  absl::StatusOr<uint32_t> replaced = (*icu)->Normalize(utf8);
+  if (!replaced.ok()) return replaced.status();
+  if (stats != nullptr) stats->invalid_utf8 = *replaced;
+  const icu::UnicodeString& normalized = (*icu)->normalized();
+  std::string out;
+  text_internal::AppendUtf8(normalized.getBuffer(), 0, normalized.length(),
+                            &out);
+  return out;
+}
+
+absl::StatusOr<std::vector<Token>> TokenizeWithSpans(std::string_view utf8,
+                                                     TextPath path) {
+  if (absl::Status s = CheckLength(utf8); !s.ok()) return s;
+  const bool ascii = path != TextPath::kIcu && IsAscii(utf8);
+  if (path == TextPath::kAscii && !ascii) {
+    return absl::InvalidArgumentError(
+        "the ASCII tokenizer was given non-ASCII text");
+  }
+  if (ascii) return AsciiTokens(utf8);
+  return IcuTokens(utf8);
+}
+
+std::string UnicodeVersionString() {
+  UVersionInfo unicode;
+  UVersionInfo icu;
+  u_getUnicodeVersion(unicode);
+  u_getVersion(icu);
+  char unicode_text[U_MAX_VERSION_STRING_LENGTH];
+  char icu_text[U_MAX_VERSION_STRING_LENGTH];
+  u_versionToString(unicode, unicode_text);
+  u_versionToString(icu, icu_text);
+  return absl::StrFormat("Unicode %s, ICU %s", unicode_text, icu_text);
+}
+
+}  // namespace kindred
