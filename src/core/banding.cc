@@ -1,0 +1,131 @@
+#include "kindred/banding.h"
+
+#include <xxhash.h>
+
+#include <algorithm>
+#include <array>
+#include <bit>
+#include <cassert>
+#include <cmath>
+#include <cstring>
+
+#include "kindred/signer.h"
+
+namespace kindred {
+namespace {
+
+// Composite Simpson rule: intervals per side of the threshold (even).
+constexpr int kIntervals = 512;
+constexpr double kTieTolerance = 1e-12;
+
+// log(1 - s^rows) on the Simpson grid of [from, to]; P(s) = -expm1(b * L).
+using Grid = std::array<double, kIntervals + 1>;
+
+void LogMissGrid(double from, double to, uint32_t rows, Grid* grid) {
+  const double step = (to - from) / kIntervals;
+  for (int i = 0; i <= kIntervals; ++i) {
+    const double s = i == kIntervals ? to : from + step * i;
+    (*grid)[i] = std::log1p(-std::pow(s, static_cast<double>(rows)));
+  }
+}
+
+// Simpson integral over [from, to] of P(s) for `bands` bands, given the grid.
+double IntegrateProbability(const Grid& log_miss, double from, double to, uint32_t bands) {
+  double sum = 0;
+  for (int i = 0; i <= kIntervals; ++i) {
+    const double p = -std::expm1(bands * log_miss[i]);
+    const double weight = (i == 0 || i == kIntervals) ? 1.0 : (i % 2 == 1 ? 4.0 : 2.0);
+    sum += weight * p;
+  }
+  return sum * (to - from) / (3.0 * kIntervals);
+}
+
+BandingCost MakeCost(Banding banding, double threshold, double fp_mass, double fn_mass,
+                     double fn_weight, double fp_weight, double min_recall) {
+  BandingCost cost;
+  cost.banding = banding;
+  cost.false_positive_mass = fp_mass;
+  cost.false_negative_mass = fn_mass;
+  cost.weighted = fn_weight * fn_mass + fp_weight * fp_mass;
+  cost.probability_at_threshold = CandidateProbability(threshold, banding.bands, banding.rows);
+  cost.probability_at_recall_point =
+      CandidateProbability(RecallPoint(threshold), banding.bands, banding.rows);
+  cost.meets_recall_floor = cost.probability_at_recall_point >= min_recall;
+  return cost;
+}
+
+// Best first: meeting the recall floor, lower weighted cost, fewer slots,
+// fewer rows.
+bool Better(const BandingCost& a, const BandingCost& b) {
+  if (a.meets_recall_floor != b.meets_recall_floor) return a.meets_recall_floor;
+  if (std::abs(a.weighted - b.weighted) > kTieTolerance) return a.weighted < b.weighted;
+  if (a.banding.slots() != b.banding.slots()) return a.banding.slots() < b.banding.slots();
+  return a.banding.rows < b.banding.rows;
+}
+
+}  // namespace
+
+double RecallPoint(double threshold) {
+  return std::min(threshold + kRecallMargin, (threshold + 1.0) / 2.0);
+}
+
+double CandidateProbability(double s, uint32_t bands, uint32_t rows) {
+  assert(bands >= 1 && rows >= 1);
+  s = std::clamp(s, 0.0, 1.0);
+  // 1 - (1 - s^r)^b, computed as -expm1(b * log1p(-s^r)) to keep precision
+  // when s^r is tiny or the result is near 1.
+  return -std::expm1(bands * std::log1p(-std::pow(s, static_cast<double>(rows))));
+}
+
+BandingCost CostOf(Banding banding, double threshold, double fn_weight, double fp_weight,
+                   double min_recall) {
+  Grid below, above;
+  LogMissGrid(0.0, threshold, banding.rows, &below);
+  LogMissGrid(threshold, 1.0, banding.rows, &above);
+  const double fp = IntegrateProbability(below, 0.0, threshold, banding.bands);
+  const double fn = (1.0 - threshold) - IntegrateProbability(above, threshold, 1.0, banding.bands);
+  return MakeCost(banding, threshold, fp, std::max(fn, 0.0), fn_weight, fp_weight, min_recall);
+}
+
+std::vector<BandingCost> RankBandings(double threshold, uint32_t perms, double fn_weight,
+                                      double fp_weight, double min_recall) {
+  assert(threshold > 0 && threshold <= 1 && perms >= 1);
+  std::vector<BandingCost> ranked;
+  Grid below, above;
+  for (uint32_t rows = 1; rows <= perms; ++rows) {
+    // The grids depend on rows only; each band count reuses them.
+    LogMissGrid(0.0, threshold, rows, &below);
+    LogMissGrid(threshold, 1.0, rows, &above);
+    for (uint32_t bands = 1; uint64_t{bands} * rows <= perms; ++bands) {
+      const double fp = IntegrateProbability(below, 0.0, threshold, bands);
+      const double fn = (1.0 - threshold) - IntegrateProbability(above, threshold, 1.0, bands);
+      ranked.push_back(MakeCost({bands, rows}, threshold, fp, std::max(fn, 0.0), fn_weight,
+                                fp_weight, min_recall));
+    }
+  }
+  std::sort(ranked.begin(), ranked.end(), Better);
+  return ranked;
+}
+
+Banding ChooseBanding(double threshold, uint32_t perms, double fn_weight, double fp_weight,
+                      double min_recall) {
+  return RankBandings(threshold, perms, fn_weight, fp_weight, min_recall).front().banding;
+}
+
+void BandKeys(absl::Span<const uint32_t> signature, Banding banding, absl::Span<uint64_t> out) {
+  assert(out.size() == banding.bands && banding.slots() <= signature.size());
+  const uint32_t rows = banding.rows;
+  for (uint32_t band = 0; band < banding.bands; ++band) {
+    const uint32_t* slots = signature.data() + size_t{band} * rows;
+    if (std::find(slots, slots + rows, kEmptySlot) != slots + rows) {
+      out[band] = kNoBandKey;
+      continue;
+    }
+    static_assert(std::endian::native == std::endian::little,
+                  "band keys hash the little-endian bytes of the slots");
+    const uint64_t key = XXH3_64bits_withSeed(slots, size_t{rows} * sizeof(uint32_t), band);
+    out[band] = key == kNoBandKey ? 1 : key;
+  }
+}
+
+}  // namespace kindred

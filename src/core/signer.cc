@@ -1,0 +1,168 @@
+#include "kindred/signer.h"
+
+#include <algorithm>
+#include <array>
+#include <bit>
+#include <cassert>
+
+namespace kindred {
+namespace {
+
+// The 64-bit finalizer of SplitMix64 (Steele, Lea, Flood 2014, "Fast
+// splittable pseudorandom number generators"; constants of Stafford's
+// "variant 13"). A bijection of 64-bit words with full avalanche.
+inline uint64_t Mix64(uint64_t z) {
+  z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ULL;
+  z = (z ^ (z >> 27)) * 0x94d049bb133111ebULL;
+  return z ^ (z >> 31);
+}
+
+// Maps the high 32 bits of `hash` onto [0, n) without division (Lemire 2019,
+// "Fast random integer generation in an interval", multiply-shift reduction).
+inline uint32_t ReduceHigh(uint64_t hash, uint32_t n) {
+  return static_cast<uint32_t>(((hash >> 32) * n) >> 32);
+}
+
+// Largest slot value of a non-empty set: kEmptySlot is reserved.
+constexpr uint32_t kLargestValue = kEmptySlot - 1;
+// Settings allow at most this many slots (SignatureSettings::Validate).
+constexpr uint32_t kMaxPerms = 4096;
+// Densification probes an empty bin's own sequence this many times before
+// falling back to a circular scan from the last probe (bounds the cost of very
+// short documents at perms * kMaxProbes hashes).
+constexpr uint32_t kMaxProbes = 64;
+
+// Distinct constants keep the derived seeds of one settings seed apart.
+constexpr uint64_t kValueSeedTweak = 0x5ca1ab1e0ddba11ULL;
+constexpr uint64_t kProbeSeedTweak = 0x0b5e55edc0ffee11ULL;
+constexpr uint64_t kSlotSeedTweak = 0x51075eed5eed5107ULL;
+
+// Classic MinHash inner loop: one shingle against every slot's hash function.
+// Written over plain arrays so the compiler vectorizes it; target_clones
+// builds an AVX2 copy chosen at load time, with a baseline copy for any
+// x86-64.
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__)
+__attribute__((target_clones("avx2", "default")))
+#endif
+void MinOverSlots(const uint64_t* shingles, size_t count, const uint64_t* slot_seeds,
+                  uint32_t perms, uint32_t* out) {
+  for (size_t s = 0; s < count; ++s) {
+    const uint64_t x = shingles[s];
+    for (uint32_t i = 0; i < perms; ++i) {
+      const uint32_t value = static_cast<uint32_t>(Mix64(x ^ slot_seeds[i]) >> 32);
+      out[i] = value < out[i] ? value : out[i];
+    }
+  }
+}
+
+// Bitmap of the bins a set filled before densification.
+using BinBitmap = std::array<uint64_t, kMaxPerms / 64>;
+
+bool Has(const BinBitmap& bins, uint32_t bin) { return (bins[bin >> 6] >> (bin & 63)) & 1; }
+
+// The first filled bin at or after `start`, circularly. Requires at least one.
+uint32_t NextFilled(const BinBitmap& bins, uint32_t start, uint32_t perms) {
+  const uint32_t words = (perms + 63) / 64;
+  uint32_t word = start >> 6;
+  uint64_t bits = bins[word] & (~uint64_t{0} << (start & 63));
+  for (uint32_t step = 0; step <= words; ++step) {
+    if (bits != 0) return word * 64 + static_cast<uint32_t>(std::countr_zero(bits));
+    word = word + 1 == words ? 0 : word + 1;
+    bits = bins[word];
+  }
+  assert(false && "NextFilled requires a filled bin");
+  return 0;
+}
+
+}  // namespace
+
+Signer::Signer(const SignatureSettings& settings)
+    : scheme_(settings.scheme),
+      perms_(settings.perms),
+      value_seed_(Mix64(settings.seed ^ kValueSeedTweak)),
+      probe_seed_(Mix64(settings.seed ^ kProbeSeedTweak)) {
+  assert(settings.Validate().ok());
+  if (scheme_ == SignerScheme::kClassic) {
+    // s_i: SplitMix64 outputs from the settings seed, one per slot.
+    slot_seeds_.resize(perms_);
+    uint64_t state = settings.seed ^ kSlotSeedTweak;
+    for (uint64_t& seed : slot_seeds_) {
+      state += 0x9e3779b97f4a7c15ULL;
+      seed = Mix64(state);
+    }
+  }
+}
+
+void Signer::Sign(absl::Span<const uint64_t> shingles, absl::Span<uint32_t> out) const {
+  assert(out.size() == perms_);
+  std::fill(out.begin(), out.end(), kEmptySlot);
+  if (shingles.empty()) return;
+  if (scheme_ == SignerScheme::kClassic) {
+    SignClassic(shingles, out);
+  } else {
+    SignOnePermutation(shingles, out);
+  }
+}
+
+std::vector<uint32_t> Signer::Sign(absl::Span<const uint64_t> shingles) const {
+  std::vector<uint32_t> out(perms_);
+  Sign(shingles, absl::MakeSpan(out));
+  return out;
+}
+
+// Broder 1997, "On the resemblance and containment of documents": slot i is
+// min over the set of h_i(x), with h_i(x) = high 32 bits of Mix64(x ^ s_i).
+void Signer::SignClassic(absl::Span<const uint64_t> shingles, absl::Span<uint32_t> out) const {
+  MinOverSlots(shingles.data(), shingles.size(), slot_seeds_.data(), perms_, out.data());
+  for (uint32_t& slot : out) slot = std::min(slot, kLargestValue);
+}
+
+// Li, Owen, Zhang 2012, "One Permutation Hashing", then Shrivastava 2017,
+// "Optimal Densification for Fast and Accurate Minwise Hashing".
+void Signer::SignOnePermutation(absl::Span<const uint64_t> shingles,
+                                absl::Span<uint32_t> out) const {
+  uint32_t* bins = out.data();
+  for (const uint64_t shingle : shingles) {
+    const uint64_t hash = Mix64(shingle ^ value_seed_);
+    const uint32_t bin = ReduceHigh(hash, perms_);
+    const uint32_t value = std::min(static_cast<uint32_t>(hash), kLargestValue);
+    bins[bin] = std::min(bins[bin], value);
+  }
+  BinBitmap filled{};
+  uint32_t filled_count = 0;
+  for (uint32_t bin = 0; bin < perms_; ++bin) {
+    if (bins[bin] != kEmptySlot) {
+      filled[bin >> 6] |= uint64_t{1} << (bin & 63);
+      ++filled_count;
+    }
+  }
+  if (filled_count == perms_) return;
+  // Each empty bin copies the first filled bin of its own probe sequence
+  // (the same sequence for every document, so copies stay comparable).
+  // Only bins filled above are read, so the order of filling does not matter.
+  for (uint32_t bin = 0; bin < perms_; ++bin) {
+    if (Has(filled, bin)) continue;
+    uint32_t source = 0;
+    for (uint32_t attempt = 1;; ++attempt) {
+      const uint64_t key = (uint64_t{bin} << 32) | attempt;
+      source = ReduceHigh(Mix64(key ^ probe_seed_), perms_);
+      if (Has(filled, source)) break;
+      if (attempt == kMaxProbes) {
+        source = NextFilled(filled, source, perms_);
+        break;
+      }
+    }
+    bins[bin] = bins[source];
+  }
+}
+
+double EstimateJaccard(absl::Span<const uint32_t> a, absl::Span<const uint32_t> b) {
+  if (a.size() != b.size() || a.empty()) return 0.0;
+  size_t agree = 0;
+  for (size_t i = 0; i < a.size(); ++i) {
+    agree += (a[i] == b[i]) & (a[i] != kEmptySlot);
+  }
+  return static_cast<double>(agree) / static_cast<double>(a.size());
+}
+
+}  // namespace kindred
