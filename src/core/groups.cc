@@ -56,7 +56,7 @@ absl::StatusOr<KeepPolicy> ParseKeepPolicy(std::string_view name) {
   if (name == "longest") return KeepPolicy::kLongest;
   if (name == "priority") return KeepPolicy::kPriority;
   return absl::InvalidArgumentError(
-      absl::StrCat("unknown keep policy \"", name, "\" (expected first, longest or priority)"));
+      absl::StrCat("unknown keep policy \"", std::string(name), "\" (expected first, longest or priority)"));
 }
 
 const char* KeepPolicyName(KeepPolicy policy) {

@@ -65,7 +65,7 @@ absl::StatusOr<RecordFormat> ParseRecordFormat(std::string_view name) {
   if (name == "tsv") return RecordFormat::kTsv;
   if (name == "csv") return RecordFormat::kCsv;
   return absl::InvalidArgumentError(
-      absl::StrCat("unknown output format \"", name, "\" (expected jsonl, tsv or csv)"));
+      absl::StrCat("unknown output format \"", std::string(name), "\" (expected jsonl, tsv or csv)"));
 }
 
 const char* RecordFormatSuffix(RecordFormat format) {

@@ -1,0 +1,59 @@
+// Options shared by the commands that read a corpus (sweep, build, add, check,
+// tune, explain): how to read inputs, how to sign, how to match, threads.
+// Each Add*Options function registers the options on a subcommand and binds
+// them to a flags struct; the To* functions validate and convert.
+#ifndef KINDRED_CLI_COMMON_OPTIONS_H_
+#define KINDRED_CLI_COMMON_OPTIONS_H_
+
+#include <string>
+#include <vector>
+
+#include "CLI/CLI.hpp"
+#include "absl/status/statusor.h"
+#include "kindred/corpus.h"
+#include "kindred/settings.h"
+
+namespace kindred::cli {
+
+struct InputFlags {
+  std::string format = "auto";
+  std::string id_field = "id";
+  std::string text_field = "text";
+  std::string priority_field;
+  std::string max_document_size = "64M";
+  std::string max_decompressed_size = "0";
+};
+void AddInputOptions(CLI::App* command, InputFlags* flags);
+absl::StatusOr<InputOptions> ToInputOptions(const InputFlags& flags);
+
+struct SignatureFlags {
+  std::string shingle = "word";
+  uint32_t k = 5;
+  uint32_t perms = 128;
+  std::string signer = "oph";
+  uint64_t seed = kDefaultSeed;
+};
+void AddSignatureOptions(CLI::App* command, SignatureFlags* flags);
+absl::StatusOr<SignatureSettings> ToSignatureSettings(const SignatureFlags& flags);
+
+struct MatchFlags {
+  double threshold = 0.8;
+  uint32_t bands = 0;
+  uint32_t rows = 0;
+  std::string measure = "jaccard";
+};
+void AddMatchOptions(CLI::App* command, MatchFlags* flags);
+absl::StatusOr<MatchSettings> ToMatchSettings(const MatchFlags& flags,
+                                              const SignatureSettings& signature);
+
+struct GeneralFlags {
+  int threads = 0;  // 0: all cores
+  bool quiet = false;
+  bool verbose = false;
+};
+void AddGeneralOptions(CLI::App* command, GeneralFlags* flags);
+int ThreadCount(const GeneralFlags& flags);
+
+}  // namespace kindred::cli
+
+#endif  // KINDRED_CLI_COMMON_OPTIONS_H_

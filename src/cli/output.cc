@@ -1,0 +1,87 @@
+#include "cli/output.h"
+
+#include <unistd.h>
+
+#include <chrono>
+#include <cstdio>
+
+#include "absl/strings/ascii.h"
+#include "absl/strings/numbers.h"
+#include "absl/strings/str_cat.h"
+#include "kindred/file_io.h"
+
+namespace kindred::cli {
+
+absl::Status WriteOutputFile(const std::string& path, std::string_view data) {
+  if (path == "-") {
+    if (std::fwrite(data.data(), 1, data.size(), stdout) != data.size() || std::fflush(stdout) != 0) {
+      return absl::AbortedError("cannot write to standard output");
+    }
+    return absl::OkStatus();
+  }
+  FileSystem* fs = DefaultFileSystem();
+  const std::string temporary = absl::StrCat(path, ".tmp-", getpid());
+  auto file = fs->CreateNew(temporary);
+  if (!file.ok()) return file.status();
+  absl::Status status = (*file)->Append(data);
+  if (status.ok()) status = (*file)->Sync();
+  file->reset();
+  if (status.ok()) status = fs->Rename(temporary, path, /*replace=*/true);
+  if (status.ok()) status = fs->SyncDirectoryOf(path);
+  if (!status.ok()) {
+    fs->Remove(temporary).IgnoreError();
+    return absl::Status(status.code(), absl::StrCat("cannot write ", path, ": ", status.message()));
+  }
+  return absl::OkStatus();
+}
+
+absl::StatusOr<uint64_t> ParseByteSize(std::string_view text) {
+  absl::string_view digits = absl::StripAsciiWhitespace(absl::string_view(text.data(), text.size()));
+  uint64_t scale = 1;
+  if (!digits.empty()) {
+    switch (absl::ascii_toupper(digits.back())) {
+      case 'K': scale = 1ull << 10; break;
+      case 'M': scale = 1ull << 20; break;
+      case 'G': scale = 1ull << 30; break;
+      case 'T': scale = 1ull << 40; break;
+      default: break;
+    }
+    if (scale != 1) digits.remove_suffix(1);
+  }
+  uint64_t value = 0;
+  if (!absl::SimpleAtoi(digits, &value) || value > UINT64_MAX / scale) {
+    return absl::InvalidArgumentError(
+        absl::StrCat("\"", std::string(text), "\" is not a size (a number with an optional K, M, G or T)"));
+  }
+  return value * scale;
+}
+
+namespace {
+double Now() {
+  return std::chrono::duration<double>(std::chrono::steady_clock::now().time_since_epoch())
+      .count();
+}
+}  // namespace
+
+Progress::Progress(bool quiet) : enabled_(!quiet && isatty(STDERR_FILENO)) {}
+
+Progress::~Progress() { Clear(); }
+
+void Progress::Update(std::string_view line) {
+  if (!enabled_) return;
+  const double now = Now();
+  if (now - last_ < 0.1) return;
+  last_ = now;
+  std::fprintf(stderr, "\r\033[K%.*s", static_cast<int>(line.size()), line.data());
+  std::fflush(stderr);
+  shown_ = true;
+}
+
+void Progress::Clear() {
+  if (!shown_) return;
+  std::fprintf(stderr, "\r\033[K");
+  std::fflush(stderr);
+  shown_ = false;
+}
+
+}  // namespace kindred::cli

@@ -1,0 +1,234 @@
+// kindred sweep: one-shot deduplication of a corpus.
+#include <unistd.h>
+
+#include <cstdio>
+#include <filesystem>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+#include "cli/cli.h"
+#include "cli/common_options.h"
+#include "cli/output.h"
+#include "kindred/kept_writer.h"
+#include "kindred/records.h"
+#include "kindred/sweep.h"
+
+namespace kindred::cli {
+namespace {
+
+struct SweepFlags {
+  std::vector<std::string> inputs;
+  InputFlags input;
+  SignatureFlags signature;
+  MatchFlags match;
+  GeneralFlags general;
+  std::string keep = "first";
+  bool exhaustive = false;
+  std::string output_dir;
+  std::string print;
+  std::string format = "jsonl";
+  std::string write_kept;
+  std::string copy_kept;
+  std::string list_kept;
+};
+
+struct SweepOutputs {
+  RecordFormat format;
+  std::string pairs, groups, decisions;
+};
+
+SweepOutputs FormatOutputs(const SweepResult& result, RecordFormat format, KeepPolicy keep) {
+  SweepOutputs outputs{format, {}, {}, {}};
+  const auto ids = result.corpus.ids();
+  std::vector<uint8_t> empty(result.corpus.size());
+  for (size_t doc = 0; doc < empty.size(); ++doc) empty[doc] = result.corpus.shingles(doc).empty();
+  WritePairRecords(format, result.pairs, ids, &outputs.pairs);
+  WriteGroupRecords(format, result.groups, ids, keep, &outputs.groups);
+  WriteDecisionRecords(format, result.groups, result.pairs, ids, empty, keep, &outputs.decisions);
+  return outputs;
+}
+
+absl::Status WriteOutputs(const SweepFlags& flags, const SweepOutputs& outputs) {
+  const std::string suffix = RecordFormatSuffix(outputs.format);
+  if (!flags.output_dir.empty()) {
+    std::error_code error;
+    std::filesystem::create_directories(flags.output_dir, error);
+    if (error) {
+      return absl::AbortedError(
+          absl::StrCat("cannot create output directory ", flags.output_dir, ": ", error.message()));
+    }
+    for (const auto& [name, data] : {std::pair{"pairs", &outputs.pairs},
+                                     std::pair{"groups", &outputs.groups},
+                                     std::pair{"decisions", &outputs.decisions}}) {
+      const std::string path = absl::StrCat(flags.output_dir, "/", name, ".", suffix);
+      if (absl::Status status = WriteOutputFile(path, *data); !status.ok()) return status;
+    }
+  }
+  std::string print = flags.print;
+  if (print.empty()) print = flags.output_dir.empty() ? "groups" : "none";
+  if (print == "pairs") return WriteOutputFile("-", outputs.pairs);
+  if (print == "groups") return WriteOutputFile("-", outputs.groups);
+  if (print == "decisions") return WriteOutputFile("-", outputs.decisions);
+  return absl::OkStatus();
+}
+
+void PrintSummary(const SweepResult& result, const SweepOptions& options) {
+  const SweepStats& stats = result.stats;
+  std::fprintf(stderr, "kindred sweep: %llu documents (%llu empty), %.1f MB\n",
+               static_cast<unsigned long long>(stats.sign.documents),
+               static_cast<unsigned long long>(stats.sign.empty_documents),
+               static_cast<double>(stats.sign.bytes) / 1e6);
+  if (options.exhaustive) {
+    std::fprintf(stderr, "  candidate pairs   all (exhaustive comparison)\n");
+  } else {
+    std::fprintf(stderr, "  candidate pairs   %llu (%u bands x %u rows)\n",
+                 static_cast<unsigned long long>(stats.candidates.candidate_pairs),
+                 stats.banding.bands, stats.banding.rows);
+  }
+  std::fprintf(stderr, "  confirmed pairs   %llu (%s >= %g)\n",
+               static_cast<unsigned long long>(stats.confirmed_pairs),
+               MeasureName(options.match.measure), options.match.threshold);
+  std::fprintf(stderr, "  groups            %llu\n", static_cast<unsigned long long>(stats.groups));
+  std::fprintf(stderr, "  drops             %llu (keep policy: %s)\n",
+               static_cast<unsigned long long>(stats.drops), KeepPolicyName(options.keep));
+  if (stats.sign.invalid_utf8_documents > 0) {
+    std::fprintf(stderr, "  invalid UTF-8     %llu documents (bytes replaced by U+FFFD; -v lists them)\n",
+                 static_cast<unsigned long long>(stats.sign.invalid_utf8_documents));
+  }
+}
+
+bool WantsKept(const SweepFlags& flags) {
+  return !flags.write_kept.empty() || !flags.copy_kept.empty() || !flags.list_kept.empty();
+}
+
+absl::StatusOr<KeptCounts> WriteKeptCorpus(const SweepFlags& flags, const SweepResult& result,
+                                           const CorpusReader& reader,
+                                           const InputOptions& input_options) {
+  std::vector<uint8_t> dropped(result.corpus.size(), 0);
+  for (const Group& group : result.groups) {
+    for (uint32_t member : group.members) dropped[member] = member != group.keeper;
+  }
+  KeptRequest request;
+  request.inputs = reader.ResolvedInputs();
+  request.options = input_options;
+  request.keep = [&dropped](uint64_t ordinal) { return !dropped[ordinal]; };
+  request.expected_documents = reader.documents_read();
+  request.output = KeptOutput{flags.write_kept, flags.copy_kept, flags.list_kept};
+  return WriteKept(request);
+}
+
+int RunSweepCommand(const SweepFlags& flags) {
+  auto input_options = ToInputOptions(flags.input);
+  if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
+  SweepOptions options;
+  auto signature = ToSignatureSettings(flags.signature);
+  if (!signature.ok()) return Fail(kExitUsage, signature.status());
+  options.signature = *signature;
+  auto match = ToMatchSettings(flags.match, options.signature);
+  if (!match.ok()) return Fail(kExitUsage, match.status());
+  options.match = *match;
+  auto keep = ParseKeepPolicy(flags.keep);
+  if (!keep.ok()) return Fail(kExitUsage, keep.status());
+  options.keep = *keep;
+  auto format = ParseRecordFormat(flags.format);
+  if (!format.ok()) return Fail(kExitUsage, format.status());
+  options.exhaustive = flags.exhaustive;
+  options.sign.threads = ThreadCount(flags.general);
+
+  // Standard input cannot be read twice: keep a copy when the kept corpus
+  // will need a second pass.
+  std::string stdin_copy;
+  if (WantsKept(flags)) {
+    stdin_copy = absl::StrCat(std::filesystem::temp_directory_path().string(), "/kindred-stdin-",
+                              getpid());
+    input_options->stdin_copy_path = stdin_copy;
+  }
+  struct RemoveCopy {
+    std::string path;
+    ~RemoveCopy() {
+      if (!path.empty()) std::remove(path.c_str());
+    }
+  } remove_copy{stdin_copy};
+
+  auto reader = CorpusReader::Open(flags.inputs, *input_options);
+  if (!reader.ok()) return Fail(kExitInput, reader.status());
+  Progress progress(flags.general.quiet);
+  options.sign.progress = [&progress](const SignStats& stats) {
+    progress.Update(absl::StrFormat("signing: %d documents, %.1f MB", stats.documents,
+                                    static_cast<double>(stats.bytes) / 1e6));
+  };
+  if (flags.general.verbose) {
+    options.sign.on_invalid_utf8 = [](const std::string& id, uint32_t invalid) {
+      std::fprintf(stderr, "kindred: note: %s: %u invalid UTF-8 sequences replaced by U+FFFD\n",
+                   id.c_str(), invalid);
+    };
+  }
+  auto result = RunSweep(**reader, options);
+  progress.Clear();
+  if (!result.ok()) return Fail(ExitCodeFor(result.status()), result.status());
+
+  const SweepOutputs outputs = FormatOutputs(*result, *format, options.keep);
+  if (absl::Status status = WriteOutputs(flags, outputs); !status.ok()) {
+    return Fail(kExitOutput, status);
+  }
+  if (WantsKept(flags)) {
+    auto kept = WriteKeptCorpus(flags, *result, **reader, *input_options);
+    if (!kept.ok()) {
+      return Fail(kept.status().code() == absl::StatusCode::kInvalidArgument ? kExitUsage
+                                                                             : kExitOutput,
+                  kept.status());
+    }
+  }
+  if (!flags.general.quiet) PrintSummary(*result, options);
+  if (flags.general.verbose) {
+    std::fprintf(stderr, "  time              %.2f s signing, %.2f s matching\n",
+                 result->stats.sign_seconds, result->stats.match_seconds);
+  }
+  return kExitOk;
+}
+
+}  // namespace
+
+void RegisterSweep(CLI::App& app, int* exit_code) {
+  auto flags = std::make_shared<SweepFlags>();
+  CLI::App* command = app.add_subcommand(
+      "sweep", "Find the near-duplicate pairs and groups of a corpus; say what to keep and drop");
+  command->add_option("inputs", flags->inputs,
+                      "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
+                      "standard input")
+      ->required();
+  AddInputOptions(command, &flags->input);
+  AddSignatureOptions(command, &flags->signature);
+  AddMatchOptions(command, &flags->match);
+  command->add_flag("--exhaustive", flags->exhaustive,
+                    "compare every pair exactly instead of using LSH (slow; the reference)")
+      ->group("Matching");
+  command->add_option("--keep", flags->keep, "keeper of each group: first, longest or priority")
+      ->default_str("first")
+      ->group("Grouping");
+  command->add_option("-o,--output-dir", flags->output_dir,
+                      "write pairs, groups and decisions files into this directory")
+      ->group("Output");
+  command->add_option("--print", flags->print,
+                      "records on standard output: pairs, groups, decisions or none (default: "
+                      "groups, or none with --output-dir)")
+      ->check(CLI::IsMember({"pairs", "groups", "decisions", "none"}))
+      ->group("Output");
+  command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
+      ->default_str("jsonl")
+      ->group("Output");
+  command->add_option("--write-kept", flags->write_kept,
+                      "JSON Lines inputs: write the kept lines, verbatim, to this file "
+                      "(.gz/.zst compress)")
+      ->group("Output");
+  command->add_option("--copy-kept", flags->copy_kept,
+                      "text inputs: copy the kept files into this new or empty directory")
+      ->group("Output");
+  command->add_option("--list-kept", flags->list_kept,
+                      "text inputs: write the kept file paths, one per line, to this file")
+      ->group("Output");
+  AddGeneralOptions(command, &flags->general);
+  command->callback([flags, exit_code] { *exit_code = RunSweepCommand(*flags); });
+}
+
+}  // namespace kindred::cli
