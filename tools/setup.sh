@@ -1,0 +1,42 @@
+#!/usr/bin/env bash
+# Set-up on a fresh Debian 12 machine: installs the Debian packages kindred
+# builds, tests and benchmarks with, then configures and builds a Release
+# build in build/. Safe to run again: it only installs what is missing and
+# rebuilds what changed.
+#
+#   tools/setup.sh            # packages + build/
+#   KINDRED_BUILD_DIR=dir tools/setup.sh
+#   KINDRED_SANITIZE=ON KINDRED_BUILD_DIR=build-asan tools/setup.sh
+set -euo pipefail
+
+cd "$(dirname "$0")/.."
+build_dir=${KINDRED_BUILD_DIR:-build}
+sanitize=${KINDRED_SANITIZE:-OFF}
+build_type=Release
+[[ "$sanitize" == ON ]] && build_type=Debug
+
+packages=(
+  build-essential cmake ninja-build pkg-config git
+  libicu-dev libxxhash-dev libabsl-dev libcli11-dev catch2
+  libsimdjson-dev zlib1g-dev libzstd-dev
+  # tests: Unicode test files, the independent Python reference, tools
+  unicode-data python3 python3-icu python3-xxhash xxhash zstd gzip bzip2 libxml2-utils
+)
+
+missing=()
+for package in "${packages[@]}"; do
+  dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed" ||
+    missing+=("$package")
+done
+if ((${#missing[@]} > 0)); then
+  sudo=()
+  [[ $(id -u) -ne 0 ]] && sudo=(sudo)
+  echo "setup: installing ${missing[*]}" >&2
+  "${sudo[@]}" apt-get update -qq
+  DEBIAN_FRONTEND=noninteractive "${sudo[@]}" apt-get install -y -qq --no-install-recommends \
+    "${missing[@]}" >/dev/null
+fi
+
+cmake -S . -B "$build_dir" -G Ninja -DCMAKE_BUILD_TYPE="$build_type" \
+  -DKINDRED_SANITIZE="$sanitize" >/dev/null
+cmake --build "$build_dir" -j"$(nproc)"
