@@ -30,8 +30,9 @@
 // JSON string is unescaped. JSON Lines input must itself be valid UTF-8 (RFC
 // 8259); a line with invalid UTF-8 is an error naming the line.
 //
-// Memory stays bounded: no more than max_document_bytes of one document or
-// line plus a fixed-size read buffer (256 KiB) is held besides the batch.
+// Memory stays bounded: besides the batch, a reader holds one document or
+// line (at most max_document_bytes, in a buffer at most about twice that)
+// and fixed-size read buffers (256 KiB each).
 //
 // Errors name the input and line (or the document): "corpus.jsonl:17:
 // missing field \"text\"", "corpus.jsonl.gz: truncated gzip stream after

@@ -1,0 +1,316 @@
+#include "io/byte_stream.h"
+
+#include <fcntl.h>
+#include <unistd.h>
+#include <zlib.h>
+#include <zstd.h>
+
+#include <cerrno>
+#include <cstring>
+#include <utility>
+#include <vector>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+
+namespace kindred::io {
+namespace {
+
+// Reads a file descriptor, first handing out bytes already read from it
+// (`prefix`, used to sniff the compression magic).
+class FdStream : public ByteStream {
+ public:
+  FdStream(int fd, bool owned, std::string name, std::string prefix)
+      : fd_(fd), owned_(owned), name_(std::move(name)), prefix_(std::move(prefix)) {}
+  ~FdStream() override {
+    if (owned_) close(fd_);
+  }
+
+  absl::StatusOr<size_t> Read(char* dst, size_t capacity) override {
+    if (prefix_used_ < prefix_.size()) {
+      size_t n = std::min(capacity, prefix_.size() - prefix_used_);
+      std::memcpy(dst, prefix_.data() + prefix_used_, n);
+      prefix_used_ += n;
+      return n;
+    }
+    for (;;) {
+      ssize_t n = read(fd_, dst, capacity);
+      if (n >= 0) return static_cast<size_t>(n);
+      if (errno != EINTR) return absl::ErrnoToStatus(errno, absl::StrCat(name_, ": read failed"));
+    }
+  }
+
+ private:
+  int fd_;
+  bool owned_;
+  std::string name_;
+  std::string prefix_;
+  size_t prefix_used_ = 0;
+};
+
+// Feeds a decompressor: holds one chunk of compressed input and counts the
+// compressed bytes consumed.
+class CompressedInput {
+ public:
+  explicit CompressedInput(std::unique_ptr<ByteStream> raw)
+      : raw_(std::move(raw)), buffer_(kChunkBytes) {}
+  // Refills when empty. Returns false at the end of the raw stream.
+  absl::StatusOr<bool> EnsureData(const unsigned char** next, size_t* available) {
+    if (*available > 0) return true;
+    if (eof_) return false;
+    absl::StatusOr<size_t> n = raw_->Read(buffer_.data(), buffer_.size());
+    if (!n.ok()) return n.status();
+    if (*n == 0) {
+      eof_ = true;
+      return false;
+    }
+    total_ += *n;
+    *next = reinterpret_cast<const unsigned char*>(buffer_.data());
+    *available = *n;
+    return true;
+  }
+  bool eof() const { return eof_; }
+  uint64_t total() const { return total_; }
+
+ private:
+  std::unique_ptr<ByteStream> raw_;
+  std::vector<char> buffer_;
+  bool eof_ = false;
+  uint64_t total_ = 0;
+};
+
+// gzip members, one after another (RFC 1952), inflated by zlib with
+// automatic header detection (windowBits 15 + 32).
+class GzipStream : public ByteStream {
+ public:
+  GzipStream(std::unique_ptr<ByteStream> raw, std::string name)
+      : input_(std::move(raw)), name_(std::move(name)) {
+    std::memset(&z_, 0, sizeof(z_));
+    init_result_ = inflateInit2(&z_, 15 + 32);
+  }
+  ~GzipStream() override { inflateEnd(&z_); }
+
+  absl::StatusOr<size_t> Read(char* dst, size_t capacity) override {
+    if (init_result_ != Z_OK) return absl::InternalError("zlib initialization failed");
+    for (;;) {
+      const unsigned char* next = z_.next_in;
+      size_t available = z_.avail_in;
+      absl::StatusOr<bool> has_data = input_.EnsureData(&next, &available);
+      if (!has_data.ok()) return has_data.status();
+      z_.next_in = const_cast<unsigned char*>(next);
+      z_.avail_in = static_cast<uInt>(available);
+      if (member_done_) {
+        if (!*has_data) return 0;  // clean end after a complete member
+        inflateReset(&z_);
+        member_done_ = false;
+      }
+      z_.next_out = reinterpret_cast<unsigned char*>(dst);
+      z_.avail_out = static_cast<uInt>(std::min<size_t>(capacity, 1u << 30));
+      const uInt out_before = z_.avail_out;
+      int result = inflate(&z_, Z_NO_FLUSH);
+      size_t produced = out_before - z_.avail_out;
+      if (result == Z_STREAM_END) {
+        member_done_ = true;
+      } else if (result != Z_OK && result != Z_BUF_ERROR) {
+        return absl::InvalidArgumentError(absl::StrFormat(
+            "%s: corrupt gzip stream near byte %d: %s", name_, input_.total() - z_.avail_in,
+            z_.msg != nullptr ? z_.msg : zError(result)));
+      }
+      if (produced > 0) return produced;
+      if (!*has_data && !member_done_) {
+        return absl::InvalidArgumentError(
+            absl::StrFormat("%s: truncated gzip stream after %d bytes", name_, input_.total()));
+      }
+    }
+  }
+
+ private:
+  CompressedInput input_;
+  std::string name_;
+  z_stream z_;
+  int init_result_;
+  bool member_done_ = false;
+};
+
+// zstd frames, one after another (RFC 8878), by ZSTD_decompressStream.
+class ZstdStream : public ByteStream {
+ public:
+  ZstdStream(std::unique_ptr<ByteStream> raw, std::string name)
+      : input_(std::move(raw)), name_(std::move(name)), stream_(ZSTD_createDStream()) {}
+  ~ZstdStream() override { ZSTD_freeDStream(stream_); }
+
+  absl::StatusOr<size_t> Read(char* dst, size_t capacity) override {
+    if (stream_ == nullptr) return absl::InternalError("zstd initialization failed");
+    for (;;) {
+      const unsigned char* next = static_cast<const unsigned char*>(in_.src) + in_.pos;
+      size_t available = in_.size - in_.pos;
+      absl::StatusOr<bool> has_data = input_.EnsureData(&next, &available);
+      if (!has_data.ok()) return has_data.status();
+      if (next != static_cast<const unsigned char*>(in_.src) + in_.pos) in_ = {next, available, 0};
+      ZSTD_outBuffer out = {dst, capacity, 0};
+      const size_t in_before = in_.pos;
+      size_t result = ZSTD_decompressStream(stream_, &out, &in_);
+      if (ZSTD_isError(result)) {
+        return absl::InvalidArgumentError(
+            absl::StrFormat("%s: corrupt zstd stream near byte %d: %s", name_,
+                            input_.total() - (in_.size - in_.pos), ZSTD_getErrorName(result)));
+      }
+      // With no input consumed and no output made, the result only hints at
+      // the next frame's header: it says nothing about the last frame.
+      if (in_.pos != in_before || out.pos > 0) frame_pending_ = result != 0;
+      if (out.pos > 0) return out.pos;
+      if (!*has_data) {
+        if (!frame_pending_) return 0;
+        return absl::InvalidArgumentError(
+            absl::StrFormat("%s: truncated zstd stream after %d bytes", name_, input_.total()));
+      }
+    }
+  }
+
+ private:
+  CompressedInput input_;
+  std::string name_;
+  ZSTD_DStream* stream_;
+  ZSTD_inBuffer in_ = {nullptr, 0, 0};
+  bool frame_pending_ = true;
+};
+
+// Stops with ResourceExhausted once more than `limit` bytes came out.
+class LimitedStream : public ByteStream {
+ public:
+  LimitedStream(std::unique_ptr<ByteStream> inner, std::string name, uint64_t limit)
+      : inner_(std::move(inner)), name_(std::move(name)), limit_(limit) {}
+  absl::StatusOr<size_t> Read(char* dst, size_t capacity) override {
+    absl::StatusOr<size_t> n = inner_->Read(dst, capacity);
+    if (!n.ok()) return n;
+    total_ += *n;
+    if (total_ > limit_) {
+      return absl::ResourceExhaustedError(absl::StrFormat(
+          "%s: decompressed size exceeds the limit of %d bytes (--max-decompressed-size)", name_,
+          limit_));
+    }
+    return n;
+  }
+
+ private:
+  std::unique_ptr<ByteStream> inner_;
+  std::string name_;
+  uint64_t limit_;
+  uint64_t total_ = 0;
+};
+
+absl::Status WriteAll(int fd, const char* data, size_t size, const std::string& name) {
+  while (size > 0) {
+    ssize_t n = write(fd, data, size);
+    if (n < 0) {
+      if (errno == EINTR) continue;
+      return absl::ErrnoToStatus(errno, absl::StrCat(name, ": write failed"));
+    }
+    data += n;
+    size -= static_cast<size_t>(n);
+  }
+  return absl::OkStatus();
+}
+
+// Copies every byte read through it into a file.
+class TeeStream : public ByteStream {
+ public:
+  TeeStream(std::unique_ptr<ByteStream> inner, int fd, std::string copy_path)
+      : inner_(std::move(inner)), fd_(fd), copy_path_(std::move(copy_path)) {}
+  ~TeeStream() override { close(fd_); }
+  absl::StatusOr<size_t> Read(char* dst, size_t capacity) override {
+    absl::StatusOr<size_t> n = inner_->Read(dst, capacity);
+    if (!n.ok()) return n;
+    absl::Status written = WriteAll(fd_, dst, *n, copy_path_);
+    if (!written.ok()) return written;
+    return n;
+  }
+
+ private:
+  std::unique_ptr<ByteStream> inner_;
+  int fd_;
+  std::string copy_path_;
+};
+
+absl::StatusOr<int> OpenForReading(const std::string& path) {
+  for (;;) {
+    int fd = open(path.c_str(), O_RDONLY | O_CLOEXEC);
+    if (fd >= 0) return fd;
+    if (errno != EINTR) return absl::ErrnoToStatus(errno, absl::StrCat(path, ": cannot open"));
+  }
+}
+
+// Reads up to 4 bytes (fewer only at the end of the stream).
+absl::StatusOr<std::string> ReadMagic(int fd, const std::string& name) {
+  std::string magic(4, '\0');
+  size_t have = 0;
+  while (have < magic.size()) {
+    ssize_t n = read(fd, magic.data() + have, magic.size() - have);
+    if (n < 0 && errno == EINTR) continue;
+    if (n < 0) return absl::ErrnoToStatus(errno, absl::StrCat(name, ": read failed"));
+    if (n == 0) break;
+    have += static_cast<size_t>(n);
+  }
+  magic.resize(have);
+  return magic;
+}
+
+Compression DetectCompression(const std::string& magic) {
+  if (magic.size() >= 2 && magic[0] == '\x1f' && magic[1] == '\x8b') return Compression::kGzip;
+  if (magic == std::string("\x28\xb5\x2f\xfd", 4)) return Compression::kZstd;
+  return Compression::kNone;
+}
+
+}  // namespace
+
+std::string DisplayName(const std::string& path) {
+  return path == "-" ? std::string("standard input") : path;
+}
+
+absl::StatusOr<std::unique_ptr<ByteStream>> OpenRaw(const std::string& path) {
+  absl::StatusOr<int> fd = OpenForReading(path);
+  if (!fd.ok()) return fd.status();
+  return std::make_unique<FdStream>(*fd, true, path, std::string());
+}
+
+absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
+                                                        const DecodeOptions& options,
+                                                        Compression* compression) {
+  const bool is_stdin = path == "-";
+  const std::string name = DisplayName(path);
+  int fd = STDIN_FILENO;
+  if (!is_stdin) {
+    absl::StatusOr<int> opened = OpenForReading(path);
+    if (!opened.ok()) return opened.status();
+    fd = *opened;
+  }
+  absl::StatusOr<std::string> magic = ReadMagic(fd, name);
+  if (!magic.ok()) {
+    if (!is_stdin) close(fd);
+    return magic.status();
+  }
+  const Compression detected = DetectCompression(*magic);
+  if (compression != nullptr) *compression = detected;
+  std::unique_ptr<ByteStream> stream = std::make_unique<FdStream>(fd, !is_stdin, name, *magic);
+  if (detected != Compression::kNone) {
+    if (detected == Compression::kGzip) {
+      stream = std::make_unique<GzipStream>(std::move(stream), name);
+    } else {
+      stream = std::make_unique<ZstdStream>(std::move(stream), name);
+    }
+    if (options.max_decompressed_bytes > 0) {
+      stream = std::make_unique<LimitedStream>(std::move(stream), name,
+                                               options.max_decompressed_bytes);
+    }
+  }
+  if (!options.copy_path.empty()) {
+    int copy_fd = open(options.copy_path.c_str(), O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC, 0600);
+    if (copy_fd < 0) {
+      return absl::ErrnoToStatus(errno, absl::StrCat(options.copy_path, ": cannot create"));
+    }
+    stream = std::make_unique<TeeStream>(std::move(stream), copy_fd, options.copy_path);
+  }
+  return stream;
+}
+
+}  // namespace kindred::io

@@ -1,0 +1,57 @@
+// Internal: streams of bytes read from files or standard input, decompressed
+// on the fly when the first bytes show gzip or zstd.
+//
+// Not thread-safe; one reader per stream.
+#ifndef KINDRED_IO_BYTE_STREAM_H_
+#define KINDRED_IO_BYTE_STREAM_H_
+
+#include <cstddef>
+#include <cstdint>
+#include <memory>
+#include <string>
+
+#include "absl/status/status.h"
+#include "absl/status/statusor.h"
+
+namespace kindred::io {
+
+// Size of the read buffers (compressed input and decoded output).
+inline constexpr size_t kChunkBytes = 256 * 1024;
+
+enum class Compression { kNone, kGzip, kZstd };
+
+// A source of bytes.
+class ByteStream {
+ public:
+  virtual ~ByteStream() = default;
+  // Copies up to `capacity` (>= 1) bytes into `dst`. Returns the number
+  // copied; 0 means the end of the stream.
+  virtual absl::StatusOr<size_t> Read(char* dst, size_t capacity) = 0;
+};
+
+// The name used in messages: "standard input" for "-", else the path.
+std::string DisplayName(const std::string& path);
+
+// Options of OpenDecoded.
+struct DecodeOptions {
+  // Limit on the decoded size of a compressed stream; 0 = unlimited.
+  uint64_t max_decompressed_bytes = 0;
+  // When not empty, every decoded byte is also written to this file
+  // (created or truncated, mode 0600).
+  std::string copy_path;
+};
+
+// Opens `path` ("-" = standard input) and returns a stream of its decoded
+// bytes: gzip (magic 1f 8b, any number of members) and zstd (magic 28 b5 2f
+// fd, any number of frames) are decompressed, anything else passes through.
+// *compression, when not null, receives what was detected.
+absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
+                                                        const DecodeOptions& options,
+                                                        Compression* compression = nullptr);
+
+// Opens `path` for reading raw bytes (no decompression, "-" not allowed).
+absl::StatusOr<std::unique_ptr<ByteStream>> OpenRaw(const std::string& path);
+
+}  // namespace kindred::io
+
+#endif  // KINDRED_IO_BYTE_STREAM_H_

@@ -1,0 +1,282 @@
+// CorpusReader: walks the inputs in order and turns them into documents.
+#include <sys/stat.h>
+
+#include <cerrno>
+#include <optional>
+#include <utility>
+
+#include "absl/strings/match.h"
+#include "absl/strings/str_cat.h"
+#include "io/buffered_input.h"
+#include "io/byte_stream.h"
+#include "io/json_line.h"
+#include "io/tree_walker.h"
+#include "kindred/corpus.h"
+
+namespace kindred {
+
+const char* InputFormatName(InputFormat format) {
+  switch (format) {
+    case InputFormat::kText:
+      return "text";
+    case InputFormat::kJsonLines:
+      return "jsonl";
+    default:
+      return "auto";
+  }
+}
+
+namespace {
+
+// JSON Lines by name: ".jsonl", ".ndjson" or ".json", before an optional
+// ".gz", ".zst" or ".zstd".
+bool HasJsonLinesName(absl::string_view path) {
+  for (absl::string_view suffix : {".gz", ".zst", ".zstd"}) {
+    if (absl::EndsWith(path, suffix)) {
+      path.remove_suffix(suffix.size());
+      break;
+    }
+  }
+  return absl::EndsWith(path, ".jsonl") || absl::EndsWith(path, ".ndjson") ||
+         absl::EndsWith(path, ".json");
+}
+
+absl::StatusOr<ResolvedInput> Resolve(const std::string& name, const InputOptions& options) {
+  ResolvedInput input;
+  input.name = name;
+  input.read_path = name;
+  if (name == "-") {
+    input.is_stdin = true;
+    input.read_path = options.stdin_copy_path;
+    input.format = options.format;
+    return input;
+  }
+  struct stat info;
+  if (stat(name.c_str(), &info) != 0) {
+    return absl::ErrnoToStatus(errno, absl::StrCat(name, ": cannot open"));
+  }
+  input.is_directory = S_ISDIR(info.st_mode);
+  if (options.format != InputFormat::kAuto) {
+    input.format = options.format;
+  } else if (!input.is_directory && HasJsonLinesName(name)) {
+    input.format = InputFormat::kJsonLines;
+  } else {
+    input.format = InputFormat::kText;
+  }
+  return input;
+}
+
+}  // namespace
+
+class CorpusReader::Impl {
+ public:
+  Impl(std::vector<std::string> inputs, InputOptions options,
+       std::vector<ResolvedInput> resolved)
+      : inputs_(std::move(inputs)),
+        options_(std::move(options)),
+        resolved_(std::move(resolved)),
+        json_(options_) {}
+
+  absl::StatusOr<size_t> ReadBatch(std::vector<Document>* batch, size_t max_docs,
+                                   size_t max_bytes);
+
+  std::vector<std::string> inputs_;
+  InputOptions options_;
+  std::vector<ResolvedInput> resolved_;
+  uint64_t ordinal_ = 0;
+
+ private:
+  absl::StatusOr<bool> Next(Document* doc);
+  absl::StatusOr<bool> NextLineDocument(Document* doc);
+  absl::StatusOr<bool> NextTreeDocument(Document* doc);
+  absl::StatusOr<bool> StartInput(Document* doc);
+  absl::Status OpenLines(const std::string& path, std::string name);
+  absl::Status ReadTextDocument(io::BufferedInput* input, Document* doc);
+  absl::StatusOr<std::unique_ptr<io::BufferedInput>> OpenBuffered(const std::string& path);
+
+  io::JsonLineParser json_;
+  size_t current_ = 0;                   // input being read
+  std::optional<io::TreeWalker> tree_;   // set while reading a tree
+  std::unique_ptr<io::BufferedInput> lines_;  // set while reading JSON Lines
+  std::string lines_name_;               // their name in ids and messages
+  std::string lines_path_;               // their path in DocumentSource
+  absl::Status failure_;
+};
+
+absl::StatusOr<std::unique_ptr<io::BufferedInput>> CorpusReader::Impl::OpenBuffered(
+    const std::string& path) {
+  io::DecodeOptions decode;
+  decode.max_decompressed_bytes = options_.max_decompressed_bytes;
+  if (path == "-") decode.copy_path = options_.stdin_copy_path;
+  auto stream = io::OpenDecoded(path, decode);
+  if (!stream.ok()) return stream.status();
+  return std::make_unique<io::BufferedInput>(std::move(*stream), io::DisplayName(path),
+                                             options_.max_document_bytes);
+}
+
+absl::Status CorpusReader::Impl::OpenLines(const std::string& path, std::string name) {
+  auto opened = OpenBuffered(path);
+  if (!opened.ok()) return opened.status();
+  lines_ = std::move(*opened);
+  lines_name_ = std::move(name);
+  lines_path_ = path;
+  return absl::OkStatus();
+}
+
+absl::Status CorpusReader::Impl::ReadTextDocument(io::BufferedInput* input, Document* doc) {
+  doc->source.line = 0;
+  doc->priority = 0;
+  doc->has_priority = false;
+  return input->ReadRest(&doc->text);
+}
+
+absl::StatusOr<bool> CorpusReader::Impl::NextLineDocument(Document* doc) {
+  absl::string_view line;
+  bool terminated = false;
+  for (;;) {
+    absl::StatusOr<bool> more = lines_->NextLine(&line, &terminated);
+    if (!more.ok() || !*more) return more;
+    if (!io::IsBlankLine(line)) break;
+  }
+  const uint64_t number = lines_->line_number();
+  std::string where = absl::StrCat(io::DisplayName(lines_path_), ":", number);
+  absl::Status parsed = json_.Parse(line, where, doc);
+  if (!parsed.ok()) return parsed;
+  if (options_.id_field == io::kLineNumberId) doc->id = absl::StrCat(lines_name_, ":", number);
+  doc->source.input = static_cast<uint32_t>(current_);
+  doc->source.line = number;
+  doc->source.path = lines_path_;
+  return true;
+}
+
+absl::StatusOr<bool> CorpusReader::Impl::NextTreeDocument(Document* doc) {
+  std::string relative, full;
+  absl::StatusOr<bool> more = tree_->Next(&relative, &full);
+  if (!more.ok() || !*more) return more;
+  if (resolved_[current_].format == InputFormat::kJsonLines) {
+    absl::Status opened = OpenLines(full, full);
+    if (!opened.ok()) return opened;
+    return false;  // the caller reads the lines
+  }
+  auto input = OpenBuffered(full);
+  if (!input.ok()) return input.status();
+  absl::Status read = ReadTextDocument(input->get(), doc);
+  if (!read.ok()) return read;
+  doc->id = std::move(relative);
+  doc->source.input = static_cast<uint32_t>(current_);
+  doc->source.path = std::move(full);
+  return true;
+}
+
+// Opens input current_. Returns true when it produced a document (a text
+// document is read whole at once).
+absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
+  ResolvedInput& input = resolved_[current_];
+  if (input.is_directory) {
+    tree_.emplace(input.name);
+    return false;
+  }
+  if (input.format == InputFormat::kJsonLines && !input.is_stdin) {
+    absl::Status opened = OpenLines(input.name, input.name);
+    if (!opened.ok()) return opened;
+    return false;
+  }
+  auto opened = OpenBuffered(input.name);
+  if (!opened.ok()) return opened.status();
+  if (input.format == InputFormat::kAuto) {
+    absl::StatusOr<int> first = (*opened)->PeekFirstNonBlank();
+    if (!first.ok()) return first.status();
+    input.format = *first == '{' ? InputFormat::kJsonLines : InputFormat::kText;
+  }
+  if (input.format == InputFormat::kJsonLines) {
+    lines_ = std::move(*opened);
+    lines_name_ = input.name;
+    lines_path_ = input.name;
+    return false;
+  }
+  absl::Status read = ReadTextDocument(opened->get(), doc);
+  if (!read.ok()) return read;
+  doc->id = input.name;
+  doc->source.input = static_cast<uint32_t>(current_);
+  doc->source.path = input.name;
+  ++current_;
+  return true;
+}
+
+absl::StatusOr<bool> CorpusReader::Impl::Next(Document* doc) {
+  while (current_ < resolved_.size()) {
+    if (lines_ != nullptr) {
+      absl::StatusOr<bool> more = NextLineDocument(doc);
+      if (!more.ok() || *more) return more;
+      lines_.reset();
+      if (!tree_.has_value()) ++current_;
+      continue;
+    }
+    if (tree_.has_value()) {
+      absl::StatusOr<bool> more = NextTreeDocument(doc);
+      if (!more.ok() || *more) return more;
+      if (lines_ == nullptr) {
+        tree_.reset();
+        ++current_;
+      }
+      continue;
+    }
+    absl::StatusOr<bool> produced = StartInput(doc);
+    if (!produced.ok() || *produced) return produced;
+  }
+  return false;
+}
+
+absl::StatusOr<size_t> CorpusReader::Impl::ReadBatch(std::vector<Document>* batch,
+                                                     size_t max_docs, size_t max_bytes) {
+  if (!failure_.ok()) return failure_;
+  size_t count = 0, bytes = 0;
+  while (count < max_docs && (count == 0 || bytes < max_bytes)) {
+    if (batch->size() <= count) batch->emplace_back();
+    Document& doc = (*batch)[count];
+    absl::StatusOr<bool> more = Next(&doc);
+    if (!more.ok()) {
+      failure_ = more.status();
+      batch->resize(count);
+      return failure_;
+    }
+    if (!*more) break;
+    doc.ordinal = ordinal_++;
+    bytes += doc.text.size();
+    ++count;
+  }
+  batch->resize(count);
+  return count;
+}
+
+absl::StatusOr<std::unique_ptr<CorpusReader>> CorpusReader::Open(std::vector<std::string> inputs,
+                                                                  InputOptions options) {
+  if (inputs.empty()) return absl::InvalidArgumentError("no input given");
+  std::vector<ResolvedInput> resolved;
+  int stdin_count = 0;
+  for (const std::string& name : inputs) {
+    if (name == "-" && ++stdin_count > 1) {
+      return absl::InvalidArgumentError("standard input (\"-\") is given more than once");
+    }
+    absl::StatusOr<ResolvedInput> input = Resolve(name, options);
+    if (!input.ok()) return input.status();
+    resolved.push_back(std::move(*input));
+  }
+  auto impl = std::make_unique<Impl>(std::move(inputs), std::move(options), std::move(resolved));
+  return std::unique_ptr<CorpusReader>(new CorpusReader(std::move(impl)));
+}
+
+CorpusReader::CorpusReader(std::unique_ptr<Impl> impl) : impl_(std::move(impl)) {}
+CorpusReader::~CorpusReader() = default;
+
+absl::StatusOr<size_t> CorpusReader::ReadBatch(std::vector<Document>* batch, size_t max_docs,
+                                               size_t max_bytes) {
+  return impl_->ReadBatch(batch, max_docs, max_bytes);
+}
+
+InputFormat CorpusReader::FormatOf(uint32_t input) const { return impl_->resolved_[input].format; }
+const std::vector<std::string>& CorpusReader::inputs() const { return impl_->inputs_; }
+std::vector<ResolvedInput> CorpusReader::ResolvedInputs() const { return impl_->resolved_; }
+uint64_t CorpusReader::documents_read() const { return impl_->ordinal_; }
+
+}  // namespace kindred

@@ -1,0 +1,98 @@
+#include "io/json_line.h"
+
+#include <simdjson.h>
+
+#include <cstring>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+
+namespace kindred::io {
+
+struct JsonLineParser::State {
+  simdjson::dom::parser parser;
+  std::string padded;  // the line followed by SIMDJSON_PADDING readable bytes
+};
+
+JsonLineParser::JsonLineParser(const InputOptions& options)
+    : state_(std::make_unique<State>()),
+      id_field_(options.id_field),
+      text_field_(options.text_field),
+      priority_field_(options.priority_field),
+      id_from_line_(options.id_field == kLineNumberId) {}
+
+JsonLineParser::~JsonLineParser() = default;
+
+namespace {
+
+absl::Status FieldError(absl::string_view where, absl::string_view field, absl::string_view what) {
+  return absl::InvalidArgumentError(absl::StrFormat("%s: field \"%s\" %s", where, field, what));
+}
+
+// Renders a string or integer id into *id.
+absl::Status ReadId(simdjson::dom::element value, absl::string_view where, absl::string_view field,
+                    std::string* id) {
+  switch (value.type()) {
+    case simdjson::dom::element_type::STRING:
+      id->assign(value.get_string().value_unsafe());
+      return absl::OkStatus();
+    case simdjson::dom::element_type::INT64:
+      *id = absl::StrCat(value.get_int64().value_unsafe());
+      return absl::OkStatus();
+    case simdjson::dom::element_type::UINT64:
+      *id = absl::StrCat(value.get_uint64().value_unsafe());
+      return absl::OkStatus();
+    default:
+      return FieldError(where, field, "is not a string or an integer");
+  }
+}
+
+}  // namespace
+
+absl::Status JsonLineParser::Parse(absl::string_view line, absl::string_view where, Document* doc) {
+  std::string& padded = state_->padded;
+  if (padded.size() < line.size() + simdjson::SIMDJSON_PADDING) {
+    padded.resize(line.size() + simdjson::SIMDJSON_PADDING);
+  }
+  std::memcpy(padded.data(), line.data(), line.size());
+  std::memset(padded.data() + line.size(), ' ', simdjson::SIMDJSON_PADDING);
+  simdjson::dom::element root;
+  if (auto error = state_->parser.parse(padded.data(), line.size(), false).get(root)) {
+    return absl::InvalidArgumentError(
+        absl::StrCat(where, ": invalid JSON: ", simdjson::error_message(error)));
+  }
+  simdjson::dom::object object;
+  if (root.get(object) != simdjson::SUCCESS) {
+    return absl::InvalidArgumentError(absl::StrCat(where, ": not a JSON object"));
+  }
+  doc->priority = 0;
+  doc->has_priority = false;
+  bool has_id = id_from_line_, has_text = false;
+  for (simdjson::dom::key_value_pair field : object) {
+    if (field.key == text_field_) {
+      if (!field.value.is_string()) return FieldError(where, text_field_, "is not a string");
+      doc->text.assign(field.value.get_string().value_unsafe());
+      has_text = true;
+    }
+    if (!id_from_line_ && field.key == id_field_) {
+      absl::Status read = ReadId(field.value, where, id_field_, &doc->id);
+      if (!read.ok()) return read;
+      has_id = true;
+    }
+    if (!priority_field_.empty() && field.key == priority_field_) {
+      if (!field.value.is_number()) return FieldError(where, priority_field_, "is not a number");
+      doc->priority = field.value.get_double().value_unsafe();
+      doc->has_priority = true;
+    }
+  }
+  if (!has_text) {
+    return absl::InvalidArgumentError(
+        absl::StrFormat("%s: missing field \"%s\"", where, text_field_));
+  }
+  if (!has_id) {
+    return absl::InvalidArgumentError(absl::StrFormat("%s: missing field \"%s\"", where, id_field_));
+  }
+  return absl::OkStatus();
+}
+
+}  // namespace kindred::io
