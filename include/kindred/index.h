@@ -1,0 +1,158 @@
+// kindred: reading an index file (`.kin`).
+//
+// An index file holds the settings that decided its signatures, then
+// append-only, checksummed segments of documents: ids, keep-policy facts,
+// MinHash signatures, sorted band-key tables and shingle sets for exact
+// verification. The byte layout is documented in src/index/FORMAT.md.
+//
+// IndexReader maps the file read-only and verifies the header and every
+// segment's tables on open (a torn tail, the remains of an interrupted
+// write, is reported and ignored). It never rebuilds a hash table of the
+// stored band keys: a query binary-searches each segment's sorted table.
+// Any number of readers may open a file while one writer appends to it;
+// a reader sees the segments committed when it opened.
+//
+// Thread-safety: after Open() (and UseBanding(), if called), all const
+// methods may be called concurrently.
+#ifndef KINDRED_INDEX_H_
+#define KINDRED_INDEX_H_
+
+#include <cstdint>
+#include <functional>
+#include <memory>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "absl/status/status.h"
+#include "absl/status/statusor.h"
+#include "absl/types/span.h"
+#include "kindred/file_io.h"
+#include "kindred/groups.h"
+#include "kindred/settings.h"
+
+namespace kindred {
+
+// What the file header holds.
+struct IndexSettings {
+  // Decide every stored shingle set and signature.
+  SignatureSettings signature;
+  // The Unicode/ICU versions that normalized and segmented the text, e.g.
+  // "unicode 15.0 icu 72.1" (at most 256 bytes).
+  std::string unicode_version;
+  // The banding of the stored band-key tables; bands * rows <= perms, both >= 1.
+  uint32_t bands = 1;
+  uint32_t rows = 1;
+  // Default query threshold and measure.
+  double threshold = 0.8;
+  Measure measure = Measure::kJaccard;
+
+  friend bool operator==(const IndexSettings&, const IndexSettings&) = default;
+};
+
+// One committed segment, as `info` lists it.
+struct SegmentInfo {
+  uint32_t number = 0;
+  uint64_t offset = 0;         // byte offset in the file
+  uint64_t bytes = 0;          // header, body and commit record
+  uint32_t first_doc = 0;      // global number of its first document
+  uint32_t documents = 0;
+  uint64_t retired = 0;        // earlier documents it replaces
+  uint64_t band_keys = 0;
+  uint64_t shingle_bytes = 0;  // encoded shingle sets
+};
+
+struct IndexOpenOptions {
+  FileSystem* file_system = DefaultFileSystem();  // borrowed
+};
+
+class IndexReader {
+ public:
+  // Maps and verifies `path`. Errors: NotFound/PermissionDenied (cannot
+  // open), DataLoss (not an index, truncated header, a checksum or structure
+  // error: the message names the segment and byte offset), FailedPrecondition
+  // (a newer format version).
+  static absl::StatusOr<std::unique_ptr<IndexReader>> Open(
+      const std::string& path, const IndexOpenOptions& options = {});
+  ~IndexReader();
+
+  const std::string& path() const { return path_; }
+  const IndexSettings& settings() const { return settings_; }
+  absl::Span<const SegmentInfo> segments() const { return segments_; }
+  uint64_t file_size() const { return file_.size(); }
+  // End of the last committed segment; bytes after it are a torn tail.
+  uint64_t committed_size() const { return committed_size_; }
+  uint64_t torn_tail_bytes() const { return file_.size() - committed_size_; }
+
+  // Documents are numbered 0..document_count()-1 in the order they were
+  // added ("first seen"), across segments. Retired documents (replaced by a
+  // later one with the same id) keep their number but are not live.
+  uint32_t document_count() const { return document_count_; }
+  uint32_t live_count() const { return live_count_; }
+  bool is_live(uint32_t doc) const { return !retired_[doc]; }
+
+  // Accessors; `doc` < document_count(). Returned views borrow the mapping
+  // and live as long as the reader.
+  std::string_view id(uint32_t doc) const;
+  KeepFacts facts(uint32_t doc) const;
+  absl::Span<const uint32_t> signature(uint32_t doc) const;
+  uint32_t shingle_count(uint32_t doc) const;
+  // Decodes the document's shingle set into *out (replacing its contents),
+  // after verifying its checksum: DataLoss names the document on mismatch.
+  absl::Status ReadShingles(uint32_t doc, std::vector<uint64_t>* out) const;
+
+  // The live document with this id, if any (binary search per segment).
+  std::optional<uint32_t> FindLive(std::string_view id) const;
+
+  // Sets the banding that Candidates() uses. With the stored banding (the
+  // default) nothing is built; any other bands x rows <= perms builds an
+  // in-memory sorted key table from the stored signatures. Not thread-safe;
+  // call before concurrent queries.
+  absl::Status UseBanding(uint32_t bands, uint32_t rows);
+  uint32_t bands() const { return bands_; }
+  uint32_t rows() const { return rows_; }
+
+  // Appends to *out the live documents that share at least one band key
+  // with `keys` (the band keys of a query signature under the current
+  // banding, one per band), ascending and without repeats.
+  void Candidates(absl::Span<const uint64_t> keys, std::vector<uint32_t>* out) const;
+
+  // Calls visit(key, doc) for every band key of every live document under
+  // the current banding, segment by segment (keys ascending within each).
+  void ForEachBandKey(const std::function<void(uint64_t key, uint32_t doc)>& visit) const;
+
+ private:
+  struct Segment;
+  IndexReader() = default;
+  absl::Status Load();
+  const Segment& SegmentOf(uint32_t doc, uint32_t* local) const;
+
+  std::string path_;
+  std::unique_ptr<MappedFile> mapping_;
+  std::string_view file_;
+  IndexSettings settings_;
+  std::vector<SegmentInfo> segments_;
+  std::vector<Segment> segment_views_;
+  std::vector<uint32_t> segment_first_doc_;
+  std::vector<bool> retired_;
+  uint64_t committed_size_ = 0;
+  uint32_t document_count_ = 0;
+  uint32_t live_count_ = 0;
+  uint32_t bands_ = 0;
+  uint32_t rows_ = 0;
+  // With a banding other than the stored one: all (key, doc), sorted.
+  std::vector<std::pair<uint64_t, uint32_t>> memory_keys_;
+};
+
+// Compares the settings a command asks for with the stored ones. Returns
+// FailedPrecondition naming every differing field when the signature
+// settings differ; appends a warning to *warnings when only the Unicode/ICU
+// version differs (saying what may differ).
+absl::Status CheckIndexSettings(const IndexSettings& stored, const SignatureSettings& wanted,
+                                std::string_view current_unicode_version,
+                                std::vector<std::string>* warnings);
+
+}  // namespace kindred
+
+#endif  // KINDRED_INDEX_H_

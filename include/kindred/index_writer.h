@@ -1,0 +1,154 @@
+// kindred: creating, appending to, compacting, auditing and repairing an
+// index file (`.kin`). The byte layout is in src/index/FORMAT.md.
+//
+// Durability: CreateIndex and CompactIndex write a temporary file beside the
+// index, sync it, rename it into place and sync the directory, so a crash
+// leaves either no new file (or the old file intact) or the complete new one.
+// IndexWriter::Append writes a segment, syncs, writes its commit record and
+// syncs again before it returns OK: a crash at any point leaves every earlier
+// committed document readable, and at most a torn tail that readers ignore
+// and the next writer cuts off.
+//
+// One writer at a time: IndexWriter::Open, CompactIndex and RepairIndex take
+// an exclusive advisory lock on the file (flock, never waiting) and fail at
+// once with Unavailable when another writer holds it. Readers need no lock.
+//
+// Thread-safety: an IndexWriter is used by one thread; the free functions
+// may run concurrently on different files.
+#ifndef KINDRED_INDEX_WRITER_H_
+#define KINDRED_INDEX_WRITER_H_
+
+#include <cstdint>
+#include <memory>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "absl/status/status.h"
+#include "absl/status/statusor.h"
+#include "kindred/file_io.h"
+#include "kindred/index.h"
+#include "kindred/signed_corpus.h"
+
+namespace kindred {
+
+// What Append does with a document whose id is already live in the index.
+enum class DuplicateIdPolicy : uint8_t {
+  kError = 0,    // refuse the whole batch (InvalidArgument naming the id)
+  kSkip = 1,     // leave the indexed document; do not add the new one
+  kReplace = 2,  // add the new one and retire the indexed one
+};
+
+// Parses "error", "skip", "replace".
+absl::StatusOr<DuplicateIdPolicy> ParseDuplicateIdPolicy(std::string_view name);
+const char* DuplicateIdPolicyName(DuplicateIdPolicy policy);
+
+struct IndexWriteOptions {
+  FileSystem* file_system = DefaultFileSystem();  // borrowed
+};
+
+// Creates a new index at `path` holding `corpus` (which may be empty) as
+// segment 0. Requires settings.signature.perms == corpus.perms(), a valid
+// banding (bands * rows <= perms) and ids of 1..65535 bytes. Fails with
+// AlreadyExists when `path` exists (never replaces a file).
+absl::Status CreateIndex(const std::string& path, const IndexSettings& settings,
+                         const SignedCorpus& corpus, const IndexWriteOptions& options = {});
+
+// What Append did with each document of a batch.
+enum class AddAction : uint8_t { kAdded, kSkipped, kReplaced };
+const char* AddActionName(AddAction action);
+
+struct AppendResult {
+  bool wrote_segment = false;  // false when nothing was added or retired
+  uint32_t segment_number = 0;
+  uint32_t added = 0, skipped = 0, replaced = 0;
+  std::vector<AddAction> actions;       // per batch document
+  std::vector<uint32_t> index_numbers;  // per batch document: its global number
+                                        // when added, the indexed one when skipped
+};
+
+class IndexWriter {
+ public:
+  // Locks `path` and opens it for appending; cuts off a torn tail (synced)
+  // before anything else. Errors: Unavailable (another writer), the reader's
+  // errors (DataLoss, FailedPrecondition, NotFound), write errors.
+  static absl::StatusOr<std::unique_ptr<IndexWriter>> Open(const std::string& path,
+                                                           const IndexWriteOptions& options = {});
+  ~IndexWriter();
+
+  // The committed index as of Open() or the last successful Append(). The
+  // reference is invalidated by Append().
+  const IndexReader& reader() const { return *reader_; }
+  // Bytes of torn tail that Open() cut off.
+  uint64_t torn_tail_cut() const { return torn_tail_cut_; }
+
+  // Appends the documents of `batch` as one new segment, applying `policy`
+  // to ids already live in the index; returns after the segment is durable.
+  // Requires batch.perms() == settings().signature.perms and ids unique
+  // within the batch. Write errors: ResourceExhausted (disk full) or Aborted;
+  // the partial segment is cut off when possible, and in every case the
+  // index keeps all earlier committed documents. After a failed Append the
+  // writer refuses further appends (FailedPrecondition): open a new one.
+  absl::StatusOr<AppendResult> Append(const SignedCorpus& batch, DuplicateIdPolicy policy);
+
+ private:
+  IndexWriter() = default;
+
+  std::string path_;
+  IndexWriteOptions options_;
+  std::unique_ptr<FileLock> lock_;
+  std::unique_ptr<AppendFile> file_;
+  std::unique_ptr<IndexReader> reader_;
+  uint64_t torn_tail_cut_ = 0;
+  bool broken_ = false;  // an Append failed part-way
+};
+
+struct CompactOptions {
+  // New banding of the stored band-key tables; 0 keeps the current one.
+  uint32_t bands = 0;
+  uint32_t rows = 0;
+};
+
+struct CompactResult {
+  uint32_t segments_before = 0;
+  uint32_t documents_before = 0;  // including retired ones
+  uint32_t documents_after = 0;   // the live documents, renumbered in order
+  uint64_t bytes_before = 0;
+  uint64_t bytes_after = 0;
+};
+
+// Rewrites the index as one segment of its live documents (in their order),
+// atomically: a crash leaves the old file intact. Takes the writer lock.
+absl::StatusOr<CompactResult> CompactIndex(const std::string& path,
+                                           const CompactOptions& compact = {},
+                                           const IndexWriteOptions& options = {});
+
+struct AuditReport {
+  // What is wrong, one sentence each, naming segment, document and byte
+  // offset. Empty when the index is sound.
+  std::vector<std::string> problems;
+  // Facts worth knowing that are not damage (a torn tail that readers ignore).
+  std::vector<std::string> notes;
+  uint32_t segments = 0;
+  uint32_t documents = 0;
+  uint64_t torn_tail_bytes = 0;
+  bool ok() const { return problems.empty(); }
+};
+
+// Verifies every checksum and structural invariant: the header and each
+// segment's tables (as on open), every shingle set (checksum and encoding),
+// every signature against a re-signing of its shingle set, every band key
+// against the signatures, zero padding, and unique live ids. Returns the
+// report; a status error only when the file cannot be read at all
+// (NotFound, PermissionDenied, ...).
+absl::StatusOr<AuditReport> AuditIndex(const std::string& path,
+                                       const IndexWriteOptions& options = {});
+
+// Cuts off a torn tail under the writer lock and syncs; returns the bytes
+// cut (0 when there was none).
+absl::StatusOr<uint64_t> RepairIndex(const std::string& path,
+                                     const IndexWriteOptions& options = {});
+
+}  // namespace kindred
+
+#endif  // KINDRED_INDEX_WRITER_H_

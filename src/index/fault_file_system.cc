@@ -1,0 +1,105 @@
+#include "index/fault_file_system.h"
+
+namespace kindred::index {
+namespace {
+
+class FaultAppendFile : public AppendFile {
+ public:
+  FaultAppendFile(FaultFileSystem* owner, std::unique_ptr<AppendFile> base)
+      : owner_(owner), base_(std::move(base)) {}
+
+  absl::Status Append(std::string_view bytes) override {
+    switch (owner_->NextStep(/*is_append=*/true, /*is_sync=*/false)) {
+      case FaultFileSystem::Verdict::kProceed:
+        return base_->Append(bytes);
+      case FaultFileSystem::Verdict::kHalfThenFail:
+        base_->Append(bytes.substr(0, bytes.size() / 2)).IgnoreError();
+        return owner_->FaultStatus();
+      case FaultFileSystem::Verdict::kFail:
+        return owner_->FaultStatus();
+    }
+    return owner_->FaultStatus();
+  }
+
+  absl::Status Sync() override {
+    if (owner_->NextStep(false, /*is_sync=*/true) != FaultFileSystem::Verdict::kProceed) {
+      return owner_->FaultStatus();
+    }
+    return base_->Sync();
+  }
+
+  absl::Status Truncate(uint64_t size) override {
+    if (owner_->NextStep(false, false) != FaultFileSystem::Verdict::kProceed) {
+      return owner_->FaultStatus();
+    }
+    return base_->Truncate(size);
+  }
+
+  uint64_t size() const override { return base_->size(); }
+
+ private:
+  FaultFileSystem* owner_;
+  std::unique_ptr<AppendFile> base_;
+};
+
+}  // namespace
+
+FaultFileSystem::Verdict FaultFileSystem::NextStep(bool is_append, bool is_sync) {
+  int64_t step = steps_++;
+  if (fired_) {
+    if (kind_ == FaultKind::kCrash) return Verdict::kFail;
+    if (kind_ == FaultKind::kDiskFull && is_append) return Verdict::kFail;
+    return Verdict::kProceed;
+  }
+  if (fail_at_ < 0 || step < fail_at_) return Verdict::kProceed;
+  if (kind_ == FaultKind::kSyncFails && !is_sync) return Verdict::kProceed;
+  if (kind_ == FaultKind::kDiskFull && !is_append) return Verdict::kProceed;
+  fired_ = true;
+  return is_append ? Verdict::kHalfThenFail : Verdict::kFail;
+}
+
+absl::Status FaultFileSystem::FaultStatus() const {
+  switch (kind_) {
+    case FaultKind::kCrash:
+      return absl::AbortedError("injected crash");
+    case FaultKind::kDiskFull:
+      return absl::ResourceExhaustedError("injected: No space left on device");
+    case FaultKind::kSyncFails:
+      return absl::AbortedError("injected: sync failed");
+  }
+  return absl::AbortedError("injected fault");
+}
+
+absl::StatusOr<std::unique_ptr<AppendFile>> FaultFileSystem::OpenAppend(
+    const std::string& path) {
+  if (fired_ && kind_ == FaultKind::kCrash) return FaultStatus();
+  auto file = base_->OpenAppend(path);
+  if (!file.ok()) return file.status();
+  return std::unique_ptr<AppendFile>(new FaultAppendFile(this, *std::move(file)));
+}
+
+absl::StatusOr<std::unique_ptr<AppendFile>> FaultFileSystem::CreateNew(
+    const std::string& path) {
+  if (NextStep(false, false) != Verdict::kProceed) return FaultStatus();
+  auto file = base_->CreateNew(path);
+  if (!file.ok()) return file.status();
+  return std::unique_ptr<AppendFile>(new FaultAppendFile(this, *std::move(file)));
+}
+
+absl::Status FaultFileSystem::Rename(const std::string& from, const std::string& to,
+                                     bool replace) {
+  if (NextStep(false, false) != Verdict::kProceed) return FaultStatus();
+  return base_->Rename(from, to, replace);
+}
+
+absl::Status FaultFileSystem::Remove(const std::string& path) {
+  if (NextStep(false, false) != Verdict::kProceed) return FaultStatus();
+  return base_->Remove(path);
+}
+
+absl::Status FaultFileSystem::SyncDirectoryOf(const std::string& path) {
+  if (NextStep(false, /*is_sync=*/true) != Verdict::kProceed) return FaultStatus();
+  return base_->SyncDirectoryOf(path);
+}
+
+}  // namespace kindred::index

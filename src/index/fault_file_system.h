@@ -1,0 +1,70 @@
+// A FileSystem that forwards to another and injects faults, for tests of
+// crash safety and full disks. Each mutating call (Append, Sync, Truncate,
+// Rename, Remove, SyncDirectoryOf, CreateNew) counts as one step. When the
+// step numbered `fail_at` (0-based) comes:
+//
+// * kCrash: an Append writes only the first half of its bytes, any other
+//   step does nothing; that step and every later mutating call fail with
+//   Aborted, as if the process had died there (later cleanup cannot run).
+// * kDiskFull: an Append writes the first half of its bytes and fails with
+//   ResourceExhausted; later steps succeed unless they append (the disk
+//   stays full), so the caller's clean-up (truncate, remove) can run.
+// * kSyncFails: the step fails only if it is a Sync; other steps pass.
+//
+// Reads (Map, Exists, LockExclusive) are never failed. Not thread-safe.
+#ifndef KINDRED_INDEX_FAULT_FILE_SYSTEM_H_
+#define KINDRED_INDEX_FAULT_FILE_SYSTEM_H_
+
+#include <cstdint>
+#include <memory>
+#include <string>
+
+#include "kindred/file_io.h"
+
+namespace kindred::index {
+
+enum class FaultKind { kCrash, kDiskFull, kSyncFails };
+
+class FaultFileSystem : public FileSystem {
+ public:
+  // Borrows `base`, which must outlive this object. fail_at < 0: no fault.
+  FaultFileSystem(FileSystem* base, FaultKind kind, int64_t fail_at)
+      : base_(base), kind_(kind), fail_at_(fail_at) {}
+
+  // Mutating steps seen so far (with fail_at < 0, counts a clean run).
+  int64_t steps() const { return steps_; }
+  // Whether the fault has been injected.
+  bool fired() const { return fired_; }
+
+  absl::StatusOr<std::unique_ptr<AppendFile>> OpenAppend(const std::string& path) override;
+  absl::StatusOr<std::unique_ptr<AppendFile>> CreateNew(const std::string& path) override;
+  absl::StatusOr<std::unique_ptr<MappedFile>> Map(const std::string& path) override {
+    return base_->Map(path);
+  }
+  absl::StatusOr<std::unique_ptr<FileLock>> LockExclusive(const std::string& path) override {
+    return base_->LockExclusive(path);
+  }
+  bool LockStillNamesPath(const FileLock& lock, const std::string& path) override {
+    return base_->LockStillNamesPath(lock, path);
+  }
+  absl::Status Rename(const std::string& from, const std::string& to, bool replace) override;
+  absl::Status Remove(const std::string& path) override;
+  absl::Status SyncDirectoryOf(const std::string& path) override;
+  bool Exists(const std::string& path) override { return base_->Exists(path); }
+
+  // One mutating step. Returns what the step must do.
+  enum class Verdict { kProceed, kHalfThenFail, kFail };
+  Verdict NextStep(bool is_append, bool is_sync);
+  absl::Status FaultStatus() const;
+
+ private:
+  FileSystem* base_;
+  FaultKind kind_;
+  int64_t fail_at_;
+  int64_t steps_ = 0;
+  bool fired_ = false;
+};
+
+}  // namespace kindred::index
+
+#endif  // KINDRED_INDEX_FAULT_FILE_SYSTEM_H_

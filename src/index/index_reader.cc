@@ -1,0 +1,223 @@
+#include <algorithm>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+#include "index/codec.h"
+#include "index/format.h"
+#include "index/segment.h"
+#include "kindred/banding.h"
+#include "kindred/index.h"
+
+namespace kindred {
+
+struct IndexReader::Segment : index::SegmentView {};
+
+IndexReader::~IndexReader() = default;
+
+absl::StatusOr<std::unique_ptr<IndexReader>> IndexReader::Open(const std::string& path,
+                                                               const IndexOpenOptions& options) {
+  auto mapping = options.file_system->Map(path);
+  if (!mapping.ok()) return mapping.status();
+  std::unique_ptr<IndexReader> reader(new IndexReader());
+  reader->path_ = path;
+  reader->mapping_ = *std::move(mapping);
+  reader->file_ = reader->mapping_->bytes();
+  absl::Status status = reader->Load();
+  if (!status.ok()) {
+    return absl::Status(status.code(), absl::StrCat("index ", path, ": ", status.message()));
+  }
+  return reader;
+}
+
+absl::Status IndexReader::Load() {
+  size_t header_size = 0;
+  absl::Status status = index::DecodeFileHeader(file_, &settings_, &header_size);
+  if (!status.ok()) return status;
+  uint64_t offset = header_size;
+  uint64_t first_doc = 0;
+  while (offset < file_.size()) {
+    Segment segment;
+    uint32_t number = static_cast<uint32_t>(segments_.size());
+    index::SegmentScan scan = segment.Parse(file_, offset, number, first_doc,
+                                            settings_.signature.perms, &status);
+    if (scan == index::SegmentScan::kTornTail) break;
+    if (scan == index::SegmentScan::kCorrupt) return status;
+    const index::SegmentHeader& h = segment.header();
+    if (first_doc + h.doc_count > index::kMaxDocuments) {
+      return absl::DataLossError(absl::StrFormat("index segment %u: too many documents", number));
+    }
+    segments_.push_back(SegmentInfo{number, offset, segment.total_bytes(),
+                                    static_cast<uint32_t>(first_doc), h.doc_count,
+                                    h.retired_count, h.key_count, h.shingle_bytes});
+    segment_first_doc_.push_back(static_cast<uint32_t>(first_doc));
+    segment_views_.push_back(segment);
+    offset += segment.total_bytes();
+    first_doc += h.doc_count;
+  }
+  committed_size_ = offset;
+  document_count_ = static_cast<uint32_t>(first_doc);
+  retired_.assign(document_count_, false);
+  live_count_ = document_count_;
+  for (const Segment& segment : segment_views_) {
+    for (uint64_t i = 0; i < segment.header().retired_count; ++i) {
+      uint64_t doc = segment.retired(i);
+      if (retired_[doc]) {
+        return absl::DataLossError(absl::StrFormat(
+            "index segment %u: document %u is retired twice", segment.header().segment_number,
+            doc));
+      }
+      retired_[doc] = true;
+      --live_count_;
+    }
+  }
+  bands_ = settings_.bands;
+  rows_ = settings_.rows;
+  return absl::OkStatus();
+}
+
+const IndexReader::Segment& IndexReader::SegmentOf(uint32_t doc, uint32_t* local) const {
+  auto it = std::upper_bound(segment_first_doc_.begin(), segment_first_doc_.end(), doc);
+  size_t s = static_cast<size_t>(it - segment_first_doc_.begin()) - 1;
+  *local = doc - segment_first_doc_[s];
+  return segment_views_[s];
+}
+
+std::string_view IndexReader::id(uint32_t doc) const {
+  uint32_t local;
+  return SegmentOf(doc, &local).id(local);
+}
+
+KeepFacts IndexReader::facts(uint32_t doc) const {
+  uint32_t local;
+  index::DocRecord record = SegmentOf(doc, &local).doc(local);
+  return KeepFacts{record.text_length, record.priority,
+                   (record.flags & index::kDocFlagHasPriority) != 0};
+}
+
+absl::Span<const uint32_t> IndexReader::signature(uint32_t doc) const {
+  uint32_t local;
+  return SegmentOf(doc, &local).signature(local);
+}
+
+uint32_t IndexReader::shingle_count(uint32_t doc) const {
+  uint32_t local;
+  return SegmentOf(doc, &local).doc(local).shingle_count;
+}
+
+absl::Status IndexReader::ReadShingles(uint32_t doc, std::vector<uint64_t>* out) const {
+  uint32_t local;
+  const Segment& segment = SegmentOf(doc, &local);
+  index::DocRecord record = segment.doc(local);
+  std::string_view bytes = segment.shingle_bytes(local);
+  out->clear();
+  if (index::Checksum(bytes) != record.shingles_checksum ||
+      !index::DecodeShingleSet(bytes, record.shingle_count, out)) {
+    out->clear();
+    return absl::DataLossError(absl::StrFormat(
+        "index %s: document %u: shingle set checksum mismatch at byte %u", path_, doc,
+        segments_[&segment - segment_views_.data()].offset));
+  }
+  return absl::OkStatus();
+}
+
+std::optional<uint32_t> IndexReader::FindLive(std::string_view id) const {
+  for (size_t s = segment_views_.size(); s-- > 0;) {
+    const Segment& segment = segment_views_[s];
+    uint32_t lo = 0, hi = segment.doc_count();
+    while (lo < hi) {
+      uint32_t mid = lo + (hi - lo) / 2;
+      if (segment.id(segment.id_order(mid)) < id) {
+        lo = mid + 1;
+      } else {
+        hi = mid;
+      }
+    }
+    if (lo < segment.doc_count() && segment.id(segment.id_order(lo)) == id) {
+      uint32_t doc = segment_first_doc_[s] + segment.id_order(lo);
+      if (is_live(doc)) return doc;
+    }
+  }
+  return std::nullopt;
+}
+
+absl::Status IndexReader::UseBanding(uint32_t bands, uint32_t rows) {
+  if (bands < 1 || rows < 1 || uint64_t{bands} * rows > settings_.signature.perms) {
+    return absl::InvalidArgumentError(absl::StrFormat(
+        "bands x rows = %u x %u does not fit the index's %u-slot signatures", bands, rows,
+        settings_.signature.perms));
+  }
+  bands_ = bands;
+  rows_ = rows;
+  memory_keys_.clear();
+  if (bands == settings_.bands && rows == settings_.rows) return absl::OkStatus();
+  std::vector<uint64_t> keys(bands);
+  for (uint32_t doc = 0; doc < document_count_; ++doc) {
+    if (!is_live(doc)) continue;
+    BandKeys(signature(doc), Banding{bands, rows}, absl::MakeSpan(keys));
+    for (uint64_t key : keys) {
+      if (key != kNoBandKey) memory_keys_.emplace_back(key, doc);
+    }
+  }
+  std::sort(memory_keys_.begin(), memory_keys_.end());
+  return absl::OkStatus();
+}
+
+void IndexReader::Candidates(absl::Span<const uint64_t> keys, std::vector<uint32_t>* out) const {
+  size_t start = out->size();
+  bool stored = memory_keys_.empty() && bands_ == settings_.bands && rows_ == settings_.rows;
+  for (uint64_t key : keys) {
+    if (key == kNoBandKey) continue;
+    if (!stored) {
+      auto it = std::lower_bound(memory_keys_.begin(), memory_keys_.end(),
+                                 std::make_pair(key, uint32_t{0}));
+      for (; it != memory_keys_.end() && it->first == key; ++it) out->push_back(it->second);
+      continue;
+    }
+    for (size_t s = 0; s < segment_views_.size(); ++s) {
+      const Segment& segment = segment_views_[s];
+      const uint64_t* end = segment.keys() + segment.key_count();
+      const uint64_t* it = std::lower_bound(segment.keys(), end, key);
+      for (; it != end && *it == key; ++it) {
+        uint32_t doc = segment_first_doc_[s] + segment.key_docs()[it - segment.keys()];
+        if (is_live(doc)) out->push_back(doc);
+      }
+    }
+  }
+  std::sort(out->begin() + start, out->end());
+  out->erase(std::unique(out->begin() + start, out->end()), out->end());
+}
+
+void IndexReader::ForEachBandKey(
+    const std::function<void(uint64_t key, uint32_t doc)>& visit) const {
+  if (!(bands_ == settings_.bands && rows_ == settings_.rows)) {
+    for (const auto& [key, doc] : memory_keys_) visit(key, doc);
+    return;
+  }
+  for (size_t s = 0; s < segment_views_.size(); ++s) {
+    const Segment& segment = segment_views_[s];
+    for (uint64_t i = 0; i < segment.key_count(); ++i) {
+      uint32_t doc = segment_first_doc_[s] + segment.key_docs()[i];
+      if (is_live(doc)) visit(segment.keys()[i], doc);
+    }
+  }
+}
+
+absl::Status CheckIndexSettings(const IndexSettings& stored, const SignatureSettings& wanted,
+                                std::string_view current_unicode_version,
+                                std::vector<std::string>* warnings) {
+  if (stored.signature != wanted) {
+    return absl::FailedPreconditionError(
+        absl::StrCat("the index was made with other settings: index has ",
+                     stored.signature.ToString(), ", this command asks for ", wanted.ToString()));
+  }
+  if (stored.unicode_version != current_unicode_version) {
+    warnings->push_back(absl::StrCat(
+        "the index was made with ", stored.unicode_version, " and this program uses ",
+        std::string(current_unicode_version),
+        ": normalization and word boundaries of characters changed between the two versions "
+        "may differ, so such documents may shingle differently"));
+  }
+  return absl::OkStatus();
+}
+
+}  // namespace kindred

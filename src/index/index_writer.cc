@@ -1,0 +1,142 @@
+#include "kindred/index_writer.h"
+
+#include <unistd.h>
+
+#include <algorithm>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+#include "index/format.h"
+#include "index/segment.h"
+#include "index/write_util.h"
+
+namespace kindred {
+
+absl::StatusOr<DuplicateIdPolicy> ParseDuplicateIdPolicy(std::string_view name) {
+  if (name == "error") return DuplicateIdPolicy::kError;
+  if (name == "skip") return DuplicateIdPolicy::kSkip;
+  if (name == "replace") return DuplicateIdPolicy::kReplace;
+  return absl::InvalidArgumentError(
+      absl::StrCat("unknown duplicate-id policy \"", std::string(name), "\" (error, skip or replace)"));
+}
+
+const char* DuplicateIdPolicyName(DuplicateIdPolicy policy) {
+  switch (policy) {
+    case DuplicateIdPolicy::kError:
+      return "error";
+    case DuplicateIdPolicy::kSkip:
+      return "skip";
+    case DuplicateIdPolicy::kReplace:
+      return "replace";
+  }
+  return "error";
+}
+
+const char* AddActionName(AddAction action) {
+  switch (action) {
+    case AddAction::kAdded:
+      return "added";
+    case AddAction::kSkipped:
+      return "skipped";
+    case AddAction::kReplaced:
+      return "replaced";
+  }
+  return "added";
+}
+
+absl::Status CreateIndex(const std::string& path, const IndexSettings& settings,
+                         const SignedCorpus& corpus, const IndexWriteOptions& options) {
+  absl::Status valid = index::CheckWritable(settings, corpus);
+  if (!valid.ok()) return valid;
+  if (options.file_system->Exists(path)) {
+    return absl::AlreadyExistsError(absl::StrCat("index ", path, " already exists"));
+  }
+  std::vector<index::SegmentDocument> docs = index::DocumentsOf(corpus);
+  index::EncodedSegment segment = index::EncodeSegment(0, 0, docs, {}, settings);
+  return index::WriteWholeFile(path, index::EncodeFileHeader(settings), segment,
+                               /*replace=*/false, options.file_system);
+}
+
+IndexWriter::~IndexWriter() = default;
+
+absl::StatusOr<std::unique_ptr<IndexWriter>> IndexWriter::Open(const std::string& path,
+                                                               const IndexWriteOptions& options) {
+  std::unique_ptr<IndexWriter> writer(new IndexWriter());
+  writer->path_ = path;
+  writer->options_ = options;
+  auto lock = index::LockIndex(path, options.file_system);
+  if (!lock.ok()) return lock.status();
+  writer->lock_ = *std::move(lock);
+  auto reader = IndexReader::Open(path, IndexOpenOptions{options.file_system});
+  if (!reader.ok()) return reader.status();
+  writer->reader_ = *std::move(reader);
+  auto file = options.file_system->OpenAppend(path);
+  if (!file.ok()) return file.status();
+  writer->file_ = *std::move(file);
+  uint64_t committed = writer->reader_->committed_size();
+  if (writer->file_->size() != committed) {
+    writer->torn_tail_cut_ = writer->file_->size() - committed;
+    absl::Status cut = writer->file_->Truncate(committed);
+    if (cut.ok()) cut = writer->file_->Sync();
+    if (!cut.ok()) return cut;
+  }
+  return writer;
+}
+
+absl::StatusOr<AppendResult> IndexWriter::Append(const SignedCorpus& batch,
+                                                 DuplicateIdPolicy policy) {
+  if (broken_) {
+    return absl::FailedPreconditionError("an earlier append to this index failed; reopen it");
+  }
+  const IndexSettings& settings = reader_->settings();
+  absl::Status valid = index::CheckWritable(settings, batch);
+  if (!valid.ok()) return valid;
+  AppendResult result;
+  std::vector<index::SegmentDocument> docs;
+  std::vector<uint64_t> retired;
+  uint32_t next = reader_->document_count();
+  for (size_t i = 0; i < batch.size(); ++i) {
+    std::optional<uint32_t> existing = reader_->FindLive(batch.id(i));
+    if (existing && policy == DuplicateIdPolicy::kError) {
+      return absl::InvalidArgumentError(absl::StrCat(
+          "document id \"", batch.id(i), "\" is already in the index ", path_));
+    }
+    if (existing && policy == DuplicateIdPolicy::kSkip) {
+      result.actions.push_back(AddAction::kSkipped);
+      result.index_numbers.push_back(*existing);
+      ++result.skipped;
+      continue;
+    }
+    if (existing) retired.push_back(*existing);
+    result.actions.push_back(existing ? AddAction::kReplaced : AddAction::kAdded);
+    result.index_numbers.push_back(next + static_cast<uint32_t>(docs.size()));
+    ++(existing ? result.replaced : result.added);
+    docs.push_back(index::DocumentOf(batch, i));
+  }
+  if (docs.empty() && retired.empty()) return result;
+  if (uint64_t{next} + docs.size() > index::kMaxDocuments) {
+    return absl::ResourceExhaustedError("the index would exceed 2^31 documents");
+  }
+  std::sort(retired.begin(), retired.end());
+  result.segment_number = static_cast<uint32_t>(reader_->segments().size());
+  index::EncodedSegment segment =
+      index::EncodeSegment(result.segment_number, next, docs, retired, settings);
+  absl::Status written = index::AppendSegment(file_.get(), reader_->committed_size(), segment);
+  if (!written.ok()) {
+    broken_ = true;
+    return written;
+  }
+  result.wrote_segment = true;
+  auto reader = IndexReader::Open(path_, IndexOpenOptions{options_.file_system});
+  if (!reader.ok()) return reader.status();
+  reader_ = *std::move(reader);
+  return result;
+}
+
+absl::StatusOr<uint64_t> RepairIndex(const std::string& path, const IndexWriteOptions& options) {
+  auto writer = IndexWriter::Open(path, options);
+  if (!writer.ok()) return writer.status();
+  return (*writer)->torn_tail_cut();
+}
+
+}  // namespace kindred

@@ -1,0 +1,215 @@
+// The real file system behind kindred::FileSystem: POSIX calls only.
+#include <fcntl.h>
+#include <stdio.h>
+#include <sys/file.h>
+#include <sys/mman.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include <cerrno>
+#include <cstring>
+
+#include "absl/strings/str_cat.h"
+#include "kindred/file_io.h"
+
+namespace kindred {
+namespace {
+
+absl::Status ErrnoStatus(const char* what, const std::string& path, int error) {
+  std::string message = absl::StrCat(what, " ", path, ": ", std::strerror(error));
+  if (error == ENOSPC || error == EDQUOT || error == EFBIG) {
+    return absl::ResourceExhaustedError(message);
+  }
+  if (error == ENOENT) return absl::NotFoundError(message);
+  if (error == EEXIST) return absl::AlreadyExistsError(message);
+  if (error == EACCES || error == EPERM || error == EROFS) {
+    return absl::PermissionDeniedError(message);
+  }
+  return absl::AbortedError(message);
+}
+
+std::string DirectoryOf(const std::string& path) {
+  size_t slash = path.rfind('/');
+  if (slash == std::string::npos) return ".";
+  if (slash == 0) return "/";
+  return path.substr(0, slash);
+}
+
+class PosixAppendFile : public AppendFile {
+ public:
+  PosixAppendFile(std::string path, int fd, uint64_t size)
+      : path_(std::move(path)), fd_(fd), size_(size) {}
+  ~PosixAppendFile() override { close(fd_); }
+
+  absl::Status Append(std::string_view bytes) override {
+    while (!bytes.empty()) {
+      ssize_t n = pwrite(fd_, bytes.data(), bytes.size(), static_cast<off_t>(size_));
+      if (n < 0) {
+        if (errno == EINTR) continue;
+        return ErrnoStatus("cannot write", path_, errno);
+      }
+      size_ += static_cast<uint64_t>(n);
+      bytes.remove_prefix(static_cast<size_t>(n));
+    }
+    return absl::OkStatus();
+  }
+
+  absl::Status Sync() override {
+    if (fsync(fd_) != 0) return ErrnoStatus("cannot sync", path_, errno);
+    return absl::OkStatus();
+  }
+
+  absl::Status Truncate(uint64_t size) override {
+    if (ftruncate(fd_, static_cast<off_t>(size)) != 0) {
+      return ErrnoStatus("cannot truncate", path_, errno);
+    }
+    size_ = size;
+    return absl::OkStatus();
+  }
+
+  uint64_t size() const override { return size_; }
+
+ private:
+  std::string path_;
+  int fd_;
+  uint64_t size_;
+};
+
+class PosixMappedFile : public MappedFile {
+ public:
+  PosixMappedFile(void* data, size_t size) : data_(data), size_(size) {}
+  ~PosixMappedFile() override {
+    if (size_ > 0) munmap(data_, size_);
+  }
+  std::string_view bytes() const override {
+    return std::string_view(static_cast<const char*>(data_), size_);
+  }
+
+ private:
+  void* data_;
+  size_t size_;
+};
+
+class PosixFileLock : public FileLock {
+ public:
+  PosixFileLock(int fd, dev_t dev, ino_t ino) : fd_(fd), dev_(dev), ino_(ino) {}
+  ~PosixFileLock() override { close(fd_); }  // closing releases the flock
+  bool Names(const struct stat& st) const { return st.st_dev == dev_ && st.st_ino == ino_; }
+
+ private:
+  int fd_;
+  dev_t dev_;
+  ino_t ino_;
+};
+
+class PosixFileSystem : public FileSystem {
+ public:
+  absl::StatusOr<std::unique_ptr<AppendFile>> OpenAppend(const std::string& path) override {
+    return Open(path, O_WRONLY | O_CLOEXEC);
+  }
+
+  absl::StatusOr<std::unique_ptr<AppendFile>> CreateNew(const std::string& path) override {
+    return Open(path, O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC);
+  }
+
+  absl::StatusOr<std::unique_ptr<MappedFile>> Map(const std::string& path) override {
+    int fd = open(path.c_str(), O_RDONLY | O_CLOEXEC);
+    if (fd < 0) return ErrnoStatus("cannot open", path, errno);
+    struct stat st;
+    if (fstat(fd, &st) != 0) {
+      int error = errno;
+      close(fd);
+      return ErrnoStatus("cannot stat", path, error);
+    }
+    size_t size = static_cast<size_t>(st.st_size);
+    void* data = nullptr;
+    if (size > 0) {
+      data = mmap(nullptr, size, PROT_READ, MAP_SHARED, fd, 0);
+      if (data == MAP_FAILED) {
+        int error = errno;
+        close(fd);
+        return ErrnoStatus("cannot map", path, error);
+      }
+    }
+    close(fd);  // the mapping stays valid
+    return std::make_unique<PosixMappedFile>(data, size);
+  }
+
+  absl::StatusOr<std::unique_ptr<FileLock>> LockExclusive(const std::string& path) override {
+    int fd = open(path.c_str(), O_RDONLY | O_CLOEXEC);
+    if (fd < 0) return ErrnoStatus("cannot open", path, errno);
+    if (flock(fd, LOCK_EX | LOCK_NB) != 0) {
+      int error = errno;
+      close(fd);
+      if (error == EWOULDBLOCK) {
+        return absl::UnavailableError(
+            absl::StrCat("index ", path, " is in use by another writer; try again later"));
+      }
+      return ErrnoStatus("cannot lock", path, error);
+    }
+    struct stat st;
+    if (fstat(fd, &st) != 0) {
+      int error = errno;
+      close(fd);
+      return ErrnoStatus("cannot stat", path, error);
+    }
+    return std::make_unique<PosixFileLock>(fd, st.st_dev, st.st_ino);
+  }
+
+  bool LockStillNamesPath(const FileLock& lock, const std::string& path) override {
+    struct stat st;
+    if (stat(path.c_str(), &st) != 0) return false;
+    return static_cast<const PosixFileLock&>(lock).Names(st);
+  }
+
+  absl::Status Rename(const std::string& from, const std::string& to, bool replace) override {
+    unsigned flags = replace ? 0 : RENAME_NOREPLACE;
+    if (renameat2(AT_FDCWD, from.c_str(), AT_FDCWD, to.c_str(), flags) != 0) {
+      return ErrnoStatus("cannot rename to", to, errno);
+    }
+    return absl::OkStatus();
+  }
+
+  absl::Status Remove(const std::string& path) override {
+    if (unlink(path.c_str()) != 0) return ErrnoStatus("cannot remove", path, errno);
+    return absl::OkStatus();
+  }
+
+  absl::Status SyncDirectoryOf(const std::string& path) override {
+    std::string dir = DirectoryOf(path);
+    int fd = open(dir.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
+    if (fd < 0) return ErrnoStatus("cannot open directory", dir, errno);
+    int rc = fsync(fd);
+    int error = errno;
+    close(fd);
+    if (rc != 0) return ErrnoStatus("cannot sync directory", dir, error);
+    return absl::OkStatus();
+  }
+
+  bool Exists(const std::string& path) override {
+    struct stat st;
+    return stat(path.c_str(), &st) == 0;
+  }
+
+ private:
+  absl::StatusOr<std::unique_ptr<AppendFile>> Open(const std::string& path, int flags) {
+    int fd = open(path.c_str(), flags, 0644);
+    if (fd < 0) return ErrnoStatus("cannot open", path, errno);
+    struct stat st;
+    if (fstat(fd, &st) != 0) {
+      int error = errno;
+      close(fd);
+      return ErrnoStatus("cannot stat", path, error);
+    }
+    return std::make_unique<PosixAppendFile>(path, fd, static_cast<uint64_t>(st.st_size));
+  }
+};
+
+}  // namespace
+
+FileSystem* DefaultFileSystem() {
+  static PosixFileSystem* const file_system = new PosixFileSystem();
+  return file_system;
+}
+
+}  // namespace kindred

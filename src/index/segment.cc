@@ -1,0 +1,200 @@
+#include "index/segment.h"
+
+#include <algorithm>
+#include <numeric>
+
+#include "absl/strings/str_format.h"
+#include "kindred/banding.h"
+
+namespace kindred::index {
+namespace {
+
+bool AllZero(std::string_view bytes) {
+  return std::all_of(bytes.begin(), bytes.end(), [](char c) { return c == 0; });
+}
+
+void AppendPadded(std::string_view section, std::string* out) {
+  out->append(section);
+  ByteWriter(out).PadTo8();
+}
+
+// The sorted (key, local doc) table of `docs` under the stored banding.
+std::vector<std::pair<uint64_t, uint32_t>> BandKeyTable(absl::Span<const SegmentDocument> docs,
+                                                        const IndexSettings& settings) {
+  Banding banding{settings.bands, settings.rows};
+  std::vector<uint64_t> keys(banding.bands);
+  std::vector<std::pair<uint64_t, uint32_t>> table;
+  for (uint32_t i = 0; i < docs.size(); ++i) {
+    BandKeys(docs[i].signature, banding, absl::MakeSpan(keys));
+    for (uint64_t key : keys) {
+      if (key != kNoBandKey) table.emplace_back(key, i);
+    }
+  }
+  std::sort(table.begin(), table.end());
+  return table;
+}
+
+}  // namespace
+
+EncodedSegment EncodeSegment(uint32_t segment_number, uint64_t first_doc,
+                             absl::Span<const SegmentDocument> docs,
+                             absl::Span<const uint64_t> retired, const IndexSettings& settings) {
+  std::string doc_table, ids, shingles, id_order, signatures, keys, key_docs, retired_bytes;
+  for (const SegmentDocument& doc : docs) {
+    DocRecord record;
+    record.id_offset = ids.size();
+    record.id_length = static_cast<uint32_t>(doc.id.size());
+    ids.append(doc.id);
+    record.shingles_offset = shingles.size();
+    EncodeShingleSet(doc.shingles, &shingles);
+    record.shingles_length = static_cast<uint32_t>(shingles.size() - record.shingles_offset);
+    record.shingles_checksum =
+        Checksum(std::string_view(shingles).substr(record.shingles_offset));
+    record.shingle_count = static_cast<uint32_t>(doc.shingles.size());
+    record.text_length = doc.facts.length;
+    record.priority = doc.facts.priority;
+    record.flags = doc.facts.has_priority ? kDocFlagHasPriority : 0;
+    EncodeDocRecord(record, &doc_table);
+    for (uint32_t slot : doc.signature) ByteWriter(&signatures).U32(slot);
+  }
+  std::vector<uint32_t> order(docs.size());
+  std::iota(order.begin(), order.end(), 0);
+  std::sort(order.begin(), order.end(),
+            [&](uint32_t a, uint32_t b) { return docs[a].id < docs[b].id; });
+  for (uint32_t local : order) ByteWriter(&id_order).U32(local);
+  auto table = BandKeyTable(docs, settings);
+  for (const auto& [key, local] : table) {
+    ByteWriter(&keys).U64(key);
+    ByteWriter(&key_docs).U32(local);
+  }
+  for (uint64_t doc : retired) ByteWriter(&retired_bytes).U64(doc);
+
+  SegmentHeader header{segment_number, static_cast<uint32_t>(docs.size()), 0, first_doc,
+                       ids.size(), shingles.size(), table.size(), retired.size()};
+  EncodedSegment out;
+  EncodeSegmentHeader(header, &out.head_and_body);
+  for (std::string_view section :
+       {std::string_view(doc_table), std::string_view(id_order), std::string_view(signatures),
+        std::string_view(keys), std::string_view(key_docs), std::string_view(retired_bytes),
+        std::string_view(ids)}) {
+    AppendPadded(section, &out.head_and_body);
+  }
+  uint64_t tables_checksum = Checksum(out.head_and_body);
+  AppendPadded(shingles, &out.head_and_body);
+  CommitRecord commit{segment_number, out.head_and_body.size() - kSegmentHeaderSize,
+                      tables_checksum};
+  EncodeCommitRecord(commit, &out.commit);
+  return out;
+}
+
+SegmentScan SegmentView::Parse(std::string_view file, uint64_t offset, uint32_t expected_number,
+                               uint64_t expected_first_doc, uint32_t perms,
+                               absl::Status* error) {
+  std::string_view rest = file.substr(offset);
+  auto corrupt = [&](std::string_view what) {
+    *error = absl::DataLossError(
+        absl::StrFormat("index segment %u at byte %u: %s", expected_number, offset, what));
+    return SegmentScan::kCorrupt;
+  };
+  if (rest.size() < kSegmentHeaderSize || AllZero(rest)) return SegmentScan::kTornTail;
+  if (!DecodeSegmentHeader(rest, &header_)) return corrupt("bad segment header");
+  if (header_.segment_number != expected_number || header_.first_doc != expected_first_doc ||
+      header_.flags != 0) {
+    return corrupt("segment header out of sequence");
+  }
+  if (!ComputeLayout(header_, perms, UINT64_MAX - kSegmentHeaderSize - kCommitRecordSize,
+                     &layout_)) {
+    return corrupt("segment sizes out of range");
+  }
+  total_bytes_ = kSegmentHeaderSize + layout_.body_length + kCommitRecordSize;
+  if (total_bytes_ > rest.size()) return SegmentScan::kTornTail;
+  std::string_view commit_bytes =
+      rest.substr(kSegmentHeaderSize + layout_.body_length, kCommitRecordSize);
+  if (total_bytes_ == rest.size() && AllZero(commit_bytes)) return SegmentScan::kTornTail;
+  CommitRecord commit;
+  if (!DecodeCommitRecord(commit_bytes, &commit)) return corrupt("bad commit record");
+  if (commit.segment_number != expected_number || commit.body_length != layout_.body_length) {
+    return corrupt("commit record does not match its segment");
+  }
+  if (Checksum(rest.substr(0, kSegmentHeaderSize + layout_.tables_end)) !=
+      commit.tables_checksum) {
+    return corrupt("checksum mismatch");
+  }
+  perms_ = perms;
+  std::string_view body = rest.substr(kSegmentHeaderSize, layout_.body_length);
+  doc_table_ = body.substr(layout_.doc_table, uint64_t{header_.doc_count} * kDocRecordSize);
+  id_order_ = body.data() + layout_.id_order;
+  signatures_ = reinterpret_cast<const uint32_t*>(body.data() + layout_.signatures);
+  keys_ = reinterpret_cast<const uint64_t*>(body.data() + layout_.band_keys);
+  key_docs_ = reinterpret_cast<const uint32_t*>(body.data() + layout_.band_docs);
+  retired_ = body.data() + layout_.retired;
+  id_bytes_ = body.substr(layout_.id_bytes, header_.id_bytes);
+  shingles_ = body.substr(layout_.shingle_bytes, header_.shingle_bytes);
+  shingle_padding_ = body.substr(layout_.shingle_bytes + header_.shingle_bytes);
+  *error = CheckTables(offset);
+  return error->ok() ? SegmentScan::kSegment : SegmentScan::kCorrupt;
+}
+
+std::string_view SegmentView::id(uint32_t local) const {
+  DocRecord record = doc(local);
+  return id_bytes_.substr(record.id_offset, record.id_length);
+}
+
+std::string_view SegmentView::shingle_bytes(uint32_t local) const {
+  DocRecord record = doc(local);
+  return shingles_.substr(record.shingles_offset, record.shingles_length);
+}
+
+absl::Status SegmentView::CheckTables(uint64_t offset) {
+  auto bad = [&](std::string_view what) {
+    return absl::DataLossError(absl::StrFormat("index segment %u at byte %u: %s",
+                                               header_.segment_number, offset, what));
+  };
+  absl::Status documents = CheckDocuments(offset);
+  if (!documents.ok()) return documents;
+  for (uint64_t i = 0; i < header_.key_count; ++i) {
+    if (keys_[i] == kNoBandKey || key_docs_[i] >= header_.doc_count ||
+        (i > 0 && keys_[i] < keys_[i - 1])) {
+      return bad("band-key table out of order");
+    }
+  }
+  for (uint64_t i = 0; i < header_.retired_count; ++i) {
+    if (retired(i) >= header_.first_doc || (i > 0 && retired(i) <= retired(i - 1))) {
+      return bad("retired list out of order");
+    }
+  }
+  return absl::OkStatus();
+}
+
+absl::Status SegmentView::CheckDocuments(uint64_t offset) {
+  auto bad = [&](std::string_view what) {
+    return absl::DataLossError(absl::StrFormat("index segment %u at byte %u: %s",
+                                               header_.segment_number, offset, what));
+  };
+  uint64_t id_end = 0, shingle_end = 0;
+  for (uint32_t i = 0; i < header_.doc_count; ++i) {
+    DocRecord r = doc(i);
+    if (r.id_offset != id_end || r.id_length < 1 || r.id_length > kMaxIdLength ||
+        r.shingles_offset != shingle_end ||
+        uint64_t{r.shingles_length} > uint64_t{r.shingle_count} * 10 ||
+        r.shingles_length < r.shingle_count || (r.flags & ~kDocFlagHasPriority) != 0) {
+      return bad(absl::StrFormat("document table entry %u is malformed", i));
+    }
+    id_end += r.id_length;
+    shingle_end += r.shingles_length;
+  }
+  if (id_end != header_.id_bytes || shingle_end != header_.shingle_bytes) {
+    return bad("document table does not cover its sections");
+  }
+  std::vector<bool> seen(header_.doc_count);
+  for (uint32_t i = 0; i < header_.doc_count; ++i) {
+    uint32_t local = id_order(i);
+    if (local >= header_.doc_count || seen[local] || (i > 0 && id(id_order(i - 1)) >= id(local))) {
+      return bad("id order table is malformed");
+    }
+    seen[local] = true;
+  }
+  return absl::OkStatus();
+}
+
+}  // namespace kindred::index

@@ -1,0 +1,82 @@
+#include "index/write_util.h"
+
+#include <unistd.h>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+#include "index/format.h"
+
+namespace kindred::index {
+
+absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, FileSystem* fs) {
+  for (int attempt = 0; attempt < 5; ++attempt) {
+    auto lock = fs->LockExclusive(path);
+    if (!lock.ok()) return lock.status();
+    if (fs->LockStillNamesPath(**lock, path)) return lock;
+  }
+  return absl::UnavailableError(
+      absl::StrCat("index ", path, " keeps being replaced by another writer; try again later"));
+}
+
+absl::Status CheckWritable(const IndexSettings& settings, const SignedCorpus& corpus) {
+  if (corpus.perms() != settings.signature.perms) {
+    return absl::InvalidArgumentError(absl::StrFormat(
+        "signatures of %u slots cannot go into an index of %u-slot signatures", corpus.perms(),
+        settings.signature.perms));
+  }
+  if (settings.bands < 1 || settings.rows < 1 ||
+      uint64_t{settings.bands} * settings.rows > settings.signature.perms) {
+    return absl::InvalidArgumentError("index banding does not fit the signature length");
+  }
+  if (settings.unicode_version.size() > kMaxUnicodeVersionLength) {
+    return absl::InvalidArgumentError("Unicode version text is too long");
+  }
+  for (const std::string& id : corpus.ids()) {
+    if (id.empty() || id.size() > kMaxIdLength) {
+      return absl::InvalidArgumentError(absl::StrFormat(
+          "document id of %u bytes cannot be indexed (1..%u bytes)", id.size(), kMaxIdLength));
+    }
+  }
+  return absl::OkStatus();
+}
+
+SegmentDocument DocumentOf(const SignedCorpus& corpus, size_t doc) {
+  return SegmentDocument{corpus.id(doc), corpus.facts(doc), corpus.shingles(doc),
+                         corpus.signature(doc)};
+}
+
+std::vector<SegmentDocument> DocumentsOf(const SignedCorpus& corpus) {
+  std::vector<SegmentDocument> docs;
+  docs.reserve(corpus.size());
+  for (size_t i = 0; i < corpus.size(); ++i) docs.push_back(DocumentOf(corpus, i));
+  return docs;
+}
+
+absl::Status WriteWholeFile(const std::string& path, const std::string& header,
+                            const EncodedSegment& segment, bool replace, FileSystem* fs) {
+  std::string temp = absl::StrCat(path, ".tmp.", getpid());
+  auto file = fs->CreateNew(temp);
+  if (!file.ok()) return file.status();
+  absl::Status status = (*file)->Append(header);
+  if (status.ok()) status = (*file)->Append(segment.head_and_body);
+  if (status.ok()) status = (*file)->Append(segment.commit);
+  if (status.ok()) status = (*file)->Sync();
+  file->reset();
+  if (status.ok()) status = fs->Rename(temp, path, replace);
+  if (!status.ok()) {
+    fs->Remove(temp).IgnoreError();
+    return status;
+  }
+  return fs->SyncDirectoryOf(path);
+}
+
+absl::Status AppendSegment(AppendFile* file, uint64_t committed, const EncodedSegment& segment) {
+  absl::Status status = file->Append(segment.head_and_body);
+  if (status.ok()) status = file->Sync();
+  if (status.ok()) status = file->Append(segment.commit);
+  if (status.ok()) status = file->Sync();
+  if (!status.ok() && file->Truncate(committed).ok()) file->Sync().IgnoreError();
+  return status;
+}
+
+}  // namespace kindred::index
