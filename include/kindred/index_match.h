@@ -1,0 +1,74 @@
+// kindred: matching documents against an index, and sweeping an index.
+//
+// MatchAgainstIndex is the heart of `add` and `check`: for each document of
+// a signed batch, its confirmed matches among the live indexed documents
+// (LSH candidates from the index's band-key tables under the reader's
+// current banding, then exact verification on the stored shingle sets) and
+// among the earlier documents of the batch itself.
+//
+// SweepIndex lists the pairs and duplicate groups of everything indexed,
+// from the stored shingle sets and signatures (the corpus is not re-read).
+//
+// Both are deterministic whatever the thread count; thread-safe on a reader
+// that is not being re-banded.
+#ifndef KINDRED_INDEX_MATCH_H_
+#define KINDRED_INDEX_MATCH_H_
+
+#include <cstdint>
+#include <vector>
+
+#include "absl/status/statusor.h"
+#include "kindred/groups.h"
+#include "kindred/index.h"
+#include "kindred/settings.h"
+#include "kindred/signed_corpus.h"
+#include "kindred/sweep.h"
+
+namespace kindred {
+
+// One confirmed match of a batch document.
+struct IndexMatch {
+  uint32_t query = 0;       // the batch document
+  bool in_index = false;    // other is an indexed document (else a batch one)
+  uint32_t other = 0;       // index document number, or an earlier batch document
+  uint32_t shared = 0;      // |Q n O|
+  uint32_t query_size = 0;  // |Q|
+  uint32_t other_size = 0;  // |O|
+  double jaccard = 0;       // exact
+  double estimate = 0;      // from the signatures
+  double QueryInOther() const { return query_size ? double(shared) / query_size : 0; }
+  double OtherInQuery() const { return other_size ? double(shared) / other_size : 0; }
+};
+
+struct IndexMatchOptions {
+  // threshold and measure decide what is confirmed; bands/rows are ignored
+  // (the reader's banding is used; see IndexReader::UseBanding).
+  MatchSettings match;
+  int threads = 1;
+  // Leave out indexed documents with the same id as the query (the version a
+  // `replace` supersedes).
+  bool exclude_same_id = false;
+};
+
+// Matches of every batch document, ordered by query, then indexed matches
+// (ascending document number) before batch matches (ascending). Requires
+// batch.perms() == the index's perms. Errors: DataLoss when a stored
+// shingle set fails its checksum.
+absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& reader,
+                                                          const SignedCorpus& batch,
+                                                          const IndexMatchOptions& options);
+
+// The live documents of an index as a signed corpus (index order; shingle
+// sets verified), with numbers[i] = the index document number of entry i.
+absl::Status LoadIndexedCorpus(const IndexReader& reader, SignedCorpus* out,
+                               std::vector<uint32_t>* numbers);
+
+// Pairs and groups of every live indexed document under `match` (with the
+// reader's banding when match.bands is 0) and `keep`; the result's corpus
+// holds the live documents in index order. Errors: DataLoss.
+absl::StatusOr<SweepResult> SweepIndex(const IndexReader& reader, const MatchSettings& match,
+                                       KeepPolicy keep, int threads);
+
+}  // namespace kindred
+
+#endif  // KINDRED_INDEX_MATCH_H_

@@ -1,0 +1,110 @@
+#include "kindred/index_match.h"
+
+#include <algorithm>
+#include <mutex>
+
+#include "kindred/banding.h"
+#include "kindred/candidates.h"
+#include "kindred/parallel.h"
+#include "kindred/signer.h"
+#include "kindred/verify.h"
+
+namespace kindred {
+namespace {
+
+// The confirmed indexed matches of batch document `q`, appended to *out.
+absl::Status MatchOne(const IndexReader& reader, const SignedCorpus& batch, uint32_t q,
+                      const IndexMatchOptions& options, std::vector<IndexMatch>* out) {
+  auto query = batch.shingles(q);
+  if (query.empty()) return absl::OkStatus();
+  std::vector<uint64_t> keys(reader.bands());
+  BandKeys(batch.signature(q), Banding{reader.bands(), reader.rows()}, absl::MakeSpan(keys));
+  std::vector<uint32_t> candidates;
+  reader.Candidates(keys, &candidates);
+  std::vector<uint64_t> stored;
+  for (uint32_t doc : candidates) {
+    if (options.exclude_same_id && reader.id(doc) == batch.id(q)) continue;
+    if (absl::Status read = reader.ReadShingles(doc, &stored); !read.ok()) return read;
+    Overlap overlap = MeasureOverlap(query, stored);
+    if (!PassesThreshold(overlap.shared, overlap.size_a, overlap.size_b, options.match)) continue;
+    out->push_back(IndexMatch{q, true, doc, overlap.shared, overlap.size_a, overlap.size_b,
+                              overlap.Jaccard(),
+                              EstimateJaccard(batch.signature(q), reader.signature(doc))});
+  }
+  return absl::OkStatus();
+}
+
+}  // namespace
+
+absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& reader,
+                                                          const SignedCorpus& batch,
+                                                          const IndexMatchOptions& options) {
+  if (batch.perms() != reader.settings().signature.perms) {
+    return absl::InvalidArgumentError("batch signatures do not fit the index");
+  }
+  std::vector<std::vector<IndexMatch>> per_query(batch.size());
+  std::mutex error_mutex;
+  absl::Status error;
+  ParallelFor(batch.size(), options.threads, [&](size_t begin, size_t end, int) {
+    for (size_t q = begin; q < end; ++q) {
+      absl::Status status = MatchOne(reader, batch, static_cast<uint32_t>(q), options,
+                                     &per_query[q]);
+      if (!status.ok()) {
+        std::lock_guard<std::mutex> lock(error_mutex);
+        if (error.ok()) error = status;
+      }
+    }
+  });
+  if (!error.ok()) return error;
+  // Within the batch: each confirmed pair (a < b) is reported once, as a
+  // match of the later document b with the earlier a.
+  CandidateStats stats;
+  std::vector<PackedPair> candidates =
+      FindCandidatePairs(batch, Banding{reader.bands(), reader.rows()}, options.threads, &stats);
+  for (const ScoredPair& pair : VerifyPairs(batch, candidates, options.match, options.threads)) {
+    per_query[pair.b].push_back(IndexMatch{pair.b, false, pair.a, pair.shared, pair.size_b,
+                                           pair.size_a, pair.jaccard, pair.estimate});
+  }
+  std::vector<IndexMatch> matches;
+  for (auto& list : per_query) {
+    std::stable_sort(list.begin(), list.end(), [](const IndexMatch& x, const IndexMatch& y) {
+      return x.in_index != y.in_index ? x.in_index : x.other < y.other;
+    });
+    matches.insert(matches.end(), list.begin(), list.end());
+  }
+  return matches;
+}
+
+absl::Status LoadIndexedCorpus(const IndexReader& reader, SignedCorpus* out,
+                               std::vector<uint32_t>* numbers) {
+  std::vector<uint64_t> shingles;
+  for (uint32_t doc = 0; doc < reader.document_count(); ++doc) {
+    if (!reader.is_live(doc)) continue;
+    if (absl::Status read = reader.ReadShingles(doc, &shingles); !read.ok()) return read;
+    out->Add(std::string(reader.id(doc)), reader.facts(doc), DocumentOrigin{}, shingles,
+             reader.signature(doc));
+    if (numbers != nullptr) numbers->push_back(doc);
+  }
+  return absl::OkStatus();
+}
+
+absl::StatusOr<SweepResult> SweepIndex(const IndexReader& reader, const MatchSettings& match,
+                                       KeepPolicy keep, int threads) {
+  SweepOptions options;
+  options.signature = reader.settings().signature;
+  options.match = match;
+  if (options.match.bands == 0) {
+    options.match.bands = reader.bands();
+    options.match.rows = reader.rows();
+  }
+  options.keep = keep;
+  options.sign.threads = threads;
+  SweepResult result(options.signature.perms);
+  if (absl::Status load = LoadIndexedCorpus(reader, &result.corpus, nullptr); !load.ok()) {
+    return load;
+  }
+  MatchCorpus(result.corpus, options, &result);
+  return result;
+}
+
+}  // namespace kindred
