@@ -2,17 +2,20 @@
 // exactly the kept segments ICU's root word break iterator gives for ASCII
 // text. Internal to the library.
 //
-// For ASCII, NFKC_Casefold only maps A-Z to a-z, and the UAX #29 word break
-// properties (Unicode 15.0 WordBreakProperty.txt) are:
+// For ASCII, NFKC_Casefold only maps A-Z to a-z. The UAX #29 word break
+// properties of ASCII (Unicode 15.0 WordBreakProperty.txt) are
 //   ALetter: A-Z a-z           Numeric: 0-9          ExtendNumLet: _
 //   MidLetter: ':'              MidNum: ',' ';'       MidNumLet: '.'
 //   Single_Quote: '\''          Double_Quote: '"'     WSegSpace: ' '
 //   CR, LF, Newline (VT, FF)    everything else: Other
-// A segment made of letters, digits and '_' (joined by WB5, WB8-WB10,
-// WB13a, WB13b) and of single ':', '.', '\'' between two letters (WB6, WB7)
-// or ',', ';', '.', '\'' between two digits (WB11, WB12) is a word. ICU gives
-// it rule status 100 or 200 except for a lone "_", whose status is 0. Every
-// other segment (spaces, CR LF, punctuation, controls) has status 0 and is
+// and ICU's root rules (which follow the CLDR root tailoring, recalled from
+// memory and confirmed by the differential tests) change two of them: ':' is not MidLetter (so "a:b" is three segments) and '@' is ALetter
+// (so "a@b" and a lone "@" are words). With that, a word is a run of letters
+// (with '@'), digits and '_' (joined by WB5, WB8-WB10, WB13a, WB13b) in which
+// a single '.' or '\'' may stand between two letters (WB6, WB7) and a single
+// ',', ';', '.' or '\'' between two digits (WB11, WB12). ICU gives a word rule
+// status 100 or more except for a lone "_", whose status is 0. Every other
+// segment (spaces, CR LF, punctuation, controls) has status 0 and is
 // dropped. Double_Quote matters only after Hebrew letters (WB7b, WB7c), so in
 // ASCII text it is Other.
 #ifndef KINDRED_TEXT_ASCII_WORDS_H_
@@ -29,9 +32,8 @@ enum AsciiClass : uint8_t {
   kLetter = 1,
   kDigit = 2,
   kUnderscore = 3,
-  kMidLetter = 4,  // ':'
-  kMidNum = 5,     // ',' ';'
-  kMidNumLet = 6,  // '.' '\''
+  kMidNum = 4,     // ',' ';'
+  kMidNumLet = 5,  // '.' '\''
 };
 
 inline constexpr std::array<uint8_t, 256> MakeAsciiClasses() {
@@ -40,7 +42,7 @@ inline constexpr std::array<uint8_t, 256> MakeAsciiClasses() {
   for (int c = 'A'; c <= 'Z'; ++c) t[c] = kLetter;
   for (int c = '0'; c <= '9'; ++c) t[c] = kDigit;
   t['_'] = kUnderscore;
-  t[':'] = kMidLetter;
+  t['@'] = kLetter;  // ICU root tailoring
   t[','] = kMidNum;
   t[';'] = kMidNum;
   t['.'] = kMidNumLet;
@@ -72,10 +74,10 @@ inline size_t AsciiWordEnd(const unsigned char* p, size_t begin, size_t n) {
       ++i;
       continue;
     }
-    if (c < kMidLetter || i + 1 >= n) break;
+    if (c == kOther || i + 1 >= n) break;
     const uint8_t next = kAsciiClasses[p[i + 1]];
-    const bool letters = prev == kLetter && next == kLetter && c != kMidNum;
-    const bool digits = prev == kDigit && next == kDigit && c != kMidLetter;
+    const bool letters = prev == kLetter && next == kLetter && c == kMidNumLet;
+    const bool digits = prev == kDigit && next == kDigit;
     if (!letters && !digits) break;
     prev = next;
     i += 2;

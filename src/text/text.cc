@@ -5,10 +5,12 @@
 #include <utility>
 
 #include "absl/status/status.h"
+#include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "text/ascii_words.h"
 #include "text/icu_words.h"
 #include "text/utf8.h"
+#include "unicode/normalizer2.h"
 #include "unicode/uchar.h"
 #include "unicode/uversion.h"
 
@@ -63,12 +65,18 @@ absl::StatusOr<std::vector<Token>> IcuTokens(std::string_view utf8) {
 
 absl::StatusOr<std::string> NormalizeText(std::string_view utf8,
                                           TextStats* stats) {
-  absl::StatusOr<std::unique_ptr<IcuWords>> icu = IcuWords::Create();
-  if (!icu.ok()) return icu.status();
-  absl::StatusOr<uint32_t> replaced = (*icu)->Normalize(utf8);
-  if (!replaced.ok()) return replaced.status();
-  if (stats != nullptr) stats->invalid_utf8 = *replaced;
-  const icu::UnicodeString& normalized = (*icu)->normalized();
+  UErrorCode status = U_ZERO_ERROR;
+  const icu::Normalizer2* normalizer =
+      icu::Normalizer2::getNFKCCasefoldInstance(status);
+  icu::UnicodeString decoded;
+  icu::UnicodeString normalized;
+  const uint32_t replaced = text_internal::DecodeUtf8(utf8, &decoded);
+  if (U_SUCCESS(status)) normalizer->normalize(decoded, normalized, status);
+  if (U_FAILURE(status)) {
+    return absl::InternalError(
+        absl::StrCat("ICU normalization failed: ", u_errorName(status)));
+  }
+  if (stats != nullptr) stats->invalid_utf8 = replaced;
   std::string out;
   text_internal::AppendUtf8(normalized.getBuffer(), 0, normalized.length(),
                             &out);
