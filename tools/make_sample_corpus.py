@@ -39,7 +39,7 @@ LEADS = [
     "Residents of {street} were among the first to hear about {topic} this week.",
     "Opinion in {town} has been divided over {topic} since the subject was first raised in {month}.",
     "There was good news and bad news this week for everyone following {topic}.",
-    "{official} this week gave the clearest picture yet of {topic}.",
+    "{official}, this week gave the clearest picture yet of {topic}.",
     "Few subjects have filled the Lantern's letters page like {topic}, and this week brought a decision.",
     "{Topic} took a step forward on {weekday}, to the relief of many in {town}.",
     "Questions about {topic} were raised again on {weekday} by people living near {street}.",
@@ -95,9 +95,12 @@ class Slots(dict):
             "num": lambda: str(r.randint(2, 40)),
             "num2": lambda: str(r.randint(3, 60)),
             "big": lambda: f"{r.randint(120, 4800):,}",
-            "money": lambda: f"£{r.randint(12, 980) * r.choice([500, 1000, 2500]):,}",
+            "money": lambda: f"£{r.randint(12, 980) * r.choice([50, 100, 250]):,}",
             "price": lambda: f"£{r.randint(2, 60)}.{r.choice(['00', '50', '20'])}",
             "percent": lambda: str(r.randint(3, 65)),
+            "vote": self._vote,
+            "ordinal": lambda: r.choice(["second", "third", "fourth", "fifth",
+                                         "sixth", "seventh"]),
             "weekday": lambda: r.choice(phrases.WEEKDAYS),
             "month": lambda: r.choice(phrases.MONTHS),
             "year": lambda: str(r.randint(1952, 2021)),
@@ -105,6 +108,10 @@ class Slots(dict):
             "official": self._official,
         }
         return simple[key]()
+
+    def _vote(self):
+        against = self.rng.randint(0, 5)
+        return f"{against + self.rng.randint(1, 6)} to {against}"
 
     def _official(self):
         role = self.rng.choice(phrases.KINDS[self.kind]["roles"])

@@ -6,8 +6,8 @@ business and event. Any likeness to real places or people is accidental.
 
 Templates use str.format slots filled by make_sample_corpus.py:
   {topic} {person} {official} {street} {venue} {business} {num} {num2}
-  {big} {money} {price} {percent} {month} {weekday} {year} {time}
-  {partner_town} {town} {paper}
+  {big} {money} {price} {percent} {ordinal} {vote} {month} {weekday} {year}
+  {time} {partner_town} {town} {paper}
 Stories are built from many short templates with slots, so that two stories
 that are not meant to match share few runs of five words.
 """
@@ -108,7 +108,7 @@ KINDS = {
              "Boat launch returns to Kelp Yard"),
         ],
         "facts": [
-            "The harbour board met at {venue} on {weekday} evening and voted {num} to {num2} in favour of {topic}.",
+            "The harbour board met at {venue} on {weekday} evening and voted {vote} in favour of {topic}.",
             "Surveyors measured up to {num2} centimetres of new silt along {street} quay since {month}.",
             "The cost of {topic} is put at {money}, of which the board holds about {percent} per cent in reserve.",
             "Fishing boats working from the inner basin have been unable to land at low water on {num} days this year.",
@@ -162,7 +162,7 @@ KINDS = {
         ],
         "facts": [
             "Members debated {topic} for more than {num} minutes at {venue} on {weekday}.",
-            "The proposal was carried by {num} votes to {num2}, with one abstention.",
+            "The proposal was carried by {vote}, with one abstention.",
             "Officers estimate that {topic} will cost the town {money} over the next {num2} years.",
             "A petition signed by {big} residents was handed to the town clerk before the meeting.",
             "Residents of {street} told the meeting they had not been consulted before the plan was published.",
@@ -280,7 +280,7 @@ KINDS = {
             "Results were announced at {venue}, where prizes were presented by the mayor.",
             "The youngest competitor was {num} years old and the oldest was {num2} years older than that.",
             "Training sessions run every {weekday} evening from the slipway at Kelp Yard.",
-            "The course was shortened by {num} hundred metres after a late change in the tide.",
+            "The course was shortened by {num}0 metres after a late change in the tide.",
         ],
         "quotes": [
             "The lads dug in when it mattered and the crowd carried us home",
@@ -729,7 +729,7 @@ GENERIC = [
     "Copies of the full report are available from {venue}.",
     "Readers with views on {topic} can write to the Lantern at its office on {street}.",
     "The figures quoted were supplied by the organisers and have not been independently checked.",
-    "This is the {num}th time in a decade that {topic} made the front page of this paper.",
+    "This is the {ordinal} time in a decade that {topic} made the front page of this paper.",
     "Not everyone agreed, and {person} said the decision had come {num} years too late.",
     "Those who missed the meeting can watch a recording at {venue} on {weekday}.",
     "In {partner_town}, where a similar scheme ran in {year}, opinion remains divided.",
@@ -740,7 +740,7 @@ GENERIC = [
     "Residents of {street} said the change would make a real difference to daily life.",
     "The decision follows {num} months of discussion and a public exhibition at {venue}.",
     "Asked about {topic}, a spokesman for the county said the matter was under review.",
-    "{person}, a retired teacher, said she had written to the council {num} times on the subject.",
+    "{person}, a retired teacher, said letters to the council on the subject had gone unanswered {num} times.",
     "Costs have risen by roughly {percent} per cent since the first estimate was drawn up in {month}.",
     "Further details will be printed in the Lantern as soon as they are known.",
     "A meeting to discuss the next steps has been called for {time} on {weekday} at {venue}.",
@@ -791,14 +791,14 @@ LOCAL_ANGLES = [
 # regular expression and the phrases that may stand in its place), so that
 # the same template reads differently from story to story.
 VARIANTS = [
-    (r"\babout (?=\{)", ["about ", "around ", "roughly ", "some "]),
+    (r"\babout (?=\{(?:num|num2|big|money|price|percent)\})",
+     ["about ", "around ", "roughly ", "some "]),
     (r"(?<!no )\bmore than (?=\{)", ["more than ", "over ", "upwards of "]),
     (r" said (?!:)", [" said ", " told the Lantern ", " commented that "]),
     (r"\bresidents\b", ["residents", "locals", "townspeople"]),
     (r"\bbegin\b", ["begin", "start", "get under way"]),
     (r"\bshortly after\b", ["shortly after", "just after", "soon after"]),
-    (r" on \{weekday\}", [" on {weekday}", " last {weekday}",
-                          " this {weekday}"]),
+    (r" on \{weekday\}", [" on {weekday}", " this {weekday}"]),
     (r" in \{month\}", [" in {month}", " during {month}"]),
     (r" per cent\b", [" per cent", "%", " percent"]),
     (r" people\b", [" people", " residents", " local people"]),
@@ -810,9 +810,8 @@ VARIANTS = [
     (r" local\b", [" local", " nearby", " neighbouring"]),
     (r"\bthe end of (?=\{month\})", ["the end of ", "late ",
                                        "the last days of "]),
-    (r"(?<=[a-z]) told\b", [" told", " informed"]),
+    (r"(?<=[a-z]) told\b(?! the Lantern)", [" told", " informed"]),
     (r"\bthe meeting\b", ["the meeting", "the session"]),
-    (r"\bhas been\b", ["has been", "was"]),
     (r"\bthe town\b(?! clerk| council| hall| centre)", ["the town", "Port Tessary",
                                               "the harbour town"]),
     (r"\bsaid the\b", ["said the", "said that the"]),
