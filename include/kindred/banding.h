@@ -57,12 +57,12 @@ double CandidateProbability(double s, uint32_t bands, uint32_t rows);
 
 struct BandingCost {
   Banding banding;
-  double false_negative_mass = 0;   // integral over [t, 1] of 1 - P(s)
-  double false_positive_mass = 0;   // integral over [0, t] of P(s)
-  double weighted = 0;              // fn_weight * FN + fp_weight * FP
+  double false_negative_mass = 0;          // integral over [t, 1] of 1 - P(s)
+  double false_positive_mass = 0;          // integral over [0, t] of P(s)
+  double weighted = 0;                     // fn_weight * FN + fp_weight * FP
   double probability_at_threshold = 0;     // P(t)
   double probability_at_recall_point = 0;  // P(RecallPoint(t))
-  bool meets_recall_floor = false;  // probability_at_recall_point >= min_recall
+  bool meets_recall_floor = false;         // probability_at_recall_point >= min_recall
 };
 
 // The cost of one banding. Requires threshold in (0, 1], bands, rows >= 1,

@@ -66,13 +66,12 @@ class Signer {
 
  private:
   void SignClassic(absl::Span<const uint64_t> shingles, absl::Span<uint32_t> out) const;
-  void SignOnePermutation(absl::Span<const uint64_t> shingles,
-                          absl::Span<uint32_t> out) const;
+  void SignOnePermutation(absl::Span<const uint64_t> shingles, absl::Span<uint32_t> out) const;
 
   SignerScheme scheme_;
   uint32_t perms_;
-  uint64_t value_seed_;  // one permutation: the seed re-mixed into each shingle
-  uint64_t probe_seed_;  // one permutation: the seed of the probe sequences
+  uint64_t value_seed_;               // one permutation: the seed re-mixed into each shingle
+  uint64_t probe_seed_;               // one permutation: the seed of the probe sequences
   std::vector<uint64_t> slot_seeds_;  // classic: s_i, one per slot
 };
 

@@ -132,8 +132,7 @@ void PrintTextHeader(const Plan& plan) {
   const PlanOptions& o = plan.options;
   std::printf("Banding plan for threshold %.4g with %u perms\n", o.threshold, o.perms);
   std::printf("Weights: missed pair %.4g, false candidate %.4g. ", o.fn_weight, o.fp_weight);
-  std::printf("Recall floor: %.4g at similarity %.4g\n\n", o.min_recall,
-              RecallPoint(o.threshold));
+  std::printf("Recall floor: %.4g at similarity %.4g\n\n", o.min_recall, RecallPoint(o.threshold));
 }
 
 void PrintTextCurves(const Plan& plan) {
@@ -161,11 +160,13 @@ void PrintTextCurves(const Plan& plan) {
 }
 
 void PrintTextAlternatives(const Plan& plan) {
-  std::printf("Alternatives, best first (missed and false candidate masses are areas under\n"
-              "the S-curve above and below the threshold)\n");
-  std::printf("%5s %6s %5s %6s %13s %16s %12s %21s %14s %12s\n", "rank", "bands", "rows",
-              "slots", "P(threshold)", "P(recall point)", "missed mass",
-              "false candidate mass", "weighted cost", "meets floor");
+  std::printf(
+      "Alternatives, best first (missed and false candidate masses are "
+      "areas under\n"
+      "the S-curve above and below the threshold)\n");
+  std::printf("%5s %6s %5s %6s %13s %16s %12s %21s %14s %12s\n", "rank", "bands", "rows", "slots",
+              "P(threshold)", "P(recall point)", "missed mass", "false candidate mass",
+              "weighted cost", "meets floor");
   for (const auto& [rank, cost] : TableRows(plan)) {
     std::printf("%5zu %6u %5u %6llu %13.4f %16.4f %12.5f %21.5f %14.5f %12s\n", rank,
                 cost->banding.bands, cost->banding.rows,
@@ -192,9 +193,11 @@ void PrintTextChoice(const Plan& plan) {
 
 std::string CostFields(const BandingCost& c) {
   return absl::StrFormat(
-      "\"bands\":%u,\"rows\":%u,\"slots\":%llu,\"probability_at_threshold\":%.6f,"
+      "\"bands\":%u,\"rows\":%u,\"slots\":%llu,\"probability_at_threshold\":%."
+      "6f,"
       "\"probability_at_recall_point\":%.6f,\"false_negative_mass\":%.6f,"
-      "\"false_positive_mass\":%.6f,\"weighted_cost\":%.6f,\"meets_recall_floor\":%s",
+      "\"false_positive_mass\":%.6f,\"weighted_cost\":%.6f,\"meets_recall_"
+      "floor\":%s",
       c.banding.bands, c.banding.rows, static_cast<unsigned long long>(c.banding.slots()),
       c.probability_at_threshold, c.probability_at_recall_point, c.false_negative_mass,
       c.false_positive_mass, c.weighted, c.meets_recall_floor ? "true" : "false");
@@ -203,20 +206,21 @@ std::string CostFields(const BandingCost& c) {
 void PrintJsonl(const Plan& plan) {
   const PlanOptions& o = plan.options;
   std::printf(
-      "{\"record\":\"settings\",\"threshold\":%.6f,\"perms\":%u,\"fn_weight\":%.6f,"
+      "{\"record\":\"settings\",\"threshold\":%.6f,\"perms\":%u,\"fn_"
+      "weight\":%.6f,"
       "\"fp_weight\":%.6f,\"min_recall\":%.6f,\"recall_point\":%.6f}\n",
       o.threshold, o.perms, o.fn_weight, o.fp_weight, o.min_recall, RecallPoint(o.threshold));
   for (const BandingCost& cost : plan.curves) {
     for (double s : plan.similarities) {
-      std::printf("{\"record\":\"curve\",\"bands\":%u,\"rows\":%u,\"similarity\":%.6f,"
-                  "\"probability\":%.6f}\n",
-                  cost.banding.bands, cost.banding.rows, s,
-                  CandidateProbability(s, cost.banding.bands, cost.banding.rows));
+      std::printf(
+          "{\"record\":\"curve\",\"bands\":%u,\"rows\":%u,\"similarity\":%.6f,"
+          "\"probability\":%.6f}\n",
+          cost.banding.bands, cost.banding.rows, s,
+          CandidateProbability(s, cost.banding.bands, cost.banding.rows));
     }
   }
   for (const auto& [rank, cost] : TableRows(plan)) {
-    std::printf("{\"record\":\"alternative\",\"rank\":%zu,%s}\n", rank,
-                CostFields(*cost).c_str());
+    std::printf("{\"record\":\"alternative\",\"rank\":%zu,%s}\n", rank, CostFields(*cost).c_str());
   }
   if (plan.has_given) {
     std::printf("{\"record\":\"given\",\"rank\":%zu,%s}\n", plan.given_rank,
@@ -232,20 +236,20 @@ void PrintTsv(const Plan& plan) {
   for (double s : plan.similarities) {
     std::string line = absl::StrFormat("%.4f", s);
     for (const BandingCost& c : plan.curves) {
-      absl::StrAppend(&line, absl::StrFormat("\t%.6f", CandidateProbability(
-                                                           s, c.banding.bands, c.banding.rows)));
+      absl::StrAppend(&line, absl::StrFormat("\t%.6f", CandidateProbability(s, c.banding.bands,
+                                                                            c.banding.rows)));
     }
     std::printf("%s\n", line.c_str());
   }
-  std::printf("\nrank\tbands\trows\tslots\tprobability_at_threshold\t"
-              "probability_at_recall_point\tfalse_negative_mass\tfalse_positive_mass\t"
-              "weighted_cost\tmeets_recall_floor\n");
+  std::printf(
+      "\nrank\tbands\trows\tslots\tprobability_at_threshold\t"
+      "probability_at_recall_point\tfalse_negative_mass\tfalse_positive_mass\t"
+      "weighted_cost\tmeets_recall_floor\n");
   for (const auto& [rank, c] : TableRows(plan)) {
     std::printf("%zu\t%u\t%u\t%llu\t%.6f\t%.6f\t%.6f\t%.6f\t%.6f\t%s\n", rank, c->banding.bands,
                 c->banding.rows, static_cast<unsigned long long>(c->banding.slots()),
-                c->probability_at_threshold, c->probability_at_recall_point,
-                c->false_negative_mass, c->false_positive_mass, c->weighted,
-                c->meets_recall_floor ? "yes" : "no");
+                c->probability_at_threshold, c->probability_at_recall_point, c->false_negative_mass,
+                c->false_positive_mass, c->weighted, c->meets_recall_floor ? "yes" : "no");
   }
   const Banding best = plan.ranked.front().banding;
   std::printf("\nbands\trows\n%u\t%u\n", best.bands, best.rows);
@@ -274,9 +278,10 @@ int RunPlan(const PlanOptions& options) {
 
 void RegisterPlan(CLI::App& app, int* exit_code) {
   auto options = std::make_shared<PlanOptions>();
-  CLI::App* plan = app.add_subcommand(
-      "plan", "Band/row arithmetic: the S-curve and the expected missed and false candidate "
-              "pairs for a threshold and signature length");
+  CLI::App* plan = app.add_subcommand("plan",
+                                      "Band/row arithmetic: the S-curve and the "
+                                      "expected missed and false candidate "
+                                      "pairs for a threshold and signature length");
   plan->add_option("--threshold", options->threshold, "Similarity threshold, in (0, 1]")
       ->capture_default_str();
   plan->add_option("--perms", options->perms, "Signature length (slots), 1..4096")
@@ -288,7 +293,8 @@ void RegisterPlan(CLI::App& app, int* exit_code) {
                    "Weight of the false-candidate mass below the threshold")
       ->capture_default_str();
   plan->add_option("--min-recall", options->min_recall,
-                   "Recall floor at min(threshold + 0.05, (threshold + 1) / 2); 0 disables it")
+                   "Recall floor at min(threshold + 0.05, (threshold + 1) / "
+                   "2); 0 disables it")
       ->capture_default_str();
   plan->add_option("--bands", options->bands, "Show this band count (with --rows)");
   plan->add_option("--rows", options->rows, "Show this row count (with --bands)");
