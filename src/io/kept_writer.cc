@@ -1,0 +1,186 @@
+// WriteKept: the second pass over the inputs that writes the kept documents.
+#include "kindred/kept_writer.h"
+
+#include <memory>
+#include <optional>
+#include <utility>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+#include "io/buffered_input.h"
+#include "io/byte_stream.h"
+#include "io/output_file.h"
+#include "io/output_guard.h"
+#include "io/tree_walker.h"
+
+namespace kindred {
+namespace {
+
+// The name a single text file (or text from standard input) gets in the copy
+// directory.
+std::string CopyName(const ResolvedInput& input) {
+  if (input.is_stdin) return "stdin.txt";
+  std::string path = io::StripTrailingSlashes(input.name);
+  size_t slash = path.find_last_of('/');
+  return slash == std::string::npos ? path : path.substr(slash + 1);
+}
+
+class KeptPass {
+ public:
+  explicit KeptPass(const KeptRequest& request) : request_(request) {}
+
+  absl::StatusOr<KeptCounts> Run();
+
+ private:
+  absl::Status OpenOutputs(bool needs_lines, bool needs_text);
+  absl::Status CopyLines(const std::string& path);
+  absl::Status KeepText(const std::string& relative, const std::string& path);
+  absl::Status ReadInput(const ResolvedInput& input);
+  absl::Status CommitOutputs();
+
+  const KeptRequest& request_;
+  KeptCounts counts_;
+  std::unique_ptr<io::OutputFile> lines_;
+  std::unique_ptr<io::OutputFile> path_list_;
+  std::unique_ptr<io::CopyTree> copies_;
+};
+
+absl::Status KeptPass::OpenOutputs(bool needs_lines, bool needs_text) {
+  const KeptOutput& output = request_.output;
+  if (needs_lines && output.lines_path.empty()) {
+    return absl::InvalidArgumentError(
+        "an input is JSON Lines, but no output file for its kept lines was given");
+  }
+  if (needs_text && output.copy_dir.empty() == output.path_list.empty()) {
+    return absl::InvalidArgumentError(
+        "an input holds text documents: give either a copy directory or a path list for them");
+  }
+  if (needs_lines && needs_text && !output.path_list.empty()) {
+    auto lines = io::ResolvePath(output.lines_path), list = io::ResolvePath(output.path_list);
+    if (lines.ok() && list.ok() && *lines == *list) {
+      return absl::InvalidArgumentError("the kept lines and the path list name the same file");
+    }
+  }
+  absl::Status checked = io::CheckOutputs(request_.inputs, output, needs_lines, needs_text);
+  if (!checked.ok()) return checked;
+  if (needs_lines) {
+    auto file = io::OutputFile::Create(output.lines_path);
+    if (!file.ok()) return file.status();
+    lines_ = std::move(*file);
+  }
+  if (needs_text && !output.path_list.empty()) {
+    auto file = io::OutputFile::Create(output.path_list);
+    if (!file.ok()) return file.status();
+    path_list_ = std::move(*file);
+  }
+  if (needs_text && !output.copy_dir.empty()) {
+    auto tree = io::CopyTree::Create(output.copy_dir);
+    if (!tree.ok()) return tree.status();
+    copies_ = std::move(*tree);
+  }
+  return absl::OkStatus();
+}
+
+// Copies the kept lines of one JSON Lines file verbatim. Blank lines make no
+// document, exactly as in CorpusReader.
+absl::Status KeptPass::CopyLines(const std::string& path) {
+  io::DecodeOptions decode;
+  decode.max_decompressed_bytes = request_.options.max_decompressed_bytes;
+  auto stream = io::OpenDecoded(path, decode);
+  if (!stream.ok()) return stream.status();
+  io::BufferedInput input(std::move(*stream), path, request_.options.max_document_bytes);
+  absl::string_view line;
+  bool terminated = false;
+  for (;;) {
+    absl::StatusOr<bool> more = input.NextLine(&line, &terminated);
+    if (!more.ok()) return more.status();
+    if (!*more) return absl::OkStatus();
+    if (io::IsBlankLine(line)) continue;
+    if (!request_.keep(counts_.documents++)) continue;
+    ++counts_.kept;
+    absl::Status written = lines_->Append(line);
+    if (written.ok()) written = lines_->Append("\n");
+    if (!written.ok()) return written;
+  }
+}
+
+absl::Status KeptPass::KeepText(const std::string& relative, const std::string& path) {
+  if (!request_.keep(counts_.documents++)) return absl::OkStatus();
+  ++counts_.kept;
+  if (copies_ != nullptr) return copies_->Add(relative, path);
+  if (path.find('\n') != std::string::npos) {
+    return absl::InvalidArgumentError(
+        absl::StrCat("\"", path, "\": a path with a newline cannot be listed"));
+  }
+  absl::Status written = path_list_->Append(path);
+  if (written.ok()) written = path_list_->Append("\n");
+  return written;
+}
+
+absl::Status KeptPass::ReadInput(const ResolvedInput& input) {
+  if (input.is_directory) {
+    io::TreeWalker walker(input.read_path);
+    std::string relative, full;
+    for (;;) {
+      absl::StatusOr<bool> more = walker.Next(&relative, &full);
+      if (!more.ok()) return more.status();
+      if (!*more) return absl::OkStatus();
+      absl::Status done = input.format == InputFormat::kJsonLines ? CopyLines(full)
+                                                                  : KeepText(relative, full);
+      if (!done.ok()) return done;
+    }
+  }
+  if (input.format == InputFormat::kJsonLines) return CopyLines(input.read_path);
+  if (input.is_stdin && copies_ == nullptr) {
+    return absl::InvalidArgumentError(
+        "standard input holds a text document: it has no path to list; give a copy directory");
+  }
+  return KeepText(CopyName(input), input.read_path);
+}
+
+absl::Status KeptPass::CommitOutputs() {
+  for (io::OutputFile* file : {lines_.get(), path_list_.get()}) {
+    if (file == nullptr) continue;
+    absl::Status committed = file->Commit();
+    if (!committed.ok()) return committed;
+  }
+  return copies_ != nullptr ? copies_->Commit() : absl::OkStatus();
+}
+
+absl::StatusOr<KeptCounts> KeptPass::Run() {
+  bool needs_lines = false, needs_text = false;
+  for (const ResolvedInput& input : request_.inputs) {
+    if (input.format == InputFormat::kAuto) {
+      return absl::FailedPreconditionError(
+          absl::StrCat(input.name, ": its format is not known yet; read it to the end first"));
+    }
+    if (input.is_stdin && input.read_path.empty()) {
+      return absl::FailedPreconditionError(
+          "standard input was not copied while it was read, so it cannot be read again");
+    }
+    (input.format == InputFormat::kJsonLines ? needs_lines : needs_text) = true;
+  }
+  absl::Status status = OpenOutputs(needs_lines, needs_text);
+  for (size_t i = 0; status.ok() && i < request_.inputs.size(); ++i) {
+    status = ReadInput(request_.inputs[i]);
+  }
+  if (!status.ok()) return status;
+  if (counts_.documents != request_.expected_documents) {
+    return absl::FailedPreconditionError(absl::StrFormat(
+        "the inputs changed since they were read: %d documents now, %d before; nothing written",
+        counts_.documents, request_.expected_documents));
+  }
+  status = CommitOutputs();
+  if (!status.ok()) return status;
+  return counts_;
+}
+
+}  // namespace
+
+absl::StatusOr<KeptCounts> WriteKept(const KeptRequest& request) {
+  if (!request.keep) return absl::InvalidArgumentError("no keep predicate given");
+  KeptPass pass(request);
+  return pass.Run();
+}
+
+}  // namespace kindred

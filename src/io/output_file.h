@@ -1,0 +1,89 @@
+// Internal: outputs that appear whole or not at all.
+//
+// OutputFile writes under a temporary name beside its final path and renames
+// into place on Commit (after fsync of the file, then of the directory).
+// CopyTree builds a directory tree the same way. Either one, destroyed
+// without Commit, removes what it wrote.
+//
+// Not thread-safe.
+#ifndef KINDRED_IO_OUTPUT_FILE_H_
+#define KINDRED_IO_OUTPUT_FILE_H_
+
+#include <memory>
+#include <string>
+#include <vector>
+
+#include "absl/status/status.h"
+#include "absl/status/statusor.h"
+#include "absl/strings/string_view.h"
+
+namespace kindred::io {
+
+// A file written whole; gzip-compressed when the path ends in ".gz",
+// zstd-compressed when it ends in ".zst" or ".zstd".
+class OutputFile {
+ public:
+  // Creates the missing parent directories and a temporary file beside
+  // `path`.
+  static absl::StatusOr<std::unique_ptr<OutputFile>> Create(const std::string& path);
+  ~OutputFile();
+
+  // Appends bytes (compressed on the way). Call before Commit.
+  absl::Status Append(absl::string_view bytes);
+  // Ends the stream, fsyncs, renames onto the final path and fsyncs the
+  // directory. Call once.
+  absl::Status Commit();
+
+ private:
+  struct Encoder;
+  OutputFile(std::string path, std::string temp_path, int fd);
+  absl::Status Encode(absl::string_view bytes, bool finish);
+  absl::Status Flush();
+
+  std::string path_;
+  std::string temp_path_;
+  int fd_;
+  std::unique_ptr<Encoder> encoder_;
+  std::string pending_;  // bytes ready for the file
+  bool committed_ = false;
+};
+
+// A directory tree of file copies, built beside its final path.
+class CopyTree {
+ public:
+  // Creates the missing parents of `dir` and a temporary sibling directory.
+  // `dir` itself must not exist or be empty (checked again by Commit).
+  static absl::StatusOr<std::unique_ptr<CopyTree>> Create(const std::string& dir);
+  ~CopyTree();
+
+  // Copies the raw bytes of `source` to `relative` under the tree, creating
+  // directories as needed. `relative` must be a relative path without empty,
+  // "." or ".." components; two copies to one path are an error.
+  absl::Status Add(const std::string& relative, const std::string& source);
+  // Renames the tree onto its final path. Call once.
+  absl::Status Commit();
+
+ private:
+  CopyTree(std::string dir, std::string temp_dir);
+  absl::Status MakeParents(const std::string& relative);
+
+  std::string dir_;
+  std::string temp_dir_;
+  std::vector<std::string> created_;  // paths under temp_dir_, in creation order
+  bool committed_ = false;
+};
+
+// OK when `relative` is a relative path without empty, "." or ".."
+// components; else InvalidArgument saying the write would leave the output
+// directory.
+absl::Status CheckRelativePath(absl::string_view relative);
+
+// The directory part of `path` ("." when there is none).
+std::string ParentDirectory(const std::string& path);
+
+// fsync of a directory, so that a rename or creation in it is durable.
+absl::Status SyncDirectory(const std::string& dir);
+
+}  // namespace kindred::io
+
+#endif  // KINDRED_IO_OUTPUT_FILE_H_
