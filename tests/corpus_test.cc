@@ -163,9 +163,8 @@ TEST_CASE("JSON string escapes are decoded") {
   // RFC 8259 section 7: \" \\ \/ \b \f \n \r \t and \uXXXX, with a UTF-16
   // surrogate pair for characters outside the BMP. UTF-8 of U+00E9 is C3 A9
   // and of U+1F600 is F0 9F 98 80 (Unicode Standard, table 3-7).
-  WriteFile(dir.Path("e.ndjson"),
-            R"({"id":"q\"\\\/","text":"a\nb\tc\u00e9\ud83d\ude00\u0000!"})"
-            "\n");
+  WriteFile(dir.Path("e.ndjson"), R"({"id":"q\"\\\/","text":"a\nb\tc\u00e9\ud83d\ude00\u0000!"})"
+                                  "\n");
   auto docs = ReadAll({dir.Path("e.ndjson")});
   REQUIRE(docs.ok());
   REQUIRE(docs->size() == 1);
@@ -197,8 +196,7 @@ TEST_CASE("custom id, text and priority fields, and @line ids") {
   options.id_field = "@line";
   docs = ReadAll({dir.Path("p.json")}, options);
   REQUIRE(docs.ok());
-  CHECK(Ids(*docs) == std::vector<std::string>{dir.Path("p.json") + ":1",
-                                               dir.Path("p.json") + ":2",
+  CHECK(Ids(*docs) == std::vector<std::string>{dir.Path("p.json") + ":1", dir.Path("p.json") + ":2",
                                                dir.Path("p.json") + ":4"});
 }
 
@@ -287,7 +285,8 @@ TEST_CASE("formats: auto detection by name, and explicit formats") {
 TEST_CASE("a tree read as JSON Lines reads every file's lines in order") {
   TempDir dir;
   WriteFile(dir.Path("t/2.jsonl"), "{\"id\": \"c\", \"text\": \"3\"}\n");
-  WriteFile(dir.Path("t/1/x"), Gzip("{\"id\": \"a\", \"text\": \"1\"}\n{\"id\": \"b\", \"text\": \"2\"}"));
+  WriteFile(dir.Path("t/1/x"),
+            Gzip("{\"id\": \"a\", \"text\": \"1\"}\n{\"id\": \"b\", \"text\": \"2\"}"));
   InputOptions options;
   options.format = InputFormat::kJsonLines;
   options.id_field = "@line";
@@ -303,8 +302,10 @@ TEST_CASE("gzip with several members and zstd with several frames") {
   TempDir dir;
   std::string first, second;
   for (int i = 0; i < 3000; ++i) {
-    first += "{\"id\": \"a" + std::to_string(i) + "\", \"text\": \"alpha " + std::to_string(i) + "\"}\n";
-    second += "{\"id\": \"b" + std::to_string(i) + "\", \"text\": \"beta " + std::to_string(i) + "\"}\n";
+    first +=
+        "{\"id\": \"a" + std::to_string(i) + "\", \"text\": \"alpha " + std::to_string(i) + "\"}\n";
+    second +=
+        "{\"id\": \"b" + std::to_string(i) + "\", \"text\": \"beta " + std::to_string(i) + "\"}\n";
   }
   WriteFile(dir.Path("m.jsonl.gz"), Gzip(first) + Gzip(second));
   WriteFile(dir.Path("m.jsonl.zst"), Zstd(first) + Zstd(second));
@@ -376,7 +377,8 @@ TEST_CASE("size limits: long lines, large documents, decompression bombs") {
   // 100 bytes plus "\r" counts as 101.
   WriteFile(dir.Path("crlf.jsonl"), ok_line + "\r\n");
   CHECK(ErrorOf(ReadAll({dir.Path("crlf.jsonl")}, options)) ==
-        dir.Path("crlf.jsonl") + ":1: line longer than the limit of 100 bytes (--max-document-size)");
+        dir.Path("crlf.jsonl") +
+            ":1: line longer than the limit of 100 bytes (--max-document-size)");
 
   WriteFile(dir.Path("t/small"), std::string(100, 'y'));
   WriteFile(dir.Path("t/zbig"), std::string(101, 'y'));
@@ -484,8 +486,7 @@ TEST_CASE("missing inputs and bad input lists") {
   CHECK(missing.status().code() == absl::StatusCode::kNotFound);
   CHECK_THAT(std::string(missing.status().message()),
              Catch::StartsWith(dir.Path("nope.jsonl") + ": cannot open"));
-  CHECK(CorpusReader::Open({"-", "-"}, {}).status().code() ==
-        absl::StatusCode::kInvalidArgument);
+  CHECK(CorpusReader::Open({"-", "-"}, {}).status().code() == absl::StatusCode::kInvalidArgument);
   CHECK(CorpusReader::Open({}, {}).status().code() == absl::StatusCode::kInvalidArgument);
 }
 

@@ -28,7 +28,8 @@ absl::StatusOr<size_t> BufferedInput::Fill() {
     // Grow by doubling (amortized copies), up to what a line of max_bytes_
     // and one chunk need.
     size_t wanted = std::max(end_ + kChunkBytes, buffer_.size() * 2);
-    wanted = std::min<uint64_t>(wanted, std::max<uint64_t>(end_ + kChunkBytes, max_bytes_ + kChunkBytes + 1));
+    wanted = std::min<uint64_t>(
+        wanted, std::max<uint64_t>(end_ + kChunkBytes, max_bytes_ + kChunkBytes + 1));
     buffer_.resize(wanted);
   }
   absl::StatusOr<size_t> n = stream_->Read(buffer_.data() + end_, buffer_.size() - end_);
@@ -45,16 +46,16 @@ absl::StatusOr<bool> BufferedInput::NextLine(absl::string_view* line, bool* term
     const void* newline = std::memchr(start, '\n', end_ - scanned);
     const size_t pending = end_ - begin_;
     if (newline != nullptr || pending > max_bytes_ || eof_) {
-      size_t length = newline != nullptr
-                          ? static_cast<size_t>(static_cast<const char*>(newline) -
-                                                (buffer_.data() + begin_))
-                          : pending;
+      size_t length =
+          newline != nullptr
+              ? static_cast<size_t>(static_cast<const char*>(newline) - (buffer_.data() + begin_))
+              : pending;
       if (newline == nullptr && pending == 0) return false;
       ++line_number_;
       if (length > max_bytes_) {
-        return absl::ResourceExhaustedError(absl::StrFormat(
-            "%s:%d: line longer than the limit of %d bytes (--max-document-size)", name_,
-            line_number_, max_bytes_));
+        return absl::ResourceExhaustedError(
+            absl::StrFormat("%s:%d: line longer than the limit of %d bytes (--max-document-size)",
+                            name_, line_number_, max_bytes_));
       }
       *line = absl::string_view(buffer_.data() + begin_, length);
       *terminated = newline != nullptr;
@@ -90,7 +91,8 @@ absl::Status BufferedInput::ReadRest(std::string* out) {
   while (!eof_) {
     if (out->size() > max_bytes_) break;
     size_t old_size = out->size();
-    size_t grow = std::max<size_t>(kChunkBytes, std::min<uint64_t>(old_size, max_bytes_ + 1 - old_size));
+    size_t grow =
+        std::max<size_t>(kChunkBytes, std::min<uint64_t>(old_size, max_bytes_ + 1 - old_size));
     out->resize(old_size + grow);
     absl::StatusOr<size_t> n = stream_->Read(out->data() + old_size, grow);
     if (!n.ok()) return n.status();
@@ -99,8 +101,7 @@ absl::Status BufferedInput::ReadRest(std::string* out) {
   }
   if (out->size() > max_bytes_) {
     return absl::ResourceExhaustedError(absl::StrFormat(
-        "%s: document larger than the limit of %d bytes (--max-document-size)", name_,
-        max_bytes_));
+        "%s: document larger than the limit of %d bytes (--max-document-size)", name_, max_bytes_));
   }
   return absl::OkStatus();
 }

@@ -8,9 +8,9 @@
 #include <cstdint>
 #include <memory>
 #include <string>
-#include "absl/strings/string_view.h"
 
 #include "absl/status/statusor.h"
+#include "absl/strings/string_view.h"
 #include "io/byte_stream.h"
 
 namespace kindred::io {

@@ -299,8 +299,8 @@ absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
       stream = std::make_unique<ZstdStream>(std::move(stream), name);
     }
     if (options.max_decompressed_bytes > 0) {
-      stream = std::make_unique<LimitedStream>(std::move(stream), name,
-                                               options.max_decompressed_bytes);
+      stream =
+          std::make_unique<LimitedStream>(std::move(stream), name, options.max_decompressed_bytes);
     }
   }
   if (!options.copy_path.empty()) {

@@ -70,15 +70,13 @@ absl::StatusOr<ResolvedInput> Resolve(const std::string& name, const InputOption
 
 class CorpusReader::Impl {
  public:
-  Impl(std::vector<std::string> inputs, InputOptions options,
-       std::vector<ResolvedInput> resolved)
+  Impl(std::vector<std::string> inputs, InputOptions options, std::vector<ResolvedInput> resolved)
       : inputs_(std::move(inputs)),
         options_(std::move(options)),
         resolved_(std::move(resolved)),
         json_(options_) {}
 
-  absl::StatusOr<size_t> ReadBatch(std::vector<Document>* batch, size_t max_docs,
-                                   size_t max_bytes);
+  absl::StatusOr<size_t> ReadBatch(std::vector<Document>* batch, size_t max_docs, size_t max_bytes);
 
   std::vector<std::string> inputs_;
   InputOptions options_;
@@ -95,11 +93,11 @@ class CorpusReader::Impl {
   absl::StatusOr<std::unique_ptr<io::BufferedInput>> OpenBuffered(const std::string& path);
 
   io::JsonLineParser json_;
-  size_t current_ = 0;                   // input being read
-  std::optional<io::TreeWalker> tree_;   // set while reading a tree
+  size_t current_ = 0;                        // input being read
+  std::optional<io::TreeWalker> tree_;        // set while reading a tree
   std::unique_ptr<io::BufferedInput> lines_;  // set while reading JSON Lines
-  std::string lines_name_;               // their name in ids and messages
-  std::string lines_path_;               // their path in DocumentSource
+  std::string lines_name_;                    // their name in ids and messages
+  std::string lines_path_;                    // their path in DocumentSource
   absl::Status failure_;
 };
 
@@ -227,8 +225,8 @@ absl::StatusOr<bool> CorpusReader::Impl::Next(Document* doc) {
   return false;
 }
 
-absl::StatusOr<size_t> CorpusReader::Impl::ReadBatch(std::vector<Document>* batch,
-                                                     size_t max_docs, size_t max_bytes) {
+absl::StatusOr<size_t> CorpusReader::Impl::ReadBatch(std::vector<Document>* batch, size_t max_docs,
+                                                     size_t max_bytes) {
   if (!failure_.ok()) return failure_;
   size_t count = 0, bytes = 0;
   while (count < max_docs && (count == 0 || bytes < max_bytes)) {
@@ -250,7 +248,7 @@ absl::StatusOr<size_t> CorpusReader::Impl::ReadBatch(std::vector<Document>* batc
 }
 
 absl::StatusOr<std::unique_ptr<CorpusReader>> CorpusReader::Open(std::vector<std::string> inputs,
-                                                                  InputOptions options) {
+                                                                 InputOptions options) {
   if (inputs.empty()) return absl::InvalidArgumentError("no input given");
   std::vector<ResolvedInput> resolved;
   int stdin_count = 0;

@@ -90,7 +90,8 @@ absl::Status JsonLineParser::Parse(absl::string_view line, absl::string_view whe
         absl::StrFormat("%s: missing field \"%s\"", where, text_field_));
   }
   if (!has_id) {
-    return absl::InvalidArgumentError(absl::StrFormat("%s: missing field \"%s\"", where, id_field_));
+    return absl::InvalidArgumentError(
+        absl::StrFormat("%s: missing field \"%s\"", where, id_field_));
   }
   return absl::OkStatus();
 }

@@ -8,9 +8,9 @@
 
 #include <memory>
 #include <string>
-#include "absl/strings/string_view.h"
 
 #include "absl/status/status.h"
+#include "absl/strings/string_view.h"
 #include "kindred/corpus.h"
 
 namespace kindred::io {

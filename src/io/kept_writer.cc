@@ -125,8 +125,8 @@ absl::Status KeptPass::ReadInput(const ResolvedInput& input) {
       absl::StatusOr<bool> more = walker.Next(&relative, &full);
       if (!more.ok()) return more.status();
       if (!*more) return absl::OkStatus();
-      absl::Status done = input.format == InputFormat::kJsonLines ? CopyLines(full)
-                                                                  : KeepText(relative, full);
+      absl::Status done =
+          input.format == InputFormat::kJsonLines ? CopyLines(full) : KeepText(relative, full);
       if (!done.ok()) return done;
     }
   }

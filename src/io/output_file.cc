@@ -95,7 +95,9 @@ struct OutputFile::Encoder {
 };
 
 OutputFile::OutputFile(std::string path, std::string temp_path, int fd)
-    : path_(std::move(path)), temp_path_(std::move(temp_path)), fd_(fd),
+    : path_(std::move(path)),
+      temp_path_(std::move(temp_path)),
+      fd_(fd),
       encoder_(std::make_unique<Encoder>()) {}
 
 OutputFile::~OutputFile() {
@@ -162,9 +164,11 @@ absl::Status OutputFile::Encode(absl::string_view bytes, bool finish) {
   size_t remaining = 0;
   do {
     ZSTD_outBuffer buffer = {out, sizeof(out), 0};
-    remaining = ZSTD_compressStream2(encoder.zstd, &buffer, &in, finish ? ZSTD_e_end : ZSTD_e_continue);
+    remaining =
+        ZSTD_compressStream2(encoder.zstd, &buffer, &in, finish ? ZSTD_e_end : ZSTD_e_continue);
     if (ZSTD_isError(remaining)) {
-      return absl::InternalError(absl::StrCat("zstd compression failed: ", ZSTD_getErrorName(remaining)));
+      return absl::InternalError(
+          absl::StrCat("zstd compression failed: ", ZSTD_getErrorName(remaining)));
     }
     absl::Status written = WriteAll(fd_, out, buffer.pos, path_);
     if (!written.ok()) return written;

@@ -17,7 +17,8 @@ namespace {
 
 absl::StatusOr<std::string> RealPath(const std::string& path) {
   std::unique_ptr<char, decltype(&free)> resolved(realpath(path.c_str(), nullptr), &free);
-  if (resolved == nullptr) return absl::ErrnoToStatus(errno, absl::StrCat(path, ": cannot resolve"));
+  if (resolved == nullptr)
+    return absl::ErrnoToStatus(errno, absl::StrCat(path, ": cannot resolve"));
   return std::string(resolved.get());
 }
 
