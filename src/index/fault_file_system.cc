@@ -9,6 +9,16 @@ class FaultAppendFile : public AppendFile {
       : owner_(owner), base_(std::move(base)) {}
 
   absl::Status Append(std::string_view bytes) override {
+    size_t chunk = owner_->chunk_bytes();
+    if (chunk == 0 || bytes.size() <= chunk) return AppendPiece(bytes);
+    for (size_t at = 0; at < bytes.size(); at += chunk) {
+      absl::Status status = AppendPiece(bytes.substr(at, chunk));
+      if (!status.ok()) return status;
+    }
+    return absl::OkStatus();
+  }
+
+  absl::Status AppendPiece(std::string_view bytes) {
     switch (owner_->NextStep(/*is_append=*/true, /*is_sync=*/false)) {
       case FaultFileSystem::Verdict::kProceed:
         return base_->Append(bytes);

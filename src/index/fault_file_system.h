@@ -28,8 +28,12 @@ enum class FaultKind { kCrash, kDiskFull, kSyncFails };
 class FaultFileSystem : public FileSystem {
  public:
   // Borrows `base`, which must outlive this object. fail_at < 0: no fault.
-  FaultFileSystem(FileSystem* base, FaultKind kind, int64_t fail_at)
-      : base_(base), kind_(kind), fail_at_(fail_at) {}
+  // With chunk_bytes > 0, each Append is split into pieces of at most that
+  // many bytes, each piece one step (so a crash can fall anywhere).
+  FaultFileSystem(FileSystem* base, FaultKind kind, int64_t fail_at, size_t chunk_bytes = 0)
+      : base_(base), kind_(kind), fail_at_(fail_at), chunk_bytes_(chunk_bytes) {}
+
+  size_t chunk_bytes() const { return chunk_bytes_; }
 
   // Mutating steps seen so far (with fail_at < 0, counts a clean run).
   int64_t steps() const { return steps_; }
@@ -61,6 +65,7 @@ class FaultFileSystem : public FileSystem {
   FileSystem* base_;
   FaultKind kind_;
   int64_t fail_at_;
+  size_t chunk_bytes_;
   int64_t steps_ = 0;
   bool fired_ = false;
 };
