@@ -13,6 +13,7 @@
 #include <vector>
 
 #include "kindred/text.h"
+#include "text/ascii_words.h"
 #include "unicode/brkiter.h"
 #include "unicode/locid.h"
 #include "unicode/normalizer2.h"
@@ -338,6 +339,31 @@ void ExpectSameTokens(const std::string& text) {
   CHECK(fast->size() == icu->size());
 }
 
+// The block-wise ASCII scanner against the byte-at-a-time one (both in
+// src/text/ascii_words.h), words and spans.
+void ExpectScannersAgree(const std::string& text) {
+  const auto* p = reinterpret_cast<const unsigned char*>(text.data());
+  const size_t n = text.size();
+  std::string out_a(n + 17, '\0'), out_b(n + 17, '\0');
+  std::vector<uint32_t> words_a(n / 2 + 2), words_b(n / 2 + 2);
+  std::vector<uint32_t> begin_a(n / 2 + 1), begin_b(n / 2 + 1);
+  std::vector<uint32_t> end_a(n / 2 + 1), end_b(n / 2 + 1);
+  const size_t count_a = text_internal::FoldAsciiWordsWithSpans(
+      p, n, out_a.data(), words_a.data(), begin_a.data(), end_a.data());
+  const size_t count_b = text_internal::FoldAsciiWordsScalar<true>(
+      p, n, out_b.data(), words_b.data(), begin_b.data(), end_b.data());
+  REQUIRE(count_a == count_b);
+  const uint32_t length = words_a[count_a];
+  REQUIRE(length == words_b[count_b]);
+  CHECK(out_a.substr(0, length) == out_b.substr(0, length));
+  words_a.resize(count_a + 1), words_b.resize(count_b + 1);
+  begin_a.resize(count_a), begin_b.resize(count_b);
+  end_a.resize(count_a), end_b.resize(count_b);
+  CHECK(words_a == words_b);
+  CHECK(begin_a == begin_b);
+  CHECK(end_a == end_b);
+}
+
 TEST_CASE("ASCII fast path equals ICU on every 5-character string") {
   // Every string of length 5 over a reduced alphabet holding one member of
   // each ASCII word break class (UAX #29, WordBreakProperty.txt), both
@@ -357,6 +383,7 @@ TEST_CASE("ASCII fast path equals ICU on every 5-character string") {
     joined += '\n';
   }
   ExpectSameTokens(joined);
+  ExpectScannersAgree(joined);
   for (size_t length = 1; length <= 3; ++length) {
     size_t count = 1;
     for (size_t i = 0; i < length; ++i) count *= size;
@@ -367,6 +394,7 @@ TEST_CASE("ASCII fast path equals ICU on every 5-character string") {
         text += alphabet[rest % size];
       }
       ExpectSameTokens(text);
+      ExpectScannersAgree(text);
     }
   }
 }
@@ -386,6 +414,12 @@ TEST_CASE("ASCII fast path equals ICU on random ASCII text") {
                            : tricky[(r >> 2) % tricky.size()];
     }
     ExpectSameTokens(text);
+    ExpectScannersAgree(text);
+    // Every length around the 64-byte blocks and the 16-byte copies.
+    for (size_t cut = 0; cut < text.size() && cut < 140; ++cut) {
+      ExpectScannersAgree(text.substr(0, cut));
+      ExpectScannersAgree(text.substr(cut));
+    }
   }
 }
 

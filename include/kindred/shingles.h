@@ -67,6 +67,13 @@ class Shingler {
   struct Impl;
   Shingler(const SignatureSettings& settings, bool ascii_fast_path,
            std::unique_ptr<Impl> impl);
+  // Each appends the unsorted window hashes of one path to *out and returns
+  // the number of tokens or code points. The ICU ones read the text that
+  // impl_->icu has just normalized.
+  size_t ShingleAsciiWords(std::string_view text, ShingleSet* out);
+  size_t ShingleAsciiChars(std::string_view text, ShingleSet* out);
+  size_t ShingleIcuWords(ShingleSet* out);
+  size_t ShingleIcuChars(ShingleSet* out);
 
   SignatureSettings settings_;
   bool ascii_fast_path_;

@@ -62,45 +62,73 @@ inline bool IsWordClass(uint8_t cls) {
   return static_cast<uint8_t>(cls - 1) < 3;
 }
 
-// Returns the end of the word segment that starts at p[begin], which must be
-// a letter, digit or '_'.
-inline size_t AsciiWordEnd(const unsigned char* p, size_t begin, size_t n) {
-  uint8_t prev = kAsciiClasses[p[begin]];
-  size_t i = begin + 1;
-  while (i < n) {
-    const uint8_t c = kAsciiClasses[p[i]];
-    if (IsWordClass(c)) {
-      prev = c;
-      ++i;
+// Writes the kept words of the ASCII text p[0, n) to `out`, casefolded and
+// each followed by one space, the offset in `out` where word i begins to
+// word_begin[i], and the length written to word_begin[words]. With kSpans, also writes each word's span in p to
+// span_begin[i] and span_end[i]. Returns the number of words.
+//
+// Requires room for n + 1 bytes in `out`, n / 2 + 2 entries in word_begin
+// and n / 2 + 1 in the span arrays
+// (every word but the last is followed in p by at least one byte that is not
+// part of a word, and a word of one byte is never followed directly by
+// another word).
+//
+// This is the plain byte-at-a-time scanner; FoldAsciiWords below gives the
+// same result faster.
+template <bool kSpans>
+inline size_t FoldAsciiWordsScalar(const unsigned char* p, size_t n, char* out,
+                             uint32_t* word_begin, uint32_t* span_begin,
+                             uint32_t* span_end) {
+  const char* const out_start = out;
+  size_t words = 0;
+  size_t i = 0;
+  while (true) {
+    while (i < n && !IsWordClass(kAsciiClasses[p[i]])) ++i;
+    if (i >= n) break;
+    const size_t begin = i;
+    char* const word_start = out;
+    uint8_t prev = kOther;
+    while (true) {
+      uint8_t c;
+      while (i < n && IsWordClass(c = kAsciiClasses[p[i]])) {
+        *out++ = AsciiFold(p[i++]);
+        prev = c;
+      }
+      // A '.', '\'', ',' or ';' joins only when a matching class follows.
+      if (i + 1 >= n) break;
+      const uint8_t mid = kAsciiClasses[p[i]];
+      const uint8_t next = kAsciiClasses[p[i + 1]];
+      const bool letters =
+          prev == kLetter && next == kLetter && mid == kMidNumLet;
+      const bool digits =
+          prev == kDigit && next == kDigit && (mid == kMidNum || mid == kMidNumLet);
+      if (!letters && !digits) break;
+      *out++ = static_cast<char>(p[i++]);
+    }
+    if (i - begin == 1 && p[begin] == '_') {  // a lone "_" has status 0
+      out = word_start;
       continue;
     }
-    if (c == kOther || i + 1 >= n) break;
-    const uint8_t next = kAsciiClasses[p[i + 1]];
-    const bool letters = prev == kLetter && next == kLetter && c == kMidNumLet;
-    const bool digits = prev == kDigit && next == kDigit;
-    if (!letters && !digits) break;
-    prev = next;
-    i += 2;
+    *out++ = ' ';
+    word_begin[words] = static_cast<uint32_t>(word_start - out_start);
+    if constexpr (kSpans) {
+      span_begin[words] = static_cast<uint32_t>(begin);
+      span_end[words] = static_cast<uint32_t>(i);
+    }
+    ++words;
   }
-  return i;
+  word_begin[words] = static_cast<uint32_t>(out - out_start);
+  return words;
 }
 
-// Calls on_word(begin, end) for each kept word segment of the ASCII text
-// p[0, n), in order.
-template <typename OnWord>
-inline void ForEachAsciiWord(const unsigned char* p, size_t n,
-                             OnWord&& on_word) {
-  size_t i = 0;
-  while (i < n) {
-    if (!IsWordClass(kAsciiClasses[p[i]])) {
-      ++i;
-      continue;
-    }
-    const size_t end = AsciiWordEnd(p, i, n);
-    if (end - i >= 2 || p[i] != '_') on_word(i, end);
-    i = end;
-  }
-}
+// Same contract and result as FoldAsciiWordsScalar, except that `out` needs
+// room for n + 17 bytes (whole 16-byte stores may run past a word). Classifies
+// 64 bytes at a time with SSE2 where the target has it.
+size_t FoldAsciiWords(const unsigned char* p, size_t n, char* out,
+                      uint32_t* word_begin);
+size_t FoldAsciiWordsWithSpans(const unsigned char* p, size_t n, char* out,
+                               uint32_t* word_begin, uint32_t* span_begin,
+                               uint32_t* span_end);
 
 }  // namespace kindred::text_internal
 

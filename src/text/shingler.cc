@@ -1,3 +1,5 @@
+// XXH3 inlined into this file (same function, same values as the library).
+#define XXH_INLINE_ALL
 #include <xxhash.h>
 
 #include <algorithm>
@@ -8,6 +10,7 @@
 #include "absl/strings/str_format.h"
 #include "kindred/shingles.h"
 #include "text/ascii_words.h"
+#include "text/hash_sort.h"
 #include "text/icu_words.h"
 #include "text/utf8.h"
 #include "unicode/uchar.h"
@@ -21,16 +24,43 @@ uint64_t HashShingle(std::string_view shingle_utf8, uint64_t seed) {
   return XXH3_64bits_withSeed(shingle_utf8.data(), shingle_utf8.size(), seed);
 }
 
-// Scratch state reused from document to document. In word mode `arena` holds
-// the kept tokens, each followed by one space, and marks[i] is where token i
-// begins (plus a final entry, arena.size()); a window of tokens is then one
-// contiguous run of the arena. In char mode `arena` holds the folded text and
-// marks[i] is where code point i begins (plus arena.size()); the ASCII path
-// leaves `marks` empty since there code point i is byte i.
+namespace {
+
+// A grow-only array whose contents are not initialized; it gives memory back
+// when a much smaller document follows a huge one.
+template <typename T>
+class ScratchArray {
+ public:
+  T* Reserve(size_t n) {
+    constexpr size_t kKeep = (size_t{64} << 20) / sizeof(T);
+    if (n > capacity_ || (capacity_ > kKeep && n < capacity_ / 4)) {
+      data_.reset(new T[n]);
+      capacity_ = n;
+    }
+    return data_.get();
+  }
+
+ private:
+  std::unique_ptr<T[]> data_;
+  size_t capacity_ = 0;
+};
+
+}  // namespace
+
+// Scratch state reused from document to document. In word mode the arena
+// holds the kept tokens, each followed by one space, and marks[i] is where
+// token i begins (plus a final entry, the arena's length); a window of tokens
+// is then one contiguous run of the arena. In char mode the arena holds the
+// folded text and marks[i] is where code point i begins (plus the arena's
+// length); the ASCII path has no marks since there code point i is byte i.
 struct Shingler::Impl {
   std::unique_ptr<IcuWords> icu;
-  std::string arena;
-  std::vector<uint32_t> marks;
+  std::string arena;            // the ICU path's arena
+  std::vector<uint32_t> marks;  // the ICU path's marks
+  ScratchArray<char> ascii_arena;
+  ScratchArray<uint32_t> ascii_marks;
+  std::vector<uint64_t> sort_scratch;
+  std::vector<uint32_t> sort_counts;
 };
 
 Shingler::Shingler(const SignatureSettings& settings, bool ascii_fast_path,
@@ -54,38 +84,25 @@ absl::StatusOr<std::unique_ptr<Shingler>> Shingler::Create(
 
 namespace {
 
-void AsciiWordArena(std::string_view text, std::string* arena,
-                    std::vector<uint32_t>* marks) {
-  const auto* p = reinterpret_cast<const unsigned char*>(text.data());
-  text_internal::ForEachAsciiWord(p, text.size(), [&](size_t b, size_t e) {
-    marks->push_back(static_cast<uint32_t>(arena->size()));
-    const size_t at = arena->size();
-    arena->resize(at + (e - b) + 1);
-    char* out = arena->data() + at;
-    for (size_t i = b; i < e; ++i) *out++ = text_internal::AsciiFold(p[i]);
-    *out = ' ';
-  });
-  marks->push_back(static_cast<uint32_t>(arena->size()));
-}
-
 // ASCII White_Space (PropList.txt): TAB, LF, VT, FF, CR and SPACE.
 inline bool IsAsciiWhiteSpace(unsigned char c) {
   return c == ' ' || (c >= 0x09 && c <= 0x0D);
 }
 
-void AsciiCharArena(std::string_view text, std::string* arena) {
-  arena->resize(text.size());
-  char* out = arena->data();
+// Writes the casefolded, whitespace-folded text to `out` (room for
+// text.size() bytes); returns its length.
+size_t AsciiCharArena(std::string_view text, char* out) {
+  char* const start = out;
   bool pending_space = false;
   for (unsigned char c : text) {
     if (IsAsciiWhiteSpace(c)) {
-      pending_space = out != arena->data();
+      pending_space = out != start;
       continue;
     }
     if (pending_space) *out++ = ' ', pending_space = false;
     *out++ = text_internal::AsciiFold(c);
   }
-  arena->resize(out - arena->data());
+  return out - start;
 }
 
 void IcuWordArena(IcuWords& icu, std::string* arena,
@@ -122,39 +139,37 @@ void IcuCharArena(const icu::UnicodeString& text, std::string* arena,
   marks->push_back(static_cast<uint32_t>(arena->size()));
 }
 
-// Hashes the word windows described by `arena` and `marks` (see Impl).
-void HashWordWindows(const std::string& arena,
-                     const std::vector<uint32_t>& marks, uint32_t k,
-                     uint64_t seed, ShingleSet* out) {
-  const size_t tokens = marks.size() - 1;
+// Hashes the word windows of an arena of `tokens` tokens (see Impl).
+void HashWordWindows(const char* arena, const uint32_t* marks, size_t tokens,
+                     uint32_t k, uint64_t seed, ShingleSet* out) {
   if (tokens == 0) return;
   if (tokens < k) {
-    out->push_back(XXH3_64bits_withSeed(arena.data(), arena.size() - 1, seed));
+    out->push_back(XXH3_64bits_withSeed(arena, marks[tokens] - 1, seed));
     return;
   }
   out->reserve(tokens - k + 1);
   for (size_t i = 0; i + k <= tokens; ++i) {
     const uint32_t begin = marks[i];
     const uint32_t end = marks[i + k] - 1;  // without the trailing space
-    out->push_back(XXH3_64bits_withSeed(arena.data() + begin, end - begin, seed));
+    out->push_back(XXH3_64bits_withSeed(arena + begin, end - begin, seed));
   }
 }
 
-// Hashes the code point windows of `arena`; `marks` empty means ASCII.
-void HashCharWindows(const std::string& arena,
-                     const std::vector<uint32_t>& marks, uint32_t k,
-                     uint64_t seed, ShingleSet* out) {
-  const size_t points = marks.empty() ? arena.size() : marks.size() - 1;
+// Hashes the code point windows of an arena of `points` code points; null
+// `marks` means code point i is byte i.
+void HashCharWindows(const char* arena, const uint32_t* marks, size_t points,
+                     uint32_t k, uint64_t seed, ShingleSet* out) {
   if (points == 0) return;
   if (points < k) {
-    out->push_back(XXH3_64bits_withSeed(arena.data(), arena.size(), seed));
+    const size_t length = marks == nullptr ? points : marks[points];
+    out->push_back(XXH3_64bits_withSeed(arena, length, seed));
     return;
   }
   out->reserve(points - k + 1);
   for (size_t i = 0; i + k <= points; ++i) {
-    const size_t begin = marks.empty() ? i : marks[i];
-    const size_t end = marks.empty() ? i + k : marks[i + k];
-    out->push_back(XXH3_64bits_withSeed(arena.data() + begin, end - begin, seed));
+    const size_t begin = marks == nullptr ? i : marks[i];
+    const size_t end = marks == nullptr ? i + k : marks[i + k];
+    out->push_back(XXH3_64bits_withSeed(arena + begin, end - begin, seed));
   }
 }
 
@@ -169,33 +184,58 @@ absl::Status Shingler::Shingle(std::string_view utf8, ShingleSet* out,
   }
   TextStats local;
   local.ascii_path = ascii_fast_path_ && IsAscii(utf8);
-  std::string& arena = impl_->arena;
-  std::vector<uint32_t>& marks = impl_->marks;
-  arena.clear();
-  marks.clear();
   const bool words = settings_.mode == ShingleMode::kWord;
   if (local.ascii_path) {
-    if (words) AsciiWordArena(utf8, &arena, &marks);
-    else AsciiCharArena(utf8, &arena);
+    local.tokens = static_cast<uint32_t>(words ? ShingleAsciiWords(utf8, out)
+                                               : ShingleAsciiChars(utf8, out));
   } else {
     absl::StatusOr<uint32_t> replaced = impl_->icu->Normalize(utf8);
     if (!replaced.ok()) return replaced.status();
     local.invalid_utf8 = *replaced;
-    if (words) IcuWordArena(*impl_->icu, &arena, &marks);
-    else IcuCharArena(impl_->icu->normalized(), &arena, &marks);
+    local.tokens = static_cast<uint32_t>(words ? ShingleIcuWords(out)
+                                               : ShingleIcuChars(out));
   }
-  if (words) {
-    local.tokens = static_cast<uint32_t>(marks.size() - 1);
-    HashWordWindows(arena, marks, settings_.k, settings_.seed, out);
-  } else {
-    local.tokens = static_cast<uint32_t>(marks.empty() ? arena.size()
-                                                       : marks.size() - 1);
-    HashCharWindows(arena, marks, settings_.k, settings_.seed, out);
-  }
-  std::sort(out->begin(), out->end());
-  out->erase(std::unique(out->begin(), out->end()), out->end());
+  text_internal::SortUniqueHashes(out, &impl_->sort_scratch,
+                                  &impl_->sort_counts);
   if (stats != nullptr) *stats = local;
   return absl::OkStatus();
+}
+
+size_t Shingler::ShingleAsciiWords(std::string_view text, ShingleSet* out) {
+  const auto* p = reinterpret_cast<const unsigned char*>(text.data());
+  char* arena = impl_->ascii_arena.Reserve(text.size() + 17);
+  uint32_t* marks = impl_->ascii_marks.Reserve(text.size() / 2 + 2);
+  const size_t tokens =
+      text_internal::FoldAsciiWords(p, text.size(), arena, marks);
+  HashWordWindows(arena, marks, tokens, settings_.k, settings_.seed, out);
+  return tokens;
+}
+
+size_t Shingler::ShingleAsciiChars(std::string_view text, ShingleSet* out) {
+  char* arena = impl_->ascii_arena.Reserve(text.size());
+  const size_t points = AsciiCharArena(text, arena);
+  HashCharWindows(arena, nullptr, points, settings_.k, settings_.seed, out);
+  return points;
+}
+
+size_t Shingler::ShingleIcuWords(ShingleSet* out) {
+  impl_->arena.clear();
+  impl_->marks.clear();
+  IcuWordArena(*impl_->icu, &impl_->arena, &impl_->marks);
+  const size_t tokens = impl_->marks.size() - 1;
+  HashWordWindows(impl_->arena.data(), impl_->marks.data(), tokens,
+                  settings_.k, settings_.seed, out);
+  return tokens;
+}
+
+size_t Shingler::ShingleIcuChars(ShingleSet* out) {
+  impl_->arena.clear();
+  impl_->marks.clear();
+  IcuCharArena(impl_->icu->normalized(), &impl_->arena, &impl_->marks);
+  const size_t points = impl_->marks.size() - 1;
+  HashCharWindows(impl_->arena.data(), impl_->marks.data(), points,
+                  settings_.k, settings_.seed, out);
+  return points;
 }
 
 }  // namespace kindred

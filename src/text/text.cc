@@ -28,18 +28,21 @@ absl::Status CheckLength(std::string_view utf8) {
 }
 
 std::vector<Token> AsciiTokens(std::string_view text) {
-  std::vector<Token> tokens;
-  const auto* p = reinterpret_cast<const unsigned char*>(text.data());
-  text_internal::ForEachAsciiWord(p, text.size(), [&](size_t b, size_t e) {
-    Token token;
-    token.text.reserve(e - b);
-    for (size_t i = b; i < e; ++i) {
-      token.text.push_back(text_internal::AsciiFold(p[i]));
-    }
-    token.begin = static_cast<uint32_t>(b);
-    token.end = static_cast<uint32_t>(e);
-    tokens.push_back(std::move(token));
-  });
+  const size_t n = text.size();
+  std::string arena(n + 17, '\0');
+  std::vector<uint32_t> word_begin(n / 2 + 2);
+  std::vector<uint32_t> span_begin(n / 2 + 1);
+  std::vector<uint32_t> span_end(n / 2 + 1);
+  const size_t words = text_internal::FoldAsciiWordsWithSpans(
+      reinterpret_cast<const unsigned char*>(text.data()), n, arena.data(),
+      word_begin.data(), span_begin.data(), span_end.data());
+  std::vector<Token> tokens(words);
+  for (size_t i = 0; i < words; ++i) {
+    const uint32_t begin = word_begin[i];
+    tokens[i].text.assign(arena, begin, word_begin[i + 1] - 1 - begin);
+    tokens[i].begin = span_begin[i];
+    tokens[i].end = span_end[i];
+  }
   return tokens;
 }
 
