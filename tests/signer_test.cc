@@ -174,6 +174,32 @@ TEST_CASE("signatures of a fixed set are pinned", "[signer]") {
                                                0x00a7857d, 0x013ee3a5});
 }
 
+TEST_CASE("densification of a sparse set is pinned", "[signer]") {
+  // Three shingles in 128 bins: of the 125 empty bins, 38 find a filled bin
+  // within the first 16 probes, 63 within probes 17..64 and 24 by the
+  // circular scan. Recorded with the same separate Python implementation as
+  // above. Digit i means the slot holds the i-th smallest of the 3 values.
+  std::vector<uint64_t> three;
+  for (int i = 0; i < 3; ++i) {
+    const std::string text = "shingle " + std::to_string(i);
+    three.push_back(XXH3_64bits_withSeed(text.data(), text.size(), kDefaultSeed));
+  }
+  std::sort(three.begin(), three.end());
+  const std::vector<uint32_t> sig = MakeSigner(SignerScheme::kOnePermutation).Sign(three);
+  std::vector<uint32_t> values(sig.begin(), sig.end());
+  std::sort(values.begin(), values.end());
+  values.erase(std::unique(values.begin(), values.end()), values.end());
+  CHECK(values == std::vector<uint32_t>{0x0e8bcf4e, 0xfc35096c, 0xfffea11c});
+  std::string pattern;
+  for (uint32_t slot : sig) {
+    pattern +=
+        static_cast<char>('0' + (std::find(values.begin(), values.end(), slot) - values.begin()));
+  }
+  CHECK(pattern ==
+        "2012120010010200110012102020222200100111100012211200111211011100"
+        "1120002221111110000100000021120011111102022001121002221002020001");
+}
+
 TEST_CASE("the empty set's signature is all empty slots and matches nothing", "[signer]") {
   for (SignerScheme scheme : {SignerScheme::kOnePermutation, SignerScheme::kClassic}) {
     const Signer signer = MakeSigner(scheme);

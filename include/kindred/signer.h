@@ -17,9 +17,13 @@
 //    (Shrivastava 2017, "Optimal Densification for Fast and Accurate Minwise
 //    Hashing"). Each shingle is hashed once; the high bits pick one of `perms`
 //    bins, the low 32 bits are its value, and each bin keeps its least value.
-//    An empty bin copies the value of the first non-empty bin along a fixed,
-//    seeded probe sequence of its own, identical for every document. Cost
-//    O(m + perms) in expectation.
+//    An empty bin b copies the value of the first bin filled by the set among
+//    the probes Mix64(probe_seed ^ (b << 32 | a)) reduced to [0, perms), for
+//    a = 1, 2, ..., 64; if none of the 64 is filled (only for sets much
+//    smaller than perms), the first filled bin at or after the 64th probe,
+//    circularly. The sequences are the same for every document, so copies
+//    stay comparable and the estimate stays unbiased. Cost O(m + perms) in
+//    expectation, at most O(m + 64 * perms).
 //
 // Slot values of a non-empty set are never kEmptySlot; every slot of the empty
 // set's signature is kEmptySlot, and empty slots never agree, so an empty
@@ -30,6 +34,7 @@
 #ifndef KINDRED_SIGNER_H_
 #define KINDRED_SIGNER_H_
 
+#include <array>
 #include <cstdint>
 #include <vector>
 
@@ -68,11 +73,18 @@ class Signer {
   void SignClassic(absl::Span<const uint64_t> shingles, absl::Span<uint32_t> out) const;
   void SignOnePermutation(absl::Span<const uint64_t> shingles, absl::Span<uint32_t> out) const;
 
+  // Densification (one permutation): the bins a set filled, one bit each.
+  using BinBitmap = std::array<uint64_t, 64>;
+  uint32_t Probe(uint32_t bin, uint32_t attempt) const;
+  uint32_t SourceBin(uint32_t bin, const BinBitmap& filled) const;
+
   SignerScheme scheme_;
   uint32_t perms_;
   uint64_t value_seed_;               // one permutation: the seed re-mixed into each shingle
   uint64_t probe_seed_;               // one permutation: the seed of the probe sequences
   std::vector<uint64_t> slot_seeds_;  // classic: s_i, one per slot
+  // One permutation: Probe(bin, 1..kTabledProbes) for each bin.
+  std::vector<uint16_t> probe_table_;
 };
 
 // The signature estimate of Jaccard similarity: the fraction of slots where

@@ -31,6 +31,8 @@ constexpr uint32_t kMaxPerms = 4096;
 // falling back to a circular scan from the last probe (bounds the cost of very
 // short documents at perms * kMaxProbes hashes).
 constexpr uint32_t kMaxProbes = 64;
+// The first probes of every bin are computed once per Signer and tabled.
+constexpr uint32_t kTabledProbes = 16;
 
 // Distinct constants keep the derived seeds of one settings seed apart.
 constexpr uint64_t kValueSeedTweak = 0x5ca1ab1e0ddba11ULL;
@@ -55,7 +57,8 @@ void MinOverSlots(const uint64_t* shingles, size_t count, const uint64_t* slot_s
   }
 }
 
-// Bitmap of the bins a set filled before densification.
+// Bitmap of the bins a set filled before densification (the type of
+// Signer::BinBitmap).
 using BinBitmap = std::array<uint64_t, kMaxPerms / 64>;
 
 bool Has(const BinBitmap& bins, uint32_t bin) { return (bins[bin >> 6] >> (bin & 63)) & 1; }
@@ -82,6 +85,15 @@ Signer::Signer(const SignatureSettings& settings)
       value_seed_(Mix64(settings.seed ^ kValueSeedTweak)),
       probe_seed_(Mix64(settings.seed ^ kProbeSeedTweak)) {
   assert(settings.Validate().ok());
+  if (scheme_ == SignerScheme::kOnePermutation) {
+    probe_table_.resize(size_t{perms_} * kTabledProbes);
+    for (uint32_t bin = 0; bin < perms_; ++bin) {
+      for (uint32_t attempt = 1; attempt <= kTabledProbes; ++attempt) {
+        probe_table_[size_t{bin} * kTabledProbes + attempt - 1] =
+            static_cast<uint16_t>(Probe(bin, attempt));
+      }
+    }
+  }
   if (scheme_ == SignerScheme::kClassic) {
     // s_i: SplitMix64 outputs from the settings seed, one per slot.
     slot_seeds_.resize(perms_);
@@ -141,19 +153,32 @@ void Signer::SignOnePermutation(absl::Span<const uint64_t> shingles,
   // (the same sequence for every document, so copies stay comparable).
   // Only bins filled above are read, so the order of filling does not matter.
   for (uint32_t bin = 0; bin < perms_; ++bin) {
-    if (Has(filled, bin)) continue;
-    uint32_t source = 0;
-    for (uint32_t attempt = 1;; ++attempt) {
-      const uint64_t key = (uint64_t{bin} << 32) | attempt;
-      source = ReduceHigh(Mix64(key ^ probe_seed_), perms_);
-      if (Has(filled, source)) break;
-      if (attempt == kMaxProbes) {
-        source = NextFilled(filled, source, perms_);
-        break;
-      }
-    }
-    bins[bin] = bins[source];
+    if (!Has(filled, bin)) bins[bin] = bins[SourceBin(bin, filled)];
   }
+}
+
+uint32_t Signer::Probe(uint32_t bin, uint32_t attempt) const {
+  const uint64_t key = (uint64_t{bin} << 32) | attempt;
+  return ReduceHigh(Mix64(key ^ probe_seed_), perms_);
+}
+
+// The first filled bin among Probe(bin, 1), Probe(bin, 2), ...,
+// Probe(bin, kMaxProbes); failing those, the first filled bin at or after the
+// last probe, circularly. Requires at least one filled bin.
+uint32_t Signer::SourceBin(uint32_t bin, const BinBitmap& filled) const {
+  // The tabled probes, tested eight at a time without branches.
+  const uint16_t* probes = &probe_table_[size_t{bin} * kTabledProbes];
+  for (uint32_t group = 0; group < kTabledProbes; group += 8) {
+    uint32_t hits = 0;
+    for (uint32_t i = 0; i < 8; ++i) hits |= uint32_t{Has(filled, probes[group + i])} << i;
+    if (hits != 0) return probes[group + std::countr_zero(hits)];
+  }
+  uint32_t source = 0;
+  for (uint32_t attempt = kTabledProbes + 1; attempt <= kMaxProbes; ++attempt) {
+    source = Probe(bin, attempt);
+    if (Has(filled, source)) return source;
+  }
+  return NextFilled(filled, source, perms_);
 }
 
 double EstimateJaccard(absl::Span<const uint32_t> a, absl::Span<const uint32_t> b) {
