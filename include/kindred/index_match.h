@@ -20,6 +20,7 @@
 #include "absl/status/statusor.h"
 #include "kindred/groups.h"
 #include "kindred/index.h"
+#include "kindred/records.h"
 #include "kindred/settings.h"
 #include "kindred/signed_corpus.h"
 #include "kindred/sweep.h"
@@ -57,6 +58,13 @@ struct IndexMatchOptions {
 absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& reader,
                                                           const SignedCorpus& batch,
                                                           const IndexMatchOptions& options);
+
+// Match records (README.md, "Output fields"): one per match, columns id,
+// match, match_in (index or batch), jaccard, estimate,
+// containment_id_in_match, containment_match_in_id, shared, shingles_id,
+// shingles_match. Appends to *out.
+void WriteMatchRecords(RecordFormat format, absl::Span<const IndexMatch> matches,
+                       const IndexReader& reader, const SignedCorpus& batch, std::string* out);
 
 // The live documents of an index as a signed corpus (index order; shingle
 // sets verified), with numbers[i] = the index document number of entry i.

@@ -42,6 +42,12 @@ int Fail(const absl::Status& status);
 // Registration of each command (one per file).
 void RegisterSweep(CLI::App& app, int* exit_code);
 void RegisterPlan(CLI::App& app, int* exit_code);
+void RegisterBuild(CLI::App& app, int* exit_code);
+void RegisterAdd(CLI::App& app, int* exit_code);
+void RegisterCheck(CLI::App& app, int* exit_code);
+void RegisterInfo(CLI::App& app, int* exit_code);
+void RegisterAudit(CLI::App& app, int* exit_code);
+void RegisterCompact(CLI::App& app, int* exit_code);
 
 }  // namespace kindred::cli
 

@@ -43,6 +43,12 @@ int main(int argc, char** argv) {
   int exit_code = kExitOk;
   RegisterSweep(app, &exit_code);
   RegisterPlan(app, &exit_code);
+  RegisterBuild(app, &exit_code);
+  RegisterAdd(app, &exit_code);
+  RegisterCheck(app, &exit_code);
+  RegisterInfo(app, &exit_code);
+  RegisterAudit(app, &exit_code);
+  RegisterCompact(app, &exit_code);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

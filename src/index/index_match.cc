@@ -75,6 +75,27 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
   return matches;
 }
 
+void WriteMatchRecords(RecordFormat format, absl::Span<const IndexMatch> matches,
+                       const IndexReader& reader, const SignedCorpus& batch, std::string* out) {
+  RecordWriter writer(format,
+                      {"id", "match", "match_in", "jaccard", "estimate", "containment_id_in_match",
+                       "containment_match_in_id", "shared", "shingles_id", "shingles_match"},
+                      out);
+  for (const IndexMatch& m : matches) {
+    writer.String(batch.id(m.query));
+    writer.String(m.in_index ? reader.id(m.other) : std::string_view(batch.id(m.other)));
+    writer.String(m.in_index ? "index" : "batch");
+    writer.Similarity(m.jaccard);
+    writer.Similarity(m.estimate);
+    writer.Similarity(m.QueryInOther());
+    writer.Similarity(m.OtherInQuery());
+    writer.Number(m.shared);
+    writer.Number(m.query_size);
+    writer.Number(m.other_size);
+    writer.EndRow();
+  }
+}
+
 absl::Status LoadIndexedCorpus(const IndexReader& reader, SignedCorpus* out,
                                std::vector<uint32_t>* numbers) {
   std::vector<uint64_t> shingles;

@@ -1,0 +1,146 @@
+// kindred check: match documents (uploads) against an index, read-only.
+//
+// Exit status: 0, or 1 with --fail-on-match when any upload matched an
+// indexed document, so a shell script can gate on it.
+#include <cstdio>
+
+#include "absl/strings/str_format.h"
+#include "cli/cli.h"
+#include "cli/common_options.h"
+#include "cli/output.h"
+#include "kindred/index.h"
+#include "kindred/index_match.h"
+#include "kindred/records.h"
+#include "kindred/signed_corpus.h"
+#include "kindred/text.h"
+
+namespace kindred::cli {
+namespace {
+
+struct CheckFlags {
+  std::string index;
+  std::vector<std::string> inputs;
+  InputFlags input;
+  SignatureFlags signature;
+  MatchFlags match;
+  GeneralFlags general;
+  std::string format = "jsonl";
+  bool fail_on_match = false;
+  bool signature_given = false;  // any signature option on the command line
+  bool threshold_given = false;
+  bool measure_given = false;
+};
+
+// Checks the stored settings against the command's; prints warnings.
+absl::Status CheckSettings(const CheckFlags& flags, const IndexReader& reader) {
+  SignatureSettings wanted = reader.settings().signature;
+  if (flags.signature_given) {
+    auto given = ToSignatureSettings(flags.signature);
+    if (!given.ok()) return given.status();
+    wanted = *given;
+  }
+  std::vector<std::string> warnings;
+  absl::Status status =
+      CheckIndexSettings(reader.settings(), wanted, UnicodeVersionString(), &warnings);
+  for (const std::string& warning : warnings) {
+    std::fprintf(stderr, "kindred: warning: %s\n", warning.c_str());
+  }
+  return status;
+}
+
+absl::StatusOr<MatchSettings> QueryMatch(const CheckFlags& flags, IndexReader* reader) {
+  MatchFlags match_flags = flags.match;
+  if (!flags.threshold_given) match_flags.threshold = reader->settings().threshold;
+  if (!flags.measure_given) match_flags.measure = MeasureName(reader->settings().measure);
+  auto match = ToMatchSettings(match_flags, reader->settings().signature);
+  if (!match.ok()) return match.status();
+  if (match->bands != 0) {
+    if (absl::Status status = reader->UseBanding(match->bands, match->rows); !status.ok()) {
+      return status;
+    }
+  }
+  return match;
+}
+
+int RunCheck(const CheckFlags& flags) {
+  auto format = ParseRecordFormat(flags.format);
+  if (!format.ok()) return Fail(kExitUsage, format.status());
+  auto input_options = ToInputOptions(flags.input);
+  if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
+  auto reader = IndexReader::Open(flags.index);
+  if (!reader.ok()) return Fail(reader.status());
+  if ((*reader)->torn_tail_bytes() > 0 && !flags.general.quiet) {
+    std::fprintf(stderr, "kindred: warning: index %s has a torn tail of %llu bytes (ignored)\n",
+                 flags.index.c_str(),
+                 static_cast<unsigned long long>((*reader)->torn_tail_bytes()));
+  }
+  if (absl::Status status = CheckSettings(flags, **reader); !status.ok()) {
+    return Fail(absl::IsFailedPrecondition(status) ? kExitIndexMismatch : kExitUsage, status);
+  }
+  auto match = QueryMatch(flags, reader->get());
+  if (!match.ok()) return Fail(kExitUsage, match.status());
+  auto corpus_reader = CorpusReader::Open(flags.inputs, *input_options);
+  if (!corpus_reader.ok()) return Fail(kExitInput, corpus_reader.status());
+  SignOptions sign;
+  sign.threads = ThreadCount(flags.general);
+  SignedCorpus uploads((*reader)->settings().signature.perms);
+  SignStats stats;
+  absl::Status signed_status =
+      SignCorpus(**corpus_reader, (*reader)->settings().signature, sign, &uploads, &stats);
+  if (!signed_status.ok()) return Fail(signed_status);
+  IndexMatchOptions options{*match, sign.threads, false};
+  auto matches = MatchAgainstIndex(**reader, uploads, options);
+  if (!matches.ok()) return Fail(matches.status());
+  std::string out;
+  WriteMatchRecords(*format, *matches, **reader, uploads, &out);
+  if (absl::Status written = WriteOutputFile("-", out); !written.ok()) {
+    return Fail(kExitOutput, written);
+  }
+  std::vector<bool> matched(uploads.size());
+  size_t matched_count = 0;
+  for (const IndexMatch& m : *matches) {
+    if (m.in_index && !matched[m.query]) matched[m.query] = true, ++matched_count;
+  }
+  if (!flags.general.quiet) {
+    std::fprintf(stderr,
+                 "kindred check: %zu documents checked against %u indexed (%s >= %g, %u bands x "
+                 "%u rows): %zu match indexed documents, %llu empty\n",
+                 uploads.size(), (*reader)->live_count(), MeasureName(match->measure),
+                 match->threshold, (*reader)->bands(), (*reader)->rows(), matched_count,
+                 static_cast<unsigned long long>(stats.empty_documents));
+  }
+  return flags.fail_on_match && matched_count > 0 ? kExitMatched : kExitOk;
+}
+
+}  // namespace
+
+void RegisterCheck(CLI::App& app, int* exit_code) {
+  auto flags = std::make_shared<CheckFlags>();
+  CLI::App* command = app.add_subcommand(
+      "check", "Match documents (uploads) against an index without changing it");
+  command->add_option("index", flags->index, "the index file")->required();
+  command->add_option("inputs", flags->inputs,
+                      "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
+                      "standard input")
+      ->required();
+  AddInputOptions(command, &flags->input);
+  AddSignatureOptions(command, &flags->signature);
+  AddMatchOptions(command, &flags->match);
+  command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
+      ->default_str("jsonl")
+      ->group("Output");
+  command->add_flag("--fail-on-match", flags->fail_on_match,
+                    "exit with status 1 when any document matches an indexed document")
+      ->group("Output");
+  AddGeneralOptions(command, &flags->general);
+  command->callback([flags, command, exit_code] {
+    for (const char* name : {"--shingle", "--shingle-size", "--perms", "--signer", "--seed"}) {
+      flags->signature_given |= command->count(name) > 0;
+    }
+    flags->threshold_given = command->count("--threshold") > 0;
+    flags->measure_given = command->count("--measure") > 0;
+    *exit_code = RunCheck(*flags);
+  });
+}
+
+}  // namespace kindred::cli

@@ -1,0 +1,56 @@
+// kindred compact: merge an index's segments into one, dropping replaced
+// documents, atomically (a crash leaves the old file intact).
+#include <cstdio>
+
+#include "cli/cli.h"
+#include "kindred/index_writer.h"
+
+namespace kindred::cli {
+namespace {
+
+struct CompactFlags {
+  std::string index;
+  uint32_t bands = 0;
+  uint32_t rows = 0;
+  bool quiet = false;
+};
+
+int RunCompact(const CompactFlags& flags) {
+  auto result = CompactIndex(flags.index, CompactOptions{flags.bands, flags.rows});
+  if (!result.ok()) {
+    switch (result.status().code()) {
+      case absl::StatusCode::kResourceExhausted:
+      case absl::StatusCode::kAborted:
+      case absl::StatusCode::kPermissionDenied:
+        return Fail(kExitOutput, result.status());
+      case absl::StatusCode::kInvalidArgument:
+        return Fail(kExitUsage, result.status());
+      default:
+        return Fail(result.status());
+    }
+  }
+  if (!flags.quiet) {
+    std::fprintf(stderr,
+                 "kindred compact: %s: %u segments, %u documents -> 1 segment, %u documents; "
+                 "%llu -> %llu bytes\n",
+                 flags.index.c_str(), result->segments_before, result->documents_before,
+                 result->documents_after, static_cast<unsigned long long>(result->bytes_before),
+                 static_cast<unsigned long long>(result->bytes_after));
+  }
+  return kExitOk;
+}
+
+}  // namespace
+
+void RegisterCompact(CLI::App& app, int* exit_code) {
+  auto flags = std::make_shared<CompactFlags>();
+  CLI::App* command = app.add_subcommand(
+      "compact", "Merge an index's segments into one, dropping replaced documents");
+  command->add_option("index", flags->index, "the index file")->required();
+  command->add_option("--bands", flags->bands, "store band keys for this many bands (with --rows)");
+  command->add_option("--rows", flags->rows, "rows per band of the stored band keys");
+  command->add_flag("-q,--quiet", flags->quiet, "no summary on stderr");
+  command->callback([flags, exit_code] { *exit_code = RunCompact(*flags); });
+}
+
+}  // namespace kindred::cli

@@ -1,0 +1,112 @@
+// kindred info: describe an index: settings, counts, segments, sizes, the
+// stored band/row choice and its candidate probability at the threshold.
+#include <cstdio>
+
+#include "absl/strings/str_format.h"
+#include "cli/cli.h"
+#include "cli/output.h"
+#include "kindred/banding.h"
+#include "kindred/index.h"
+#include "kindred/records.h"
+#include "kindred/text.h"
+
+namespace kindred::cli {
+namespace {
+
+struct InfoFlags {
+  std::string index;
+  std::string format = "text";
+};
+
+std::string TextReport(const IndexReader& reader) {
+  const IndexSettings& s = reader.settings();
+  std::string out;
+  absl::StrAppendFormat(&out, "index            %s\n", reader.path());
+  absl::StrAppendFormat(&out, "format version   1\n");
+  absl::StrAppendFormat(&out, "signature        %s\n", s.signature.ToString());
+  absl::StrAppendFormat(&out, "unicode          %s%s\n", s.unicode_version,
+                        s.unicode_version == UnicodeVersionString()
+                            ? ""
+                            : absl::StrFormat(" (this program: %s)", UnicodeVersionString()));
+  absl::StrAppendFormat(&out, "banding          %u bands x %u rows (%u of %u slots)\n", s.bands,
+                        s.rows, s.bands * s.rows, s.signature.perms);
+  absl::StrAppendFormat(&out, "threshold        %s >= %g (candidate probability there %.4f)\n",
+                        MeasureName(s.measure), s.threshold,
+                        CandidateProbability(s.threshold, s.bands, s.rows));
+  absl::StrAppendFormat(&out, "documents        %u live, %u retired, %u in all\n",
+                        reader.live_count(), reader.document_count() - reader.live_count(),
+                        reader.document_count());
+  absl::StrAppendFormat(&out, "size             %u bytes (%u committed)\n", reader.file_size(),
+                        reader.committed_size());
+  if (reader.torn_tail_bytes() > 0) {
+    absl::StrAppendFormat(&out,
+                          "torn tail        %u bytes at byte %u (an interrupted write; ignored; "
+                          "the next add or audit --repair cuts it off)\n",
+                          reader.torn_tail_bytes(), reader.committed_size());
+  }
+  absl::StrAppendFormat(&out, "segments         %u\n", reader.segments().size());
+  absl::StrAppendFormat(&out, "  %7s %12s %12s %10s %10s %8s %12s %12s\n", "segment", "offset",
+                        "bytes", "first_doc", "documents", "retired", "band_keys",
+                        "shingle_bytes");
+  for (const SegmentInfo& seg : reader.segments()) {
+    absl::StrAppendFormat(&out, "  %7u %12u %12u %10u %10u %8u %12u %12u\n", seg.number,
+                          seg.offset, seg.bytes, seg.first_doc, seg.documents, seg.retired,
+                          seg.band_keys, seg.shingle_bytes);
+  }
+  return out;
+}
+
+std::string JsonReport(const IndexReader& reader) {
+  const IndexSettings& s = reader.settings();
+  std::string out = "{\"index\":";
+  AppendJsonString(&out, reader.path());
+  absl::StrAppendFormat(&out,
+                        ",\"format_version\":1,\"shingle\":\"%s\",\"k\":%u,\"seed\":%u,"
+                        "\"signer\":\"%s\",\"perms\":%u,\"unicode\":",
+                        ShingleModeName(s.signature.mode), s.signature.k, s.signature.seed,
+                        SignerSchemeName(s.signature.scheme), s.signature.perms);
+  AppendJsonString(&out, s.unicode_version);
+  absl::StrAppendFormat(&out,
+                        ",\"bands\":%u,\"rows\":%u,\"threshold\":%g,\"measure\":\"%s\","
+                        "\"documents\":%u,\"live\":%u,\"file_bytes\":%u,\"committed_bytes\":%u,"
+                        "\"torn_tail_bytes\":%u,\"segments\":[",
+                        s.bands, s.rows, s.threshold, MeasureName(s.measure),
+                        reader.document_count(), reader.live_count(), reader.file_size(),
+                        reader.committed_size(), reader.torn_tail_bytes());
+  for (const SegmentInfo& seg : reader.segments()) {
+    absl::StrAppendFormat(&out,
+                          "%s{\"segment\":%u,\"offset\":%u,\"bytes\":%u,\"first_doc\":%u,"
+                          "\"documents\":%u,\"retired\":%u,\"band_keys\":%u,"
+                          "\"shingle_bytes\":%u}",
+                          seg.number == 0 ? "" : ",", seg.number, seg.offset, seg.bytes,
+                          seg.first_doc, seg.documents, seg.retired, seg.band_keys,
+                          seg.shingle_bytes);
+  }
+  out += "]}\n";
+  return out;
+}
+
+int RunInfo(const InfoFlags& flags) {
+  auto reader = IndexReader::Open(flags.index);
+  if (!reader.ok()) return Fail(reader.status());
+  std::string out = flags.format == "json" ? JsonReport(**reader) : TextReport(**reader);
+  if (absl::Status written = WriteOutputFile("-", out); !written.ok()) {
+    return Fail(kExitOutput, written);
+  }
+  return kExitOk;
+}
+
+}  // namespace
+
+void RegisterInfo(CLI::App& app, int* exit_code) {
+  auto flags = std::make_shared<InfoFlags>();
+  CLI::App* command = app.add_subcommand(
+      "info", "Describe an index: settings, counts, segments, sizes, band/row choice");
+  command->add_option("index", flags->index, "the index file")->required();
+  command->add_option("--format", flags->format, "text or json")
+      ->check(CLI::IsMember({"text", "json"}))
+      ->default_str("text");
+  command->callback([flags, exit_code] { *exit_code = RunInfo(*flags); });
+}
+
+}  // namespace kindred::cli
