@@ -12,7 +12,9 @@
 //     for byte (compressed files stay compressed), under
 //     KeptOutput::copy_dir, at their relative path for trees and under their
 //     base name for single files ("stdin.txt" for text read from standard
-//     input); or their file paths, one per line, in KeptOutput::path_list.
+//     input, written decompressed from its copy); or their file paths, one
+//     per line, in KeptOutput::path_list.
+// Outputs that no input needs are not created.
 //
 // Nothing is passed off as complete when it is not: each output file is
 // written under a temporary name in its own directory, flushed with fsync and
@@ -78,7 +80,8 @@ struct KeptCounts {
 
 // Writes the kept documents as described above. Errors: InvalidArgument for
 // a missing or refused output (with the reason), FailedPrecondition when the
-// inputs changed, the reader's errors for the inputs, and the errno's code
+// inputs changed or cannot be read again (standard input read without a
+// copy, or a format still unknown), the reader's errors for the inputs, and the errno's code
 // for write failures (a full disk is ResourceExhausted).
 absl::StatusOr<KeptCounts> WriteKept(const KeptRequest& request);
 
