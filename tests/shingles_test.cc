@@ -252,6 +252,43 @@ TEST_CASE("the ASCII fast path gives ICU's shingle sets") {
   }
 }
 
+TEST_CASE("mostly-ASCII documents: split path gives ICU's shingle sets") {
+  // Documents that are ASCII except for scattered pieces chosen to interact
+  // with their neighbours: combining marks and Format/ZWJ characters right
+  // after a space (UAX #29 WB4 attaches them), U+2019 (MidNumLet, WB6/WB7),
+  // Hebrew letters next to '"' (WB7b/WB7c), regional indicators (WB15/WB16),
+  // ideographs and Thai (dictionary segmentation), NBSP and ideographic
+  // space (NFKC maps them to U+0020), and ill-formed bytes.
+  const std::vector<std::string> pieces = {
+      "\xCC\x81", "\xCC\x88", "\xE2\x80\x8D", "\xC2\xAD", "\xE2\x80\x99",
+      "\xD7\x90\"\xD7\x91", "\xD7\x90", "\xF0\x9F\x87\xAC\xF0\x9F\x87\xB7",
+      "\xE6\xB8\xAF\xE3\x81\xAE", "\xE0\xB8\xA0\xE0\xB8\xB2\xE0\xB8\xA9\xE0\xB8\xB2",
+      "\xC2\xA0", "\xE3\x80\x80", "\xFF", "\xE2\x82", "\xC3\xA9", "\xEF\xAC\x81",
+      "\xF0\x9F\x98\x80\xE2\x80\x8D\xF0\x9F\x98\x80"};
+  const std::string ascii = "ab Cd e1 2.5 x'y 3,4 _ __ a.b. \n \r\n:@q\t- ";
+  std::mt19937_64 random(99);  // sequence fixed by the C++ standard
+  for (int doc = 0; doc < 300; ++doc) {
+    std::string text;
+    const size_t parts = random() % 40;
+    for (size_t i = 0; i < parts; ++i) {
+      if (random() % 4 == 0) {
+        text += pieces[random() % pieces.size()];
+      } else {
+        text += ascii[random() % ascii.size()];
+      }
+    }
+    for (uint32_t k : {1u, 2u, 3u, 5u}) {
+      const auto settings = Settings(ShingleMode::kWord, k);
+      TextStats split_stats, icu_stats;
+      INFO("text: \"" << text << "\" k=" << k);
+      CHECK(SetOf(text, settings, true, &split_stats) ==
+            SetOf(text, settings, false, &icu_stats));
+      CHECK(split_stats.tokens == icu_stats.tokens);
+      CHECK(split_stats.invalid_utf8 == icu_stats.invalid_utf8);
+    }
+  }
+}
+
 // ---------------------------------------------------------------------------
 // The independent reference.
 

@@ -68,11 +68,13 @@ class Shingler {
   Shingler(const SignatureSettings& settings, bool ascii_fast_path,
            std::unique_ptr<Impl> impl);
   // Each appends the unsorted window hashes of one path to *out and returns
-  // the number of tokens or code points. The ICU ones read the text that
-  // impl_->icu has just normalized.
+  // the number of tokens or code points. ShingleIcuChars reads the text that
+  // impl_->icu has just normalized. ShingleOtherWords, for documents that
+  // are not all ASCII, sets *tokens and returns the replacement count.
   size_t ShingleAsciiWords(std::string_view text, ShingleSet* out);
   size_t ShingleAsciiChars(std::string_view text, ShingleSet* out);
-  size_t ShingleIcuWords(ShingleSet* out);
+  absl::StatusOr<uint32_t> ShingleOtherWords(std::string_view text,
+                                             ShingleSet* out, uint32_t* tokens);
   size_t ShingleIcuChars(ShingleSet* out);
 
   SignatureSettings settings_;

@@ -12,6 +12,7 @@
 #include "text/ascii_words.h"
 #include "text/hash_sort.h"
 #include "text/icu_words.h"
+#include "text/word_arena.h"
 #include "text/utf8.h"
 #include "unicode/uchar.h"
 #include "unicode/utf16.h"
@@ -55,8 +56,9 @@ class ScratchArray {
 // length); the ASCII path has no marks since there code point i is byte i.
 struct Shingler::Impl {
   std::unique_ptr<IcuWords> icu;
-  std::string arena;            // the ICU path's arena
-  std::vector<uint32_t> marks;  // the ICU path's marks
+  text_internal::WordArena words;  // word mode, documents not all ASCII
+  std::string arena;               // char mode, ICU path
+  std::vector<uint32_t> marks;     // char mode, ICU path
   ScratchArray<char> ascii_arena;
   ScratchArray<uint32_t> ascii_marks;
   std::vector<uint64_t> sort_scratch;
@@ -103,17 +105,6 @@ size_t AsciiCharArena(std::string_view text, char* out) {
     *out++ = text_internal::AsciiFold(c);
   }
   return out - start;
-}
-
-void IcuWordArena(IcuWords& icu, std::string* arena,
-                  std::vector<uint32_t>* marks) {
-  const char16_t* units = icu.normalized().getBuffer();
-  icu.ForEachWord([&](int32_t b, int32_t e) {
-    marks->push_back(static_cast<uint32_t>(arena->size()));
-    text_internal::AppendUtf8(units, b, e, arena);
-    arena->push_back(' ');
-  });
-  marks->push_back(static_cast<uint32_t>(arena->size()));
 }
 
 void IcuCharArena(const icu::UnicodeString& text, std::string* arena,
@@ -188,12 +179,15 @@ absl::Status Shingler::Shingle(std::string_view utf8, ShingleSet* out,
   if (local.ascii_path) {
     local.tokens = static_cast<uint32_t>(words ? ShingleAsciiWords(utf8, out)
                                                : ShingleAsciiChars(utf8, out));
+  } else if (words) {
+    absl::StatusOr<uint32_t> replaced = ShingleOtherWords(utf8, out, &local.tokens);
+    if (!replaced.ok()) return replaced.status();
+    local.invalid_utf8 = *replaced;
   } else {
     absl::StatusOr<uint32_t> replaced = impl_->icu->Normalize(utf8);
     if (!replaced.ok()) return replaced.status();
     local.invalid_utf8 = *replaced;
-    local.tokens = static_cast<uint32_t>(words ? ShingleIcuWords(out)
-                                               : ShingleIcuChars(out));
+    local.tokens = static_cast<uint32_t>(ShingleIcuChars(out));
   }
   text_internal::SortUniqueHashes(out, &impl_->sort_scratch,
                                   &impl_->sort_counts);
@@ -218,14 +212,21 @@ size_t Shingler::ShingleAsciiChars(std::string_view text, ShingleSet* out) {
   return points;
 }
 
-size_t Shingler::ShingleIcuWords(ShingleSet* out) {
-  impl_->arena.clear();
-  impl_->marks.clear();
-  IcuWordArena(*impl_->icu, &impl_->arena, &impl_->marks);
-  const size_t tokens = impl_->marks.size() - 1;
-  HashWordWindows(impl_->arena.data(), impl_->marks.data(), tokens,
-                  settings_.k, settings_.seed, out);
-  return tokens;
+absl::StatusOr<uint32_t> Shingler::ShingleOtherWords(std::string_view text,
+                                                     ShingleSet* out,
+                                                     uint32_t* tokens) {
+  text_internal::WordArena& arena = impl_->words;
+  arena.Clear();
+  absl::StatusOr<uint32_t> replaced =
+      ascii_fast_path_
+          ? text_internal::AppendMixedWords(text, *impl_->icu, &arena)
+          : text_internal::AppendIcuWords(text, *impl_->icu, &arena);
+  if (!replaced.ok()) return replaced.status();
+  *tokens = static_cast<uint32_t>(arena.marks.size());
+  arena.marks.push_back(static_cast<uint32_t>(arena.text.size()));
+  HashWordWindows(arena.text.data(), arena.marks.data(), *tokens, settings_.k,
+                  settings_.seed, out);
+  return replaced;
 }
 
 size_t Shingler::ShingleIcuChars(ShingleSet* out) {
