@@ -1,5 +1,5 @@
 # End to end: `kindred sweep` on real files, its outputs and exit codes.
-source "$(dirname "$0")/lib.sh"
+source "$(dirname "$0")/common.bash"
 
 # A small corpus: two near-duplicate stories, an exact copy, an unrelated
 # story, an empty document and one with broken UTF-8.
