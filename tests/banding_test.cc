@@ -98,9 +98,9 @@ TEST_CASE("observed candidate rates match the S-curve", "[banding]") {
     Banding banding;
     int pairs;
   };
-  for (const Case& c : {Case{SignerScheme::kOnePermutation, {16, 8}, 3000},
-                        Case{SignerScheme::kOnePermutation, {32, 4}, 3000},
-                        Case{SignerScheme::kClassic, {16, 8}, 600}}) {
+  for (const Case& c : {Case{SignerScheme::kOnePermutation, {16, 8}, 2000},
+                        Case{SignerScheme::kOnePermutation, {32, 4}, 2000},
+                        Case{SignerScheme::kClassic, {16, 8}, 400}}) {
     for (int tenths : {3, 5, 6, 7, 8, 9}) {
       CAPTURE(SignerSchemeName(c.scheme), c.banding.bands, c.banding.rows, tenths);
       const double expected = CandidateProbability(tenths / 10.0, c.banding.bands, c.banding.rows);
