@@ -57,7 +57,8 @@ class Shingler {
   // Clears *out and fills it with the shingle set of `utf8`. Bad bytes never
   // fail a call: they become U+FFFD and are counted in *stats (when not null;
   // it is overwritten). Fails only if ICU fails (Internal) or the document is
-  // 4 GiB or longer (OutOfRange). `out` must not be null.
+  // too long (OutOfRange): 4 GiB or more, or a non-ASCII stretch of 2 GiB or
+  // more (the most an ICU string holds). `out` must not be null.
   absl::Status Shingle(std::string_view utf8, ShingleSet* out,
                        TextStats* stats = nullptr);
 

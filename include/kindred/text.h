@@ -66,13 +66,14 @@ std::string RepairUtf8(std::string_view bytes, uint32_t* replaced = nullptr);
 
 // Steps 1 and 2: the NFKC_Casefold form of the decoded input, as UTF-8.
 // `stats`, when not null, receives invalid_utf8 (other fields untouched).
-// Fails only if ICU fails (Internal).
+// Fails if ICU fails (Internal) or the input is 2 GiB or more (OutOfRange).
 absl::StatusOr<std::string> NormalizeText(std::string_view utf8,
                                           TextStats* stats = nullptr);
 
 // Steps 1 to 3: the kept word tokens in document order, with their spans.
-// Inputs longer than 4 GiB - 1 are rejected (OutOfRange) since spans are
-// 32-bit. With TextPath::kAscii, non-ASCII input is InvalidArgument.
+// Inputs of 4 GiB or more (spans are 32-bit), or of 2 GiB or more on the ICU
+// path, are OutOfRange. With TextPath::kAscii, non-ASCII input is
+// InvalidArgument.
 absl::StatusOr<std::vector<Token>> TokenizeWithSpans(
     std::string_view utf8, TextPath path = TextPath::kAuto);
 

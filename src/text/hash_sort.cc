@@ -47,7 +47,9 @@ void SortUniqueHashes(std::vector<uint64_t>* hashes,
   if (n < kSmallSort) {
     InsertionSort(hashes->data(), hashes->data() + n);
   } else {
-    const int bits = std::bit_width(n - 1);  // 2^bits >= n buckets
+    // About two elements per bucket: few enough buckets to keep the counts
+    // small, few enough elements per bucket for insertion sort.
+    const int bits = std::bit_width(n - 1) - 1;
     const size_t buckets = size_t{1} << bits;
     counts->assign(buckets + 1, 0);
     if (scratch->size() < n) scratch->resize(n);

@@ -1,5 +1,6 @@
 #include "text/icu_words.h"
 
+#include <cstdint>
 #include <utility>
 
 #include "absl/strings/str_cat.h"
@@ -30,7 +31,21 @@ absl::StatusOr<std::unique_ptr<IcuWords>> IcuWords::Create() {
   return std::unique_ptr<IcuWords>(new IcuWords(normalizer, std::move(words)));
 }
 
+namespace {
+
+// ICU strings hold at most 2^31 - 1 UTF-16 units.
+absl::Status CheckIcuLength(std::string_view utf8) {
+  if (utf8.size() >= static_cast<size_t>(INT32_MAX)) {
+    return absl::OutOfRangeError(absl::StrCat(
+        "non-ASCII text of ", utf8.size(), " bytes is over the 2 GiB limit"));
+  }
+  return absl::OkStatus();
+}
+
+}  // namespace
+
 absl::StatusOr<uint32_t> IcuWords::Normalize(std::string_view utf8) {
+  if (absl::Status s = CheckIcuLength(utf8); !s.ok()) return s;
   const uint32_t replaced = DecodeUtf8(utf8, &decoded_);
   UErrorCode status = U_ZERO_ERROR;
   normalizer_->normalize(decoded_, normalized_, status);
@@ -56,6 +71,7 @@ void IcuWords::AppendPiece(int32_t begin, int32_t end, uint32_t orig_begin,
 }
 
 absl::StatusOr<uint32_t> IcuWords::NormalizeWithSpans(std::string_view utf8) {
+  if (absl::Status s = CheckIcuLength(utf8); !s.ok()) return s;
   const uint32_t replaced = DecodeUtf8(utf8, &decoded_, &unit_begin_);
   normalized_.remove();
   span_begin_.clear();

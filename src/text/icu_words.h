@@ -27,7 +27,8 @@ class IcuWords {
 
   // Decodes `utf8` (ill-formed sequences become U+FFFD) and normalizes it
   // with NFKC_Casefold into normalized(). Returns the number of
-  // replacements, or Internal if ICU fails.
+  // replacements, OutOfRange for 2 GiB or more (the most an ICU string
+  // holds), or Internal if ICU fails.
   absl::StatusOr<uint32_t> Normalize(std::string_view utf8);
 
   // Same, and also records for each UTF-16 unit u of normalized() the byte

@@ -27,18 +27,22 @@ uint64_t HashShingle(std::string_view shingle_utf8, uint64_t seed) {
 
 namespace {
 
-// A grow-only array whose contents are not initialized; it gives memory back
-// when a much smaller document follows a huge one.
+// A grow-only array whose contents are not initialized.
 template <typename T>
 class ScratchArray {
  public:
   T* Reserve(size_t n) {
-    constexpr size_t kKeep = (size_t{64} << 20) / sizeof(T);
-    if (n > capacity_ || (capacity_ > kKeep && n < capacity_ / 4)) {
+    if (n > capacity_) {
+      data_.reset();  // before allocating: never hold both
       data_.reset(new T[n]);
       capacity_ = n;
     }
     return data_.get();
+  }
+
+  // Frees the array if it is over `bytes`.
+  void Trim(size_t bytes) {
+    if (capacity_ * sizeof(T) > bytes) data_.reset(), capacity_ = 0;
   }
 
  private:
@@ -63,6 +67,25 @@ struct Shingler::Impl {
   ScratchArray<uint32_t> ascii_marks;
   std::vector<uint64_t> sort_scratch;
   std::vector<uint32_t> sort_counts;
+
+  // After a huge document, gives back the scratch memory it needed, keeping
+  // what ordinary documents use.
+  void TrimScratch() {
+    constexpr size_t kKeepBytes = size_t{16} << 20;
+    ascii_arena.Trim(kKeepBytes);
+    ascii_marks.Trim(kKeepBytes);
+    TrimVector(&words.text, kKeepBytes);
+    TrimVector(&words.marks, kKeepBytes);
+    TrimVector(&arena, kKeepBytes);
+    TrimVector(&marks, kKeepBytes);
+    TrimVector(&sort_scratch, kKeepBytes);
+    TrimVector(&sort_counts, kKeepBytes);
+  }
+
+  template <typename Container>
+  static void TrimVector(Container* c, size_t bytes) {
+    if (c->capacity() * sizeof((*c)[0]) > bytes) Container().swap(*c);
+  }
 };
 
 Shingler::Shingler(const SignatureSettings& settings, bool ascii_fast_path,
@@ -191,6 +214,7 @@ absl::Status Shingler::Shingle(std::string_view utf8, ShingleSet* out,
   }
   text_internal::SortUniqueHashes(out, &impl_->sort_scratch,
                                   &impl_->sort_counts);
+  impl_->TrimScratch();
   if (stats != nullptr) *stats = local;
   return absl::OkStatus();
 }

@@ -71,6 +71,9 @@ absl::StatusOr<std::string> NormalizeText(std::string_view utf8,
   UErrorCode status = U_ZERO_ERROR;
   const icu::Normalizer2* normalizer =
       icu::Normalizer2::getNFKCCasefoldInstance(status);
+  if (utf8.size() >= static_cast<size_t>(INT32_MAX)) {
+    return absl::OutOfRangeError("text is over the 2 GiB limit");
+  }
   icu::UnicodeString decoded;
   icu::UnicodeString normalized;
   const uint32_t replaced = text_internal::DecodeUtf8(utf8, &decoded);
