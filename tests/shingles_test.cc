@@ -2,11 +2,12 @@
 // examples, pinned hashes, the ASCII fast path against ICU, and an
 // independent computation (tests/reference/shingle_reference.py, Python with
 // PyICU and python3-xxhash) on generated and sample documents.
-#include <catch2/catch.hpp>
+#include "kindred/shingles.h"
 
 #include <unistd.h>
 
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
@@ -19,7 +20,6 @@
 #include <vector>
 
 #include "kindred/settings.h"
-#include "kindred/shingles.h"
 #include "kindred/text.h"
 
 namespace kindred {
@@ -129,9 +129,10 @@ TEST_CASE("char shingles: whitespace runs fold to one space, trimmed") {
 TEST_CASE("invalid bytes become U+FFFD and are counted") {
   TextStats stats;
   const auto k1 = Settings(ShingleMode::kWord, 1);
-  const ShingleSet set = SetOf("ab\xFF"
-                               "cd \xE2\x82 ef",
-                               k1, true, &stats);
+  const ShingleSet set = SetOf(
+      "ab\xFF"
+      "cd \xE2\x82 ef",
+      k1, true, &stats);
   CHECK(stats.invalid_utf8 == 2);
   CHECK_FALSE(stats.ascii_path);
   CHECK(stats.tokens == 3);  // U+FFFD is not a word character
@@ -156,16 +157,19 @@ TEST_CASE("Greek, Japanese and Spanish") {
                 "\xCE\xB1"});  // καλημέρα
   // Halfwidth katakana ｶﾀｶﾅ is compatibility-equivalent to カタカナ.
   const auto k3 = Settings(ShingleMode::kChar, 3);
-  const std::string halfwidth = "\xEF\xBD\xB6\xEF\xBE\x80\xEF\xBD\xB6\xEF\xBE\x85";
-  const std::string fullwidth = "\xE3\x82\xAB\xE3\x82\xBF\xE3\x82\xAB\xE3\x83\x8A";
+  const std::string halfwidth =
+      "\xEF\xBD\xB6\xEF\xBE\x80\xEF\xBD\xB6\xEF\xBE\x85";
+  const std::string fullwidth =
+      "\xE3\x82\xAB\xE3\x82\xBF\xE3\x82\xAB\xE3\x83\x8A";
   CHECK(SetOf(halfwidth, k3) == SetOf(fullwidth, k3));
   CHECK(SetOf(halfwidth, k1) == SetOf(fullwidth, k1));
   CHECK(TextsOf(fullwidth, k1) == Strings{fullwidth});
   // Spanish: inverted marks are punctuation; n + U+0303 composes to ñ.
   CHECK(TextsOf("\xC2\xBFQu\xC3\xA9 tal? \xC2\xA1Ma\xC3\xB1"
                 "ana!",
-                k1) == Strings{"qu\xC3\xA9", "tal", "ma\xC3\xB1"
-                                                  "ana"});
+                k1) == Strings{"qu\xC3\xA9", "tal",
+                               "ma\xC3\xB1"
+                               "ana"});
   CHECK(SetOf("Man\xCC\x83"
               "ana",
               k3) == SetOf("ma\xC3\xB1"
@@ -225,18 +229,18 @@ TEST_CASE("pinned hashes: stored shingle sets must not drift") {
       "ana! \xE6\x97\xA5\xE6\x9C\xAC\xE8\xAA\x9E\xE3\x81\xA7\xE3\x81\x99";
   // "Καλημέρα κόσμε, ¡Mañana! 日本語です"
   CHECK(SetOf(mixed, Settings(ShingleMode::kWord, 3)) ==
-        ShingleSet{0x31fda0a1cc510d12, 0x74cb0468692f267e,
-                   0xf9d9be116ff65171});
+        ShingleSet{0x31fda0a1cc510d12, 0x74cb0468692f267e, 0xf9d9be116ff65171});
 }
 
 TEST_CASE("the ASCII fast path gives ICU's shingle sets") {
   std::mt19937_64 random(7);  // sequence fixed by the C++ standard
   const std::string alphabet =
       "aaaabbbccdeeeeHIJ0123456789 .,;:'_\"@\t\r\n\v\f-!?()";
-  const std::tuple<ShingleMode, uint32_t> cases[] = {
-      {ShingleMode::kWord, 1}, {ShingleMode::kWord, 3},
-      {ShingleMode::kWord, 5}, {ShingleMode::kChar, 3},
-      {ShingleMode::kChar, 5}};
+  const std::tuple<ShingleMode, uint32_t> cases[] = {{ShingleMode::kWord, 1},
+                                                     {ShingleMode::kWord, 3},
+                                                     {ShingleMode::kWord, 5},
+                                                     {ShingleMode::kChar, 3},
+                                                     {ShingleMode::kChar, 5}};
   for (int doc = 0; doc < 200; ++doc) {
     std::string text;
     const size_t length = random() % 300;
@@ -260,10 +264,22 @@ TEST_CASE("mostly-ASCII documents: split path gives ICU's shingle sets") {
   // ideographs and Thai (dictionary segmentation), NBSP and ideographic
   // space (NFKC maps them to U+0020), and ill-formed bytes.
   const std::vector<std::string> pieces = {
-      "\xCC\x81", "\xCC\x88", "\xE2\x80\x8D", "\xC2\xAD", "\xE2\x80\x99",
-      "\xD7\x90\"\xD7\x91", "\xD7\x90", "\xF0\x9F\x87\xAC\xF0\x9F\x87\xB7",
-      "\xE6\xB8\xAF\xE3\x81\xAE", "\xE0\xB8\xA0\xE0\xB8\xB2\xE0\xB8\xA9\xE0\xB8\xB2",
-      "\xC2\xA0", "\xE3\x80\x80", "\xFF", "\xE2\x82", "\xC3\xA9", "\xEF\xAC\x81",
+      "\xCC\x81",
+      "\xCC\x88",
+      "\xE2\x80\x8D",
+      "\xC2\xAD",
+      "\xE2\x80\x99",
+      "\xD7\x90\"\xD7\x91",
+      "\xD7\x90",
+      "\xF0\x9F\x87\xAC\xF0\x9F\x87\xB7",
+      "\xE6\xB8\xAF\xE3\x81\xAE",
+      "\xE0\xB8\xA0\xE0\xB8\xB2\xE0\xB8\xA9\xE0\xB8\xB2",
+      "\xC2\xA0",
+      "\xE3\x80\x80",
+      "\xFF",
+      "\xE2\x82",
+      "\xC3\xA9",
+      "\xEF\xAC\x81",
       "\xF0\x9F\x98\x80\xE2\x80\x8D\xF0\x9F\x98\x80"};
   const std::string ascii = "ab Cd e1 2.5 x'y 3,4 _ __ a.b. \n \r\n:@q\t- ";
   std::mt19937_64 random(99);  // sequence fixed by the C++ standard
@@ -436,18 +452,30 @@ std::vector<std::string> HandPickedDocuments() {
       std::string("nul\0inside\0text", 15),
       "bad \xFF\xFE bytes \xC3( \xE2\x82 \xF0\x9F\x98 end\xC0",
       "\xED\xA0\x80 surrogate \xF4\x90\x80\x80 too high",
-      "\xCE\x97 \xCE\xBA\xCE\xB1\xCF\x84\xCE\xB1\xCE\xB9\xCE\xB3\xCE\xAF\xCE\xB4"
+      "\xCE\x97 "
+      "\xCE\xBA\xCE\xB1\xCF\x84\xCE\xB1\xCE\xB9\xCE\xB3\xCE\xAF\xCE\xB4"
       "\xCE\xB1 \xCE\xAD\xCE\xBA\xCE\xBB\xCE\xB5\xCE\xB9\xCF\x83\xCE\xB5 \xCF"
       "\x84\xCE\xBF \xCE\xBB\xCE\xB9\xCE\xBC\xCE\xAC\xCE\xBD\xCE\xB9.",
       "\xE6\xB8\xAF\xE3\x81\xAE\xE6\xA1\x9F\xE6\xA9\x8B\xE3\x81\x8C\xE5\xB5\x90"
       "\xE3\x81\xA7\xE9\x96\x89\xE9\x8E\x96\xE3\x81\x95\xE3\x82\x8C\xE3\x81\xBE"
       "\xE3\x81\x97\xE3\x81\x9F\xE3\x80\x82\xEF\xBD\xB6\xEF\xBE\x80\xEF\xBD\xB6"
       "\xEF\xBE\x85 \xEF\xBC\xA1\xEF\xBC\xA2\xEF\xBC\xA3",
-      "\xC2\xBF" "D\xC3\xB3nde est\xC3\xA1 el muelle? \xC2\xA1" "Ma\xC3\xB1" "ana "
-      "cerrar\xC3\xA1n el puerto! Man\xCC\x83" "ana.",
-      "Stra\xC3\x9F" "e \xEF\xAC\x81" "ne \xE2\x84\xAB \xC3\x85 \xE2\x91\xA0 "
-      "\xC2\xBD \xE2\x80\x8B zero\xE2\x80\x8Bwidth \xC2\xAD soft\xC2\xAD" "hyphen",
-      "a\x1C" "b\x1D" "c\x1E" "d\x1F" "e \xC2\x85 f\xE2\x80\xA8g\xC2\xA0h"
+      "\xC2\xBF"
+      "D\xC3\xB3nde est\xC3\xA1 el muelle? \xC2\xA1"
+      "Ma\xC3\xB1"
+      "ana "
+      "cerrar\xC3\xA1n el puerto! Man\xCC\x83"
+      "ana.",
+      "Stra\xC3\x9F"
+      "e \xEF\xAC\x81"
+      "ne \xE2\x84\xAB \xC3\x85 \xE2\x91\xA0 "
+      "\xC2\xBD \xE2\x80\x8B zero\xE2\x80\x8Bwidth \xC2\xAD soft\xC2\xAD"
+      "hyphen",
+      "a\x1C"
+      "b\x1D"
+      "c\x1E"
+      "d\x1F"
+      "e \xC2\x85 f\xE2\x80\xA8g\xC2\xA0h"
       "\xE3\x80\x80i\xE1\x9A\x80j",
       "emoji \xF0\x9F\x98\x80\xF0\x9F\x91\x8D\xF0\x9F\x8F\xBD \xF0\x9F\x87\xAC"
       "\xF0\x9F\x87\xB7 \xF0\x9D\x90\x80\xF0\x9D\x90\x81 \xE0\xB8\xA0\xE0\xB8"
@@ -459,15 +487,34 @@ std::vector<std::string> HandPickedDocuments() {
 // duplicates (edited copies) so that pairwise overlaps are not all zero.
 std::vector<std::string> GeneratedDocuments() {
   const std::vector<std::string> words = {
-      "harbour", "Gazette", "storm", "pier", "council", "ferry", "3.5",
-      "1,200", "O'Brien", "e-mail", "x_y", "fish", "market", "TIDE",
+      "harbour",
+      "Gazette",
+      "storm",
+      "pier",
+      "council",
+      "ferry",
+      "3.5",
+      "1,200",
+      "O'Brien",
+      "e-mail",
+      "x_y",
+      "fish",
+      "market",
+      "TIDE",
       "\xCE\xB8\xCE\xAC\xCE\xBB\xCE\xB1\xCF\x83\xCF\x83\xCE\xB1",  // θάλασσα
       "\xE6\xB8\xAF",                                              // 港
-      "\xE3\x83\x95\xE3\x82\xA7\xE3\x83\xAA\xE3\x83\xBC",          // フェリー
-      "ma\xC3\xB1" "ana", "caf\xC3\xA9", "na\xC3\xAFve", "\xEF\xAC\x81sh",
-      "\xFF", "\xC3", std::string(1, '\0'), "\xE2\x80\x94"};
-  const std::vector<std::string> gaps = {" ", "  ", ", ", ". ", "\n", "\t",
-                                         " - ", "\xC2\xA0", "\xE3\x80\x80"};
+      "\xE3\x83\x95\xE3\x82\xA7\xE3\x83\xAA\xE3\x83\xBC",  // フェリー
+      "ma\xC3\xB1"
+      "ana",
+      "caf\xC3\xA9",
+      "na\xC3\xAFve",
+      "\xEF\xAC\x81sh",
+      "\xFF",
+      "\xC3",
+      std::string(1, '\0'),
+      "\xE2\x80\x94"};
+  const std::vector<std::string> gaps = {
+      " ", "  ", ", ", ". ", "\n", "\t", " - ", "\xC2\xA0", "\xE3\x80\x80"};
   std::mt19937_64 random(42);  // sequence fixed by the C++ standard
   std::vector<std::string> docs;
   for (int d = 0; d < 24; ++d) {

@@ -1,9 +1,10 @@
 // Tests of the text pipeline (kindred/text.h): decoding with replacement,
 // NFKC_Casefold and UAX #29 words, checked against the Unicode Standard's own
 // test files and, for the ASCII fast path, against ICU by differential tests.
-#include <catch2/catch.hpp>
+#include "kindred/text.h"
 
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <cstdio>
 #include <fstream>
 #include <memory>
@@ -12,7 +13,6 @@
 #include <string>
 #include <vector>
 
-#include "kindred/text.h"
 #include "text/ascii_words.h"
 #include "unicode/brkiter.h"
 #include "unicode/locid.h"
@@ -70,8 +70,8 @@ IcuSegmentation SegmentWithIcu(const icu::UnicodeString& text) {
     if (words->getRuleStatus() >= UBRK_WORD_NONE_LIMIT) {
       const auto byte_begin = ToUtf8(text.tempSubString(0, begin)).size();
       const auto byte_end = ToUtf8(text.tempSubString(0, end)).size();
-      out.kept.push_back({static_cast<uint32_t>(byte_begin),
-                          static_cast<uint32_t>(byte_end)});
+      out.kept.push_back(
+          {static_cast<uint32_t>(byte_begin), static_cast<uint32_t>(byte_end)});
     }
   }
   return out;
@@ -153,10 +153,10 @@ TEST_CASE("word segmentation agrees with WordBreakTest.txt (Unicode 15.0)") {
       ++checked_ascii_path;
     }
   }
-  WARN("WordBreakTest.txt: " << lines << " lines, ICU agrees on "
-                             << icu_agrees << ", ICU path checked on "
-                             << checked_icu_path << ", ASCII path on "
-                             << checked_ascii_path << ", " << colon_lines
+  WARN("WordBreakTest.txt: " << lines << " lines, ICU agrees on " << icu_agrees
+                             << ", ICU path checked on " << checked_icu_path
+                             << ", ASCII path on " << checked_ascii_path << ", "
+                             << colon_lines
                              << " colon lines differ by ICU's tailoring");
   CHECK(lines > 1800);
   CHECK(icu_agrees + colon_lines == lines);
@@ -238,7 +238,7 @@ TEST_CASE("normalization is NFKC_Casefold (NormalizationTest.txt)") {
     }
     const icu::UnicodeString form16 = icu::UnicodeString::fromUTF8(*form);
     CHECK(nfkc->isNormalized(form16, status));  // (b)
-    CHECK(*NormalizeText(*form) == *form);       // (b)
+    CHECK(*NormalizeText(*form) == *form);      // (b)
     icu::UnicodeString folded = columns[3];
     folded.foldCase();
     if (folded == columns[3] && !HasDefaultIgnorable(columns[3])) {
@@ -291,9 +291,15 @@ TEST_CASE("surrogates, overlongs and out-of-range bytes are ill-formed") {
     uint32_t replaced;
   };
   const Case cases[] = {
-      {"\xED\xA0\x80", 3}, {"\xC0\x80", 2},      {"\xF4\x90\x80\x80", 4},
-      {"\xF5", 1},         {"\xFF", 1},          {"ab\xE2\x82", 1},
-      {"\xF0\x9F\x98", 1}, {"\xF0\x9F\x98\x80", 0}, {std::string("a\0b", 3), 0},
+      {"\xED\xA0\x80", 3},
+      {"\xC0\x80", 2},
+      {"\xF4\x90\x80\x80", 4},
+      {"\xF5", 1},
+      {"\xFF", 1},
+      {"ab\xE2\x82", 1},
+      {"\xF0\x9F\x98", 1},
+      {"\xF0\x9F\x98\x80", 0},
+      {std::string("a\0b", 3), 0},
   };
   for (const Case& c : cases) {
     uint32_t replaced = 99;
@@ -332,8 +338,7 @@ void ExpectSameTokens(const std::string& text) {
       FAIL("token " << i << " differs near byte " << from << ": fast \""
                     << a.text << "\" [" << a.begin << "," << a.end
                     << "), ICU \"" << b.text << "\" [" << b.begin << ","
-                    << b.end << "), context \"" << text.substr(at, 24)
-                    << "\"");
+                    << b.end << "), context \"" << text.substr(at, 24) << "\"");
     }
   }
   CHECK(fast->size() == icu->size());
@@ -441,8 +446,9 @@ TEST_CASE("tokens carry normalized text and original spans") {
   CHECK((*tokens)[2].text == "strasse");
   CHECK((*tokens)[2].begin == 17);
   CHECK((*tokens)[2].end == 24);
-  CHECK(text.substr(17, 7) == "Stra\xC3\x9F"
-                              "e");
+  CHECK(text.substr(17, 7) ==
+        "Stra\xC3\x9F"
+        "e");
 }
 
 TEST_CASE("the ASCII path refuses non-ASCII input") {

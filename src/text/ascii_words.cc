@@ -16,14 +16,16 @@ namespace {
 // classes of ascii_words.h); the input is ASCII, so signed compares work.
 inline uint32_t WordBits16(__m128i v) {
   const __m128i lower = _mm_or_si128(v, _mm_set1_epi8(0x20));
-  const __m128i letter = _mm_and_si128(_mm_cmpgt_epi8(lower, _mm_set1_epi8('a' - 1)),
-                                       _mm_cmpgt_epi8(_mm_set1_epi8('z' + 1), lower));
-  const __m128i digit = _mm_and_si128(_mm_cmpgt_epi8(v, _mm_set1_epi8('0' - 1)),
-                                      _mm_cmpgt_epi8(_mm_set1_epi8('9' + 1), v));
+  const __m128i letter =
+      _mm_and_si128(_mm_cmpgt_epi8(lower, _mm_set1_epi8('a' - 1)),
+                    _mm_cmpgt_epi8(_mm_set1_epi8('z' + 1), lower));
+  const __m128i digit =
+      _mm_and_si128(_mm_cmpgt_epi8(v, _mm_set1_epi8('0' - 1)),
+                    _mm_cmpgt_epi8(_mm_set1_epi8('9' + 1), v));
   const __m128i other = _mm_or_si128(_mm_cmpeq_epi8(v, _mm_set1_epi8('_')),
                                      _mm_cmpeq_epi8(v, _mm_set1_epi8('@')));
-  return static_cast<uint32_t>(_mm_movemask_epi8(
-      _mm_or_si128(_mm_or_si128(letter, digit), other)));
+  return static_cast<uint32_t>(
+      _mm_movemask_epi8(_mm_or_si128(_mm_or_si128(letter, digit), other)));
 }
 
 // Bit i set when byte i is '.', '\'', ',' or ';' (MidNumLet, Single_Quote,

@@ -9,10 +9,11 @@
 //   Single_Quote: '\''          Double_Quote: '"'     WSegSpace: ' '
 //   CR, LF, Newline (VT, FF)    everything else: Other
 // and ICU's root rules (which follow the CLDR root tailoring, recalled from
-// memory and confirmed by the differential tests) change two of them: ':' is not MidLetter (so "a:b" is three segments) and '@' is ALetter
-// (so "a@b" and a lone "@" are words). With that, a word is a run of letters
-// (with '@'), digits and '_' (joined by WB5, WB8-WB10, WB13a, WB13b) in which
-// a single '.' or '\'' may stand between two letters (WB6, WB7) and a single
+// memory and confirmed by the differential tests) change two of them: ':' is
+// not MidLetter (so "a:b" is three segments) and '@' is ALetter (so "a@b" and a
+// lone "@" are words). With that, a word is a run of letters (with '@'), digits
+// and '_' (joined by WB5, WB8-WB10, WB13a, WB13b) in which a single '.' or '\''
+// may stand between two letters (WB6, WB7) and a single
 // ',', ';', '.' or '\'' between two digits (WB11, WB12). ICU gives a word rule
 // status 100 or more except for a lone "_", whose status is 0. Every other
 // segment (spaces, CR LF, punctuation, controls) has status 0 and is
@@ -64,8 +65,9 @@ inline bool IsWordClass(uint8_t cls) {
 
 // Writes the kept words of the ASCII text p[0, n) to `out`, casefolded and
 // each followed by one space, the offset in `out` where word i begins to
-// word_begin[i], and the length written to word_begin[words]. With kSpans, also writes each word's span in p to
-// span_begin[i] and span_end[i]. Returns the number of words.
+// word_begin[i], and the length written to word_begin[words]. With kSpans, also
+// writes each word's span in p to span_begin[i] and span_end[i]. Returns the
+// number of words.
 //
 // Requires room for n + 1 bytes in `out`, n / 2 + 2 entries in word_begin
 // and n / 2 + 1 in the span arrays
@@ -77,8 +79,8 @@ inline bool IsWordClass(uint8_t cls) {
 // same result faster.
 template <bool kSpans>
 inline size_t FoldAsciiWordsScalar(const unsigned char* p, size_t n, char* out,
-                             uint32_t* word_begin, uint32_t* span_begin,
-                             uint32_t* span_end) {
+                                   uint32_t* word_begin, uint32_t* span_begin,
+                                   uint32_t* span_end) {
   const char* const out_start = out;
   size_t words = 0;
   size_t i = 0;
@@ -100,8 +102,8 @@ inline size_t FoldAsciiWordsScalar(const unsigned char* p, size_t n, char* out,
       const uint8_t next = kAsciiClasses[p[i + 1]];
       const bool letters =
           prev == kLetter && next == kLetter && mid == kMidNumLet;
-      const bool digits =
-          prev == kDigit && next == kDigit && (mid == kMidNum || mid == kMidNumLet);
+      const bool digits = prev == kDigit && next == kDigit &&
+                          (mid == kMidNum || mid == kMidNumLet);
       if (!letters && !digits) break;
       *out++ = static_cast<char>(p[i++]);
     }

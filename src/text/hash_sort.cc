@@ -6,7 +6,7 @@
 namespace kindred::text_internal {
 namespace {
 
-constexpr size_t kSmallSort = 32;    // below this, insertion sort directly
+constexpr size_t kSmallSort = 32;      // below this, insertion sort directly
 constexpr uint32_t kSmallBucket = 32;  // buckets up to this size: insertion
 
 // Insertion sort: linear when every element is near its place.

@@ -12,8 +12,8 @@
 #include "text/ascii_words.h"
 #include "text/hash_sort.h"
 #include "text/icu_words.h"
-#include "text/word_arena.h"
 #include "text/utf8.h"
+#include "text/word_arena.h"
 #include "unicode/uchar.h"
 #include "unicode/utf16.h"
 
@@ -203,7 +203,8 @@ absl::Status Shingler::Shingle(std::string_view utf8, ShingleSet* out,
     local.tokens = static_cast<uint32_t>(words ? ShingleAsciiWords(utf8, out)
                                                : ShingleAsciiChars(utf8, out));
   } else if (words) {
-    absl::StatusOr<uint32_t> replaced = ShingleOtherWords(utf8, out, &local.tokens);
+    absl::StatusOr<uint32_t> replaced =
+        ShingleOtherWords(utf8, out, &local.tokens);
     if (!replaced.ok()) return replaced.status();
     local.invalid_utf8 = *replaced;
   } else {
@@ -258,8 +259,8 @@ size_t Shingler::ShingleIcuChars(ShingleSet* out) {
   impl_->marks.clear();
   IcuCharArena(impl_->icu->normalized(), &impl_->arena, &impl_->marks);
   const size_t points = impl_->marks.size() - 1;
-  HashCharWindows(impl_->arena.data(), impl_->marks.data(), points,
-                  settings_.k, settings_.seed, out);
+  HashCharWindows(impl_->arena.data(), impl_->marks.data(), points, settings_.k,
+                  settings_.seed, out);
   return points;
 }
 

@@ -79,7 +79,8 @@ uint32_t DecodeUtf8(std::string_view bytes, icu::UnicodeString* out,
       i += s.valid_length;
     } else {
       buffer[length++] = static_cast<char16_t>(0xD7C0 + (s.value >> 10));
-      if (unit_begin != nullptr) unit_begin->push_back(static_cast<uint32_t>(i));
+      if (unit_begin != nullptr)
+        unit_begin->push_back(static_cast<uint32_t>(i));
       buffer[length++] = static_cast<char16_t>(0xDC00 | (s.value & 0x3FF));
       i += s.valid_length;
     }
