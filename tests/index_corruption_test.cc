@@ -1,9 +1,8 @@
 // Corruption: every byte of a small real index flipped, and the file cut at
 // every length. Each read must either succeed with exactly the right data or
 // fail with DataLoss; never crash, never return wrong matches.
-#include <cstdio>
-
 #include <catch2/catch.hpp>
+#include <cstdio>
 
 #include "kindred/index.h"
 #include "kindred/index_match.h"
@@ -42,8 +41,8 @@ enum class Outcome { kOpenFailed, kSomeReadFailed, kAllRead };
 // Checks everything a reader of the file returns: either exactly the
 // expected data or DataLoss errors (which it reports in the outcome); fails
 // the test on anything else.
-Outcome ReadAndCompare(const std::string& path, const Expected& expected, const SignedCorpus& queries,
-                    bool truncated) {
+Outcome ReadAndCompare(const std::string& path, const Expected& expected,
+                       const SignedCorpus& queries, bool truncated) {
   auto reader = IndexReader::Open(path);
   if (!reader.ok()) {
     INFO(reader.status().ToString());
@@ -63,8 +62,7 @@ Outcome ReadAndCompare(const std::string& path, const Expected& expected, const 
   for (uint32_t doc = 0; doc < count; ++doc) {
     REQUIRE(r.id(doc) == expected.ids[doc]);
     auto signature = r.signature(doc);
-    REQUIRE(std::vector<uint32_t>(signature.begin(), signature.end()) ==
-            expected.signatures[doc]);
+    REQUIRE(std::vector<uint32_t>(signature.begin(), signature.end()) == expected.signatures[doc]);
     absl::Status read = r.ReadShingles(doc, &set);
     if (read.ok()) {
       REQUIRE(set == expected.shingles[doc]);

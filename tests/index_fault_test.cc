@@ -1,10 +1,9 @@
 // Fault injection: a writer killed (or starved of disk) at every step of an
 // append and of a compaction. Afterwards exactly the committed documents
 // must be readable, audit must pass, and the next writer must succeed.
+#include <catch2/catch.hpp>
 #include <cstdio>
 #include <filesystem>
-
-#include <catch2/catch.hpp>
 
 #include "index/fault_file_system.h"
 #include "kindred/index.h"
@@ -20,7 +19,7 @@ using index::FaultKind;
 using testing::RequireSameDocument;
 using testing::Slice;
 
-constexpr size_t kChunk = 64;   // bytes per injected write step
+constexpr size_t kChunk = 64;  // bytes per injected write step
 
 struct Fixture {
   testing::TempDir dir;

@@ -27,7 +27,10 @@ TEST_CASE("fixed-width values are little-endian", "[codec]") {
   writer.U32(0x01020304);
   writer.U64(0x0102030405060708ULL);
   writer.F64(1.0);  // IEEE 754 binary64: 1.0 is 0x3FF0000000000000
-  REQUIRE(Hex(out) == "04030201" "0807060504030201" "000000000000f03f");
+  REQUIRE(Hex(out) ==
+          "04030201"
+          "0807060504030201"
+          "000000000000f03f");
   ByteReader reader(out);
   uint32_t a;
   uint64_t b;
@@ -47,9 +50,9 @@ TEST_CASE("varints are unsigned LEB128", "[codec]") {
   struct Case {
     uint64_t value;
     const char* hex;
-  } cases[] = {{0, "00"},       {2, "02"},         {127, "7f"},  {128, "8001"},
-               {129, "8101"},   {12857, "b964"},   {624485, "e58e26"},
-               {UINT64_MAX, "ffffffffffffffffff01"}};
+  } cases[] = {
+      {0, "00"},     {2, "02"},       {127, "7f"},        {128, "8001"},
+      {129, "8101"}, {12857, "b964"}, {624485, "e58e26"}, {UINT64_MAX, "ffffffffffffffffff01"}};
   for (const Case& c : cases) {
     std::string out;
     ByteWriter(&out).Varint(c.value);
@@ -183,8 +186,8 @@ TEST_CASE("segment encodes and parses every field", "[format]") {
     REQUIRE(std::equal(signature.begin(), signature.end(), corpus.signature(i).begin()));
     std::vector<uint64_t> set;
     REQUIRE(DecodeShingleSet(view.shingle_bytes(i), record.shingle_count, &set));
-    REQUIRE(std::equal(set.begin(), set.end(), corpus.shingles(i).begin(),
-                       corpus.shingles(i).end()));
+    REQUIRE(
+        std::equal(set.begin(), set.end(), corpus.shingles(i).begin(), corpus.shingles(i).end()));
     REQUIRE(Checksum(view.shingle_bytes(i)) == record.shingles_checksum);
   }
   // id order: ids sorted bytewise ("doc-0" < "doc-1" < ...).

@@ -69,8 +69,8 @@ std::vector<Pair> IncrementalPairs(const SignedCorpus& corpus, const IndexSettin
     for (const IndexMatch& m : *matches) {
       uint32_t query = static_cast<uint32_t>(cuts[c]) + m.query;
       uint32_t other = m.in_index ? m.other : static_cast<uint32_t>(cuts[c]) + m.other;
-      pairs.push_back({std::min(query, other), std::max(query, other), m.shared, m.jaccard,
-                       m.estimate});
+      pairs.push_back(
+          {std::min(query, other), std::max(query, other), m.shared, m.jaccard, m.estimate});
     }
     REQUIRE((*writer)->Append(batch, DuplicateIdPolicy::kError).ok());
   }

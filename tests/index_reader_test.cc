@@ -1,8 +1,8 @@
 // Tests of the index reader and writer through the public API: create,
 // append with each duplicate-id policy, lookups, banding at query time,
 // compaction, locking, torn tails, settings checks.
-#include <sys/file.h>
 #include <fcntl.h>
+#include <sys/file.h>
 #include <unistd.h>
 
 #include <catch2/catch.hpp>

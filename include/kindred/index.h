@@ -54,11 +54,11 @@ struct IndexSettings {
 // One committed segment, as `info` lists it.
 struct SegmentInfo {
   uint32_t number = 0;
-  uint64_t offset = 0;         // byte offset in the file
-  uint64_t bytes = 0;          // header, body and commit record
-  uint32_t first_doc = 0;      // global number of its first document
+  uint64_t offset = 0;     // byte offset in the file
+  uint64_t bytes = 0;      // header, body and commit record
+  uint32_t first_doc = 0;  // global number of its first document
   uint32_t documents = 0;
-  uint64_t retired = 0;        // earlier documents it replaces
+  uint64_t retired = 0;  // earlier documents it replaces
   uint64_t band_keys = 0;
   uint64_t shingle_bytes = 0;  // encoded shingle sets
 };
@@ -73,8 +73,8 @@ class IndexReader {
   // open), DataLoss (not an index, truncated header, a checksum or structure
   // error: the message names the segment and byte offset), FailedPrecondition
   // (a newer format version).
-  static absl::StatusOr<std::unique_ptr<IndexReader>> Open(
-      const std::string& path, const IndexOpenOptions& options = {});
+  static absl::StatusOr<std::unique_ptr<IndexReader>> Open(const std::string& path,
+                                                           const IndexOpenOptions& options = {});
   ~IndexReader();
 
   const std::string& path() const { return path_; }

@@ -80,14 +80,13 @@ void PrintSummary(const AddFlags& flags, const AppendResult& result, const Signe
                    AddActionName(result.actions[i]));
     }
   }
-  std::string segment = result.wrote_segment
-                            ? absl::StrFormat("segment %u", result.segment_number)
-                            : std::string("nothing written");
+  std::string segment = result.wrote_segment ? absl::StrFormat("segment %u", result.segment_number)
+                                             : std::string("nothing written");
   std::fprintf(stderr,
                "kindred add: %s: %u added, %u replaced, %u skipped (%s); %zu matches; "
                "%u documents live\n",
-               flags.index.c_str(), result.added, result.replaced, result.skipped,
-               segment.c_str(), match_count, after.live_count());
+               flags.index.c_str(), result.added, result.replaced, result.skipped, segment.c_str(),
+               match_count, after.live_count());
 }
 
 int RunAdd(const AddFlags& flags) {
@@ -101,8 +100,7 @@ int RunAdd(const AddFlags& flags) {
   if (!writer.ok()) return Fail(WriteExitCode(writer.status()), writer.status());
   if ((*writer)->torn_tail_cut() > 0 && !flags.general.quiet) {
     std::fprintf(stderr, "kindred: cut a torn tail of %llu bytes off %s\n",
-                 static_cast<unsigned long long>((*writer)->torn_tail_cut()),
-                 flags.index.c_str());
+                 static_cast<unsigned long long>((*writer)->torn_tail_cut()), flags.index.c_str());
   }
   auto reader = IndexReader::Open(flags.index);  // for matching, banded as asked
   if (!reader.ok()) return Fail(reader.status());
@@ -146,16 +144,18 @@ void RegisterAdd(CLI::App& app, int* exit_code) {
   CLI::App* command = app.add_subcommand(
       "add", "Append documents to an index as a new segment, reporting their matches");
   command->add_option("index", flags->index, "the index file")->required();
-  command->add_option("inputs", flags->inputs,
-                      "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
-                      "standard input")
+  command
+      ->add_option("inputs", flags->inputs,
+                   "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
+                   "standard input")
       ->required();
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
-  command->add_option("--on-duplicate", flags->on_duplicate,
-                      "a document whose id is already indexed: error (refuse the batch), skip "
-                      "(keep the indexed one) or replace")
+  command
+      ->add_option("--on-duplicate", flags->on_duplicate,
+                   "a document whose id is already indexed: error (refuse the batch), skip "
+                   "(keep the indexed one) or replace")
       ->default_str("error");
   command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
       ->default_str("jsonl")

@@ -49,8 +49,7 @@ void RegisterAudit(CLI::App& app, int* exit_code) {
   CLI::App* command =
       app.add_subcommand("audit", "Verify every checksum and invariant of an index");
   command->add_option("index", flags->index, "the index file")->required();
-  command->add_flag("--repair", flags->repair,
-                    "first cut off a torn tail (takes the writer lock)");
+  command->add_flag("--repair", flags->repair, "first cut off a torn tail (takes the writer lock)");
   command->add_flag("-q,--quiet", flags->quiet, "print problems only");
   command->callback([flags, exit_code] { *exit_code = RunAudit(*flags); });
 }

@@ -60,9 +60,9 @@ int RunBuild(const BuildFlags& flags) {
   auto input_options = ToInputOptions(flags.input);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
   if (DefaultFileSystem()->Exists(flags.index)) {
-    return Fail(kExitUsage, absl::AlreadyExistsError(absl::StrFormat(
-                                "index %s already exists (kindred add appends to it)",
-                                flags.index)));
+    return Fail(kExitUsage,
+                absl::AlreadyExistsError(absl::StrFormat(
+                    "index %s already exists (kindred add appends to it)", flags.index)));
   }
   auto reader = CorpusReader::Open(flags.inputs, *input_options);
   if (!reader.ok()) return Fail(kExitInput, reader.status());
@@ -80,8 +80,7 @@ int RunBuild(const BuildFlags& flags) {
   absl::Status created = CreateIndex(flags.index, *settings, corpus);
   if (!created.ok()) return Fail(WriteExitCode(created), created);
   if (!flags.general.quiet) {
-    std::fprintf(stderr,
-                 "kindred build: %s: %llu documents (%llu empty), %s, %u bands x %u rows\n",
+    std::fprintf(stderr, "kindred build: %s: %llu documents (%llu empty), %s, %u bands x %u rows\n",
                  flags.index.c_str(), static_cast<unsigned long long>(stats.documents),
                  static_cast<unsigned long long>(stats.empty_documents),
                  settings->signature.ToString().c_str(), settings->bands, settings->rows);
@@ -97,9 +96,10 @@ void RegisterBuild(CLI::App& app, int* exit_code) {
       "build", "Make an index file from a corpus (the signature settings are stored in it)");
   command->add_option("index", flags->index, "the index file to create (must not exist)")
       ->required();
-  command->add_option("inputs", flags->inputs,
-                      "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
-                      "standard input")
+  command
+      ->add_option("inputs", flags->inputs,
+                   "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
+                   "standard input")
       ->required();
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);

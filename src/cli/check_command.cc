@@ -116,12 +116,13 @@ int RunCheck(const CheckFlags& flags) {
 
 void RegisterCheck(CLI::App& app, int* exit_code) {
   auto flags = std::make_shared<CheckFlags>();
-  CLI::App* command = app.add_subcommand(
-      "check", "Match documents (uploads) against an index without changing it");
+  CLI::App* command =
+      app.add_subcommand("check", "Match documents (uploads) against an index without changing it");
   command->add_option("index", flags->index, "the index file")->required();
-  command->add_option("inputs", flags->inputs,
-                      "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
-                      "standard input")
+  command
+      ->add_option("inputs", flags->inputs,
+                   "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
+                   "standard input")
       ->required();
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);
@@ -129,8 +130,9 @@ void RegisterCheck(CLI::App& app, int* exit_code) {
   command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
       ->default_str("jsonl")
       ->group("Output");
-  command->add_flag("--fail-on-match", flags->fail_on_match,
-                    "exit with status 1 when any document matches an indexed document")
+  command
+      ->add_flag("--fail-on-match", flags->fail_on_match,
+                 "exit with status 1 when any document matches an indexed document")
       ->group("Output");
   AddGeneralOptions(command, &flags->general);
   command->callback([flags, command, exit_code] {

@@ -46,12 +46,11 @@ std::string TextReport(const IndexReader& reader) {
   }
   absl::StrAppendFormat(&out, "segments         %u\n", reader.segments().size());
   absl::StrAppendFormat(&out, "  %7s %12s %12s %10s %10s %8s %12s %12s\n", "segment", "offset",
-                        "bytes", "first_doc", "documents", "retired", "band_keys",
-                        "shingle_bytes");
+                        "bytes", "first_doc", "documents", "retired", "band_keys", "shingle_bytes");
   for (const SegmentInfo& seg : reader.segments()) {
-    absl::StrAppendFormat(&out, "  %7u %12u %12u %10u %10u %8u %12u %12u\n", seg.number,
-                          seg.offset, seg.bytes, seg.first_doc, seg.documents, seg.retired,
-                          seg.band_keys, seg.shingle_bytes);
+    absl::StrAppendFormat(&out, "  %7u %12u %12u %10u %10u %8u %12u %12u\n", seg.number, seg.offset,
+                          seg.bytes, seg.first_doc, seg.documents, seg.retired, seg.band_keys,
+                          seg.shingle_bytes);
   }
   return out;
 }

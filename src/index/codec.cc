@@ -1,9 +1,9 @@
 #include "index/codec.h"
 
+#include <xxhash.h>
+
 #include <bit>
 #include <vector>
-
-#include <xxhash.h>
 
 namespace kindred::index {
 
@@ -105,7 +105,7 @@ bool DecodeShingleSet(std::string_view bytes, uint32_t count, std::vector<uint64
   for (uint32_t i = 0; i < count; ++i) {
     uint64_t delta;
     if (!reader.Varint(&delta)) return false;
-    if (i > 0 && delta == 0) return false;           // repeats are not allowed
+    if (i > 0 && delta == 0) return false;            // repeats are not allowed
     if (delta > UINT64_MAX - previous) return false;  // would wrap around
     previous += delta;
     out->push_back(previous);

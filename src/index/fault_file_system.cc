@@ -80,24 +80,21 @@ absl::Status FaultFileSystem::FaultStatus() const {
   return absl::AbortedError("injected fault");
 }
 
-absl::StatusOr<std::unique_ptr<AppendFile>> FaultFileSystem::OpenAppend(
-    const std::string& path) {
+absl::StatusOr<std::unique_ptr<AppendFile>> FaultFileSystem::OpenAppend(const std::string& path) {
   if (fired_ && kind_ == FaultKind::kCrash) return FaultStatus();
   auto file = base_->OpenAppend(path);
   if (!file.ok()) return file.status();
   return std::unique_ptr<AppendFile>(new FaultAppendFile(this, *std::move(file)));
 }
 
-absl::StatusOr<std::unique_ptr<AppendFile>> FaultFileSystem::CreateNew(
-    const std::string& path) {
+absl::StatusOr<std::unique_ptr<AppendFile>> FaultFileSystem::CreateNew(const std::string& path) {
   if (NextStep(false, false) != Verdict::kProceed) return FaultStatus();
   auto file = base_->CreateNew(path);
   if (!file.ok()) return file.status();
   return std::unique_ptr<AppendFile>(new FaultAppendFile(this, *std::move(file)));
 }
 
-absl::Status FaultFileSystem::Rename(const std::string& from, const std::string& to,
-                                     bool replace) {
+absl::Status FaultFileSystem::Rename(const std::string& from, const std::string& to, bool replace) {
   if (NextStep(false, false) != Verdict::kProceed) return FaultStatus();
   return base_->Rename(from, to, replace);
 }

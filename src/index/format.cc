@@ -48,8 +48,7 @@ std::string EncodeFileHeader(const IndexSettings& settings) {
   return out;
 }
 
-absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings,
-                              size_t* header_size) {
+absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings, size_t* header_size) {
   if (file.size() < kFileMagic.size() || file.substr(0, kFileMagic.size()) != kFileMagic) {
     return absl::DataLossError("not a kindred index (bad magic)");
   }
@@ -72,8 +71,7 @@ absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings,
         "index format version %u is newer than this program reads (%u); use a newer kindred",
         version, kFormatVersion));
   }
-  if (version != kFormatVersion || size < kFileHeaderFixedSize + 8 ||
-      size > kMaxFileHeaderSize) {
+  if (version != kFormatVersion || size < kFileHeaderFixedSize + 8 || size > kMaxFileHeaderSize) {
     return absl::DataLossError(absl::StrFormat("index header: bad version %u", version));
   }
   uint8_t mode, scheme, measure, reserved;
@@ -104,8 +102,7 @@ absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings,
   return absl::OkStatus();
 }
 
-bool ComputeLayout(const SegmentHeader& h, uint32_t perms, uint64_t limit,
-                   SectionLayout* layout) {
+bool ComputeLayout(const SegmentHeader& h, uint32_t perms, uint64_t limit, SectionLayout* layout) {
   uint64_t offset = 0, doc_table, signatures, keys, key_docs, retired;
   if (!MulChecked(h.doc_count, kDocRecordSize, &doc_table) ||
       !MulChecked(uint64_t{h.doc_count} * 4, perms, &signatures) ||
@@ -149,9 +146,8 @@ bool DecodeSegmentHeader(std::string_view bytes, SegmentHeader* h) {
   }
   ByteReader reader(bytes.substr(4, kSegmentHeaderSize - 12));
   return reader.U32(&h->segment_number) && reader.U32(&h->doc_count) && reader.U32(&h->flags) &&
-         reader.U64(&h->first_doc) && reader.U64(&h->id_bytes) &&
-         reader.U64(&h->shingle_bytes) && reader.U64(&h->key_count) &&
-         reader.U64(&h->retired_count);
+         reader.U64(&h->first_doc) && reader.U64(&h->id_bytes) && reader.U64(&h->shingle_bytes) &&
+         reader.U64(&h->key_count) && reader.U64(&h->retired_count);
 }
 
 void EncodeCommitRecord(const CommitRecord& record, std::string* out) {

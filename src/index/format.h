@@ -38,8 +38,7 @@ std::string EncodeFileHeader(const IndexSettings& settings);
 // Decodes the header at the start of `file`; *header_size gets its length.
 // DataLoss for a bad magic, a short or damaged header; FailedPrecondition
 // for a newer format version.
-absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings,
-                              size_t* header_size);
+absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings, size_t* header_size);
 
 struct SegmentHeader {
   uint32_t segment_number = 0;
@@ -54,8 +53,8 @@ struct SegmentHeader {
 
 // Offsets of the body sections from the start of the body (FORMAT.md).
 struct SectionLayout {
-  uint64_t doc_table = 0, id_order = 0, signatures = 0, band_keys = 0, band_docs = 0,
-           retired = 0, id_bytes = 0, shingle_bytes = 0;
+  uint64_t doc_table = 0, id_order = 0, signatures = 0, band_keys = 0, band_docs = 0, retired = 0,
+           id_bytes = 0, shingle_bytes = 0;
   uint64_t tables_end = 0;   // end of the checksummed tables (padded id bytes)
   uint64_t body_length = 0;  // whole body
 };

@@ -27,9 +27,9 @@ void CheckPadding(std::string_view file, const IndexReader& reader, AuditReport*
     }
     std::string_view padding = view.shingle_padding();
     if (std::any_of(padding.begin(), padding.end(), [](char c) { return c != 0; })) {
-      report->problems.push_back(absl::StrFormat(
-          "index segment %u at byte %u: nonzero padding after the shingle sets", info.number,
-          info.offset));
+      report->problems.push_back(
+          absl::StrFormat("index segment %u at byte %u: nonzero padding after the shingle sets",
+                          info.number, info.offset));
     }
   }
 }
@@ -48,9 +48,9 @@ void CheckDocuments(const IndexReader& reader, AuditReport* report) {
     signer.Sign(shingles, absl::MakeSpan(signature));
     auto stored = reader.signature(doc);
     if (!std::equal(signature.begin(), signature.end(), stored.begin(), stored.end())) {
-      report->problems.push_back(absl::StrFormat(
-          "document %u (\"%s\"): stored signature does not match its shingle set", doc,
-          reader.id(doc)));
+      report->problems.push_back(
+          absl::StrFormat("document %u (\"%s\"): stored signature does not match its shingle set",
+                          doc, reader.id(doc)));
     }
   }
 }
@@ -73,8 +73,7 @@ void CheckBandKeys(const IndexReader& reader, AuditReport* report) {
   std::sort(stored.begin(), stored.end());
   std::sort(expected.begin(), expected.end());
   if (stored != expected) {
-    report->problems.push_back(
-        "the band-key tables do not match the stored signatures");
+    report->problems.push_back("the band-key tables do not match the stored signatures");
   }
 }
 
@@ -84,8 +83,8 @@ void CheckUniqueIds(const IndexReader& reader, AuditReport* report) {
     if (!reader.is_live(doc)) continue;
     auto [it, inserted] = seen.emplace(reader.id(doc), doc);
     if (!inserted) {
-      report->problems.push_back(absl::StrFormat(
-          "documents %u and %u are both live with id \"%s\"", it->second, doc, reader.id(doc)));
+      report->problems.push_back(absl::StrFormat("documents %u and %u are both live with id \"%s\"",
+                                                 it->second, doc, reader.id(doc)));
     }
   }
 }

@@ -47,8 +47,8 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
   absl::Status error;
   ParallelFor(batch.size(), options.threads, [&](size_t begin, size_t end, int) {
     for (size_t q = begin; q < end; ++q) {
-      absl::Status status = MatchOne(reader, batch, static_cast<uint32_t>(q), options,
-                                     &per_query[q]);
+      absl::Status status =
+          MatchOne(reader, batch, static_cast<uint32_t>(q), options, &per_query[q]);
       if (!status.ok()) {
         std::lock_guard<std::mutex> lock(error_mutex);
         if (error.ok()) error = status;

@@ -38,8 +38,8 @@ absl::Status IndexReader::Load() {
   while (offset < file_.size()) {
     Segment segment;
     uint32_t number = static_cast<uint32_t>(segments_.size());
-    index::SegmentScan scan = segment.Parse(file_, offset, number, first_doc,
-                                            settings_.signature.perms, &status);
+    index::SegmentScan scan =
+        segment.Parse(file_, offset, number, first_doc, settings_.signature.perms, &status);
     if (scan == index::SegmentScan::kTornTail) break;
     if (scan == index::SegmentScan::kCorrupt) return status;
     const index::SegmentHeader& h = segment.header();
@@ -47,8 +47,8 @@ absl::Status IndexReader::Load() {
       return absl::DataLossError(absl::StrFormat("index segment %u: too many documents", number));
     }
     segments_.push_back(SegmentInfo{number, offset, segment.total_bytes(),
-                                    static_cast<uint32_t>(first_doc), h.doc_count,
-                                    h.retired_count, h.key_count, h.shingle_bytes});
+                                    static_cast<uint32_t>(first_doc), h.doc_count, h.retired_count,
+                                    h.key_count, h.shingle_bytes});
     segment_first_doc_.push_back(static_cast<uint32_t>(first_doc));
     segment_views_.push_back(segment);
     offset += segment.total_bytes();
@@ -62,9 +62,8 @@ absl::Status IndexReader::Load() {
     for (uint64_t i = 0; i < segment.header().retired_count; ++i) {
       uint64_t doc = segment.retired(i);
       if (retired_[doc]) {
-        return absl::DataLossError(absl::StrFormat(
-            "index segment %u: document %u is retired twice", segment.header().segment_number,
-            doc));
+        return absl::DataLossError(absl::StrFormat("index segment %u: document %u is retired twice",
+                                                   segment.header().segment_number, doc));
       }
       retired_[doc] = true;
       --live_count_;
@@ -113,9 +112,9 @@ absl::Status IndexReader::ReadShingles(uint32_t doc, std::vector<uint64_t>* out)
   if (index::Checksum(bytes) != record.shingles_checksum ||
       !index::DecodeShingleSet(bytes, record.shingle_count, out)) {
     out->clear();
-    return absl::DataLossError(absl::StrFormat(
-        "index %s: document %u: shingle set checksum mismatch at byte %u", path_, doc,
-        segments_[&segment - segment_views_.data()].offset));
+    return absl::DataLossError(
+        absl::StrFormat("index %s: document %u: shingle set checksum mismatch at byte %u", path_,
+                        doc, segments_[&segment - segment_views_.data()].offset));
   }
   return absl::OkStatus();
 }
@@ -142,9 +141,9 @@ std::optional<uint32_t> IndexReader::FindLive(std::string_view id) const {
 
 absl::Status IndexReader::UseBanding(uint32_t bands, uint32_t rows) {
   if (bands < 1 || rows < 1 || uint64_t{bands} * rows > settings_.signature.perms) {
-    return absl::InvalidArgumentError(absl::StrFormat(
-        "bands x rows = %u x %u does not fit the index's %u-slot signatures", bands, rows,
-        settings_.signature.perms));
+    return absl::InvalidArgumentError(
+        absl::StrFormat("bands x rows = %u x %u does not fit the index's %u-slot signatures", bands,
+                        rows, settings_.signature.perms));
   }
   bands_ = bands;
   rows_ = rows;

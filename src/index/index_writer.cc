@@ -16,8 +16,8 @@ absl::StatusOr<DuplicateIdPolicy> ParseDuplicateIdPolicy(std::string_view name) 
   if (name == "error") return DuplicateIdPolicy::kError;
   if (name == "skip") return DuplicateIdPolicy::kSkip;
   if (name == "replace") return DuplicateIdPolicy::kReplace;
-  return absl::InvalidArgumentError(
-      absl::StrCat("unknown duplicate-id policy \"", std::string(name), "\" (error, skip or replace)"));
+  return absl::InvalidArgumentError(absl::StrCat("unknown duplicate-id policy \"",
+                                                 std::string(name), "\" (error, skip or replace)"));
 }
 
 const char* DuplicateIdPolicyName(DuplicateIdPolicy policy) {
@@ -98,8 +98,8 @@ absl::StatusOr<AppendResult> IndexWriter::Append(const SignedCorpus& batch,
   for (size_t i = 0; i < batch.size(); ++i) {
     std::optional<uint32_t> existing = reader_->FindLive(batch.id(i));
     if (existing && policy == DuplicateIdPolicy::kError) {
-      return absl::InvalidArgumentError(absl::StrCat(
-          "document id \"", batch.id(i), "\" is already in the index ", path_));
+      return absl::InvalidArgumentError(
+          absl::StrCat("document id \"", batch.id(i), "\" is already in the index ", path_));
     }
     if (existing && policy == DuplicateIdPolicy::kSkip) {
       result.actions.push_back(AddAction::kSkipped);

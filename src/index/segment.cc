@@ -48,8 +48,7 @@ EncodedSegment EncodeSegment(uint32_t segment_number, uint64_t first_doc,
     record.shingles_offset = shingles.size();
     EncodeShingleSet(doc.shingles, &shingles);
     record.shingles_length = static_cast<uint32_t>(shingles.size() - record.shingles_offset);
-    record.shingles_checksum =
-        Checksum(std::string_view(shingles).substr(record.shingles_offset));
+    record.shingles_checksum = Checksum(std::string_view(shingles).substr(record.shingles_offset));
     record.shingle_count = static_cast<uint32_t>(doc.shingles.size());
     record.text_length = doc.facts.length;
     record.priority = doc.facts.priority;
@@ -69,8 +68,14 @@ EncodedSegment EncodeSegment(uint32_t segment_number, uint64_t first_doc,
   }
   for (uint64_t doc : retired) ByteWriter(&retired_bytes).U64(doc);
 
-  SegmentHeader header{segment_number, static_cast<uint32_t>(docs.size()), 0, first_doc,
-                       ids.size(), shingles.size(), table.size(), retired.size()};
+  SegmentHeader header{segment_number,
+                       static_cast<uint32_t>(docs.size()),
+                       0,
+                       first_doc,
+                       ids.size(),
+                       shingles.size(),
+                       table.size(),
+                       retired.size()};
   EncodedSegment out;
   EncodeSegmentHeader(header, &out.head_and_body);
   for (std::string_view section :
@@ -88,8 +93,7 @@ EncodedSegment EncodeSegment(uint32_t segment_number, uint64_t first_doc,
 }
 
 SegmentScan SegmentView::Parse(std::string_view file, uint64_t offset, uint32_t expected_number,
-                               uint64_t expected_first_doc, uint32_t perms,
-                               absl::Status* error) {
+                               uint64_t expected_first_doc, uint32_t perms, absl::Status* error) {
   std::string_view rest = file.substr(offset);
   auto corrupt = [&](std::string_view what) {
     *error = absl::DataLossError(
@@ -116,8 +120,7 @@ SegmentScan SegmentView::Parse(std::string_view file, uint64_t offset, uint32_t 
   if (commit.segment_number != expected_number || commit.body_length != layout_.body_length) {
     return corrupt("commit record does not match its segment");
   }
-  if (Checksum(rest.substr(0, kSegmentHeaderSize + layout_.tables_end)) !=
-      commit.tables_checksum) {
+  if (Checksum(rest.substr(0, kSegmentHeaderSize + layout_.tables_end)) != commit.tables_checksum) {
     return corrupt("checksum mismatch");
   }
   perms_ = perms;
@@ -147,8 +150,8 @@ std::string_view SegmentView::shingle_bytes(uint32_t local) const {
 
 absl::Status SegmentView::CheckTables(uint64_t offset) {
   auto bad = [&](std::string_view what) {
-    return absl::DataLossError(absl::StrFormat("index segment %u at byte %u: %s",
-                                               header_.segment_number, offset, what));
+    return absl::DataLossError(
+        absl::StrFormat("index segment %u at byte %u: %s", header_.segment_number, offset, what));
   };
   absl::Status documents = CheckDocuments(offset);
   if (!documents.ok()) return documents;
@@ -168,8 +171,8 @@ absl::Status SegmentView::CheckTables(uint64_t offset) {
 
 absl::Status SegmentView::CheckDocuments(uint64_t offset) {
   auto bad = [&](std::string_view what) {
-    return absl::DataLossError(absl::StrFormat("index segment %u at byte %u: %s",
-                                               header_.segment_number, offset, what));
+    return absl::DataLossError(
+        absl::StrFormat("index segment %u at byte %u: %s", header_.segment_number, offset, what));
   };
   uint64_t id_end = 0, shingle_end = 0;
   for (uint32_t i = 0; i < header_.doc_count; ++i) {

@@ -20,9 +20,9 @@ absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, Fil
 
 absl::Status CheckWritable(const IndexSettings& settings, const SignedCorpus& corpus) {
   if (corpus.perms() != settings.signature.perms) {
-    return absl::InvalidArgumentError(absl::StrFormat(
-        "signatures of %u slots cannot go into an index of %u-slot signatures", corpus.perms(),
-        settings.signature.perms));
+    return absl::InvalidArgumentError(
+        absl::StrFormat("signatures of %u slots cannot go into an index of %u-slot signatures",
+                        corpus.perms(), settings.signature.perms));
   }
   if (settings.bands < 1 || settings.rows < 1 ||
       uint64_t{settings.bands} * settings.rows > settings.signature.perms) {
