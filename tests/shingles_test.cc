@@ -190,6 +190,55 @@ TEST_CASE("stats count tokens and report the path taken") {
   CHECK(stats.tokens == 3);  // "a b"
 }
 
+TEST_CASE("a bag holds every window in document order") {
+  const std::string texts[] = {
+      "one two three two three four one two three",
+      "caf\xC3\xA9 au lait, caf\xC3\xA9 au lait \xE2\x80\x94 noir", "", "solo"};
+  for (const std::string& text : texts) {
+    for (auto mode : {ShingleMode::kWord, ShingleMode::kChar}) {
+      const auto settings = Settings(mode, 2);
+      INFO("text \"" << text << "\" mode " << ShingleModeName(mode));
+      auto shingler = Shingler::Create(settings);
+      REQUIRE(shingler.ok());
+      std::vector<uint64_t> bag;
+      REQUIRE((*shingler)->ShingleBag(text, &bag).ok());
+      auto shingles = ShingleTexts(text, settings);
+      REQUIRE(shingles.ok());
+      std::vector<uint64_t> expected;
+      for (const ShingleText& s : *shingles) {
+        expected.push_back(HashShingle(s.text, kDefaultSeed));
+      }
+      CHECK(bag == expected);
+      SortShingles(&bag);
+      CHECK(bag == SetOf(text, settings));
+    }
+  }
+}
+
+TEST_CASE("SortShingles sorts and removes repeats, also for crowded buckets") {
+  std::mt19937_64 random(5);  // sequence fixed by the C++ standard
+  for (size_t n : {0, 1, 2, 31, 32, 33, 100, 1000, 5000}) {
+    std::vector<uint64_t> bag;
+    for (size_t i = 0; i < n; ++i) {
+      const uint64_t r = random();
+      // A third share their top 20 bits (one crowded bucket), a third are
+      // repeats of earlier values.
+      if (i % 3 == 0)
+        bag.push_back(r >> 20);
+      else if (i % 3 == 1 && !bag.empty())
+        bag.push_back(bag[r % bag.size()]);
+      else
+        bag.push_back(r);
+    }
+    std::vector<uint64_t> expected = bag;
+    std::sort(expected.begin(), expected.end());
+    expected.erase(std::unique(expected.begin(), expected.end()),
+                   expected.end());
+    SortShingles(&bag);
+    CHECK(bag == expected);
+  }
+}
+
 TEST_CASE("invalid settings are refused") {
   SignatureSettings settings;
   settings.k = 0;

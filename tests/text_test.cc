@@ -3,9 +3,12 @@
 // test files and, for the ASCII fast path, against ICU by differential tests.
 #include "kindred/text.h"
 
+#include <stdlib.h>
+
 #include <algorithm>
 #include <catch2/catch.hpp>
 #include <cstdio>
+#include <filesystem>
 #include <fstream>
 #include <memory>
 #include <random>
@@ -278,6 +281,79 @@ TEST_CASE("ill-formed UTF-8 becomes U+FFFD per maximal subpart") {
   REQUIRE(normalized.ok());
   CHECK(stats.invalid_utf8 == 6);
   CHECK(*normalized == repaired);
+}
+
+std::string Hex(const std::string& bytes) {
+  static const char kDigits[] = "0123456789abcdef";
+  std::string out;
+  for (unsigned char c : bytes) {
+    out += kDigits[c >> 4];
+    out += kDigits[c & 15];
+  }
+  return out;
+}
+
+TEST_CASE("replacement decoding equals Python's on random bytes") {
+  // Reference: Python 3's bytes.decode("utf-8", "replace"), run by
+  // tests/reference/shingle_reference.py --repair on the same files.
+  namespace fs = std::filesystem;
+  std::string pattern =
+      (fs::temp_directory_path() / "kindred_text_XXXXXX").string();
+  REQUIRE(mkdtemp(pattern.data()) != nullptr);
+  const fs::path dir = pattern;
+  // Bytes drawn mostly from the lead and continuation ranges of Table 3-7.
+  const unsigned char interesting[] = {0x00, 0x41, 0x7F, 0x80, 0x8F, 0x90, 0x9F,
+                                       0xA0, 0xBF, 0xC0, 0xC1, 0xC2, 0xDF, 0xE0,
+                                       0xE1, 0xEC, 0xED, 0xEE, 0xEF, 0xF0, 0xF1,
+                                       0xF3, 0xF4, 0xF5, 0xF8, 0xFE, 0xFF};
+  std::mt19937_64 random(2718);  // sequence fixed by the C++ standard
+  std::vector<std::string> docs;
+  for (int d = 0; d < 400; ++d) {
+    std::string doc;
+    const size_t length = random() % 24;
+    for (size_t i = 0; i < length; ++i) {
+      const uint64_t r = random();
+      doc += static_cast<char>((r & 1)
+                                   ? interesting[(r >> 1) % sizeof(interesting)]
+                                   : static_cast<unsigned char>(r >> 8));
+    }
+    docs.push_back(doc);
+    char name[16];
+    std::snprintf(name, sizeof(name), "d%03d", d);
+    std::ofstream(dir / name, std::ios::binary) << doc;
+  }
+  const std::string command =
+      std::string("/usr/bin/python3 ") + KINDRED_SOURCE_DIR +
+      "/tests/reference/shingle_reference.py --repair '" + dir.string() + "'";
+  FILE* pipe = popen(command.c_str(), "r");
+  REQUIRE(pipe != nullptr);
+  std::string output;
+  char buffer[4096];
+  while (fgets(buffer, sizeof(buffer), pipe) != nullptr) output += buffer;
+  CHECK(pclose(pipe) == 0);
+  fs::remove_all(dir);
+  std::istringstream lines(output);
+  std::string line;
+  int compared = 0;
+  while (std::getline(lines, line)) {
+    std::istringstream fields(line);
+    std::string tag, name, count, hex;
+    std::getline(fields, tag, '\t');
+    std::getline(fields, name, '\t');
+    std::getline(fields, count, '\t');
+    std::getline(fields, hex, '\t');
+    const std::string& doc = docs.at(std::stoi(name.substr(1)));
+    uint32_t replaced = 0;
+    const std::string repaired = RepairUtf8(doc, &replaced);
+    INFO("input " << Hex(doc));
+    CHECK(Hex(repaired) == hex);
+    CHECK(replaced == std::stoul(count));
+    TextStats stats;
+    REQUIRE(NormalizeText(doc, &stats).ok());
+    CHECK(stats.invalid_utf8 == replaced);
+    ++compared;
+  }
+  CHECK(compared == 400);
 }
 
 TEST_CASE("surrogates, overlongs and out-of-range bytes are ill-formed") {

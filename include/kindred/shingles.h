@@ -62,6 +62,13 @@ class Shingler {
   absl::Status Shingle(std::string_view utf8, ShingleSet* out,
                        TextStats* stats = nullptr);
 
+  // Like Shingle, but leaves in *out the hash of every window in document
+  // order, repeats kept: a bag, not a set. A MinHash signature needs no more
+  // than that, so signing can skip the sort; SortShingles turns the bag into
+  // the set Shingle gives. Fails like Shingle.
+  absl::Status ShingleBag(std::string_view utf8, std::vector<uint64_t>* out,
+                          TextStats* stats = nullptr);
+
   const SignatureSettings& settings() const { return settings_; }
 
  private:
@@ -82,6 +89,12 @@ class Shingler {
   bool ascii_fast_path_;
   std::unique_ptr<Impl> impl_;
 };
+
+// Turns a bag of shingle hashes (Shingler::ShingleBag) into a ShingleSet in
+// place: sorted ascending, repeats removed. Expected linear time (hashes are
+// spread evenly; crafted ones cost at most O(n log n)). Allocates scratch
+// space of about the bag's size. Thread-safe.
+void SortShingles(std::vector<uint64_t>* hashes);
 
 // One shingle as text: exactly the bytes that get hashed, and the byte span
 // [begin, end) of the original input it covers.

@@ -25,6 +25,12 @@ uint64_t HashShingle(std::string_view shingle_utf8, uint64_t seed) {
   return XXH3_64bits_withSeed(shingle_utf8.data(), shingle_utf8.size(), seed);
 }
 
+void SortShingles(std::vector<uint64_t>* hashes) {
+  std::vector<uint64_t> scratch;
+  std::vector<uint32_t> counts;
+  text_internal::SortUniqueHashes(hashes, &scratch, &counts);
+}
+
 namespace {
 
 // A grow-only array whose contents are not initialized.
@@ -191,6 +197,18 @@ void HashCharWindows(const char* arena, const uint32_t* marks, size_t points,
 
 absl::Status Shingler::Shingle(std::string_view utf8, ShingleSet* out,
                                TextStats* stats) {
+  absl::Status status = ShingleBag(utf8, out, stats);
+  if (status.ok()) {
+    text_internal::SortUniqueHashes(out, &impl_->sort_scratch,
+                                    &impl_->sort_counts);
+  }
+  impl_->TrimScratch();
+  return status;
+}
+
+absl::Status Shingler::ShingleBag(std::string_view utf8,
+                                  std::vector<uint64_t>* out,
+                                  TextStats* stats) {
   out->clear();
   if (utf8.size() >= std::numeric_limits<uint32_t>::max()) {
     return absl::OutOfRangeError(absl::StrFormat(
@@ -213,8 +231,6 @@ absl::Status Shingler::Shingle(std::string_view utf8, ShingleSet* out,
     local.invalid_utf8 = *replaced;
     local.tokens = static_cast<uint32_t>(ShingleIcuChars(out));
   }
-  text_internal::SortUniqueHashes(out, &impl_->sort_scratch,
-                                  &impl_->sort_counts);
   impl_->TrimScratch();
   if (stats != nullptr) *stats = local;
   return absl::OkStatus();

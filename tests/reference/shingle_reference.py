@@ -7,11 +7,15 @@ segmentation and the White_Space property, and Python xxhash (Debian
 python3-xxhash) for XXH3-64. It shares no code with the C++ implementation.
 
 Usage: shingle_reference.py --seed N [--pairs] DIR
+       shingle_reference.py --repair DIR
 Reads every regular file under DIR (recursively, sorted by relative path) as
 one document and prints, for word k = 1, 3, 5 and char k = 3, 5:
   S <TAB> path <TAB> mode <TAB> k <TAB> invalid <TAB> hex hashes (sorted, space separated)
 and with --pairs, for every pair of documents a < b:
   J <TAB> mode <TAB> k <TAB> path_a <TAB> path_b <TAB> |A & B| <TAB> |A | B|
+With --repair it prints instead, for each document, its bytes decoded with
+errors="replace" and encoded back to UTF-8:
+  R <TAB> path <TAB> replacements <TAB> hex of the repaired bytes
 """
 
 import argparse
@@ -91,11 +95,20 @@ def documents(root):
 
 def main():
     parser = argparse.ArgumentParser()
-    parser.add_argument("--seed", type=int, required=True)
+    parser.add_argument("--seed", type=int, default=0)
     parser.add_argument("--pairs", action="store_true")
+    parser.add_argument("--repair", action="store_true")
     parser.add_argument("dir")
     args = parser.parse_args()
     out = sys.stdout
+    if args.repair:
+        for path in documents(args.dir):
+            with open(os.path.join(args.dir, path), "rb") as f:
+                data = f.read()
+            repaired = data.decode("utf-8", "replace").encode("utf-8")
+            out.write("R\t%s\t%d\t%s\n" % (path, count_replacements(data),
+                                               repaired.hex()))
+        return
     sets = {}
     for path in documents(args.dir):
         with open(os.path.join(args.dir, path), "rb") as f:
