@@ -7,8 +7,8 @@
 #include <bit>
 #include <cassert>
 #include <cmath>
-#include <cstring>
 
+#include "core/contract_internal.h"
 #include "kindred/signer.h"
 
 namespace kindred {
@@ -89,7 +89,8 @@ BandingCost CostOf(Banding banding, double threshold, double fn_weight, double f
 
 std::vector<BandingCost> RankBandings(double threshold, uint32_t perms, double fn_weight,
                                       double fp_weight, double min_recall) {
-  assert(threshold > 0 && threshold <= 1 && perms >= 1);
+  internal::RequireContract(threshold > 0 && threshold <= 1 && perms >= 1,
+                            "RankBandings needs a threshold in (0, 1] and perms >= 1");
   std::vector<BandingCost> ranked;
   Grid below, above;
   for (uint32_t rows = 1; rows <= perms; ++rows) {
@@ -113,7 +114,10 @@ Banding ChooseBanding(double threshold, uint32_t perms, double fn_weight, double
 }
 
 void BandKeys(absl::Span<const uint32_t> signature, Banding banding, absl::Span<uint64_t> out) {
-  assert(out.size() == banding.bands && banding.slots() <= signature.size());
+  internal::RequireContract(
+      out.size() == banding.bands && banding.rows >= 1 && banding.slots() <= signature.size(),
+      "BandKeys needs out.size() == bands, rows >= 1 and bands * rows "
+      "<= signature.size()");
   const uint32_t rows = banding.rows;
   for (uint32_t band = 0; band < banding.bands; ++band) {
     const uint32_t* slots = signature.data() + size_t{band} * rows;

@@ -3,7 +3,8 @@
 #include <algorithm>
 #include <array>
 #include <bit>
-#include <cassert>
+
+#include "core/contract_internal.h"
 
 namespace kindred {
 namespace {
@@ -73,7 +74,7 @@ uint32_t NextFilled(const BinBitmap& bins, uint32_t start, uint32_t perms) {
     word = word + 1 == words ? 0 : word + 1;
     bits = bins[word];
   }
-  assert(false && "NextFilled requires a filled bin");
+  internal::RequireContract(false, "densification needs a filled bin");
   return 0;
 }
 
@@ -84,7 +85,7 @@ Signer::Signer(const SignatureSettings& settings)
       perms_(settings.perms),
       value_seed_(Mix64(settings.seed ^ kValueSeedTweak)),
       probe_seed_(Mix64(settings.seed ^ kProbeSeedTweak)) {
-  assert(settings.Validate().ok());
+  internal::RequireContract(settings.Validate().ok(), "Signer needs valid settings");
   if (scheme_ == SignerScheme::kOnePermutation) {
     probe_table_.resize(size_t{perms_} * kTabledProbes);
     for (uint32_t bin = 0; bin < perms_; ++bin) {
@@ -106,7 +107,7 @@ Signer::Signer(const SignatureSettings& settings)
 }
 
 void Signer::Sign(absl::Span<const uint64_t> shingles, absl::Span<uint32_t> out) const {
-  assert(out.size() == perms_);
+  internal::RequireContract(out.size() == perms_, "Sign needs out.size() == perms");
   std::fill(out.begin(), out.end(), kEmptySlot);
   if (shingles.empty()) return;
   if (scheme_ == SignerScheme::kClassic) {
