@@ -56,6 +56,21 @@ absl::StatusOr<uint32_t> IcuWords::Normalize(std::string_view utf8) {
   return replaced;
 }
 
+void IcuWords::Trim(size_t bytes) {
+  const size_t unit = sizeof(char16_t);
+  if (decoded_.getCapacity() * unit > bytes)
+    icu::UnicodeString().swap(decoded_);
+  if (normalized_.getCapacity() * unit > bytes) {
+    words_->setText(empty_);  // drop the view of normalized_
+    icu::UnicodeString().swap(normalized_);
+  }
+  if (piece_.getCapacity() * unit > bytes) icu::UnicodeString().swap(piece_);
+  for (auto* v : {&unit_begin_, &span_begin_, &span_end_}) {
+    if (v->capacity() * sizeof(uint32_t) > bytes)
+      std::vector<uint32_t>().swap(*v);
+  }
+}
+
 void IcuWords::AppendPiece(int32_t begin, int32_t end, uint32_t orig_begin,
                            uint32_t orig_end, UErrorCode* status) {
   const UChar32 first = decoded_.char32At(begin);

@@ -39,6 +39,10 @@ class IcuWords {
   // the normalization of the whole text by that property's definition.
   absl::StatusOr<uint32_t> NormalizeWithSpans(std::string_view utf8);
 
+  // Frees buffers over `bytes` (after a huge document). normalized() and the
+  // spans are then invalid until the next Normalize call.
+  void Trim(size_t bytes);
+
   const icu::UnicodeString& normalized() const { return normalized_; }
   const std::vector<uint32_t>& span_begin() const { return span_begin_; }
   const std::vector<uint32_t>& span_end() const { return span_end_; }
@@ -66,6 +70,7 @@ class IcuWords {
 
   const icu::Normalizer2* normalizer_;  // owned by ICU
   std::unique_ptr<icu::BreakIterator> words_;
+  const icu::UnicodeString empty_;
   icu::UnicodeString decoded_;
   icu::UnicodeString normalized_;
   icu::UnicodeString piece_;

@@ -86,6 +86,7 @@ struct Shingler::Impl {
     TrimVector(&marks, kKeepBytes);
     TrimVector(&sort_scratch, kKeepBytes);
     TrimVector(&sort_counts, kKeepBytes);
+    icu->Trim(kKeepBytes);
   }
 
   template <typename Container>
