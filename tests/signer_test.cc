@@ -18,11 +18,25 @@
 #include <algorithm>
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <cstdlib>
+#include <new>
 #include <string>
 #include <vector>
 
 #include "kindred/settings.h"
 #include "testlib/similar_sets.h"
+
+// Every allocation of this test program is counted, so that a test can check
+// that a call allocates nothing.
+static size_t allocations = 0;
+
+void* operator new(size_t size) {
+  ++allocations;
+  if (void* p = std::malloc(size == 0 ? 1 : size)) return p;
+  throw std::bad_alloc();
+}
+void operator delete(void* p) noexcept { std::free(p); }
+void operator delete(void* p, size_t) noexcept { std::free(p); }
 
 namespace kindred {
 namespace {
@@ -251,6 +265,26 @@ TEST_CASE("seeds, order and repeats", "[signer]") {
     std::vector<uint64_t> shuffled(set.rbegin(), set.rend());
     shuffled.push_back(set[3]);
     CHECK(signer.Sign(shuffled) == sig);
+  }
+}
+
+TEST_CASE("Sign() allocates nothing", "[signer]") {
+  SplitMix64 random(11);
+  std::vector<std::vector<uint64_t>> sets;
+  for (int size : {0, 1, 3, 50, 128, 1000}) {
+    std::vector<uint64_t> set(size);
+    for (uint64_t& x : set) x = random.Next();
+    sets.push_back(set);
+  }
+  for (SignerScheme scheme : {SignerScheme::kOnePermutation, SignerScheme::kClassic}) {
+    const Signer signer = MakeSigner(scheme, 256);
+    std::vector<uint32_t> out(256);
+    const size_t before = allocations;
+    for (const auto& set : sets) signer.Sign(set, absl::MakeSpan(out));
+    CHECK(allocations == before);
+    // The counter is live: the convenience overload allocates its vector.
+    CHECK(signer.Sign(sets[3]).size() == 256);
+    CHECK(allocations > before);
   }
 }
 
