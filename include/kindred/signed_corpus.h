@@ -3,8 +3,8 @@
 // SignedCorpus holds, for every document in first-seen order, what the later
 // stages need: its id, its keep-policy facts, its MinHash signature and its
 // shingle set (for exact verification). Storage is flat (one arena for all
-// shingle sets, one for all signatures), so a million documents cost a few
-// allocations, not millions.
+// shingle sets, one for all signatures, each in large blocks that never
+// move), so a million documents cost a few allocations, not millions.
 //
 // SignCorpus() fills one from a CorpusReader, shingling and signing on a pool
 // of threads while the next batch is read; the result does not depend on the
@@ -21,6 +21,7 @@
 
 #include "absl/status/status.h"
 #include "absl/types/span.h"
+#include "kindred/block_arena.h"
 #include "kindred/corpus.h"
 #include "kindred/groups.h"
 #include "kindred/settings.h"
@@ -51,11 +52,10 @@ class SignedCorpus {
   absl::Span<const KeepFacts> all_facts() const { return facts_; }
   const DocumentOrigin& origin(size_t doc) const { return origins_[doc]; }
   absl::Span<const uint64_t> shingles(size_t doc) const {
-    return absl::MakeConstSpan(shingles_.data() + shingle_begin_[doc],
-                               shingle_begin_[doc + 1] - shingle_begin_[doc]);
+    return absl::MakeConstSpan(shingle_data_[doc], shingle_count_[doc]);
   }
   absl::Span<const uint32_t> signature(size_t doc) const {
-    return absl::MakeConstSpan(signatures_.data() + doc * perms_, perms_);
+    return absl::MakeConstSpan(signature_data_[doc], perms_);
   }
 
  private:
@@ -63,9 +63,11 @@ class SignedCorpus {
   std::vector<std::string> ids_;
   std::vector<KeepFacts> facts_;
   std::vector<DocumentOrigin> origins_;
-  std::vector<uint64_t> shingle_begin_{0};
-  std::vector<uint64_t> shingles_;
-  std::vector<uint32_t> signatures_;
+  std::vector<const uint64_t*> shingle_data_;
+  std::vector<uint32_t> shingle_count_;
+  std::vector<const uint32_t*> signature_data_;
+  BlockArena<uint64_t> shingles_;
+  BlockArena<uint32_t> signatures_;
 };
 
 // What signing saw, beyond the documents themselves.

@@ -3,7 +3,8 @@
 #include <future>
 #include <memory>
 
-#include "absl/container/flat_hash_map.h"
+#include "absl/container/flat_hash_set.h"
+#include "absl/hash/hash.h"
 #include "absl/strings/str_cat.h"
 #include "kindred/parallel.h"
 #include "kindred/shingles.h"
@@ -17,9 +18,9 @@ void SignedCorpus::Add(std::string id, const KeepFacts& facts, const DocumentOri
   ids_.push_back(std::move(id));
   facts_.push_back(facts);
   origins_.push_back(origin);
-  shingles_.insert(shingles_.end(), shingles.begin(), shingles.end());
-  shingle_begin_.push_back(shingles_.size());
-  signatures_.insert(signatures_.end(), signature.begin(), signature.end());
+  shingle_data_.push_back(shingles_.Append(shingles.data(), shingles.size()));
+  shingle_count_.push_back(static_cast<uint32_t>(shingles.size()));
+  signature_data_.push_back(signatures_.Append(signature.data(), signature.size()));
 }
 
 namespace {
@@ -39,6 +40,32 @@ std::string Place(const CorpusReader& reader, const Document& doc) {
   return absl::StrCat(input, ":", doc.source.line);
 }
 
+// Where an already signed document was read, for messages.
+std::string PlaceOf(const CorpusReader& reader, const SignedCorpus& corpus, uint32_t doc) {
+  const DocumentOrigin& origin = corpus.origin(doc);
+  const ResolvedInput input = reader.ResolvedInputs()[origin.input];
+  if (origin.line > 0) return absl::StrCat(input.name, ":", origin.line);
+  if (input.is_directory) return absl::StrCat(input.name, "/", corpus.id(doc));
+  return input.name;
+}
+
+// The set of ids seen so far, holding document indices and hashing the ids
+// they name in the corpus, so no id is stored twice.
+struct IdHash {
+  using is_transparent = void;
+  const SignedCorpus* corpus;
+  size_t operator()(uint32_t doc) const { return (*this)(corpus->id(doc)); }
+  size_t operator()(absl::string_view id) const { return absl::Hash<absl::string_view>{}(id); }
+};
+struct IdEq {
+  using is_transparent = void;
+  const SignedCorpus* corpus;
+  absl::string_view Id(uint32_t doc) const { return corpus->id(doc); }
+  absl::string_view Id(absl::string_view id) const { return id; }
+  template <typename A, typename B>
+  bool operator()(const A& a, const B& b) const { return Id(a) == Id(b); }
+};
+
 }  // namespace
 
 absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
@@ -52,8 +79,8 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
   }
   const Signer signer(settings);
   const uint32_t perms = settings.perms;
-  // First place each id was seen, to reject repeats with both places named.
-  absl::flat_hash_map<std::string, std::string> first_place;
+  // Ids seen so far, to reject repeats with both places named.
+  absl::flat_hash_set<uint32_t, IdHash, IdEq> seen(0, IdHash{out}, IdEq{out});
 
   std::vector<Document> batch, next_batch;
   BatchResults results;
@@ -85,12 +112,11 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
                             absl::StrCat(Place(reader, doc), ": document \"", doc.id,
                                          "\": ", results.errors[i].message()));
       }
-      auto [it, fresh] = first_place.try_emplace(doc.id, Place(reader, doc));
-      if (!fresh) {
+      if (auto it = seen.find(absl::string_view(doc.id)); it != seen.end()) {
         pending.wait();
         return absl::InvalidArgumentError(absl::StrCat(Place(reader, doc), ": duplicate id \"",
-                                                       doc.id, "\" (first seen at ", it->second,
-                                                       ")"));
+                                                       doc.id, "\" (first seen at ",
+                                                       PlaceOf(reader, *out, *it), ")"));
       }
       const TextStats& text = results.text_stats[i];
       stats->documents++;
@@ -104,6 +130,7 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
       const KeepFacts facts{doc.text.size(), doc.priority, doc.has_priority};
       out->Add(std::move(doc.id), facts, DocumentOrigin{doc.source.input, doc.source.line},
                results.sets[i], absl::MakeConstSpan(&results.signatures[i * perms], perms));
+      seen.insert(static_cast<uint32_t>(out->size() - 1));
     }
     if (options.progress) options.progress(*stats);
     count = pending.get();

@@ -1,0 +1,77 @@
+// kindred: append-only storage in large blocks, for the per-document arrays
+// of a signed corpus (shingle sets, signatures).
+//
+// Growing one std::vector by doubling copies everything several times and
+// faults in fresh pages at each step; on a corpus of millions of documents
+// that cost more than signing itself. Blocks are never moved, so appending
+// copies each value once, and blocks are 2 MiB aligned and advised as huge
+// pages where the kernel allows it, which cuts page faults by ~500x.
+//
+// Not thread-safe for Append; reads of appended data may be concurrent.
+#ifndef KINDRED_BLOCK_ARENA_H_
+#define KINDRED_BLOCK_ARENA_H_
+
+#include <sys/mman.h>
+
+#include <algorithm>
+#include <cstdlib>
+#include <cstring>
+#include <memory>
+#include <new>
+#include <vector>
+
+namespace kindred {
+
+template <typename T>
+class BlockArena {
+ public:
+  static constexpr size_t kAlignment = size_t{2} << 20;        // one huge page
+  static constexpr size_t kBlockBytes = size_t{32} << 20;      // per block
+
+  BlockArena() = default;
+  BlockArena(BlockArena&&) noexcept = default;
+  BlockArena& operator=(BlockArena&&) noexcept = default;
+
+  // Copies `count` values into contiguous storage and returns where they
+  // are; valid for the arena's lifetime. Requires count > 0 or returns null.
+  const T* Append(const T* values, size_t count) {
+    if (count == 0) return nullptr;
+    if (blocks_.empty() || free_ < count) NewBlock(count);
+    T* out = next_;
+    std::memcpy(out, values, count * sizeof(T));
+    next_ += count;
+    free_ -= count;
+    return out;
+  }
+
+  // Bytes held by the arena's blocks.
+  size_t bytes_reserved() const { return reserved_; }
+
+ private:
+  struct Free {
+    void operator()(T* block) const { std::free(block); }
+  };
+
+  void NewBlock(size_t at_least) {
+    const size_t bytes =
+        (std::max(kBlockBytes, at_least * sizeof(T)) + kAlignment - 1) / kAlignment * kAlignment;
+    void* memory = std::aligned_alloc(kAlignment, bytes);
+    if (memory == nullptr) throw std::bad_alloc();
+#ifdef MADV_HUGEPAGE
+    madvise(memory, bytes, MADV_HUGEPAGE);
+#endif
+    blocks_.emplace_back(static_cast<T*>(memory));
+    next_ = blocks_.back().get();
+    free_ = bytes / sizeof(T);
+    reserved_ += bytes;
+  }
+
+  std::vector<std::unique_ptr<T, Free>> blocks_;
+  T* next_ = nullptr;
+  size_t free_ = 0;
+  size_t reserved_ = 0;
+};
+
+}  // namespace kindred
+
+#endif  // KINDRED_BLOCK_ARENA_H_
