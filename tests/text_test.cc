@@ -17,6 +17,7 @@
 #include <vector>
 
 #include "text/ascii_words.h"
+#include "text/icu_words.h"
 #include "unicode/brkiter.h"
 #include "unicode/locid.h"
 #include "unicode/normalizer2.h"
@@ -155,6 +156,28 @@ TEST_CASE("word segmentation agrees with WordBreakTest.txt (Unicode 15.0)") {
       CHECK(SpansOf(*tokens) == icu.kept);
       ++checked_ascii_path;
     }
+    // Every line: the token texts are ICU's kept segments of the whole
+    // normalized text (the tokenizer normalizes piece by piece to keep
+    // spans), and the spans are in order inside the line.
+    icu::UnicodeString normalized;
+    nfkc_cf->normalize(test.text, normalized, status);
+    REQUIRE(U_SUCCESS(status));
+    const IcuSegmentation expected = SegmentWithIcu(normalized);
+    const std::string normalized_utf8 = ToUtf8(normalized);
+    auto tokens = TokenizeWithSpans(utf8, TextPath::kIcu);
+    REQUIRE(tokens.ok());
+    REQUIRE(tokens->size() == expected.kept.size());
+    uint32_t previous_end = 0;
+    for (size_t i = 0; i < tokens->size(); ++i) {
+      const Span& want = expected.kept[i];
+      const Token& token = (*tokens)[i];
+      CHECK(token.text ==
+            normalized_utf8.substr(want.begin, want.end - want.begin));
+      CHECK(previous_end <= token.begin);
+      CHECK(token.begin < token.end);
+      CHECK(token.end <= utf8.size());
+      previous_end = token.end;
+    }
   }
   WARN("WordBreakTest.txt: " << lines << " lines, ICU agrees on " << icu_agrees
                              << ", ICU path checked on " << checked_icu_path
@@ -212,6 +235,9 @@ TEST_CASE("normalization is NFKC_Casefold (NormalizationTest.txt)") {
   //  (b) that form is in NFKC and is its own NFKC_Casefold (idempotent);
   //  (c) when c4 (the file's NFKC column) is unchanged by full case folding
   //      and has no Default_Ignorable_Code_Point, the form equals c4.
+  // Also, on all five columns: normalizing piece by piece between
+  // normalization boundaries (how the tokenizer keeps spans) gives the
+  // normalization of the whole string.
   std::ifstream probe(kNormalizationTest);
   REQUIRE(probe.good());
   const std::string command = std::string("bzcat ") + kNormalizationTest;
@@ -220,6 +246,8 @@ TEST_CASE("normalization is NFKC_Casefold (NormalizationTest.txt)") {
   UErrorCode status = U_ZERO_ERROR;
   const icu::Normalizer2* nfkc = icu::Normalizer2::getNFKCInstance(status);
   REQUIRE(U_SUCCESS(status));
+  auto pieces = text_internal::IcuWords::Create();
+  REQUIRE(pieces.ok());
   std::vector<icu::UnicodeString> columns;
   int lines = 0, against_c4 = 0, with_ypogegrammeni = 0;
   char buffer[4096];
@@ -238,6 +266,11 @@ TEST_CASE("normalization is NFKC_Casefold (NormalizationTest.txt)") {
       auto other = NormalizeText(ToUtf8(columns[i]));
       REQUIRE(other.ok());
       CHECK(*other == *form);  // (a)
+    }
+    for (int i = 0; i < 5; ++i) {  // piece by piece == whole
+      const std::string input = ToUtf8(columns[i]);
+      REQUIRE((*pieces)->NormalizeWithSpans(input).ok());
+      CHECK(ToUtf8((*pieces)->normalized()) == *NormalizeText(input));
     }
     const icu::UnicodeString form16 = icu::UnicodeString::fromUTF8(*form);
     CHECK(nfkc->isNormalized(form16, status));  // (b)
