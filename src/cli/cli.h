@@ -48,6 +48,8 @@ void RegisterCheck(CLI::App& app, int* exit_code);
 void RegisterInfo(CLI::App& app, int* exit_code);
 void RegisterAudit(CLI::App& app, int* exit_code);
 void RegisterCompact(CLI::App& app, int* exit_code);
+void RegisterTune(CLI::App& app, int* exit_code);
+void RegisterExplain(CLI::App& app, int* exit_code);
 
 }  // namespace kindred::cli
 

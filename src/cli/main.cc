@@ -49,6 +49,8 @@ int main(int argc, char** argv) {
   RegisterInfo(app, &exit_code);
   RegisterAudit(app, &exit_code);
   RegisterCompact(app, &exit_code);
+  RegisterTune(app, &exit_code);
+  RegisterExplain(app, &exit_code);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -1,0 +1,272 @@
+// RunTune: sign once per (shingle setting, perms), evaluate every
+// (banding, threshold) of the grid from those signatures.
+#include <algorithm>
+#include <map>
+#include <utility>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+#include "kindred/candidates.h"
+#include "kindred/parallel.h"
+#include "kindred/signed_corpus.h"
+#include "kindred/signer.h"
+#include "kindred/tune.h"
+#include "kindred/verify.h"
+
+namespace kindred {
+namespace {
+
+// One (threshold, banding) to evaluate for a given perms.
+struct PlannedSetting {
+  double threshold = 0;
+  Banding banding;
+  uint32_t rank = 0;
+};
+
+// The (threshold, banding) list of one perms, in grid order.
+std::vector<PlannedSetting> PlanSettings(const TuneGrid& grid, uint32_t perms) {
+  std::vector<PlannedSetting> planned;
+  for (double threshold : grid.thresholds) {
+    const std::vector<BandingCost> ranked = RankBandings(threshold, perms);
+    std::vector<Banding> chosen;
+    for (size_t i = 0; i < ranked.size() && i < grid.bandings_per_threshold; ++i) {
+      chosen.push_back(ranked[i].banding);
+    }
+    for (const Banding& extra : grid.extra_bandings) {
+      if (extra.slots() <= perms &&
+          std::find(chosen.begin(), chosen.end(), extra) == chosen.end()) {
+        chosen.push_back(extra);
+      }
+    }
+    for (const Banding& banding : chosen) {
+      uint32_t rank = 0;
+      while (!(ranked[rank].banding == banding)) ++rank;
+      planned.push_back({threshold, banding, rank + 1});
+    }
+  }
+  return planned;
+}
+
+double MeasureOf(const Overlap& overlap, Measure measure) {
+  return measure == Measure::kJaccard ? overlap.Jaccard() : overlap.Containment();
+}
+
+// Re-signs the documents of `base` with another perms.
+SignedCorpus Resign(const SignedCorpus& base, const SignatureSettings& settings, int threads) {
+  const Signer signer(settings);
+  const size_t n = base.size();
+  std::vector<uint32_t> signatures(n * settings.perms);
+  ParallelFor(n, threads, [&](size_t begin, size_t end, int) {
+    for (size_t doc = begin; doc < end; ++doc) {
+      signer.Sign(base.shingles(doc),
+                  absl::MakeSpan(signatures.data() + doc * settings.perms, settings.perms));
+    }
+  });
+  SignedCorpus corpus(settings.perms);
+  for (size_t doc = 0; doc < n; ++doc) {
+    corpus.Add(base.id(doc), base.facts(doc), base.origin(doc), base.shingles(doc),
+               absl::MakeConstSpan(signatures.data() + doc * settings.perms, settings.perms));
+  }
+  return corpus;
+}
+
+// Whether each labelled pair is a candidate under `banding`.
+std::vector<uint8_t> LabelledCandidates(const SignedCorpus& corpus,
+                                        absl::Span<const ResolvedPair> labelled, Banding banding) {
+  std::vector<uint8_t> candidate(labelled.size(), 0);
+  std::vector<uint64_t> keys_a(banding.bands), keys_b(banding.bands);
+  for (size_t i = 0; i < labelled.size(); ++i) {
+    BandKeys(corpus.signature(labelled[i].a), banding, absl::MakeSpan(keys_a));
+    BandKeys(corpus.signature(labelled[i].b), banding, absl::MakeSpan(keys_b));
+    for (uint32_t band = 0; band < banding.bands; ++band) {
+      if (keys_a[band] != kNoBandKey && keys_a[band] == keys_b[band]) candidate[i] = 1;
+    }
+  }
+  return candidate;
+}
+
+SimilarityHistogram CandidateHistogram(const SignedCorpus& corpus, Banding banding,
+                                       Measure measure, int threads) {
+  CandidateStats stats;
+  const std::vector<PackedPair> pairs = FindCandidatePairs(corpus, banding, threads, &stats);
+  constexpr size_t kChunk = 1 << 14;
+  const size_t chunks = (pairs.size() + kChunk - 1) / kChunk;
+  std::vector<SimilarityHistogram> parts(chunks, SimilarityHistogram{});
+  ParallelFor(chunks, threads, [&](size_t begin, size_t end, int) {
+    for (size_t chunk = begin; chunk < end; ++chunk) {
+      const size_t last = std::min(pairs.size(), (chunk + 1) * kChunk);
+      for (size_t i = chunk * kChunk; i < last; ++i) {
+        const Overlap overlap = MeasureOverlap(corpus.shingles(PairFirst(pairs[i])),
+                                               corpus.shingles(PairSecond(pairs[i])));
+        ++parts[chunk][HistogramBin(MeasureOf(overlap, measure))];
+      }
+    }
+  });
+  SimilarityHistogram total{};
+  for (const SimilarityHistogram& part : parts) {
+    for (size_t bin = 0; bin < total.size(); ++bin) total[bin] += part[bin];
+  }
+  return total;
+}
+
+struct Context {
+  const TuneOptions* options;
+  TuneResult* result;
+  uint32_t grid_order = 0;
+};
+
+// Scores every planned setting of one signing; appends to the ranking and
+// the signing list.
+void EvaluateSignature(const SignedCorpus& corpus, uint32_t shingle_index,
+                       const std::vector<PlannedSetting>& planned, Context* context) {
+  const TuneOptions& options = *context->options;
+  TuneResult& result = *context->result;
+  const ShingleEvaluation& shingles = result.shingles[shingle_index];
+  SignatureEvaluation signing;
+  signing.shingle = shingle_index;
+  signing.perms = corpus.perms();
+  for (const ResolvedPair& pair : result.labelled) {
+    signing.estimates.push_back(EstimateJaccard(corpus.signature(pair.a), corpus.signature(pair.b)));
+  }
+  std::map<std::pair<uint32_t, uint32_t>, std::pair<uint64_t, std::vector<uint8_t>>> by_banding;
+  const size_t first_score = result.ranking.size();
+  for (const PlannedSetting& plan : planned) {
+    auto key = std::pair(plan.banding.bands, plan.banding.rows);
+    auto it = by_banding.find(key);
+    if (it == by_banding.end()) {
+      if (options.progress) {
+        options.progress(absl::StrFormat("%s perms=%u: candidates under %ux%u",
+                                         shingles.shingle.ToString(), corpus.perms(),
+                                         plan.banding.bands, plan.banding.rows));
+      }
+      CandidateStats stats;
+      FindCandidatePairs(corpus, plan.banding, options.threads, &stats);
+      it = by_banding
+               .emplace(key, std::pair(stats.candidate_pairs,
+                                       LabelledCandidates(corpus, result.labelled, plan.banding)))
+               .first;
+    }
+    SettingScore score;
+    score.setting = {shingles.shingle, corpus.perms(), plan.banding, plan.threshold, plan.rank};
+    score.labels = ScoreLabels(result.labelled, shingles.labelled, it->second.second,
+                               plan.threshold, options.measure, options.beta, &score.wrong);
+    score.candidate_pairs = it->second.first;
+    score.candidates_per_document = static_cast<double>(score.candidate_pairs) / corpus.size();
+    score.meets_target = score.labels.recall >= options.target_recall;
+    score.grid_order = context->grid_order++;
+    result.ranking.push_back(std::move(score));
+  }
+  const SettingScore& best = *std::min_element(
+      result.ranking.begin() + first_score, result.ranking.end(), RanksBefore);
+  signing.best = best.setting;
+  signing.best_candidates = by_banding[{best.setting.banding.bands, best.setting.banding.rows}].second;
+  signing.best_histogram = CandidateHistogram(corpus, best.setting.banding, options.measure,
+                                              options.threads);
+  result.signatures.push_back(std::move(signing));
+}
+
+// Sign the corpus with one shingle setting and the first perms.
+absl::Status SignFirst(const OpenCorpus& open_corpus, const SignatureSettings& settings,
+                       const TuneOptions& options, SignedCorpus* corpus, SignStats* stats) {
+  absl::StatusOr<std::unique_ptr<CorpusReader>> reader = open_corpus();
+  if (!reader.ok()) return reader.status();
+  SignOptions sign;
+  sign.threads = options.threads;
+  return SignCorpus(**reader, settings, sign, corpus, stats);
+}
+
+// Resolves the labels against the first signed corpus.
+absl::Status ResolveOnce(const SignedCorpus& corpus, std::string_view labels_name,
+                         const TuneOptions& options, TuneResult* result) {
+  if (corpus.size() == 0) return absl::InvalidArgumentError("the corpus has no documents");
+  result->documents = corpus.size();
+  result->ids.assign(corpus.ids().begin(), corpus.ids().end());
+  absl::StatusOr<std::vector<ResolvedPair>> labelled = ResolveLabels(
+      result->labels, corpus.ids(), labels_name, options.skip_unknown_ids, &result->warnings);
+  if (!labelled.ok()) return labelled.status();
+  if (labelled->empty()) {
+    return absl::InvalidArgumentError(
+        absl::StrCat(std::string(labels_name), ": no labelled pair to evaluate"));
+  }
+  result->labelled = std::move(*labelled);
+  return absl::OkStatus();
+}
+
+absl::Status EvaluateShingle(const OpenCorpus& open_corpus, uint32_t shingle_index,
+                             std::string_view labels_name, Context* context) {
+  const TuneOptions& options = *context->options;
+  TuneResult& result = *context->result;
+  const ShingleChoice choice = options.grid.shingles[shingle_index];
+  if (options.progress) options.progress(absl::StrCat("signing with ", choice.ToString()));
+  TuneSetting first{choice, options.grid.perms[0], {}, 0, 0};
+  SignedCorpus base(first.perms);
+  SignStats stats;
+  absl::Status signed_ok = SignFirst(open_corpus, first.Signature(options), options, &base, &stats);
+  if (!signed_ok.ok()) return signed_ok;
+  if (shingle_index == 0) {
+    if (absl::Status s = ResolveOnce(base, labels_name, options, &result); !s.ok()) return s;
+  } else if (base.size() != result.documents) {
+    return absl::FailedPreconditionError("the corpus changed while it was read again");
+  }
+  ShingleEvaluation evaluation{choice, stats.empty_documents, {}};
+  for (const ResolvedPair& pair : result.labelled) {
+    const Overlap overlap = MeasureOverlap(base.shingles(pair.a), base.shingles(pair.b));
+    evaluation.labelled.push_back({overlap.shared, overlap.size_a, overlap.size_b,
+                                   overlap.Jaccard(), MeasureOf(overlap, options.measure)});
+  }
+  result.shingles.push_back(std::move(evaluation));
+  for (size_t p = 0; p < options.grid.perms.size(); ++p) {
+    const uint32_t perms = options.grid.perms[p];
+    const std::vector<PlannedSetting> planned = PlanSettings(options.grid, perms);
+    if (p == 0) {
+      EvaluateSignature(base, shingle_index, planned, context);
+    } else {
+      TuneSetting setting{choice, perms, {}, 0, 0};
+      const SignedCorpus corpus = Resign(base, setting.Signature(options), options.threads);
+      EvaluateSignature(corpus, shingle_index, planned, context);
+    }
+  }
+  return absl::OkStatus();
+}
+
+}  // namespace
+
+const SignatureEvaluation& TuneResult::SignatureOf(const TuneSetting& setting) const {
+  for (const SignatureEvaluation& signing : signatures) {
+    if (shingles[signing.shingle].shingle == setting.shingle && signing.perms == setting.perms) {
+      return signing;
+    }
+  }
+  return signatures.front();
+}
+
+const ShingleEvaluation& TuneResult::ShinglesOf(const TuneSetting& setting) const {
+  for (const ShingleEvaluation& evaluation : shingles) {
+    if (evaluation.shingle == setting.shingle) return evaluation;
+  }
+  return shingles.front();
+}
+
+absl::StatusOr<TuneResult> RunTune(const OpenCorpus& open_corpus,
+                                   std::vector<LabelledPair> labels,
+                                   std::string_view labels_name, const TuneOptions& options) {
+  if (absl::Status s = options.Validate(); !s.ok()) return s;
+  if (labels.empty()) {
+    return absl::InvalidArgumentError(
+        absl::StrCat(std::string(labels_name), ": no labelled pairs"));
+  }
+  TuneResult result;
+  result.labels = std::move(labels);
+  Context context{&options, &result};
+  for (uint32_t s = 0; s < options.grid.shingles.size(); ++s) {
+    if (absl::Status status = EvaluateShingle(open_corpus, s, labels_name, &context);
+        !status.ok()) {
+      return status;
+    }
+  }
+  std::sort(result.ranking.begin(), result.ranking.end(), RanksBefore);
+  result.target_met = result.recommended().meets_target;
+  return result;
+}
+
+}  // namespace kindred
