@@ -224,7 +224,7 @@ TEST_CASE("malformed JSON Lines name the file and line") {
   }
   for (const std::string line :
        {"{\"id\": \"a\", \"text\": \"b\"", "{\"id\": \"a\", \"text\": \"b\"} x", "not json",
-        "{\"id\": \"a\", \"text\": \"\xff\"}"}) {
+        "{\"id\": \"a\", \"text\": \"b\"}\xff"}) {
     WriteFile(path, good + line + "\n");
     auto result = ReadAll({path});
     CHECK(result.status().code() == absl::StatusCode::kInvalidArgument);
@@ -234,6 +234,20 @@ TEST_CASE("malformed JSON Lines name the file and line") {
   options.priority_field = "p";
   WriteFile(path, "{\"id\": \"a\", \"text\": \"b\", \"p\": \"high\"}\n");
   CHECK(ErrorOf(ReadAll({path}, options)) == path + ":1: field \"p\" is not a number");
+}
+
+TEST_CASE("invalid UTF-8 inside a JSON string becomes U+FFFD and is counted") {
+  TempDir dir;
+  const std::string path = dir.Path("broken.jsonl");
+  // \xff is never valid; \xe2\x82 is a truncated three-byte sequence: two
+  // replacements by the maximal-subpart practice (Unicode ch. 3).
+  WriteFile(path, "{\"id\": \"x\", \"text\": \"caf\xff \xe2\x82 ok\"}\n{\"id\": \"y\", \"text\": \"fine\"}\n");
+  auto docs = ReadAll({path});
+  REQUIRE(docs.ok());
+  REQUIRE(docs->size() == 2);
+  CHECK((*docs)[0].text == "caf\xEF\xBF\xBD \xEF\xBF\xBD ok");
+  CHECK((*docs)[0].invalid_utf8 == 2);
+  CHECK((*docs)[1].invalid_utf8 == 0);
 }
 
 TEST_CASE("after an error every later batch returns the same error") {

@@ -109,6 +109,10 @@ struct Document {
   std::string text;
   double priority = 0;
   bool has_priority = false;
+  // JSON Lines: ill-formed UTF-8 sequences of the raw line, replaced by
+  // U+FFFD before parsing (text files keep their bytes; the text module
+  // replaces and counts them there).
+  uint32_t invalid_utf8 = 0;
   DocumentSource source;
   // 0-based position in the whole stream of all inputs ("first seen" order).
   uint64_t ordinal = 0;

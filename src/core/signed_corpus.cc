@@ -118,7 +118,8 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
                                                        doc.id, "\" (first seen at ",
                                                        PlaceOf(reader, *out, *it), ")"));
       }
-      const TextStats& text = results.text_stats[i];
+      TextStats& text = results.text_stats[i];
+      text.invalid_utf8 += doc.invalid_utf8;
       stats->documents++;
       stats->bytes += doc.text.size();
       if (results.sets[i].empty()) stats->empty_documents++;

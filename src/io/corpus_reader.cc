@@ -125,6 +125,7 @@ absl::Status CorpusReader::Impl::ReadTextDocument(io::BufferedInput* input, Docu
   doc->source.line = 0;
   doc->priority = 0;
   doc->has_priority = false;
+  doc->invalid_utf8 = 0;
   return input->ReadRest(&doc->text);
 }
 

@@ -6,12 +6,14 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "text/utf8.h"
 
 namespace kindred::io {
 
 struct JsonLineParser::State {
   simdjson::dom::parser parser;
-  std::string padded;  // the line followed by SIMDJSON_PADDING readable bytes
+  std::string padded;    // the line followed by SIMDJSON_PADDING readable bytes
+  std::string repaired;  // a line with invalid UTF-8 replaced by U+FFFD
 };
 
 JsonLineParser::JsonLineParser(const InputOptions& options)
@@ -50,14 +52,32 @@ absl::Status ReadId(simdjson::dom::element value, absl::string_view where, absl:
 }  // namespace
 
 absl::Status JsonLineParser::Parse(absl::string_view line, absl::string_view where, Document* doc) {
-  std::string& padded = state_->padded;
-  if (padded.size() < line.size() + simdjson::SIMDJSON_PADDING) {
-    padded.resize(line.size() + simdjson::SIMDJSON_PADDING);
-  }
-  std::memcpy(padded.data(), line.data(), line.size());
-  std::memset(padded.data() + line.size(), ' ', simdjson::SIMDJSON_PADDING);
+  // Copies `text` into the reusable padded buffer and parses it.
+  const auto parse_root = [this](absl::string_view text, simdjson::dom::element* root) {
+    std::string& padded = state_->padded;
+    if (padded.size() < text.size() + simdjson::SIMDJSON_PADDING) {
+      padded.resize(text.size() + simdjson::SIMDJSON_PADDING);
+    }
+    std::memcpy(padded.data(), text.data(), text.size());
+    std::memset(padded.data() + text.size(), ' ', simdjson::SIMDJSON_PADDING);
+    return state_->parser.parse(padded.data(), text.size(), false).get(*root);
+  };
   simdjson::dom::element root;
-  if (auto error = state_->parser.parse(padded.data(), line.size(), false).get(root)) {
+  doc->invalid_utf8 = 0;
+  simdjson::error_code error = parse_root(line, &root);
+  if (error == simdjson::UTF8_ERROR) {
+    // Text is UTF-8 with replacement (ill-formed sequences become U+FFFD and
+    // are counted), in JSON Lines as in text files: a crawled line with a
+    // broken byte is read, not rejected.
+    icu::UnicodeString decoded;
+    doc->invalid_utf8 =
+        text_internal::DecodeUtf8(std::string_view(line.data(), line.size()), &decoded);
+    std::string& repaired = state_->repaired;
+    repaired.clear();
+    text_internal::AppendUtf8(decoded.getBuffer(), 0, decoded.length(), &repaired);
+    error = parse_root(repaired, &root);
+  }
+  if (error) {
     return absl::InvalidArgumentError(
         absl::StrCat(where, ": invalid JSON: ", simdjson::error_message(error)));
   }

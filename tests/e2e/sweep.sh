@@ -96,6 +96,10 @@ expect_stderr "big.jsonl:1" "oversized line named"
 printf 'a\0b\0c NUL bytes are only characters\n' >"$WORK/nul.txt"
 expect_exit 0 "NUL bytes" -- "$KINDRED" sweep "$WORK/nul.txt"
 
+printf '{"id":"u","text":"bad \xff byte"}\n{"id":"v","text":"fine"}\n' >"$WORK/badutf.jsonl"
+expect_exit 0 "invalid UTF-8 in JSON Lines is replaced, not fatal" -- "$KINDRED" sweep -v "$WORK/badutf.jsonl"
+expect_stderr "u: 1 invalid UTF-8 sequences" "verbose names the document"
+
 # 7. Usage errors exit 2.
 expect_exit 2 "bad threshold" -- "$KINDRED" sweep "$WORK/tree" --threshold 1.5
 expect_stderr "threshold" "threshold named"
