@@ -45,8 +45,11 @@ class Shingler {
  public:
   // Fails with InvalidArgument when `settings` does not validate, or Internal
   // when ICU cannot build its normalizer or word break iterator. With
-  // `ascii_fast_path` false, every document takes the ICU path (same result,
-  // slower; used to test the fast path).
+  // `ascii_fast_path` (the default), all-ASCII documents take a hand-written
+  // scanner, and in word mode a document with some non-ASCII text gives ICU
+  // only the stretches around it; with it false, every document takes the
+  // ICU path. The results are the same (the fast paths are tested against
+  // ICU); only the speed differs.
   static absl::StatusOr<std::unique_ptr<Shingler>> Create(
       const SignatureSettings& settings, bool ascii_fast_path = true);
 

@@ -47,9 +47,10 @@ void SortUniqueHashes(std::vector<uint64_t>* hashes,
   if (n < kSmallSort) {
     InsertionSort(hashes->data(), hashes->data() + n);
   } else {
-    // About two elements per bucket: few enough buckets to keep the counts
-    // small, few enough elements per bucket for insertion sort.
-    const int bits = std::bit_width(n - 1) - 1;
+    // About one element per bucket, and at most 2^24 buckets (64 MiB of
+    // counts) for huge documents.
+    const int bits =
+        static_cast<int>(std::min<size_t>(std::bit_width(n - 1), 24));
     const size_t buckets = size_t{1} << bits;
     counts->assign(buckets + 1, 0);
     if (scratch->size() < n) scratch->resize(n);
@@ -72,7 +73,14 @@ void SortUniqueHashes(std::vector<uint64_t>* hashes,
         start = end;
       }
     }
-    std::copy(out, out + n, hashes->data());
+    // Copy back, dropping repeats.
+    uint64_t* to = hashes->data();
+    *to = out[0];
+    for (size_t i = 1; i < n; ++i) {
+      if (out[i] != *to) *++to = out[i];
+    }
+    hashes->resize(to - hashes->data() + 1);
+    return;
   }
   hashes->erase(std::unique(hashes->begin(), hashes->end()), hashes->end());
 }

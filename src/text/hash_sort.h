@@ -9,7 +9,7 @@ namespace kindred::text_internal {
 
 // Sorts *hashes ascending and removes repeats. Hashes are uniformly spread
 // (seeded XXH3), so they are first distributed by their top bits into about
-// one bucket per two elements (a counting pass and a scatter pass), and each
+// one bucket per element (a counting pass and a scatter pass), and each
 // bucket is then sorted on its own: expected linear time. A bucket that
 // happens to be large is sorted with std::sort, so crafted input costs at
 // most O(n log n). `scratch` and `counts` are reusable work space.
