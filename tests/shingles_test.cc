@@ -354,6 +354,39 @@ TEST_CASE("mostly-ASCII documents: split path gives ICU's shingle sets") {
   }
 }
 
+TEST_CASE("arbitrary bytes: paths agree and spans stay inside the input") {
+  std::mt19937_64 random(31337);  // sequence fixed by the C++ standard
+  for (int doc = 0; doc < 200; ++doc) {
+    std::string text;
+    const size_t length = random() % 200;
+    for (size_t i = 0; i < length; ++i) {
+      const uint64_t r = random();
+      // Half ASCII letters and spaces, half any byte at all.
+      text += (r & 1) ? " aZ9.'\n"[(r >> 1) % 7] : static_cast<char>(r >> 8);
+    }
+    for (const auto& [mode, k] :
+         {std::pair{ShingleMode::kWord, 1u}, std::pair{ShingleMode::kWord, 3u},
+          std::pair{ShingleMode::kChar, 4u}}) {
+      const auto settings = Settings(mode, k);
+      INFO("document " << doc << " mode " << ShingleModeName(mode));
+      TextStats fast, icu;
+      const ShingleSet set = SetOf(text, settings, true, &fast);
+      CHECK(set == SetOf(text, settings, false, &icu));
+      CHECK(fast.invalid_utf8 == icu.invalid_utf8);
+      CHECK(fast.tokens == icu.tokens);
+      auto shingles = ShingleTexts(text, settings);
+      REQUIRE(shingles.ok());
+      Strings strings;
+      for (const ShingleText& s : *shingles) {
+        CHECK(s.begin < s.end);
+        CHECK(s.end <= text.size());
+        strings.push_back(s.text);
+      }
+      CHECK(HashAll(strings, kDefaultSeed) == set);
+    }
+  }
+}
+
 // ---------------------------------------------------------------------------
 // The independent reference.
 
