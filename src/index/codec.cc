@@ -99,6 +99,30 @@ void EncodeShingleSet(absl::Span<const uint64_t> set, std::string* out) {
   }
 }
 
+size_t EncodedShingleSetLength(absl::Span<const uint64_t> set) {
+  size_t length = 0;
+  uint64_t previous = 0;
+  for (uint64_t hash : set) {
+    length += VarintLength(hash - previous);
+    previous = hash;
+  }
+  return length;
+}
+
+char* EncodeShingleSetTo(absl::Span<const uint64_t> set, char* out) {
+  uint64_t previous = 0;
+  for (uint64_t hash : set) {
+    uint64_t v = hash - previous;
+    previous = hash;
+    while (v >= 0x80) {
+      *out++ = static_cast<char>(v | 0x80);
+      v >>= 7;
+    }
+    *out++ = static_cast<char>(v);
+  }
+  return out;
+}
+
 bool DecodeShingleSet(std::string_view bytes, uint32_t count, std::vector<uint64_t>* out) {
   ByteReader reader(bytes);
   uint64_t previous = 0;

@@ -32,6 +32,23 @@ inline uint64_t LoadU64(const char* p) {
   return v;
 }
 
+// Little-endian stores into memory the caller has sized.
+inline void StoreU32(char* p, uint32_t v) {
+  if constexpr (std::endian::native == std::endian::big) v = __builtin_bswap32(v);
+  std::memcpy(p, &v, 4);
+}
+inline void StoreU64(char* p, uint64_t v) {
+  if constexpr (std::endian::native == std::endian::big) v = __builtin_bswap64(v);
+  std::memcpy(p, &v, 8);
+}
+
+// Bytes of the LEB128 encoding of v (1..10).
+inline size_t VarintLength(uint64_t v) {
+  size_t n = 1;
+  while (v >= 0x80) v >>= 7, ++n;
+  return n;
+}
+
 // XXH3-64 with seed 0, the checksum of every persisted unit.
 uint64_t Checksum(std::string_view bytes);
 
@@ -81,6 +98,13 @@ class ByteReader {
 // Encodes a sorted, repeat-free set as delta varints (FORMAT.md,
 // shingle_bytes). Appends to *out.
 void EncodeShingleSet(absl::Span<const uint64_t> set, std::string* out);
+
+// Bytes EncodeShingleSet() writes for `set`.
+size_t EncodedShingleSetLength(absl::Span<const uint64_t> set);
+
+// Writes the encoding of `set` at `out`, which must have room for
+// EncodedShingleSetLength(set) bytes; returns the end of what it wrote.
+char* EncodeShingleSetTo(absl::Span<const uint64_t> set, char* out);
 
 // Decodes exactly `count` hashes from `bytes`, which must be consumed
 // exactly; checks that the hashes strictly ascend. Appends to *out; returns

@@ -182,6 +182,18 @@ void EncodeDocRecord(const DocRecord& r, std::string* out) {
   writer.U32(r.flags);
 }
 
+void StoreDocRecord(const DocRecord& r, char* out) {
+  StoreU64(out, r.id_offset);
+  StoreU64(out + 8, r.shingles_offset);
+  StoreU64(out + 16, r.shingles_checksum);
+  StoreU64(out + 24, r.text_length);
+  StoreU64(out + 32, std::bit_cast<uint64_t>(r.priority));
+  StoreU32(out + 40, r.id_length);
+  StoreU32(out + 44, r.shingle_count);
+  StoreU32(out + 48, r.shingles_length);
+  StoreU32(out + 52, r.flags);
+}
+
 DocRecord DecodeDocRecord(std::string_view bytes) {
   DocRecord r;
   ByteReader reader(bytes);

@@ -91,6 +91,8 @@ struct DocRecord {
 };
 
 void EncodeDocRecord(const DocRecord& record, std::string* out);
+// Writes the kDocRecordSize bytes of `record` at `out`.
+void StoreDocRecord(const DocRecord& record, char* out);
 // `bytes` must hold kDocRecordSize bytes.
 DocRecord DecodeDocRecord(std::string_view bytes);
 

@@ -1,6 +1,7 @@
 #include "index/segment.h"
 
 #include <algorithm>
+#include <cstring>
 #include <numeric>
 
 #include "absl/strings/str_format.h"
@@ -11,11 +12,6 @@ namespace {
 
 bool AllZero(std::string_view bytes) {
   return std::all_of(bytes.begin(), bytes.end(), [](char c) { return c == 0; });
-}
-
-void AppendPadded(std::string_view section, std::string* out) {
-  out->append(section);
-  ByteWriter(out).PadTo8();
 }
 
 // The sorted (key, local doc) table of `docs` under the stored banding.
@@ -39,55 +35,64 @@ std::vector<std::pair<uint64_t, uint32_t>> BandKeyTable(absl::Span<const Segment
 EncodedSegment EncodeSegment(uint32_t segment_number, uint64_t first_doc,
                              absl::Span<const SegmentDocument> docs,
                              absl::Span<const uint64_t> retired, const IndexSettings& settings) {
-  std::string doc_table, ids, shingles, id_order, signatures, keys, key_docs, retired_bytes;
-  for (const SegmentDocument& doc : docs) {
+  const uint32_t count = static_cast<uint32_t>(docs.size());
+  const uint32_t perms = settings.signature.perms;
+  SegmentHeader header{segment_number, count, 0, first_doc, 0, 0, 0, retired.size()};
+  // Sizes first, so the segment is laid out in one buffer sized once.
+  std::vector<uint64_t> shingle_end(count + 1, 0);
+  for (uint32_t i = 0; i < count; ++i) {
+    header.id_bytes += docs[i].id.size();
+    shingle_end[i + 1] = shingle_end[i] + EncodedShingleSetLength(docs[i].shingles);
+  }
+  header.shingle_bytes = shingle_end[count];
+  auto table = BandKeyTable(docs, settings);
+  header.key_count = table.size();
+  SectionLayout layout;
+  ComputeLayout(header, perms, UINT64_MAX, &layout);
+
+  EncodedSegment out;
+  out.head_and_body.resize(kSegmentHeaderSize + layout.body_length);  // zero padding
+  std::string head;
+  EncodeSegmentHeader(header, &head);
+  char* data = out.head_and_body.data();
+  std::memcpy(data, head.data(), kSegmentHeaderSize);
+  char* body = data + kSegmentHeaderSize;
+  uint64_t id_offset = 0;
+  for (uint32_t i = 0; i < count; ++i) {
+    const SegmentDocument& doc = docs[i];
+    char* set = body + layout.shingle_bytes + shingle_end[i];
+    EncodeShingleSetTo(doc.shingles, set);
     DocRecord record;
-    record.id_offset = ids.size();
+    record.id_offset = id_offset;
     record.id_length = static_cast<uint32_t>(doc.id.size());
-    ids.append(doc.id);
-    record.shingles_offset = shingles.size();
-    EncodeShingleSet(doc.shingles, &shingles);
-    record.shingles_length = static_cast<uint32_t>(shingles.size() - record.shingles_offset);
-    record.shingles_checksum = Checksum(std::string_view(shingles).substr(record.shingles_offset));
+    record.shingles_offset = shingle_end[i];
+    record.shingles_length = static_cast<uint32_t>(shingle_end[i + 1] - shingle_end[i]);
+    record.shingles_checksum = Checksum(std::string_view(set, record.shingles_length));
     record.shingle_count = static_cast<uint32_t>(doc.shingles.size());
     record.text_length = doc.facts.length;
     record.priority = doc.facts.priority;
     record.flags = doc.facts.has_priority ? kDocFlagHasPriority : 0;
-    EncodeDocRecord(record, &doc_table);
-    for (uint32_t slot : doc.signature) ByteWriter(&signatures).U32(slot);
+    StoreDocRecord(record, body + layout.doc_table + uint64_t{i} * kDocRecordSize);
+    std::memcpy(body + layout.id_bytes + id_offset, doc.id.data(), doc.id.size());
+    id_offset += doc.id.size();
+    char* signature = body + layout.signatures + uint64_t{i} * perms * 4;
+    for (uint32_t slot = 0; slot < perms; ++slot)
+      StoreU32(signature + 4 * slot, doc.signature[slot]);
   }
-  std::vector<uint32_t> order(docs.size());
+  std::vector<uint32_t> order(count);
   std::iota(order.begin(), order.end(), 0);
   std::sort(order.begin(), order.end(),
             [&](uint32_t a, uint32_t b) { return docs[a].id < docs[b].id; });
-  for (uint32_t local : order) ByteWriter(&id_order).U32(local);
-  auto table = BandKeyTable(docs, settings);
-  for (const auto& [key, local] : table) {
-    ByteWriter(&keys).U64(key);
-    ByteWriter(&key_docs).U32(local);
+  for (uint32_t i = 0; i < count; ++i) StoreU32(body + layout.id_order + 4 * i, order[i]);
+  for (uint64_t i = 0; i < table.size(); ++i) {
+    StoreU64(body + layout.band_keys + 8 * i, table[i].first);
+    StoreU32(body + layout.band_docs + 4 * i, table[i].second);
   }
-  for (uint64_t doc : retired) ByteWriter(&retired_bytes).U64(doc);
+  for (uint64_t i = 0; i < retired.size(); ++i) StoreU64(body + layout.retired + 8 * i, retired[i]);
 
-  SegmentHeader header{segment_number,
-                       static_cast<uint32_t>(docs.size()),
-                       0,
-                       first_doc,
-                       ids.size(),
-                       shingles.size(),
-                       table.size(),
-                       retired.size()};
-  EncodedSegment out;
-  EncodeSegmentHeader(header, &out.head_and_body);
-  for (std::string_view section :
-       {std::string_view(doc_table), std::string_view(id_order), std::string_view(signatures),
-        std::string_view(keys), std::string_view(key_docs), std::string_view(retired_bytes),
-        std::string_view(ids)}) {
-    AppendPadded(section, &out.head_and_body);
-  }
-  uint64_t tables_checksum = Checksum(out.head_and_body);
-  AppendPadded(shingles, &out.head_and_body);
-  CommitRecord commit{segment_number, out.head_and_body.size() - kSegmentHeaderSize,
-                      tables_checksum};
+  uint64_t tables_checksum = Checksum(
+      std::string_view(out.head_and_body).substr(0, kSegmentHeaderSize + layout.tables_end));
+  CommitRecord commit{segment_number, layout.body_length, tables_checksum};
   EncodeCommitRecord(commit, &out.commit);
   return out;
 }
