@@ -30,13 +30,28 @@
 // that a call allocates nothing.
 static size_t allocations = 0;
 
-void* operator new(size_t size) {
+// (All plain forms are replaced together so that every new pairs with its
+// delete.)
+static void* CountedAllocate(size_t size) noexcept {
   ++allocations;
-  if (void* p = std::malloc(size == 0 ? 1 : size)) return p;
+  return std::malloc(size == 0 ? 1 : size);
+}
+void* operator new(size_t size) {
+  if (void* p = CountedAllocate(size)) return p;
   throw std::bad_alloc();
 }
+void* operator new[](size_t size) {
+  if (void* p = CountedAllocate(size)) return p;
+  throw std::bad_alloc();
+}
+void* operator new(size_t size, const std::nothrow_t&) noexcept { return CountedAllocate(size); }
+void* operator new[](size_t size, const std::nothrow_t&) noexcept { return CountedAllocate(size); }
 void operator delete(void* p) noexcept { std::free(p); }
+void operator delete[](void* p) noexcept { std::free(p); }
 void operator delete(void* p, size_t) noexcept { std::free(p); }
+void operator delete[](void* p, size_t) noexcept { std::free(p); }
+void operator delete(void* p, const std::nothrow_t&) noexcept { std::free(p); }
+void operator delete[](void* p, const std::nothrow_t&) noexcept { std::free(p); }
 
 namespace kindred {
 namespace {
