@@ -54,6 +54,22 @@ done
 expect_rc 0 "check of an original upload" -- "$K" check "$INDEX" "$original" --fail-on-match -q
 [ ! -s "$T/out" ] || fail "an original upload printed matches"
 
+# A full disk during add (a file size limit makes the write fail with EFBIG,
+# as a full disk fails with ENOSPC): exit 7, and the index keeps every
+# committed document with no partial segment left behind.
+size_before=$(stat -c %s "$INDEX")
+(
+  trap '' XFSZ
+  ulimit -f $((size_before / 1024 + 8))
+  exec "$K" add "$INDEX" "$SUBMISSIONS" -q
+) >"$T/out" 2>"$T/err"
+rc=$?
+[ "$rc" -eq 7 ] || { cat "$T/err" >&2; fail "add on a full disk: exit $rc, expected 7"; }
+[ "$(stat -c %s "$INDEX")" -eq "$size_before" ] || fail "add on a full disk left bytes behind"
+expect_rc 0 "audit after a full disk" -- "$K" audit "$INDEX" -q
+expect_rc 0 "info after a full disk" -- "$K" info "$INDEX"
+grep -q "^documents *$documents live" "$T/out" || fail "full disk changed the document count"
+
 # Admit the submissions; a second add of the same ids is refused, or skipped.
 expect_rc 0 "add" -- "$K" add "$INDEX" "$SUBMISSIONS" -q
 expect_rc 3 "add of indexed ids" -- "$K" add "$INDEX" "$SUBMISSIONS" -q
