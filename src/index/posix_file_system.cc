@@ -121,6 +121,10 @@ class PosixFileSystem : public FileSystem {
       close(fd);
       return ErrnoStatus("cannot stat", path, error);
     }
+    if (!S_ISREG(st.st_mode)) {
+      close(fd);
+      return absl::InvalidArgumentError(absl::StrCat(path, " is not a regular file"));
+    }
     size_t size = static_cast<size_t>(st.st_size);
     void* data = nullptr;
     if (size > 0) {
