@@ -217,7 +217,7 @@ TEST_CASE("a bag holds every window in document order") {
 
 TEST_CASE("SortShingles sorts and removes repeats, also for crowded buckets") {
   std::mt19937_64 random(5);  // sequence fixed by the C++ standard
-  for (size_t n : {0, 1, 2, 31, 32, 33, 100, 1000, 5000}) {
+  for (size_t n : {0, 1, 2, 31, 32, 33, 100, 1000, 5000, 70000, 300000}) {
     std::vector<uint64_t> bag;
     for (size_t i = 0; i < n; ++i) {
       const uint64_t r = random();
