@@ -125,6 +125,18 @@ expect_rc 4 "check of a corrupt index" -- "$K" check "$T/flipped.kin" "$original
 grep -q "segment 0 at byte" "$T/err" || fail "corrupt index message"
 expect_rc 4 "audit of a corrupt index" -- "$K" audit "$T/flipped.kin"
 grep -q "^problem: " "$T/out" || fail "audit problem line"
+# A newer format version (header re-checksummed with XXH3-64 from Python's
+# xxhash package, an implementation independent of this project): exit 5.
+/usr/bin/python3 - "$INDEX" "$T/newer.kin" <<'PY'
+import struct, sys, xxhash
+data = bytearray(open(sys.argv[1], "rb").read())
+size = struct.unpack_from("<I", data, 12)[0]
+struct.pack_into("<I", data, 8, 2)
+struct.pack_into("<Q", data, size - 8, xxhash.xxh3_64_intdigest(bytes(data[:size - 8])))
+open(sys.argv[2], "wb").write(bytes(data))
+PY
+expect_rc 5 "check of a newer index" -- "$K" check "$T/newer.kin" "$original" -q
+grep -q "version 2 is newer" "$T/err" || fail "newer version message"
 # Not an index at all.
 expect_rc 4 "info of a text file" -- "$K" info "$SRC/sample_corpus/README.md"
 grep -q "not a kindred index" "$T/err" || fail "bad magic message"
