@@ -241,7 +241,9 @@ void RegisterExplain(CLI::App& app, int* exit_code) {
   command->add_option("b", flags->b, "second document: a file, or an id with --corpus/--index")
       ->required();
   command->add_option("--corpus", flags->corpus,
-                      "read the two documents by id from this corpus (directories or files)")
+                      "read the two documents by id from this corpus (a directory or file; "
+                      "repeat for more)")
+      ->allow_extra_args(false)
       ->group("Input");
   command->add_option("--index", flags->index,
                       "take the numbers from this index file (its settings); with --corpus also "
