@@ -342,10 +342,14 @@ TEST_CASE("mostly-ASCII documents: split path gives ICU's shingle sets") {
         text += ascii[random() % ascii.size()];
       }
     }
-    for (uint32_t k : {1u, 2u, 3u, 5u}) {
-      const auto settings = Settings(ShingleMode::kWord, k);
+    for (const auto& [mode, k] :
+         {std::pair{ShingleMode::kWord, 1u}, std::pair{ShingleMode::kWord, 2u},
+          std::pair{ShingleMode::kWord, 3u}, std::pair{ShingleMode::kWord, 5u},
+          std::pair{ShingleMode::kChar, 2u},
+          std::pair{ShingleMode::kChar, 5u}}) {
+      const auto settings = Settings(mode, k);
       TextStats split_stats, icu_stats;
-      INFO("text: \"" << text << "\" k=" << k);
+      INFO("text: \"" << text << "\" " << ShingleModeName(mode) << " k=" << k);
       CHECK(SetOf(text, settings, true, &split_stats) ==
             SetOf(text, settings, false, &icu_stats));
       CHECK(split_stats.tokens == icu_stats.tokens);

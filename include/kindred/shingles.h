@@ -46,8 +46,8 @@ class Shingler {
   // Fails with InvalidArgument when `settings` does not validate, or Internal
   // when ICU cannot build its normalizer or word break iterator. With
   // `ascii_fast_path` (the default), all-ASCII documents take a hand-written
-  // scanner, and in word mode a document with some non-ASCII text gives ICU
-  // only the stretches around it; with it false, every document takes the
+  // scanner, and a document with some non-ASCII text gives ICU only the
+  // stretches around it; with it false, every document takes the
   // ICU path. The results are the same (the fast paths are tested against
   // ICU); only the speed differs.
   static absl::StatusOr<std::unique_ptr<Shingler>> Create(
@@ -78,15 +78,16 @@ class Shingler {
   struct Impl;
   Shingler(const SignatureSettings& settings, bool ascii_fast_path,
            std::unique_ptr<Impl> impl);
-  // Each appends the unsorted window hashes of one path to *out and returns
-  // the number of tokens or code points. ShingleIcuChars reads the text that
-  // impl_->icu has just normalized. ShingleOtherWords, for documents that
-  // are not all ASCII, sets *tokens and returns the replacement count.
+  // Each appends the unsorted window hashes of one path to *out. The ASCII
+  // ones return the number of tokens or code points; the others, for
+  // documents that are not all ASCII, set *count to it and return the
+  // replacement count.
   size_t ShingleAsciiWords(std::string_view text, ShingleSet* out);
   size_t ShingleAsciiChars(std::string_view text, ShingleSet* out);
   absl::StatusOr<uint32_t> ShingleOtherWords(std::string_view text,
-                                             ShingleSet* out, uint32_t* tokens);
-  size_t ShingleIcuChars(ShingleSet* out);
+                                             ShingleSet* out, uint32_t* count);
+  absl::StatusOr<uint32_t> ShingleOtherChars(std::string_view text,
+                                             ShingleSet* out, uint32_t* count);
 
   SignatureSettings settings_;
   bool ascii_fast_path_;

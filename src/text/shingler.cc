@@ -67,8 +67,9 @@ class ScratchArray {
 struct Shingler::Impl {
   std::unique_ptr<IcuWords> icu;
   text_internal::WordArena words;  // word mode, documents not all ASCII
-  std::string arena;               // char mode, ICU path
-  std::vector<uint32_t> marks;     // char mode, ICU path
+  std::string normalized;          // char mode, documents not all ASCII
+  std::string arena;               // char mode, documents not all ASCII
+  std::vector<uint32_t> marks;     // char mode, documents not all ASCII
   ScratchArray<char> ascii_arena;
   ScratchArray<uint32_t> ascii_marks;
   std::vector<uint64_t> sort_scratch;
@@ -82,6 +83,7 @@ struct Shingler::Impl {
     ascii_marks.Trim(kKeepBytes);
     TrimVector(&words.text, kKeepBytes);
     TrimVector(&words.marks, kKeepBytes);
+    TrimVector(&normalized, kKeepBytes);
     TrimVector(&arena, kKeepBytes);
     TrimVector(&marks, kKeepBytes);
     TrimVector(&sort_scratch, kKeepBytes);
@@ -137,25 +139,46 @@ size_t AsciiCharArena(std::string_view text, char* out) {
   return out - start;
 }
 
-void IcuCharArena(const icu::UnicodeString& text, std::string* arena,
-                  std::vector<uint32_t>* marks) {
-  const char16_t* units = text.getBuffer();
-  const int32_t length = text.length();
+// The code point starting at utf8[i] of well-formed UTF-8, and its length.
+inline char32_t CodePointAt(const std::string& utf8, size_t i, int* length) {
+  const auto* p = reinterpret_cast<const unsigned char*>(utf8.data()) + i;
+  if (p[0] < 0xE0) {
+    *length = 2;
+    return ((p[0] & 0x1F) << 6) | (p[1] & 0x3F);
+  }
+  if (p[0] < 0xF0) {
+    *length = 3;
+    return ((p[0] & 0x0F) << 12) | ((p[1] & 0x3F) << 6) | (p[2] & 0x3F);
+  }
+  *length = 4;
+  return ((p[0] & 0x07) << 18) | ((p[1] & 0x3F) << 12) | ((p[2] & 0x3F) << 6) |
+         (p[3] & 0x3F);
+}
+
+// Folds the normalized, well-formed UTF-8 text into `arena` (White_Space runs
+// become one space, trimmed) and records where each code point begins in
+// `marks`, plus a final entry, the arena's length.
+void FoldUtf8Chars(const std::string& text, std::string* arena,
+                   std::vector<uint32_t>* marks) {
   bool pending_space = false;
-  for (int32_t i = 0; i < length;) {
-    UChar32 c;
-    U16_NEXT(units, i, length, c);
-    if (u_isUWhiteSpace(c)) {
+  for (size_t i = 0; i < text.size();) {
+    int length = 1;
+    const auto lead = static_cast<unsigned char>(text[i]);
+    const bool space = lead < 0x80
+                           ? IsAsciiWhiteSpace(lead)
+                           : u_isUWhiteSpace(CodePointAt(text, i, &length));
+    if (space) {
       pending_space = !arena->empty();
-      continue;
-    }
-    if (pending_space) {
+    } else {
+      if (pending_space) {
+        marks->push_back(static_cast<uint32_t>(arena->size()));
+        arena->push_back(' ');
+        pending_space = false;
+      }
       marks->push_back(static_cast<uint32_t>(arena->size()));
-      arena->push_back(' ');
-      pending_space = false;
+      arena->append(text, i, length);
     }
-    marks->push_back(static_cast<uint32_t>(arena->size()));
-    text_internal::AppendCodePoint(static_cast<char32_t>(c), arena);
+    i += length;
   }
   marks->push_back(static_cast<uint32_t>(arena->size()));
 }
@@ -227,10 +250,10 @@ absl::Status Shingler::ShingleBag(std::string_view utf8,
     if (!replaced.ok()) return replaced.status();
     local.invalid_utf8 = *replaced;
   } else {
-    absl::StatusOr<uint32_t> replaced = impl_->icu->Normalize(utf8);
+    absl::StatusOr<uint32_t> replaced =
+        ShingleOtherChars(utf8, out, &local.tokens);
     if (!replaced.ok()) return replaced.status();
     local.invalid_utf8 = *replaced;
-    local.tokens = static_cast<uint32_t>(ShingleIcuChars(out));
   }
   impl_->TrimScratch();
   if (stats != nullptr) *stats = local;
@@ -271,14 +294,31 @@ absl::StatusOr<uint32_t> Shingler::ShingleOtherWords(std::string_view text,
   return replaced;
 }
 
-size_t Shingler::ShingleIcuChars(ShingleSet* out) {
+absl::StatusOr<uint32_t> Shingler::ShingleOtherChars(std::string_view text,
+                                                     ShingleSet* out,
+                                                     uint32_t* points) {
+  std::string& normalized = impl_->normalized;
+  normalized.clear();
+  absl::StatusOr<uint32_t> replaced;
+  if (ascii_fast_path_) {
+    replaced =
+        text_internal::AppendMixedNormalized(text, *impl_->icu, &normalized);
+  } else {
+    replaced = impl_->icu->Normalize(text);
+    const icu::UnicodeString& whole = impl_->icu->normalized();
+    if (replaced.ok()) {
+      text_internal::AppendUtf8(whole.getBuffer(), 0, whole.length(),
+                                &normalized);
+    }
+  }
+  if (!replaced.ok()) return replaced.status();
   impl_->arena.clear();
   impl_->marks.clear();
-  IcuCharArena(impl_->icu->normalized(), &impl_->arena, &impl_->marks);
-  const size_t points = impl_->marks.size() - 1;
-  HashCharWindows(impl_->arena.data(), impl_->marks.data(), points, settings_.k,
-                  settings_.seed, out);
-  return points;
+  FoldUtf8Chars(normalized, &impl_->arena, &impl_->marks);
+  *points = static_cast<uint32_t>(impl_->marks.size() - 1);
+  HashCharWindows(impl_->arena.data(), impl_->marks.data(), *points,
+                  settings_.k, settings_.seed, out);
+  return replaced;
 }
 
 }  // namespace kindred

@@ -1,36 +1,10 @@
 #include "text/word_arena.h"
 
-#include <cstring>
-
 #include "text/ascii_words.h"
+#include "text/mixed_text.h"
 #include "text/utf8.h"
 
 namespace kindred::text_internal {
-namespace {
-
-inline bool IsCut(const unsigned char* p, size_t i, size_t n) {
-  return (p[i] == ' ' || p[i] == '\n') && (i == 0 || p[i - 1] < 0x80) &&
-         (i + 1 == n || p[i + 1] < 0x80);
-}
-
-// The first byte >= 0x80 at or after `from`, or n.
-size_t FindNonAscii(const unsigned char* p, size_t from, size_t n) {
-  while (from < n && !(p[from] & 0x80)) {
-    if (from + 8 <= n) {
-      uint64_t w;
-      std::memcpy(&w, p + from, 8);
-      if ((w & 0x8080808080808080ULL) == 0) {
-        from += 8;
-        continue;
-      }
-    }
-    ++from;
-  }
-  return from;
-}
-
-}  // namespace
-
 void AppendAsciiWords(std::string_view text, WordArena* arena) {
   const size_t n = text.size();
   const size_t old_text = arena->text.size();
@@ -62,34 +36,42 @@ absl::StatusOr<uint32_t> AppendIcuWords(std::string_view text, IcuWords& icu,
 
 absl::StatusOr<uint32_t> AppendMixedWords(std::string_view text, IcuWords& icu,
                                           WordArena* arena) {
-  const auto* p = reinterpret_cast<const unsigned char*>(text.data());
-  const size_t n = text.size();
   uint32_t replaced = 0;
-  size_t pos = 0;
-  while (pos < n) {
-    const size_t wide = FindNonAscii(p, pos, n);
-    if (wide == n) {
-      AppendAsciiWords(text.substr(pos), arena);
-      break;
-    }
-    // The ASCII part before: up to the last cut whose right neighbour is
-    // still before the non-ASCII byte.
-    size_t start = pos;
-    for (size_t i = wide; i-- > pos;) {
-      if (i + 1 < wide && IsCut(p, i, n)) {
-        AppendAsciiWords(text.substr(pos, i - pos), arena);
-        start = i + 1;
-        break;
-      }
-    }
-    size_t end = wide + 1;
-    while (end < n && !IsCut(p, end, n)) ++end;
-    absl::StatusOr<uint32_t> part =
-        AppendIcuWords(text.substr(start, end - start), icu, arena);
-    if (!part.ok()) return part.status();
-    replaced += *part;
-    pos = end + 1;
-  }
+  absl::Status status = SplitAtCuts(
+      text,
+      [&](std::string_view piece) {
+        AppendAsciiWords(piece, arena);
+        return absl::OkStatus();
+      },
+      [&](std::string_view piece) {
+        absl::StatusOr<uint32_t> part = AppendIcuWords(piece, icu, arena);
+        if (!part.ok()) return part.status();
+        replaced += *part;
+        return absl::OkStatus();
+      });
+  if (!status.ok()) return status;
+  return replaced;
+}
+
+absl::StatusOr<uint32_t> AppendMixedNormalized(std::string_view text,
+                                               IcuWords& icu,
+                                               std::string* out) {
+  uint32_t replaced = 0;
+  absl::Status status = SplitAtCuts(
+      text,
+      [&](std::string_view piece) {
+        for (unsigned char c : piece) out->push_back(AsciiFold(c));
+        return absl::OkStatus();
+      },
+      [&](std::string_view piece) {
+        absl::StatusOr<uint32_t> part = icu.Normalize(piece);
+        if (!part.ok()) return part.status();
+        replaced += *part;
+        const icu::UnicodeString& normalized = icu.normalized();
+        AppendUtf8(normalized.getBuffer(), 0, normalized.length(), out);
+        return absl::OkStatus();
+      });
+  if (!status.ok()) return status;
   return replaced;
 }
 

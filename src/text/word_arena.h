@@ -34,16 +34,15 @@ void AppendAsciiWords(std::string_view text, WordArena* arena);
 absl::StatusOr<uint32_t> AppendIcuWords(std::string_view text, IcuWords& icu,
                                         WordArena* arena);
 
-// Appends the words of `text`, giving ICU only the stretches around non-ASCII
-// bytes. The text is cut at an ASCII space or LF whose neighbours are both
-// ASCII: there UAX #29 always breaks on both sides (WB3a, WB3b; WSegSpace
-// joins only spaces, WB3d, and absorbs only Extend, Format or ZWJ, WB4, which
-// are not ASCII), no rule looks across it, and ASCII characters have
-// normalization boundaries on both sides, so the words of the whole are the
-// words of the pieces in order. Ill-formed sequences never span an ASCII
-// byte, so the replacement counts add up too.
+// Appends the words of `text`, giving ICU only the pieces that hold non-ASCII
+// bytes (SplitAtCuts in mixed_text.h says why the result is the same).
 absl::StatusOr<uint32_t> AppendMixedWords(std::string_view text, IcuWords& icu,
                                           WordArena* arena);
+
+// Appends the NFKC_Casefold form of `text` as UTF-8 to *out, the same way:
+// ASCII pieces are casefolded directly. Returns the replacement count.
+absl::StatusOr<uint32_t> AppendMixedNormalized(std::string_view text,
+                                               IcuWords& icu, std::string* out);
 
 }  // namespace kindred::text_internal
 
