@@ -1,13 +1,13 @@
 // Grouping confirmed pairs: union-find components against a breadth-first
 // search oracle, and the keep policies.
+#include "kindred/groups.h"
+
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <map>
 #include <queue>
 #include <set>
 
-#include <catch2/catch.hpp>
-
-#include "kindred/groups.h"
 #include "testlib/similar_sets.h"
 
 namespace kindred {

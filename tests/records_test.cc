@@ -1,8 +1,8 @@
 // Output records: JSON string escaping, TSV escaping and CSV quoting
 // (RFC 4180), and the three record kinds of a sweep.
-#include <catch2/catch.hpp>
-
 #include "kindred/records.h"
+
+#include <catch2/catch.hpp>
 
 namespace kindred {
 namespace {
@@ -21,10 +21,13 @@ TEST_CASE("JSON strings escape quotes, backslashes and control characters", "[re
 }
 
 TEST_CASE("Invalid UTF-8 in a JSON string becomes U+FFFD", "[records]") {
-  CHECK(Json("a\xFF" "b") == "\"a\xEF\xBF\xBD" "b\"");
-  CHECK(Json("\xC3") == "\"\xEF\xBF\xBD\"");               // truncated sequence
+  CHECK(Json("a\xFF"
+             "b") ==
+        "\"a\xEF\xBF\xBD"
+        "b\"");
+  CHECK(Json("\xC3") == "\"\xEF\xBF\xBD\"");                                  // truncated sequence
   CHECK(Json("\xED\xA0\x80") == "\"\xEF\xBF\xBD\xEF\xBF\xBD\xEF\xBF\xBD\"");  // surrogate
-  CHECK(Json("\xC0\xAF") == "\"\xEF\xBF\xBD\xEF\xBF\xBD\"");  // overlong
+  CHECK(Json("\xC0\xAF") == "\"\xEF\xBF\xBD\xEF\xBF\xBD\"");                  // overlong
 }
 
 TEST_CASE("Similarities have six decimals", "[records]") {

@@ -1,14 +1,14 @@
 // The one-shot pipeline end to end through the library: the exhaustive mode
 // against the brute-force oracle, LSH recall against the exhaustive mode, and
 // thread-count independence.
-#include <set>
+#include "kindred/sweep.h"
 
 #include <catch2/catch.hpp>
+#include <set>
 
 #include "absl/strings/str_cat.h"
 #include "kindred/records.h"
 #include "kindred/shingles.h"
-#include "kindred/sweep.h"
 #include "testlib/oracle.h"
 #include "testlib/similar_sets.h"
 #include "testlib/temp_dir.h"
@@ -145,9 +145,10 @@ TEST_CASE("Results and records are identical for any thread count", "[sweep]") {
 
 TEST_CASE("A repeated id is an error naming both places", "[sweep]") {
   testing::TempDir dir;
-  const std::string path = dir.Write(
-      "corpus.jsonl", "{\"id\":\"x\",\"text\":\"one two\"}\n{\"id\":\"y\",\"text\":\"three\"}\n"
-                      "{\"id\":\"x\",\"text\":\"four\"}\n");
+  const std::string path =
+      dir.Write("corpus.jsonl",
+                "{\"id\":\"x\",\"text\":\"one two\"}\n{\"id\":\"y\",\"text\":\"three\"}\n"
+                "{\"id\":\"x\",\"text\":\"four\"}\n");
   auto reader = CorpusReader::Open({path}, InputOptions{});
   REQUIRE(reader.ok());
   auto result = RunSweep(**reader, SweepOptions{});

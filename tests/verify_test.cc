@@ -1,11 +1,11 @@
 // Exact overlap of shingle sets, checked against std::set_intersection (the
 // standard library's independent computation) on random sets.
+#include "kindred/verify.h"
+
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <iterator>
 
-#include <catch2/catch.hpp>
-
-#include "kindred/verify.h"
 #include "testlib/similar_sets.h"
 
 namespace kindred {

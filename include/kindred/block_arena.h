@@ -25,8 +25,8 @@ namespace kindred {
 template <typename T>
 class BlockArena {
  public:
-  static constexpr size_t kAlignment = size_t{2} << 20;        // one huge page
-  static constexpr size_t kBlockBytes = size_t{32} << 20;      // per block
+  static constexpr size_t kAlignment = size_t{2} << 20;    // one huge page
+  static constexpr size_t kBlockBytes = size_t{32} << 20;  // per block
 
   BlockArena() = default;
   BlockArena(BlockArena&&) noexcept = default;

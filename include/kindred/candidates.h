@@ -26,15 +26,30 @@ inline uint32_t PairFirst(PackedPair pair) { return static_cast<uint32_t>(pair >
 inline uint32_t PairSecond(PackedPair pair) { return static_cast<uint32_t>(pair); }
 
 struct CandidateStats {
-  uint64_t bucket_entries = 0;   // (band key, document) entries
-  uint64_t largest_bucket = 0;   // documents in the most crowded bucket
-  uint64_t candidate_pairs = 0;  // distinct pairs
+  uint64_t bucket_entries = 0;     // (band key, document) entries
+  uint64_t largest_bucket = 0;     // documents in the most crowded bucket
+  uint64_t oversized_buckets = 0;  // buckets over the cap (see below)
+  uint64_t candidate_pairs = 0;    // distinct pairs
 };
 
+// Buckets hold the documents that agree on a whole band. A bucket of s
+// documents proposes s(s-1)/2 pairs, so a band shared by thousands of
+// documents (a common boilerplate block, a template) would make this stage
+// quadratic. Buckets of more than `max_bucket` documents are therefore
+// handled deliberately: each member is paired with the bucket's first
+// document only (its representative), which keeps exact and near-exact
+// copies of a template together through the grouping, costs s - 1 pairs,
+// and is counted in CandidateStats::oversized_buckets so the summary can say
+// so. Pairs of two non-representative members can then only come from their
+// other bands. The default cap is far above what real near-duplicate
+// clusters reach.
+inline constexpr uint64_t kDefaultMaxBucket = 5000;
+
 // The distinct candidate pairs of `corpus` under `banding`, ascending.
-// Requires banding.bands * banding.rows <= corpus.perms().
-std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding banding,
-                                           int threads, CandidateStats* stats);
+// Requires banding.bands * banding.rows <= corpus.perms() and max_bucket >= 2.
+std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding banding, int threads,
+                                           CandidateStats* stats,
+                                           uint64_t max_bucket = kDefaultMaxBucket);
 
 }  // namespace kindred
 

@@ -22,11 +22,11 @@ namespace kindred {
 struct ScoredPair {
   uint32_t a = 0;
   uint32_t b = 0;
-  uint32_t shared = 0;    // |A n B| (exact)
-  uint32_t size_a = 0;    // |A|
-  uint32_t size_b = 0;    // |B|
-  double jaccard = 0;     // exact
-  double estimate = 0;    // MinHash signature estimate
+  uint32_t shared = 0;  // |A n B| (exact)
+  uint32_t size_a = 0;  // |A|
+  uint32_t size_b = 0;  // |B|
+  double jaccard = 0;   // exact
+  double estimate = 0;  // MinHash signature estimate
 
   friend bool operator==(const ScoredPair&, const ScoredPair&) = default;
 };
@@ -45,7 +45,7 @@ const char* KeepPolicyName(KeepPolicy policy);
 
 // What the keep policies look at, per document.
 struct KeepFacts {
-  uint64_t length = 0;     // text length in bytes
+  uint64_t length = 0;  // text length in bytes
   double priority = 0;
   bool has_priority = false;
 };
@@ -57,8 +57,8 @@ struct Group {
 
 // Groups `pairs` over documents 0..facts.size()-1. Returns the groups of two
 // or more members, ordered by their smallest member; members ascending.
-std::vector<Group> GroupPairs(absl::Span<const ScoredPair> pairs,
-                              absl::Span<const KeepFacts> facts, KeepPolicy policy);
+std::vector<Group> GroupPairs(absl::Span<const ScoredPair> pairs, absl::Span<const KeepFacts> facts,
+                              KeepPolicy policy);
 
 }  // namespace kindred
 

@@ -73,8 +73,8 @@ class SignedCorpus {
 // What signing saw, beyond the documents themselves.
 struct SignStats {
   uint64_t documents = 0;
-  uint64_t empty_documents = 0;     // no shingles: never anyone's duplicate
-  uint64_t bytes = 0;               // text bytes read
+  uint64_t empty_documents = 0;  // no shingles: never anyone's duplicate
+  uint64_t bytes = 0;            // text bytes read
   uint64_t invalid_utf8_documents = 0;
   uint64_t invalid_utf8_sequences = 0;
 };

@@ -27,8 +27,7 @@ namespace kindred {
 
 // True when `overlap` passes `match` (measure >= threshold, compared exactly
 // on the counts, with a 1e-9 allowance for the decimal threshold).
-bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b,
-                     const MatchSettings& match);
+bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b, const MatchSettings& match);
 
 // Confirms each candidate pair on the shingle sets; returns the pairs that
 // pass, in the order of `candidates` (ascending), with exact and estimated
@@ -47,13 +46,14 @@ struct SweepOptions {
   MatchSettings match;  // bands/rows 0: chosen by ChooseBanding()
   KeepPolicy keep = KeepPolicy::kFirst;
   bool exhaustive = false;
-  SignOptions sign;     // threads, batch sizes, progress
+  uint64_t max_bucket = kDefaultMaxBucket;  // see candidates.h
+  SignOptions sign;                         // threads, batch sizes, progress
 };
 
 struct SweepStats {
   SignStats sign;
   CandidateStats candidates;
-  Banding banding;       // the banding used (zero when exhaustive)
+  Banding banding;  // the banding used (zero when exhaustive)
   uint64_t confirmed_pairs = 0;
   uint64_t groups = 0;
   uint64_t drops = 0;

@@ -14,7 +14,8 @@ namespace kindred::cli {
 
 absl::Status WriteOutputFile(const std::string& path, std::string_view data) {
   if (path == "-") {
-    if (std::fwrite(data.data(), 1, data.size(), stdout) != data.size() || std::fflush(stdout) != 0) {
+    if (std::fwrite(data.data(), 1, data.size(), stdout) != data.size() ||
+        std::fflush(stdout) != 0) {
       return absl::AbortedError("cannot write to standard output");
     }
     return absl::OkStatus();
@@ -36,30 +37,39 @@ absl::Status WriteOutputFile(const std::string& path, std::string_view data) {
 }
 
 absl::StatusOr<uint64_t> ParseByteSize(std::string_view text) {
-  absl::string_view digits = absl::StripAsciiWhitespace(absl::string_view(text.data(), text.size()));
+  absl::string_view digits =
+      absl::StripAsciiWhitespace(absl::string_view(text.data(), text.size()));
   uint64_t scale = 1;
   if (!digits.empty()) {
     switch (absl::ascii_toupper(digits.back())) {
-      case 'K': scale = 1ull << 10; break;
-      case 'M': scale = 1ull << 20; break;
-      case 'G': scale = 1ull << 30; break;
-      case 'T': scale = 1ull << 40; break;
-      default: break;
+      case 'K':
+        scale = 1ull << 10;
+        break;
+      case 'M':
+        scale = 1ull << 20;
+        break;
+      case 'G':
+        scale = 1ull << 30;
+        break;
+      case 'T':
+        scale = 1ull << 40;
+        break;
+      default:
+        break;
     }
     if (scale != 1) digits.remove_suffix(1);
   }
   uint64_t value = 0;
   if (!absl::SimpleAtoi(digits, &value) || value > UINT64_MAX / scale) {
-    return absl::InvalidArgumentError(
-        absl::StrCat("\"", std::string(text), "\" is not a size (a number with an optional K, M, G or T)"));
+    return absl::InvalidArgumentError(absl::StrCat(
+        "\"", std::string(text), "\" is not a size (a number with an optional K, M, G or T)"));
   }
   return value * scale;
 }
 
 namespace {
 double Now() {
-  return std::chrono::duration<double>(std::chrono::steady_clock::now().time_since_epoch())
-      .count();
+  return std::chrono::duration<double>(std::chrono::steady_clock::now().time_since_epoch()).count();
 }
 }  // namespace
 

@@ -1,6 +1,9 @@
 // kindred sweep: one-shot deduplication of a corpus.
+#include <stdlib.h>
 #include <unistd.h>
 
+#include <algorithm>
+#include <cerrno>
 #include <cstdio>
 #include <filesystem>
 
@@ -9,6 +12,7 @@
 #include "cli/cli.h"
 #include "cli/common_options.h"
 #include "cli/output.h"
+#include "io/output_guard.h"
 #include "kindred/kept_writer.h"
 #include "kindred/records.h"
 #include "kindred/sweep.h"
@@ -24,6 +28,7 @@ struct SweepFlags {
   GeneralFlags general;
   std::string keep = "first";
   bool exhaustive = false;
+  uint64_t max_bucket = kDefaultMaxBucket;
   std::string output_dir;
   std::string print;
   std::string format = "jsonl";
@@ -57,9 +62,9 @@ absl::Status WriteOutputs(const SweepFlags& flags, const SweepOutputs& outputs) 
       return absl::AbortedError(
           absl::StrCat("cannot create output directory ", flags.output_dir, ": ", error.message()));
     }
-    for (const auto& [name, data] : {std::pair{"pairs", &outputs.pairs},
-                                     std::pair{"groups", &outputs.groups},
-                                     std::pair{"decisions", &outputs.decisions}}) {
+    for (const auto& [name, data] :
+         {std::pair{"pairs", &outputs.pairs}, std::pair{"groups", &outputs.groups},
+          std::pair{"decisions", &outputs.decisions}}) {
       const std::string path = absl::StrCat(flags.output_dir, "/", name, ".", suffix);
       if (absl::Status status = WriteOutputFile(path, *data); !status.ok()) return status;
     }
@@ -84,6 +89,14 @@ void PrintSummary(const SweepResult& result, const SweepOptions& options) {
     std::fprintf(stderr, "  candidate pairs   %llu (%u bands x %u rows)\n",
                  static_cast<unsigned long long>(stats.candidates.candidate_pairs),
                  stats.banding.bands, stats.banding.rows);
+    if (stats.candidates.oversized_buckets > 0) {
+      std::fprintf(stderr,
+                   "  crowded buckets   %llu over %llu documents (largest %llu): members paired "
+                   "with the first only (--max-bucket)\n",
+                   static_cast<unsigned long long>(stats.candidates.oversized_buckets),
+                   static_cast<unsigned long long>(options.max_bucket),
+                   static_cast<unsigned long long>(stats.candidates.largest_bucket));
+    }
   }
   std::fprintf(stderr, "  confirmed pairs   %llu (%s >= %g)\n",
                static_cast<unsigned long long>(stats.confirmed_pairs),
@@ -92,7 +105,8 @@ void PrintSummary(const SweepResult& result, const SweepOptions& options) {
   std::fprintf(stderr, "  drops             %llu (keep policy: %s)\n",
                static_cast<unsigned long long>(stats.drops), KeepPolicyName(options.keep));
   if (stats.sign.invalid_utf8_documents > 0) {
-    std::fprintf(stderr, "  invalid UTF-8     %llu document(s), bytes replaced by U+FFFD (-v names them)\n",
+    std::fprintf(stderr,
+                 "  invalid UTF-8     %llu document(s), bytes replaced by U+FFFD (-v names them)\n",
                  static_cast<unsigned long long>(stats.sign.invalid_utf8_documents));
   }
 }
@@ -117,6 +131,52 @@ absl::StatusOr<KeptCounts> WriteKeptCorpus(const SweepFlags& flags, const SweepR
   return WriteKept(request);
 }
 
+bool ReadsStdin(const SweepFlags& flags) {
+  return std::find(flags.inputs.begin(), flags.inputs.end(), "-") != flags.inputs.end();
+}
+
+// A new directory only this user can enter, under $TMPDIR (or /tmp).
+absl::StatusOr<std::string> MakePrivateTempDir() {
+  std::error_code error;
+  std::filesystem::path base = std::filesystem::temp_directory_path(error);
+  if (error) base = "/tmp";
+  std::string pattern = (base / "kindred-XXXXXX").string();
+  if (mkdtemp(pattern.data()) == nullptr) {
+    return absl::ErrnoToStatus(errno, absl::StrCat("cannot create a temporary directory in ",
+                                                   base.string(), " for standard input"));
+  }
+  return pattern;
+}
+
+// The record files of --output-dir never replace an input nor land inside
+// an input tree, and no kept output is one of them.
+absl::Status CheckRecordOutputs(const SweepFlags& flags, RecordFormat format,
+                                const CorpusReader& reader) {
+  if (flags.output_dir.empty()) return absl::OkStatus();
+  std::vector<ResolvedInput> inputs;
+  for (ResolvedInput& input : reader.ResolvedInputs()) {
+    if (!input.is_stdin) inputs.push_back(std::move(input));
+  }
+  for (const char* name : {"pairs", "groups", "decisions"}) {
+    const std::string path =
+        absl::StrCat(flags.output_dir, "/", name, ".", RecordFormatSuffix(format));
+    KeptOutput record;
+    record.lines_path = path;
+    if (absl::Status status = io::CheckOutputs(inputs, record, true, false); !status.ok()) {
+      return status;
+    }
+    for (const std::string* kept : {&flags.write_kept, &flags.list_kept}) {
+      if (kept->empty()) continue;
+      absl::StatusOr<std::string> a = io::ResolvePath(path), b = io::ResolvePath(*kept);
+      if (a.ok() && b.ok() && *a == *b) {
+        return absl::InvalidArgumentError(
+            absl::StrCat(*kept, ": is also a record file of --output-dir"));
+      }
+    }
+  }
+  return absl::OkStatus();
+}
+
 int RunSweepCommand(const SweepFlags& flags) {
   auto input_options = ToInputOptions(flags.input);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
@@ -133,25 +193,34 @@ int RunSweepCommand(const SweepFlags& flags) {
   auto format = ParseRecordFormat(flags.format);
   if (!format.ok()) return Fail(kExitUsage, format.status());
   options.exhaustive = flags.exhaustive;
+  if (flags.max_bucket < 2)
+    return Fail(kExitUsage, absl::InvalidArgumentError("--max-bucket must be at least 2"));
+  options.max_bucket = flags.max_bucket;
   options.sign.threads = ThreadCount(flags.general);
 
   // Standard input cannot be read twice: keep a copy when the kept corpus
-  // will need a second pass.
-  std::string stdin_copy;
-  if (WantsKept(flags)) {
-    stdin_copy = absl::StrCat(std::filesystem::temp_directory_path().string(), "/kindred-stdin-",
-                              getpid());
-    input_options->stdin_copy_path = stdin_copy;
-  }
+  // will need a second pass, in a private new directory (mkdtemp) so that no
+  // one can plant a link at its name.
   struct RemoveCopy {
-    std::string path;
+    std::string dir;
     ~RemoveCopy() {
-      if (!path.empty()) std::remove(path.c_str());
+      if (dir.empty()) return;
+      std::remove(absl::StrCat(dir, "/stdin").c_str());
+      rmdir(dir.c_str());
     }
-  } remove_copy{stdin_copy};
+  } remove_copy;
+  if (WantsKept(flags) && ReadsStdin(flags)) {
+    absl::StatusOr<std::string> dir = MakePrivateTempDir();
+    if (!dir.ok()) return Fail(kExitOutput, dir.status());
+    remove_copy.dir = *dir;
+    input_options->stdin_copy_path = absl::StrCat(*dir, "/stdin");
+  }
 
   auto reader = CorpusReader::Open(flags.inputs, *input_options);
   if (!reader.ok()) return Fail(kExitInput, reader.status());
+  if (absl::Status checked = CheckRecordOutputs(flags, *format, **reader); !checked.ok()) {
+    return Fail(kExitUsage, checked);
+  }
   Progress progress(flags.general.quiet);
   options.sign.progress = [&progress](const SignStats& stats) {
     progress.Update(absl::StrFormat("signing: %d documents, %.1f MB", stats.documents,
@@ -174,9 +243,9 @@ int RunSweepCommand(const SweepFlags& flags) {
   if (WantsKept(flags)) {
     auto kept = WriteKeptCorpus(flags, *result, **reader, *input_options);
     if (!kept.ok()) {
-      return Fail(kept.status().code() == absl::StatusCode::kInvalidArgument ? kExitUsage
-                                                                             : kExitOutput,
-                  kept.status());
+      return Fail(
+          kept.status().code() == absl::StatusCode::kInvalidArgument ? kExitUsage : kExitOutput,
+          kept.status());
     }
   }
   if (!flags.general.quiet) PrintSummary(*result, options);
@@ -193,39 +262,51 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
   auto flags = std::make_shared<SweepFlags>();
   CLI::App* command = app.add_subcommand(
       "sweep", "Find the near-duplicate pairs and groups of a corpus; say what to keep and drop");
-  command->add_option("inputs", flags->inputs,
-                      "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
-                      "standard input")
+  command
+      ->add_option("inputs", flags->inputs,
+                   "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
+                   "standard input")
       ->required();
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
-  command->add_flag("--exhaustive", flags->exhaustive,
-                    "compare every pair exactly instead of using LSH (slow; the reference)")
+  command
+      ->add_flag("--exhaustive", flags->exhaustive,
+                 "compare every pair exactly instead of using LSH (slow; the reference)")
+      ->group("Matching");
+  command
+      ->add_option("--max-bucket", flags->max_bucket,
+                   "LSH buckets with more documents pair each member with the first only")
+      ->default_str(std::to_string(kDefaultMaxBucket))
       ->group("Matching");
   command->add_option("--keep", flags->keep, "keeper of each group: first, longest or priority")
       ->default_str("first")
       ->group("Grouping");
-  command->add_option("-o,--output-dir", flags->output_dir,
-                      "write pairs, groups and decisions files into this directory")
+  command
+      ->add_option("-o,--output-dir", flags->output_dir,
+                   "write pairs, groups and decisions files into this directory")
       ->group("Output");
-  command->add_option("--print", flags->print,
-                      "records on standard output: pairs, groups, decisions or none (default: "
-                      "groups, or none with --output-dir)")
+  command
+      ->add_option("--print", flags->print,
+                   "records on standard output: pairs, groups, decisions or none (default: "
+                   "groups, or none with --output-dir)")
       ->check(CLI::IsMember({"pairs", "groups", "decisions", "none"}))
       ->group("Output");
   command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
       ->default_str("jsonl")
       ->group("Output");
-  command->add_option("--write-kept", flags->write_kept,
-                      "JSON Lines inputs: write the kept lines, verbatim, to this file "
-                      "(.gz/.zst compress)")
+  command
+      ->add_option("--write-kept", flags->write_kept,
+                   "JSON Lines inputs: write the kept lines, verbatim, to this file "
+                   "(.gz/.zst compress)")
       ->group("Output");
-  command->add_option("--copy-kept", flags->copy_kept,
-                      "text inputs: copy the kept files into this new or empty directory")
+  command
+      ->add_option("--copy-kept", flags->copy_kept,
+                   "text inputs: copy the kept files into this new or empty directory")
       ->group("Output");
-  command->add_option("--list-kept", flags->list_kept,
-                      "text inputs: write the kept file paths, one per line, to this file")
+  command
+      ->add_option("--list-kept", flags->list_kept,
+                   "text inputs: write the kept file paths, one per line, to this file")
       ->group("Output");
   AddGeneralOptions(command, &flags->general);
   command->callback([flags, exit_code] { *exit_code = RunSweepCommand(*flags); });

@@ -15,15 +15,30 @@ struct BucketEntry {
   }
 };
 
-// Pairs of one band: every two documents that share a bucket.
-void PairsOfBand(std::vector<BucketEntry>& entries, std::vector<PackedPair>* pairs,
-                 uint64_t* largest) {
+struct BandStats {
+  uint64_t entries = 0;
+  uint64_t largest = 0;
+  uint64_t oversized = 0;
+};
+
+// Pairs of one band: every two documents that share a bucket, or for an
+// oversized bucket each member with the first.
+void PairsOfBand(std::vector<BucketEntry>& entries, uint64_t max_bucket,
+                 std::vector<PackedPair>* pairs, BandStats* stats) {
   std::sort(entries.begin(), entries.end());
   size_t run_begin = 0;
   for (size_t i = 1; i <= entries.size(); ++i) {
     if (i < entries.size() && entries[i].key == entries[run_begin].key) continue;
     const size_t run = i - run_begin;
-    *largest = std::max<uint64_t>(*largest, run);
+    stats->largest = std::max<uint64_t>(stats->largest, run);
+    if (run > max_bucket) {
+      stats->oversized++;
+      for (size_t y = run_begin + 1; y < i; ++y) {
+        pairs->push_back(PackPair(entries[run_begin].doc, entries[y].doc));
+      }
+      run_begin = i;
+      continue;
+    }
     for (size_t x = run_begin; x < i; ++x) {
       for (size_t y = x + 1; y < i; ++y) {
         pairs->push_back(PackPair(entries[x].doc, entries[y].doc));
@@ -35,8 +50,8 @@ void PairsOfBand(std::vector<BucketEntry>& entries, std::vector<PackedPair>* pai
 
 }  // namespace
 
-std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding banding,
-                                           int threads, CandidateStats* stats) {
+std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding banding, int threads,
+                                           CandidateStats* stats, uint64_t max_bucket) {
   const size_t n = corpus.size();
   const uint32_t bands = banding.bands;
   // keys[doc * bands + band]; documents with no key for a band are skipped.
@@ -51,23 +66,27 @@ std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding b
     }
   });
   std::vector<std::vector<PackedPair>> band_pairs(bands);
-  std::vector<uint64_t> band_largest(bands, 0), band_entries(bands, 0);
+  std::vector<BandStats> band_stats(bands);
   ParallelFor(bands, threads, [&](size_t begin, size_t end, int) {
     std::vector<BucketEntry> entries;
     for (size_t band = begin; band < end; ++band) {
       entries.clear();
       for (size_t doc = 0; doc < n; ++doc) {
-        if (has_keys[doc]) entries.push_back({keys[doc * bands + band], static_cast<uint32_t>(doc)});
+        const uint64_t key = keys[doc * bands + band];
+        if (has_keys[doc] && key != kNoBandKey) {
+          entries.push_back({key, static_cast<uint32_t>(doc)});
+        }
       }
-      band_entries[band] = entries.size();
-      PairsOfBand(entries, &band_pairs[band], &band_largest[band]);
+      band_stats[band].entries = entries.size();
+      PairsOfBand(entries, max_bucket, &band_pairs[band], &band_stats[band]);
       std::sort(band_pairs[band].begin(), band_pairs[band].end());
     }
   });
   std::vector<PackedPair> pairs;
   for (uint32_t band = 0; band < bands; ++band) {
-    stats->bucket_entries += band_entries[band];
-    stats->largest_bucket = std::max(stats->largest_bucket, band_largest[band]);
+    stats->bucket_entries += band_stats[band].entries;
+    stats->largest_bucket = std::max(stats->largest_bucket, band_stats[band].largest);
+    stats->oversized_buckets += band_stats[band].oversized;
     pairs.insert(pairs.end(), band_pairs[band].begin(), band_pairs[band].end());
     std::vector<PackedPair>().swap(band_pairs[band]);
   }

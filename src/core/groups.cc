@@ -55,8 +55,8 @@ absl::StatusOr<KeepPolicy> ParseKeepPolicy(std::string_view name) {
   if (name == "first") return KeepPolicy::kFirst;
   if (name == "longest") return KeepPolicy::kLongest;
   if (name == "priority") return KeepPolicy::kPriority;
-  return absl::InvalidArgumentError(
-      absl::StrCat("unknown keep policy \"", std::string(name), "\" (expected first, longest or priority)"));
+  return absl::InvalidArgumentError(absl::StrCat("unknown keep policy \"", std::string(name),
+                                                 "\" (expected first, longest or priority)"));
 }
 
 const char* KeepPolicyName(KeepPolicy policy) {
@@ -71,8 +71,8 @@ const char* KeepPolicyName(KeepPolicy policy) {
   return "?";
 }
 
-std::vector<Group> GroupPairs(absl::Span<const ScoredPair> pairs,
-                              absl::Span<const KeepFacts> facts, KeepPolicy policy) {
+std::vector<Group> GroupPairs(absl::Span<const ScoredPair> pairs, absl::Span<const KeepFacts> facts,
+                              KeepPolicy policy) {
   UnionFind components(facts.size());
   for (const ScoredPair& pair : pairs) components.Unite(pair.a, pair.b);
 

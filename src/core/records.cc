@@ -37,11 +37,20 @@ void AppendDelimited(std::string* out, std::string_view text, RecordFormat forma
   if (format == RecordFormat::kTsv) {
     for (char c : text) {
       switch (c) {
-        case '\t': out->append("\\t"); break;
-        case '\n': out->append("\\n"); break;
-        case '\r': out->append("\\r"); break;
-        case '\\': out->append("\\\\"); break;
-        default: out->push_back(c);
+        case '\t':
+          out->append("\\t");
+          break;
+        case '\n':
+          out->append("\\n");
+          break;
+        case '\r':
+          out->append("\\r");
+          break;
+        case '\\':
+          out->append("\\\\");
+          break;
+        default:
+          out->push_back(c);
       }
     }
     return;
@@ -64,15 +73,18 @@ absl::StatusOr<RecordFormat> ParseRecordFormat(std::string_view name) {
   if (name == "jsonl") return RecordFormat::kJsonLines;
   if (name == "tsv") return RecordFormat::kTsv;
   if (name == "csv") return RecordFormat::kCsv;
-  return absl::InvalidArgumentError(
-      absl::StrCat("unknown output format \"", std::string(name), "\" (expected jsonl, tsv or csv)"));
+  return absl::InvalidArgumentError(absl::StrCat("unknown output format \"", std::string(name),
+                                                 "\" (expected jsonl, tsv or csv)"));
 }
 
 const char* RecordFormatSuffix(RecordFormat format) {
   switch (format) {
-    case RecordFormat::kJsonLines: return "jsonl";
-    case RecordFormat::kTsv: return "tsv";
-    case RecordFormat::kCsv: return "csv";
+    case RecordFormat::kJsonLines:
+      return "jsonl";
+    case RecordFormat::kTsv:
+      return "tsv";
+    case RecordFormat::kCsv:
+      return "csv";
   }
   return "?";
 }
@@ -112,8 +124,7 @@ void AppendSimilarity(std::string* out, double value) {
   out->append(buffer);
 }
 
-RecordWriter::RecordWriter(RecordFormat format, std::vector<std::string> columns,
-                           std::string* out)
+RecordWriter::RecordWriter(RecordFormat format, std::vector<std::string> columns, std::string* out)
     : format_(format), columns_(std::move(columns)), out_(out) {
   if (format_ == RecordFormat::kJsonLines) return;
   for (size_t i = 0; i < columns_.size(); ++i) {

@@ -35,8 +35,8 @@ absl::Status SignatureSettings::Validate() const {
 }
 
 std::string SignatureSettings::ToString() const {
-  return absl::StrFormat("%s k=%u seed=0x%016x signer=%s perms=%u", ShingleModeName(mode), k,
-                         seed, SignerSchemeName(scheme), perms);
+  return absl::StrFormat("%s k=%u seed=0x%016x signer=%s perms=%u", ShingleModeName(mode), k, seed,
+                         SignerSchemeName(scheme), perms);
 }
 
 absl::Status MatchSettings::Validate(const SignatureSettings& signature) const {
@@ -48,9 +48,9 @@ absl::Status MatchSettings::Validate(const SignatureSettings& signature) const {
     return absl::InvalidArgumentError("give both bands and rows, or neither");
   }
   if (bands != 0 && uint64_t{bands} * rows > signature.perms) {
-    return absl::InvalidArgumentError(absl::StrFormat(
-        "bands x rows = %u x %u = %u exceeds the signature length %u", bands, rows,
-        uint64_t{bands} * rows, signature.perms));
+    return absl::InvalidArgumentError(
+        absl::StrFormat("bands x rows = %u x %u = %u exceeds the signature length %u", bands, rows,
+                        uint64_t{bands} * rows, signature.perms));
   }
   return absl::OkStatus();
 }

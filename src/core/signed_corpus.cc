@@ -13,8 +13,7 @@
 namespace kindred {
 
 void SignedCorpus::Add(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
-                       absl::Span<const uint64_t> shingles,
-                       absl::Span<const uint32_t> signature) {
+                       absl::Span<const uint64_t> shingles, absl::Span<const uint32_t> signature) {
   ids_.push_back(std::move(id));
   facts_.push_back(facts);
   origins_.push_back(origin);
@@ -63,7 +62,9 @@ struct IdEq {
   absl::string_view Id(uint32_t doc) const { return corpus->id(doc); }
   absl::string_view Id(absl::string_view id) const { return id; }
   template <typename A, typename B>
-  bool operator()(const A& a, const B& b) const { return Id(a) == Id(b); }
+  bool operator()(const A& a, const B& b) const {
+    return Id(a) == Id(b);
+  }
 };
 
 }  // namespace
@@ -90,8 +91,7 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
   absl::StatusOr<size_t> count = read(&batch);
   while (count.ok() && *count > 0) {
     // Read the next batch while this one is signed.
-    std::future<absl::StatusOr<size_t>> pending =
-        std::async(std::launch::async, read, &next_batch);
+    std::future<absl::StatusOr<size_t>> pending = std::async(std::launch::async, read, &next_batch);
     const size_t n = batch.size();
     results.sets.resize(n);
     results.signatures.resize(n * perms);

@@ -43,8 +43,8 @@ bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b,
                      const MatchSettings& match) {
   if (shared == 0) return false;
   const double denominator = match.measure == Measure::kJaccard
-                                 ? double{size_a} + size_b - shared
-                                 : double{std::min(size_a, size_b)};
+                                 ? static_cast<double>(size_a) + size_b - shared
+                                 : static_cast<double>(std::min(size_a, size_b));
   return shared >= match.threshold * denominator - 1e-9;
 }
 
@@ -106,7 +106,7 @@ void MatchCorpus(const SignedCorpus& corpus, const SweepOptions& options, SweepR
                         ? Banding{options.match.bands, options.match.rows}
                         : ChooseBanding(options.match.threshold, corpus.perms());
     const std::vector<PackedPair> candidates =
-        FindCandidatePairs(corpus, stats.banding, threads, &stats.candidates);
+        FindCandidatePairs(corpus, stats.banding, threads, &stats.candidates, options.max_bucket);
     result->pairs = VerifyPairs(corpus, candidates, options.match, threads);
   }
   result->groups = GroupPairs(result->pairs, corpus.all_facts(), options.keep);
@@ -124,8 +124,8 @@ absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& o
   }
   SweepResult result(options.signature.perms);
   const auto start = std::chrono::steady_clock::now();
-  if (absl::Status status = SignCorpus(reader, options.signature, options.sign, &result.corpus,
-                                       &result.stats.sign);
+  if (absl::Status status =
+          SignCorpus(reader, options.signature, options.sign, &result.corpus, &result.stats.sign);
       !status.ok()) {
     return status;
   }

@@ -10,8 +10,8 @@ namespace kindred {
 void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
                       absl::Span<const std::string> ids, std::string* out) {
   RecordWriter writer(format,
-                      {"a", "b", "jaccard", "estimate", "containment_a_in_b",
-                       "containment_b_in_a", "shared", "shingles_a", "shingles_b"},
+                      {"a", "b", "jaccard", "estimate", "containment_a_in_b", "containment_b_in_a",
+                       "shared", "shingles_a", "shingles_b"},
                       out);
   for (const ScoredPair& pair : pairs) {
     const Overlap overlap{pair.shared, pair.size_a, pair.size_b};
@@ -66,9 +66,8 @@ void Consider(BestMatch* best, uint32_t partner, double jaccard) {
 void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
                           absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
                           absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out) {
-  RecordWriter writer(format,
-                      {"id", "decision", "group", "keeper", "best_match", "jaccard", "reason"},
-                      out);
+  RecordWriter writer(
+      format, {"id", "decision", "group", "keeper", "best_match", "jaccard", "reason"}, out);
   const size_t n = ids.size();
   std::vector<int64_t> group_of(n, -1);
   for (size_t g = 0; g < groups.size(); ++g) {

@@ -57,9 +57,7 @@ double Overlap::ContainmentOfBInA() const {
   return size_b == 0 ? 0.0 : static_cast<double>(shared) / size_b;
 }
 
-double Overlap::Containment() const {
-  return std::max(ContainmentOfAInB(), ContainmentOfBInA());
-}
+double Overlap::Containment() const { return std::max(ContainmentOfAInB(), ContainmentOfBInA()); }
 
 Overlap MeasureOverlap(absl::Span<const uint64_t> a, absl::Span<const uint64_t> b) {
   Overlap overlap;

@@ -19,9 +19,7 @@ TempDir::~TempDir() {
   std::filesystem::remove_all(path_, ignored);
 }
 
-std::string TempDir::File(std::string_view name) const {
-  return path_ + "/" + std::string(name);
-}
+std::string TempDir::File(std::string_view name) const { return path_ + "/" + std::string(name); }
 
 std::string TempDir::Write(std::string_view name, std::string_view contents) const {
   const std::string path = File(name);
