@@ -1,11 +1,11 @@
 // explain: marked spans and aligned passages on hand-built texts, and the
 // numbers against the signing path.
-#include <catch2/catch.hpp>
+#include "kindred/explain.h"
 
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <string>
 
-#include "kindred/explain.h"
 #include "kindred/shingles.h"
 #include "kindred/signer.h"
 #include "testlib/temp_dir.h"
@@ -77,7 +77,8 @@ TEST_CASE("char shingles map back to original bytes of multi-byte text", "[expla
 TEST_CASE("aligned passages: the longest run first, with both ranges", "[explain]") {
   // a: one[0,3) two[4,7) three[8,13) four[14,18) five six
   // b: six[0,3) one[4,7) two three four[18,22) ... seven
-  const auto e = Explain("one two three four five six", "six one two three four seven eight five six", Words(2));
+  const auto e = Explain("one two three four five six",
+                         "six one two three four seven eight five six", Words(2));
   REQUIRE(e.ok());
   REQUIRE(e->passages.size() == 2);
   CHECK(e->passages[0].shingles == 3);
@@ -103,8 +104,10 @@ TEST_CASE("empty and disjoint texts mark nothing", "[explain]") {
 
 TEST_CASE("numbers agree with the signing path", "[explain]") {
   const std::string a =
-      "The harbour board met on Tuesday evening to discuss the dredging of the north channel, "
-      "which has silted up badly since the winter storms. Fishermen told the board that boats "
+      "The harbour board met on Tuesday evening to discuss the dredging of the "
+      "north channel, "
+      "which has silted up badly since the winter storms. Fishermen told the "
+      "board that boats "
       "with a deep keel can no longer reach the fuel dock at low tide.";
   const std::string b = a + " Reprinted with permission of the Lantern.";
   const SignatureSettings settings = Words(5);
@@ -132,10 +135,13 @@ TEST_CASE("numbers agree with the signing path", "[explain]") {
 // per-byte check.
 TEST_CASE("marked bytes are exactly those covered by shared shingles", "[explain]") {
   const std::string a =
-      "Lost cat: grey tabby answering to Pepper, last seen near the lighthouse road on Sunday. "
-      "Reward offered, call the number at the bakery. Pepper is shy but friendly.";
+      "Lost cat: grey tabby answering to Pepper, last seen "
+      "near the lighthouse road on Sunday. "
+      "Reward offered, call the number at the bakery. Pepper "
+      "is shy but friendly.";
   const std::string b =
-      "Found: a grey tabby near the lighthouse road on Sunday evening. Answering to Pepper? "
+      "Found: a grey tabby near the lighthouse road on Sunday evening. "
+      "Answering to Pepper? "
       "Call the number at the bakery, reward not needed. Shy but friendly cat.";
   for (uint32_t k : {2u, 3u}) {
     const SignatureSettings settings = Words(k);

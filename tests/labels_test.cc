@@ -1,10 +1,9 @@
 // Labels files: the three layouts, the label spellings, headers, errors
 // naming file and line, and resolving ids against a corpus.
-#include <catch2/catch.hpp>
-
-#include <string>
-
 #include "kindred/labels.h"
+
+#include <catch2/catch.hpp>
+#include <string>
 
 namespace kindred {
 namespace {
@@ -46,7 +45,9 @@ TEST_CASE("TSV without a header keeps its first line", "[labels]") {
 
 TEST_CASE("CSV with RFC 4180 quoting", "[labels]") {
   const auto pairs = ParseLabels(
-      "a,b,label\n\"dir,with comma/x\",\"say \"\"hi\"\"\",DUPLICATE\nq,r,distinct\n", "l.csv");
+      "a,b,label\n\"dir,with comma/x\",\"say "
+      "\"\"hi\"\"\",DUPLICATE\nq,r,distinct\n",
+      "l.csv");
   REQUIRE(pairs.ok());
   REQUIRE(pairs->size() == 2);
   CHECK((*pairs)[0].a == "dir,with comma/x");
@@ -58,7 +59,8 @@ TEST_CASE("CSV with RFC 4180 quoting", "[labels]") {
 TEST_CASE("JSON Lines with string, boolean and numeric labels and integer ids", "[labels]") {
   const auto pairs = ParseLabels(
       "{\"a\":\"x\",\"b\":\"y\",\"label\":\"dup\"}\n\n"
-      "{\"a\":7,\"b\":8,\"label\":false}\n{\"label\":1,\"b\":\"q\",\"a\":\"p\"}\n",
+      "{\"a\":7,\"b\":8,\"label\":false}\n{\"label\":1,\"b\":\"q\","
+      "\"a\":\"p\"}\n",
       "l.jsonl");
   REQUIRE(pairs.ok());
   REQUIRE(pairs->size() == 3);
@@ -84,7 +86,8 @@ TEST_CASE("errors name the file and line", "[labels]") {
            Case{"x\tx\t1\n", "l:1: pairs \"x\" with itself"},
            Case{"{\"a\":\"x\",\"label\":1}\n", "l:1: missing field \"b\""},
            Case{"{\"a\":\"x\",\"b\":\"y\",\"label\":2}\n",
-                "l:1: field \"label\" is not a label (a spelling, true/false or 1/0)"},
+                "l:1: field \"label\" is not a label (a spelling, true/false "
+                "or 1/0)"},
            Case{"{\"a\":[1],\"b\":\"y\",\"label\":1}\n",
                 "l:1: field \"a\" is not a string or an integer"},
        }) {

@@ -1,13 +1,13 @@
 // tune: the measures against their published formulas, the ranking order,
 // and a run on the sample corpus checked against brute-force candidate
 // counts and a real sweep with the recommended setting.
-#include <catch2/catch.hpp>
+#include "kindred/tune.h"
 
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <set>
 
 #include "kindred/sweep.h"
-#include "kindred/tune.h"
 #include "kindred/tune_report.h"
 
 namespace kindred {
@@ -62,17 +62,22 @@ TEST_CASE("precision, recall, F1 and F-beta follow the published formulas", "[tu
   CHECK(none.f1 == 0);
 }
 
-TEST_CASE("ScoreLabels: a pair is predicted duplicate when a candidate at or above the threshold",
-          "[tune]") {
+TEST_CASE(
+    "ScoreLabels: a pair is predicted duplicate when a candidate at or "
+    "above the threshold",
+    "[tune]") {
   const std::vector<ResolvedPair> labelled = {
       {0, 1, true, 0}, {0, 2, true, 1}, {1, 2, false, 2}, {2, 3, false, 3}, {1, 3, true, 4}};
   // shared, |A|, |B|, jaccard, measure: Jaccard 0.8, 0.8, 0.8, 0.4, 0.5.
-  const std::vector<PairMeasure> measures = {
-      {8, 9, 9, 0.8, 0.8}, {8, 9, 9, 0.8, 0.8}, {8, 9, 9, 0.8, 0.8}, {4, 7, 7, 0.4, 0.4},
-      {5, 7, 8, 0.5, 0.5}};
+  const std::vector<PairMeasure> measures = {{8, 9, 9, 0.8, 0.8},
+                                             {8, 9, 9, 0.8, 0.8},
+                                             {8, 9, 9, 0.8, 0.8},
+                                             {4, 7, 7, 0.4, 0.4},
+                                             {5, 7, 8, 0.5, 0.5}};
   const std::vector<uint8_t> candidate = {1, 0, 1, 1, 1};
   std::vector<uint32_t> wrong;
-  const LabelScore s = ScoreLabels(labelled, measures, candidate, 0.5, Measure::kJaccard, 1, &wrong);
+  const LabelScore s =
+      ScoreLabels(labelled, measures, candidate, 0.5, Measure::kJaccard, 1, &wrong);
   // Predicted: pairs 0, 2 and 4 (pair 1 is no candidate, pair 3 is below).
   CHECK(s.true_positives == 2);
   CHECK(s.false_positives == 1);
@@ -117,6 +122,12 @@ TEST_CASE("grid values parse; bad ones are errors", "[tune]") {
   options = TuneOptions{};
   options.grid.thresholds = {0.5, 1.5};
   CHECK(options.Validate().message() == "threshold 1.5 is out of range (0, 1]");
+  options = TuneOptions{};
+  options.grid.perms = {64, 128, 64};
+  CHECK(options.Validate().message() == "perms 64 is listed twice");
+  options = TuneOptions{};
+  options.grid.shingles.push_back({ShingleMode::kWord, 3});
+  CHECK(options.Validate().message() == "shingle setting word:3 is listed twice");
 }
 
 TEST_CASE("the sweep command line names every setting and quotes inputs", "[tune]") {
@@ -124,13 +135,15 @@ TEST_CASE("the sweep command line names every setting and quotes inputs", "[tune
   TuneOptions options;
   const std::vector<std::string> inputs = {"archive", "my docs/it's.jsonl"};
   CHECK(SweepCommandLine(setting, options, inputs) ==
-        "kindred sweep archive 'my docs/it'\\''s.jsonl' --shingle word -k 5 --perms 128 "
+        "kindred sweep archive 'my docs/it'\\''s.jsonl' --shingle word -k 5 "
+        "--perms 128 "
         "--threshold 0.8 --bands 16 --rows 8");
   options.measure = Measure::kContainment;
   options.scheme = SignerScheme::kClassic;
   setting.threshold = 0.85;
   CHECK(SweepCommandLine(setting, options, {inputs.data(), 1}) ==
-        "kindred sweep archive --shingle word -k 5 --perms 128 --threshold 0.85 --bands 16 "
+        "kindred sweep archive --shingle word -k 5 --perms 128 --threshold "
+        "0.85 --bands 16 "
         "--rows 8 --measure containment --signer classic");
 }
 
@@ -145,7 +158,8 @@ TEST_CASE("sample corpus: every grid setting is evaluated and ranked in order", 
   for (uint32_t perms : {64u, 128u}) {
     for (double t : {0.5, 0.6, 0.7, 0.8, 0.9}) {
       const auto ranked = RankBandings(t, perms);
-      const bool extra_ranked = ranked[0].banding == Banding{32, 4} || ranked[1].banding == Banding{32, 4};
+      const bool extra_ranked =
+          ranked[0].banding == Banding{32, 4} || ranked[1].banding == Banding{32, 4};
       expected += extra_ranked || perms < 128 ? 2 : 3;
     }
   }
@@ -153,8 +167,10 @@ TEST_CASE("sample corpus: every grid setting is evaluated and ranked in order", 
   CHECK(std::is_sorted(r.ranking.begin(), r.ranking.end(), RanksBefore));
 }
 
-TEST_CASE("sample corpus: the recommendation meets its target at the best precision, cheapest",
-          "[tune]") {
+TEST_CASE(
+    "sample corpus: the recommendation meets its target at the best "
+    "precision, cheapest",
+    "[tune]") {
   const TuneResult& r = SampleResult();
   const SettingScore& best = r.recommended();
   REQUIRE(r.target_met);
@@ -182,7 +198,8 @@ uint64_t BruteForceCandidates(const TuneSetting& setting, const TuneOptions& opt
   REQUIRE(SignCorpus(**reader, setting.Signature(options), SignOptions{}, corpus, &stats).ok());
   const Banding b = setting.banding;
   std::vector<std::vector<uint64_t>> keys(corpus->size(), std::vector<uint64_t>(b.bands));
-  for (size_t d = 0; d < corpus->size(); ++d) BandKeys(corpus->signature(d), b, absl::MakeSpan(keys[d]));
+  for (size_t d = 0; d < corpus->size(); ++d)
+    BandKeys(corpus->signature(d), b, absl::MakeSpan(keys[d]));
   uint64_t pairs = 0;
   for (size_t i = 0; i < corpus->size(); ++i) {
     for (size_t j = i + 1; j < corpus->size(); ++j) {
@@ -244,8 +261,10 @@ TEST_CASE("sample corpus: the thread count does not change the result", "[tune]"
 }
 
 TEST_CASE("labels naming documents outside the corpus", "[tune]") {
-  auto labels = ParseLabels("a\tb\tlabel\nodd/one-word.txt\tno/such.txt\tdistinct\n"
-                            "odd/one-word.txt\todd/empty.txt\tdistinct\n", "extra.tsv");
+  auto labels = ParseLabels(
+      "a\tb\tlabel\nodd/one-word.txt\tno/such.txt\tdistinct\n"
+      "odd/one-word.txt\todd/empty.txt\tdistinct\n",
+      "extra.tsv");
   REQUIRE(labels.ok());
   TuneOptions options = SmallGrid(1);
   options.grid.shingles = {{ShingleMode::kWord, 5}};

@@ -51,9 +51,9 @@ struct AlignedPassage {
 
 struct Explanation {
   SignatureSettings settings;
-  Overlap overlap;          // shared, size_a, size_b (distinct shingles)
-  double jaccard = 0;       // exact
-  double estimate = 0;      // signature estimate with settings.perms slots
+  Overlap overlap;      // shared, size_a, size_b (distinct shingles)
+  double jaccard = 0;   // exact
+  double estimate = 0;  // signature estimate with settings.perms slots
   double containment_a_in_b = 0;
   double containment_b_in_a = 0;
   std::vector<TextSpan> marked_a;  // ascending, disjoint

@@ -70,9 +70,11 @@ struct ResolvedPair {
 // error naming `labels_name`, the line and the id, unless `skip_unknown`:
 // then the pair is left out and one warning per such pair is appended to
 // *warnings (which must not be null in that case).
-absl::StatusOr<std::vector<ResolvedPair>> ResolveLabels(
-    absl::Span<const LabelledPair> pairs, absl::Span<const std::string> ids,
-    std::string_view labels_name, bool skip_unknown, std::vector<std::string>* warnings);
+absl::StatusOr<std::vector<ResolvedPair>> ResolveLabels(absl::Span<const LabelledPair> pairs,
+                                                        absl::Span<const std::string> ids,
+                                                        std::string_view labels_name,
+                                                        bool skip_unknown,
+                                                        std::vector<std::string>* warnings);
 
 }  // namespace kindred
 

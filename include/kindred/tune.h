@@ -66,9 +66,8 @@ absl::StatusOr<Banding> ParseBanding(std::string_view text);
 // The axes of the grid. Defaults: word 3, 5, 7; 64 and 128 perms;
 // thresholds 0.50 to 0.95 by 0.05; the best 3 bandings per threshold.
 struct TuneGrid {
-  std::vector<ShingleChoice> shingles = {{ShingleMode::kWord, 3},
-                                         {ShingleMode::kWord, 5},
-                                         {ShingleMode::kWord, 7}};
+  std::vector<ShingleChoice> shingles = {
+      {ShingleMode::kWord, 3}, {ShingleMode::kWord, 5}, {ShingleMode::kWord, 7}};
   std::vector<uint32_t> perms = {64, 128};
   std::vector<double> thresholds = {0.5, 0.55, 0.6, 0.65, 0.7, 0.75, 0.8, 0.85, 0.9, 0.95};
   // How many of RankBandings(threshold, perms) to evaluate (>= 1; the first
@@ -133,7 +132,7 @@ void DeriveMeasures(double beta, LabelScore* score);
 struct SettingScore {
   TuneSetting setting;
   LabelScore labels;
-  uint64_t candidate_pairs = 0;       // distinct, over the whole corpus
+  uint64_t candidate_pairs = 0;        // distinct, over the whole corpus
   double candidates_per_document = 0;  // the cost
   bool meets_target = false;
   // The labelled pairs this setting gets wrong: indices into
@@ -179,14 +178,14 @@ struct ShingleEvaluation {
 
 struct TuneResult {
   uint64_t documents = 0;
-  std::vector<LabelledPair> labels;      // as read
-  std::vector<ResolvedPair> labelled;    // the pairs evaluated
-  std::vector<std::string> ids;          // the corpus's ids, document order
-  std::vector<std::string> warnings;     // skipped label pairs
+  std::vector<LabelledPair> labels;    // as read
+  std::vector<ResolvedPair> labelled;  // the pairs evaluated
+  std::vector<std::string> ids;        // the corpus's ids, document order
+  std::vector<std::string> warnings;   // skipped label pairs
   std::vector<ShingleEvaluation> shingles;
   std::vector<SignatureEvaluation> signatures;
-  std::vector<SettingScore> ranking;     // best first
-  bool target_met = false;               // ranking[0].meets_target
+  std::vector<SettingScore> ranking;  // best first
+  bool target_met = false;            // ranking[0].meets_target
 
   const SettingScore& recommended() const { return ranking.front(); }
   // The signing of a setting, and the measures of its shingle setting.
@@ -199,9 +198,9 @@ struct TuneResult {
 // PassesThreshold does). Appends the wrong pairs' indices to *wrong when not
 // null.
 LabelScore ScoreLabels(absl::Span<const ResolvedPair> labelled,
-                       absl::Span<const PairMeasure> measures,
-                       absl::Span<const uint8_t> candidate, double threshold, Measure measure,
-                       double beta, std::vector<uint32_t>* wrong);
+                       absl::Span<const PairMeasure> measures, absl::Span<const uint8_t> candidate,
+                       double threshold, Measure measure, double beta,
+                       std::vector<uint32_t>* wrong);
 
 // True when `x` ranks before `y` (see the file comment).
 bool RanksBefore(const SettingScore& x, const SettingScore& y);
@@ -212,8 +211,7 @@ using OpenCorpus = std::function<absl::StatusOr<std::unique_ptr<CorpusReader>>()
 // give the same documents each time. Errors: the reader's, a duplicate id,
 // an unknown label id (unless skipped), no labelled pair left, an empty
 // corpus, invalid options (InvalidArgument).
-absl::StatusOr<TuneResult> RunTune(const OpenCorpus& open_corpus,
-                                   std::vector<LabelledPair> labels,
+absl::StatusOr<TuneResult> RunTune(const OpenCorpus& open_corpus, std::vector<LabelledPair> labels,
                                    std::string_view labels_name, const TuneOptions& options);
 
 // The sweep command line that uses `setting`, e.g.

@@ -33,12 +33,12 @@
 namespace kindred {
 
 struct TuneReportInput {
-  const TuneResult* result = nullptr;  // borrowed; required
+  const TuneResult* result = nullptr;    // borrowed; required
   const TuneOptions* options = nullptr;  // borrowed; required
-  std::vector<std::string> inputs;     // the corpus as given (for the command line)
-  std::string labels_name;             // the labels file as given
-  size_t table_rows = 20;              // rows of the ranking shown (text, HTML)
-  size_t curves = 4;                   // S-curves drawn (distinct perms x banding)
+  std::vector<std::string> inputs;       // the corpus as given (for the command line)
+  std::string labels_name;               // the labels file as given
+  size_t table_rows = 20;                // rows of the ranking shown (text, HTML)
+  size_t curves = 4;                     // S-curves drawn (distinct perms x banding)
 };
 
 // An explained wrong pair for the HTML report.

@@ -62,7 +62,8 @@ absl::Status LoadTexts(const ExplainFlags& flags, Subject* subject) {
   } else {
     absl::StatusOr<InputOptions> options = ToInputOptions(flags.input);
     if (!options.ok()) return options.status();
-    absl::StatusOr<std::unique_ptr<CorpusReader>> reader = CorpusReader::Open(flags.corpus, *options);
+    absl::StatusOr<std::unique_ptr<CorpusReader>> reader =
+        CorpusReader::Open(flags.corpus, *options);
     if (!reader.ok()) return reader.status();
     const std::vector<std::string> ids = {flags.a, flags.b};
     absl::StatusOr<std::vector<std::string>> texts = ReadTexts(**reader, ids);
@@ -107,17 +108,21 @@ std::string Numbers(const Subject& subject, const Explanation& e) {
   const Overlap& o = e.overlap;
   std::string out = absl::StrFormat(
       "a: %s\nb: %s\nsettings: %s\n\n"
-      "exact Jaccard            %.4f\nsignature estimate       %.4f  (%u perms)\n"
+      "exact Jaccard            %.4f\nsignature estimate       %.4f  (%u "
+      "perms)\n"
       "containment of a in b    %.4f\ncontainment of b in a    %.4f\n"
-      "shingles of a            %u\nshingles of b            %u\nshared shingles          %u\n"
+      "shingles of a            %u\nshingles of b            %u\nshared "
+      "shingles          %u\n"
       "only in a                %u\nonly in b                %u\n",
       subject.name_a, subject.name_b, e.settings.ToString(), e.jaccard, e.estimate,
       e.settings.perms, e.containment_a_in_b, e.containment_b_in_a, o.size_a, o.size_b, o.shared,
       o.size_a - o.shared, o.size_b - o.shared);
   for (const auto& [name, size] : {std::pair{"a", o.size_a}, std::pair{"b", o.size_b}}) {
     if (size == 0) {
-      out += absl::StrFormat("note: %s has no shingles; an empty document is never anyone's "
-                             "duplicate\n", name);
+      out += absl::StrFormat(
+          "note: %s has no shingles; an empty document is never anyone's "
+          "duplicate\n",
+          name);
     }
   }
   return out;
@@ -125,7 +130,8 @@ std::string Numbers(const Subject& subject, const Explanation& e) {
 
 // A short one-line excerpt of a span.
 std::string Excerpt(const std::string& text, const TextSpan& span) {
-  std::string excerpt = RepairUtf8(std::string_view(text).substr(span.begin, span.end - span.begin));
+  std::string excerpt =
+      RepairUtf8(std::string_view(text).substr(span.begin, span.end - span.begin));
   for (char& c : excerpt) {
     if (c == '\n' || c == '\r' || c == '\t') c = ' ';
   }
@@ -138,13 +144,12 @@ std::string Excerpt(const std::string& text, const TextSpan& span) {
 }
 
 std::string Passages(const Subject& subject, const Explanation& e, size_t limit) {
-  std::string out = absl::StrFormat("\nLongest shared passages (%u in all; byte ranges of a = b):\n",
-                                    e.passages.size());
+  std::string out = absl::StrFormat(
+      "\nLongest shared passages (%u in all; byte ranges of a = b):\n", e.passages.size());
   for (size_t i = 0; i < e.passages.size() && i < limit; ++i) {
     const AlignedPassage& p = e.passages[i];
     out += absl::StrFormat("%3u. a %u-%u = b %u-%u, %u shingles\n     \"%s\"\n", i + 1, p.a.begin,
-                           p.a.end, p.b.begin, p.b.end, p.shingles,
-                           Excerpt(subject.text_a, p.a));
+                           p.a.end, p.b.begin, p.b.end, p.shingles, Excerpt(subject.text_a, p.a));
   }
   return out;
 }
@@ -153,9 +158,12 @@ std::string MarkedTexts(const Subject& subject, const Explanation& e, bool color
   const std::string open = color ? "\x1b[30;43m" : "[[";
   const std::string close = color ? "\x1b[0m" : "]]";
   return absl::StrFormat(
-      "\na, shared passages marked %s:\n%s\n\nb, shared passages marked %s:\n%s\n",
-      color ? "in colour" : "[[like this]]", RepairUtf8(MarkSpans(subject.text_a, e.marked_a, open, close)),
-      color ? "in colour" : "[[like this]]", RepairUtf8(MarkSpans(subject.text_b, e.marked_b, open, close)));
+      "\na, shared passages marked %s:\n%s\n\nb, shared passages marked "
+      "%s:\n%s\n",
+      color ? "in colour" : "[[like this]]",
+      RepairUtf8(MarkSpans(subject.text_a, e.marked_a, open, close)),
+      color ? "in colour" : "[[like this]]",
+      RepairUtf8(MarkSpans(subject.text_b, e.marked_b, open, close)));
 }
 
 void AppendSpans(const std::vector<TextSpan>& spans, std::string* out) {
@@ -171,9 +179,10 @@ std::string JsonRecord(const Subject& subject, const Explanation& e) {
   AppendJsonString(&out, subject.name_a);
   out += ",\"b\":";
   AppendJsonString(&out, subject.name_b);
-  for (const auto& [name, value] : {std::pair{"jaccard", e.jaccard}, std::pair{"estimate", e.estimate},
-                                    std::pair{"containment_a_in_b", e.containment_a_in_b},
-                                    std::pair{"containment_b_in_a", e.containment_b_in_a}}) {
+  for (const auto& [name, value] :
+       {std::pair{"jaccard", e.jaccard}, std::pair{"estimate", e.estimate},
+        std::pair{"containment_a_in_b", e.containment_a_in_b},
+        std::pair{"containment_b_in_a", e.containment_b_in_a}}) {
     out += absl::StrCat(",\"", name, "\":");
     AppendSimilarity(&out, value);
   }
@@ -222,7 +231,9 @@ int RunExplainCommand(const ExplainFlags& flags) {
       out += Passages(subject, *explanation, flags.passages);
       if (!flags.no_text) out += MarkedTexts(subject, *explanation, color);
     } else {
-      out += "\n(the index holds shingle sets, not texts: give --corpus too to see the passages)\n";
+      out +=
+          "\n(the index holds shingle sets, not texts: give --corpus too to "
+          "see the passages)\n";
     }
   }
   if (absl::Status s = WriteOutputFile("-", out); !s.ok()) return Fail(kExitOutput, s);
@@ -233,26 +244,32 @@ int RunExplainCommand(const ExplainFlags& flags) {
 
 void RegisterExplain(CLI::App& app, int* exit_code) {
   auto flags = std::make_shared<ExplainFlags>();
-  CLI::App* command = app.add_subcommand(
-      "explain", "Show why two documents match: exact and estimated similarity, containment, "
-                 "and the shared passages marked");
+  CLI::App* command = app.add_subcommand("explain",
+                                         "Show why two documents match: exact and "
+                                         "estimated similarity, containment, "
+                                         "and the shared passages marked");
   command->add_option("a", flags->a, "first document: a file, or an id with --corpus/--index")
       ->required();
   command->add_option("b", flags->b, "second document: a file, or an id with --corpus/--index")
       ->required();
-  command->add_option("--corpus", flags->corpus,
-                      "read the two documents by id from this corpus (a directory or file; "
-                      "repeat for more)")
+  command
+      ->add_option("--corpus", flags->corpus,
+                   "read the two documents by id from this corpus (a directory or file; "
+                   "repeat for more)")
       ->allow_extra_args(false)
       ->group("Input");
-  command->add_option("--index", flags->index,
-                      "take the numbers from this index file (its settings); with --corpus also "
-                      "show the passages")
+  command
+      ->add_option("--index", flags->index,
+                   "take the numbers from this index file (its settings); with "
+                   "--corpus also "
+                   "show the passages")
       ->group("Input");
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);
-  command->add_option("--color", flags->color, "mark passages in colour: auto (on a terminal), "
-                      "always or never ([[ ]] markers)")
+  command
+      ->add_option("--color", flags->color,
+                   "mark passages in colour: auto (on a terminal), "
+                   "always or never ([[ ]] markers)")
       ->check(CLI::IsMember({"auto", "always", "never"}))
       ->default_str("auto")
       ->group("Output");

@@ -80,8 +80,8 @@ absl::StatusOr<std::vector<ExplainedPair>> ExplainWrongPairs(const TuneResult& r
                                                              const TuneOptions& options,
                                                              const OpenCorpus& open_corpus) {
   const SettingScore& best = result.recommended();
-  std::vector<uint32_t> chosen(best.wrong.begin(),
-                               best.wrong.begin() + std::min(best.wrong.size(), kMaxExplainedPairs));
+  std::vector<uint32_t> chosen(
+      best.wrong.begin(), best.wrong.begin() + std::min(best.wrong.size(), kMaxExplainedPairs));
   std::vector<std::string> ids;
   for (uint32_t i : chosen) {
     ids.push_back(result.ids[result.labelled[i].a]);
@@ -153,8 +153,10 @@ int RunTuneCommand(const TuneFlags& flags) {
 }
 
 void AddGridOptions(CLI::App* command, TuneFlags* flags) {
-  command->add_option("--shingles", flags->shingles,
-                      "shingle settings to try, comma-separated MODE:K (word:3,word:5,char:5)")
+  command
+      ->add_option("--shingles", flags->shingles,
+                   "shingle settings to try, comma-separated MODE:K "
+                   "(word:3,word:5,char:5)")
       ->delimiter(',')
       ->default_str("word:3,word:5,word:7")
       ->group("Grid");
@@ -166,58 +168,71 @@ void AddGridOptions(CLI::App* command, TuneFlags* flags) {
       ->delimiter(',')
       ->default_str("0.5,0.55,...,0.95")
       ->group("Grid");
-  command->add_option("--bandings-per-threshold", flags->bandings_per_threshold,
-                      "best bandings (as `kindred plan` ranks them) tried at each threshold")
+  command
+      ->add_option("--bandings-per-threshold", flags->bandings_per_threshold,
+                   "best bandings (as `kindred plan` ranks them) tried at each "
+                   "threshold")
       ->default_str("3")
       ->group("Grid");
-  command->add_option("--bandings", flags->bandings,
-                      "more bandings tried at every threshold, comma-separated BANDSxROWS")
+  command
+      ->add_option("--bandings", flags->bandings,
+                   "more bandings tried at every threshold, comma-separated BANDSxROWS")
       ->delimiter(',')
       ->group("Grid");
-  command->add_option("--measure", flags->measure, "similarity compared with the threshold: "
-                      "jaccard or containment")
+  command
+      ->add_option("--measure", flags->measure,
+                   "similarity compared with the threshold: "
+                   "jaccard or containment")
       ->default_str("jaccard")
       ->group("Grid");
   command->add_option("--signer", flags->signer, "MinHash scheme: oph or classic")
       ->default_str("oph")
       ->group("Grid");
-  command->add_option("--seed", flags->seed, "hash seed of shingles and signatures")
-      ->group("Grid");
+  command->add_option("--seed", flags->seed, "hash seed of shingles and signatures")->group("Grid");
 }
 
 }  // namespace
 
 void RegisterTune(CLI::App& app, int* exit_code) {
   auto flags = std::make_shared<TuneFlags>();
-  CLI::App* command = app.add_subcommand(
-      "tune", "Evaluate shingle, signature and banding settings against labelled pairs and "
-              "recommend one");
+  CLI::App* command = app.add_subcommand("tune",
+                                         "Evaluate shingle, signature and banding "
+                                         "settings against labelled pairs and "
+                                         "recommend one");
   command->add_option("inputs", flags->inputs, "the corpus: directories or files")->required();
-  command->add_option(
-             "-l,--labels", flags->labels,
-             "labelled pairs: TSV, CSV or JSON Lines with columns/fields a, b, label. Labels "
-             "(any case): duplicate, dup, yes, true, 1 / distinct, different, not-duplicate, "
-             "no, false, 0. A first TSV/CSV line whose label is none of these is a header")
+  command
+      ->add_option("-l,--labels", flags->labels,
+                   "labelled pairs: TSV, CSV or JSON Lines with columns/fields "
+                   "a, b, label. Labels "
+                   "(any case): duplicate, dup, yes, true, 1 / distinct, "
+                   "different, not-duplicate, "
+                   "no, false, 0. A first TSV/CSV line whose label is none of "
+                   "these is a header")
       ->required();
   AddInputOptions(command, &flags->input);
   AddGridOptions(command, flags.get());
-  command->add_option("--target-recall", flags->target_recall,
-                      "recommend the cheapest setting with at least this recall at the highest "
-                      "precision")
+  command
+      ->add_option("--target-recall", flags->target_recall,
+                   "recommend the cheapest setting with at least this recall "
+                   "at the highest "
+                   "precision")
       ->default_str("0.95")
       ->group("Choice");
   command->add_option("--beta", flags->beta, "beta of the F-beta column (1: F1)")
       ->default_str("1")
       ->group("Choice");
-  command->add_flag("--skip-unknown-ids", flags->skip_unknown,
-                    "leave out labelled pairs whose ids are not in the corpus (with a warning) "
-                    "instead of failing")
+  command
+      ->add_flag("--skip-unknown-ids", flags->skip_unknown,
+                 "leave out labelled pairs whose ids are not in the corpus "
+                 "(with a warning) "
+                 "instead of failing")
       ->group("Input");
   command->add_option("--format", flags->format, "standard output: text or jsonl")
       ->default_str("text")
       ->group("Output");
-  command->add_option("--report", flags->report,
-                      "write a self-contained HTML report (plots, table, wrong pairs) here")
+  command
+      ->add_option("--report", flags->report,
+                   "write a self-contained HTML report (plots, table, wrong pairs) here")
       ->group("Output");
   command->add_option("--top", flags->top, "rows of the ranking shown in text and HTML")
       ->default_str("20")

@@ -85,10 +85,9 @@ std::vector<AlignedPassage> AlignPassages(absl::Span<const ShingleText> a,
                         static_cast<uint32_t>(length)});
     i += length;
   }
-  std::stable_sort(passages.begin(), passages.end(),
-                   [](const AlignedPassage& x, const AlignedPassage& y) {
-                     return x.shingles > y.shingles;
-                   });
+  std::stable_sort(
+      passages.begin(), passages.end(),
+      [](const AlignedPassage& x, const AlignedPassage& y) { return x.shingles > y.shingles; });
   return passages;
 }
 

@@ -147,7 +147,8 @@ absl::StatusOr<bool> JsonLabel(simdjson::dom::element value) {
 absl::StatusOr<LabelledPair> ParseJsonLine(simdjson::dom::parser& parser, std::string_view text) {
   simdjson::dom::element root;
   if (auto error = parser.parse(text.data(), text.size()).get(root)) {
-    return absl::InvalidArgumentError(absl::StrCat("invalid JSON: ", simdjson::error_message(error)));
+    return absl::InvalidArgumentError(
+        absl::StrCat("invalid JSON: ", simdjson::error_message(error)));
   }
   if (!root.is_object()) return absl::InvalidArgumentError("not a JSON object");
   LabelledPair pair;
@@ -206,8 +207,8 @@ absl::Status CheckPairs(const std::vector<LabelledPair>& pairs, std::string_view
 }  // namespace
 
 absl::StatusOr<bool> ParseLabel(std::string_view word) {
-  const std::string lower =
-      absl::AsciiStrToLower(absl::StripAsciiWhitespace(absl::string_view(word.data(), word.size())));
+  const std::string lower = absl::AsciiStrToLower(
+      absl::StripAsciiWhitespace(absl::string_view(word.data(), word.size())));
   for (const char* yes : {"duplicate", "dup", "yes", "true", "1"}) {
     if (lower == yes) return true;
   }
@@ -221,9 +222,9 @@ absl::StatusOr<std::vector<LabelledPair>> ParseLabels(std::string_view content,
                                                       std::string_view name) {
   const std::vector<std::string_view> lines = SplitLines(content);
   std::vector<LabelledPair> pairs;
-  const size_t first = std::find_if(lines.begin(), lines.end(),
-                                    [](std::string_view l) { return !IsBlank(l); }) -
-                       lines.begin();
+  const size_t first =
+      std::find_if(lines.begin(), lines.end(), [](std::string_view l) { return !IsBlank(l); }) -
+      lines.begin();
   absl::Status status;
   if (first < lines.size()) {
     std::string_view head = lines[first];
@@ -231,8 +232,8 @@ absl::StatusOr<std::vector<LabelledPair>> ParseLabels(std::string_view content,
     if (!head.empty() && head.front() == '{') {
       status = ParseJsonLines(lines, name, &pairs);
     } else {
-      status = ParseDelimited(lines, lines[first].find('\t') != std::string_view::npos, name,
-                              &pairs);
+      status =
+          ParseDelimited(lines, lines[first].find('\t') != std::string_view::npos, name, &pairs);
     }
   }
   if (!status.ok()) return status;
@@ -249,9 +250,11 @@ absl::StatusOr<std::vector<LabelledPair>> ReadLabels(const std::string& path) {
   return ParseLabels(content.str(), path);
 }
 
-absl::StatusOr<std::vector<ResolvedPair>> ResolveLabels(
-    absl::Span<const LabelledPair> pairs, absl::Span<const std::string> ids,
-    std::string_view labels_name, bool skip_unknown, std::vector<std::string>* warnings) {
+absl::StatusOr<std::vector<ResolvedPair>> ResolveLabels(absl::Span<const LabelledPair> pairs,
+                                                        absl::Span<const std::string> ids,
+                                                        std::string_view labels_name,
+                                                        bool skip_unknown,
+                                                        std::vector<std::string>* warnings) {
   absl::flat_hash_map<std::string_view, uint32_t> index;
   for (size_t doc = 0; doc < ids.size(); ++doc) index.emplace(ids[doc], doc);
   std::vector<ResolvedPair> resolved;

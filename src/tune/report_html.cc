@@ -36,8 +36,8 @@ std::string Cell(const std::string& text) { return absl::StrCat("<td>", text, "<
 std::string SCurvePlot(const TuneReportInput& input) {
   const TuneResult& r = *input.result;
   SvgPlot plot("Candidate probability (S-curves of the top settings)",
-               Axis{absl::StrCat("exact similarity (", MeasureName(input.options->measure),
-                                 ")"), 0, 1, 0.1, 1},
+               Axis{absl::StrCat("exact similarity (", MeasureName(input.options->measure), ")"), 0,
+                    1, 0.1, 1},
                Axis{"probability of becoming a candidate", -0.2, 1, 0.2, 1});
   std::set<std::pair<uint32_t, std::pair<uint32_t, uint32_t>>> drawn;
   for (const SettingScore& s : r.ranking) {
@@ -45,7 +45,8 @@ std::string SCurvePlot(const TuneReportInput& input) {
     const Banding b = s.setting.banding;
     if (!drawn.insert({s.setting.perms, {b.bands, b.rows}}).second) continue;
     std::vector<std::pair<double, double>> points;
-    for (int i = 0; i <= 100; ++i) points.push_back({i / 100.0, CandidateProbability(i / 100.0, b.bands, b.rows)});
+    for (int i = 0; i <= 100; ++i)
+      points.push_back({i / 100.0, CandidateProbability(i / 100.0, b.bands, b.rows)});
     const std::string color = kPalette[(drawn.size() - 1) % 6];
     plot.Line(points, color,
               absl::StrFormat("%ux%u, %u perms%s", b.bands, b.rows, s.setting.perms,
@@ -65,7 +66,8 @@ std::string SCurvePlot(const TuneReportInput& input) {
                              wrong.count(i) ? " (wrong)" : ""),
              wrong.count(i) > 0);
   }
-  plot.DotLegend(kPalette[2], absl::StrCat("labelled duplicate (", best.setting.shingle.ToString(), ")"));
+  plot.DotLegend(kPalette[2],
+                 absl::StrCat("labelled duplicate (", best.setting.shingle.ToString(), ")"));
   plot.DotLegend(kPalette[4], "labelled distinct");
   plot.DotLegend("#000", "ringed: wrong");
   plot.Marker(best.setting.threshold, "#444", absl::StrFormat("t=%.2f", best.setting.threshold));
@@ -103,16 +105,18 @@ std::string HistogramPlot(const TuneReportInput& input) {
   const TuneResult& r = *input.result;
   const SettingScore& best = r.recommended();
   const SimilarityHistogram& histogram = r.SignatureOf(best.setting).best_histogram;
-  const uint64_t largest = std::max<uint64_t>(1, *std::max_element(histogram.begin(), histogram.end()));
+  const uint64_t largest =
+      std::max<uint64_t>(1, *std::max_element(histogram.begin(), histogram.end()));
   const double step = tune_internal::NiceStep(static_cast<double>(largest));
   SvgPlot plot(absl::StrFormat("Exact similarity of all %u candidate pairs", best.candidate_pairs),
-               Axis{absl::StrCat("exact similarity (", MeasureName(input.options->measure), ")"),
-                    0, 1, 0.1, 1},
+               Axis{absl::StrCat("exact similarity (", MeasureName(input.options->measure), ")"), 0,
+                    1, 0.1, 1},
                Axis{"candidate pairs", 0, std::ceil(largest / step) * step, step, 0});
   for (size_t bin = 0; bin < histogram.size(); ++bin) {
-    plot.Bar(bin / 20.0, (bin + 1) / 20.0, static_cast<double>(histogram[bin]),
-             bin / 20.0 + 1e-9 >= best.setting.threshold ? kPalette[1] : kPalette[0],
-             absl::StrFormat("%.2f to %.2f: %u pairs", bin / 20.0, (bin + 1) / 20.0, histogram[bin]));
+    plot.Bar(
+        bin / 20.0, (bin + 1) / 20.0, static_cast<double>(histogram[bin]),
+        bin / 20.0 + 1e-9 >= best.setting.threshold ? kPalette[1] : kPalette[0],
+        absl::StrFormat("%.2f to %.2f: %u pairs", bin / 20.0, (bin + 1) / 20.0, histogram[bin]));
   }
   plot.DotLegend(kPalette[1], "at or above the threshold");
   plot.DotLegend(kPalette[0], "below the threshold");
@@ -124,8 +128,10 @@ std::string RankingTable(const TuneReportInput& input) {
   const TuneResult& r = *input.result;
   std::string out =
       "<table>\n<tr><th>rank</th><th>shingle</th><th>perms</th><th>banding</th>"
-      "<th>threshold</th><th>precision</th><th>recall</th><th>F1</th><th>F-beta</th>"
-      "<th>candidates per document</th><th>wrong pairs</th><th>meets target</th></tr>\n";
+      "<th>threshold</th><th>precision</th><th>recall</th><th>F1</"
+      "th><th>F-beta</th>"
+      "<th>candidates per document</th><th>wrong pairs</th><th>meets "
+      "target</th></tr>\n";
   for (size_t i = 0; i < std::min(input.table_rows, r.ranking.size()); ++i) {
     const SettingScore& s = r.ranking[i];
     out += absl::StrCat(
@@ -147,7 +153,9 @@ std::string MarkedText(const std::string& text, const std::vector<TextSpan>& spa
   size_t at = 0;
   for (const TextSpan& span : spans) {
     out += EscapeXml(std::string_view(text).substr(at, span.begin - at));
-    out += absl::StrCat("<mark>", EscapeXml(std::string_view(text).substr(span.begin, span.end - span.begin)), "</mark>");
+    out += absl::StrCat("<mark>",
+                        EscapeXml(std::string_view(text).substr(span.begin, span.end - span.begin)),
+                        "</mark>");
     at = span.end;
   }
   return out + EscapeXml(std::string_view(text).substr(std::min(at, text.size())));
@@ -158,16 +166,19 @@ std::string WrongPair(const TuneReportInput& input, uint32_t i, const ExplainedP
   const LabelledPair& label = r.labels[r.labelled[i].label];
   const PairMeasure& m = r.ShinglesOf(r.recommended().setting).labelled[i];
   std::string out = absl::StrFormat(
-      "<div class=\"pair\">\n<h3>%s and %s</h3>\n<p>Labelled %s (line %u); %s. Exact %s %.4f, "
+      "<div class=\"pair\">\n<h3>%s and %s</h3>\n<p>Labelled %s (line %u); %s. "
+      "Exact %s %.4f, "
       "signature estimate %.4f.</p>\n",
       EscapeXml(label.a), EscapeXml(label.b), label.duplicate ? "duplicate" : "distinct",
-      label.line, WrongReason(r, *input.options, i), MeasureName(input.options->measure),
-      m.measure, r.SignatureOf(r.recommended().setting).estimates[i]);
+      label.line, WrongReason(r, *input.options, i), MeasureName(input.options->measure), m.measure,
+      r.SignatureOf(r.recommended().setting).estimates[i]);
   if (explained != nullptr) {
     const Explanation& e = explained->explanation;
     out += absl::StrFormat(
-        "<p>Jaccard %.4f, containment of a in b %.4f, of b in a %.4f; shared shingles %u, only "
-        "in a %u, only in b %u. Shared passages are marked.</p>\n<div class=\"texts\"><pre>%s"
+        "<p>Jaccard %.4f, containment of a in b %.4f, of b in "
+        "a %.4f; shared shingles %u, only "
+        "in a %u, only in b %u. Shared passages are "
+        "marked.</p>\n<div class=\"texts\"><pre>%s"
         "</pre><pre>%s</pre></div>\n",
         e.jaccard, e.containment_a_in_b, e.containment_b_in_a, e.overlap.shared,
         e.overlap.size_a - e.overlap.shared, e.overlap.size_b - e.overlap.shared,
@@ -180,17 +191,20 @@ std::string Summary(const TuneReportInput& input) {
   const TuneResult& r = *input.result;
   const SettingScore& best = r.recommended();
   return absl::StrFormat(
-      "<p>%u documents; %u labelled pairs from %s; %u settings evaluated. Target: recall at "
-      "least %.4g at the highest precision, then the fewest candidate pairs per document.</p>\n"
-      "<h2>Recommendation</h2>\n<p>%s%s: precision %.4f, recall %.4f, F1 %.4f, F-beta %.4f "
-      "(beta %.3g), %.4f candidate pairs per document, %u labelled pairs wrong.</p>\n"
+      "<p>%u documents; %u labelled pairs from %s; %u settings evaluated. "
+      "Target: recall at "
+      "least %.4g at the highest precision, then the fewest candidate pairs "
+      "per document.</p>\n"
+      "<h2>Recommendation</h2>\n<p>%s%s: precision %.4f, recall %.4f, F1 %.4f, "
+      "F-beta %.4f "
+      "(beta %.3g), %.4f candidate pairs per document, %u labelled pairs "
+      "wrong.</p>\n"
       "<pre>%s</pre>\n",
       r.documents, r.labelled.size(), EscapeXml(input.labels_name), r.ranking.size(),
       input.options->target_recall,
       r.target_met ? "" : "No setting reaches the target recall; the closest is ",
-      EscapeXml(best.setting.ToString()), best.labels.precision, best.labels.recall,
-      best.labels.f1, best.labels.fbeta, input.options->beta, best.candidates_per_document,
-      best.wrong.size(),
+      EscapeXml(best.setting.ToString()), best.labels.precision, best.labels.recall, best.labels.f1,
+      best.labels.fbeta, input.options->beta, best.candidates_per_document, best.wrong.size(),
       EscapeXml(SweepCommandLine(best.setting, *input.options, input.inputs)));
 }
 

@@ -20,8 +20,8 @@ namespace kindred::tune_internal {
 std::string EscapeXml(std::string_view text);
 
 // Series colours, distinguishable and readable on white.
-inline constexpr const char* kPalette[] = {"#1f5fa8", "#d0641c", "#2e8b3d", "#8a3fa0",
-                                           "#b22a2a", "#5a6b7b"};
+inline constexpr const char* kPalette[] = {"#1f5fa8", "#d0641c", "#2e8b3d",
+                                           "#8a3fa0", "#b22a2a", "#5a6b7b"};
 
 // The smallest step of the form 1, 2 or 5 times a power of ten (at least 1)
 // that cuts [0, largest] into at most 8 ticks.

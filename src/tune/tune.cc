@@ -1,5 +1,7 @@
 // RunTune: sign once per (shingle setting, perms), evaluate every
 // (banding, threshold) of the grid from those signatures.
+#include "kindred/tune.h"
+
 #include <algorithm>
 #include <map>
 #include <utility>
@@ -10,7 +12,6 @@
 #include "kindred/parallel.h"
 #include "kindred/signed_corpus.h"
 #include "kindred/signer.h"
-#include "kindred/tune.h"
 #include "kindred/verify.h"
 
 namespace kindred {
@@ -85,8 +86,8 @@ std::vector<uint8_t> LabelledCandidates(const SignedCorpus& corpus,
   return candidate;
 }
 
-SimilarityHistogram CandidateHistogram(const SignedCorpus& corpus, Banding banding,
-                                       Measure measure, int threads) {
+SimilarityHistogram CandidateHistogram(const SignedCorpus& corpus, Banding banding, Measure measure,
+                                       int threads) {
   CandidateStats stats;
   const std::vector<PackedPair> pairs = FindCandidatePairs(corpus, banding, threads, &stats);
   constexpr size_t kChunk = 1 << 14;
@@ -126,7 +127,8 @@ void EvaluateSignature(const SignedCorpus& corpus, uint32_t shingle_index,
   signing.shingle = shingle_index;
   signing.perms = corpus.perms();
   for (const ResolvedPair& pair : result.labelled) {
-    signing.estimates.push_back(EstimateJaccard(corpus.signature(pair.a), corpus.signature(pair.b)));
+    signing.estimates.push_back(
+        EstimateJaccard(corpus.signature(pair.a), corpus.signature(pair.b)));
   }
   std::map<std::pair<uint32_t, uint32_t>, std::pair<uint64_t, std::vector<uint8_t>>> by_banding;
   const size_t first_score = result.ranking.size();
@@ -156,12 +158,13 @@ void EvaluateSignature(const SignedCorpus& corpus, uint32_t shingle_index,
     score.grid_order = context->grid_order++;
     result.ranking.push_back(std::move(score));
   }
-  const SettingScore& best = *std::min_element(
-      result.ranking.begin() + first_score, result.ranking.end(), RanksBefore);
+  const SettingScore& best =
+      *std::min_element(result.ranking.begin() + first_score, result.ranking.end(), RanksBefore);
   signing.best = best.setting;
-  signing.best_candidates = by_banding[{best.setting.banding.bands, best.setting.banding.rows}].second;
-  signing.best_histogram = CandidateHistogram(corpus, best.setting.banding, options.measure,
-                                              options.threads);
+  signing.best_candidates =
+      by_banding[{best.setting.banding.bands, best.setting.banding.rows}].second;
+  signing.best_histogram =
+      CandidateHistogram(corpus, best.setting.banding, options.measure, options.threads);
   result.signatures.push_back(std::move(signing));
 }
 
@@ -247,8 +250,7 @@ const ShingleEvaluation& TuneResult::ShinglesOf(const TuneSetting& setting) cons
   return shingles.front();
 }
 
-absl::StatusOr<TuneResult> RunTune(const OpenCorpus& open_corpus,
-                                   std::vector<LabelledPair> labels,
+absl::StatusOr<TuneResult> RunTune(const OpenCorpus& open_corpus, std::vector<LabelledPair> labels,
                                    std::string_view labels_name, const TuneOptions& options) {
   if (absl::Status s = options.Validate(); !s.ok()) return s;
   if (labels.empty()) {

@@ -1,5 +1,6 @@
 // The small pieces of tune.h: names, parsing, scoring one threshold, the
 // ranking order and the sweep command line.
+#include <algorithm>
 #include <cmath>
 
 #include "absl/strings/numbers.h"
@@ -40,9 +41,7 @@ std::string ShellQuote(std::string_view word) {
 
 }  // namespace
 
-std::string ShingleChoice::ToString() const {
-  return absl::StrCat(ShingleModeName(mode), ":", k);
-}
+std::string ShingleChoice::ToString() const { return absl::StrCat(ShingleModeName(mode), ":", k); }
 
 absl::StatusOr<ShingleChoice> ParseShingleChoice(std::string_view text) {
   const size_t colon = text.find(':');
@@ -85,7 +84,8 @@ absl::StatusOr<Banding> ParseBanding(std::string_view text) {
 
 absl::Status TuneOptions::Validate() const {
   if (grid.shingles.empty() || grid.perms.empty() || grid.thresholds.empty()) {
-    return absl::InvalidArgumentError("the grid needs at least one shingle setting, perms and threshold");
+    return absl::InvalidArgumentError(
+        "the grid needs at least one shingle setting, perms and threshold");
   }
   for (uint32_t perms : grid.perms) {
     if (perms < 1 || perms > 4096) {
@@ -95,6 +95,20 @@ absl::Status TuneOptions::Validate() const {
   for (double t : grid.thresholds) {
     if (!(t > 0 && t <= 1)) {
       return absl::InvalidArgumentError(absl::StrFormat("threshold %g is out of range (0, 1]", t));
+    }
+  }
+  for (size_t i = 0; i < grid.shingles.size(); ++i) {
+    for (size_t j = 0; j < i; ++j) {
+      if (grid.shingles[i] == grid.shingles[j]) {
+        return absl::InvalidArgumentError(
+            absl::StrCat("shingle setting ", grid.shingles[i].ToString(), " is listed twice"));
+      }
+    }
+  }
+  for (size_t i = 0; i < grid.perms.size(); ++i) {
+    if (std::find(grid.perms.begin(), grid.perms.begin() + i, grid.perms[i]) !=
+        grid.perms.begin() + i) {
+      return absl::InvalidArgumentError(absl::StrCat("perms ", grid.perms[i], " is listed twice"));
     }
   }
   if (grid.bandings_per_threshold < 1) {
@@ -135,8 +149,8 @@ std::string TuneSetting::ToString() const {
 }
 
 void DeriveMeasures(double beta, LabelScore* s) {
-  const double predicted = double{s->true_positives} + s->false_positives;
-  const double positives = double{s->true_positives} + s->false_negatives;
+  const double predicted = static_cast<double>(s->true_positives) + s->false_positives;
+  const double positives = static_cast<double>(s->true_positives) + s->false_negatives;
   s->precision = predicted > 0 ? s->true_positives / predicted : 0;
   s->recall = positives > 0 ? s->true_positives / positives : 0;
   const auto f = [s](double b) {
@@ -154,9 +168,9 @@ size_t HistogramBin(double similarity) {
 }
 
 LabelScore ScoreLabels(absl::Span<const ResolvedPair> labelled,
-                       absl::Span<const PairMeasure> measures,
-                       absl::Span<const uint8_t> candidate, double threshold, Measure measure,
-                       double beta, std::vector<uint32_t>* wrong) {
+                       absl::Span<const PairMeasure> measures, absl::Span<const uint8_t> candidate,
+                       double threshold, Measure measure, double beta,
+                       std::vector<uint32_t>* wrong) {
   MatchSettings match;
   match.threshold = threshold;
   match.measure = measure;

@@ -22,11 +22,13 @@ std::string Header(const TuneReportInput& input) {
   const TuneResult& r = *input.result;
   const uint32_t duplicates = CountDuplicates(r);
   return absl::StrFormat(
-      "kindred tune: %u documents, %u labelled pairs (%u duplicate, %u distinct) from %s\n"
-      "Grid: %u shingle settings x %u perms x %u thresholds, %u settings; target: recall >= "
+      "kindred tune: %u documents, %u labelled pairs (%u duplicate, %u "
+      "distinct) from %s\n"
+      "Grid: %u shingle settings x %u perms x %u thresholds, %u settings; "
+      "target: recall >= "
       "%.4g at the highest precision; F-beta with beta = %.4g; measure: %s\n\n",
-      r.documents, r.labelled.size(), duplicates, r.labelled.size() - duplicates,
-      input.labels_name, input.options->grid.shingles.size(), input.options->grid.perms.size(),
+      r.documents, r.labelled.size(), duplicates, r.labelled.size() - duplicates, input.labels_name,
+      input.options->grid.shingles.size(), input.options->grid.perms.size(),
       input.options->grid.thresholds.size(), r.ranking.size(), input.options->target_recall,
       input.options->beta, MeasureName(input.options->measure));
 }
@@ -35,12 +37,13 @@ std::string Recommendation(const TuneReportInput& input) {
   const TuneResult& r = *input.result;
   const SettingScore& best = r.recommended();
   std::string out =
-      r.target_met
-          ? "Recommended (the cheapest setting with the target recall at the highest precision):\n"
-          : absl::StrFormat("No setting reaches recall %.4g. Closest (highest recall):\n",
-                            input.options->target_recall);
+      r.target_met ? "Recommended (the cheapest setting with the target recall at the "
+                     "highest precision):\n"
+                   : absl::StrFormat("No setting reaches recall %.4g. Closest (highest recall):\n",
+                                     input.options->target_recall);
   out += absl::StrFormat(
-      "  %s\n  precision %.4f  recall %.4f  F1 %.4f  F-beta %.4f  candidates/doc %.4f  "
+      "  %s\n  precision %.4f  recall %.4f  F1 %.4f  F-beta %.4f  "
+      "candidates/doc %.4f  "
       "wrong pairs %u\n  %s\n\n",
       best.setting.ToString(), best.labels.precision, best.labels.recall, best.labels.f1,
       best.labels.fbeta, best.candidates_per_document, best.wrong.size(),
@@ -52,7 +55,8 @@ std::string RankingTable(const TuneReportInput& input) {
   const TuneResult& r = *input.result;
   const size_t rows = std::min(input.table_rows, r.ranking.size());
   std::string out = absl::StrFormat(
-      "Ranking (best %u of %u; * meets the target)\n%5s  %-8s %5s %8s %9s %9s %7s %7s %7s %9s "
+      "Ranking (best %u of %u; * meets the target)\n%5s  %-8s %5s %8s %9s %9s "
+      "%7s %7s %7s %9s "
       "%5s\n",
       rows, r.ranking.size(), "rank", "shingle", "perms", "banding", "threshold", "precision",
       "recall", "F1", "F-beta", "cand/doc", "wrong");
@@ -72,17 +76,17 @@ std::string WrongList(const TuneReportInput& input) {
   const SettingScore& best = r.recommended();
   const ShingleEvaluation& shingles = r.ShinglesOf(best.setting);
   const SignatureEvaluation& signing = r.SignatureOf(best.setting);
-  std::string out = absl::StrFormat("Labelled pairs the recommendation gets wrong: %u\n",
-                                    best.wrong.size());
+  std::string out =
+      absl::StrFormat("Labelled pairs the recommendation gets wrong: %u\n", best.wrong.size());
   if (best.wrong.empty()) return out + "\n";
   out += absl::StrFormat("%6s  %-9s  %7s  %8s  %-25s  %s\n", "line", "label", "exact", "estimate",
                          "reason", "a, b");
   for (uint32_t i : best.wrong) {
     const LabelledPair& label = r.labels[r.labelled[i].label];
-    out += absl::StrFormat("%6u  %-9s  %7.4f  %8.4f  %-25s  %s, %s\n", label.line,
-                           label.duplicate ? "duplicate" : "distinct",
-                           shingles.labelled[i].measure, signing.estimates[i],
-                           WrongReason(r, *input.options, i), label.a, label.b);
+    out +=
+        absl::StrFormat("%6u  %-9s  %7.4f  %8.4f  %-25s  %s, %s\n", label.line,
+                        label.duplicate ? "duplicate" : "distinct", shingles.labelled[i].measure,
+                        signing.estimates[i], WrongReason(r, *input.options, i), label.a, label.b);
   }
   return out + "\n";
 }
@@ -93,7 +97,8 @@ std::string HistogramText(const TuneReportInput& input) {
   const SimilarityHistogram& histogram = r.SignatureOf(best.setting).best_histogram;
   const uint64_t largest = *std::max_element(histogram.begin(), histogram.end());
   std::string out = absl::StrFormat(
-      "Exact %s of all %u candidate pairs of the recommendation (threshold %.2f marked >)\n",
+      "Exact %s of all %u candidate pairs of the "
+      "recommendation (threshold %.2f marked >)\n",
       MeasureName(input.options->measure), best.candidate_pairs, best.setting.threshold);
   for (size_t bin = 0; bin < histogram.size(); ++bin) {
     const size_t bar = largest == 0 ? 0 : (histogram[bin] * 40 + largest - 1) / largest;
@@ -107,11 +112,13 @@ std::string HistogramText(const TuneReportInput& input) {
 void AppendSettingRecord(const SettingScore& s, size_t rank, const TuneResult& r,
                          std::string* out) {
   *out += absl::StrFormat(
-      "{\"record\":\"setting\",\"rank\":%u,\"shingle\":\"%s\",\"k\":%u,\"perms\":%u,"
-      "\"bands\":%u,\"rows\":%u,\"threshold\":%.2f,\"banding_rank\":%u,\"meets_target\":%s,",
+      "{\"record\":\"setting\",\"rank\":%u,\"shingle\":\"%"
+      "s\",\"k\":%u,\"perms\":%u,"
+      "\"bands\":%u,\"rows\":%u,\"threshold\":%.2f,"
+      "\"banding_rank\":%u,\"meets_target\":%s,",
       rank, ShingleModeName(s.setting.shingle.mode), s.setting.shingle.k, s.setting.perms,
-      s.setting.banding.bands, s.setting.banding.rows, s.setting.threshold,
-      s.setting.banding_rank, s.meets_target ? "true" : "false");
+      s.setting.banding.bands, s.setting.banding.rows, s.setting.threshold, s.setting.banding_rank,
+      s.meets_target ? "true" : "false");
   for (const auto& [name, value] :
        {std::pair{"precision", s.labels.precision}, std::pair{"recall", s.labels.recall},
         std::pair{"f1", s.labels.f1}, std::pair{"fbeta", s.labels.fbeta}}) {
@@ -121,7 +128,8 @@ void AppendSettingRecord(const SettingScore& s, size_t rank, const TuneResult& r
   }
   *out += absl::StrFormat(
       "\"true_positives\":%u,\"false_positives\":%u,\"false_negatives\":%u,"
-      "\"true_negatives\":%u,\"candidate_pairs\":%u,\"candidates_per_document\":%.6f,"
+      "\"true_negatives\":%u,\"candidate_pairs\":%u,\"candidates_per_"
+      "document\":%.6f,"
       "\"wrong_lines\":[",
       s.labels.true_positives, s.labels.false_positives, s.labels.false_negatives,
       s.labels.true_negatives, s.candidate_pairs, s.candidates_per_document);
@@ -166,12 +174,14 @@ std::string FormatTuneJsonLines(const TuneReportInput& input) {
   const TuneResult& r = *input.result;
   const uint32_t duplicates = CountDuplicates(r);
   std::string out = absl::StrFormat(
-      "{\"record\":\"summary\",\"documents\":%u,\"labelled_pairs\":%u,\"duplicate\":%u,"
-      "\"distinct\":%u,\"settings\":%u,\"target_recall\":%.6f,\"beta\":%.6f,\"measure\":\"%s\","
+      "{\"record\":\"summary\",\"documents\":%u,\"labelled_pairs\":%u,"
+      "\"duplicate\":%u,"
+      "\"distinct\":%u,\"settings\":%u,\"target_recall\":%.6f,\"beta\":%.6f,"
+      "\"measure\":\"%s\","
       "\"target_met\":%s}\n",
-      r.documents, r.labelled.size(), duplicates, r.labelled.size() - duplicates,
-      r.ranking.size(), input.options->target_recall, input.options->beta,
-      MeasureName(input.options->measure), r.target_met ? "true" : "false");
+      r.documents, r.labelled.size(), duplicates, r.labelled.size() - duplicates, r.ranking.size(),
+      input.options->target_recall, input.options->beta, MeasureName(input.options->measure),
+      r.target_met ? "true" : "false");
   for (size_t i = 0; i < r.ranking.size(); ++i) AppendSettingRecord(r.ranking[i], i + 1, r, &out);
   for (uint32_t i : r.recommended().wrong) AppendWrongRecord(input, i, &out);
   const SimilarityHistogram& histogram = r.SignatureOf(r.recommended().setting).best_histogram;
