@@ -104,22 +104,40 @@ absl::StatusOr<std::vector<ExplainedPair>> ExplainWrongPairs(const TuneResult& r
   return explained;
 }
 
+// The checks of the command line that ToTuneOptions does not make.
+absl::Status CheckFlags(const TuneFlags& flags) {
+  if (flags.format != "text" && flags.format != "jsonl") {
+    return absl::InvalidArgumentError(
+        absl::StrCat("--format: expected text or jsonl, not \"", flags.format, "\""));
+  }
+  for (const std::string& input : flags.inputs) {
+    if (input == "-") {
+      return absl::InvalidArgumentError(
+          "tune reads the corpus once per shingle setting, so it cannot read standard input; "
+          "save it to a file first");
+    }
+  }
+  return absl::OkStatus();
+}
+
+// Writes the HTML report; returns the exit code.
+int WriteReport(const TuneFlags& flags, const TuneReportInput& report,
+                const OpenCorpus& open_corpus) {
+  absl::StatusOr<std::vector<ExplainedPair>> explained =
+      ExplainWrongPairs(*report.result, *report.options, open_corpus);
+  if (!explained.ok()) return Fail(ExitCodeFor(explained.status()), explained.status());
+  if (absl::Status s = WriteOutputFile(flags.report, FormatTuneHtml(report, *explained)); !s.ok()) {
+    return Fail(kExitOutput, s);
+  }
+  return kExitOk;
+}
+
 int RunTuneCommand(const TuneFlags& flags) {
   absl::StatusOr<InputOptions> input_options = ToInputOptions(flags.input);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
   absl::StatusOr<TuneOptions> options = ToTuneOptions(flags);
   if (!options.ok()) return Fail(kExitUsage, options.status());
-  if (flags.format != "text" && flags.format != "jsonl") {
-    return Fail(kExitUsage, absl::InvalidArgumentError(absl::StrCat(
-                                "--format: expected text or jsonl, not \"", flags.format, "\"")));
-  }
-  for (const std::string& input : flags.inputs) {
-    if (input == "-") {
-      return Fail(kExitUsage, absl::InvalidArgumentError(
-                                  "tune reads the corpus once per shingle setting, so it cannot "
-                                  "read standard input; save it to a file first"));
-    }
-  }
+  if (absl::Status s = CheckFlags(flags); !s.ok()) return Fail(kExitUsage, s);
   absl::StatusOr<std::vector<LabelledPair>> labels = ReadLabels(flags.labels);
   if (!labels.ok()) return Fail(kExitInput, labels.status());
 
@@ -136,15 +154,9 @@ int RunTuneCommand(const TuneFlags& flags) {
     std::fprintf(stderr, "kindred: warning: %s\n", warning.c_str());
   }
 
-  TuneReportInput report{&*result, &*options, flags.inputs, flags.labels, flags.top, 4};
+  const TuneReportInput report{&*result, &*options, flags.inputs, flags.labels, flags.top, 4};
   if (!flags.report.empty()) {
-    absl::StatusOr<std::vector<ExplainedPair>> explained =
-        ExplainWrongPairs(*result, *options, open_corpus);
-    if (!explained.ok()) return Fail(ExitCodeFor(explained.status()), explained.status());
-    if (absl::Status s = WriteOutputFile(flags.report, FormatTuneHtml(report, *explained));
-        !s.ok()) {
-      return Fail(kExitOutput, s);
-    }
+    if (int code = WriteReport(flags, report, open_corpus); code != kExitOk) return code;
   }
   const std::string out =
       flags.format == "jsonl" ? FormatTuneJsonLines(report) : FormatTuneText(report);

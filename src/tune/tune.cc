@@ -116,11 +116,50 @@ struct Context {
   uint32_t grid_order = 0;
 };
 
+// What one banding gives, computed once per signing: the number of
+// candidate pairs over the corpus and whether each labelled pair is one.
+struct BandingOutcome {
+  uint64_t candidate_pairs = 0;
+  std::vector<uint8_t> labelled_candidates;
+};
+using BandingOutcomes = std::map<std::pair<uint32_t, uint32_t>, BandingOutcome>;
+
+const BandingOutcome& OutcomeOf(const SignedCorpus& corpus, Banding banding, const Context& context,
+                                BandingOutcomes* outcomes) {
+  const auto key = std::pair(banding.bands, banding.rows);
+  auto it = outcomes->find(key);
+  if (it != outcomes->end()) return it->second;
+  const TuneOptions& options = *context.options;
+  if (options.progress) {
+    options.progress(absl::StrFormat("perms=%u: candidates under %ux%u", corpus.perms(),
+                                     banding.bands, banding.rows));
+  }
+  CandidateStats stats;
+  FindCandidatePairs(corpus, banding, options.threads, &stats);
+  BandingOutcome outcome{stats.candidate_pairs,
+                         LabelledCandidates(corpus, context.result->labelled, banding)};
+  return outcomes->emplace(key, std::move(outcome)).first->second;
+}
+
+SettingScore ScoreSetting(const TuneSetting& setting, const BandingOutcome& outcome,
+                          const ShingleEvaluation& shingles, size_t documents, Context* context) {
+  const TuneOptions& options = *context->options;
+  SettingScore score;
+  score.setting = setting;
+  score.labels =
+      ScoreLabels(context->result->labelled, shingles.labelled, outcome.labelled_candidates,
+                  setting.threshold, options.measure, options.beta, &score.wrong);
+  score.candidate_pairs = outcome.candidate_pairs;
+  score.candidates_per_document = static_cast<double>(score.candidate_pairs) / documents;
+  score.meets_target = score.labels.recall >= options.target_recall;
+  score.grid_order = context->grid_order++;
+  return score;
+}
+
 // Scores every planned setting of one signing; appends to the ranking and
 // the signing list.
 void EvaluateSignature(const SignedCorpus& corpus, uint32_t shingle_index,
                        const std::vector<PlannedSetting>& planned, Context* context) {
-  const TuneOptions& options = *context->options;
   TuneResult& result = *context->result;
   const ShingleEvaluation& shingles = result.shingles[shingle_index];
   SignatureEvaluation signing;
@@ -130,41 +169,21 @@ void EvaluateSignature(const SignedCorpus& corpus, uint32_t shingle_index,
     signing.estimates.push_back(
         EstimateJaccard(corpus.signature(pair.a), corpus.signature(pair.b)));
   }
-  std::map<std::pair<uint32_t, uint32_t>, std::pair<uint64_t, std::vector<uint8_t>>> by_banding;
+  BandingOutcomes outcomes;
   const size_t first_score = result.ranking.size();
   for (const PlannedSetting& plan : planned) {
-    auto key = std::pair(plan.banding.bands, plan.banding.rows);
-    auto it = by_banding.find(key);
-    if (it == by_banding.end()) {
-      if (options.progress) {
-        options.progress(absl::StrFormat("%s perms=%u: candidates under %ux%u",
-                                         shingles.shingle.ToString(), corpus.perms(),
-                                         plan.banding.bands, plan.banding.rows));
-      }
-      CandidateStats stats;
-      FindCandidatePairs(corpus, plan.banding, options.threads, &stats);
-      it = by_banding
-               .emplace(key, std::pair(stats.candidate_pairs,
-                                       LabelledCandidates(corpus, result.labelled, plan.banding)))
-               .first;
-    }
-    SettingScore score;
-    score.setting = {shingles.shingle, corpus.perms(), plan.banding, plan.threshold, plan.rank};
-    score.labels = ScoreLabels(result.labelled, shingles.labelled, it->second.second,
-                               plan.threshold, options.measure, options.beta, &score.wrong);
-    score.candidate_pairs = it->second.first;
-    score.candidates_per_document = static_cast<double>(score.candidate_pairs) / corpus.size();
-    score.meets_target = score.labels.recall >= options.target_recall;
-    score.grid_order = context->grid_order++;
-    result.ranking.push_back(std::move(score));
+    const TuneSetting setting{shingles.shingle, corpus.perms(), plan.banding, plan.threshold,
+                              plan.rank};
+    const BandingOutcome& outcome = OutcomeOf(corpus, plan.banding, *context, &outcomes);
+    result.ranking.push_back(ScoreSetting(setting, outcome, shingles, corpus.size(), context));
   }
   const SettingScore& best =
       *std::min_element(result.ranking.begin() + first_score, result.ranking.end(), RanksBefore);
   signing.best = best.setting;
   signing.best_candidates =
-      by_banding[{best.setting.banding.bands, best.setting.banding.rows}].second;
-  signing.best_histogram =
-      CandidateHistogram(corpus, best.setting.banding, options.measure, options.threads);
+      outcomes[{best.setting.banding.bands, best.setting.banding.rows}].labelled_candidates;
+  signing.best_histogram = CandidateHistogram(corpus, best.setting.banding,
+                                              context->options->measure, context->options->threads);
   result.signatures.push_back(std::move(signing));
 }
 
