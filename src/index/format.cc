@@ -22,6 +22,37 @@ bool Place(uint64_t bytes, uint64_t* offset, uint64_t* section) {
   return AddChecked(*offset, padded & ~uint64_t{7}, offset);
 }
 
+// The version 1 fields after magic, version and size (FORMAT.md, "File
+// header"), read from `reader`; the header is `size` bytes in all.
+absl::Status DecodeSettingFields(ByteReader* reader_ptr, uint32_t size, IndexSettings* out) {
+  ByteReader& reader = *reader_ptr;
+  uint8_t mode, scheme, measure, reserved;
+  uint32_t unicode_length;
+  IndexSettings s;
+  reader.U8(&mode), reader.U8(&scheme), reader.U8(&measure), reader.U8(&reserved);
+  reader.U32(&s.signature.k), reader.U64(&s.signature.seed), reader.U32(&s.signature.perms);
+  reader.U32(&s.bands), reader.U32(&s.rows), reader.U32(&unicode_length);
+  reader.F64(&s.threshold);
+  std::string_view unicode;
+  if (unicode_length > kMaxUnicodeVersionLength ||
+      RoundUp8(kFileHeaderFixedSize + unicode_length) + 8 != size ||
+      !reader.Bytes(unicode_length, &unicode) || mode > 1 || scheme > 1 || measure > 1 ||
+      reserved != 0) {
+    return absl::DataLossError("index header: malformed fields");
+  }
+  s.signature.mode = static_cast<ShingleMode>(mode);
+  s.signature.scheme = static_cast<SignerScheme>(scheme);
+  s.measure = static_cast<Measure>(measure);
+  s.unicode_version = std::string(unicode);
+  if (!s.signature.Validate().ok() || s.bands < 1 || s.rows < 1 ||
+      uint64_t{s.bands} * s.rows > s.signature.perms ||
+      !(s.threshold > 0.0 && s.threshold <= 1.0)) {
+    return absl::DataLossError("index header: settings out of range");
+  }
+  *out = std::move(s);
+  return absl::OkStatus();
+}
+
 }  // namespace
 
 std::string EncodeFileHeader(const IndexSettings& settings) {
@@ -74,30 +105,10 @@ absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings, si
   if (version != kFormatVersion || size < kFileHeaderFixedSize + 8 || size > kMaxFileHeaderSize) {
     return absl::DataLossError(absl::StrFormat("index header: bad version %u", version));
   }
-  uint8_t mode, scheme, measure, reserved;
-  uint32_t unicode_length;
-  IndexSettings s;
-  reader.U8(&mode), reader.U8(&scheme), reader.U8(&measure), reader.U8(&reserved);
-  reader.U32(&s.signature.k), reader.U64(&s.signature.seed), reader.U32(&s.signature.perms);
-  reader.U32(&s.bands), reader.U32(&s.rows), reader.U32(&unicode_length);
-  reader.F64(&s.threshold);
-  std::string_view unicode;
-  if (unicode_length > kMaxUnicodeVersionLength ||
-      RoundUp8(kFileHeaderFixedSize + unicode_length) + 8 != size ||
-      !reader.Bytes(unicode_length, &unicode) || mode > 1 || scheme > 1 || measure > 1 ||
-      reserved != 0) {
-    return absl::DataLossError("index header: malformed fields");
-  }
-  s.signature.mode = static_cast<ShingleMode>(mode);
-  s.signature.scheme = static_cast<SignerScheme>(scheme);
-  s.measure = static_cast<Measure>(measure);
-  s.unicode_version = std::string(unicode);
-  if (!s.signature.Validate().ok() || s.bands < 1 || s.rows < 1 ||
-      uint64_t{s.bands} * s.rows > s.signature.perms ||
-      !(s.threshold > 0.0 && s.threshold <= 1.0)) {
-    return absl::DataLossError("index header: settings out of range");
-  }
-  *settings = std::move(s);
+  IndexSettings decoded;
+  absl::Status fields = DecodeSettingFields(&reader, size, &decoded);
+  if (!fields.ok()) return fields;
+  *settings = std::move(decoded);
   *header_size = size;
   return absl::OkStatus();
 }

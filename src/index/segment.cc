@@ -32,11 +32,55 @@ std::vector<std::pair<uint64_t, uint32_t>> BandKeyTable(absl::Span<const Segment
 
 }  // namespace
 
+namespace {
+
+// Writes document `i` (its doc_table record, id, signature and shingle set)
+// into `body`, laid out per `layout`; `shingle_end` holds the prefix sums of
+// the encoded set lengths, *id_offset the running id position.
+void WriteDocument(const SegmentDocument& doc, uint32_t i, const SectionLayout& layout,
+                   absl::Span<const uint64_t> shingle_end, uint32_t perms, uint64_t* id_offset,
+                   char* body) {
+  char* set = body + layout.shingle_bytes + shingle_end[i];
+  EncodeShingleSetTo(doc.shingles, set);
+  DocRecord record;
+  record.id_offset = *id_offset;
+  record.id_length = static_cast<uint32_t>(doc.id.size());
+  record.shingles_offset = shingle_end[i];
+  record.shingles_length = static_cast<uint32_t>(shingle_end[i + 1] - shingle_end[i]);
+  record.shingles_checksum = Checksum(std::string_view(set, record.shingles_length));
+  record.shingle_count = static_cast<uint32_t>(doc.shingles.size());
+  record.text_length = doc.facts.length;
+  record.priority = doc.facts.priority;
+  record.flags = doc.facts.has_priority ? kDocFlagHasPriority : 0;
+  StoreDocRecord(record, body + layout.doc_table + uint64_t{i} * kDocRecordSize);
+  std::memcpy(body + layout.id_bytes + *id_offset, doc.id.data(), doc.id.size());
+  *id_offset += doc.id.size();
+  char* signature = body + layout.signatures + uint64_t{i} * perms * 4;
+  for (uint32_t slot = 0; slot < perms; ++slot) StoreU32(signature + 4 * slot, doc.signature[slot]);
+}
+
+// Writes the id order, band-key and retired tables into `body`.
+void WriteTables(absl::Span<const SegmentDocument> docs,
+                 absl::Span<const std::pair<uint64_t, uint32_t>> keys,
+                 absl::Span<const uint64_t> retired, const SectionLayout& layout, char* body) {
+  std::vector<uint32_t> order(docs.size());
+  std::iota(order.begin(), order.end(), 0);
+  std::sort(order.begin(), order.end(),
+            [&](uint32_t a, uint32_t b) { return docs[a].id < docs[b].id; });
+  for (size_t i = 0; i < order.size(); ++i) StoreU32(body + layout.id_order + 4 * i, order[i]);
+  for (size_t i = 0; i < keys.size(); ++i) {
+    StoreU64(body + layout.band_keys + 8 * i, keys[i].first);
+    StoreU32(body + layout.band_docs + 4 * i, keys[i].second);
+  }
+  for (size_t i = 0; i < retired.size(); ++i) StoreU64(body + layout.retired + 8 * i, retired[i]);
+}
+
+}  // namespace
+
 EncodedSegment EncodeSegment(uint32_t segment_number, uint64_t first_doc,
                              absl::Span<const SegmentDocument> docs,
                              absl::Span<const uint64_t> retired, const IndexSettings& settings) {
   const uint32_t count = static_cast<uint32_t>(docs.size());
-  const uint32_t perms = settings.signature.perms;
   SegmentHeader header{segment_number, count, 0, first_doc, 0, 0, 0, retired.size()};
   // Sizes first, so the segment is laid out in one buffer sized once.
   std::vector<uint64_t> shingle_end(count + 1, 0);
@@ -45,55 +89,26 @@ EncodedSegment EncodeSegment(uint32_t segment_number, uint64_t first_doc,
     shingle_end[i + 1] = shingle_end[i] + EncodedShingleSetLength(docs[i].shingles);
   }
   header.shingle_bytes = shingle_end[count];
-  auto table = BandKeyTable(docs, settings);
-  header.key_count = table.size();
+  auto keys = BandKeyTable(docs, settings);
+  header.key_count = keys.size();
   SectionLayout layout;
-  ComputeLayout(header, perms, UINT64_MAX, &layout);
+  ComputeLayout(header, settings.signature.perms, UINT64_MAX, &layout);
 
   EncodedSegment out;
   out.head_and_body.resize(kSegmentHeaderSize + layout.body_length);  // zero padding
   std::string head;
   EncodeSegmentHeader(header, &head);
-  char* data = out.head_and_body.data();
-  std::memcpy(data, head.data(), kSegmentHeaderSize);
-  char* body = data + kSegmentHeaderSize;
+  std::memcpy(out.head_and_body.data(), head.data(), kSegmentHeaderSize);
+  char* body = out.head_and_body.data() + kSegmentHeaderSize;
   uint64_t id_offset = 0;
   for (uint32_t i = 0; i < count; ++i) {
-    const SegmentDocument& doc = docs[i];
-    char* set = body + layout.shingle_bytes + shingle_end[i];
-    EncodeShingleSetTo(doc.shingles, set);
-    DocRecord record;
-    record.id_offset = id_offset;
-    record.id_length = static_cast<uint32_t>(doc.id.size());
-    record.shingles_offset = shingle_end[i];
-    record.shingles_length = static_cast<uint32_t>(shingle_end[i + 1] - shingle_end[i]);
-    record.shingles_checksum = Checksum(std::string_view(set, record.shingles_length));
-    record.shingle_count = static_cast<uint32_t>(doc.shingles.size());
-    record.text_length = doc.facts.length;
-    record.priority = doc.facts.priority;
-    record.flags = doc.facts.has_priority ? kDocFlagHasPriority : 0;
-    StoreDocRecord(record, body + layout.doc_table + uint64_t{i} * kDocRecordSize);
-    std::memcpy(body + layout.id_bytes + id_offset, doc.id.data(), doc.id.size());
-    id_offset += doc.id.size();
-    char* signature = body + layout.signatures + uint64_t{i} * perms * 4;
-    for (uint32_t slot = 0; slot < perms; ++slot)
-      StoreU32(signature + 4 * slot, doc.signature[slot]);
+    WriteDocument(docs[i], i, layout, shingle_end, settings.signature.perms, &id_offset, body);
   }
-  std::vector<uint32_t> order(count);
-  std::iota(order.begin(), order.end(), 0);
-  std::sort(order.begin(), order.end(),
-            [&](uint32_t a, uint32_t b) { return docs[a].id < docs[b].id; });
-  for (uint32_t i = 0; i < count; ++i) StoreU32(body + layout.id_order + 4 * i, order[i]);
-  for (uint64_t i = 0; i < table.size(); ++i) {
-    StoreU64(body + layout.band_keys + 8 * i, table[i].first);
-    StoreU32(body + layout.band_docs + 4 * i, table[i].second);
-  }
-  for (uint64_t i = 0; i < retired.size(); ++i) StoreU64(body + layout.retired + 8 * i, retired[i]);
-
+  WriteTables(docs, keys, retired, layout, body);
   uint64_t tables_checksum = Checksum(
       std::string_view(out.head_and_body).substr(0, kSegmentHeaderSize + layout.tables_end));
-  CommitRecord commit{segment_number, layout.body_length, tables_checksum};
-  EncodeCommitRecord(commit, &out.commit);
+  EncodeCommitRecord(CommitRecord{segment_number, layout.body_length, tables_checksum},
+                     &out.commit);
   return out;
 }
 
@@ -129,7 +144,12 @@ SegmentScan SegmentView::Parse(std::string_view file, uint64_t offset, uint32_t 
     return corrupt("checksum mismatch");
   }
   perms_ = perms;
-  std::string_view body = rest.substr(kSegmentHeaderSize, layout_.body_length);
+  Bind(rest.substr(kSegmentHeaderSize, layout_.body_length));
+  *error = CheckTables(offset);
+  return error->ok() ? SegmentScan::kSegment : SegmentScan::kCorrupt;
+}
+
+void SegmentView::Bind(std::string_view body) {
   doc_table_ = body.substr(layout_.doc_table, uint64_t{header_.doc_count} * kDocRecordSize);
   id_order_ = body.data() + layout_.id_order;
   signatures_ = reinterpret_cast<const uint32_t*>(body.data() + layout_.signatures);
@@ -139,8 +159,6 @@ SegmentScan SegmentView::Parse(std::string_view file, uint64_t offset, uint32_t 
   id_bytes_ = body.substr(layout_.id_bytes, header_.id_bytes);
   shingles_ = body.substr(layout_.shingle_bytes, header_.shingle_bytes);
   shingle_padding_ = body.substr(layout_.shingle_bytes + header_.shingle_bytes);
-  *error = CheckTables(offset);
-  return error->ok() ? SegmentScan::kSegment : SegmentScan::kCorrupt;
 }
 
 std::string_view SegmentView::id(uint32_t local) const {

@@ -74,6 +74,8 @@ class SegmentView {
   std::string_view shingle_padding() const { return shingle_padding_; }
 
  private:
+  // Points the section views into `body` (the verified segment body).
+  void Bind(std::string_view body);
   absl::Status CheckTables(uint64_t offset);
   absl::Status CheckDocuments(uint64_t offset);
 
