@@ -89,6 +89,18 @@ void PrintSummary(const AddFlags& flags, const AppendResult& result, const Signe
                match_count, after.live_count());
 }
 
+// Reads and signs every input under `signature`. Errors are the reader's
+// (exit 3).
+absl::Status SignInputs(const std::vector<std::string>& inputs, const InputOptions& input_options,
+                        const SignatureSettings& signature, int threads, SignedCorpus* out,
+                        SignStats* stats) {
+  auto reader = CorpusReader::Open(inputs, input_options);
+  if (!reader.ok()) return reader.status();
+  SignOptions sign;
+  sign.threads = threads;
+  return SignCorpus(**reader, signature, sign, out, stats);
+}
+
 int RunAdd(const AddFlags& flags) {
   auto format = ParseRecordFormat(flags.format);
   if (!format.ok()) return Fail(kExitUsage, format.status());
@@ -109,18 +121,16 @@ int RunAdd(const AddFlags& flags) {
   }
   auto match = QueryMatch(flags, reader->get());
   if (!match.ok()) return Fail(kExitUsage, match.status());
-  auto corpus_reader = CorpusReader::Open(flags.inputs, *input_options);
-  if (!corpus_reader.ok()) return Fail(kExitInput, corpus_reader.status());
-  SignOptions sign;
-  sign.threads = ThreadCount(flags.general);
+  const int threads = ThreadCount(flags.general);
   const SignatureSettings& signature = (*reader)->settings().signature;
   SignedCorpus batch(signature.perms);
   SignStats stats;
-  if (absl::Status status = SignCorpus(**corpus_reader, signature, sign, &batch, &stats);
+  if (absl::Status status =
+          SignInputs(flags.inputs, *input_options, signature, threads, &batch, &stats);
       !status.ok()) {
-    return Fail(status);
+    return Fail(kExitInput, status);
   }
-  IndexMatchOptions options{*match, sign.threads,
+  IndexMatchOptions options{*match, threads,
                             /*exclude_same_id=*/*policy == DuplicateIdPolicy::kReplace};
   auto matches = MatchAgainstIndex(**reader, batch, options);
   if (!matches.ok()) return Fail(matches.status());

@@ -62,6 +62,31 @@ absl::StatusOr<MatchSettings> QueryMatch(const CheckFlags& flags, IndexReader* r
   return match;
 }
 
+// Reads and signs every input under `signature`. Errors are the reader's
+// (exit 3).
+absl::Status SignInputs(const std::vector<std::string>& inputs, const InputOptions& input_options,
+                        const SignatureSettings& signature, int threads, SignedCorpus* out,
+                        SignStats* stats) {
+  auto reader = CorpusReader::Open(inputs, input_options);
+  if (!reader.ok()) return reader.status();
+  SignOptions sign;
+  sign.threads = threads;
+  return SignCorpus(**reader, signature, sign, out, stats);
+}
+
+// Uploads with at least one match among the indexed documents.
+size_t CountMatchedUploads(absl::Span<const IndexMatch> matches, size_t uploads) {
+  std::vector<bool> matched(uploads);
+  size_t count = 0;
+  for (const IndexMatch& m : matches) {
+    if (m.in_index && !matched[m.query]) {
+      matched[m.query] = true;
+      ++count;
+    }
+  }
+  return count;
+}
+
 int RunCheck(const CheckFlags& flags) {
   auto format = ParseRecordFormat(flags.format);
   if (!format.ok()) return Fail(kExitUsage, format.status());
@@ -79,16 +104,15 @@ int RunCheck(const CheckFlags& flags) {
   }
   auto match = QueryMatch(flags, reader->get());
   if (!match.ok()) return Fail(kExitUsage, match.status());
-  auto corpus_reader = CorpusReader::Open(flags.inputs, *input_options);
-  if (!corpus_reader.ok()) return Fail(kExitInput, corpus_reader.status());
-  SignOptions sign;
-  sign.threads = ThreadCount(flags.general);
+  const int threads = ThreadCount(flags.general);
   SignedCorpus uploads((*reader)->settings().signature.perms);
   SignStats stats;
-  absl::Status signed_status =
-      SignCorpus(**corpus_reader, (*reader)->settings().signature, sign, &uploads, &stats);
-  if (!signed_status.ok()) return Fail(signed_status);
-  IndexMatchOptions options{*match, sign.threads, false};
+  if (absl::Status status = SignInputs(flags.inputs, *input_options,
+                                       (*reader)->settings().signature, threads, &uploads, &stats);
+      !status.ok()) {
+    return Fail(kExitInput, status);
+  }
+  IndexMatchOptions options{*match, threads, false};
   auto matches = MatchAgainstIndex(**reader, uploads, options);
   if (!matches.ok()) return Fail(matches.status());
   std::string out;
@@ -96,11 +120,7 @@ int RunCheck(const CheckFlags& flags) {
   if (absl::Status written = WriteOutputFile("-", out); !written.ok()) {
     return Fail(kExitOutput, written);
   }
-  std::vector<bool> matched(uploads.size());
-  size_t matched_count = 0;
-  for (const IndexMatch& m : *matches) {
-    if (m.in_index && !matched[m.query]) matched[m.query] = true, ++matched_count;
-  }
+  size_t matched_count = CountMatchedUploads(*matches, uploads.size());
   if (!flags.general.quiet) {
     std::fprintf(stderr,
                  "kindred check: %zu documents checked against %u indexed (%s >= %g, %u bands x "
