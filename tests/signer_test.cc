@@ -175,6 +175,20 @@ TEST_CASE("estimates stay unbiased for sets smaller than the signature", "[signe
   }
 }
 
+TEST_CASE("estimates are unbiased for other signature lengths", "[signer]") {
+  // Broder 1997: E[estimate] = J whatever n; lengths that are not powers of
+  // two exercise the bin reduction of one permutation hashing.
+  for (SignerScheme scheme : {SignerScheme::kOnePermutation, SignerScheme::kClassic}) {
+    for (uint32_t perms : {1u, 100u, 500u}) {
+      CAPTURE(SignerSchemeName(scheme), perms);
+      const Signer signer = MakeSigner(scheme, perms);
+      constexpr int kPairs = 300;
+      const EstimateSample sample = SamplePairs(signer, 6, kPairs, 300, 800, 400 + perms);
+      CHECK(std::abs(sample.Mean() - 0.6) <= kSigmas * std::sqrt(0.6 * 0.4 / perms / kPairs));
+    }
+  }
+}
+
 // The fixed set: XXH3-64 (seed kDefaultSeed) of "shingle 0" .. "shingle 99".
 std::vector<uint64_t> FixedSet() {
   std::vector<uint64_t> set;
