@@ -37,7 +37,7 @@ struct DecodeOptions {
   // Limit on the decoded size of a compressed stream; 0 = unlimited.
   uint64_t max_decompressed_bytes = 0;
   // When not empty, every decoded byte is also written to this file
-  // (created or truncated, mode 0600).
+  // (created with mode 0600; it must not exist, not even as a link).
   std::string copy_path;
 };
 
