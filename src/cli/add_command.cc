@@ -3,6 +3,7 @@
 // among the new batch.
 #include <cstdio>
 
+#include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
@@ -55,7 +56,8 @@ absl::Status CheckSettings(const AddFlags& flags, const IndexReader& reader) {
   for (const std::string& warning : warnings) {
     std::fprintf(stderr, "kindred: warning: %s\n", warning.c_str());
   }
-  return status;
+  if (status.ok()) return status;
+  return absl::Status(status.code(), absl::StrCat("index ", reader.path(), ": ", status.message()));
 }
 
 absl::StatusOr<MatchSettings> QueryMatch(const AddFlags& flags, IndexReader* reader) {

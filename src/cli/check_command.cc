@@ -4,6 +4,7 @@
 // indexed document, so a shell script can gate on it.
 #include <cstdio>
 
+#include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
@@ -45,7 +46,8 @@ absl::Status CheckSettings(const CheckFlags& flags, const IndexReader& reader) {
   for (const std::string& warning : warnings) {
     std::fprintf(stderr, "kindred: warning: %s\n", warning.c_str());
   }
-  return status;
+  if (status.ok()) return status;
+  return absl::Status(status.code(), absl::StrCat("index ", reader.path(), ": ", status.message()));
 }
 
 absl::StatusOr<MatchSettings> QueryMatch(const CheckFlags& flags, IndexReader* reader) {

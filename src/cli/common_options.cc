@@ -7,27 +7,33 @@
 namespace kindred::cli {
 
 void AddInputOptions(CLI::App* command, InputFlags* flags) {
-  command->add_option("--input-format", flags->format,
-                      "auto (by content and name), text (a file is one document) or jsonl")
+  command
+      ->add_option("--input-format", flags->format,
+                   "auto (by content and name), text (a file is one document) or jsonl")
       ->default_str("auto")
       ->group("Input");
-  command->add_option("--id-field", flags->id_field,
-                      "JSON Lines field holding the document id; @line uses FILE:LINE")
+  command
+      ->add_option("--id-field", flags->id_field,
+                   "JSON Lines field holding the document id; @line uses FILE:LINE")
       ->default_str("id")
       ->group("Input");
   command->add_option("--text-field", flags->text_field, "JSON Lines field holding the text")
       ->default_str("text")
       ->group("Input");
-  command->add_option("--priority-field", flags->priority_field,
-                      "JSON Lines numeric field read by --keep priority")
+  command
+      ->add_option("--priority-field", flags->priority_field,
+                   "JSON Lines numeric field read by --keep priority")
       ->group("Input");
-  command->add_option("--max-document-size", flags->max_document_size,
-                      "largest document or JSON line (K, M, G suffixes)")
+  command
+      ->add_option("--max-document-size", flags->max_document_size,
+                   "largest document or JSON line (K, M, G suffixes)")
       ->default_str("64M")
       ->group("Input");
-  command->add_option("--max-decompressed-size", flags->max_decompressed_size,
-                      "largest decompressed size of one compressed input; 0 = no limit")
-      ->default_str("0")
+  command
+      ->add_option("--max-decompressed-size", flags->max_decompressed_size,
+                   "largest decompressed size of one compressed input, a guard against "
+                   "decompression bombs; 0 = no limit")
+      ->default_str("4G")
       ->group("Input");
 }
 
@@ -66,8 +72,9 @@ void AddSignatureOptions(CLI::App* command, SignatureFlags* flags) {
   command->add_option("--perms", flags->perms, "MinHash signature length, 1..4096")
       ->default_str("128")
       ->group("Signature");
-  command->add_option("--signer", flags->signer,
-                      "MinHash scheme: oph (one permutation, densified) or classic")
+  command
+      ->add_option("--signer", flags->signer,
+                   "MinHash scheme: oph (one permutation, densified) or classic")
       ->default_str("oph")
       ->group("Signature");
   command->add_option("--seed", flags->seed, "hash seed of shingles and signatures")
@@ -100,16 +107,19 @@ absl::StatusOr<SignatureSettings> ToSignatureSettings(const SignatureFlags& flag
 }
 
 void AddMatchOptions(CLI::App* command, MatchFlags* flags) {
-  command->add_option("-t,--threshold", flags->threshold,
-                      "report pairs whose exact similarity is at least this, in (0, 1]")
+  command
+      ->add_option("-t,--threshold", flags->threshold,
+                   "report pairs whose exact similarity is at least this, in (0, 1]")
       ->default_str("0.8")
       ->group("Matching");
-  command->add_option("--bands", flags->bands, "LSH bands (with --rows; default: chosen for the threshold)")
+  command
+      ->add_option("--bands", flags->bands,
+                   "LSH bands (with --rows; default: chosen for the threshold)")
       ->group("Matching");
-  command->add_option("--rows", flags->rows, "LSH rows per band (with --bands)")
-      ->group("Matching");
-  command->add_option("--measure", flags->measure,
-                      "similarity compared with the threshold: jaccard or containment")
+  command->add_option("--rows", flags->rows, "LSH rows per band (with --bands)")->group("Matching");
+  command
+      ->add_option("--measure", flags->measure,
+                   "similarity compared with the threshold: jaccard or containment")
       ->default_str("jaccard")
       ->group("Matching");
 }

@@ -21,7 +21,7 @@ struct InputFlags {
   std::string text_field = "text";
   std::string priority_field;
   std::string max_document_size = "64M";
-  std::string max_decompressed_size = "0";
+  std::string max_decompressed_size = "4G";
 };
 void AddInputOptions(CLI::App* command, InputFlags* flags);
 absl::StatusOr<InputOptions> ToInputOptions(const InputFlags& flags);
