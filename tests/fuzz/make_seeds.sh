@@ -1,0 +1,88 @@
+#!/usr/bin/env bash
+# Writes the seed inputs of the fuzz targets under tests/fuzz/seeds/<target>/.
+# Deterministic: the same program gives the same bytes. The index seeds are
+# made by the program itself (`kindred build` and `kindred add`).
+#
+#   tests/fuzz/make_seeds.sh build/kindred
+set -euo pipefail
+kindred=$(realpath "$1")
+seeds="$(cd "$(dirname "$0")" && pwd)/seeds"
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+
+# seed TARGET NAME CONTROL_BYTE_OCTAL: stdin, after one control byte.
+seed() {
+  mkdir -p "$seeds/$1"
+  { [[ -n "${3:-}" ]] && printf "\\$3"; cat; } >"$seeds/$1/$2"
+}
+
+# --- text: control byte (bit 0 char mode, bits 1-3 k-1), then the text ---
+printf 'The harbour board met on Tuesday; it can'\''t wait. 3.14 and 1,000,000 boats.' | seed text english 010
+printf 'Η επιτροπή του λιμανιού συνεδρίασε την Τρίτη.' | seed text greek 010
+printf '港の委員会は火曜日に会合を開いた。カタカナとひらがな。' | seed text japanese 001
+printf 'El puerto cerró el martes; ¿mañana? Ñandú ﬁnal ＡＢＣ１２３' | seed text spanish_fold 004
+printf 'Broken \xff\xfe \xc3 \xe2\x82 bytes \xed\xa0\x80 surrogate \xf4\x90\x80\x80 high' | seed text invalid_utf8 010
+printf 'a\0b\0c NUL\0bytes\tand\r\ncontrol \x1c\x1d\x1e\x1f chars' | seed text nul_control 011
+printf 'e\xcc\x81 combining \xe1\x84\x80\xe1\x85\xa1 jamo 한국어 👩‍👩‍👧 🇬🇧 emoji' | seed text marks_emoji 000
+printf 'x' | seed text one_char 003
+printf '   \t\n  ' | seed text only_space 002
+printf 'word' | seed text one_word 010
+printf 'mixed ASCII text with one café in the middle of a long ASCII run of words here' | seed text mostly_ascii 010
+printf 'U.S.A. e-mail x_y 3a.b 1.2.3 a:b can’t o\x27clock' | seed text ascii_rules 002
+
+# --- jsonl: control byte (bit 0 @line ids, bit 1 priority "p", bit 2 64-byte limit) ---
+printf '{"id":"a","text":"one two three"}\n{"id":"b","text":"four five","p":2}\n' | seed jsonl plain 002
+printf '{"id":7,"text":"integer id"}\r\n\r\n  \n{"id":"x","text":"crlf and blank"}' | seed jsonl crlf_blank 000
+printf '{"id":"e","text":"esc \\u0000 \\ud83d\\ude00 \\n \\" \\\\ \\u00e9"}\n' | seed jsonl escapes 000
+printf '{"id":"s","text":"lone \\ud800 surrogate"}\n' | seed jsonl lone_surrogate 000
+printf '{"id":"u","text":"bad \xff byte"}\n{"id":"v","text":"fine"}\n' | seed jsonl invalid_utf8 000
+printf '{"id":"a","text":"x"}\n{"id":"b","body":"no text"}\n' | seed jsonl missing_field 000
+printf '{"id":"a","text":"x"}\n{"id":"b","text":\n' | seed jsonl malformed 000
+printf '{"id":["no"],"text":{"nested":true},"p":"high"}\n' | seed jsonl wrong_types 002
+printf '{"text":"ids from lines"}\n{"text":"second"}\n' | seed jsonl line_ids 001
+printf '{"id":"long","text":"%s"}\n' "$(head -c 200 /dev/zero | tr '\0' 'y')" | seed jsonl over_limit 004
+printf '[1,2]\n"string"\nnull\n{"id":"a","text":"x","id":"b"}\n' | seed jsonl not_objects 000
+
+# --- compressed: the file's bytes ---
+text='The harbour board met on Tuesday evening to discuss the dredging.'
+printf '%s\n' "$text" | gzip -9 -n | seed compressed gzip
+{ printf 'first member\n' | gzip -n; printf 'second member\n' | gzip -n; } | seed compressed gzip_members
+/usr/bin/python3 -c '
+import gzip, sys
+sys.stdout.buffer.write(gzip.compress(b"header with a name and mtime\n", mtime=1))' | seed compressed gzip_header
+printf '' | gzip -n | seed compressed gzip_empty
+printf '%s\n' "$text" | zstd -q -19 -c | seed compressed zstd
+{ printf 'frame one\n' | zstd -q -c; printf 'frame two\n' | zstd -q -c --no-check; } | seed compressed zstd_frames
+head -c 3000 /dev/zero | zstd -q -c | seed compressed zstd_zeros
+printf '%s\n' "$text" | gzip -n | head -c 30 | seed compressed gzip_truncated
+printf '%s\n' "$text" | seed compressed plain
+
+# --- labels: the file's bytes ---
+printf 'a\tb\tlabel\ndoc1\tdoc2\tduplicate\ndoc1\tdoc3\tno\n' | seed labels tsv_header
+printf 'a,b,label\r\n"doc, one","doc ""two""",yes\r\n3,4,0\r\n' | seed labels csv_quoted
+printf '{"a":"x","b":"y","label":true}\n{"a":1,"b":2,"label":"distinct"}\n\n' | seed labels jsonl
+printf 'x\ty\tmaybe\n' | seed labels unknown_label
+printf 'x,x,dup\n' | seed labels self_pair
+printf 'x,y,1\ny,x,0\n' | seed labels twice
+printf '"unterminated,quote,1\n' | seed labels bad_quote
+
+# --- index: control byte (bit 0 fix checksums, bit 1 other banding), then the file ---
+cat >"$work/docs.jsonl" <<'JSONL'
+{"id":"a","text":"the harbour board met on tuesday to discuss dredging"}
+{"id":"b","text":"the harbour board met on tuesday to discuss the dredging"}
+{"id":"c","text":"lost cat grey tabby"}
+{"id":"d","text":""}
+JSONL
+printf '{"id":"e","text":"a new upload about the harbour board meeting"}\n{"id":"a","text":"replaced"}\n' >"$work/more.jsonl"
+q=(-q --threads 1)
+"$kindred" build "${q[@]}" "$work/one.kin" "$work/docs.jsonl" --perms 8 --bands 4 --rows 2
+seed index one_segment 001 <"$work/one.kin"
+seed index one_segment_raw 002 <"$work/one.kin"
+cp "$work/one.kin" "$work/two.kin"
+"$kindred" add "${q[@]}" "$work/two.kin" "$work/more.jsonl" --on-duplicate replace >/dev/null
+seed index two_segments 003 <"$work/two.kin"
+"$kindred" build "${q[@]}" "$work/char.kin" "$work/docs.jsonl" --perms 4 --bands 2 --rows 2 \
+  --shingle char -k 3 --signer classic
+seed index char_classic 001 <"$work/char.kin"
+head -c 200 "$work/two.kin" | seed index truncated 001
+echo "seeds written under $seeds"
