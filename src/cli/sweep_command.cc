@@ -13,8 +13,11 @@
 #include "cli/common_options.h"
 #include "cli/output.h"
 #include "io/output_guard.h"
+#include "kindred/index.h"
+#include "kindred/index_match.h"
 #include "kindred/kept_writer.h"
 #include "kindred/records.h"
+#include "kindred/shingles.h"
 #include "kindred/sweep.h"
 
 namespace kindred::cli {
@@ -22,6 +25,10 @@ namespace {
 
 struct SweepFlags {
   std::vector<std::string> inputs;
+  std::string index;
+  bool threshold_given = false;
+  bool measure_given = false;
+  bool signature_given = false;
   InputFlags input;
   SignatureFlags signature;
   MatchFlags match;
@@ -79,10 +86,13 @@ absl::Status WriteOutputs(const SweepFlags& flags, const SweepOutputs& outputs) 
 
 void PrintSummary(const SweepResult& result, const SweepOptions& options) {
   const SweepStats& stats = result.stats;
-  std::fprintf(stderr, "kindred sweep: %llu documents (%llu empty), %.1f MB\n",
+  std::fprintf(stderr, "kindred sweep: %llu documents (%llu empty)",
                static_cast<unsigned long long>(stats.sign.documents),
-               static_cast<unsigned long long>(stats.sign.empty_documents),
-               static_cast<double>(stats.sign.bytes) / 1e6);
+               static_cast<unsigned long long>(stats.sign.empty_documents));
+  if (stats.sign.bytes > 0) {
+    std::fprintf(stderr, ", %.1f MB", static_cast<double>(stats.sign.bytes) / 1e6);
+  }
+  std::fprintf(stderr, "\n");
   if (options.exhaustive) {
     std::fprintf(stderr, "  candidate pairs   all (exhaustive comparison)\n");
   } else {
@@ -177,7 +187,61 @@ absl::Status CheckRecordOutputs(const SweepFlags& flags, RecordFormat format,
   return absl::OkStatus();
 }
 
+// kindred sweep --index: the pairs and groups of everything indexed, from the
+// stored shingle sets and signatures, without re-reading the corpus.
+int RunIndexSweep(const SweepFlags& flags) {
+  if (!flags.inputs.empty()) {
+    return Fail(kExitUsage, absl::InvalidArgumentError("give inputs or --index, not both"));
+  }
+  if (WantsKept(flags)) {
+    return Fail(kExitUsage, absl::InvalidArgumentError(
+                                "--write-kept, --copy-kept and --list-kept need the corpus, not "
+                                "--index; use the decisions with the corpus instead"));
+  }
+  auto reader = IndexReader::Open(flags.index);
+  if (!reader.ok()) return Fail(reader.status());
+  const IndexSettings& stored = (*reader)->settings();
+  if (flags.signature_given) {
+    auto wanted = ToSignatureSettings(flags.signature);
+    if (!wanted.ok()) return Fail(kExitUsage, wanted.status());
+    std::vector<std::string> warnings;
+    absl::Status status = CheckIndexSettings(stored, *wanted, UnicodeVersionString(), &warnings);
+    if (!status.ok()) return Fail(kExitIndexMismatch, status);
+  }
+  MatchFlags match_flags = flags.match;
+  if (!flags.threshold_given) match_flags.threshold = stored.threshold;
+  if (!flags.measure_given) match_flags.measure = MeasureName(stored.measure);
+  auto match = ToMatchSettings(match_flags, stored.signature);
+  if (!match.ok()) return Fail(kExitUsage, match.status());
+  auto keep = ParseKeepPolicy(flags.keep);
+  if (!keep.ok()) return Fail(kExitUsage, keep.status());
+  auto format = ParseRecordFormat(flags.format);
+  if (!format.ok()) return Fail(kExitUsage, format.status());
+  auto result = SweepIndex(**reader, *match, *keep, ThreadCount(flags.general));
+  if (!result.ok()) return Fail(result.status());
+  result->stats.sign.documents = result->corpus.size();
+  for (size_t doc = 0; doc < result->corpus.size(); ++doc) {
+    result->stats.sign.empty_documents += result->corpus.shingles(doc).empty();
+  }
+  const SweepOutputs outputs = FormatOutputs(*result, *format, *keep);
+  if (absl::Status status = WriteOutputs(flags, outputs); !status.ok()) {
+    return Fail(kExitOutput, status);
+  }
+  if (!flags.general.quiet) {
+    SweepOptions options;
+    options.match = *match;
+    options.keep = *keep;
+    std::fprintf(stderr, "kindred sweep: index %s\n", flags.index.c_str());
+    PrintSummary(*result, options);
+  }
+  return kExitOk;
+}
+
 int RunSweepCommand(const SweepFlags& flags) {
+  if (!flags.index.empty()) return RunIndexSweep(flags);
+  if (flags.inputs.empty()) {
+    return Fail(kExitUsage, absl::InvalidArgumentError("no inputs (or --index) given"));
+  }
   auto input_options = ToInputOptions(flags.input);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
   SweepOptions options;
@@ -262,11 +326,12 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
   auto flags = std::make_shared<SweepFlags>();
   CLI::App* command = app.add_subcommand(
       "sweep", "Find the near-duplicate pairs and groups of a corpus; say what to keep and drop");
-  command
-      ->add_option("inputs", flags->inputs,
-                   "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
-                   "standard input")
-      ->required();
+  command->add_option("inputs", flags->inputs,
+                      "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
+                      "standard input");
+  command->add_option("--index", flags->index,
+                      "sweep the documents of this index file instead of inputs (the corpus is "
+                      "not re-read)");
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
@@ -309,7 +374,14 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
                    "text inputs: write the kept file paths, one per line, to this file")
       ->group("Output");
   AddGeneralOptions(command, &flags->general);
-  command->callback([flags, exit_code] { *exit_code = RunSweepCommand(*flags); });
+  command->callback([flags, exit_code, command] {
+    flags->threshold_given = command->get_option("--threshold")->count() > 0;
+    flags->measure_given = command->get_option("--measure")->count() > 0;
+    for (const char* name : {"--shingle", "--shingle-size", "--perms", "--signer", "--seed"}) {
+      flags->signature_given |= command->get_option(name)->count() > 0;
+    }
+    *exit_code = RunSweepCommand(*flags);
+  });
 }
 
 }  // namespace kindred::cli
