@@ -213,6 +213,12 @@ int RunIndexSweep(const SweepFlags& flags) {
   if (!flags.measure_given) match_flags.measure = MeasureName(stored.measure);
   auto match = ToMatchSettings(match_flags, stored.signature);
   if (!match.ok()) return Fail(kExitUsage, match.status());
+  if (flags.threshold_given && match->bands == 0) {
+    // The stored banding was chosen for the stored threshold; choose again.
+    const Banding banding = ChooseBanding(match->threshold, stored.signature.perms);
+    match->bands = banding.bands;
+    match->rows = banding.rows;
+  }
   auto keep = ParseKeepPolicy(flags.keep);
   if (!keep.ok()) return Fail(kExitUsage, keep.status());
   auto format = ParseRecordFormat(flags.format);

@@ -17,6 +17,12 @@ expect_exit 0 "query-time threshold and banding" -- \
   "$KINDRED" sweep -q --index "$WORK/a.kin" --print pairs --threshold 0.6 --bands 20 --rows 5
 cmp -s "$WORK/out" "$WORK/direct.t6" || fail "threshold 0.6 pairs differ"
 
+# A new threshold without bands and rows chooses the banding for it, as a
+# sweep of the corpus does.
+"$KINDRED" sweep -q "$corpus" --print pairs --threshold 0.7 >"$WORK/direct.t7"
+expect_exit 0 "query-time threshold" -- "$KINDRED" sweep -q --index "$WORK/a.kin" --print pairs --threshold 0.7
+cmp -s "$WORK/out" "$WORK/direct.t7" || fail "threshold 0.7 pairs differ"
+
 # Errors.
 expect_exit 5 "other signature settings" -- "$KINDRED" sweep --index "$WORK/a.kin" -k 3
 expect_stderr "other settings" "mismatch explained"
