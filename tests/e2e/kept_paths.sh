@@ -165,6 +165,10 @@ cmp -s "$WORK/box/data/pairs.jsonl" "$WORK/pairs.before" || fail "-o overwrote a
 expect_exit 2 "-o over an input" -- "$KINDRED" sweep -q "$WORK/box/data/pairs.jsonl" -o "$WORK/box/data"
 expect_exit 2 "-o inside an input tree" -- "$KINDRED" sweep -q "$tree" -o "$tree/results"
 [[ ! -e "$tree/results" ]] || fail "-o created a directory inside the input tree"
+expect_exit 2 "kept lines over a record file" -- "$KINDRED" sweep -q "$WORK/box/ids.jsonl" \
+  -o "$WORK/box/allowed/records" --write-kept "$WORK/box/allowed/records/pairs.jsonl"
+expect_stderr "is also a record file" "kept lines over a record file: reason"
+[[ ! -e "$WORK/box/allowed/records" ]] || fail "a refused run created its record directory"
 
 # 6. Standard input read twice for the kept corpus: its copy lives in a
 # private temporary directory that is removed afterwards.
