@@ -21,6 +21,8 @@ packages=(
   libsimdjson-dev zlib1g-dev libzstd-dev
   # tests: Unicode test files, the independent Python reference, tools
   unicode-data python3 python3-icu python3-xxhash xxhash zstd gzip bzip2 libxml2-utils
+  # tools/ci_checks.sh: libFuzzer targets and symbolized sanitizer reports
+  clang libclang-rt-14-dev llvm
 )
 
 missing=()
