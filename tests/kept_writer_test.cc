@@ -346,7 +346,7 @@ TEST_CASE("standard input is written again from its copy") {
   WriteFile(dir.Path("stdin.txt"), "plain text");
   WithStdin(dir.Path("stdin.txt"), [&] {
     InputOptions options;
-    options.stdin_copy_path = dir.Path("spool");
+    options.stdin_copy_path = dir.Path("spool2");  // the copy is always created new
     KeptOutput output;
     output.copy_dir = dir.Path("copies");
     REQUIRE(ReadThenWrite({"-"}, {"-"}, output, options).ok());
