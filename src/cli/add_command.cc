@@ -7,6 +7,7 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/index_options.h"
 #include "cli/output.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
@@ -27,9 +28,7 @@ struct AddFlags {
   GeneralFlags general;
   std::string format = "jsonl";
   std::string on_duplicate = "error";
-  bool signature_given = false;
-  bool threshold_given = false;
-  bool measure_given = false;
+  GivenOptions given;
 };
 
 int WriteExitCode(const absl::Status& status) {
@@ -41,37 +40,6 @@ int WriteExitCode(const absl::Status& status) {
     default:
       return ExitCodeFor(status);
   }
-}
-
-absl::Status CheckSettings(const AddFlags& flags, const IndexReader& reader) {
-  SignatureSettings wanted = reader.settings().signature;
-  if (flags.signature_given) {
-    auto given = ToSignatureSettings(flags.signature);
-    if (!given.ok()) return given.status();
-    wanted = *given;
-  }
-  std::vector<std::string> warnings;
-  absl::Status status =
-      CheckIndexSettings(reader.settings(), wanted, UnicodeVersionString(), &warnings);
-  for (const std::string& warning : warnings) {
-    std::fprintf(stderr, "kindred: warning: %s\n", warning.c_str());
-  }
-  if (status.ok()) return status;
-  return absl::Status(status.code(), absl::StrCat("index ", reader.path(), ": ", status.message()));
-}
-
-absl::StatusOr<MatchSettings> QueryMatch(const AddFlags& flags, IndexReader* reader) {
-  MatchFlags match_flags = flags.match;
-  if (!flags.threshold_given) match_flags.threshold = reader->settings().threshold;
-  if (!flags.measure_given) match_flags.measure = MeasureName(reader->settings().measure);
-  auto match = ToMatchSettings(match_flags, reader->settings().signature);
-  if (!match.ok()) return match.status();
-  if (match->bands != 0) {
-    if (absl::Status status = reader->UseBanding(match->bands, match->rows); !status.ok()) {
-      return status;
-    }
-  }
-  return match;
 }
 
 void PrintSummary(const AddFlags& flags, const AppendResult& result, const SignedCorpus& batch,
@@ -118,10 +86,11 @@ int RunAdd(const AddFlags& flags) {
   }
   auto reader = IndexReader::Open(flags.index);  // for matching, banded as asked
   if (!reader.ok()) return Fail(reader.status());
-  if (absl::Status status = CheckSettings(flags, **reader); !status.ok()) {
+  if (absl::Status status = CheckIndexSignature(flags.signature, flags.given, **reader);
+      !status.ok()) {
     return Fail(absl::IsFailedPrecondition(status) ? kExitIndexMismatch : kExitUsage, status);
   }
-  auto match = QueryMatch(flags, reader->get());
+  auto match = IndexQueryMatch(flags.match, flags.given, reader->get());
   if (!match.ok()) return Fail(kExitUsage, match.status());
   const int threads = ThreadCount(flags.general);
   const SignatureSettings& signature = (*reader)->settings().signature;
@@ -174,11 +143,7 @@ void RegisterAdd(CLI::App& app, int* exit_code) {
       ->group("Output");
   AddGeneralOptions(command, &flags->general);
   command->callback([flags, command, exit_code] {
-    for (const char* name : {"--shingle", "--shingle-size", "--perms", "--signer", "--seed"}) {
-      flags->signature_given |= command->count(name) > 0;
-    }
-    flags->threshold_given = command->count("--threshold") > 0;
-    flags->measure_given = command->count("--measure") > 0;
+    flags->given = OptionsGiven(command);
     *exit_code = RunAdd(*flags);
   });
 }

@@ -8,6 +8,7 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/index_options.h"
 #include "cli/output.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
@@ -27,42 +28,8 @@ struct CheckFlags {
   GeneralFlags general;
   std::string format = "jsonl";
   bool fail_on_match = false;
-  bool signature_given = false;  // any signature option on the command line
-  bool threshold_given = false;
-  bool measure_given = false;
+  GivenOptions given;
 };
-
-// Checks the stored settings against the command's; prints warnings.
-absl::Status CheckSettings(const CheckFlags& flags, const IndexReader& reader) {
-  SignatureSettings wanted = reader.settings().signature;
-  if (flags.signature_given) {
-    auto given = ToSignatureSettings(flags.signature);
-    if (!given.ok()) return given.status();
-    wanted = *given;
-  }
-  std::vector<std::string> warnings;
-  absl::Status status =
-      CheckIndexSettings(reader.settings(), wanted, UnicodeVersionString(), &warnings);
-  for (const std::string& warning : warnings) {
-    std::fprintf(stderr, "kindred: warning: %s\n", warning.c_str());
-  }
-  if (status.ok()) return status;
-  return absl::Status(status.code(), absl::StrCat("index ", reader.path(), ": ", status.message()));
-}
-
-absl::StatusOr<MatchSettings> QueryMatch(const CheckFlags& flags, IndexReader* reader) {
-  MatchFlags match_flags = flags.match;
-  if (!flags.threshold_given) match_flags.threshold = reader->settings().threshold;
-  if (!flags.measure_given) match_flags.measure = MeasureName(reader->settings().measure);
-  auto match = ToMatchSettings(match_flags, reader->settings().signature);
-  if (!match.ok()) return match.status();
-  if (match->bands != 0) {
-    if (absl::Status status = reader->UseBanding(match->bands, match->rows); !status.ok()) {
-      return status;
-    }
-  }
-  return match;
-}
 
 // Reads and signs every input under `signature`. Errors are the reader's
 // (exit 3).
@@ -101,10 +68,11 @@ int RunCheck(const CheckFlags& flags) {
                  flags.index.c_str(),
                  static_cast<unsigned long long>((*reader)->torn_tail_bytes()));
   }
-  if (absl::Status status = CheckSettings(flags, **reader); !status.ok()) {
+  if (absl::Status status = CheckIndexSignature(flags.signature, flags.given, **reader);
+      !status.ok()) {
     return Fail(absl::IsFailedPrecondition(status) ? kExitIndexMismatch : kExitUsage, status);
   }
-  auto match = QueryMatch(flags, reader->get());
+  auto match = IndexQueryMatch(flags.match, flags.given, reader->get());
   if (!match.ok()) return Fail(kExitUsage, match.status());
   const int threads = ThreadCount(flags.general);
   SignedCorpus uploads((*reader)->settings().signature.perms);
@@ -158,11 +126,7 @@ void RegisterCheck(CLI::App& app, int* exit_code) {
       ->group("Output");
   AddGeneralOptions(command, &flags->general);
   command->callback([flags, command, exit_code] {
-    for (const char* name : {"--shingle", "--shingle-size", "--perms", "--signer", "--seed"}) {
-      flags->signature_given |= command->count(name) > 0;
-    }
-    flags->threshold_given = command->count("--threshold") > 0;
-    flags->measure_given = command->count("--measure") > 0;
+    flags->given = OptionsGiven(command);
     *exit_code = RunCheck(*flags);
   });
 }

@@ -11,6 +11,7 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/index_options.h"
 #include "cli/output.h"
 #include "io/output_guard.h"
 #include "kindred/index.h"
@@ -26,9 +27,7 @@ namespace {
 struct SweepFlags {
   std::vector<std::string> inputs;
   std::string index;
-  bool threshold_given = false;
-  bool measure_given = false;
-  bool signature_given = false;
+  GivenOptions given;
   InputFlags input;
   SignatureFlags signature;
   MatchFlags match;
@@ -200,25 +199,12 @@ int RunIndexSweep(const SweepFlags& flags) {
   }
   auto reader = IndexReader::Open(flags.index);
   if (!reader.ok()) return Fail(reader.status());
-  const IndexSettings& stored = (*reader)->settings();
-  if (flags.signature_given) {
-    auto wanted = ToSignatureSettings(flags.signature);
-    if (!wanted.ok()) return Fail(kExitUsage, wanted.status());
-    std::vector<std::string> warnings;
-    absl::Status status = CheckIndexSettings(stored, *wanted, UnicodeVersionString(), &warnings);
-    if (!status.ok()) return Fail(kExitIndexMismatch, status);
+  if (absl::Status status = CheckIndexSignature(flags.signature, flags.given, **reader);
+      !status.ok()) {
+    return Fail(absl::IsFailedPrecondition(status) ? kExitIndexMismatch : kExitUsage, status);
   }
-  MatchFlags match_flags = flags.match;
-  if (!flags.threshold_given) match_flags.threshold = stored.threshold;
-  if (!flags.measure_given) match_flags.measure = MeasureName(stored.measure);
-  auto match = ToMatchSettings(match_flags, stored.signature);
+  auto match = IndexQueryMatch(flags.match, flags.given, reader->get());
   if (!match.ok()) return Fail(kExitUsage, match.status());
-  if (flags.threshold_given && match->bands == 0) {
-    // The stored banding was chosen for the stored threshold; choose again.
-    const Banding banding = ChooseBanding(match->threshold, stored.signature.perms);
-    match->bands = banding.bands;
-    match->rows = banding.rows;
-  }
   auto keep = ParseKeepPolicy(flags.keep);
   if (!keep.ok()) return Fail(kExitUsage, keep.status());
   auto format = ParseRecordFormat(flags.format);
@@ -381,11 +367,7 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
       ->group("Output");
   AddGeneralOptions(command, &flags->general);
   command->callback([flags, exit_code, command] {
-    flags->threshold_given = command->get_option("--threshold")->count() > 0;
-    flags->measure_given = command->get_option("--measure")->count() > 0;
-    for (const char* name : {"--shingle", "--shingle-size", "--perms", "--signer", "--seed"}) {
-      flags->signature_given |= command->get_option(name)->count() > 0;
-    }
+    flags->given = OptionsGiven(command);
     *exit_code = RunSweepCommand(*flags);
   });
 }

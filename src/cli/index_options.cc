@@ -1,0 +1,61 @@
+#include "cli/index_options.h"
+
+#include <cstdio>
+
+#include "absl/strings/str_cat.h"
+#include "kindred/banding.h"
+#include "kindred/shingles.h"
+
+namespace kindred::cli {
+
+GivenOptions OptionsGiven(CLI::App* command) {
+  GivenOptions given;
+  for (const char* name : {"--shingle", "--shingle-size", "--perms", "--signer", "--seed"}) {
+    given.signature |= command->count(name) > 0;
+  }
+  given.threshold = command->count("--threshold") > 0;
+  given.measure = command->count("--measure") > 0;
+  return given;
+}
+
+absl::Status CheckIndexSignature(const SignatureFlags& flags, const GivenOptions& given,
+                                 const IndexReader& reader) {
+  SignatureSettings wanted = reader.settings().signature;
+  if (given.signature) {
+    auto parsed = ToSignatureSettings(flags);
+    if (!parsed.ok()) return parsed.status();
+    wanted = *parsed;
+  }
+  std::vector<std::string> warnings;
+  absl::Status status =
+      CheckIndexSettings(reader.settings(), wanted, UnicodeVersionString(), &warnings);
+  for (const std::string& warning : warnings) {
+    std::fprintf(stderr, "kindred: warning: %s\n", warning.c_str());
+  }
+  if (status.ok()) return status;
+  return absl::Status(status.code(), absl::StrCat("index ", reader.path(), ": ", status.message()));
+}
+
+absl::StatusOr<MatchSettings> IndexQueryMatch(const MatchFlags& flags, const GivenOptions& given,
+                                              IndexReader* reader) {
+  const IndexSettings& stored = reader->settings();
+  MatchFlags match_flags = flags;
+  if (!given.threshold) match_flags.threshold = stored.threshold;
+  if (!given.measure) match_flags.measure = MeasureName(stored.measure);
+  auto match = ToMatchSettings(match_flags, stored.signature);
+  if (!match.ok()) return match.status();
+  if (given.threshold && match->bands == 0) {
+    // The stored banding was chosen for the stored threshold; choose again.
+    const Banding banding = ChooseBanding(match->threshold, stored.signature.perms);
+    match->bands = banding.bands;
+    match->rows = banding.rows;
+  }
+  if (match->bands != 0 && (match->bands != stored.bands || match->rows != stored.rows)) {
+    if (absl::Status status = reader->UseBanding(match->bands, match->rows); !status.ok()) {
+      return status;
+    }
+  }
+  return match;
+}
+
+}  // namespace kindred::cli
