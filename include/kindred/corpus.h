@@ -87,8 +87,8 @@ struct InputOptions {
   // 0 = unlimited. Guards against decompression bombs.
   uint64_t max_decompressed_bytes = 0;
   // When not empty, the decompressed bytes read from standard input are also
-  // written to this file (created with mode 0600; it must not exist, not
-  // even as a symbolic link, so a planted link is never followed), so that a second
+  // written to this file (created or truncated, mode 0600; a symbolic link
+  // at the path is an error, never followed), so that a second
   // pass (WriteKept) can read them again. The caller chooses the path and
   // removes the file when done.
   std::string stdin_copy_path;

@@ -305,7 +305,7 @@ absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
   }
   if (!options.copy_path.empty()) {
     int copy_fd = open(options.copy_path.c_str(),
-                       O_WRONLY | O_CREAT | O_EXCL | O_NOFOLLOW | O_CLOEXEC, 0600);
+                       O_WRONLY | O_CREAT | O_TRUNC | O_NOFOLLOW | O_CLOEXEC, 0600);
     if (copy_fd < 0) {
       return absl::ErrnoToStatus(errno, absl::StrCat(options.copy_path, ": cannot create"));
     }

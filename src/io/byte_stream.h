@@ -37,7 +37,8 @@ struct DecodeOptions {
   // Limit on the decoded size of a compressed stream; 0 = unlimited.
   uint64_t max_decompressed_bytes = 0;
   // When not empty, every decoded byte is also written to this file
-  // (created with mode 0600; it must not exist, not even as a link).
+  // (created or truncated, mode 0600; a symbolic link there is an error,
+  // never followed).
   std::string copy_path;
 };
 
