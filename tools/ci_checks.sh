@@ -52,8 +52,11 @@ run_asan() {
 
 build_fuzz() {
   CC=clang CXX=clang++ cmake -S . -B build-fuzz -G Ninja -DCMAKE_BUILD_TYPE=RelWithDebInfo \
-    -DKINDRED_FUZZ=ON -DKINDRED_BUILD_TESTS=OFF >/dev/null &&
-    cmake --build build-fuzz -j"$jobs"
+    -DKINDRED_FUZZ=ON -DKINDRED_BUILD_TESTS=OFF >/dev/null || return 1
+  # Only the fuzz targets (and the library under them), not the program.
+  local targets=()
+  for source in tests/fuzz/*_fuzz.cc; do targets+=("$(basename "$source" .cc)"); done
+  cmake --build build-fuzz -j"$jobs" --target "${targets[@]}"
 }
 
 # fuzz_one NAME: runs build-fuzz/fuzz/NAME_fuzz from a scratch copy of its
@@ -72,7 +75,7 @@ fuzz_one() {
   runs=$(sed -n 's/^stat::number_of_executed_units: *//p' "$log" | tail -1)
   coverage=$(grep -o 'cov: [0-9]*' "$log" | tail -1)
   if ((rc == 0)); then
-    note "fuzz   ok    $name: ${runs:-?} runs, ${coverage:-cov: ?}, corpus $(find "$corpus" -type f | wc -l) new inputs"
+    note "fuzz   ok    $name: ${runs:-?} runs, ${coverage:-cov: ?}, $(find "$corpus" -type f | wc -l) inputs in its working corpus"
   else
     note "fuzz   FAIL  $name (exit $rc): $(grep -m1 -E 'ERROR|property failed|SUMMARY' "$log"); log $log; input $(ls build-fuzz/findings/"$name"-* 2>/dev/null | head -1)"
     return 1
