@@ -14,24 +14,14 @@
 #include <string>
 #include <vector>
 
+#include "testlib/temp_dir.h"
+
 namespace kindred {
 namespace {
 
 namespace fs = std::filesystem;
 
-class TempDir {
- public:
-  TempDir() {
-    std::string pattern = (fs::temp_directory_path() / "kindred-corpus-XXXXXX").string();
-    path_ = mkdtemp(pattern.data());
-  }
-  ~TempDir() { fs::remove_all(path_); }
-  std::string Path(const std::string& relative) const { return path_ + "/" + relative; }
-  const std::string& path() const { return path_; }
-
- private:
-  std::string path_;
-};
+using testing::TempDir;
 
 void WriteFile(const std::string& path, const std::string& bytes) {
   fs::create_directories(fs::path(path).parent_path());
@@ -94,13 +84,13 @@ TEST_CASE("a tree lists regular files in byte-wise order of relative path") {
   TempDir dir;
   const std::vector<std::string> files = {"b.txt", "a/c.txt", "a-b.txt", "a/b/d.txt",
                                           "A.txt", "a/b-c",   "z",       "\xc3\xa9.txt"};
-  for (const std::string& name : files) WriteFile(dir.Path("root/" + name), "text of " + name);
-  WriteFile(dir.Path("outside/secret.txt"), "not in the tree");
-  fs::create_symlink(dir.Path("outside"), dir.Path("root/linked-dir"));
-  fs::create_symlink(dir.Path("outside/secret.txt"), dir.Path("root/linked-file.txt"));
-  fs::create_directories(dir.Path("root/empty-dir"));
+  for (const std::string& name : files) WriteFile(dir.File("root/" + name), "text of " + name);
+  WriteFile(dir.File("outside/secret.txt"), "not in the tree");
+  fs::create_symlink(dir.File("outside"), dir.File("root/linked-dir"));
+  fs::create_symlink(dir.File("outside/secret.txt"), dir.File("root/linked-file.txt"));
+  fs::create_directories(dir.File("root/empty-dir"));
 
-  auto docs = ReadAll({dir.Path("root") + "/"});
+  auto docs = ReadAll({dir.File("root") + "/"});
   REQUIRE(docs.ok());
   // Reference order: std::sort of the relative paths (byte-wise comparison).
   std::vector<std::string> expected = files;
@@ -109,7 +99,7 @@ TEST_CASE("a tree lists regular files in byte-wise order of relative path") {
   for (size_t i = 0; i < docs->size(); ++i) {
     const Document& doc = (*docs)[i];
     CHECK(doc.text == "text of " + doc.id);
-    CHECK(doc.source.path == dir.Path("root/" + doc.id));
+    CHECK(doc.source.path == dir.File("root/" + doc.id));
     CHECK(doc.source.line == 0);
     CHECK(doc.ordinal == i);
     CHECK_FALSE(doc.has_priority);
@@ -119,31 +109,31 @@ TEST_CASE("a tree lists regular files in byte-wise order of relative path") {
 TEST_CASE("text files keep NUL bytes, invalid UTF-8 and empty documents as they are") {
   TempDir dir;
   const std::string raw("a\0b\xff\xfe c\r\n", 9);
-  WriteFile(dir.Path("t/raw.txt"), raw);
-  WriteFile(dir.Path("t/empty.txt"), "");
-  WriteFile(dir.Path("single.md"), "one document");
-  auto docs = ReadAll({dir.Path("t"), dir.Path("single.md")});
+  WriteFile(dir.File("t/raw.txt"), raw);
+  WriteFile(dir.File("t/empty.txt"), "");
+  WriteFile(dir.File("single.md"), "one document");
+  auto docs = ReadAll({dir.File("t"), dir.File("single.md")});
   REQUIRE(docs.ok());
   REQUIRE(docs->size() == 3);
   CHECK((*docs)[0].id == "empty.txt");
   CHECK((*docs)[0].text.empty());
   CHECK((*docs)[1].id == "raw.txt");
   CHECK((*docs)[1].text == raw);
-  CHECK((*docs)[2].id == dir.Path("single.md"));
+  CHECK((*docs)[2].id == dir.File("single.md"));
   CHECK((*docs)[2].text == "one document");
   CHECK((*docs)[2].source.input == 1);
 }
 
 TEST_CASE("JSON Lines with the default fields") {
   TempDir dir;
-  WriteFile(dir.Path("c.jsonl"),
+  WriteFile(dir.File("c.jsonl"),
             "{\"id\": \"a\", \"text\": \"first\"}\n"
             "\n"
             "   \t \n"
             "{\"text\": \"second\", \"extra\": [1, {\"x\": null}], \"id\": 7}\r\n"
             "{\"id\": -12, \"text\": \"\"}\n"
             "{\"id\": 18446744073709551615, \"text\": \"big\"}");  // no final newline
-  auto docs = ReadAll({dir.Path("c.jsonl")});
+  auto docs = ReadAll({dir.File("c.jsonl")});
   REQUIRE(docs.ok());
   REQUIRE(docs->size() == 4);
   CHECK(Ids(*docs) == std::vector<std::string>{"a", "7", "-12", "18446744073709551615"});
@@ -155,7 +145,7 @@ TEST_CASE("JSON Lines with the default fields") {
   CHECK((*docs)[0].source.line == 1);
   CHECK((*docs)[1].source.line == 4);
   CHECK((*docs)[3].source.line == 6);
-  CHECK((*docs)[3].source.path == dir.Path("c.jsonl"));
+  CHECK((*docs)[3].source.path == dir.File("c.jsonl"));
 }
 
 TEST_CASE("JSON string escapes are decoded") {
@@ -163,9 +153,9 @@ TEST_CASE("JSON string escapes are decoded") {
   // RFC 8259 section 7: \" \\ \/ \b \f \n \r \t and \uXXXX, with a UTF-16
   // surrogate pair for characters outside the BMP. UTF-8 of U+00E9 is C3 A9
   // and of U+1F600 is F0 9F 98 80 (Unicode Standard, table 3-7).
-  WriteFile(dir.Path("e.ndjson"), R"({"id":"q\"\\\/","text":"a\nb\tc\u00e9\ud83d\ude00\u0000!"})"
+  WriteFile(dir.File("e.ndjson"), R"({"id":"q\"\\\/","text":"a\nb\tc\u00e9\ud83d\ude00\u0000!"})"
                                   "\n");
-  auto docs = ReadAll({dir.Path("e.ndjson")});
+  auto docs = ReadAll({dir.File("e.ndjson")});
   REQUIRE(docs.ok());
   REQUIRE(docs->size() == 1);
   CHECK((*docs)[0].id == "q\"\\/");
@@ -174,7 +164,7 @@ TEST_CASE("JSON string escapes are decoded") {
 
 TEST_CASE("custom id, text and priority fields, and @line ids") {
   TempDir dir;
-  WriteFile(dir.Path("p.json"),
+  WriteFile(dir.File("p.json"),
             "{\"key\": \"x\", \"body\": \"one\", \"rank\": 2.5}\n"
             "{\"key\": \"y\", \"body\": \"two\"}\n"
             "\n"
@@ -183,7 +173,7 @@ TEST_CASE("custom id, text and priority fields, and @line ids") {
   options.id_field = "key";
   options.text_field = "body";
   options.priority_field = "rank";
-  auto docs = ReadAll({dir.Path("p.json")}, options);
+  auto docs = ReadAll({dir.File("p.json")}, options);
   REQUIRE(docs.ok());
   REQUIRE(docs->size() == 3);
   CHECK(Ids(*docs) == std::vector<std::string>{"x", "y", "z"});
@@ -194,15 +184,15 @@ TEST_CASE("custom id, text and priority fields, and @line ids") {
   CHECK((*docs)[2].priority == -3);
 
   options.id_field = "@line";
-  docs = ReadAll({dir.Path("p.json")}, options);
+  docs = ReadAll({dir.File("p.json")}, options);
   REQUIRE(docs.ok());
-  CHECK(Ids(*docs) == std::vector<std::string>{dir.Path("p.json") + ":1", dir.Path("p.json") + ":2",
-                                               dir.Path("p.json") + ":4"});
+  CHECK(Ids(*docs) == std::vector<std::string>{dir.File("p.json") + ":1", dir.File("p.json") + ":2",
+                                               dir.File("p.json") + ":4"});
 }
 
 TEST_CASE("malformed JSON Lines name the file and line") {
   TempDir dir;
-  const std::string path = dir.Path("bad.jsonl");
+  const std::string path = dir.File("bad.jsonl");
   const std::string good = "{\"id\": \"ok\", \"text\": \"fine\"}\n\n";
   struct Case {
     std::string line;
@@ -238,7 +228,7 @@ TEST_CASE("malformed JSON Lines name the file and line") {
 
 TEST_CASE("invalid UTF-8 inside a JSON string becomes U+FFFD and is counted") {
   TempDir dir;
-  const std::string path = dir.Path("broken.jsonl");
+  const std::string path = dir.File("broken.jsonl");
   // \xff is never valid; \xe2\x82 is a truncated three-byte sequence: two
   // replacements by the maximal-subpart practice (Unicode ch. 3).
   WriteFile(path, "{\"id\": \"x\", \"text\": \"caf\xff \xe2\x82 ok\"}\n{\"id\": \"y\", \"text\": \"fine\"}\n");
@@ -252,8 +242,8 @@ TEST_CASE("invalid UTF-8 inside a JSON string becomes U+FFFD and is counted") {
 
 TEST_CASE("after an error every later batch returns the same error") {
   TempDir dir;
-  WriteFile(dir.Path("x.jsonl"), "{\"id\": \"a\", \"text\": \"b\"}\n{oops}\n");
-  auto reader = CorpusReader::Open({dir.Path("x.jsonl")}, {});
+  WriteFile(dir.File("x.jsonl"), "{\"id\": \"a\", \"text\": \"b\"}\n{oops}\n");
+  auto reader = CorpusReader::Open({dir.File("x.jsonl")}, {});
   REQUIRE(reader.ok());
   std::vector<Document> batch;
   auto first = (*reader)->ReadBatch(&batch, 1, 100);
@@ -268,12 +258,12 @@ TEST_CASE("after an error every later batch returns the same error") {
 TEST_CASE("formats: auto detection by name, and explicit formats") {
   TempDir dir;
   const std::string lines = "{\"id\": \"a\", \"text\": \"b\"}\n{\"id\": \"c\", \"text\": \"d\"}\n";
-  WriteFile(dir.Path("x.jsonl.gz"), Gzip(lines));
-  WriteFile(dir.Path("x.ndjson.zst"), Zstd(lines));
-  WriteFile(dir.Path("x.txt"), lines);
-  WriteFile(dir.Path("x.jsonl.bak"), lines);
-  auto reader = CorpusReader::Open({dir.Path("x.jsonl.gz"), dir.Path("x.ndjson.zst"),
-                                    dir.Path("x.txt"), dir.Path("x.jsonl.bak"), dir.path()},
+  WriteFile(dir.File("x.jsonl.gz"), Gzip(lines));
+  WriteFile(dir.File("x.ndjson.zst"), Zstd(lines));
+  WriteFile(dir.File("x.txt"), lines);
+  WriteFile(dir.File("x.jsonl.bak"), lines);
+  auto reader = CorpusReader::Open({dir.File("x.jsonl.gz"), dir.File("x.ndjson.zst"),
+                                    dir.File("x.txt"), dir.File("x.jsonl.bak"), dir.path()},
                                    {});
   REQUIRE(reader.ok());
   CHECK((*reader)->FormatOf(0) == InputFormat::kJsonLines);
@@ -284,32 +274,32 @@ TEST_CASE("formats: auto detection by name, and explicit formats") {
 
   InputOptions as_text;
   as_text.format = InputFormat::kText;
-  auto docs = ReadAll({dir.Path("x.jsonl.gz")}, as_text);
+  auto docs = ReadAll({dir.File("x.jsonl.gz")}, as_text);
   REQUIRE(docs.ok());
   REQUIRE(docs->size() == 1);
   CHECK((*docs)[0].text == lines);  // decompressed by content
 
   InputOptions as_lines;
   as_lines.format = InputFormat::kJsonLines;
-  docs = ReadAll({dir.Path("x.txt")}, as_lines);
+  docs = ReadAll({dir.File("x.txt")}, as_lines);
   REQUIRE(docs.ok());
   CHECK(Ids(*docs) == std::vector<std::string>{"a", "c"});
 }
 
 TEST_CASE("a tree read as JSON Lines reads every file's lines in order") {
   TempDir dir;
-  WriteFile(dir.Path("t/2.jsonl"), "{\"id\": \"c\", \"text\": \"3\"}\n");
-  WriteFile(dir.Path("t/1/x"),
+  WriteFile(dir.File("t/2.jsonl"), "{\"id\": \"c\", \"text\": \"3\"}\n");
+  WriteFile(dir.File("t/1/x"),
             Gzip("{\"id\": \"a\", \"text\": \"1\"}\n{\"id\": \"b\", \"text\": \"2\"}"));
   InputOptions options;
   options.format = InputFormat::kJsonLines;
   options.id_field = "@line";
-  auto docs = ReadAll({dir.Path("t")}, options);
+  auto docs = ReadAll({dir.File("t")}, options);
   REQUIRE(docs.ok());
-  CHECK(Ids(*docs) == std::vector<std::string>{dir.Path("t/1/x") + ":1", dir.Path("t/1/x") + ":2",
-                                               dir.Path("t/2.jsonl") + ":1"});
+  CHECK(Ids(*docs) == std::vector<std::string>{dir.File("t/1/x") + ":1", dir.File("t/1/x") + ":2",
+                                               dir.File("t/2.jsonl") + ":1"});
   CHECK((*docs)[1].text == "2");
-  CHECK((*docs)[2].source.path == dir.Path("t/2.jsonl"));
+  CHECK((*docs)[2].source.path == dir.File("t/2.jsonl"));
 }
 
 TEST_CASE("gzip with several members and zstd with several frames") {
@@ -321,22 +311,22 @@ TEST_CASE("gzip with several members and zstd with several frames") {
     second +=
         "{\"id\": \"b" + std::to_string(i) + "\", \"text\": \"beta " + std::to_string(i) + "\"}\n";
   }
-  WriteFile(dir.Path("m.jsonl.gz"), Gzip(first) + Gzip(second));
-  WriteFile(dir.Path("m.jsonl.zst"), Zstd(first) + Zstd(second));
-  WriteFile(dir.Path("m.jsonl"), first + second);
-  auto plain = ReadAll({dir.Path("m.jsonl")});
+  WriteFile(dir.File("m.jsonl.gz"), Gzip(first) + Gzip(second));
+  WriteFile(dir.File("m.jsonl.zst"), Zstd(first) + Zstd(second));
+  WriteFile(dir.File("m.jsonl"), first + second);
+  auto plain = ReadAll({dir.File("m.jsonl")});
   REQUIRE(plain.ok());
   REQUIRE(plain->size() == 6000);
   for (const char* name : {"m.jsonl.gz", "m.jsonl.zst"}) {
-    auto docs = ReadAll({dir.Path(name)});
+    auto docs = ReadAll({dir.File(name)});
     REQUIRE(docs.ok());
     CHECK(Ids(*docs) == Ids(*plain));
     CHECK((*docs)[5999].text == "beta 2999");
   }
   // A tree of compressed text files: each file decompressed.
-  WriteFile(dir.Path("t/a.gz"), Gzip("one ") + Gzip("two"));
-  WriteFile(dir.Path("t/b"), Zstd("three ") + Zstd(""));
-  auto docs = ReadAll({dir.Path("t")});
+  WriteFile(dir.File("t/a.gz"), Gzip("one ") + Gzip("two"));
+  WriteFile(dir.File("t/b"), Zstd("three ") + Zstd(""));
+  auto docs = ReadAll({dir.File("t")});
   REQUIRE(docs.ok());
   REQUIRE(docs->size() == 2);
   CHECK((*docs)[0].text == "one two");
@@ -367,11 +357,11 @@ TEST_CASE("truncated and corrupt compressed input is an error that says so") {
       {"magic.gz", std::string("\x1f\x8b"), "truncated gzip stream after 2 bytes"},
   };
   for (const Case& c : cases) {
-    WriteFile(dir.Path(c.name), c.bytes);
-    auto result = ReadAll({dir.Path(c.name)});
+    WriteFile(dir.File(c.name), c.bytes);
+    auto result = ReadAll({dir.File(c.name)});
     INFO(c.name);
     CHECK(result.status().code() == absl::StatusCode::kInvalidArgument);
-    CHECK_THAT(ErrorOf(result), Catch::StartsWith(dir.Path(c.name) + ": " + c.message));
+    CHECK_THAT(ErrorOf(result), Catch::StartsWith(dir.File(c.name) + ": " + c.message));
   }
 }
 
@@ -383,34 +373,34 @@ TEST_CASE("size limits: long lines, large documents, decompression bombs") {
   REQUIRE(ok_line.size() == 100);
   // A 20 MB line with a 100-byte limit: refused as soon as 100 bytes pass
   // without a newline.
-  WriteFile(dir.Path("long.jsonl"), ok_line + "\n" + ok_line + "\n" + std::string(20 << 20, 'x'));
-  auto result = ReadAll({dir.Path("long.jsonl")}, options);
+  WriteFile(dir.File("long.jsonl"), ok_line + "\n" + ok_line + "\n" + std::string(20 << 20, 'x'));
+  auto result = ReadAll({dir.File("long.jsonl")}, options);
   CHECK(result.status().code() == absl::StatusCode::kResourceExhausted);
-  CHECK(ErrorOf(result) == dir.Path("long.jsonl") +
+  CHECK(ErrorOf(result) == dir.File("long.jsonl") +
                                ":3: line longer than the limit of 100 bytes (--max-document-size)");
   // 100 bytes plus "\r" counts as 101.
-  WriteFile(dir.Path("crlf.jsonl"), ok_line + "\r\n");
-  CHECK(ErrorOf(ReadAll({dir.Path("crlf.jsonl")}, options)) ==
-        dir.Path("crlf.jsonl") +
+  WriteFile(dir.File("crlf.jsonl"), ok_line + "\r\n");
+  CHECK(ErrorOf(ReadAll({dir.File("crlf.jsonl")}, options)) ==
+        dir.File("crlf.jsonl") +
             ":1: line longer than the limit of 100 bytes (--max-document-size)");
 
-  WriteFile(dir.Path("t/small"), std::string(100, 'y'));
-  WriteFile(dir.Path("t/zbig"), std::string(101, 'y'));
-  result = ReadAll({dir.Path("t")}, options);
+  WriteFile(dir.File("t/small"), std::string(100, 'y'));
+  WriteFile(dir.File("t/zbig"), std::string(101, 'y'));
+  result = ReadAll({dir.File("t")}, options);
   CHECK(result.status().code() == absl::StatusCode::kResourceExhausted);
   CHECK(ErrorOf(result) ==
-        dir.Path("t/zbig") + ": document larger than the limit of 100 bytes (--max-document-size)");
+        dir.File("t/zbig") + ": document larger than the limit of 100 bytes (--max-document-size)");
 
   InputOptions bomb;
   bomb.max_decompressed_bytes = 1 << 20;
-  WriteFile(dir.Path("bomb.gz"), Gzip(std::string(8 << 20, '\0')));
-  WriteFile(dir.Path("fine.gz"), Gzip(std::string(1 << 20, 'a')));
-  result = ReadAll({dir.Path("bomb.gz")}, bomb);
+  WriteFile(dir.File("bomb.gz"), Gzip(std::string(8 << 20, '\0')));
+  WriteFile(dir.File("fine.gz"), Gzip(std::string(1 << 20, 'a')));
+  result = ReadAll({dir.File("bomb.gz")}, bomb);
   CHECK(result.status().code() == absl::StatusCode::kResourceExhausted);
-  CHECK(ErrorOf(result) == dir.Path("bomb.gz") +
+  CHECK(ErrorOf(result) == dir.File("bomb.gz") +
                                ": decompressed size exceeds the limit of 1048576 bytes "
                                "(--max-decompressed-size)");
-  CHECK(ReadAll({dir.Path("fine.gz")}, bomb).ok());
+  CHECK(ReadAll({dir.File("fine.gz")}, bomb).ok());
 }
 
 TEST_CASE("batches of any size give the same stream") {
@@ -418,10 +408,10 @@ TEST_CASE("batches of any size give the same stream") {
   std::string lines;
   for (int i = 0; i < 50; ++i) {
     lines += "{\"id\": " + std::to_string(i) + ", \"text\": \"" + std::string(i, 'x') + "\"}\n";
-    WriteFile(dir.Path("t/" + std::to_string(100 + i)), std::string(i, 'y'));
+    WriteFile(dir.File("t/" + std::to_string(100 + i)), std::string(i, 'y'));
   }
-  WriteFile(dir.Path("l.jsonl"), lines);
-  const std::vector<std::string> inputs = {dir.Path("l.jsonl"), dir.Path("t"), dir.Path("l.jsonl")};
+  WriteFile(dir.File("l.jsonl"), lines);
+  const std::vector<std::string> inputs = {dir.File("l.jsonl"), dir.File("t"), dir.File("l.jsonl")};
   auto reference = ReadAll(inputs);
   REQUIRE(reference.ok());
   REQUIRE(reference->size() == 150);
@@ -439,7 +429,7 @@ TEST_CASE("batches of any size give the same stream") {
     }
   }
   // A batch stops once its texts reach max_bytes.
-  auto reader = CorpusReader::Open({dir.Path("l.jsonl")}, {});
+  auto reader = CorpusReader::Open({dir.File("l.jsonl")}, {});
   REQUIRE(reader.ok());
   std::vector<Document> batch;
   auto n = (*reader)->ReadBatch(&batch, 100, 6);  // texts of 0, 1, 2, 3 bytes
@@ -463,10 +453,10 @@ void WithStdin(const std::string& path, Body body) {
 TEST_CASE("standard input: JSON Lines or one text document, copied on request") {
   TempDir dir;
   const std::string lines = "  \n{\"id\": \"s\", \"text\": \"from stdin\"}\n";
-  WriteFile(dir.Path("in.gz"), Gzip(lines));
-  WithStdin(dir.Path("in.gz"), [&] {
+  WriteFile(dir.File("in.gz"), Gzip(lines));
+  WithStdin(dir.File("in.gz"), [&] {
     InputOptions options;
-    options.stdin_copy_path = dir.Path("copy");
+    options.stdin_copy_path = dir.File("copy");
     options.id_field = "@line";
     auto reader = CorpusReader::Open({"-"}, options);
     REQUIRE(reader.ok());
@@ -480,12 +470,12 @@ TEST_CASE("standard input: JSON Lines or one text document, copied on request") 
     std::vector<ResolvedInput> resolved = (*reader)->ResolvedInputs();
     CHECK(resolved[0].is_stdin);
     CHECK(resolved[0].format == InputFormat::kJsonLines);
-    CHECK(resolved[0].read_path == dir.Path("copy"));
-    std::ifstream copy(dir.Path("copy"), std::ios::binary);
+    CHECK(resolved[0].read_path == dir.File("copy"));
+    std::ifstream copy(dir.File("copy"), std::ios::binary);
     CHECK(std::string(std::istreambuf_iterator<char>(copy), {}) == lines);
   });
-  WriteFile(dir.Path("in.txt"), "  plain text {not json}");
-  WithStdin(dir.Path("in.txt"), [&] {
+  WriteFile(dir.File("in.txt"), "  plain text {not json}");
+  WithStdin(dir.File("in.txt"), [&] {
     auto docs = ReadAll({"-"});
     REQUIRE(docs.ok());
     REQUIRE(docs->size() == 1);
@@ -496,10 +486,10 @@ TEST_CASE("standard input: JSON Lines or one text document, copied on request") 
 
 TEST_CASE("missing inputs and bad input lists") {
   TempDir dir;
-  auto missing = CorpusReader::Open({dir.Path("nope.jsonl")}, {});
+  auto missing = CorpusReader::Open({dir.File("nope.jsonl")}, {});
   CHECK(missing.status().code() == absl::StatusCode::kNotFound);
   CHECK_THAT(std::string(missing.status().message()),
-             Catch::StartsWith(dir.Path("nope.jsonl") + ": cannot open"));
+             Catch::StartsWith(dir.File("nope.jsonl") + ": cannot open"));
   CHECK(CorpusReader::Open({"-", "-"}, {}).status().code() == absl::StatusCode::kInvalidArgument);
   CHECK(CorpusReader::Open({}, {}).status().code() == absl::StatusCode::kInvalidArgument);
 }

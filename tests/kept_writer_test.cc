@@ -17,24 +17,14 @@
 #include "io/output_file.h"
 #include "io/output_guard.h"
 
+#include "testlib/temp_dir.h"
+
 namespace kindred {
 namespace {
 
 namespace fs = std::filesystem;
 
-class TempDir {
- public:
-  TempDir() {
-    std::string pattern = (fs::temp_directory_path() / "kindred-kept-XXXXXX").string();
-    path_ = mkdtemp(pattern.data());
-  }
-  ~TempDir() { fs::remove_all(path_); }
-  std::string Path(const std::string& relative) const { return path_ + "/" + relative; }
-  const std::string& path() const { return path_; }
-
- private:
-  std::string path_;
-};
+using testing::TempDir;
 
 void WriteFile(const std::string& path, const std::string& bytes) {
   fs::create_directories(fs::path(path).parent_path());
@@ -143,14 +133,14 @@ std::string Join(const std::vector<std::string>& parts) {
 
 TEST_CASE("kept JSON lines are copied verbatim, plain or compressed") {
   TempDir dir;
-  WriteFile(dir.Path("in/c.jsonl.gz"), Gzip(Join(kLines)));
+  WriteFile(dir.File("in/c.jsonl.gz"), Gzip(Join(kLines)));
   const std::string expected = kLines[0] + kLines[2] + kLines[5] + "\n";
-  const std::vector<std::string> inputs = {dir.Path("in/c.jsonl.gz")};
+  const std::vector<std::string> inputs = {dir.File("in/c.jsonl.gz")};
   const std::set<std::string> keep = {"a", "b", "d"};
   for (const char* name : {"out.jsonl", "out.jsonl.gz", "out.jsonl.zst"}) {
     INFO(name);
     KeptOutput output;
-    output.lines_path = dir.Path(std::string("deep/er/") + name);
+    output.lines_path = dir.File(std::string("deep/er/") + name);
     auto counts = ReadThenWrite(inputs, keep, output);
     REQUIRE(counts.ok());
     CHECK(counts->documents == 4);
@@ -161,104 +151,104 @@ TEST_CASE("kept JSON lines are copied verbatim, plain or compressed") {
     CHECK(written == expected);
   }
   // No temporary files are left beside the outputs.
-  CHECK(std::distance(fs::directory_iterator(dir.Path("deep/er")), fs::directory_iterator()) == 3);
+  CHECK(std::distance(fs::directory_iterator(dir.File("deep/er")), fs::directory_iterator()) == 3);
 }
 
 TEST_CASE("kept text documents are copied into a tree or listed") {
   TempDir dir;
-  WriteFile(dir.Path("in/a/x.txt"), "ex");
-  WriteFile(dir.Path("in/a/y.txt"), std::string("why\0", 4));
-  WriteFile(dir.Path("in/a-b.txt"), "dropped");
-  WriteFile(dir.Path("in/b/c/z.gz"), Gzip("zed"));
-  WriteFile(dir.Path("single.md"), "one");
-  const std::vector<std::string> inputs = {dir.Path("in"), dir.Path("single.md")};
-  const std::set<std::string> keep = {"a/x.txt", "a/y.txt", "b/c/z.gz", dir.Path("single.md")};
+  WriteFile(dir.File("in/a/x.txt"), "ex");
+  WriteFile(dir.File("in/a/y.txt"), std::string("why\0", 4));
+  WriteFile(dir.File("in/a-b.txt"), "dropped");
+  WriteFile(dir.File("in/b/c/z.gz"), Gzip("zed"));
+  WriteFile(dir.File("single.md"), "one");
+  const std::vector<std::string> inputs = {dir.File("in"), dir.File("single.md")};
+  const std::set<std::string> keep = {"a/x.txt", "a/y.txt", "b/c/z.gz", dir.File("single.md")};
 
   KeptOutput copy;
-  copy.copy_dir = dir.Path("out/copy");
+  copy.copy_dir = dir.File("out/copy");
   auto counts = ReadThenWrite(inputs, keep, copy);
   REQUIRE(counts.ok());
   CHECK(counts->documents == 5);
   CHECK(counts->kept == 4);
-  CHECK(ReadFile(dir.Path("out/copy/a/x.txt")) == "ex");
-  CHECK(ReadFile(dir.Path("out/copy/a/y.txt")) == std::string("why\0", 4));
-  CHECK(ReadFile(dir.Path("out/copy/b/c/z.gz")) == Gzip("zed"));  // the original bytes
-  CHECK(ReadFile(dir.Path("out/copy/single.md")) == "one");
-  CHECK_FALSE(fs::exists(dir.Path("out/copy/a-b.txt")));
-  CHECK(std::distance(fs::directory_iterator(dir.Path("out")), fs::directory_iterator()) == 1);
+  CHECK(ReadFile(dir.File("out/copy/a/x.txt")) == "ex");
+  CHECK(ReadFile(dir.File("out/copy/a/y.txt")) == std::string("why\0", 4));
+  CHECK(ReadFile(dir.File("out/copy/b/c/z.gz")) == Gzip("zed"));  // the original bytes
+  CHECK(ReadFile(dir.File("out/copy/single.md")) == "one");
+  CHECK_FALSE(fs::exists(dir.File("out/copy/a-b.txt")));
+  CHECK(std::distance(fs::directory_iterator(dir.File("out")), fs::directory_iterator()) == 1);
 
   KeptOutput list;
-  list.path_list = dir.Path("kept.txt");
+  list.path_list = dir.File("kept.txt");
   REQUIRE(ReadThenWrite(inputs, keep, list).ok());
-  CHECK(ReadFile(dir.Path("kept.txt")) == dir.Path("in/a/x.txt") + "\n" + dir.Path("in/a/y.txt") +
-                                              "\n" + dir.Path("in/b/c/z.gz") + "\n" +
-                                              dir.Path("single.md") + "\n");
+  CHECK(ReadFile(dir.File("kept.txt")) == dir.File("in/a/x.txt") + "\n" + dir.File("in/a/y.txt") +
+                                              "\n" + dir.File("in/b/c/z.gz") + "\n" +
+                                              dir.File("single.md") + "\n");
 }
 
 TEST_CASE("an existing empty copy directory is filled; a non-empty one is refused") {
   TempDir dir;
-  WriteFile(dir.Path("in/x"), "x");
-  fs::create_directories(dir.Path("empty"));
+  WriteFile(dir.File("in/x"), "x");
+  fs::create_directories(dir.File("empty"));
   KeptOutput output;
-  output.copy_dir = dir.Path("empty");
-  REQUIRE(ReadThenWrite({dir.Path("in")}, {"x"}, output).ok());
-  CHECK(ReadFile(dir.Path("empty/x")) == "x");
-  auto again = ReadThenWrite({dir.Path("in")}, {"x"}, output);
+  output.copy_dir = dir.File("empty");
+  REQUIRE(ReadThenWrite({dir.File("in")}, {"x"}, output).ok());
+  CHECK(ReadFile(dir.File("empty/x")) == "x");
+  auto again = ReadThenWrite({dir.File("in")}, {"x"}, output);
   CHECK(again.status().code() == absl::StatusCode::kInvalidArgument);
   CHECK(again.status().message() ==
-        dir.Path("empty") + ": the copy directory exists and is not empty");
+        dir.File("empty") + ": the copy directory exists and is not empty");
 }
 
 TEST_CASE("outputs that would touch the inputs are refused, and nothing is written") {
   TempDir dir;
-  WriteFile(dir.Path("in.jsonl"), Join(kLines));
-  WriteFile(dir.Path("tree/t.txt"), "t");
-  fs::create_symlink(dir.Path("in.jsonl"), dir.Path("alias.jsonl"));
+  WriteFile(dir.File("in.jsonl"), Join(kLines));
+  WriteFile(dir.File("tree/t.txt"), "t");
+  fs::create_symlink(dir.File("in.jsonl"), dir.File("alias.jsonl"));
   struct Case {
     std::vector<std::string> inputs;
     KeptOutput output;
     std::string message;
   };
   const std::vector<Case> cases = {
-      {{dir.Path("in.jsonl")},
-       {dir.Path("in.jsonl"), "", ""},
-       dir.Path("in.jsonl") + ": is an input; inputs are never overwritten"},
-      {{dir.Path("in.jsonl")},
-       {dir.Path("alias.jsonl"), "", ""},
-       dir.Path("alias.jsonl") + ": is an input; inputs are never overwritten"},
-      {{dir.Path("in.jsonl")},
-       {dir.Path("tree/../in.jsonl"), "", ""},
-       dir.Path("tree/../in.jsonl") + ": is an input; inputs are never overwritten"},
-      {{dir.Path("tree"), dir.Path("in.jsonl")},
-       {dir.Path("tree/sub/out.jsonl"), dir.Path("c"), ""},
-       dir.Path("tree/sub/out.jsonl") + ": lies inside the input directory " + dir.Path("tree")},
-      {{dir.Path("tree")},
-       {"", dir.Path("tree/copy"), ""},
-       dir.Path("tree/copy") + ": the copy directory overlaps the input " + dir.Path("tree")},
-      {{dir.Path("tree")},
+      {{dir.File("in.jsonl")},
+       {dir.File("in.jsonl"), "", ""},
+       dir.File("in.jsonl") + ": is an input; inputs are never overwritten"},
+      {{dir.File("in.jsonl")},
+       {dir.File("alias.jsonl"), "", ""},
+       dir.File("alias.jsonl") + ": is an input; inputs are never overwritten"},
+      {{dir.File("in.jsonl")},
+       {dir.File("tree/../in.jsonl"), "", ""},
+       dir.File("tree/../in.jsonl") + ": is an input; inputs are never overwritten"},
+      {{dir.File("tree"), dir.File("in.jsonl")},
+       {dir.File("tree/sub/out.jsonl"), dir.File("c"), ""},
+       dir.File("tree/sub/out.jsonl") + ": lies inside the input directory " + dir.File("tree")},
+      {{dir.File("tree")},
+       {"", dir.File("tree/copy"), ""},
+       dir.File("tree/copy") + ": the copy directory overlaps the input " + dir.File("tree")},
+      {{dir.File("tree")},
        {"", dir.path(), ""},
-       dir.path() + ": the copy directory overlaps the input " + dir.Path("tree")},
-      {{dir.Path("tree")}, {"", "", dir.Path("tree")}, dir.Path("tree") + ": is a directory"},
-      {{dir.Path("in.jsonl")},
-       {"", dir.Path("c"), ""},
+       dir.path() + ": the copy directory overlaps the input " + dir.File("tree")},
+      {{dir.File("tree")}, {"", "", dir.File("tree")}, dir.File("tree") + ": is a directory"},
+      {{dir.File("in.jsonl")},
+       {"", dir.File("c"), ""},
        "an input is JSON Lines, but no output file for its kept lines was given"},
-      {{dir.Path("tree")},
-       {dir.Path("o.jsonl"), "", ""},
+      {{dir.File("tree")},
+       {dir.File("o.jsonl"), "", ""},
        "an input holds text documents: give either a copy directory or a path list for them"},
-      {{dir.Path("tree")},
-       {"", dir.Path("c"), dir.Path("l")},
+      {{dir.File("tree")},
+       {"", dir.File("c"), dir.File("l")},
        "an input holds text documents: give either a copy directory or a path list for them"},
-      {{dir.Path("tree"), dir.Path("in.jsonl")},
-       {dir.Path("c/o.jsonl"), dir.Path("c"), ""},
-       dir.Path("c/o.jsonl") + ": lies inside the copy directory"},
-      {{dir.Path("tree"), dir.Path("in.jsonl")},
-       {dir.Path("same"), "", dir.Path("same")},
+      {{dir.File("tree"), dir.File("in.jsonl")},
+       {dir.File("c/o.jsonl"), dir.File("c"), ""},
+       dir.File("c/o.jsonl") + ": lies inside the copy directory"},
+      {{dir.File("tree"), dir.File("in.jsonl")},
+       {dir.File("same"), "", dir.File("same")},
        "the kept lines and the path list name the same file"},
-      {{dir.Path("in.jsonl")},
-       {dir.Path("missing/../o.jsonl"), "", ""},
-       dir.Path("missing/../o.jsonl") + ": \"..\" after a directory that does not exist"},
+      {{dir.File("in.jsonl")},
+       {dir.File("missing/../o.jsonl"), "", ""},
+       dir.File("missing/../o.jsonl") + ": \"..\" after a directory that does not exist"},
   };
-  const std::string before = ReadFile(dir.Path("in.jsonl"));
+  const std::string before = ReadFile(dir.File("in.jsonl"));
   for (const Case& c : cases) {
     INFO(c.message);
     auto result = ReadThenWrite(c.inputs, {"a", "t.txt"}, c.output);
@@ -266,12 +256,12 @@ TEST_CASE("outputs that would touch the inputs are refused, and nothing is writt
     CHECK(result.status().code() == absl::StatusCode::kInvalidArgument);
     CHECK(result.status().message() == c.message);
   }
-  CHECK(ReadFile(dir.Path("in.jsonl")) == before);
+  CHECK(ReadFile(dir.File("in.jsonl")) == before);
   std::set<std::string> names;
   for (const auto& entry : fs::directory_iterator(dir.path()))
     names.insert(entry.path().filename());
   CHECK(names == std::set<std::string>{"in.jsonl", "tree", "alias.jsonl"});
-  CHECK(std::distance(fs::directory_iterator(dir.Path("tree")), fs::directory_iterator()) == 1);
+  CHECK(std::distance(fs::directory_iterator(dir.File("tree")), fs::directory_iterator()) == 1);
 }
 
 TEST_CASE("relative paths that leave the output directory are refused") {
@@ -286,31 +276,31 @@ TEST_CASE("relative paths that leave the output directory are refused") {
     CHECK(io::CheckRelativePath(good).ok());
   }
   TempDir dir;
-  WriteFile(dir.Path("src"), "s");
-  auto tree = io::CopyTree::Create(dir.Path("out"));
+  WriteFile(dir.File("src"), "s");
+  auto tree = io::CopyTree::Create(dir.File("out"));
   REQUIRE(tree.ok());
-  CHECK((*tree)->Add("../escaped", dir.Path("src")).code() == absl::StatusCode::kInvalidArgument);
-  REQUIRE((*tree)->Add("ok/file", dir.Path("src")).ok());
-  CHECK((*tree)->Add("ok/file", dir.Path("src")).code() == absl::StatusCode::kInvalidArgument);
+  CHECK((*tree)->Add("../escaped", dir.File("src")).code() == absl::StatusCode::kInvalidArgument);
+  REQUIRE((*tree)->Add("ok/file", dir.File("src")).ok());
+  CHECK((*tree)->Add("ok/file", dir.File("src")).code() == absl::StatusCode::kInvalidArgument);
   tree->reset();  // not committed: everything is removed
-  CHECK_FALSE(fs::exists(dir.Path("escaped")));
+  CHECK_FALSE(fs::exists(dir.File("escaped")));
   CHECK(std::distance(fs::directory_iterator(dir.path()), fs::directory_iterator()) == 1);
 }
 
 TEST_CASE("inputs that changed since they were read: nothing is written") {
   TempDir dir;
-  WriteFile(dir.Path("in.jsonl"), Join(kLines));
-  auto reader = CorpusReader::Open({dir.Path("in.jsonl")}, {});
+  WriteFile(dir.File("in.jsonl"), Join(kLines));
+  auto reader = CorpusReader::Open({dir.File("in.jsonl")}, {});
   REQUIRE(reader.ok());
   std::vector<Document> batch;
   while ((*reader)->ReadBatch(&batch, 100, 1 << 20).value() > 0) {
   }
-  WriteFile(dir.Path("in.jsonl"), Join(kLines) + "\n{\"id\": \"e\", \"text\": \"new\"}\n");
+  WriteFile(dir.File("in.jsonl"), Join(kLines) + "\n{\"id\": \"e\", \"text\": \"new\"}\n");
   KeptRequest request;
   request.inputs = (*reader)->ResolvedInputs();
   request.keep = [](uint64_t) { return true; };
   request.expected_documents = (*reader)->documents_read();
-  request.output.lines_path = dir.Path("out.jsonl");
+  request.output.lines_path = dir.File("out.jsonl");
   auto result = WriteKept(request);
   CHECK(result.status().code() == absl::StatusCode::kFailedPrecondition);
   CHECK(result.status().message() ==
@@ -333,28 +323,28 @@ void WithStdin(const std::string& path, Body body) {
 
 TEST_CASE("standard input is written again from its copy") {
   TempDir dir;
-  WriteFile(dir.Path("stdin.zst"), Gzip(Join(kLines)));
-  WithStdin(dir.Path("stdin.zst"), [&] {
+  WriteFile(dir.File("stdin.zst"), Gzip(Join(kLines)));
+  WithStdin(dir.File("stdin.zst"), [&] {
     InputOptions options;
-    options.stdin_copy_path = dir.Path("spool");
+    options.stdin_copy_path = dir.File("spool");
     KeptOutput output;
-    output.lines_path = dir.Path("out.jsonl");
+    output.lines_path = dir.File("out.jsonl");
     auto counts = ReadThenWrite({"-"}, {"c"}, output, options);
     REQUIRE(counts.ok());
-    CHECK(ReadFile(dir.Path("out.jsonl")) == kLines[4]);
+    CHECK(ReadFile(dir.File("out.jsonl")) == kLines[4]);
   });
-  WriteFile(dir.Path("stdin.txt"), "plain text");
-  WithStdin(dir.Path("stdin.txt"), [&] {
+  WriteFile(dir.File("stdin.txt"), "plain text");
+  WithStdin(dir.File("stdin.txt"), [&] {
     InputOptions options;
-    options.stdin_copy_path = dir.Path("spool2");  // the copy is always created new
+    options.stdin_copy_path = dir.File("spool2");  // the copy is always created new
     KeptOutput output;
-    output.copy_dir = dir.Path("copies");
+    output.copy_dir = dir.File("copies");
     REQUIRE(ReadThenWrite({"-"}, {"-"}, output, options).ok());
-    CHECK(ReadFile(dir.Path("copies/stdin.txt")) == "plain text");
+    CHECK(ReadFile(dir.File("copies/stdin.txt")) == "plain text");
   });
-  WithStdin(dir.Path("stdin.txt"), [&] {
+  WithStdin(dir.File("stdin.txt"), [&] {
     KeptOutput output;
-    output.copy_dir = dir.Path("copies2");
+    output.copy_dir = dir.File("copies2");
     auto result = ReadThenWrite({"-"}, {"-"}, output);
     CHECK(result.status().code() == absl::StatusCode::kFailedPrecondition);
   });
@@ -368,11 +358,11 @@ TEST_CASE("the written corpus reads back as exactly the kept documents") {
     lines += "{\"id\": " + std::to_string(i) + ", \"text\": \"doc " + std::to_string(i) + "\"}\n";
     if (i % 3 == 0 || i % 7 == 0) keep.insert(std::to_string(i));
   }
-  WriteFile(dir.Path("a.jsonl"), lines);
-  WriteFile(dir.Path("b.ndjson.zst"), Gzip(lines));
+  WriteFile(dir.File("a.jsonl"), lines);
+  WriteFile(dir.File("b.ndjson.zst"), Gzip(lines));
   KeptOutput output;
-  output.lines_path = dir.Path("kept.jsonl.zst");
-  auto counts = ReadThenWrite({dir.Path("a.jsonl"), dir.Path("b.ndjson.zst")}, keep, output);
+  output.lines_path = dir.File("kept.jsonl.zst");
+  auto counts = ReadThenWrite({dir.File("a.jsonl"), dir.File("b.ndjson.zst")}, keep, output);
   REQUIRE(counts.ok());
   CHECK(counts->documents == 1000);
   CHECK(counts->kept == 2 * keep.size());
