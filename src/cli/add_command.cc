@@ -125,11 +125,7 @@ void RegisterAdd(CLI::App& app, int* exit_code) {
   CLI::App* command = app.add_subcommand(
       "add", "Append documents to an index as a new segment, reporting their matches");
   command->add_option("index", flags->index, "the index file")->required();
-  command
-      ->add_option("inputs", flags->inputs,
-                   "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
-                   "standard input")
-      ->required();
+  AddInputsArgument(command, &flags->inputs)->required();
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);

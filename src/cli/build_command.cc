@@ -96,11 +96,7 @@ void RegisterBuild(CLI::App& app, int* exit_code) {
       "build", "Make an index file from a corpus (the signature settings are stored in it)");
   command->add_option("index", flags->index, "the index file to create (must not exist)")
       ->required();
-  command
-      ->add_option("inputs", flags->inputs,
-                   "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
-                   "standard input")
-      ->required();
+  AddInputsArgument(command, &flags->inputs)->required();
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);

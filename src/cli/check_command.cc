@@ -109,11 +109,7 @@ void RegisterCheck(CLI::App& app, int* exit_code) {
   CLI::App* command =
       app.add_subcommand("check", "Match documents (uploads) against an index without changing it");
   command->add_option("index", flags->index, "the index file")->required();
-  command
-      ->add_option("inputs", flags->inputs,
-                   "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
-                   "standard input")
-      ->required();
+  AddInputsArgument(command, &flags->inputs)->required();
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);

@@ -37,6 +37,12 @@ void AddInputOptions(CLI::App* command, InputFlags* flags) {
       ->group("Input");
 }
 
+CLI::Option* AddInputsArgument(CLI::App* command, std::vector<std::string>* inputs) {
+  return command->add_option("inputs", *inputs,
+                             "directories, files (text or JSON Lines, plain, gzip or zstd), or - "
+                             "for standard input");
+}
+
 absl::StatusOr<InputOptions> ToInputOptions(const InputFlags& flags) {
   InputOptions options;
   if (flags.format == "auto") {

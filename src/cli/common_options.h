@@ -24,6 +24,9 @@ struct InputFlags {
   std::string max_decompressed_size = "4G";
 };
 void AddInputOptions(CLI::App* command, InputFlags* flags);
+// The positional corpus inputs (directories, files, "-"); returns the option
+// so a command can make it required.
+CLI::Option* AddInputsArgument(CLI::App* command, std::vector<std::string>* inputs);
 absl::StatusOr<InputOptions> ToInputOptions(const InputFlags& flags);
 
 struct SignatureFlags {

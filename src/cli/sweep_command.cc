@@ -318,9 +318,7 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
   auto flags = std::make_shared<SweepFlags>();
   CLI::App* command = app.add_subcommand(
       "sweep", "Find the near-duplicate pairs and groups of a corpus; say what to keep and drop");
-  command->add_option("inputs", flags->inputs,
-                      "directories, files (text or JSON Lines, plain, gzip or zstd), or - for "
-                      "standard input");
+  AddInputsArgument(command, &flags->inputs);
   command->add_option("--index", flags->index,
                       "sweep the documents of this index file instead of inputs (the corpus is "
                       "not re-read)");
