@@ -1,6 +1,7 @@
 // The one-shot pipeline end to end through the library: the exhaustive mode
 // against the brute-force oracle, LSH recall against the exhaustive mode, and
-// thread-count independence.
+// thread-count independence, the lean form (band keys only, the documents of
+// candidate pairs read again) against keeping every set.
 #include "kindred/sweep.h"
 
 #include <catch2/catch.hpp>
@@ -8,6 +9,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "kindred/records.h"
+#include "kindred/reload.h"
 #include "kindred/shingles.h"
 #include "testlib/oracle.h"
 #include "testlib/similar_sets.h"
@@ -175,6 +177,100 @@ TEST_CASE("Empty documents are never anyone's duplicate", "[sweep]") {
     CHECK(result.corpus.id(result.pairs[0].a) == "a");
     CHECK(result.corpus.id(result.pairs[0].b) == "b");
     CHECK(result.pairs[0].jaccard == 1.0);
+  }
+}
+
+// Records of a sweep: pairs (with exact and estimated similarity) and groups.
+std::string RecordsOf(const SweepResult& result) {
+  std::string records;
+  WritePairRecords(RecordFormat::kJsonLines, result.pairs, result.corpus.ids(), &records);
+  WriteGroupRecords(RecordFormat::kJsonLines, result.groups, result.corpus.ids(),
+                    KeepPolicy::kFirst, &records);
+  return records;
+}
+
+TEST_CASE("A lean sweep gives the records of one that keeps every set", "[sweep]") {
+  testing::TempDir dir;
+  const std::string jsonl = dir.Write("corpus.jsonl", PlantedCorpus(4, 200, 250));
+  // The same kind of corpus as a tree of text files, with blank lines
+  // between JSON lines in the other file: ordinals must line up.
+  std::string spaced;
+  for (char c : PlantedCorpus(5, 80, 60)) {
+    spaced.push_back(c);
+    if (c == '\n') spaced += "\n  \n";
+  }
+  const std::string spaced_path = dir.Write("spaced.jsonl", spaced);
+  SplitMix64 random(6);
+  for (int f = 0; f < 60; ++f) {
+    std::string text;
+    for (int w = 0; w < 40; ++w) absl::StrAppend(&text, "w", random.Between(0, 60), " ");
+    dir.Write(absl::StrCat("tree/", f % 7, "/doc", f, ".txt"), text);
+    if (f % 3 == 0) dir.Write(absl::StrCat("tree/", f % 7, "/copy", f, ".txt"), text + "end");
+  }
+  for (const std::vector<std::string>& inputs :
+       std::vector<std::vector<std::string>>{{jsonl}, {dir.File("tree"), spaced_path}}) {
+    for (int threads : {1, 3}) {
+      SweepOptions options;
+      options.sign.threads = threads;
+      options.sign.batch_documents = 29;
+      auto lean_reader = CorpusReader::Open(inputs, InputOptions{});
+      REQUIRE(lean_reader.ok());
+      auto lean = RunSweep(**lean_reader, options);
+      REQUIRE(lean.ok());
+      CHECK(lean->corpus.lean());
+      options.keep_sets = true;
+      auto full_reader = CorpusReader::Open(inputs, InputOptions{});
+      REQUIRE(full_reader.ok());
+      auto full = RunSweep(**full_reader, options);
+      REQUIRE(full.ok());
+      CHECK(!full->corpus.lean());
+      REQUIRE(!full->pairs.empty());
+      CHECK(RecordsOf(*lean) == RecordsOf(*full));
+      CHECK(lean->stats.candidates.candidate_pairs == full->stats.candidates.candidate_pairs);
+      CHECK(lean->stats.sign.empty_documents == full->stats.sign.empty_documents);
+    }
+  }
+}
+
+TEST_CASE("A document changed between the two readings is an error", "[sweep]") {
+  testing::TempDir dir;
+  const std::string path = dir.Write("corpus.jsonl",
+                                     "{\"id\":\"a\",\"text\":\"one two three four five six\"}\n"
+                                     "{\"id\":\"b\",\"text\":\"one two three four five six\"}\n");
+  SignatureSettings settings;
+  auto reader = CorpusReader::Open({path}, InputOptions{});
+  REQUIRE(reader.ok());
+  SignedCorpus corpus = SignedCorpus::Lean(settings.perms, Banding{16, 8});
+  SignStats stats;
+  REQUIRE(SignCorpus(**reader, settings, SignOptions{}, &corpus, &stats).ok());
+  SECTION("unchanged: both attach") {
+    const std::vector<uint32_t> docs = {0, 1};
+    REQUIRE(ReloadShingles((*reader)->ResolvedInputs(), (*reader)->options(), settings, docs, 2,
+                           &corpus)
+                .ok());
+    CHECK(corpus.has_shingles(1));
+    CHECK(corpus.shingle_count(1) == 2);
+    CHECK(std::equal(corpus.signature(0).begin(), corpus.signature(0).end(),
+                     corpus.signature(1).begin()));
+  }
+  SECTION("text changed") {
+    dir.Write("corpus.jsonl",
+              "{\"id\":\"a\",\"text\":\"one two three four five six\"}\n"
+              "{\"id\":\"b\",\"text\":\"one two three four five seven\"}\n");
+    const std::vector<uint32_t> docs = {1};
+    const absl::Status status = ReloadShingles((*reader)->ResolvedInputs(), (*reader)->options(),
+                                               settings, docs, 1, &corpus);
+    REQUIRE(status.code() == absl::StatusCode::kInvalidArgument);
+    CHECK_THAT(std::string(status.message()),
+               Catch::Contains("corpus.jsonl:2") && Catch::Contains("\"b\" changed"));
+  }
+  SECTION("lines gone") {
+    dir.Write("corpus.jsonl", "{\"id\":\"a\",\"text\":\"one two three four five six\"}\n");
+    const std::vector<uint32_t> docs = {0, 1};
+    const absl::Status status = ReloadShingles((*reader)->ResolvedInputs(), (*reader)->options(),
+                                               settings, docs, 1, &corpus);
+    REQUIRE(status.code() == absl::StatusCode::kInvalidArgument);
+    CHECK_THAT(std::string(status.message()), Catch::Contains("1 documents could not be found"));
   }
 }
 

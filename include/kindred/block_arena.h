@@ -35,10 +35,17 @@ class BlockArena {
   // Copies `count` values into contiguous storage and returns where they
   // are; valid for the arena's lifetime. Requires count > 0 or returns null.
   const T* Append(const T* values, size_t count) {
+    T* out = Allocate(count);
+    if (count > 0) std::memcpy(out, values, count * sizeof(T));
+    return out;
+  }
+
+  // Room for `count` values, not initialized, contiguous; valid for the
+  // arena's lifetime. Requires count > 0 or returns null.
+  T* Allocate(size_t count) {
     if (count == 0) return nullptr;
     if (blocks_.empty() || free_ < count) NewBlock(count);
     T* out = next_;
-    std::memcpy(out, values, count * sizeof(T));
     next_ += count;
     free_ -= count;
     return out;

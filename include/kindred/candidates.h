@@ -46,7 +46,8 @@ struct CandidateStats {
 inline constexpr uint64_t kDefaultMaxBucket = 5000;
 
 // The distinct candidate pairs of `corpus` under `banding`, ascending.
-// Requires banding.bands * banding.rows <= corpus.perms() and max_bucket >= 2.
+// Requires banding.bands * banding.rows <= corpus.perms() and max_bucket >= 2;
+// for a lean corpus, banding == corpus.lean_banding().
 std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding banding, int threads,
                                            CandidateStats* stats,
                                            uint64_t max_bucket = kDefaultMaxBucket);

@@ -49,6 +49,7 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <functional>
 #include <memory>
 #include <string>
 #include <vector>
@@ -143,6 +144,13 @@ class CorpusReader {
   // Requires a non-empty input list.
   static absl::StatusOr<std::unique_ptr<CorpusReader>> Open(std::vector<std::string> inputs,
                                                             InputOptions options);
+  // Reads the inputs of an earlier reader again, from their read_path, with
+  // the same documents, ids and ordinals. `inputs` is that reader's
+  // ResolvedInputs() once it reached the end, `options` its options().
+  // Standard input is read from its copy (InputOptions::stdin_copy_path):
+  // FailedPrecondition when none was kept.
+  static absl::StatusOr<std::unique_ptr<CorpusReader>> Reopen(std::vector<ResolvedInput> inputs,
+                                                              InputOptions options);
   ~CorpusReader();
   CorpusReader(const CorpusReader&) = delete;
   CorpusReader& operator=(const CorpusReader&) = delete;
@@ -156,6 +164,12 @@ class CorpusReader {
   // Resolved format of input `input` (kAuto for standard input before it
   // was first read). Requires input < inputs().size().
   InputFormat FormatOf(uint32_t input) const;
+  const InputOptions& options() const;
+  // Makes ReadBatch skip every document whose ordinal `wanted` rejects
+  // without reading or parsing it (a JSON line is only found, a file of a
+  // tree not opened): its ordinal is used up but it is not returned, and
+  // errors it would have caused go unseen. Call before the first ReadBatch.
+  void SetFilter(std::function<bool(uint64_t ordinal)> wanted);
   const std::vector<std::string>& inputs() const;
   // Every input as resolved so far; complete once ReadBatch returned 0.
   std::vector<ResolvedInput> ResolvedInputs() const;

@@ -1,16 +1,24 @@
 // kindred: the signed form of a corpus.
 //
 // SignedCorpus holds, for every document in first-seen order, what the later
-// stages need: its id, its keep-policy facts, its MinHash signature and its
-// shingle set (for exact verification). Storage is flat (one arena for all
-// shingle sets, one for all signatures, each in large blocks that never
-// move), so a million documents cost a few allocations, not millions.
+// stages need: its id, its keep-policy facts, where it was read, and either
+//   - everything (the default): its MinHash signature and its shingle set,
+//     for candidate search, exact verification and index files; or
+//   - the lean form (Lean()): only the band keys of one banding and the size
+//     of the shingle set. A sweep needs sets and signatures only for the few
+//     documents that land in candidate pairs; those are attached later
+//     (AttachShingles, after reading the documents again: see reload.h).
+//     A million documents then cost about 200 bytes each instead of ~2 KB,
+//     and most of a sweep's time on fresh memory is saved.
+// Storage is flat (large blocks that never move), so a million documents
+// cost a few allocations, not millions.
 //
 // SignCorpus() fills one from a CorpusReader, shingling and signing on a pool
 // of threads while the next batch is read; the result does not depend on the
 // thread count.
 //
-// Thread-safety: const methods may be called concurrently; Add() may not.
+// Thread-safety: const methods may be called concurrently; Add() and
+// AttachShingles() may not.
 #ifndef KINDRED_SIGNED_CORPUS_H_
 #define KINDRED_SIGNED_CORPUS_H_
 
@@ -21,6 +29,7 @@
 
 #include "absl/status/status.h"
 #include "absl/types/span.h"
+#include "kindred/banding.h"
 #include "kindred/block_arena.h"
 #include "kindred/corpus.h"
 #include "kindred/groups.h"
@@ -36,30 +45,56 @@ struct DocumentOrigin {
 
 class SignedCorpus {
  public:
+  // Keeps signatures and shingle sets of every document.
   explicit SignedCorpus(uint32_t perms) : perms_(perms) {}
+  // Keeps the band keys of `banding` and set sizes only. Requires
+  // banding.slots() <= perms.
+  static SignedCorpus Lean(uint32_t perms, Banding banding);
 
   uint32_t perms() const { return perms_; }
   size_t size() const { return ids_.size(); }
+  bool lean() const { return banding_.bands != 0; }
+  // The banding whose keys a lean corpus keeps ({0, 0} when not lean).
+  Banding lean_banding() const { return banding_; }
 
-  // Appends one document; `signature.size()` must equal perms(). Copies the
-  // data (borrows nothing).
+  // Appends one document: `shingles` is its sorted set, `signature` its
+  // signature (size perms()). Copies what the corpus keeps (borrows nothing).
   void Add(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
            absl::Span<const uint64_t> shingles, absl::Span<const uint32_t> signature);
+
+  // Lean only: attaches the sorted set and the signature of document `doc`,
+  // which must not have them yet. Copies both.
+  void AttachShingles(uint32_t doc, absl::Span<const uint64_t> shingles,
+                      absl::Span<const uint32_t> signature);
 
   const std::string& id(size_t doc) const { return ids_[doc]; }
   absl::Span<const std::string> ids() const { return ids_; }
   const KeepFacts& facts(size_t doc) const { return facts_[doc]; }
   absl::Span<const KeepFacts> all_facts() const { return facts_; }
   const DocumentOrigin& origin(size_t doc) const { return origins_[doc]; }
+  // Size of the document's shingle set. In a lean corpus before
+  // AttachShingles, only whether it is zero is known (signing skips the
+  // sort that would count duplicates).
+  uint32_t shingle_count(size_t doc) const { return shingle_count_[doc]; }
+  // Whether shingles() and signature() may be called: always when not lean,
+  // after AttachShingles when lean.
+  bool has_shingles(size_t doc) const { return signature_data_[doc] != nullptr; }
+  // Requires has_shingles(doc).
   absl::Span<const uint64_t> shingles(size_t doc) const {
     return absl::MakeConstSpan(shingle_data_[doc], shingle_count_[doc]);
   }
+  // Requires has_shingles(doc).
   absl::Span<const uint32_t> signature(size_t doc) const {
     return absl::MakeConstSpan(signature_data_[doc], perms_);
+  }
+  // Lean only: the document's band keys (lean_banding().bands of them).
+  absl::Span<const uint64_t> band_keys(size_t doc) const {
+    return absl::MakeConstSpan(band_key_data_[doc], banding_.bands);
   }
 
  private:
   uint32_t perms_;
+  Banding banding_{0, 0};
   std::vector<std::string> ids_;
   std::vector<KeepFacts> facts_;
   std::vector<DocumentOrigin> origins_;
@@ -68,6 +103,8 @@ class SignedCorpus {
   std::vector<const uint32_t*> signature_data_;
   BlockArena<uint64_t> shingles_;
   BlockArena<uint32_t> signatures_;
+  std::vector<const uint64_t*> band_key_data_;  // lean only
+  BlockArena<uint64_t> band_keys_;
 };
 
 // What signing saw, beyond the documents themselves.

@@ -1,7 +1,7 @@
 // kindred: the one-shot pipeline behind `kindred sweep`.
 //
-//   reader -> SignCorpus -> FindCandidatePairs (or all pairs) -> VerifyPairs
-//          -> GroupPairs (keep policy)
+//   reader -> SignCorpus -> FindCandidatePairs (or all pairs)
+//          -> [ReloadShingles] -> VerifyPairs -> GroupPairs (keep policy)
 //
 // Every reported pair is confirmed by the exact measure on the shingle sets.
 // Results are identical for any thread count and from run to run.
@@ -48,6 +48,12 @@ struct SweepOptions {
   bool exhaustive = false;
   uint64_t max_bucket = kDefaultMaxBucket;  // see candidates.h
   SignOptions sign;                         // threads, batch sizes, progress
+  // Keep every document's shingle set and signature in the result. Off, an
+  // LSH sweep keeps a lean corpus (band keys only; see signed_corpus.h) and
+  // reads the documents of candidate pairs a second time to verify them,
+  // when every input can be read again (standard input only through its
+  // copy, InputOptions::stdin_copy_path).
+  bool keep_sets = false;
 };
 
 struct SweepStats {
@@ -62,14 +68,17 @@ struct SweepStats {
 
 struct SweepResult {
   explicit SweepResult(uint32_t perms) : corpus(perms) {}
+  // Lean unless kept whole (see SweepOptions::keep_sets): then only the
+  // documents of candidate pairs have shingles() and signature().
   SignedCorpus corpus;
   std::vector<ScoredPair> pairs;  // ascending (a, b)
   std::vector<Group> groups;      // ordered by smallest member
   SweepStats stats;
 };
 
-// Runs the whole pipeline over `reader`. Errors: the reader's, a duplicate
-// id, invalid settings.
+// Runs the whole pipeline over `reader`, which must not have been read yet.
+// Errors: the reader's (on either reading), a duplicate id, invalid
+// settings, a document changed between the two readings.
 absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& options);
 
 // The pairs and groups of an already signed corpus (used by RunSweep and by

@@ -52,7 +52,7 @@ SweepOutputs FormatOutputs(const SweepResult& result, RecordFormat format, KeepP
   SweepOutputs outputs{format, {}, {}, {}};
   const auto ids = result.corpus.ids();
   std::vector<uint8_t> empty(result.corpus.size());
-  for (size_t doc = 0; doc < empty.size(); ++doc) empty[doc] = result.corpus.shingles(doc).empty();
+  for (size_t doc = 0; doc < empty.size(); ++doc) empty[doc] = result.corpus.shingle_count(doc) == 0;
   WritePairRecords(format, result.pairs, ids, &outputs.pairs);
   WriteGroupRecords(format, result.groups, ids, keep, &outputs.groups);
   WriteDecisionRecords(format, result.groups, result.pairs, ids, empty, keep, &outputs.decisions);
@@ -213,7 +213,7 @@ int RunIndexSweep(const SweepFlags& flags) {
   if (!result.ok()) return Fail(result.status());
   result->stats.sign.documents = result->corpus.size();
   for (size_t doc = 0; doc < result->corpus.size(); ++doc) {
-    result->stats.sign.empty_documents += result->corpus.shingles(doc).empty();
+    result->stats.sign.empty_documents += result->corpus.shingle_count(doc) == 0;
   }
   const SweepOutputs outputs = FormatOutputs(*result, *format, *keep);
   if (absl::Status status = WriteOutputs(flags, outputs); !status.ok()) {
@@ -254,9 +254,10 @@ int RunSweepCommand(const SweepFlags& flags) {
   options.max_bucket = flags.max_bucket;
   options.sign.threads = ThreadCount(flags.general);
 
-  // Standard input cannot be read twice: keep a copy when the kept corpus
-  // will need a second pass, in a private new directory (mkdtemp) so that no
-  // one can plant a link at its name.
+  // Standard input cannot be read twice: keep a copy when verification (an
+  // LSH sweep reads the documents of candidate pairs again) or the kept
+  // corpus will need a second pass, in a private new directory (mkdtemp) so
+  // that no one can plant a link at its name.
   struct RemoveCopy {
     std::string dir;
     ~RemoveCopy() {
@@ -265,7 +266,7 @@ int RunSweepCommand(const SweepFlags& flags) {
       rmdir(dir.c_str());
     }
   } remove_copy;
-  if (WantsKept(flags) && ReadsStdin(flags)) {
+  if ((WantsKept(flags) || !options.exhaustive) && ReadsStdin(flags)) {
     absl::StatusOr<std::string> dir = MakePrivateTempDir();
     if (!dir.ok()) return Fail(kExitOutput, dir.status());
     remove_copy.dir = *dir;

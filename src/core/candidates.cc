@@ -54,17 +54,27 @@ std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding b
                                            CandidateStats* stats, uint64_t max_bucket) {
   const size_t n = corpus.size();
   const uint32_t bands = banding.bands;
-  // keys[doc * bands + band]; documents with no key for a band are skipped.
-  std::vector<uint64_t> keys(n * bands);
-  std::vector<uint8_t> has_keys(n);
-  ParallelFor(n, threads, [&](size_t begin, size_t end, int) {
-    for (size_t doc = begin; doc < end; ++doc) {
-      has_keys[doc] = !corpus.shingles(doc).empty();
-      if (has_keys[doc]) {
-        BandKeys(corpus.signature(doc), banding, absl::MakeSpan(&keys[doc * bands], bands));
+  // The band keys of each document: a lean corpus keeps them, otherwise
+  // they are computed here into `computed` (doc * bands + band). Documents
+  // with no shingles have no keys (all kNoBandKey).
+  std::vector<const uint64_t*> keys(n);
+  std::vector<uint64_t> computed;
+  if (corpus.lean()) {
+    for (size_t doc = 0; doc < n; ++doc) keys[doc] = corpus.band_keys(doc).data();
+  } else {
+    computed.resize(n * bands);
+    ParallelFor(n, threads, [&](size_t begin, size_t end, int) {
+      for (size_t doc = begin; doc < end; ++doc) {
+        const absl::Span<uint64_t> out(&computed[doc * bands], bands);
+        if (corpus.shingle_count(doc) == 0) {
+          std::fill(out.begin(), out.end(), kNoBandKey);
+        } else {
+          BandKeys(corpus.signature(doc), banding, out);
+        }
+        keys[doc] = out.data();
       }
-    }
-  });
+    });
+  }
   std::vector<std::vector<PackedPair>> band_pairs(bands);
   std::vector<BandStats> band_stats(bands);
   ParallelFor(bands, threads, [&](size_t begin, size_t end, int) {
@@ -72,8 +82,8 @@ std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding b
     for (size_t band = begin; band < end; ++band) {
       entries.clear();
       for (size_t doc = 0; doc < n; ++doc) {
-        const uint64_t key = keys[doc * bands + band];
-        if (has_keys[doc] && key != kNoBandKey) {
+        const uint64_t key = keys[doc][band];
+        if (key != kNoBandKey) {
           entries.push_back({key, static_cast<uint32_t>(doc)});
         }
       }

@@ -1,5 +1,6 @@
 #include "kindred/signed_corpus.h"
 
+#include <algorithm>
 #include <future>
 #include <memory>
 
@@ -12,14 +13,40 @@
 
 namespace kindred {
 
+SignedCorpus SignedCorpus::Lean(uint32_t perms, Banding banding) {
+  SignedCorpus corpus(perms);
+  corpus.banding_ = banding;
+  return corpus;
+}
+
 void SignedCorpus::Add(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
                        absl::Span<const uint64_t> shingles, absl::Span<const uint32_t> signature) {
   ids_.push_back(std::move(id));
   facts_.push_back(facts);
   origins_.push_back(origin);
-  shingle_data_.push_back(shingles_.Append(shingles.data(), shingles.size()));
   shingle_count_.push_back(static_cast<uint32_t>(shingles.size()));
+  if (lean()) {
+    uint64_t* keys = band_keys_.Allocate(banding_.bands);
+    const absl::Span<uint64_t> out(keys, banding_.bands);
+    if (shingles.empty()) {
+      std::fill(out.begin(), out.end(), kNoBandKey);
+    } else {
+      BandKeys(signature, banding_, out);
+    }
+    band_key_data_.push_back(keys);
+    shingle_data_.push_back(nullptr);
+    signature_data_.push_back(nullptr);
+    return;
+  }
+  shingle_data_.push_back(shingles_.Append(shingles.data(), shingles.size()));
   signature_data_.push_back(signatures_.Append(signature.data(), signature.size()));
+}
+
+void SignedCorpus::AttachShingles(uint32_t doc, absl::Span<const uint64_t> shingles,
+                                  absl::Span<const uint32_t> signature) {
+  shingle_data_[doc] = shingles_.Append(shingles.data(), shingles.size());
+  shingle_count_[doc] = static_cast<uint32_t>(shingles.size());
+  signature_data_[doc] = signatures_.Append(signature.data(), signature.size());
 }
 
 namespace {
@@ -80,6 +107,7 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
   }
   const Signer signer(settings);
   const uint32_t perms = settings.perms;
+  const bool lean = out->lean();
   // Ids seen so far, to reject repeats with both places named.
   absl::flat_hash_set<uint32_t, IdHash, IdEq> seen(0, IdHash{out}, IdEq{out});
 
@@ -99,8 +127,13 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
     results.errors.assign(n, absl::OkStatus());
     ParallelFor(n, threads, [&](size_t begin, size_t end, int worker) {
       for (size_t i = begin; i < end; ++i) {
+        // A lean corpus keeps no sets, and the signature of the unsorted
+        // bag is that of the set: skip the sort.
         results.errors[i] =
-            shinglers[worker]->Shingle(batch[i].text, &results.sets[i], &results.text_stats[i]);
+            lean ? shinglers[worker]->ShingleBag(batch[i].text, &results.sets[i],
+                                                 &results.text_stats[i])
+                 : shinglers[worker]->Shingle(batch[i].text, &results.sets[i],
+                                              &results.text_stats[i]);
         signer.Sign(results.sets[i], absl::MakeSpan(&results.signatures[i * perms], perms));
       }
     });

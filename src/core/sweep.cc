@@ -4,6 +4,7 @@
 #include <chrono>
 
 #include "kindred/parallel.h"
+#include "kindred/reload.h"
 #include "kindred/signer.h"
 #include "kindred/verify.h"
 
@@ -95,6 +96,38 @@ std::vector<ScoredPair> ExhaustivePairs(const SignedCorpus& corpus, const MatchS
   return Concatenate(parts);
 }
 
+namespace {
+
+Banding BandingFor(const SweepOptions& options) {
+  return options.match.bands != 0 ? Banding{options.match.bands, options.match.rows}
+                                  : ChooseBanding(options.match.threshold, options.signature.perms);
+}
+
+// Groups result->pairs and fills the counts of result->stats.
+void GroupAndCount(const SignedCorpus& corpus, const SweepOptions& options, SweepResult* result) {
+  result->groups = GroupPairs(result->pairs, corpus.all_facts(), options.keep);
+  SweepStats& stats = result->stats;
+  stats.confirmed_pairs = result->pairs.size();
+  stats.groups = result->groups.size();
+  stats.drops = 0;
+  for (const Group& group : result->groups) stats.drops += group.members.size() - 1;
+}
+
+// The documents that appear in `pairs`, ascending.
+std::vector<uint32_t> DocumentsOf(absl::Span<const PackedPair> pairs) {
+  std::vector<uint32_t> docs;
+  docs.reserve(pairs.size());
+  for (PackedPair pair : pairs) {
+    docs.push_back(PairFirst(pair));
+    docs.push_back(PairSecond(pair));
+  }
+  std::sort(docs.begin(), docs.end());
+  docs.erase(std::unique(docs.begin(), docs.end()), docs.end());
+  return docs;
+}
+
+}  // namespace
+
 void MatchCorpus(const SignedCorpus& corpus, const SweepOptions& options, SweepResult* result) {
   const auto start = std::chrono::steady_clock::now();
   const int threads = std::max(1, options.sign.threads);
@@ -102,18 +135,12 @@ void MatchCorpus(const SignedCorpus& corpus, const SweepOptions& options, SweepR
   if (options.exhaustive) {
     result->pairs = ExhaustivePairs(corpus, options.match, threads);
   } else {
-    stats.banding = options.match.bands != 0
-                        ? Banding{options.match.bands, options.match.rows}
-                        : ChooseBanding(options.match.threshold, corpus.perms());
+    stats.banding = BandingFor(options);
     const std::vector<PackedPair> candidates =
         FindCandidatePairs(corpus, stats.banding, threads, &stats.candidates, options.max_bucket);
     result->pairs = VerifyPairs(corpus, candidates, options.match, threads);
   }
-  result->groups = GroupPairs(result->pairs, corpus.all_facts(), options.keep);
-  stats.confirmed_pairs = result->pairs.size();
-  stats.groups = result->groups.size();
-  stats.drops = 0;
-  for (const Group& group : result->groups) stats.drops += group.members.size() - 1;
+  GroupAndCount(corpus, options, result);
   stats.match_seconds = SecondsSince(start);
 }
 
@@ -122,7 +149,13 @@ absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& o
   if (absl::Status status = options.match.Validate(options.signature); !status.ok()) {
     return status;
   }
+  const std::vector<ResolvedInput> inputs = reader.ResolvedInputs();
+  const bool lean = !options.exhaustive && !options.keep_sets &&
+                    std::all_of(inputs.begin(), inputs.end(), [](const ResolvedInput& input) {
+                      return !input.is_stdin || !input.read_path.empty();
+                    });
   SweepResult result(options.signature.perms);
+  if (lean) result.corpus = SignedCorpus::Lean(options.signature.perms, BandingFor(options));
   const auto start = std::chrono::steady_clock::now();
   if (absl::Status status =
           SignCorpus(reader, options.signature, options.sign, &result.corpus, &result.stats.sign);
@@ -130,7 +163,25 @@ absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& o
     return status;
   }
   result.stats.sign_seconds = SecondsSince(start);
-  MatchCorpus(result.corpus, options, &result);
+  if (!lean) {
+    MatchCorpus(result.corpus, options, &result);
+    return result;
+  }
+  const auto match_start = std::chrono::steady_clock::now();
+  const int threads = std::max(1, options.sign.threads);
+  SweepStats& stats = result.stats;
+  stats.banding = result.corpus.lean_banding();
+  const std::vector<PackedPair> candidates = FindCandidatePairs(
+      result.corpus, stats.banding, threads, &stats.candidates, options.max_bucket);
+  if (absl::Status status =
+          ReloadShingles(reader.ResolvedInputs(), reader.options(), options.signature,
+                         DocumentsOf(candidates), threads, &result.corpus);
+      !status.ok()) {
+    return status;
+  }
+  result.pairs = VerifyPairs(result.corpus, candidates, options.match, threads);
+  GroupAndCount(result.corpus, options, &result);
+  stats.match_seconds = SecondsSince(match_start);
   return result;
 }
 

@@ -82,9 +82,22 @@ class CorpusReader::Impl {
   InputOptions options_;
   std::vector<ResolvedInput> resolved_;
   uint64_t ordinal_ = 0;
+  bool reopened_ = false;  // read from read_path (see Reopen)
+  std::function<bool(uint64_t)> wanted_;
 
  private:
   absl::StatusOr<bool> Next(Document* doc);
+  // False when the filter rejects the next document; its ordinal is then
+  // used up.
+  bool TakeNext() {
+    if (!wanted_ || wanted_(ordinal_)) return true;
+    ++ordinal_;
+    return false;
+  }
+  // Where input `input` is read from.
+  const std::string& PathOf(const ResolvedInput& input) const {
+    return reopened_ ? input.read_path : input.name;
+  }
   absl::StatusOr<bool> NextLineDocument(Document* doc);
   absl::StatusOr<bool> NextTreeDocument(Document* doc);
   absl::StatusOr<bool> StartInput(Document* doc);
@@ -135,7 +148,7 @@ absl::StatusOr<bool> CorpusReader::Impl::NextLineDocument(Document* doc) {
   for (;;) {
     absl::StatusOr<bool> more = lines_->NextLine(&line, &terminated);
     if (!more.ok() || !*more) return more;
-    if (!io::IsBlankLine(line)) break;
+    if (!io::IsBlankLine(line) && TakeNext()) break;
   }
   const uint64_t number = lines_->line_number();
   std::string where = absl::StrCat(io::DisplayName(lines_path_), ":", number);
@@ -150,13 +163,15 @@ absl::StatusOr<bool> CorpusReader::Impl::NextLineDocument(Document* doc) {
 
 absl::StatusOr<bool> CorpusReader::Impl::NextTreeDocument(Document* doc) {
   std::string relative, full;
-  absl::StatusOr<bool> more = tree_->Next(&relative, &full);
-  if (!more.ok() || !*more) return more;
-  if (resolved_[current_].format == InputFormat::kJsonLines) {
-    absl::Status opened = OpenLines(full, full);
-    if (!opened.ok()) return opened;
-    return false;  // the caller reads the lines
-  }
+  do {
+    absl::StatusOr<bool> more = tree_->Next(&relative, &full);
+    if (!more.ok() || !*more) return more;
+    if (resolved_[current_].format == InputFormat::kJsonLines) {
+      absl::Status opened = OpenLines(full, full);
+      if (!opened.ok()) return opened;
+      return false;  // the caller reads the lines
+    }
+  } while (!TakeNext());
   auto input = OpenBuffered(full);
   if (!input.ok()) return input.status();
   absl::Status read = ReadTextDocument(input->get(), doc);
@@ -175,17 +190,25 @@ absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
     tree_.emplace(input.name);
     return false;
   }
-  if (input.format == InputFormat::kJsonLines && !input.is_stdin) {
-    absl::Status opened = OpenLines(input.name, input.name);
+  if (input.format == InputFormat::kJsonLines && (!input.is_stdin || reopened_)) {
+    absl::Status opened = OpenLines(PathOf(input), input.name);
     if (!opened.ok()) return opened;
     return false;
   }
-  auto opened = OpenBuffered(input.name);
+  if (input.format == InputFormat::kText && !TakeNext()) {
+    ++current_;
+    return false;
+  }
+  auto opened = OpenBuffered(PathOf(input));
   if (!opened.ok()) return opened.status();
   if (input.format == InputFormat::kAuto) {
     absl::StatusOr<int> first = (*opened)->PeekFirstNonBlank();
     if (!first.ok()) return first.status();
     input.format = *first == '{' ? InputFormat::kJsonLines : InputFormat::kText;
+    if (input.format == InputFormat::kText && !TakeNext()) {
+      ++current_;
+      return false;
+    }
   }
   if (input.format == InputFormat::kJsonLines) {
     lines_ = std::move(*opened);
@@ -265,6 +288,21 @@ absl::StatusOr<std::unique_ptr<CorpusReader>> CorpusReader::Open(std::vector<std
   return std::unique_ptr<CorpusReader>(new CorpusReader(std::move(impl)));
 }
 
+absl::StatusOr<std::unique_ptr<CorpusReader>> CorpusReader::Reopen(
+    std::vector<ResolvedInput> inputs, InputOptions options) {
+  std::vector<std::string> names;
+  for (const ResolvedInput& input : inputs) {
+    if (input.is_stdin && input.read_path.empty()) {
+      return absl::FailedPreconditionError(
+          "standard input cannot be read a second time: no copy of it was kept");
+    }
+    names.push_back(input.name);
+  }
+  auto impl = std::make_unique<Impl>(std::move(names), std::move(options), std::move(inputs));
+  impl->reopened_ = true;
+  return std::unique_ptr<CorpusReader>(new CorpusReader(std::move(impl)));
+}
+
 CorpusReader::CorpusReader(std::unique_ptr<Impl> impl) : impl_(std::move(impl)) {}
 CorpusReader::~CorpusReader() = default;
 
@@ -274,6 +312,10 @@ absl::StatusOr<size_t> CorpusReader::ReadBatch(std::vector<Document>* batch, siz
 }
 
 InputFormat CorpusReader::FormatOf(uint32_t input) const { return impl_->resolved_[input].format; }
+const InputOptions& CorpusReader::options() const { return impl_->options_; }
+void CorpusReader::SetFilter(std::function<bool(uint64_t ordinal)> wanted) {
+  impl_->wanted_ = std::move(wanted);
+}
 const std::vector<std::string>& CorpusReader::inputs() const { return impl_->inputs_; }
 std::vector<ResolvedInput> CorpusReader::ResolvedInputs() const { return impl_->resolved_; }
 uint64_t CorpusReader::documents_read() const { return impl_->ordinal_; }
