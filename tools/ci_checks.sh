@@ -1,5 +1,6 @@
 #!/usr/bin/env bash
-# The CI steps beside the normal Release build and its tests:
+# The CI steps beside the normal Release build and its tests (the README's
+# test command runs them after ctest):
 #   1. the whole test suite built with AddressSanitizer and
 #      UndefinedBehaviorSanitizer (build-asan/, any report fails the test);
 #   2. the libFuzzer targets of tests/fuzz built with clang (build-fuzz/),
@@ -7,11 +8,11 @@
 #      any crash, sanitizer report, leak, timeout or broken property fails.
 # Prints a summary and exits non-zero when a step failed.
 #
-#   tools/ci_checks.sh                      # both steps, 30 s per fuzz target
+#   tools/ci_checks.sh                      # both steps, 60 s per fuzz target
 #   KINDRED_FUZZ_SECONDS=300 tools/ci_checks.sh fuzz
 #   tools/ci_checks.sh asan
 #
-# Environment: KINDRED_FUZZ_SECONDS (default 30) per target, KINDRED_FUZZ_SEED
+# Environment: KINDRED_FUZZ_SECONDS (default 60) per target, KINDRED_FUZZ_SEED
 # (default 1), KINDRED_JOBS (default: all cores). A finding is saved as
 # build-fuzz/findings/<target>-crash-<sha1>; once the bug is fixed, commit it
 # under tests/fuzz/regressions/<target>/ so every build replays it.
@@ -21,7 +22,7 @@ cd "$(dirname "$0")/.." || exit 2
 steps=("$@")
 ((${#steps[@]} > 0)) || steps=(asan fuzz)
 jobs=${KINDRED_JOBS:-$(nproc)}
-fuzz_seconds=${KINDRED_FUZZ_SECONDS:-30}
+fuzz_seconds=${KINDRED_FUZZ_SECONDS:-60}
 fuzz_seed=${KINDRED_FUZZ_SEED:-1}
 summary=()
 failed=0
