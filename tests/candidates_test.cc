@@ -16,10 +16,12 @@ using testing::SplitMix64;
 
 // A corpus of `n` documents: clusters of random sets with shared cores, so
 // that many pairs share some bands and many share none.
-SignedCorpus MakeCorpus(size_t n, uint64_t seed) {
+// `lean`: keep only the band keys of `lean` (see SignedCorpus::Lean).
+SignedCorpus MakeCorpus(size_t n, uint64_t seed, Banding lean = {0, 0}) {
   SignatureSettings settings;
   const Signer signer(settings);
-  SignedCorpus corpus(settings.perms);
+  SignedCorpus corpus =
+      lean.bands != 0 ? SignedCorpus::Lean(settings.perms, lean) : SignedCorpus(settings.perms);
   SplitMix64 random(seed);
   std::vector<uint64_t> core;
   std::vector<uint32_t> signature(settings.perms);
@@ -39,7 +41,8 @@ SignedCorpus MakeCorpus(size_t n, uint64_t seed) {
 }
 
 TEST_CASE("Candidates are exactly the pairs sharing a band key", "[candidates]") {
-  const SignedCorpus corpus = MakeCorpus(400, 5);
+  // Over 1024 entries per band: the partitioned sort, not only std::sort.
+  const SignedCorpus corpus = MakeCorpus(3000, 5);
   const Banding banding{16, 8};
   std::vector<std::vector<uint64_t>> keys(corpus.size(), std::vector<uint64_t>(banding.bands));
   for (size_t doc = 0; doc < corpus.size(); ++doc) {
@@ -63,6 +66,10 @@ TEST_CASE("Candidates are exactly the pairs sharing a band key", "[candidates]")
     CHECK(stats.candidate_pairs == expected.size());
     CHECK(stats.oversized_buckets == 0);
   }
+  // A lean corpus of the same documents keeps the keys and gives the same.
+  const SignedCorpus lean = MakeCorpus(3000, 5, banding);
+  CandidateStats stats;
+  CHECK(FindCandidatePairs(lean, banding, 2, &stats) == expected);
 }
 
 TEST_CASE("Crowded buckets pair every member with the first only", "[candidates]") {

@@ -135,26 +135,29 @@ void Signer::SignClassic(absl::Span<const uint64_t> shingles, absl::Span<uint32_
 void Signer::SignOnePermutation(absl::Span<const uint64_t> shingles,
                                 absl::Span<uint32_t> out) const {
   uint32_t* bins = out.data();
+  BinBitmap filled{};
   for (const uint64_t shingle : shingles) {
     const uint64_t hash = Mix64(shingle ^ value_seed_);
     const uint32_t bin = ReduceHigh(hash, perms_);
     const uint32_t value = std::min(static_cast<uint32_t>(hash), kLargestValue);
     bins[bin] = std::min(bins[bin], value);
+    filled[bin >> 6] |= uint64_t{1} << (bin & 63);
   }
-  BinBitmap filled{};
+  const uint32_t words = (perms_ + 63) / 64;
   uint32_t filled_count = 0;
-  for (uint32_t bin = 0; bin < perms_; ++bin) {
-    if (bins[bin] != kEmptySlot) {
-      filled[bin >> 6] |= uint64_t{1} << (bin & 63);
-      ++filled_count;
-    }
-  }
+  for (uint32_t word = 0; word < words; ++word) filled_count += std::popcount(filled[word]);
   if (filled_count == perms_) return;
   // Each empty bin copies the first filled bin of its own probe sequence
   // (the same sequence for every document, so copies stay comparable).
   // Only bins filled above are read, so the order of filling does not matter.
-  for (uint32_t bin = 0; bin < perms_; ++bin) {
-    if (!Has(filled, bin)) bins[bin] = bins[SourceBin(bin, filled)];
+  for (uint32_t word = 0; word < words; ++word) {
+    uint64_t empty = ~filled[word];
+    if (word + 1 == words && perms_ % 64 != 0) empty &= (uint64_t{1} << (perms_ % 64)) - 1;
+    while (empty != 0) {
+      const uint32_t bin = word * 64 + static_cast<uint32_t>(std::countr_zero(empty));
+      empty &= empty - 1;
+      bins[bin] = bins[SourceBin(bin, filled)];
+    }
   }
 }
 
