@@ -175,6 +175,13 @@ class CorpusReader {
   std::vector<ResolvedInput> ResolvedInputs() const;
   // Documents returned so far.
   uint64_t documents_read() const;
+  // Raw bytes read so far from the inputs' files (compressed bytes for
+  // compressed files), and the total size of the inputs when known (every
+  // input a regular file, not a tree or standard input), else 0: enough to
+  // say how far reading has come. raw_bytes_read() may be called from any
+  // thread while another reads.
+  uint64_t raw_bytes_read() const;
+  uint64_t raw_bytes_total() const;
 
  private:
   class Impl;

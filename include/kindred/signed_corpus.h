@@ -114,6 +114,10 @@ struct SignStats {
   uint64_t bytes = 0;            // text bytes read
   uint64_t invalid_utf8_documents = 0;
   uint64_t invalid_utf8_sequences = 0;
+  // How far reading has come: raw bytes read from the input files, and
+  // their total size when known (else 0). See CorpusReader.
+  uint64_t raw_bytes = 0;
+  uint64_t raw_bytes_total = 0;
 };
 
 struct SignOptions {

@@ -70,7 +70,7 @@ int RunBuild(const BuildFlags& flags) {
   sign.threads = ThreadCount(flags.general);
   Progress progress(flags.general.quiet);
   sign.progress = [&progress](const SignStats& stats) {
-    progress.Update(absl::StrFormat("signing: %d documents", stats.documents));
+    progress.Update(SigningProgress(stats, progress.Elapsed()));
   };
   SignedCorpus corpus(settings->signature.perms);
   SignStats stats;
@@ -84,6 +84,7 @@ int RunBuild(const BuildFlags& flags) {
                  flags.index.c_str(), static_cast<unsigned long long>(stats.documents),
                  static_cast<unsigned long long>(stats.empty_documents),
                  settings->signature.ToString().c_str(), settings->bands, settings->rows);
+    PrintThroughput(stats.documents, stats.bytes, progress.Elapsed());
   }
   return kExitOk;
 }

@@ -1,6 +1,9 @@
 #include "cli/output.h"
 
+#include <sys/resource.h>
 #include <unistd.h>
+
+#include <algorithm>
 
 #include <chrono>
 #include <cstdio>
@@ -8,6 +11,7 @@
 #include "absl/strings/ascii.h"
 #include "absl/strings/numbers.h"
 #include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
 #include "kindred/file_io.h"
 
 namespace kindred::cli {
@@ -73,7 +77,9 @@ double Now() {
 }
 }  // namespace
 
-Progress::Progress(bool quiet) : enabled_(!quiet && isatty(STDERR_FILENO)) {}
+Progress::Progress(bool quiet) : enabled_(!quiet && isatty(STDERR_FILENO)), start_(Now()) {}
+
+double Progress::Elapsed() const { return Now() - start_; }
 
 Progress::~Progress() { Clear(); }
 
@@ -92,6 +98,38 @@ void Progress::Clear() {
   std::fprintf(stderr, "\r\033[K");
   std::fflush(stderr);
   shown_ = false;
+}
+
+}  // namespace kindred::cli
+
+namespace kindred::cli {
+
+std::string SigningProgress(const SignStats& stats, double seconds) {
+  const double megabytes = static_cast<double>(stats.bytes) / 1e6;
+  std::string line = absl::StrFormat("signing: %d documents, %.1f MB", stats.documents, megabytes);
+  if (seconds <= 0.5) return line;
+  absl::StrAppendFormat(&line, ", %.1f MB/s", megabytes / seconds);
+  if (stats.raw_bytes_total > 0 && stats.raw_bytes > 0) {
+    const double done = std::min(
+        1.0, static_cast<double>(stats.raw_bytes) / static_cast<double>(stats.raw_bytes_total));
+    const auto left = static_cast<long long>(seconds * (1 - done) / done + 0.5);
+    absl::StrAppendFormat(&line, ", %.0f%%, about %d:%02d left", done * 100, left / 60, left % 60);
+  }
+  return line;
+}
+
+uint64_t PeakResidentBytes() {
+  struct rusage usage;
+  if (getrusage(RUSAGE_SELF, &usage) != 0) return 0;
+  return static_cast<uint64_t>(usage.ru_maxrss) * 1024;  // Linux reports KiB
+}
+
+void PrintThroughput(uint64_t documents, uint64_t bytes, double seconds) {
+  seconds = std::max(seconds, 1e-6);
+  std::fprintf(stderr,
+               "  throughput        %.1f MB/s, %.0f documents/s (%.2f s); peak memory %.0f MB\n",
+               static_cast<double>(bytes) / 1e6 / seconds, static_cast<double>(documents) / seconds,
+               seconds, static_cast<double>(PeakResidentBytes()) / 1e6);
 }
 
 }  // namespace kindred::cli

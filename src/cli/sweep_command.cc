@@ -280,8 +280,7 @@ int RunSweepCommand(const SweepFlags& flags) {
   }
   Progress progress(flags.general.quiet);
   options.sign.progress = [&progress](const SignStats& stats) {
-    progress.Update(absl::StrFormat("signing: %d documents, %.1f MB", stats.documents,
-                                    static_cast<double>(stats.bytes) / 1e6));
+    progress.Update(SigningProgress(stats, progress.Elapsed()));
   };
   if (flags.general.verbose) {
     options.sign.on_invalid_utf8 = [](const std::string& id, uint32_t invalid) {
@@ -305,7 +304,10 @@ int RunSweepCommand(const SweepFlags& flags) {
           kept.status());
     }
   }
-  if (!flags.general.quiet) PrintSummary(*result, options);
+  if (!flags.general.quiet) {
+    PrintSummary(*result, options);
+    PrintThroughput(result->stats.sign.documents, result->stats.sign.bytes, progress.Elapsed());
+  }
   if (flags.general.verbose) {
     std::fprintf(stderr, "  time              %.2f s signing, %.2f s matching\n",
                  result->stats.sign_seconds, result->stats.match_seconds);

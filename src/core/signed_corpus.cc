@@ -166,6 +166,8 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
                results.sets[i], absl::MakeConstSpan(&results.signatures[i * perms], perms));
       seen.insert(static_cast<uint32_t>(out->size() - 1));
     }
+    stats->raw_bytes = reader.raw_bytes_read();
+    stats->raw_bytes_total = reader.raw_bytes_total();
     if (options.progress) options.progress(*stats);
     count = pending.get();
     std::swap(batch, next_batch);

@@ -20,8 +20,15 @@ namespace {
 // (`prefix`, used to sniff the compression magic).
 class FdStream : public ByteStream {
  public:
-  FdStream(int fd, bool owned, std::string name, std::string prefix)
-      : fd_(fd), owned_(owned), name_(std::move(name)), prefix_(std::move(prefix)) {}
+  FdStream(int fd, bool owned, std::string name, std::string prefix,
+           std::atomic<uint64_t>* counter = nullptr)
+      : fd_(fd),
+        owned_(owned),
+        name_(std::move(name)),
+        prefix_(std::move(prefix)),
+        counter_(counter) {
+    if (counter_ != nullptr) counter_->fetch_add(prefix_.size(), std::memory_order_relaxed);
+  }
   ~FdStream() override {
     if (owned_) close(fd_);
   }
@@ -35,7 +42,10 @@ class FdStream : public ByteStream {
     }
     for (;;) {
       ssize_t n = read(fd_, dst, capacity);
-      if (n >= 0) return static_cast<size_t>(n);
+      if (n >= 0) {
+        if (counter_ != nullptr) counter_->fetch_add(n, std::memory_order_relaxed);
+        return static_cast<size_t>(n);
+      }
       if (errno != EINTR) return absl::ErrnoToStatus(errno, absl::StrCat(name_, ": read failed"));
     }
   }
@@ -46,6 +56,7 @@ class FdStream : public ByteStream {
   std::string name_;
   std::string prefix_;
   size_t prefix_used_ = 0;
+  std::atomic<uint64_t>* counter_;
 };
 
 // Feeds a decompressor: holds one chunk of compressed input and counts the
@@ -291,7 +302,7 @@ absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
   }
   const Compression detected = DetectCompression(*magic);
   if (compression != nullptr) *compression = detected;
-  std::unique_ptr<ByteStream> stream = std::make_unique<FdStream>(fd, !is_stdin, name, *magic);
+  std::unique_ptr<ByteStream> stream = std::make_unique<FdStream>(fd, !is_stdin, name, *magic, options.raw_bytes);
   if (detected != Compression::kNone) {
     if (detected == Compression::kGzip) {
       stream = std::make_unique<GzipStream>(std::move(stream), name);

@@ -5,6 +5,7 @@
 #ifndef KINDRED_IO_BYTE_STREAM_H_
 #define KINDRED_IO_BYTE_STREAM_H_
 
+#include <atomic>
 #include <cstddef>
 #include <cstdint>
 #include <memory>
@@ -40,6 +41,10 @@ struct DecodeOptions {
   // (created or truncated, mode 0600; a symbolic link there is an error,
   // never followed).
   std::string copy_path;
+  // When set, the count of raw bytes read from the file or standard input
+  // (compressed bytes for compressed input) is added here as reading goes,
+  // for progress reports. May be read from another thread.
+  std::atomic<uint64_t>* raw_bytes = nullptr;
 };
 
 // Opens `path` ("-" = standard input) and returns a stream of its decoded

@@ -1,6 +1,7 @@
 // CorpusReader: walks the inputs in order and turns them into documents.
 #include <sys/stat.h>
 
+#include <atomic>
 #include <cerrno>
 #include <optional>
 #include <utility>
@@ -83,6 +84,8 @@ class CorpusReader::Impl {
   std::vector<ResolvedInput> resolved_;
   uint64_t ordinal_ = 0;
   bool reopened_ = false;  // read from read_path (see Reopen)
+  std::atomic<uint64_t> raw_bytes_{0};
+  uint64_t raw_total_ = 0;
   std::function<bool(uint64_t)> wanted_;
 
  private:
@@ -118,6 +121,7 @@ absl::StatusOr<std::unique_ptr<io::BufferedInput>> CorpusReader::Impl::OpenBuffe
     const std::string& path) {
   io::DecodeOptions decode;
   decode.max_decompressed_bytes = options_.max_decompressed_bytes;
+  decode.raw_bytes = &raw_bytes_;
   if (path == "-") decode.copy_path = options_.stdin_copy_path;
   auto stream = io::OpenDecoded(path, decode);
   if (!stream.ok()) return stream.status();
@@ -284,7 +288,18 @@ absl::StatusOr<std::unique_ptr<CorpusReader>> CorpusReader::Open(std::vector<std
     if (!input.ok()) return input.status();
     resolved.push_back(std::move(*input));
   }
+  uint64_t total = 0;
+  for (const ResolvedInput& input : resolved) {
+    struct stat info;
+    if (input.is_stdin || input.is_directory || stat(input.name.c_str(), &info) != 0 ||
+        !S_ISREG(info.st_mode)) {
+      total = 0;
+      break;
+    }
+    total += static_cast<uint64_t>(info.st_size);
+  }
   auto impl = std::make_unique<Impl>(std::move(inputs), std::move(options), std::move(resolved));
+  impl->raw_total_ = total;
   return std::unique_ptr<CorpusReader>(new CorpusReader(std::move(impl)));
 }
 
@@ -319,5 +334,9 @@ void CorpusReader::SetFilter(std::function<bool(uint64_t ordinal)> wanted) {
 const std::vector<std::string>& CorpusReader::inputs() const { return impl_->inputs_; }
 std::vector<ResolvedInput> CorpusReader::ResolvedInputs() const { return impl_->resolved_; }
 uint64_t CorpusReader::documents_read() const { return impl_->ordinal_; }
+uint64_t CorpusReader::raw_bytes_read() const {
+  return impl_->raw_bytes_.load(std::memory_order_relaxed);
+}
+uint64_t CorpusReader::raw_bytes_total() const { return impl_->raw_total_; }
 
 }  // namespace kindred
