@@ -5,6 +5,7 @@
 #include "kindred/sweep.h"
 
 #include <catch2/catch.hpp>
+#include <filesystem>
 #include <set>
 
 #include "absl/strings/str_cat.h"
@@ -272,6 +273,46 @@ TEST_CASE("A document changed between the two readings is an error", "[sweep]") 
     REQUIRE(status.code() == absl::StatusCode::kInvalidArgument);
     CHECK_THAT(std::string(status.message()), Catch::Contains("1 documents could not be found"));
   }
+}
+
+TEST_CASE("Spilling under a tiny memory budget gives the same records", "[sweep]") {
+  testing::TempDir dir;
+  const std::string path = dir.Write("corpus.jsonl", PlantedCorpus(7, 1200, 900));
+  std::string unspilled;
+  for (int threads : {1, 3}) {
+    SweepOptions options;
+    options.sign.threads = threads;
+    options.sign.batch_documents = 64;
+    const SweepResult plain = Sweep(path, options);
+    REQUIRE(plain.stats.spill_runs == 0);
+    if (unspilled.empty()) unspilled = RecordsOf(plain);
+    CHECK(RecordsOf(plain) == unspilled);
+    options.memory = 16 << 10;  // 8 KiB of band keys: a run every other batch
+    options.scratch_dir = dir.path();
+    const SweepResult spilled = Sweep(path, options);
+    CHECK(spilled.stats.spill_runs >= 10);
+    CHECK(spilled.stats.spilled_bytes > 0);
+    CHECK(RecordsOf(spilled) == unspilled);
+    CHECK(spilled.stats.candidates.candidate_pairs == plain.stats.candidates.candidate_pairs);
+    CHECK(spilled.stats.candidates.largest_bucket == plain.stats.candidates.largest_bucket);
+  }
+  // The scratch file was unlinked at once: nothing is left behind.
+  CHECK(std::filesystem::directory_iterator(dir.path())->path().filename() == "corpus.jsonl");
+}
+
+TEST_CASE("A scratch directory that is missing fails the sweep cleanly", "[sweep]") {
+  testing::TempDir dir;
+  const std::string path = dir.Write("corpus.jsonl", PlantedCorpus(8, 300, 100));
+  SweepOptions options;
+  options.sign.batch_documents = 64;
+  options.memory = 16 << 10;
+  options.scratch_dir = dir.File("missing");
+  auto reader = CorpusReader::Open({path}, InputOptions{});
+  REQUIRE(reader.ok());
+  auto result = RunSweep(**reader, options);
+  REQUIRE(!result.ok());
+  CHECK(result.status().code() == absl::StatusCode::kAborted);
+  CHECK_THAT(std::string(result.status().message()), Catch::Contains("scratch directory"));
 }
 
 }  // namespace

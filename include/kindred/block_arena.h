@@ -33,33 +33,60 @@ class BlockArena {
   BlockArena& operator=(BlockArena&&) noexcept = default;
 
   // Copies `count` values into contiguous storage and returns where they
-  // are; valid for the arena's lifetime. Requires count > 0 or returns null.
+  // are; valid until Reset() or the arena's end. Requires count > 0 or
+  // returns null.
   const T* Append(const T* values, size_t count) {
     T* out = Allocate(count);
     if (count > 0) std::memcpy(out, values, count * sizeof(T));
     return out;
   }
 
-  // Room for `count` values, not initialized, contiguous; valid for the
-  // arena's lifetime. Requires count > 0 or returns null.
+  // Room for `count` values, not initialized, contiguous; valid until
+  // Reset() or the arena's end. Requires count > 0 or returns null.
   T* Allocate(size_t count) {
     if (count == 0) return nullptr;
-    if (blocks_.empty() || free_ < count) NewBlock(count);
+    if (blocks_.empty() || free_ < count) NextBlock(count);
     T* out = next_;
     next_ += count;
     free_ -= count;
+    used_ += count;
     return out;
+  }
+
+  // Forgets every value but keeps the blocks, to be filled again (memory
+  // already faulted in is reused).
+  void Reset() {
+    current_ = 0;
+    next_ = blocks_.empty() ? nullptr : blocks_[0].data.get();
+    free_ = blocks_.empty() ? 0 : blocks_[0].values;
+    used_ = 0;
   }
 
   // Bytes held by the arena's blocks.
   size_t bytes_reserved() const { return reserved_; }
+  // Bytes of the values appended since construction or Reset().
+  size_t bytes_used() const { return used_ * sizeof(T); }
 
  private:
   struct Free {
     void operator()(T* block) const { std::free(block); }
   };
+  struct Block {
+    std::unique_ptr<T, Free> data;
+    size_t values;
+  };
 
-  void NewBlock(size_t at_least) {
+  // Moves to the next kept block with room for `at_least` values, or
+  // allocates one.
+  void NextBlock(size_t at_least) {
+    while (!blocks_.empty() && current_ + 1 < blocks_.size()) {
+      ++current_;
+      if (blocks_[current_].values >= at_least) {
+        next_ = blocks_[current_].data.get();
+        free_ = blocks_[current_].values;
+        return;
+      }
+    }
     const size_t bytes =
         (std::max(kBlockBytes, at_least * sizeof(T)) + kAlignment - 1) / kAlignment * kAlignment;
     void* memory = std::aligned_alloc(kAlignment, bytes);
@@ -67,15 +94,18 @@ class BlockArena {
 #ifdef MADV_HUGEPAGE
     madvise(memory, bytes, MADV_HUGEPAGE);
 #endif
-    blocks_.emplace_back(static_cast<T*>(memory));
-    next_ = blocks_.back().get();
-    free_ = bytes / sizeof(T);
+    blocks_.push_back(Block{std::unique_ptr<T, Free>(static_cast<T*>(memory)), bytes / sizeof(T)});
+    current_ = blocks_.size() - 1;
+    next_ = blocks_.back().data.get();
+    free_ = blocks_.back().values;
     reserved_ += bytes;
   }
 
-  std::vector<std::unique_ptr<T, Free>> blocks_;
+  std::vector<Block> blocks_;
+  size_t current_ = 0;  // block being filled
   T* next_ = nullptr;
   size_t free_ = 0;
+  size_t used_ = 0;
   size_t reserved_ = 0;
 };
 

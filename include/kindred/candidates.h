@@ -13,6 +13,7 @@
 #include <cstdint>
 #include <vector>
 
+#include "absl/status/statusor.h"
 #include "kindred/banding.h"
 #include "kindred/signed_corpus.h"
 
@@ -47,10 +48,19 @@ inline constexpr uint64_t kDefaultMaxBucket = 5000;
 
 // The distinct candidate pairs of `corpus` under `banding`, ascending.
 // Requires banding.bands * banding.rows <= corpus.perms() and max_bucket >= 2;
-// for a lean corpus, banding == corpus.lean_banding().
+// for a lean corpus, banding == corpus.lean_banding() and no spill (see
+// FindSpilledCandidatePairs).
 std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding banding, int threads,
                                            CandidateStats* stats,
                                            uint64_t max_bucket = kDefaultMaxBucket);
+
+// The same for any corpus, including a lean one whose band keys were partly
+// spilled to disk (SignedCorpus::spill()): each band is then a merge of its
+// sorted runs and the keys in memory, and the result is identical to an
+// all-in-memory search. Errors: Aborted when the spill file cannot be read.
+absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(
+    const SignedCorpus& corpus, Banding banding, int threads, CandidateStats* stats,
+    uint64_t max_bucket = kDefaultMaxBucket);
 
 }  // namespace kindred
 

@@ -24,11 +24,13 @@
 
 #include <cstdint>
 #include <functional>
+#include <memory>
 #include <string>
 #include <vector>
 
 #include "absl/status/status.h"
 #include "absl/types/span.h"
+#include "kindred/band_spill.h"
 #include "kindred/banding.h"
 #include "kindred/block_arena.h"
 #include "kindred/corpus.h"
@@ -88,9 +90,29 @@ class SignedCorpus {
     return absl::MakeConstSpan(signature_data_[doc], perms_);
   }
   // Lean only: the document's band keys (lean_banding().bands of them).
+  // Requires doc >= first_resident().
   absl::Span<const uint64_t> band_keys(size_t doc) const {
     return absl::MakeConstSpan(band_key_data_[doc], banding_.bands);
   }
+  // Lean only: a 32-bit digest of the document's band keys (kept for every
+  // document, spilled or not), to check a document read again.
+  uint32_t band_key_digest(size_t doc) const { return band_key_digests_[doc]; }
+  static uint32_t BandKeyDigest(absl::Span<const uint64_t> keys);
+
+  // Lean only, spilling: once the band keys held in memory take more than
+  // `budget_bytes`, spill_due() says so and SpillBandKeys() moves them to
+  // sorted runs in a scratch file in `dir` (see band_spill.h), keeping the
+  // memory for the next documents.
+  void SetSpill(uint64_t budget_bytes, std::string dir);
+  bool spill_due() const {
+    return spill_budget_ > 0 && band_keys_.bytes_used() > spill_budget_;
+  }
+  // Errors: Aborted when the scratch file cannot be created or written.
+  absl::Status SpillBandKeys();
+  // The first document whose band keys are in memory (0 when none were
+  // spilled), and the spilled ones (null when none).
+  size_t first_resident() const { return first_resident_; }
+  const BandSpill* spill() const { return spill_.get(); }
 
  private:
   uint32_t perms_;
@@ -103,8 +125,13 @@ class SignedCorpus {
   std::vector<const uint32_t*> signature_data_;
   BlockArena<uint64_t> shingles_;
   BlockArena<uint32_t> signatures_;
-  std::vector<const uint64_t*> band_key_data_;  // lean only
+  std::vector<const uint64_t*> band_key_data_;  // lean only; null once spilled
+  std::vector<uint32_t> band_key_digests_;      // lean only
   BlockArena<uint64_t> band_keys_;
+  uint64_t spill_budget_ = 0;
+  std::string spill_dir_;
+  std::unique_ptr<BandSpill> spill_;
+  size_t first_resident_ = 0;
 };
 
 // What signing saw, beyond the documents themselves.

@@ -12,6 +12,7 @@
 
 #include <cstdint>
 #include <functional>
+#include <string>
 #include <vector>
 
 #include "absl/status/statusor.h"
@@ -54,6 +55,13 @@ struct SweepOptions {
   // when every input can be read again (standard input only through its
   // copy, InputOptions::stdin_copy_path).
   bool keep_sets = false;
+  // Memory budget in bytes (0: none). A lean sweep keeps its band keys in at
+  // most half of it and spills the rest as sorted runs to a scratch file in
+  // `scratch_dir` (see band_spill.h); the other half is for ids and
+  // per-document facts (about 100 bytes plus the id each) and the batch
+  // being signed. Results are the same with and without spilling.
+  uint64_t memory = 0;
+  std::string scratch_dir = "/tmp";
 };
 
 struct SweepStats {
@@ -63,6 +71,8 @@ struct SweepStats {
   uint64_t confirmed_pairs = 0;
   uint64_t groups = 0;
   uint64_t drops = 0;
+  uint64_t spilled_bytes = 0;  // band keys written to the scratch file
+  uint64_t spill_runs = 0;
   double sign_seconds = 0, match_seconds = 0;
 };
 

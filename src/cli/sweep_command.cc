@@ -35,6 +35,8 @@ struct SweepFlags {
   std::string keep = "first";
   bool exhaustive = false;
   uint64_t max_bucket = kDefaultMaxBucket;
+  std::string memory;
+  std::string scratch_dir;
   std::string output_dir;
   std::string print;
   std::string format = "jsonl";
@@ -106,6 +108,12 @@ void PrintSummary(const SweepResult& result, const SweepOptions& options) {
                    static_cast<unsigned long long>(options.max_bucket),
                    static_cast<unsigned long long>(stats.candidates.largest_bucket));
     }
+  }
+  if (stats.spill_runs > 0) {
+    std::fprintf(stderr, "  spilled           %.1f MB of band keys in %llu runs (--memory %s)\n",
+                 static_cast<double>(stats.spilled_bytes) / 1e6,
+                 static_cast<unsigned long long>(stats.spill_runs),
+                 absl::StrFormat("%.0fM", static_cast<double>(options.memory) / (1 << 20)).c_str());
   }
   std::fprintf(stderr, "  confirmed pairs   %llu (%s >= %g)\n",
                static_cast<unsigned long long>(stats.confirmed_pairs),
@@ -252,6 +260,19 @@ int RunSweepCommand(const SweepFlags& flags) {
   if (flags.max_bucket < 2)
     return Fail(kExitUsage, absl::InvalidArgumentError("--max-bucket must be at least 2"));
   options.max_bucket = flags.max_bucket;
+  if (!flags.memory.empty()) {
+    auto memory = ParseByteSize(flags.memory);
+    if (!memory.ok()) return Fail(kExitUsage, memory.status());
+    if (*memory < (uint64_t{1} << 20)) {
+      return Fail(kExitUsage, absl::InvalidArgumentError("--memory must be at least 1M"));
+    }
+    options.memory = *memory;
+  }
+  options.scratch_dir = flags.scratch_dir;
+  if (options.scratch_dir.empty()) {
+    const char* tmpdir = std::getenv("TMPDIR");
+    options.scratch_dir = tmpdir != nullptr && *tmpdir != '\0' ? tmpdir : "/tmp";
+  }
   options.sign.threads = ThreadCount(flags.general);
 
   // Standard input cannot be read twice: keep a copy when verification (an
@@ -290,7 +311,13 @@ int RunSweepCommand(const SweepFlags& flags) {
   }
   auto result = RunSweep(**reader, options);
   progress.Clear();
-  if (!result.ok()) return Fail(ExitCodeFor(result.status()), result.status());
+  if (!result.ok()) {
+    // Aborted: the scratch file could not be written or read.
+    return Fail(result.status().code() == absl::StatusCode::kAborted
+                    ? kExitOutput
+                    : ExitCodeFor(result.status()),
+                result.status());
+  }
 
   const SweepOutputs outputs = FormatOutputs(*result, *format, options.keep);
   if (absl::Status status = WriteOutputs(flags, outputs); !status.ok()) {
@@ -337,6 +364,16 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
                    "LSH buckets with more documents pair each member with the first only")
       ->default_str(std::to_string(kDefaultMaxBucket))
       ->group("Matching");
+  command
+      ->add_option("--memory", flags->memory,
+                   "memory budget, e.g. 4G: band keys beyond half of it are spilled to sorted "
+                   "runs in the scratch directory (same results; default: no budget)")
+      ->group("Resources");
+  command
+      ->add_option("--scratch-dir", flags->scratch_dir,
+                   "directory for spilled data (default: $TMPDIR, else /tmp); its files are "
+                   "removed at once and vanish when kindred exits")
+      ->group("Resources");
   command->add_option("--keep", flags->keep, "keeper of each group: first, longest or priority")
       ->default_str("first")
       ->group("Grouping");

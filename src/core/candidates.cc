@@ -1,20 +1,13 @@
 #include "kindred/candidates.h"
 
 #include <algorithm>
-#include <bit>
 
+#include "core/contract_internal.h"
+#include "kindred/band_spill.h"
 #include "kindred/parallel.h"
 
 namespace kindred {
 namespace {
-
-struct BucketEntry {
-  uint64_t key;
-  uint32_t doc;
-  bool operator<(const BucketEntry& other) const {
-    return key != other.key ? key < other.key : doc < other.doc;
-  }
-};
 
 struct BandStats {
   uint64_t entries = 0;
@@ -22,74 +15,77 @@ struct BandStats {
   uint64_t oversized = 0;
 };
 
-// Sorts entries by (key, doc). Keys are hashes, spread evenly, so one
-// counting pass on their top bits scatters the entries into partitions of a
-// few entries each, in key order; each partition is then sorted on its own.
-// About three times faster than one std::sort of the whole band; a crowded
-// partition (many equal keys) still costs only O(n log n).
-void SortEntries(std::vector<BucketEntry>& entries, std::vector<BucketEntry>& scratch,
-                 std::vector<uint32_t>& offsets) {
-  const size_t n = entries.size();
-  if (n < 1024) {
-    std::sort(entries.begin(), entries.end());
-    return;
-  }
-  const int bits = std::min(20, static_cast<int>(std::bit_width(n / 4)));
-  const int shift = 64 - bits;
-  offsets.assign((size_t{1} << bits) + 1, 0);
-  for (const BucketEntry& entry : entries) ++offsets[(entry.key >> shift) + 1];
-  for (size_t p = 1; p < offsets.size(); ++p) offsets[p] += offsets[p - 1];
-  scratch.resize(n);
-  for (const BucketEntry& entry : entries) scratch[offsets[entry.key >> shift]++] = entry;
-  // offsets[p] is now the end of partition p (the start of p + 1).
-  size_t begin = 0;
-  for (size_t p = 0; p + 1 < offsets.size(); ++p) {
-    const size_t end = offsets[p];
-    if (end - begin > 1) std::sort(scratch.begin() + begin, scratch.begin() + end);
-    begin = end;
-  }
-  entries.swap(scratch);
-}
+// Turns one band's entries, given in (key, doc) order, into pairs: every two
+// documents that share a bucket, or for a bucket of more than max_bucket
+// documents each member with the first. Holds at most max_bucket entries.
+class BucketPairer {
+ public:
+  BucketPairer(uint64_t max_bucket, std::vector<PackedPair>* pairs, BandStats* stats)
+      : max_bucket_(max_bucket), pairs_(pairs), stats_(stats) {}
 
-// Pairs of one band: every two documents that share a bucket, or for an
-// oversized bucket each member with the first. `entries` must be sorted.
-void PairsOfBand(const std::vector<BucketEntry>& entries, uint64_t max_bucket,
-                 std::vector<PackedPair>* pairs, BandStats* stats) {
-  size_t run_begin = 0;
-  for (size_t i = 1; i <= entries.size(); ++i) {
-    if (i < entries.size() && entries[i].key == entries[run_begin].key) continue;
-    const size_t run = i - run_begin;
-    stats->largest = std::max<uint64_t>(stats->largest, run);
-    if (run > max_bucket) {
-      stats->oversized++;
-      for (size_t y = run_begin + 1; y < i; ++y) {
-        pairs->push_back(PackPair(entries[run_begin].doc, entries[y].doc));
-      }
-      run_begin = i;
-      continue;
+  void Push(const BucketEntry& entry) {
+    ++stats_->entries;
+    if (size_ > 0 && entry.key != key_) Finish();
+    if (size_ == 0) key_ = entry.key;
+    ++size_;
+    if (oversized_) {
+      pairs_->push_back(PackPair(first_, entry.doc));
+      return;
     }
-    for (size_t x = run_begin; x < i; ++x) {
-      for (size_t y = x + 1; y < i; ++y) {
-        pairs->push_back(PackPair(entries[x].doc, entries[y].doc));
-      }
+    members_.push_back(entry.doc);
+    if (size_ > max_bucket_) {  // now known to be crowded: pair with the first only
+      oversized_ = true;
+      first_ = members_[0];
+      for (size_t y = 1; y < members_.size(); ++y) pairs_->push_back(PackPair(first_, members_[y]));
+      members_.clear();
     }
-    run_begin = i;
   }
-}
+
+  // Ends the current bucket; call once after the last entry too.
+  void Finish() {
+    stats_->largest = std::max(stats_->largest, size_);
+    if (oversized_) {
+      stats_->oversized++;
+    } else {
+      for (size_t x = 0; x < members_.size(); ++x) {
+        for (size_t y = x + 1; y < members_.size(); ++y) {
+          pairs_->push_back(PackPair(members_[x], members_[y]));
+        }
+      }
+    }
+    members_.clear();
+    size_ = 0;
+    oversized_ = false;
+  }
+
+ private:
+  const uint64_t max_bucket_;
+  std::vector<PackedPair>* pairs_;
+  BandStats* stats_;
+  uint64_t key_ = 0;
+  uint64_t size_ = 0;
+  bool oversized_ = false;
+  uint32_t first_ = 0;
+  std::vector<uint32_t> members_;
+};
 
 }  // namespace
 
-std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding banding, int threads,
-                                           CandidateStats* stats, uint64_t max_bucket) {
+absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCorpus& corpus,
+                                                                  Banding banding, int threads,
+                                                                  CandidateStats* stats,
+                                                                  uint64_t max_bucket) {
   const size_t n = corpus.size();
   const uint32_t bands = banding.bands;
-  // The band keys of each document: a lean corpus keeps them, otherwise
+  // The band keys of each document held in memory: a lean corpus keeps them
+  // (from first_resident() on; the others are in its spill), otherwise
   // they are computed here into `computed` (doc * bands + band). Documents
   // with no shingles have no keys (all kNoBandKey).
-  std::vector<const uint64_t*> keys(n);
+  const size_t first = corpus.lean() ? corpus.first_resident() : 0;
+  std::vector<const uint64_t*> keys(n - first);
   std::vector<uint64_t> computed;
   if (corpus.lean()) {
-    for (size_t doc = 0; doc < n; ++doc) keys[doc] = corpus.band_keys(doc).data();
+    for (size_t doc = first; doc < n; ++doc) keys[doc - first] = corpus.band_keys(doc).data();
   } else {
     computed.resize(n * bands);
     ParallelFor(n, threads, [&](size_t begin, size_t end, int) {
@@ -104,25 +100,43 @@ std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding b
       }
     });
   }
+  const BandSpill* spill = corpus.spill();
   std::vector<std::vector<PackedPair>> band_pairs(bands);
   std::vector<BandStats> band_stats(bands);
+  std::vector<absl::Status> band_status(bands);
   ParallelFor(bands, threads, [&](size_t begin, size_t end, int) {
     std::vector<BucketEntry> entries, scratch;
     std::vector<uint32_t> offsets;
     for (size_t band = begin; band < end; ++band) {
       entries.clear();
-      for (size_t doc = 0; doc < n; ++doc) {
-        const uint64_t key = keys[doc][band];
-        if (key != kNoBandKey) {
-          entries.push_back({key, static_cast<uint32_t>(doc)});
+      for (size_t i = 0; i < keys.size(); ++i) {
+        const uint64_t key = keys[i][band];
+        if (key != kNoBandKey) entries.push_back({key, static_cast<uint32_t>(first + i)});
+      }
+      SortEntries(entries, scratch, offsets);
+      BucketPairer pairer(max_bucket, &band_pairs[band], &band_stats[band]);
+      if (spill == nullptr || spill->runs() == 0) {
+        for (const BucketEntry& entry : entries) pairer.Push(entry);
+      } else {
+        BandMerger merger(*spill, static_cast<uint32_t>(band), entries);
+        BucketEntry entry;
+        for (;;) {
+          absl::StatusOr<bool> more = merger.Next(&entry);
+          if (!more.ok()) {
+            band_status[band] = more.status();
+            break;
+          }
+          if (!*more) break;
+          pairer.Push(entry);
         }
       }
-      band_stats[band].entries = entries.size();
-      SortEntries(entries, scratch, offsets);
-      PairsOfBand(entries, max_bucket, &band_pairs[band], &band_stats[band]);
+      pairer.Finish();
       std::sort(band_pairs[band].begin(), band_pairs[band].end());
     }
   });
+  for (const absl::Status& status : band_status) {
+    if (!status.ok()) return status;
+  }
   std::vector<PackedPair> pairs;
   for (uint32_t band = 0; band < bands; ++band) {
     stats->bucket_entries += band_stats[band].entries;
@@ -135,6 +149,16 @@ std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding b
   pairs.erase(std::unique(pairs.begin(), pairs.end()), pairs.end());
   stats->candidate_pairs = pairs.size();
   return pairs;
+}
+
+std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding banding, int threads,
+                                           CandidateStats* stats, uint64_t max_bucket) {
+  internal::RequireContract(corpus.spill() == nullptr || corpus.spill()->runs() == 0,
+                            "FindCandidatePairs needs a corpus without spilled band keys");
+  absl::StatusOr<std::vector<PackedPair>> pairs =
+      FindSpilledCandidatePairs(corpus, banding, threads, stats, max_bucket);
+  internal::RequireContract(pairs.ok(), "candidate search in memory cannot fail");
+  return *std::move(pairs);
 }
 
 }  // namespace kindred

@@ -61,8 +61,7 @@ absl::Status ReloadShingles(const std::vector<ResolvedInput>& inputs, const Inpu
                   sets[i].empty() == (corpus->shingle_count(ordinal) == 0);
       if (same && !sets[i].empty()) {
         BandKeys(signature, banding, absl::MakeSpan(keys));
-        const auto stored = corpus->band_keys(ordinal);
-        same = std::equal(keys.begin(), keys.end(), stored.begin(), stored.end());
+        same = SignedCorpus::BandKeyDigest(keys) == corpus->band_key_digest(ordinal);
       }
       if (!same) {
         const std::string where =

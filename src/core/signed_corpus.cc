@@ -8,6 +8,7 @@
 #include "absl/hash/hash.h"
 #include "absl/strings/str_cat.h"
 #include "kindred/parallel.h"
+#include "xxhash.h"
 #include "kindred/shingles.h"
 #include "kindred/signer.h"
 
@@ -34,12 +35,41 @@ void SignedCorpus::Add(std::string id, const KeepFacts& facts, const DocumentOri
       BandKeys(signature, banding_, out);
     }
     band_key_data_.push_back(keys);
+    band_key_digests_.push_back(BandKeyDigest(out));
     shingle_data_.push_back(nullptr);
     signature_data_.push_back(nullptr);
     return;
   }
   shingle_data_.push_back(shingles_.Append(shingles.data(), shingles.size()));
   signature_data_.push_back(signatures_.Append(signature.data(), signature.size()));
+}
+
+uint32_t SignedCorpus::BandKeyDigest(absl::Span<const uint64_t> keys) {
+  return static_cast<uint32_t>(XXH3_64bits(keys.data(), keys.size() * sizeof(uint64_t)));
+}
+
+void SignedCorpus::SetSpill(uint64_t budget_bytes, std::string dir) {
+  spill_budget_ = budget_bytes;
+  spill_dir_ = std::move(dir);
+}
+
+absl::Status SignedCorpus::SpillBandKeys() {
+  if (first_resident_ == size()) return absl::OkStatus();
+  if (spill_ == nullptr) {
+    absl::StatusOr<std::unique_ptr<BandSpill>> spill = BandSpill::Create(spill_dir_, banding_.bands);
+    if (!spill.ok()) return spill.status();
+    spill_ = *std::move(spill);
+  }
+  const absl::Span<const uint64_t* const> resident(band_key_data_.data() + first_resident_,
+                                                  size() - first_resident_);
+  if (absl::Status status = spill_->AddRun(static_cast<uint32_t>(first_resident_), resident);
+      !status.ok()) {
+    return status;
+  }
+  std::fill(band_key_data_.begin() + first_resident_, band_key_data_.end(), nullptr);
+  band_keys_.Reset();
+  first_resident_ = size();
+  return absl::OkStatus();
 }
 
 void SignedCorpus::AttachShingles(uint32_t doc, absl::Span<const uint64_t> shingles,
@@ -168,6 +198,12 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
     }
     stats->raw_bytes = reader.raw_bytes_read();
     stats->raw_bytes_total = reader.raw_bytes_total();
+    if (out->spill_due()) {
+      if (absl::Status spilled = out->SpillBandKeys(); !spilled.ok()) {
+        pending.wait();
+        return spilled;
+      }
+    }
     if (options.progress) options.progress(*stats);
     count = pending.get();
     std::swap(batch, next_batch);

@@ -155,7 +155,10 @@ absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& o
                       return !input.is_stdin || !input.read_path.empty();
                     });
   SweepResult result(options.signature.perms);
-  if (lean) result.corpus = SignedCorpus::Lean(options.signature.perms, BandingFor(options));
+  if (lean) {
+    result.corpus = SignedCorpus::Lean(options.signature.perms, BandingFor(options));
+    if (options.memory > 0) result.corpus.SetSpill(options.memory / 2, options.scratch_dir);
+  }
   const auto start = std::chrono::steady_clock::now();
   if (absl::Status status =
           SignCorpus(reader, options.signature, options.sign, &result.corpus, &result.stats.sign);
@@ -171,15 +174,20 @@ absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& o
   const int threads = std::max(1, options.sign.threads);
   SweepStats& stats = result.stats;
   stats.banding = result.corpus.lean_banding();
-  const std::vector<PackedPair> candidates = FindCandidatePairs(
+  if (const BandSpill* spill = result.corpus.spill(); spill != nullptr) {
+    stats.spilled_bytes = spill->bytes_written();
+    stats.spill_runs = spill->runs();
+  }
+  absl::StatusOr<std::vector<PackedPair>> candidates = FindSpilledCandidatePairs(
       result.corpus, stats.banding, threads, &stats.candidates, options.max_bucket);
+  if (!candidates.ok()) return candidates.status();
   if (absl::Status status =
           ReloadShingles(reader.ResolvedInputs(), reader.options(), options.signature,
-                         DocumentsOf(candidates), threads, &result.corpus);
+                         DocumentsOf(*candidates), threads, &result.corpus);
       !status.ok()) {
     return status;
   }
-  result.pairs = VerifyPairs(result.corpus, candidates, options.match, threads);
+  result.pairs = VerifyPairs(result.corpus, *candidates, options.match, threads);
   GroupAndCount(result.corpus, options, &result);
   stats.match_seconds = SecondsSince(match_start);
   return result;

@@ -113,4 +113,24 @@ expect_exit 2 "no subcommand" -- "$KINDRED"
 "$KINDRED" sweep -q "$WORK/tree" --print pairs --exhaustive >"$WORK/exhaustive"
 cmp -s "$WORK/p1" "$WORK/exhaustive" || fail "exhaustive and LSH differ on a tiny corpus"
 
+# 9. A memory budget: band keys spilled to sorted runs in the scratch
+# directory give the same outputs; the scratch directory is left empty.
+$PY "$SOURCE_DIR/tools/gen_corpus.py" --docs 20000 --seed 9 --dup-rate 0.05 --out "$WORK/big.jsonl" ||
+  fail "gen_corpus"
+expect_exit 0 "sweep without budget" -- "$KINDRED" sweep --threads 2 -o "$WORK/unspilled" "$WORK/big.jsonl"
+mkdir "$WORK/scratch"
+expect_exit 0 "sweep --memory 1M" -- "$KINDRED" sweep --threads 2 --memory 1M --scratch-dir "$WORK/scratch" \
+  -o "$WORK/spilled" "$WORK/big.jsonl"
+expect_stderr "spilled " "summary says it spilled"
+for kind in pairs groups decisions; do
+  cmp -s "$WORK/unspilled/$kind.jsonl" "$WORK/spilled/$kind.jsonl" || fail "$kind differ when spilled"
+done
+[[ -s "$WORK/spilled/pairs.jsonl" ]] || fail "no pairs in the budget test corpus"
+[[ -z $(ls -A "$WORK/scratch") ]] || fail "scratch directory not left empty: $(ls "$WORK/scratch")"
+expect_exit 2 "sweep --memory nonsense" -- "$KINDRED" sweep --memory lots "$WORK/big.jsonl"
+expect_stderr "is not a size" "bad --memory message"
+expect_exit 7 "sweep --scratch-dir missing" -- "$KINDRED" sweep --memory 1M --scratch-dir "$WORK/missing" \
+  "$WORK/big.jsonl"
+expect_stderr "scratch directory" "missing scratch directory message"
+
 finish

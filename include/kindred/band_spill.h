@@ -1,0 +1,98 @@
+// kindred: band keys spilled to disk under a memory budget.
+//
+// A lean corpus keeps 8 bytes per band per document of band keys: about
+// 120 bytes a document by default, over a gigabyte for ten million. Under a
+// memory budget, SignedCorpus moves the keys of each batch of documents to a
+// BandSpill once they outgrow their share: for every band, the batch's
+// (key, document) entries are sorted and written as one run. Candidate
+// search then reads each band as a k-way merge of its runs (BandMerger), in
+// exactly the (key, document) order an in-memory sort gives, so the candidate
+// pairs are identical with and without spilling.
+//
+// The scratch file is created in the scratch directory under a private name
+// (mkstemp) and unlinked at once: nothing is left behind, even after a
+// crash. Entries are 12 bytes: key (u64) and document (u32), little-endian.
+//
+// Thread-safety: AddRun is not thread-safe; once all runs are added, any
+// number of BandMergers (one per thread) may read concurrently.
+#ifndef KINDRED_BAND_SPILL_H_
+#define KINDRED_BAND_SPILL_H_
+
+#include <cstdint>
+#include <memory>
+#include <string>
+#include <vector>
+
+#include "absl/status/status.h"
+#include "absl/status/statusor.h"
+#include "absl/types/span.h"
+
+namespace kindred {
+
+// One (band key, document) entry; ordered by key, then document.
+struct BucketEntry {
+  uint64_t key;
+  uint32_t doc;
+  bool operator<(const BucketEntry& other) const {
+    return key != other.key ? key < other.key : doc < other.doc;
+  }
+};
+
+// Sorts entries by (key, doc), using `scratch` and `offsets` as working
+// space. Expected linear time for keys that are hashes.
+void SortEntries(std::vector<BucketEntry>& entries, std::vector<BucketEntry>& scratch,
+                 std::vector<uint32_t>& offsets);
+
+class BandSpill {
+ public:
+  // Errors: Aborted naming the directory when the file cannot be created.
+  static absl::StatusOr<std::unique_ptr<BandSpill>> Create(const std::string& dir,
+                                                           uint32_t bands);
+  ~BandSpill();
+  BandSpill(const BandSpill&) = delete;
+  BandSpill& operator=(const BandSpill&) = delete;
+
+  // Writes one run from documents first_doc, first_doc + 1, ...:
+  // keys[i][band] is the key of document first_doc + i in `band` (entries
+  // equal to kNoBandKey are left out). Errors: Aborted (disk full, ...).
+  absl::Status AddRun(uint32_t first_doc, absl::Span<const uint64_t* const> keys);
+
+  uint32_t bands() const { return bands_; }
+  size_t runs() const { return runs_.size(); }
+  uint64_t bytes_written() const { return end_; }
+
+ private:
+  friend class BandMerger;
+  struct Section {
+    uint64_t offset;  // byte offset in the file
+    uint64_t count;   // entries
+  };
+  BandSpill(int fd, std::string dir, uint32_t bands) : fd_(fd), dir_(std::move(dir)), bands_(bands) {}
+
+  int fd_;
+  std::string dir_;
+  uint32_t bands_;
+  uint64_t end_ = 0;
+  std::vector<std::vector<Section>> runs_;  // runs_[run][band]
+};
+
+// The entries of one band of every run of a BandSpill, plus `resident`
+// (sorted, in memory; borrowed), in (key, doc) order.
+class BandMerger {
+ public:
+  BandMerger(const BandSpill& spill, uint32_t band, absl::Span<const BucketEntry> resident);
+  ~BandMerger();
+  // The next entry into *entry; false at the end. Errors: Aborted (a read
+  // failed or the file is shorter than written).
+  absl::StatusOr<bool> Next(BucketEntry* entry);
+
+ private:
+  struct Cursor;
+  std::vector<std::unique_ptr<Cursor>> cursors_;
+  std::vector<uint32_t> heap_;  // cursor indices, a min-heap on their head
+  bool started_ = false;
+};
+
+}  // namespace kindred
+
+#endif  // KINDRED_BAND_SPILL_H_

@@ -1,0 +1,186 @@
+#include "kindred/band_spill.h"
+
+#include <fcntl.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <bit>
+#include <cerrno>
+#include <cstring>
+
+#include "absl/base/internal/endian.h"
+#include "absl/strings/str_cat.h"
+#include "kindred/banding.h"
+
+namespace kindred {
+
+void SortEntries(std::vector<BucketEntry>& entries, std::vector<BucketEntry>& scratch,
+                 std::vector<uint32_t>& offsets) {
+  // Keys are hashes, spread evenly, so one counting pass on their top bits
+  // scatters the entries into partitions of a few entries each, in key
+  // order; each partition is then sorted on its own. About three times
+  // faster than one std::sort of the whole band; a crowded partition (many
+  // equal keys) still costs only O(n log n).
+  const size_t n = entries.size();
+  if (n < 1024) {
+    std::sort(entries.begin(), entries.end());
+    return;
+  }
+  const int bits = std::min(20, static_cast<int>(std::bit_width(n / 4)));
+  const int shift = 64 - bits;
+  offsets.assign((size_t{1} << bits) + 1, 0);
+  for (const BucketEntry& entry : entries) ++offsets[(entry.key >> shift) + 1];
+  for (size_t p = 1; p < offsets.size(); ++p) offsets[p] += offsets[p - 1];
+  scratch.resize(n);
+  for (const BucketEntry& entry : entries) scratch[offsets[entry.key >> shift]++] = entry;
+  // offsets[p] is now the end of partition p (the start of p + 1).
+  size_t begin = 0;
+  for (size_t p = 0; p + 1 < offsets.size(); ++p) {
+    const size_t end = offsets[p];
+    if (end - begin > 1) std::sort(scratch.begin() + begin, scratch.begin() + end);
+    begin = end;
+  }
+  entries.swap(scratch);
+}
+
+namespace {
+
+constexpr size_t kEntryBytes = 12;
+constexpr size_t kCursorEntries = 4096;  // entries buffered per file cursor
+
+absl::Status WriteFailed(const std::string& dir, int error) {
+  return absl::AbortedError(absl::StrCat("scratch directory ", dir,
+                                         ": cannot write spilled band keys: ", strerror(error)));
+}
+
+}  // namespace
+
+absl::StatusOr<std::unique_ptr<BandSpill>> BandSpill::Create(const std::string& dir,
+                                                             uint32_t bands) {
+  std::string path = absl::StrCat(dir, "/kindred-bands-XXXXXX");
+  const int fd = mkostemp(path.data(), O_CLOEXEC);
+  if (fd < 0) {
+    return absl::AbortedError(absl::StrCat("scratch directory ", dir,
+                                           ": cannot create a file: ", strerror(errno)));
+  }
+  unlink(path.c_str());  // gone when closed, whatever happens
+  return std::unique_ptr<BandSpill>(new BandSpill(fd, dir, bands));
+}
+
+BandSpill::~BandSpill() { close(fd_); }
+
+absl::Status BandSpill::AddRun(uint32_t first_doc, absl::Span<const uint64_t* const> keys) {
+  std::vector<Section> sections(bands_);
+  std::vector<BucketEntry> entries, scratch;
+  std::vector<uint32_t> offsets;
+  std::string bytes;
+  for (uint32_t band = 0; band < bands_; ++band) {
+    entries.clear();
+    for (size_t i = 0; i < keys.size(); ++i) {
+      if (keys[i][band] != kNoBandKey) {
+        entries.push_back({keys[i][band], static_cast<uint32_t>(first_doc + i)});
+      }
+    }
+    SortEntries(entries, scratch, offsets);
+    bytes.resize(entries.size() * kEntryBytes);
+    char* out = bytes.data();
+    for (const BucketEntry& entry : entries) {
+      absl::little_endian::Store64(out, entry.key);
+      absl::little_endian::Store32(out + 8, entry.doc);
+      out += kEntryBytes;
+    }
+    sections[band] = Section{end_, entries.size()};
+    for (size_t done = 0; done < bytes.size();) {
+      const ssize_t n = pwrite(fd_, bytes.data() + done, bytes.size() - done, end_ + done);
+      if (n < 0 && errno == EINTR) continue;
+      if (n <= 0) return WriteFailed(dir_, n < 0 ? errno : ENOSPC);
+      done += static_cast<size_t>(n);
+    }
+    end_ += bytes.size();
+  }
+  runs_.push_back(std::move(sections));
+  return absl::OkStatus();
+}
+
+// A sorted source of entries: a section of the spill file, read in chunks,
+// or the resident entries in memory.
+struct BandMerger::Cursor {
+  const BandSpill* spill = nullptr;  // null: reads `memory`
+  uint64_t offset = 0;               // next unread byte of the section
+  uint64_t left = 0;                 // entries not yet buffered
+  std::vector<BucketEntry> buffer;
+  absl::Span<const BucketEntry> memory;
+  size_t next = 0;  // in buffer or memory
+
+  bool has() const { return next < (spill == nullptr ? memory.size() : buffer.size()); }
+  const BucketEntry& head() const { return spill == nullptr ? memory[next] : buffer[next]; }
+
+  // Refills the buffer when it is used up. False on a read error.
+  absl::Status Fill() {
+    if (spill == nullptr || next < buffer.size() || left == 0) return absl::OkStatus();
+    const size_t count = static_cast<size_t>(std::min<uint64_t>(left, kCursorEntries));
+    std::string bytes(count * kEntryBytes, '\0');
+    for (size_t done = 0; done < bytes.size();) {
+      const ssize_t n = pread(spill->fd_, bytes.data() + done, bytes.size() - done, offset + done);
+      if (n < 0 && errno == EINTR) continue;
+      if (n <= 0) {
+        return absl::AbortedError(absl::StrCat("scratch directory ", spill->dir_,
+                                               ": cannot read spilled band keys: ",
+                                               n < 0 ? strerror(errno) : "file too short"));
+      }
+      done += static_cast<size_t>(n);
+    }
+    buffer.resize(count);
+    for (size_t i = 0; i < count; ++i) {
+      buffer[i].key = absl::little_endian::Load64(bytes.data() + i * kEntryBytes);
+      buffer[i].doc = absl::little_endian::Load32(bytes.data() + i * kEntryBytes + 8);
+    }
+    offset += bytes.size();
+    left -= count;
+    next = 0;
+    return absl::OkStatus();
+  }
+};
+
+BandMerger::BandMerger(const BandSpill& spill, uint32_t band,
+                       absl::Span<const BucketEntry> resident) {
+  for (const auto& run : spill.runs_) {
+    auto cursor = std::make_unique<Cursor>();
+    cursor->spill = &spill;
+    cursor->offset = run[band].offset;
+    cursor->left = run[band].count;
+    cursors_.push_back(std::move(cursor));
+  }
+  auto cursor = std::make_unique<Cursor>();
+  cursor->memory = resident;
+  cursors_.push_back(std::move(cursor));
+}
+
+BandMerger::~BandMerger() = default;
+
+absl::StatusOr<bool> BandMerger::Next(BucketEntry* entry) {
+  // Min-heap on each cursor's head: the comparison says "a after b".
+  auto after = [this](uint32_t a, uint32_t b) { return cursors_[b]->head() < cursors_[a]->head(); };
+  if (!started_) {
+    started_ = true;
+    for (uint32_t i = 0; i < cursors_.size(); ++i) {
+      if (absl::Status s = cursors_[i]->Fill(); !s.ok()) return s;
+      if (cursors_[i]->has()) heap_.push_back(i);
+    }
+    std::make_heap(heap_.begin(), heap_.end(), after);
+  }
+  if (heap_.empty()) return false;
+  std::pop_heap(heap_.begin(), heap_.end(), after);
+  Cursor& cursor = *cursors_[heap_.back()];
+  *entry = cursor.head();
+  ++cursor.next;
+  if (absl::Status s = cursor.Fill(); !s.ok()) return s;
+  if (cursor.has()) {
+    std::push_heap(heap_.begin(), heap_.end(), after);
+  } else {
+    heap_.pop_back();
+  }
+  return true;
+}
+
+}  // namespace kindred
