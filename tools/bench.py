@@ -13,6 +13,7 @@ to use a JSON Lines file of your own (fields "id" and "text").
     tools/bench.py                       # the default set, about 10 minutes
     tools/bench.py --docs 200000 --runs 5
     tools/bench.py --only signing,threads
+    tools/bench.py --only scale --scale 100000,1000000,10000000
 
 Needs: a Release build in build/ (tools/setup.sh), wc, xxhsum (Debian
 package xxhash).
@@ -85,7 +86,13 @@ def main():
     parser.add_argument("--corpus", help="a JSON Lines corpus of your own for the throughput runs")
     parser.add_argument("--index-docs", type=int, default=1000000,
                         help="documents in the index of the open and check measurement")
-    parser.add_argument("--only", default="signing,threads,pipeline,exhaustive,index")
+    parser.add_argument("--only", default="signing,threads,pipeline,exhaustive,index,scale")
+    parser.add_argument("--scale", default="100000,1000000",
+                        help="corpus sizes of the growth table (documents, comma-separated; "
+                             "sizes of a million or more are made of 1M-document shards; "
+                             "10000000 needs about 10 GB of disk and an hour)")
+    parser.add_argument("--scale-memory", default="4G",
+                        help="--memory of the sweeps of ten million documents or more")
     args = parser.parse_args()
     work = pathlib.Path(args.workdir)
     work.mkdir(parents=True, exist_ok=True)
@@ -128,6 +135,48 @@ def main():
         recall(kindred, small)
     if "index" in only:
         index_figures(kindred, work, args.index_docs, args.runs)
+    if "scale" in only:
+        scale(kindred, work, [int(n) for n in args.scale.split(",")], args.runs, args.scale_memory)
+
+
+def scale_inputs(work, docs):
+    """JSON Lines inputs of `docs` documents, 5% planted duplicates: one file
+    below a million, else 1M-document shards (seeds 100, 101, ...; ids
+    prefixed s0-, s1-, ... so that they are unique together)."""
+    folder = work / "scale"
+    folder.mkdir(exist_ok=True)
+    if docs < 1000000:
+        path = folder / f"small-{docs}.jsonl"
+        generate(path, docs, 0.05, seed=99, extra=("--id-prefix", "t-"))
+        return [path]
+    paths = []
+    for k in range(docs // 1000000):
+        path = folder / f"shard-{k}.jsonl"
+        generate(path, 1000000, 0.05, seed=100 + k, extra=("--id-prefix", f"s{k}-"))
+        paths.append(path)
+    return paths
+
+
+def scale(kindred, work, points, runs, memory):
+    """How cost grows with the corpus: a two-thread sweep at each size, wall
+    time, CPU time, peak resident memory and throughput; sizes of ten million
+    and more run once, under --memory."""
+    print("\nsweep growth (--threads 2; 5% planted duplicates; medians)")
+    print(f"  {'documents':>10} {'GB':>6} {'wall s':>8} {'cpu s':>8} {'peak MiB':>9} "
+          f"{'MB/s':>7} {'docs/s':>8} {'us/doc':>7} {'bytes/doc peak':>14}  options")
+    for docs in points:
+        inputs = scale_inputs(work, docs)
+        size = sum(p.stat().st_size for p in inputs)
+        extra = ["--memory", memory] if docs >= 10000000 else []
+        command = [kindred, "sweep", "-q", "--print", "none", "--threads", "2", *extra,
+                   *map(str, inputs)]
+        measured = [run_once(command) for _ in range(1 if docs >= 10000000 else runs)]
+        wall = statistics.median(m[0] for m in measured)
+        cpu = statistics.median(m[1] for m in measured)
+        peak = statistics.median(m[2] for m in measured) * 1024
+        print(f"  {docs:>10} {size / 1e9:>6.2f} {wall:>8.2f} {cpu:>8.2f} {peak / 2**20:>9.0f} "
+              f"{size / 1e6 / wall:>7.1f} {docs / wall:>8.0f} {wall / docs * 1e6:>7.2f} "
+              f"{peak / docs:>14.0f}  {' '.join(extra) or '-'}  ({len(measured)} runs)")
 
 
 def index_figures(kindred, work, docs, runs):

@@ -190,6 +190,9 @@ def parse_args(argv):
                    help="fraction of documents ending with one shared "
                         "boilerplate paragraph")
     p.add_argument("--truth", help="write the planted pairs here (TSV)")
+    p.add_argument("--id-prefix", default="",
+                   help="put this before every id, so that shards made with "
+                        "different seeds can be read together")
     args = p.parse_args(argv)
     if args.docs < 0 or not 10 <= args.words_min <= args.words_max:
         p.error("need --docs >= 0 and 10 <= --words-min <= --words-max")
@@ -201,13 +204,14 @@ def parse_args(argv):
 
 
 class JsonlSink:
-    def __init__(self, out):
+    def __init__(self, out, prefix):
         self.file = (sys.stdout.buffer if out == "-"
                      else open(out, "wb", buffering=1 << 20))
         self.batch = []
+        self.prefix = prefix
 
     def doc_id(self, index):
-        return f"doc{index:09d}"
+        return f"{self.prefix}doc{index:09d}"
 
     def write(self, index, text):
         # The text holds only ASCII letters, spaces, ".", "," and "\n".
@@ -229,14 +233,15 @@ class JsonlSink:
 
 
 class TreeSink:
-    def __init__(self, out):
+    def __init__(self, out, prefix):
+        self.prefix = prefix
         self.root = pathlib.Path(out)
         self.root.mkdir(parents=True, exist_ok=True)
         if any(self.root.iterdir()):
             sys.exit(f"gen_corpus: {out}: directory is not empty")
 
     def doc_id(self, index):
-        return f"{index // 1000:04d}/doc{index:09d}.txt"
+        return f"{index // 1000:04d}/{self.prefix}doc{index:09d}.txt"
 
     def write(self, index, text):
         path = self.root / self.doc_id(index)
@@ -270,8 +275,8 @@ def generate(args, sink, truth):
 
 def main(argv):
     args = parse_args(argv)
-    sink = JsonlSink(args.out) if args.format == "jsonl" else \
-        TreeSink(args.out)
+    sink = JsonlSink(args.out, args.id_prefix) if args.format == "jsonl" \
+        else TreeSink(args.out, args.id_prefix)
     truth = ["original\tduplicate\tedit_rate\n"]
     planted = generate(args, sink, truth)
     sink.close()
