@@ -14,8 +14,9 @@
 // cost a few allocations, not millions.
 //
 // SignCorpus() fills one from a CorpusReader, shingling and signing on a pool
-// of threads while the next batch is read; the result does not depend on the
-// thread count.
+// of threads while the next batch is read on one more thread (with threads =
+// 1, everything runs on the calling thread); the result does not depend on
+// the thread count.
 //
 // Thread-safety: const methods may be called concurrently; Add() and
 // AttachShingles() may not.

@@ -148,8 +148,10 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
   };
   absl::StatusOr<size_t> count = read(&batch);
   while (count.ok() && *count > 0) {
-    // Read the next batch while this one is signed.
-    std::future<absl::StatusOr<size_t>> pending = std::async(std::launch::async, read, &next_batch);
+    // Read the next batch while this one is signed, on a thread of its own
+    // when there is more than one; one thread means one.
+    std::future<absl::StatusOr<size_t>> pending =
+        std::async(threads > 1 ? std::launch::async : std::launch::deferred, read, &next_batch);
     const size_t n = batch.size();
     results.sets.resize(n);
     results.signatures.resize(n * perms);
@@ -170,13 +172,13 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
     for (size_t i = 0; i < n; ++i) {
       Document& doc = batch[i];
       if (!results.errors[i].ok()) {
-        pending.wait();
+        if (threads > 1) pending.wait();  // a deferred read need not run
         return absl::Status(results.errors[i].code(),
                             absl::StrCat(Place(reader, doc), ": document \"", doc.id,
                                          "\": ", results.errors[i].message()));
       }
       if (auto it = seen.find(absl::string_view(doc.id)); it != seen.end()) {
-        pending.wait();
+        if (threads > 1) pending.wait();  // a deferred read need not run
         return absl::InvalidArgumentError(absl::StrCat(Place(reader, doc), ": duplicate id \"",
                                                        doc.id, "\" (first seen at ",
                                                        PlaceOf(reader, *out, *it), ")"));
@@ -200,7 +202,7 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
     stats->raw_bytes_total = reader.raw_bytes_total();
     if (out->spill_due()) {
       if (absl::Status spilled = out->SpillBandKeys(); !spilled.ok()) {
-        pending.wait();
+        if (threads > 1) pending.wait();  // a deferred read need not run
         return spilled;
       }
     }
