@@ -49,6 +49,10 @@ struct IndexMatchOptions {
   // Leave out indexed documents with the same id as the query (the version a
   // `replace` supersedes).
   bool exclude_same_id = false;
+  // When set, receives for each batch document the seconds its match against
+  // the index took (band lookup, reading candidate sets, exact verification;
+  // not signing), for latency reports. Borrowed.
+  std::vector<double>* query_seconds = nullptr;
 };
 
 // Matches of every batch document, ordered by query, then indexed matches

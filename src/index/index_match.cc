@@ -1,6 +1,7 @@
 #include "kindred/index_match.h"
 
 #include <algorithm>
+#include <chrono>
 #include <mutex>
 
 #include "kindred/banding.h"
@@ -43,12 +44,18 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
     return absl::InvalidArgumentError("batch signatures do not fit the index");
   }
   std::vector<std::vector<IndexMatch>> per_query(batch.size());
+  if (options.query_seconds != nullptr) options.query_seconds->assign(batch.size(), 0.0);
   std::mutex error_mutex;
   absl::Status error;
   ParallelFor(batch.size(), options.threads, [&](size_t begin, size_t end, int) {
     for (size_t q = begin; q < end; ++q) {
+      const auto start = std::chrono::steady_clock::now();
       absl::Status status =
           MatchOne(reader, batch, static_cast<uint32_t>(q), options, &per_query[q]);
+      if (options.query_seconds != nullptr) {
+        (*options.query_seconds)[q] =
+            std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+      }
       if (!status.ok()) {
         std::lock_guard<std::mutex> lock(error_mutex);
         if (error.ok()) error = status;

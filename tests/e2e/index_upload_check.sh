@@ -35,6 +35,10 @@ grep -q "^signature *word k=5 " "$T/out" || fail "info: settings"
 # The gate: some submissions are copies of archive stories.
 expect_rc 1 "check --fail-on-match" -- "$K" check "$INDEX" "$SUBMISSIONS" --fail-on-match -q
 expect_rc 0 "check without the gate" -- "$K" check "$INDEX" "$SUBMISSIONS" -q
+# Verbose: per-document latency figures after the summary.
+expect_rc 0 "check -v" -- "$K" check "$INDEX" "$SUBMISSIONS" -v
+grep -Eq "latency per document: median [0-9.]+ ms, 99th percentile [0-9.]+ ms, largest [0-9.]+ ms \([0-9]+ documents" \
+  "$T/err" || fail "check -v: latency line: $(cat "$T/err")"
 # Every planted submission is found, by containment, with a looser query-time
 # banding (32 x 2 fits the stored 128-slot signatures; nothing is re-signed).
 expect_rc 0 "check, containment" -- "$K" check "$INDEX" "$SUBMISSIONS" --format tsv \
