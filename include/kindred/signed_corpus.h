@@ -65,6 +65,16 @@ class SignedCorpus {
   void Add(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
            absl::Span<const uint64_t> shingles, absl::Span<const uint32_t> signature);
 
+  // Lean only: appends a document whose band keys (lean_banding().bands of
+  // them; see LeanBandKeys) the caller computed, and the size of its set or
+  // bag (zero when it has no shingles). Copies the keys.
+  void AddWithBandKeys(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
+                       uint32_t shingle_count, absl::Span<const uint64_t> band_keys);
+  // The band keys a lean corpus keeps for a document: those of `signature`,
+  // or all kNoBandKey when the document has no shingles.
+  static void LeanBandKeys(Banding banding, bool empty, absl::Span<const uint32_t> signature,
+                           absl::Span<uint64_t> out);
+
   // Lean only: attaches the sorted set and the signature of document `doc`,
   // which must not have them yet. Copies both.
   void AttachShingles(uint32_t doc, absl::Span<const uint64_t> shingles,
@@ -116,6 +126,9 @@ class SignedCorpus {
   const BandSpill* spill() const { return spill_.get(); }
 
  private:
+  void AddKeys(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
+               uint32_t shingle_count, const uint64_t* keys);
+
   uint32_t perms_;
   Banding banding_{0, 0};
   std::vector<std::string> ids_;

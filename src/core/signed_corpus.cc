@@ -22,26 +22,46 @@ SignedCorpus SignedCorpus::Lean(uint32_t perms, Banding banding) {
 
 void SignedCorpus::Add(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
                        absl::Span<const uint64_t> shingles, absl::Span<const uint32_t> signature) {
+  if (lean()) {
+    uint64_t* keys = band_keys_.Allocate(banding_.bands);
+    LeanBandKeys(banding_, shingles.empty(), signature, absl::MakeSpan(keys, banding_.bands));
+    AddKeys(std::move(id), facts, origin, static_cast<uint32_t>(shingles.size()), keys);
+    return;
+  }
   ids_.push_back(std::move(id));
   facts_.push_back(facts);
   origins_.push_back(origin);
   shingle_count_.push_back(static_cast<uint32_t>(shingles.size()));
-  if (lean()) {
-    uint64_t* keys = band_keys_.Allocate(banding_.bands);
-    const absl::Span<uint64_t> out(keys, banding_.bands);
-    if (shingles.empty()) {
-      std::fill(out.begin(), out.end(), kNoBandKey);
-    } else {
-      BandKeys(signature, banding_, out);
-    }
-    band_key_data_.push_back(keys);
-    band_key_digests_.push_back(BandKeyDigest(out));
-    shingle_data_.push_back(nullptr);
-    signature_data_.push_back(nullptr);
-    return;
-  }
   shingle_data_.push_back(shingles_.Append(shingles.data(), shingles.size()));
   signature_data_.push_back(signatures_.Append(signature.data(), signature.size()));
+}
+
+void SignedCorpus::AddWithBandKeys(std::string id, const KeepFacts& facts,
+                                   const DocumentOrigin& origin, uint32_t shingle_count,
+                                   absl::Span<const uint64_t> band_keys) {
+  AddKeys(std::move(id), facts, origin, shingle_count,
+          band_keys_.Append(band_keys.data(), banding_.bands));
+}
+
+void SignedCorpus::AddKeys(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
+                           uint32_t shingle_count, const uint64_t* keys) {
+  ids_.push_back(std::move(id));
+  facts_.push_back(facts);
+  origins_.push_back(origin);
+  shingle_count_.push_back(shingle_count);
+  band_key_data_.push_back(keys);
+  band_key_digests_.push_back(BandKeyDigest(absl::MakeConstSpan(keys, banding_.bands)));
+  shingle_data_.push_back(nullptr);
+  signature_data_.push_back(nullptr);
+}
+
+void SignedCorpus::LeanBandKeys(Banding banding, bool empty, absl::Span<const uint32_t> signature,
+                                absl::Span<uint64_t> out) {
+  if (empty) {
+    std::fill(out.begin(), out.end(), kNoBandKey);
+  } else {
+    BandKeys(signature, banding, out);
+  }
 }
 
 uint32_t SignedCorpus::BandKeyDigest(absl::Span<const uint64_t> keys) {
@@ -86,6 +106,7 @@ namespace {
 struct BatchResults {
   std::vector<ShingleSet> sets;
   std::vector<uint32_t> signatures;
+  std::vector<uint64_t> band_keys;  // lean corpora only
   std::vector<TextStats> text_stats;
   std::vector<absl::Status> errors;
 };
@@ -138,6 +159,7 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
   const Signer signer(settings);
   const uint32_t perms = settings.perms;
   const bool lean = out->lean();
+  const Banding banding = out->lean_banding();
   // Ids seen so far, to reject repeats with both places named.
   absl::flat_hash_set<uint32_t, IdHash, IdEq> seen(0, IdHash{out}, IdEq{out});
 
@@ -155,6 +177,7 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
     const size_t n = batch.size();
     results.sets.resize(n);
     results.signatures.resize(n * perms);
+    results.band_keys.resize(n * banding.bands);
     results.text_stats.assign(n, TextStats{});
     results.errors.assign(n, absl::OkStatus());
     ParallelFor(n, threads, [&](size_t begin, size_t end, int worker) {
@@ -167,6 +190,12 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
                  : shinglers[worker]->Shingle(batch[i].text, &results.sets[i],
                                               &results.text_stats[i]);
         signer.Sign(results.sets[i], absl::MakeSpan(&results.signatures[i * perms], perms));
+        if (lean) {
+          SignedCorpus::LeanBandKeys(
+              banding, results.sets[i].empty(),
+              absl::MakeConstSpan(&results.signatures[i * perms], perms),
+              absl::MakeSpan(&results.band_keys[i * banding.bands], banding.bands));
+        }
       }
     });
     for (size_t i = 0; i < n; ++i) {
@@ -194,8 +223,15 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
         if (options.on_invalid_utf8) options.on_invalid_utf8(doc.id, text.invalid_utf8);
       }
       const KeepFacts facts{doc.text.size(), doc.priority, doc.has_priority};
-      out->Add(std::move(doc.id), facts, DocumentOrigin{doc.source.input, doc.source.line},
-               results.sets[i], absl::MakeConstSpan(&results.signatures[i * perms], perms));
+      const DocumentOrigin origin{doc.source.input, doc.source.line};
+      if (lean) {
+        out->AddWithBandKeys(
+            std::move(doc.id), facts, origin, static_cast<uint32_t>(results.sets[i].size()),
+            absl::MakeConstSpan(&results.band_keys[i * banding.bands], banding.bands));
+      } else {
+        out->Add(std::move(doc.id), facts, origin, results.sets[i],
+                 absl::MakeConstSpan(&results.signatures[i * perms], perms));
+      }
       seen.insert(static_cast<uint32_t>(out->size() - 1));
     }
     stats->raw_bytes = reader.raw_bytes_read();
