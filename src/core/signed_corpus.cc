@@ -7,8 +7,8 @@
 #include "absl/container/flat_hash_set.h"
 #include "absl/hash/hash.h"
 #include "absl/strings/str_cat.h"
-#include "kindred/parallel.h"
 #include "xxhash.h"
+#include "kindred/parallel.h"
 #include "kindred/shingles.h"
 #include "kindred/signer.h"
 
