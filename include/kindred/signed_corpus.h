@@ -56,6 +56,9 @@ class SignedCorpus {
 
   uint32_t perms() const { return perms_; }
   size_t size() const { return ids_.size(); }
+  // Makes room for `documents` in all, so that the per-document arrays do
+  // not grow by doubling (copies, fresh pages, and up to twice the memory).
+  void Reserve(size_t documents);
   bool lean() const { return banding_.bands != 0; }
   // The banding whose keys a lean corpus keeps ({0, 0} when not lean).
   Banding lean_banding() const { return banding_; }

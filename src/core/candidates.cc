@@ -104,11 +104,20 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCo
   std::vector<std::vector<PackedPair>> band_pairs(bands);
   std::vector<BandStats> band_stats(bands);
   std::vector<absl::Status> band_status(bands);
-  ParallelFor(bands, threads, [&](size_t begin, size_t end, int) {
+  // Working space per worker, kept from band to band (fresh memory for
+  // every band costs page faults on every entry).
+  struct Space {
     std::vector<BucketEntry> entries, scratch;
     std::vector<uint32_t> offsets;
+  };
+  std::vector<Space> spaces(std::max(1, threads));
+  ParallelFor(bands, threads, [&](size_t begin, size_t end, int worker) {
+    std::vector<BucketEntry>& entries = spaces[worker].entries;
+    std::vector<BucketEntry>& scratch = spaces[worker].scratch;
+    std::vector<uint32_t>& offsets = spaces[worker].offsets;
     for (size_t band = begin; band < end; ++band) {
       entries.clear();
+      entries.reserve(keys.size());
       for (size_t i = 0; i < keys.size(); ++i) {
         const uint64_t key = keys[i][band];
         if (key != kNoBandKey) entries.push_back({key, static_cast<uint32_t>(first + i)});

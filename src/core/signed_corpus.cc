@@ -20,6 +20,19 @@ SignedCorpus SignedCorpus::Lean(uint32_t perms, Banding banding) {
   return corpus;
 }
 
+void SignedCorpus::Reserve(size_t documents) {
+  ids_.reserve(documents);
+  facts_.reserve(documents);
+  origins_.reserve(documents);
+  shingle_count_.reserve(documents);
+  shingle_data_.reserve(documents);
+  signature_data_.reserve(documents);
+  if (lean()) {
+    band_key_data_.reserve(documents);
+    band_key_digests_.reserve(documents);
+  }
+}
+
 void SignedCorpus::Add(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
                        absl::Span<const uint64_t> shingles, absl::Span<const uint32_t> signature) {
   if (lean()) {
@@ -236,6 +249,17 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
     }
     stats->raw_bytes = reader.raw_bytes_read();
     stats->raw_bytes_total = reader.raw_bytes_total();
+    if (stats->documents == n && stats->raw_bytes_total > 0) {
+      // After the first batch: room for the documents the inputs' total
+      // size suggests (text bytes per document so far; markup makes this a
+      // slight overestimate, compression an underestimate).
+      const double per_document =
+          std::max(64.0, static_cast<double>(stats->bytes) / static_cast<double>(n));
+      const auto expected = static_cast<size_t>(
+          static_cast<double>(stats->raw_bytes_total) / per_document * 1.02 + 1024);
+      out->Reserve(out->size() + expected);
+      seen.reserve(seen.size() + expected);
+    }
     if (out->spill_due()) {
       if (absl::Status spilled = out->SpillBandKeys(); !spilled.ok()) {
         if (threads > 1) pending.wait();  // a deferred read need not run
