@@ -52,6 +52,9 @@ class Shingler {
   // ICU); only the speed differs.
   static absl::StatusOr<std::unique_ptr<Shingler>> Create(
       const SignatureSettings& settings, bool ascii_fast_path = true);
+  // `count` (>= 1) shinglers of `settings`, one per worker thread.
+  static absl::StatusOr<std::vector<std::unique_ptr<Shingler>>> CreateMany(
+      const SignatureSettings& settings, int count);
 
   ~Shingler();
   Shingler(const Shingler&) = delete;

@@ -16,12 +16,9 @@ absl::Status ReloadShingles(const std::vector<ResolvedInput>& inputs, const Inpu
                             int threads, SignedCorpus* corpus) {
   if (docs.empty()) return absl::OkStatus();
   threads = std::max(1, threads);
-  std::vector<std::unique_ptr<Shingler>> shinglers;
-  for (int i = 0; i < threads; ++i) {
-    auto shingler = Shingler::Create(settings);
-    if (!shingler.ok()) return shingler.status();
-    shinglers.push_back(*std::move(shingler));
-  }
+  auto made = Shingler::CreateMany(settings, threads);
+  if (!made.ok()) return made.status();
+  std::vector<std::unique_ptr<Shingler>> shinglers = *std::move(made);
   const Signer signer(settings);
   const uint32_t perms = settings.perms;
   const Banding banding = corpus->lean_banding();

@@ -163,12 +163,9 @@ struct IdEq {
 absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
                         const SignOptions& options, SignedCorpus* out, SignStats* stats) {
   const int threads = std::max(1, options.threads);
-  std::vector<std::unique_ptr<Shingler>> shinglers;
-  for (int i = 0; i < threads; ++i) {
-    auto shingler = Shingler::Create(settings);
-    if (!shingler.ok()) return shingler.status();
-    shinglers.push_back(*std::move(shingler));
-  }
+  auto made = Shingler::CreateMany(settings, threads);
+  if (!made.ok()) return made.status();
+  std::vector<std::unique_ptr<Shingler>> shinglers = *std::move(made);
   const Signer signer(settings);
   const uint32_t perms = settings.perms;
   const bool lean = out->lean();

@@ -116,6 +116,17 @@ absl::StatusOr<std::unique_ptr<Shingler>> Shingler::Create(
       new Shingler(settings, ascii_fast_path, std::move(impl)));
 }
 
+absl::StatusOr<std::vector<std::unique_ptr<Shingler>>> Shingler::CreateMany(
+    const SignatureSettings& settings, int count) {
+  std::vector<std::unique_ptr<Shingler>> shinglers;
+  for (int i = 0; i < count; ++i) {
+    auto shingler = Create(settings);
+    if (!shingler.ok()) return shingler.status();
+    shinglers.push_back(*std::move(shingler));
+  }
+  return shinglers;
+}
+
 namespace {
 
 // ASCII White_Space (PropList.txt): TAB, LF, VT, FF, CR and SPACE.
