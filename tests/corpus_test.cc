@@ -106,6 +106,28 @@ TEST_CASE("a tree lists regular files in byte-wise order of relative path") {
   }
 }
 
+// Regression: each text file of a tree was read into a string grown to
+// 256 KiB (zeroed) at once, so a batch of 4096 small files held a gigabyte.
+TEST_CASE("small text files cost small buffers; large ones are read whole") {
+  TempDir dir;
+  for (int f = 0; f < 20; ++f) {
+    WriteFile(dir.File("tree/small" + std::to_string(10 + f) + ".txt"), std::string(300 + f, 'x'));
+  }
+  const std::string large(3'000'001, 'y');
+  WriteFile(dir.File("tree/zz-large.txt"), large);
+  auto reader = CorpusReader::Open({dir.File("tree")}, InputOptions{});
+  REQUIRE(reader.ok());
+  std::vector<Document> batch;
+  auto n = (*reader)->ReadBatch(&batch, 100, 1 << 30);
+  REQUIRE(n.ok());
+  REQUIRE(*n == 21);
+  for (int f = 0; f < 20; ++f) {
+    CHECK(batch[f].text.size() == 300 + static_cast<size_t>(f));
+    CHECK(batch[f].text.capacity() <= 16384);
+  }
+  CHECK(batch[20].text == large);
+}
+
 TEST_CASE("text files keep NUL bytes, invalid UTF-8 and empty documents as they are") {
   TempDir dir;
   const std::string raw("a\0b\xff\xfe c\r\n", 9);

@@ -8,6 +8,10 @@
 
 namespace kindred::io {
 
+namespace {
+constexpr size_t kFirstReadBytes = 4096;
+}  // namespace
+
 bool IsBlankLine(absl::string_view line) {
   return std::all_of(line.begin(), line.end(),
                      [](char c) { return c == ' ' || c == '\t' || c == '\r'; });
@@ -88,11 +92,13 @@ absl::Status BufferedInput::ReadRest(std::string* out) {
   out->assign(buffer_.data() + begin_, end_ - begin_);
   begin_ = end_;
   // Read straight into *out: the document itself is the only large buffer.
+  // It grows by doubling from 4 KiB: a tree of small files must not cost a
+  // zeroed 256 KiB string per document.
   while (!eof_) {
     if (out->size() > max_bytes_) break;
     size_t old_size = out->size();
-    size_t grow =
-        std::max<size_t>(kChunkBytes, std::min<uint64_t>(old_size, max_bytes_ + 1 - old_size));
+    size_t grow = std::max<size_t>(
+        kFirstReadBytes, std::min<uint64_t>(old_size, max_bytes_ + 1 - old_size));
     out->resize(old_size + grow);
     absl::StatusOr<size_t> n = stream_->Read(out->data() + old_size, grow);
     if (!n.ok()) return n.status();
