@@ -59,6 +59,12 @@ class SignedCorpus {
   // Makes room for `documents` in all, so that the per-document arrays do
   // not grow by doubling (copies, fresh pages, and up to twice the memory).
   void Reserve(size_t documents);
+  // Removes every document, keeping the memory for the next ones (and the
+  // lean banding). Requires no spill.
+  void Clear();
+  // About how many bytes the documents take: sets, signatures, band keys
+  // and the fixed per-document data (not the ids' own heap memory).
+  size_t memory_bytes() const;
   bool lean() const { return banding_.bands != 0; }
   // The banding whose keys a lean corpus keeps ({0, 0} when not lean).
   Banding lean_banding() const { return banding_; }
@@ -166,6 +172,14 @@ struct SignStats {
 
 struct SignOptions {
   int threads = 1;
+  // When set, SignCorpus hands the corpus to `flush` after any batch that
+  // takes it over flush_bytes (SignedCorpus::memory_bytes()) and, once
+  // flush returned OK, empties it (document numbers start again at 0) and
+  // goes on: for writing a corpus too large for memory part by part. Ids
+  // are then checked for repeats within each part only. An error of flush
+  // ends signing with that error.
+  std::function<absl::Status(const SignedCorpus&)> flush;
+  size_t flush_bytes = 0;
   size_t batch_documents = 4096;
   size_t batch_bytes = 16 << 20;
   // Called after each batch with the running totals (on the calling thread).

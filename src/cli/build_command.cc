@@ -1,6 +1,9 @@
 // kindred build: make an index file from a corpus.
+#include <unistd.h>
+
 #include <cstdio>
 
+#include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
@@ -16,6 +19,7 @@ namespace {
 struct BuildFlags {
   std::string index;
   std::vector<std::string> inputs;
+  std::string memory;
   InputFlags input;
   SignatureFlags signature;
   MatchFlags match;
@@ -54,6 +58,63 @@ absl::StatusOr<IndexSettings> ToIndexSettings(const BuildFlags& flags) {
   return settings;
 }
 
+// The whole corpus in memory, written as one segment. *write_error says
+// whether a failure came from writing (else from reading and signing).
+absl::Status BuildWhole(const std::string& index, const IndexSettings& settings,
+                        CorpusReader& reader, const SignOptions& sign, SignStats* stats,
+                        bool* write_error) {
+  SignedCorpus corpus(settings.signature.perms);
+  if (absl::Status status = SignCorpus(reader, settings.signature, sign, &corpus, stats);
+      !status.ok()) {
+    return status;
+  }
+  *write_error = true;
+  return CreateIndex(index, settings, corpus);
+}
+
+// Under a memory budget: the corpus is signed in parts of about half the
+// budget, each appended as a segment of a file beside the index
+// ("<index>.building.<pid>") that is renamed to the index only when
+// complete (never over an existing file); on failure it is removed.
+absl::Status BuildInParts(const std::string& index, const IndexSettings& settings,
+                          uint64_t memory, CorpusReader& reader, SignOptions sign,
+                          SignStats* stats, bool* write_error) {
+  FileSystem* fs = DefaultFileSystem();
+  const std::string partial = absl::StrCat(index, ".building.", getpid());
+  *write_error = true;
+  absl::Status status = CreateIndex(partial, settings, SignedCorpus(settings.signature.perms));
+  if (!status.ok()) return status;
+  {
+    auto writer = IndexWriter::Open(partial);
+    if (!writer.ok()) {
+      fs->Remove(partial).IgnoreError();
+      return writer.status();
+    }
+    bool append_failed = false;
+    auto append = [&writer, &append_failed](const SignedCorpus& part) {
+      absl::Status appended = (*writer)->Append(part, DuplicateIdPolicy::kError).status();
+      append_failed = !appended.ok();
+      return appended;
+    };
+    sign.flush = append;
+    sign.flush_bytes = memory / 2;
+    SignedCorpus corpus(settings.signature.perms);
+    status = SignCorpus(reader, settings.signature, sign, &corpus, stats);
+    if (status.ok() && corpus.size() > 0) status = append(corpus);
+    // A repeated id across parts is found by Append: an input error too.
+    *write_error = append_failed && !absl::IsInvalidArgument(status);
+    if (!status.ok()) {
+      fs->Remove(partial).IgnoreError();
+      return status;
+    }
+  }
+  *write_error = true;
+  if (status.ok()) status = fs->Rename(partial, index, /*replace=*/false);
+  if (status.ok()) status = fs->SyncDirectoryOf(index);
+  if (!status.ok()) fs->Remove(partial).IgnoreError();
+  return status;
+}
+
 int RunBuild(const BuildFlags& flags) {
   auto settings = ToIndexSettings(flags);
   if (!settings.ok()) return Fail(kExitUsage, settings.status());
@@ -72,13 +133,20 @@ int RunBuild(const BuildFlags& flags) {
   sign.progress = [&progress](const SignStats& stats) {
     progress.Update(SigningProgress(stats, progress.Elapsed()));
   };
-  SignedCorpus corpus(settings->signature.perms);
+  uint64_t memory = 0;
+  if (!flags.memory.empty()) {
+    auto parsed = ParseByteSize(flags.memory);
+    if (!parsed.ok()) return Fail(kExitUsage, parsed.status());
+    memory = *parsed;
+  }
   SignStats stats;
-  absl::Status signed_status = SignCorpus(**reader, settings->signature, sign, &corpus, &stats);
+  bool write_error = false;
+  absl::Status built =
+      memory == 0
+          ? BuildWhole(flags.index, *settings, **reader, sign, &stats, &write_error)
+          : BuildInParts(flags.index, *settings, memory, **reader, sign, &stats, &write_error);
   progress.Clear();
-  if (!signed_status.ok()) return Fail(signed_status);
-  absl::Status created = CreateIndex(flags.index, *settings, corpus);
-  if (!created.ok()) return Fail(WriteExitCode(created), created);
+  if (!built.ok()) return write_error ? Fail(WriteExitCode(built), built) : Fail(built);
   if (!flags.general.quiet) {
     std::fprintf(stderr, "kindred build: %s: %llu documents (%llu empty), %s, %u bands x %u rows\n",
                  flags.index.c_str(), static_cast<unsigned long long>(stats.documents),
@@ -98,6 +166,11 @@ void RegisterBuild(CLI::App& app, int* exit_code) {
   command->add_option("index", flags->index, "the index file to create (must not exist)")
       ->required();
   AddInputsArgument(command, &flags->inputs)->required();
+  command
+      ->add_option("--memory", flags->memory,
+                   "memory budget, e.g. 4G: sign and write the corpus in parts of about half "
+                   "of it, one segment each (default: the whole corpus at once, one segment)")
+      ->group("Resources");
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);

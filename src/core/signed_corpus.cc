@@ -33,6 +33,27 @@ void SignedCorpus::Reserve(size_t documents) {
   }
 }
 
+void SignedCorpus::Clear() {
+  ids_.clear();
+  facts_.clear();
+  origins_.clear();
+  shingle_data_.clear();
+  shingle_count_.clear();
+  signature_data_.clear();
+  band_key_data_.clear();
+  band_key_digests_.clear();
+  shingles_.Reset();
+  signatures_.Reset();
+  band_keys_.Reset();
+}
+
+size_t SignedCorpus::memory_bytes() const {
+  constexpr size_t kPerDocument = sizeof(std::string) + sizeof(KeepFacts) +
+                                  sizeof(DocumentOrigin) + 3 * sizeof(void*) + 2 * sizeof(uint32_t);
+  return shingles_.bytes_used() + signatures_.bytes_used() + band_keys_.bytes_used() +
+         size() * (kPerDocument + (lean() ? sizeof(void*) : 0));
+}
+
 void SignedCorpus::Add(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
                        absl::Span<const uint64_t> shingles, absl::Span<const uint32_t> signature) {
   if (lean()) {
@@ -256,6 +277,14 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
           static_cast<double>(stats->raw_bytes_total) / per_document * 1.02 + 1024);
       out->Reserve(out->size() + expected);
       seen.reserve(seen.size() + expected);
+    }
+    if (options.flush && out->memory_bytes() > options.flush_bytes) {
+      if (absl::Status flushed = options.flush(*out); !flushed.ok()) {
+        if (threads > 1) pending.wait();  // a deferred read need not run
+        return flushed;
+      }
+      out->Clear();
+      seen.clear();
     }
     if (out->spill_due()) {
       if (absl::Status spilled = out->SpillBandKeys(); !spilled.ok()) {
