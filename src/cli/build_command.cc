@@ -72,13 +72,14 @@ absl::Status BuildWhole(const std::string& index, const IndexSettings& settings,
   return CreateIndex(index, settings, corpus);
 }
 
-// Under a memory budget: the corpus is signed in parts of about half the
-// budget, each appended as a segment of a file beside the index
-// ("<index>.building.<pid>") that is renamed to the index only when
-// complete (never over an existing file); on failure it is removed.
-absl::Status BuildInParts(const std::string& index, const IndexSettings& settings,
-                          uint64_t memory, CorpusReader& reader, SignOptions sign,
-                          SignStats* stats, bool* write_error) {
+// Under a memory budget: the corpus is signed in parts of about a quarter
+// of the budget (a part is encoded whole before it is written, and the
+// index's own tables grow), each appended as a segment of a file beside
+// the index ("<index>.building.<pid>") that is renamed to the index only
+// when complete (never over an existing file); on failure it is removed.
+absl::Status BuildInParts(const std::string& index, const IndexSettings& settings, uint64_t memory,
+                          CorpusReader& reader, SignOptions sign, SignStats* stats,
+                          bool* write_error) {
   FileSystem* fs = DefaultFileSystem();
   const std::string partial = absl::StrCat(index, ".building.", getpid());
   *write_error = true;
@@ -97,7 +98,7 @@ absl::Status BuildInParts(const std::string& index, const IndexSettings& setting
       return appended;
     };
     sign.flush = append;
-    sign.flush_bytes = memory / 2;
+    sign.flush_bytes = memory / 4;
     SignedCorpus corpus(settings.signature.perms);
     status = SignCorpus(reader, settings.signature, sign, &corpus, stats);
     if (status.ok() && corpus.size() > 0) status = append(corpus);
@@ -167,9 +168,10 @@ void RegisterBuild(CLI::App& app, int* exit_code) {
       ->required();
   AddInputsArgument(command, &flags->inputs)->required();
   command
-      ->add_option("--memory", flags->memory,
-                   "memory budget, e.g. 4G: sign and write the corpus in parts of about half "
-                   "of it, one segment each (default: the whole corpus at once, one segment)")
+      ->add_option(
+          "--memory", flags->memory,
+          "memory budget, e.g. 4G: sign and write the corpus in parts of about a "
+          "quarter of it, one segment each (default: the whole corpus at once, one segment)")
       ->group("Resources");
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);
