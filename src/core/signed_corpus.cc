@@ -138,7 +138,8 @@ namespace {
 // Per-batch results, reused from batch to batch so their buffers are
 // allocated once.
 struct BatchResults {
-  std::vector<ShingleSet> sets;
+  std::vector<ShingleSet> sets;     // kept sets (not for lean corpora)
+  std::vector<uint32_t> set_sizes;  // size of each set or bag
   std::vector<uint32_t> signatures;
   std::vector<uint64_t> band_keys;  // lean corpora only
   std::vector<TextStats> text_stats;
@@ -196,6 +197,7 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
 
   std::vector<Document> batch, next_batch;
   BatchResults results;
+  std::vector<ShingleSet> bags(threads);  // lean: one bag per worker
   auto read = [&](std::vector<Document>* into) {
     return reader.ReadBatch(into, options.batch_documents, options.batch_bytes);
   };
@@ -206,7 +208,8 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
     std::future<absl::StatusOr<size_t>> pending =
         std::async(threads > 1 ? std::launch::async : std::launch::deferred, read, &next_batch);
     const size_t n = batch.size();
-    results.sets.resize(n);
+    results.sets.resize(lean ? 0 : n);
+    results.set_sizes.resize(n);
     results.signatures.resize(n * perms);
     results.band_keys.resize(n * banding.bands);
     results.text_stats.assign(n, TextStats{});
@@ -214,16 +217,17 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
     ParallelFor(n, threads, [&](size_t begin, size_t end, int worker) {
       for (size_t i = begin; i < end; ++i) {
         // A lean corpus keeps no sets, and the signature of the unsorted
-        // bag is that of the set: skip the sort.
+        // bag is that of the set: skip the sort, and reuse one bag per
+        // worker.
+        ShingleSet& set = lean ? bags[worker] : results.sets[i];
         results.errors[i] =
-            lean ? shinglers[worker]->ShingleBag(batch[i].text, &results.sets[i],
-                                                 &results.text_stats[i])
-                 : shinglers[worker]->Shingle(batch[i].text, &results.sets[i],
-                                              &results.text_stats[i]);
-        signer.Sign(results.sets[i], absl::MakeSpan(&results.signatures[i * perms], perms));
+            lean ? shinglers[worker]->ShingleBag(batch[i].text, &set, &results.text_stats[i])
+                 : shinglers[worker]->Shingle(batch[i].text, &set, &results.text_stats[i]);
+        results.set_sizes[i] = static_cast<uint32_t>(set.size());
+        signer.Sign(set, absl::MakeSpan(&results.signatures[i * perms], perms));
         if (lean) {
           SignedCorpus::LeanBandKeys(
-              banding, results.sets[i].empty(),
+              banding, set.empty(),
               absl::MakeConstSpan(&results.signatures[i * perms], perms),
               absl::MakeSpan(&results.band_keys[i * banding.bands], banding.bands));
         }
@@ -247,7 +251,7 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
       text.invalid_utf8 += doc.invalid_utf8;
       stats->documents++;
       stats->bytes += doc.text.size();
-      if (results.sets[i].empty()) stats->empty_documents++;
+      if (results.set_sizes[i] == 0) stats->empty_documents++;
       if (text.invalid_utf8 > 0) {
         stats->invalid_utf8_documents++;
         stats->invalid_utf8_sequences += text.invalid_utf8;
@@ -257,7 +261,7 @@ absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
       const DocumentOrigin origin{doc.source.input, doc.source.line};
       if (lean) {
         out->AddWithBandKeys(
-            std::move(doc.id), facts, origin, static_cast<uint32_t>(results.sets[i].size()),
+            std::move(doc.id), facts, origin, results.set_sizes[i],
             absl::MakeConstSpan(&results.band_keys[i * banding.bands], banding.bands));
       } else {
         out->Add(std::move(doc.id), facts, origin, results.sets[i],

@@ -114,6 +114,7 @@ class CorpusReader::Impl {
   std::unique_ptr<io::BufferedInput> lines_;  // set while reading JSON Lines
   std::string lines_name_;                    // their name in ids and messages
   std::string lines_path_;                    // their path in DocumentSource
+  std::string lines_display_;                 // their name in messages
   absl::Status failure_;
 };
 
@@ -135,6 +136,7 @@ absl::Status CorpusReader::Impl::OpenLines(const std::string& path, std::string 
   lines_ = std::move(*opened);
   lines_name_ = std::move(name);
   lines_path_ = path;
+  lines_display_ = io::DisplayName(path);
   return absl::OkStatus();
 }
 
@@ -155,8 +157,7 @@ absl::StatusOr<bool> CorpusReader::Impl::NextLineDocument(Document* doc) {
     if (!io::IsBlankLine(line) && TakeNext()) break;
   }
   const uint64_t number = lines_->line_number();
-  std::string where = absl::StrCat(io::DisplayName(lines_path_), ":", number);
-  absl::Status parsed = json_.Parse(line, where, doc);
+  absl::Status parsed = json_.Parse(line, lines_display_, number, doc);
   if (!parsed.ok()) return parsed;
   if (options_.id_field == io::kLineNumberId) doc->id = absl::StrCat(lines_name_, ":", number);
   doc->source.input = static_cast<uint32_t>(current_);
@@ -218,6 +219,7 @@ absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
     lines_ = std::move(*opened);
     lines_name_ = input.name;
     lines_path_ = input.name;
+    lines_display_ = io::DisplayName(input.name);
     return false;
   }
   absl::Status read = ReadTextDocument(opened->get(), doc);

@@ -31,27 +31,29 @@ absl::Status FieldError(absl::string_view where, absl::string_view field, absl::
   return absl::InvalidArgumentError(absl::StrFormat("%s: field \"%s\" %s", where, field, what));
 }
 
-// Renders a string or integer id into *id.
-absl::Status ReadId(simdjson::dom::element value, absl::string_view where, absl::string_view field,
-                    std::string* id) {
+// Renders a string or integer id into *id; false when it is neither.
+bool ReadId(simdjson::dom::element value, std::string* id) {
   switch (value.type()) {
     case simdjson::dom::element_type::STRING:
       id->assign(value.get_string().value_unsafe());
-      return absl::OkStatus();
+      return true;
     case simdjson::dom::element_type::INT64:
       *id = absl::StrCat(value.get_int64().value_unsafe());
-      return absl::OkStatus();
+      return true;
     case simdjson::dom::element_type::UINT64:
       *id = absl::StrCat(value.get_uint64().value_unsafe());
-      return absl::OkStatus();
+      return true;
     default:
-      return FieldError(where, field, "is not a string or an integer");
+      return false;
   }
 }
 
 }  // namespace
 
-absl::Status JsonLineParser::Parse(absl::string_view line, absl::string_view where, Document* doc) {
+absl::Status JsonLineParser::Parse(absl::string_view line, absl::string_view path,
+                                   uint64_t line_number, Document* doc) {
+  // "file:line", made only for a message (not for every line).
+  const auto where = [&] { return absl::StrCat(path, ":", line_number); };
   // Copies `text` into the reusable padded buffer and parses it.
   const auto parse_root = [this](absl::string_view text, simdjson::dom::element* root) {
     std::string& padded = state_->padded;
@@ -79,39 +81,40 @@ absl::Status JsonLineParser::Parse(absl::string_view line, absl::string_view whe
   }
   if (error) {
     return absl::InvalidArgumentError(
-        absl::StrCat(where, ": invalid JSON: ", simdjson::error_message(error)));
+        absl::StrCat(where(), ": invalid JSON: ", simdjson::error_message(error)));
   }
   simdjson::dom::object object;
   if (root.get(object) != simdjson::SUCCESS) {
-    return absl::InvalidArgumentError(absl::StrCat(where, ": not a JSON object"));
+    return absl::InvalidArgumentError(absl::StrCat(where(), ": not a JSON object"));
   }
   doc->priority = 0;
   doc->has_priority = false;
   bool has_id = id_from_line_, has_text = false;
   for (simdjson::dom::key_value_pair field : object) {
     if (field.key == text_field_) {
-      if (!field.value.is_string()) return FieldError(where, text_field_, "is not a string");
+      if (!field.value.is_string()) return FieldError(where(), text_field_, "is not a string");
       doc->text.assign(field.value.get_string().value_unsafe());
       has_text = true;
     }
     if (!id_from_line_ && field.key == id_field_) {
-      absl::Status read = ReadId(field.value, where, id_field_, &doc->id);
-      if (!read.ok()) return read;
+      if (!ReadId(field.value, &doc->id)) {
+        return FieldError(where(), id_field_, "is not a string or an integer");
+      }
       has_id = true;
     }
     if (!priority_field_.empty() && field.key == priority_field_) {
-      if (!field.value.is_number()) return FieldError(where, priority_field_, "is not a number");
+      if (!field.value.is_number()) return FieldError(where(), priority_field_, "is not a number");
       doc->priority = field.value.get_double().value_unsafe();
       doc->has_priority = true;
     }
   }
   if (!has_text) {
     return absl::InvalidArgumentError(
-        absl::StrFormat("%s: missing field \"%s\"", where, text_field_));
+        absl::StrFormat("%s: missing field \"%s\"", where(), text_field_));
   }
   if (!has_id) {
     return absl::InvalidArgumentError(
-        absl::StrFormat("%s: missing field \"%s\"", where, id_field_));
+        absl::StrFormat("%s: missing field \"%s\"", where(), id_field_));
   }
   return absl::OkStatus();
 }

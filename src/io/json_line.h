@@ -25,9 +25,10 @@ class JsonLineParser {
   ~JsonLineParser();
 
   // Parses `line` (one JSON object) into doc->id, doc->text and the
-  // priority. `where` ("file:line") starts every message. When the id field
+  // priority. "path:line_number" starts every message. When the id field
   // is "@line", doc->id is left for the caller to set.
-  absl::Status Parse(absl::string_view line, absl::string_view where, Document* doc);
+  absl::Status Parse(absl::string_view line, absl::string_view path, uint64_t line_number,
+                     Document* doc);
 
  private:
   struct State;
