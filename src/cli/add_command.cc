@@ -59,18 +59,6 @@ void PrintSummary(const AddFlags& flags, const AppendResult& result, const Signe
                match_count, after.live_count());
 }
 
-// Reads and signs every input under `signature`. Errors are the reader's
-// (exit 3).
-absl::Status SignInputs(const std::vector<std::string>& inputs, const InputOptions& input_options,
-                        const SignatureSettings& signature, int threads, SignedCorpus* out,
-                        SignStats* stats) {
-  auto reader = CorpusReader::Open(inputs, input_options);
-  if (!reader.ok()) return reader.status();
-  SignOptions sign;
-  sign.threads = threads;
-  return SignCorpus(**reader, signature, sign, out, stats);
-}
-
 int RunAdd(const AddFlags& flags) {
   auto format = ParseRecordFormat(flags.format);
   if (!format.ok()) return Fail(kExitUsage, format.status());
@@ -86,12 +74,12 @@ int RunAdd(const AddFlags& flags) {
   }
   auto reader = IndexReader::Open(flags.index);  // for matching, banded as asked
   if (!reader.ok()) return Fail(reader.status());
-  if (absl::Status status = CheckIndexSignature(flags.signature, flags.given, **reader);
-      !status.ok()) {
-    return Fail(absl::IsFailedPrecondition(status) ? kExitIndexMismatch : kExitUsage, status);
+  MatchSettings match;
+  if (int code =
+          PrepareIndexQuery(flags.signature, flags.match, flags.given, reader->get(), &match);
+      code != kExitOk) {
+    return code;
   }
-  auto match = IndexQueryMatch(flags.match, flags.given, reader->get());
-  if (!match.ok()) return Fail(kExitUsage, match.status());
   const int threads = ThreadCount(flags.general);
   const SignatureSettings& signature = (*reader)->settings().signature;
   SignedCorpus batch(signature.perms);
@@ -101,7 +89,7 @@ int RunAdd(const AddFlags& flags) {
       !status.ok()) {
     return Fail(kExitInput, status);
   }
-  IndexMatchOptions options{*match, threads,
+  IndexMatchOptions options{match, threads,
                             /*exclude_same_id=*/*policy == DuplicateIdPolicy::kReplace};
   auto matches = MatchAgainstIndex(**reader, batch, options);
   if (!matches.ok()) return Fail(matches.status());

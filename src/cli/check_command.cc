@@ -33,18 +33,6 @@ struct CheckFlags {
   GivenOptions given;
 };
 
-// Reads and signs every input under `signature`. Errors are the reader's
-// (exit 3).
-absl::Status SignInputs(const std::vector<std::string>& inputs, const InputOptions& input_options,
-                        const SignatureSettings& signature, int threads, SignedCorpus* out,
-                        SignStats* stats) {
-  auto reader = CorpusReader::Open(inputs, input_options);
-  if (!reader.ok()) return reader.status();
-  SignOptions sign;
-  sign.threads = threads;
-  return SignCorpus(**reader, signature, sign, out, stats);
-}
-
 // Uploads with at least one match among the indexed documents.
 size_t CountMatchedUploads(absl::Span<const IndexMatch> matches, size_t uploads) {
   std::vector<bool> matched(uploads);
@@ -84,12 +72,12 @@ int RunCheck(const CheckFlags& flags) {
                  flags.index.c_str(),
                  static_cast<unsigned long long>((*reader)->torn_tail_bytes()));
   }
-  if (absl::Status status = CheckIndexSignature(flags.signature, flags.given, **reader);
-      !status.ok()) {
-    return Fail(absl::IsFailedPrecondition(status) ? kExitIndexMismatch : kExitUsage, status);
+  MatchSettings match;
+  if (int code =
+          PrepareIndexQuery(flags.signature, flags.match, flags.given, reader->get(), &match);
+      code != kExitOk) {
+    return code;
   }
-  auto match = IndexQueryMatch(flags.match, flags.given, reader->get());
-  if (!match.ok()) return Fail(kExitUsage, match.status());
   const int threads = ThreadCount(flags.general);
   SignedCorpus uploads((*reader)->settings().signature.perms);
   SignStats stats;
@@ -98,7 +86,7 @@ int RunCheck(const CheckFlags& flags) {
       !status.ok()) {
     return Fail(kExitInput, status);
   }
-  IndexMatchOptions options{*match, threads, false};
+  IndexMatchOptions options{match, threads, false};
   std::vector<double> latencies;
   if (flags.general.verbose) options.query_seconds = &latencies;
   auto matches = MatchAgainstIndex(**reader, uploads, options);
@@ -113,8 +101,8 @@ int RunCheck(const CheckFlags& flags) {
     std::fprintf(stderr,
                  "kindred check: %zu documents checked against %u indexed (%s >= %g, %u bands x "
                  "%u rows): %zu match indexed documents, %llu empty\n",
-                 uploads.size(), (*reader)->live_count(), MeasureName(match->measure),
-                 match->threshold, (*reader)->bands(), (*reader)->rows(), matched_count,
+                 uploads.size(), (*reader)->live_count(), MeasureName(match.measure),
+                 match.threshold, (*reader)->bands(), (*reader)->rows(), matched_count,
                  static_cast<unsigned long long>(stats.empty_documents));
   }
   if (flags.general.verbose && !latencies.empty()) PrintLatencies(latencies);

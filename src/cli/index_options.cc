@@ -3,6 +3,7 @@
 #include <cstdio>
 
 #include "absl/strings/str_cat.h"
+#include "cli/cli.h"
 #include "kindred/banding.h"
 #include "kindred/shingles.h"
 
@@ -56,6 +57,27 @@ absl::StatusOr<MatchSettings> IndexQueryMatch(const MatchFlags& flags, const Giv
     }
   }
   return match;
+}
+
+int PrepareIndexQuery(const SignatureFlags& signature, const MatchFlags& match_flags,
+                      const GivenOptions& given, IndexReader* reader, MatchSettings* match) {
+  if (absl::Status status = CheckIndexSignature(signature, given, *reader); !status.ok()) {
+    return Fail(absl::IsFailedPrecondition(status) ? kExitIndexMismatch : kExitUsage, status);
+  }
+  auto settings = IndexQueryMatch(match_flags, given, reader);
+  if (!settings.ok()) return Fail(kExitUsage, settings.status());
+  *match = *settings;
+  return kExitOk;
+}
+
+absl::Status SignInputs(const std::vector<std::string>& inputs, const InputOptions& input_options,
+                        const SignatureSettings& signature, int threads, SignedCorpus* out,
+                        SignStats* stats) {
+  auto reader = CorpusReader::Open(inputs, input_options);
+  if (!reader.ok()) return reader.status();
+  SignOptions sign;
+  sign.threads = threads;
+  return SignCorpus(**reader, signature, sign, out, stats);
 }
 
 }  // namespace kindred::cli

@@ -8,6 +8,7 @@
 #include "absl/status/statusor.h"
 #include "cli/common_options.h"
 #include "kindred/index.h"
+#include "kindred/signed_corpus.h"
 
 namespace kindred::cli {
 
@@ -31,6 +32,19 @@ absl::Status CheckIndexSignature(const SignatureFlags& flags, const GivenOptions
 // the reader is re-banded when the banding differs from the stored one.
 absl::StatusOr<MatchSettings> IndexQueryMatch(const MatchFlags& flags, const GivenOptions& given,
                                               IndexReader* reader);
+
+// Both steps for a command that queries an index: checks the signature
+// options against it, then works out the query's match settings into
+// *match. Returns kExitOk, or the exit code after printing the error (5 for
+// other settings than the index's, 2 for invalid options).
+int PrepareIndexQuery(const SignatureFlags& signature, const MatchFlags& match_flags,
+                      const GivenOptions& given, IndexReader* reader, MatchSettings* match);
+
+// Reads and signs every input under `signature` (for add and check).
+// Errors are the reader's (exit 3).
+absl::Status SignInputs(const std::vector<std::string>& inputs, const InputOptions& input_options,
+                        const SignatureSettings& signature, int threads, SignedCorpus* out,
+                        SignStats* stats);
 
 }  // namespace kindred::cli
 

@@ -54,7 +54,9 @@ SweepOutputs FormatOutputs(const SweepResult& result, RecordFormat format, KeepP
   SweepOutputs outputs{format, {}, {}, {}};
   const auto ids = result.corpus.ids();
   std::vector<uint8_t> empty(result.corpus.size());
-  for (size_t doc = 0; doc < empty.size(); ++doc) empty[doc] = result.corpus.shingle_count(doc) == 0;
+  for (size_t doc = 0; doc < empty.size(); ++doc) {
+    empty[doc] = result.corpus.shingle_count(doc) == 0;
+  }
   WritePairRecords(format, result.pairs, ids, &outputs.pairs);
   WriteGroupRecords(format, result.groups, ids, keep, &outputs.groups);
   WriteDecisionRecords(format, result.groups, result.pairs, ids, empty, keep, &outputs.decisions);
@@ -207,17 +209,17 @@ int RunIndexSweep(const SweepFlags& flags) {
   }
   auto reader = IndexReader::Open(flags.index);
   if (!reader.ok()) return Fail(reader.status());
-  if (absl::Status status = CheckIndexSignature(flags.signature, flags.given, **reader);
-      !status.ok()) {
-    return Fail(absl::IsFailedPrecondition(status) ? kExitIndexMismatch : kExitUsage, status);
+  MatchSettings match;
+  if (int code =
+          PrepareIndexQuery(flags.signature, flags.match, flags.given, reader->get(), &match);
+      code != kExitOk) {
+    return code;
   }
-  auto match = IndexQueryMatch(flags.match, flags.given, reader->get());
-  if (!match.ok()) return Fail(kExitUsage, match.status());
   auto keep = ParseKeepPolicy(flags.keep);
   if (!keep.ok()) return Fail(kExitUsage, keep.status());
   auto format = ParseRecordFormat(flags.format);
   if (!format.ok()) return Fail(kExitUsage, format.status());
-  auto result = SweepIndex(**reader, *match, *keep, ThreadCount(flags.general));
+  auto result = SweepIndex(**reader, match, *keep, ThreadCount(flags.general));
   if (!result.ok()) return Fail(result.status());
   result->stats.sign.documents = result->corpus.size();
   for (size_t doc = 0; doc < result->corpus.size(); ++doc) {
@@ -229,7 +231,7 @@ int RunIndexSweep(const SweepFlags& flags) {
   }
   if (!flags.general.quiet) {
     SweepOptions options;
-    options.match = *match;
+    options.match = match;
     options.keep = *keep;
     std::fprintf(stderr, "kindred sweep: index %s\n", flags.index.c_str());
     PrintSummary(*result, options);
@@ -313,9 +315,8 @@ int RunSweepCommand(const SweepFlags& flags) {
   progress.Clear();
   if (!result.ok()) {
     // Aborted: the scratch file could not be written or read.
-    return Fail(result.status().code() == absl::StatusCode::kAborted
-                    ? kExitOutput
-                    : ExitCodeFor(result.status()),
+    return Fail(result.status().code() == absl::StatusCode::kAborted ? kExitOutput
+                                                                     : ExitCodeFor(result.status()),
                 result.status());
   }
 
