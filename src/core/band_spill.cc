@@ -115,7 +115,7 @@ struct BandMerger::Cursor {
   bool has() const { return next < (spill == nullptr ? memory.size() : buffer.size()); }
   const BucketEntry& head() const { return spill == nullptr ? memory[next] : buffer[next]; }
 
-  // Refills the buffer when it is used up. False on a read error.
+  // Refills the buffer when it is used up; Aborted when a read fails.
   absl::Status Fill() {
     if (spill == nullptr || next < buffer.size() || left == 0) return absl::OkStatus();
     const size_t count = static_cast<size_t>(std::min<uint64_t>(left, kCursorEntries));
