@@ -128,6 +128,29 @@ TEST_CASE("small text files cost small buffers; large ones are read whole") {
   CHECK(batch[20].text == large);
 }
 
+// Regression: batch slots kept the text buffer of the largest document they
+// had held, so after many batches each of thousands of slots could hold a
+// multi-megabyte buffer (a sweep of /usr/share/doc peaked at twice the corpus).
+TEST_CASE("a batch slot does not keep a large document's buffer for a small one") {
+  TempDir dir;
+  const std::string large(1 << 20, 'z');
+  WriteFile(dir.File("tree/a-large.txt"), large);
+  WriteFile(dir.File("tree/b-small.txt"), "small b");
+  WriteFile(dir.File("tree/c-small.txt"), "small c");
+  WriteFile(dir.File("tree/d-large.jsonl"), "{\"id\":\"x\",\"text\":\"" + large + "\"}\n");
+  auto reader = CorpusReader::Open({dir.File("tree")}, InputOptions{});
+  REQUIRE(reader.ok());
+  std::vector<Document> batch;
+  REQUIRE((*reader)->ReadBatch(&batch, 2, 1 << 30).ok());
+  REQUIRE(batch.size() == 2);
+  CHECK(batch[0].text == large);
+  REQUIRE((*reader)->ReadBatch(&batch, 2, 1 << 30).ok());
+  REQUIRE(batch.size() == 2);
+  CHECK(batch[0].text == "small c");
+  CHECK(batch[0].text.capacity() <= 16384);
+  CHECK(batch[1].text.size() > 1000);
+}
+
 TEST_CASE("text files keep NUL bytes, invalid UTF-8 and empty documents as they are") {
   TempDir dir;
   const std::string raw("a\0b\xff\xfe c\r\n", 9);

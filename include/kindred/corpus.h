@@ -158,7 +158,9 @@ class CorpusReader {
   // Replaces *batch with the next documents: up to max_docs documents, and
   // stops early once their texts total max_bytes or more (a batch holds at
   // least one document). Returns the number read; 0 means end of all inputs.
-  // Requires max_docs >= 1. Strings already in *batch are reused.
+  // Requires max_docs >= 1. Strings already in *batch are reused (text
+  // buffers only up to 16 KiB, so that a batch never keeps the largest
+  // document each of its slots once held).
   absl::StatusOr<size_t> ReadBatch(std::vector<Document>* batch, size_t max_docs, size_t max_bytes);
 
   // Resolved format of input `input` (kAuto for standard input before it

@@ -255,6 +255,11 @@ absl::StatusOr<bool> CorpusReader::Impl::Next(Document* doc) {
   return false;
 }
 
+namespace {
+// Largest text buffer a batch slot keeps from one document to the next.
+constexpr size_t kReusedTextBytes = 16 << 10;
+}  // namespace
+
 absl::StatusOr<size_t> CorpusReader::Impl::ReadBatch(std::vector<Document>* batch, size_t max_docs,
                                                      size_t max_bytes) {
   if (!failure_.ok()) return failure_;
@@ -262,6 +267,10 @@ absl::StatusOr<size_t> CorpusReader::Impl::ReadBatch(std::vector<Document>* batc
   while (count < max_docs && (count == 0 || bytes < max_bytes)) {
     if (batch->size() <= count) batch->emplace_back();
     Document& doc = (*batch)[count];
+    // Reuse a slot's text buffer only when it is small: each slot would
+    // otherwise keep the largest document it ever held, and a batch of
+    // thousands of slots would hold far more than max_bytes.
+    if (doc.text.capacity() > kReusedTextBytes) std::string().swap(doc.text);
     absl::StatusOr<bool> more = Next(&doc);
     if (!more.ok()) {
       failure_ = more.status();
