@@ -69,6 +69,29 @@ absl::StatusOr<std::vector<Document>> ReadAll(std::vector<std::string> inputs,
   return all;
 }
 
+// ReadAll with JSON parsing deferred to a LineParser, as SignCorpus does:
+// each batch's documents are finished in order, and the first error ends it.
+absl::StatusOr<std::vector<Document>> ReadAllDeferred(std::vector<std::string> inputs,
+                                                      InputOptions options = {},
+                                                      size_t max_docs = 3) {
+  auto reader = CorpusReader::Open(std::move(inputs), options);
+  if (!reader.ok()) return reader.status();
+  (*reader)->DeferParsing();
+  LineParser parser(options);
+  std::vector<Document> all, batch;
+  for (;;) {
+    absl::StatusOr<size_t> n = (*reader)->ReadBatch(&batch, max_docs, 1 << 30);
+    for (Document& doc : batch) {
+      if (absl::Status finished = parser.Finish(&doc); !finished.ok()) return finished;
+      CHECK_FALSE(doc.unparsed);
+      all.push_back(doc);
+    }
+    if (!n.ok()) return n.status();
+    if (*n == 0) break;
+  }
+  return all;
+}
+
 std::vector<std::string> Ids(const std::vector<Document>& docs) {
   std::vector<std::string> ids;
   for (const Document& doc : docs) ids.push_back(doc.id);
@@ -269,6 +292,52 @@ TEST_CASE("malformed JSON Lines name the file and line") {
   options.priority_field = "p";
   WriteFile(path, "{\"id\": \"a\", \"text\": \"b\", \"p\": \"high\"}\n");
   CHECK(ErrorOf(ReadAll({path}, options)) == path + ":1: field \"p\" is not a number");
+}
+
+TEST_CASE("deferred parsing gives the same documents and the same errors") {
+  TempDir dir;
+  const std::string path = dir.File("mixed.jsonl");
+  WriteFile(path,
+            "{\"id\": \"a\", \"text\": \"one \\u00e9 two\\n\", \"p\": 2.5}\n"
+            "\n"
+            "{\"id\": 7, \"text\": \"caf\xff ok\"}\r\n"
+            "{\"text\": \"" +
+                std::string(5000, 'x') +
+                "\", \"id\": \"long\"}\n"
+                "{\"id\": \"short\", \"text\": \"\"}\n"
+                "{\"id\": \"last\", \"text\": \"no newline\"}");
+  for (const std::string id_field : {"id", "@line"}) {
+    InputOptions options;
+    options.priority_field = "p";
+    options.id_field = id_field;
+    auto direct = ReadAll({path}, options);
+    auto deferred = ReadAllDeferred({path}, options);
+    REQUIRE(direct.ok());
+    REQUIRE(deferred.ok());
+    REQUIRE(direct->size() == 5);
+    REQUIRE(deferred->size() == direct->size());
+    for (size_t i = 0; i < direct->size(); ++i) {
+      const Document& a = (*direct)[i];
+      const Document& b = (*deferred)[i];
+      CHECK(a.id == b.id);
+      CHECK(a.text == b.text);
+      CHECK(a.priority == b.priority);
+      CHECK(a.has_priority == b.has_priority);
+      CHECK(a.invalid_utf8 == b.invalid_utf8);
+      CHECK(a.source.line == b.source.line);
+      CHECK(a.ordinal == b.ordinal);
+    }
+    CHECK((*deferred)[1].invalid_utf8 == 1);
+  }
+  // A malformed line: the same message, from Finish instead of ReadBatch.
+  for (const std::string line : {"{\"id\": \"a\"}", "not json", "{\"id\": [], \"text\": \"b\"}"}) {
+    WriteFile(path, "{\"id\": \"ok\", \"text\": \"fine\"}\n" + line +
+                        "\n{\"id\": \"z\", \"text\": \"z\"}\n");
+    auto direct = ReadAll({path});
+    auto deferred = ReadAllDeferred({path});
+    REQUIRE_FALSE(direct.ok());
+    CHECK(deferred.status() == direct.status());
+  }
 }
 
 TEST_CASE("invalid UTF-8 inside a JSON string becomes U+FFFD and is counted") {

@@ -118,6 +118,11 @@ struct Document {
   DocumentSource source;
   // 0-based position in the whole stream of all inputs ("first seen" order).
   uint64_t ordinal = 0;
+  // True when a reader that defers parsing (CorpusReader::DeferParsing) left
+  // this JSON line unparsed: `text` holds the raw line, `id` is empty (or
+  // "<input>:<line>" with the id field "@line"), the other fields unset.
+  // LineParser::Finish makes it an ordinary document.
+  bool unparsed = false;
 };
 
 // An input as the reader resolved it: what it is and how to read it again.
@@ -167,6 +172,11 @@ class CorpusReader {
   // was first read). Requires input < inputs().size().
   InputFormat FormatOf(uint32_t input) const;
   const InputOptions& options() const;
+  // Makes every later ReadBatch leave JSON lines unparsed (see
+  // Document::unparsed): the reader only finds lines, so that the parsing
+  // can run on worker threads, each with a LineParser. A malformed line is
+  // then reported by LineParser::Finish, not by ReadBatch, which reads on.
+  void DeferParsing();
   // Makes ReadBatch skip every document whose ordinal `wanted` rejects
   // without reading or parsing it (a JSON line is only found, a file of a
   // tree not opened): its ordinal is used up but it is not returned, and
@@ -188,6 +198,30 @@ class CorpusReader {
  private:
   class Impl;
   explicit CorpusReader(std::unique_ptr<Impl> impl);
+  std::unique_ptr<Impl> impl_;
+};
+
+// Parses the JSON lines a reader left unparsed (CorpusReader::DeferParsing),
+// exactly as the reader would have: same fields, same messages.
+//
+// Thread-safety: one LineParser per thread; it holds reusable buffers.
+class LineParser {
+ public:
+  // `options` as given to the reader (its options()).
+  explicit LineParser(const InputOptions& options);
+  ~LineParser();
+  LineParser(const LineParser&) = delete;
+  LineParser& operator=(const LineParser&) = delete;
+
+  // Fills doc->id (unless the id field is "@line"), text, priority and
+  // invalid_utf8 from the raw line in doc->text, and clears doc->unparsed.
+  // Does nothing to a document that is not unparsed. On error (malformed
+  // JSON, a missing field or one of the wrong type; InvalidArgument, the
+  // message starting "<file>:<line>:") the document is left unusable.
+  absl::Status Finish(Document* doc);
+
+ private:
+  class Impl;
   std::unique_ptr<Impl> impl_;
 };
 

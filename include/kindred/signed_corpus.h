@@ -124,9 +124,7 @@ class SignedCorpus {
   // sorted runs in a scratch file in `dir` (see band_spill.h), keeping the
   // memory for the next documents.
   void SetSpill(uint64_t budget_bytes, std::string dir);
-  bool spill_due() const {
-    return spill_budget_ > 0 && band_keys_.bytes_used() > spill_budget_;
-  }
+  bool spill_due() const { return spill_budget_ > 0 && band_keys_.bytes_used() > spill_budget_; }
   // Errors: Aborted when the scratch file cannot be created or written.
   absl::Status SpillBandKeys();
   // The first document whose band keys are in memory (0 when none were
@@ -180,8 +178,11 @@ struct SignOptions {
   // ends signing with that error.
   std::function<absl::Status(const SignedCorpus&)> flush;
   size_t flush_bytes = 0;
-  size_t batch_documents = 4096;
-  size_t batch_bytes = 16 << 20;
+  // Documents are read and signed in batches of at most batch_documents
+  // documents, ending early once their texts reach batch_bytes. Small
+  // batches touch little fresh memory and keep the threads evenly loaded.
+  size_t batch_documents = 256;
+  size_t batch_bytes = 1 << 20;
   // Called after each batch with the running totals (on the calling thread).
   std::function<void(const SignStats&)> progress;
   // Called for each document whose text held invalid UTF-8 (on the calling

@@ -87,6 +87,7 @@ class CorpusReader::Impl {
   std::atomic<uint64_t> raw_bytes_{0};
   uint64_t raw_total_ = 0;
   std::function<bool(uint64_t)> wanted_;
+  bool defer_parsing_ = false;
 
  private:
   absl::StatusOr<bool> Next(Document* doc);
@@ -157,8 +158,14 @@ absl::StatusOr<bool> CorpusReader::Impl::NextLineDocument(Document* doc) {
     if (!io::IsBlankLine(line) && TakeNext()) break;
   }
   const uint64_t number = lines_->line_number();
-  absl::Status parsed = json_.Parse(line, lines_display_, number, doc);
-  if (!parsed.ok()) return parsed;
+  if (defer_parsing_) {
+    io::AssignReusing(line, &doc->text);
+    doc->id.clear();
+    doc->unparsed = true;
+  } else {
+    absl::Status parsed = json_.Parse(line, lines_display_, number, doc);
+    if (!parsed.ok()) return parsed;
+  }
   if (options_.id_field == io::kLineNumberId) doc->id = absl::StrCat(lines_name_, ":", number);
   doc->source.input = static_cast<uint32_t>(current_);
   doc->source.line = number;
@@ -271,6 +278,7 @@ absl::StatusOr<size_t> CorpusReader::Impl::ReadBatch(std::vector<Document>* batc
     // otherwise keep the largest document it ever held, and a batch of
     // thousands of slots would hold far more than max_bytes.
     if (doc.text.capacity() > kReusedTextBytes) std::string().swap(doc.text);
+    doc.unparsed = false;
     absl::StatusOr<bool> more = Next(&doc);
     if (!more.ok()) {
       failure_ = more.status();
@@ -335,6 +343,30 @@ CorpusReader::~CorpusReader() = default;
 absl::StatusOr<size_t> CorpusReader::ReadBatch(std::vector<Document>* batch, size_t max_docs,
                                                size_t max_bytes) {
   return impl_->ReadBatch(batch, max_docs, max_bytes);
+}
+
+void CorpusReader::DeferParsing() { impl_->defer_parsing_ = true; }
+
+class LineParser::Impl {
+ public:
+  explicit Impl(const InputOptions& options) : json(options) {}
+  io::JsonLineParser json;
+  std::string line;  // the raw line, swapped out of the document
+};
+
+LineParser::LineParser(const InputOptions& options) : impl_(std::make_unique<Impl>(options)) {}
+LineParser::~LineParser() = default;
+
+absl::Status LineParser::Finish(Document* doc) {
+  if (!doc->unparsed) return absl::OkStatus();
+  // The raw line moves to this parser's buffer and the document's buffer
+  // receives the text: both are reused, nothing is allocated per line.
+  impl_->line.swap(doc->text);
+  doc->unparsed = false;
+  const std::string& path = doc->source.path;
+  // As io::DisplayName, without a copy of the path for every line.
+  const absl::string_view display = path == "-" ? "standard input" : absl::string_view(path);
+  return impl_->json.Parse(impl_->line, display, doc->source.line, doc);
 }
 
 InputFormat CorpusReader::FormatOf(uint32_t input) const { return impl_->resolved_[input].format; }

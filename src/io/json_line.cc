@@ -93,7 +93,8 @@ absl::Status JsonLineParser::Parse(absl::string_view line, absl::string_view pat
   for (simdjson::dom::key_value_pair field : object) {
     if (field.key == text_field_) {
       if (!field.value.is_string()) return FieldError(where(), text_field_, "is not a string");
-      doc->text.assign(field.value.get_string().value_unsafe());
+      const std::string_view text = field.value.get_string().value_unsafe();
+      AssignReusing(absl::string_view(text.data(), text.size()), &doc->text);
       has_text = true;
     }
     if (!id_from_line_ && field.key == id_field_) {

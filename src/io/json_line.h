@@ -6,6 +6,8 @@
 #ifndef KINDRED_IO_JSON_LINE_H_
 #define KINDRED_IO_JSON_LINE_H_
 
+#include <algorithm>
+#include <bit>
 #include <memory>
 #include <string>
 
@@ -14,6 +16,17 @@
 #include "kindred/corpus.h"
 
 namespace kindred::io {
+
+// Sets *s to `bytes`, growing its buffer to a power of two (at least 1 KiB)
+// when it is too small: a buffer reused for texts of varying length then
+// reaches its size in a few steps instead of being reallocated for most
+// longer texts (reallocations of kilobyte blocks are slow in malloc).
+inline void AssignReusing(absl::string_view bytes, std::string* s) {
+  if (s->capacity() < bytes.size()) {
+    s->reserve(std::max<size_t>(1024, std::bit_ceil(bytes.size())));
+  }
+  s->assign(bytes.data(), bytes.size());
+}
 
 // The id_field value that makes ids "<file>:<line>".
 inline constexpr absl::string_view kLineNumberId = "@line";
