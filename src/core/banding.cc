@@ -18,26 +18,50 @@ namespace {
 constexpr int kIntervals = 512;
 constexpr double kTieTolerance = 1e-12;
 
-// log(1 - s^rows) on the Simpson grid of [from, to]; P(s) = -expm1(b * L).
+// Values on the Simpson grid of [from, to].
 using Grid = std::array<double, kIntervals + 1>;
 
-void LogMissGrid(double from, double to, uint32_t rows, Grid* grid) {
+// 1 - s^rows on the grid: the chance that one band misses a pair of
+// similarity s. A pair is missed by all `bands` bands with (1 - s^rows)^bands.
+void OneBandMissGrid(double from, double to, uint32_t rows, Grid* grid) {
   const double step = (to - from) / kIntervals;
   for (int i = 0; i <= kIntervals; ++i) {
     const double s = i == kIntervals ? to : from + step * i;
-    (*grid)[i] = std::log1p(-std::pow(s, static_cast<double>(rows)));
+    (*grid)[i] = 1.0 - std::pow(s, static_cast<double>(rows));
   }
 }
 
-// Simpson integral over [from, to] of P(s) for `bands` bands, given the grid.
-double IntegrateProbability(const Grid& log_miss, double from, double to, uint32_t bands) {
+// Composite Simpson integral over [from, to] of the values on the grid.
+double Integrate(const Grid& values, double from, double to) {
   double sum = 0;
   for (int i = 0; i <= kIntervals; ++i) {
-    const double p = -std::expm1(bands * log_miss[i]);
     const double weight = (i == 0 || i == kIntervals) ? 1.0 : (i % 2 == 1 ? 4.0 : 2.0);
-    sum += weight * p;
+    sum += weight * values[i];
   }
   return sum * (to - from) / (3.0 * kIntervals);
+}
+
+// The expected false positive mass (integral of the candidate probability
+// below the threshold) and false negative mass (integral of the miss
+// probability above it) of `rows` rows for 1, 2, ... max_bands bands:
+// calls cost(bands, fp, fn) for each. The miss probability of b + 1 bands
+// is that of b bands times one band's, so each band count costs one pass
+// over the grids (this runs before every sweep: it must be quick).
+template <typename Cost>
+void BandCosts(double threshold, uint32_t rows, uint32_t max_bands, Cost cost) {
+  Grid one_below, one_above, miss_below, miss_above, hit_below;
+  OneBandMissGrid(0.0, threshold, rows, &one_below);
+  OneBandMissGrid(threshold, 1.0, rows, &one_above);
+  miss_below.fill(1.0);
+  miss_above.fill(1.0);
+  for (uint32_t bands = 1; bands <= max_bands; ++bands) {
+    for (int i = 0; i <= kIntervals; ++i) {
+      miss_below[i] *= one_below[i];
+      miss_above[i] *= one_above[i];
+      hit_below[i] = 1.0 - miss_below[i];
+    }
+    cost(bands, Integrate(hit_below, 0.0, threshold), Integrate(miss_above, threshold, 1.0));
+  }
 }
 
 BandingCost MakeCost(Banding banding, double threshold, double fp_mass, double fn_mass,
@@ -79,12 +103,13 @@ double CandidateProbability(double s, uint32_t bands, uint32_t rows) {
 
 BandingCost CostOf(Banding banding, double threshold, double fn_weight, double fp_weight,
                    double min_recall) {
-  Grid below, above;
-  LogMissGrid(0.0, threshold, banding.rows, &below);
-  LogMissGrid(threshold, 1.0, banding.rows, &above);
-  const double fp = IntegrateProbability(below, 0.0, threshold, banding.bands);
-  const double fn = (1.0 - threshold) - IntegrateProbability(above, threshold, 1.0, banding.bands);
-  return MakeCost(banding, threshold, fp, std::max(fn, 0.0), fn_weight, fp_weight, min_recall);
+  BandingCost result;
+  BandCosts(threshold, banding.rows, banding.bands, [&](uint32_t bands, double fp, double fn) {
+    if (bands == banding.bands) {
+      result = MakeCost(banding, threshold, fp, fn, fn_weight, fp_weight, min_recall);
+    }
+  });
+  return result;
 }
 
 std::vector<BandingCost> RankBandings(double threshold, uint32_t perms, double fn_weight,
@@ -92,17 +117,11 @@ std::vector<BandingCost> RankBandings(double threshold, uint32_t perms, double f
   internal::RequireContract(threshold > 0 && threshold <= 1 && perms >= 1,
                             "RankBandings needs a threshold in (0, 1] and perms >= 1");
   std::vector<BandingCost> ranked;
-  Grid below, above;
   for (uint32_t rows = 1; rows <= perms; ++rows) {
-    // The grids depend on rows only; each band count reuses them.
-    LogMissGrid(0.0, threshold, rows, &below);
-    LogMissGrid(threshold, 1.0, rows, &above);
-    for (uint32_t bands = 1; uint64_t{bands} * rows <= perms; ++bands) {
-      const double fp = IntegrateProbability(below, 0.0, threshold, bands);
-      const double fn = (1.0 - threshold) - IntegrateProbability(above, threshold, 1.0, bands);
-      ranked.push_back(MakeCost({bands, rows}, threshold, fp, std::max(fn, 0.0), fn_weight,
-                                fp_weight, min_recall));
-    }
+    BandCosts(threshold, rows, perms / rows, [&](uint32_t bands, double fp, double fn) {
+      ranked.push_back(
+          MakeCost({bands, rows}, threshold, fp, fn, fn_weight, fp_weight, min_recall));
+    });
   }
   std::sort(ranked.begin(), ranked.end(), Better);
   return ranked;
