@@ -109,6 +109,47 @@ class BlockArena {
   size_t reserved_ = 0;
 };
 
+// An allocator for large arrays (std::vector<T, HugePageAllocator<T>>): an
+// allocation of 2 MiB or more is 2 MiB aligned and advised as huge pages,
+// like the arena's blocks, so that filling a per-document array of millions
+// of entries faults in a page per 2 MiB instead of per 4 KiB (each fault
+// costs microseconds). Smaller allocations come from operator new.
+template <typename T>
+struct HugePageAllocator {
+  using value_type = T;
+  static constexpr size_t kHugePage = size_t{2} << 20;
+
+  HugePageAllocator() = default;
+  template <typename U>
+  HugePageAllocator(const HugePageAllocator<U>&) {}
+
+  T* allocate(size_t n) {
+    const size_t bytes = n * sizeof(T);
+    if (bytes < kHugePage) return static_cast<T*>(::operator new(bytes));
+    const size_t rounded = (bytes + kHugePage - 1) / kHugePage * kHugePage;
+    void* memory = std::aligned_alloc(kHugePage, rounded);
+    if (memory == nullptr) throw std::bad_alloc();
+#ifdef MADV_HUGEPAGE
+    madvise(memory, rounded, MADV_HUGEPAGE);
+#endif
+    return static_cast<T*>(memory);
+  }
+  void deallocate(T* p, size_t n) {
+    if (n * sizeof(T) < kHugePage) {
+      ::operator delete(p);
+    } else {
+      std::free(p);
+    }
+  }
+  template <typename U>
+  bool operator==(const HugePageAllocator<U>&) const {
+    return true;
+  }
+};
+
+template <typename T>
+using HugePageVector = std::vector<T, HugePageAllocator<T>>;
+
 }  // namespace kindred
 
 #endif  // KINDRED_BLOCK_ARENA_H_

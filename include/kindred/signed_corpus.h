@@ -138,16 +138,16 @@ class SignedCorpus {
 
   uint32_t perms_;
   Banding banding_{0, 0};
-  std::vector<std::string> ids_;
-  std::vector<KeepFacts> facts_;
-  std::vector<DocumentOrigin> origins_;
-  std::vector<const uint64_t*> shingle_data_;
-  std::vector<uint32_t> shingle_count_;
-  std::vector<const uint32_t*> signature_data_;
+  HugePageVector<std::string> ids_;
+  HugePageVector<KeepFacts> facts_;
+  HugePageVector<DocumentOrigin> origins_;
+  HugePageVector<const uint64_t*> shingle_data_;
+  HugePageVector<uint32_t> shingle_count_;
+  HugePageVector<const uint32_t*> signature_data_;
   BlockArena<uint64_t> shingles_;
   BlockArena<uint32_t> signatures_;
-  std::vector<const uint64_t*> band_key_data_;  // lean only; null once spilled
-  std::vector<uint32_t> band_key_digests_;      // lean only
+  HugePageVector<const uint64_t*> band_key_data_;  // lean only; null once spilled
+  HugePageVector<uint32_t> band_key_digests_;      // lean only
   BlockArena<uint64_t> band_keys_;
   uint64_t spill_budget_ = 0;
   std::string spill_dir_;
