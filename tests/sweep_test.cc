@@ -5,6 +5,7 @@
 #include "kindred/sweep.h"
 
 #include <catch2/catch.hpp>
+#include <cstdlib>
 #include <filesystem>
 #include <set>
 
@@ -266,12 +267,68 @@ TEST_CASE("A document changed between the two readings is an error", "[sweep]") 
                Catch::Contains("corpus.jsonl:2") && Catch::Contains("\"b\" changed"));
   }
   SECTION("lines gone") {
+    // A plain file's lines are read again at their offsets: the line is gone.
     dir.Write("corpus.jsonl", "{\"id\":\"a\",\"text\":\"one two three four five six\"}\n");
     const std::vector<uint32_t> docs = {0, 1};
     const absl::Status status = ReloadShingles((*reader)->ResolvedInputs(), (*reader)->options(),
                                                settings, docs, 1, &corpus);
     REQUIRE(status.code() == absl::StatusCode::kInvalidArgument);
-    CHECK_THAT(std::string(status.message()), Catch::Contains("1 documents could not be found"));
+    CHECK_THAT(std::string(status.message()),
+               Catch::Contains("corpus.jsonl:2") && Catch::Contains("\"b\" changed"));
+  }
+}
+
+TEST_CASE("Documents are read again at their offsets, or by reading the input again", "[sweep]") {
+  testing::TempDir dir;
+  const std::string lines =
+      "{\"id\":\"a\",\"text\":\"one two three four five six\"}\n"
+      "\n"
+      "{\"id\":\"b\",\"text\":\"one two three four five six\"}\r\n"
+      "{\"id\":\"c\",\"text\":\"one two three four five six\"}";
+  const std::string plain = dir.Write("plain.jsonl", lines);
+  SignatureSettings settings;
+  for (const std::string& id_field : {std::string("id"), std::string("@line")}) {
+    InputOptions options;
+    options.id_field = id_field;
+    auto reader = CorpusReader::Open({plain}, options);
+    REQUIRE(reader.ok());
+    SignedCorpus corpus = SignedCorpus::Lean(settings.perms, Banding{16, 8});
+    SignStats stats;
+    REQUIRE(SignCorpus(**reader, settings, SignOptions{}, &corpus, &stats).ok());
+    REQUIRE(corpus.size() == 3);
+    CHECK(corpus.origin(0).offset == 0);
+    CHECK(corpus.origin(1).offset == lines.find("{\"id\":\"b\""));
+    CHECK(corpus.origin(2).offset == lines.find("{\"id\":\"c\""));
+    const std::vector<uint32_t> docs = {0, 1, 2};
+    REQUIRE(ReloadShingles((*reader)->ResolvedInputs(), (*reader)->options(), settings, docs, 2,
+                           &corpus)
+                .ok());
+    for (uint32_t doc : docs) CHECK(corpus.shingle_count(doc) == 2);
+  }
+  SECTION("a compressed input is read again as a stream") {
+    const std::string packed = dir.File("packed.jsonl.gz");
+    REQUIRE(std::system(("gzip -c " + plain + " > " + packed).c_str()) == 0);
+    auto reader = CorpusReader::Open({packed}, InputOptions{});
+    REQUIRE(reader.ok());
+    SignedCorpus corpus = SignedCorpus::Lean(settings.perms, Banding{16, 8});
+    SignStats stats;
+    REQUIRE(SignCorpus(**reader, settings, SignOptions{}, &corpus, &stats).ok());
+    CHECK(corpus.origin(1).offset == kUnknownOffset);
+    const std::vector<uint32_t> docs = {1, 2};
+    SECTION("unchanged") {
+      REQUIRE(ReloadShingles((*reader)->ResolvedInputs(), (*reader)->options(), settings, docs, 1,
+                             &corpus)
+                  .ok());
+      CHECK(corpus.has_shingles(1));
+      CHECK(corpus.has_shingles(2));
+    }
+    SECTION("lines gone: counted, not named") {
+      REQUIRE(std::system(("head -n 1 " + plain + " | gzip -c > " + packed).c_str()) == 0);
+      const absl::Status status = ReloadShingles((*reader)->ResolvedInputs(), (*reader)->options(),
+                                                 settings, docs, 1, &corpus);
+      REQUIRE(status.code() == absl::StatusCode::kInvalidArgument);
+      CHECK_THAT(std::string(status.message()), Catch::Contains("2 documents could not be found"));
+    }
   }
 }
 

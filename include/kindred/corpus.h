@@ -95,13 +95,21 @@ struct InputOptions {
   std::string stdin_copy_path;
 };
 
+// DocumentSource::offset when the line cannot be found again by its offset.
+inline constexpr uint64_t kUnknownOffset = ~uint64_t{0};
+
 // Where a document came from: enough to name it in messages and to find it
 // again.
 struct DocumentSource {
   uint32_t input = 0;  // index into the reader's input list
   uint64_t line = 0;   // 1-based line for JSON Lines, 0 otherwise
-  std::string path;    // the file read: for trees, the full path of the file;
-                       // "-" for standard input
+  // JSON Lines: where the line starts in the input's read_path (see
+  // ResolvedInput), for an input that is an uncompressed file or standard
+  // input; else kUnknownOffset (compressed files, files of a tree, text
+  // documents).
+  uint64_t offset = kUnknownOffset;
+  std::string path;  // the file read: for trees, the full path of the file;
+                     // "-" for standard input
 };
 
 struct Document {

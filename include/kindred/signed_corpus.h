@@ -42,8 +42,9 @@ namespace kindred {
 
 // Where a document was read: enough to name it in a message.
 struct DocumentOrigin {
-  uint32_t input = 0;  // index into the reader's input list
-  uint64_t line = 0;   // 1-based line for JSON Lines, 0 for whole files
+  uint32_t input = 0;                // index into the reader's input list
+  uint64_t line = 0;                 // 1-based line for JSON Lines, 0 for whole files
+  uint64_t offset = kUnknownOffset;  // DocumentSource::offset
 };
 
 class SignedCorpus {

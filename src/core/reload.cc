@@ -1,6 +1,11 @@
 #include "kindred/reload.h"
 
+#include <fcntl.h>
+#include <unistd.h>
+
 #include <algorithm>
+#include <cerrno>
+#include <cstring>
 #include <memory>
 
 #include "absl/strings/str_cat.h"
@@ -10,6 +15,155 @@
 #include "kindred/signer.h"
 
 namespace kindred {
+namespace {
+
+// Signs documents read again and attaches them to the corpus, after checking
+// that each is the document signing saw.
+class Attacher {
+ public:
+  Attacher(const InputOptions& options, const SignatureSettings& settings, int threads,
+           std::vector<std::unique_ptr<Shingler>> shinglers, SignedCorpus* corpus)
+      : threads_(threads),
+        shinglers_(std::move(shinglers)),
+        signer_(settings),
+        perms_(settings.perms),
+        banding_(corpus->lean_banding()),
+        corpus_(corpus),
+        keys_(banding_.bands) {
+    for (int t = 0; t < threads; ++t) parsers_.push_back(std::make_unique<LineParser>(options));
+  }
+
+  // Documents attached so far.
+  size_t attached() const { return attached_; }
+
+  // `batch` holds documents with their ordinals set (JSON lines may be
+  // unparsed). InvalidArgument naming the first one that changed.
+  absl::Status Attach(std::vector<Document>& batch) {
+    const size_t n = batch.size();
+    sets_.resize(n);
+    signatures_.resize(n * perms_);
+    errors_.assign(n, absl::OkStatus());
+    ParallelFor(n, threads_, [&](size_t begin, size_t end, int worker) {
+      for (size_t i = begin; i < end; ++i) {
+        errors_[i] = parsers_[worker]->Finish(&batch[i]);
+        if (errors_[i].ok()) errors_[i] = shinglers_[worker]->Shingle(batch[i].text, &sets_[i]);
+        signer_.Sign(sets_[i], absl::MakeSpan(&signatures_[i * perms_], perms_));
+      }
+    });
+    for (size_t i = 0; i < n; ++i) {
+      const Document& doc = batch[i];
+      const uint64_t ordinal = doc.ordinal;
+      const auto signature = absl::MakeConstSpan(&signatures_[i * perms_], perms_);
+      bool same = ordinal < corpus_->size() && errors_[i].ok() && doc.id == corpus_->id(ordinal) &&
+                  sets_[i].empty() == (corpus_->shingle_count(ordinal) == 0);
+      if (same && !sets_[i].empty()) {
+        BandKeys(signature, banding_, absl::MakeSpan(keys_));
+        same = SignedCorpus::BandKeyDigest(keys_) == corpus_->band_key_digest(ordinal);
+      }
+      if (!same) {
+        const std::string where = doc.source.line > 0
+                                      ? absl::StrCat(doc.source.path, ":", doc.source.line)
+                                      : doc.source.path;
+        const std::string& id = ordinal < corpus_->size() ? corpus_->id(ordinal) : doc.id;
+        return absl::InvalidArgumentError(
+            absl::StrCat(where, ": document \"", id,
+                         "\" changed while kindred was reading the corpus; run again"));
+      }
+      corpus_->AttachShingles(static_cast<uint32_t>(ordinal), sets_[i], signature);
+      ++attached_;
+    }
+    return absl::OkStatus();
+  }
+
+ private:
+  const int threads_;
+  std::vector<std::unique_ptr<Shingler>> shinglers_;
+  std::vector<std::unique_ptr<LineParser>> parsers_;
+  const Signer signer_;
+  const uint32_t perms_;
+  const Banding banding_;
+  SignedCorpus* corpus_;
+  std::vector<ShingleSet> sets_;
+  std::vector<uint32_t> signatures_;
+  std::vector<absl::Status> errors_;
+  std::vector<uint64_t> keys_;
+  size_t attached_ = 0;
+};
+
+// Reads the line that starts at `offset` of `fd` (without its "\n"; all that
+// is left when no "\n" ends it) into *line. Stops past max_bytes: the
+// document then fails the check that it is unchanged.
+absl::Status ReadLineAt(int fd, uint64_t offset, uint64_t max_bytes, const std::string& name,
+                        std::string* line) {
+  line->clear();
+  size_t chunk = 4096;
+  for (;;) {
+    const size_t have = line->size();
+    line->resize(have + chunk);
+    const ssize_t n = pread(fd, line->data() + have, chunk, static_cast<off_t>(offset + have));
+    if (n < 0 && errno == EINTR) {
+      line->resize(have);
+      continue;
+    }
+    if (n < 0) return absl::ErrnoToStatus(errno, absl::StrCat(name, ": cannot read"));
+    const char* newline = static_cast<const char*>(std::memchr(line->data() + have, '\n', n));
+    if (newline != nullptr) {
+      line->resize(static_cast<size_t>(newline - line->data()));
+      return absl::OkStatus();
+    }
+    line->resize(have + static_cast<size_t>(n));
+    if (n == 0 || line->size() > max_bytes) return absl::OkStatus();
+    chunk *= 2;
+  }
+}
+
+// Reads documents `docs` (each with a known offset) at their offsets.
+absl::Status ReadAtOffsets(const std::vector<ResolvedInput>& inputs, const InputOptions& options,
+                           const SignedCorpus& corpus, absl::Span<const uint32_t> docs,
+                           Attacher* attacher) {
+  struct Fd {
+    int fd = -1;
+    ~Fd() {
+      if (fd >= 0) close(fd);
+    }
+  };
+  std::vector<Fd> fds(inputs.size());
+  std::vector<Document> batch;
+  constexpr size_t kBatch = 1024;
+  for (size_t start = 0; start < docs.size(); start += kBatch) {
+    const size_t n = std::min(kBatch, docs.size() - start);
+    batch.resize(n);
+    for (size_t i = 0; i < n; ++i) {
+      const uint32_t ordinal = docs[start + i];
+      const DocumentOrigin& origin = corpus.origin(ordinal);
+      const ResolvedInput& input = inputs[origin.input];
+      Fd& fd = fds[origin.input];
+      if (fd.fd < 0) {
+        fd.fd = open(input.read_path.c_str(), O_RDONLY | O_CLOEXEC);
+        if (fd.fd < 0) {
+          return absl::ErrnoToStatus(errno, absl::StrCat(input.name, ": cannot open"));
+        }
+      }
+      Document& doc = batch[i];
+      if (absl::Status read =
+              ReadLineAt(fd.fd, origin.offset, options.max_document_bytes, input.name, &doc.text);
+          !read.ok()) {
+        return read;
+      }
+      doc.unparsed = true;
+      doc.id = options.id_field == "@line" ? absl::StrCat(input.name, ":", origin.line) : "";
+      doc.source.input = origin.input;
+      doc.source.line = origin.line;
+      doc.source.offset = origin.offset;
+      doc.source.path = input.name;
+      doc.ordinal = ordinal;
+    }
+    if (absl::Status attached = attacher->Attach(batch); !attached.ok()) return attached;
+  }
+  return absl::OkStatus();
+}
+
+}  // namespace
 
 absl::Status ReloadShingles(const std::vector<ResolvedInput>& inputs, const InputOptions& options,
                             const SignatureSettings& settings, absl::Span<const uint32_t> docs,
@@ -18,64 +172,40 @@ absl::Status ReloadShingles(const std::vector<ResolvedInput>& inputs, const Inpu
   threads = std::max(1, threads);
   auto made = Shingler::CreateMany(settings, threads);
   if (!made.ok()) return made.status();
-  std::vector<std::unique_ptr<Shingler>> shinglers = *std::move(made);
-  const Signer signer(settings);
-  const uint32_t perms = settings.perms;
-  const Banding banding = corpus->lean_banding();
+  Attacher attacher(options, settings, threads, *std::move(made), corpus);
 
-  auto reader = CorpusReader::Reopen(inputs, options);
-  if (!reader.ok()) return reader.status();
-  std::vector<uint8_t> wanted(corpus->size(), 0);
-  for (uint32_t doc : docs) wanted[doc] = 1;
-  (*reader)->SetFilter(
-      [&wanted](uint64_t ordinal) { return ordinal < wanted.size() && wanted[ordinal] != 0; });
-
-  std::vector<Document> batch;
-  std::vector<ShingleSet> sets;
-  std::vector<uint32_t> signatures;
-  std::vector<absl::Status> errors;
-  std::vector<uint64_t> keys(banding.bands);
-  size_t found = 0;
-  for (;;) {
-    absl::StatusOr<size_t> count = (*reader)->ReadBatch(&batch, 4096, 16 << 20);
-    if (!count.ok()) return count.status();
-    if (*count == 0) break;
-    const size_t n = batch.size();
-    sets.resize(n);
-    signatures.resize(n * perms);
-    errors.assign(n, absl::OkStatus());
-    ParallelFor(n, threads, [&](size_t begin, size_t end, int worker) {
-      for (size_t i = begin; i < end; ++i) {
-        errors[i] = shinglers[worker]->Shingle(batch[i].text, &sets[i]);
-        signer.Sign(sets[i], absl::MakeSpan(&signatures[i * perms], perms));
-      }
-    });
-    for (size_t i = 0; i < n; ++i) {
-      const Document& doc = batch[i];
-      const uint64_t ordinal = doc.ordinal;
-      const auto signature = absl::MakeConstSpan(&signatures[i * perms], perms);
-      bool same = ordinal < corpus->size() && errors[i].ok() && doc.id == corpus->id(ordinal) &&
-                  sets[i].empty() == (corpus->shingle_count(ordinal) == 0);
-      if (same && !sets[i].empty()) {
-        BandKeys(signature, banding, absl::MakeSpan(keys));
-        same = SignedCorpus::BandKeyDigest(keys) == corpus->band_key_digest(ordinal);
-      }
-      if (!same) {
-        const std::string where =
-            doc.source.line > 0 ? absl::StrCat(doc.source.path, ":", doc.source.line)
-                                : doc.source.path;
-        return absl::InvalidArgumentError(
-            absl::StrCat(where, ": document \"", doc.id,
-                         "\" changed while kindred was reading the corpus; run again"));
-      }
-      corpus->AttachShingles(static_cast<uint32_t>(ordinal), sets[i], signature);
-      ++found;
+  // A JSON line whose offset is known is read where it starts; the other
+  // documents are found by reading the inputs again, skipping the rest.
+  std::vector<uint32_t> at_offset, streamed;
+  for (uint32_t doc : docs) {
+    const bool known = doc < corpus->size() && corpus->origin(doc).offset != kUnknownOffset &&
+                       corpus->origin(doc).input < inputs.size() &&
+                       !inputs[corpus->origin(doc).input].read_path.empty();
+    (known ? at_offset : streamed).push_back(doc);
+  }
+  if (absl::Status read = ReadAtOffsets(inputs, options, *corpus, at_offset, &attacher);
+      !read.ok()) {
+    return read;
+  }
+  if (!streamed.empty()) {
+    auto reader = CorpusReader::Reopen(inputs, options);
+    if (!reader.ok()) return reader.status();
+    std::vector<uint8_t> wanted(corpus->size(), 0);
+    for (uint32_t doc : streamed) wanted[doc] = 1;
+    (*reader)->SetFilter(
+        [&wanted](uint64_t ordinal) { return ordinal < wanted.size() && wanted[ordinal] != 0; });
+    std::vector<Document> batch;
+    for (;;) {
+      absl::StatusOr<size_t> count = (*reader)->ReadBatch(&batch, 4096, 16 << 20);
+      if (!count.ok()) return count.status();
+      if (*count == 0) break;
+      if (absl::Status attached = attacher.Attach(batch); !attached.ok()) return attached;
     }
   }
-  if (found != docs.size()) {
-    return absl::InvalidArgumentError(
-        absl::StrCat("the corpus changed while kindred was reading it: ", docs.size() - found,
-                     " documents could not be found again; run again"));
+  if (attacher.attached() != docs.size()) {
+    return absl::InvalidArgumentError(absl::StrCat(
+        "the corpus changed while kindred was reading it: ", docs.size() - attacher.attached(),
+        " documents could not be found again; run again"));
   }
   return absl::OkStatus();
 }

@@ -284,7 +284,7 @@ class Pipeline {
         if (options_.on_invalid_utf8) options_.on_invalid_utf8(doc.id, text.invalid_utf8);
       }
       const KeepFacts facts{doc.text.size(), doc.priority, doc.has_priority};
-      const DocumentOrigin origin{doc.source.input, doc.source.line};
+      const DocumentOrigin origin{doc.source.input, doc.source.line, doc.source.offset};
       if (lean_) {
         out_->AddWithBandKeys(
             std::move(doc.id), facts, origin, batch->set_sizes[i],

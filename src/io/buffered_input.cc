@@ -24,6 +24,7 @@ BufferedInput::BufferedInput(std::unique_ptr<ByteStream> stream, std::string nam
 absl::StatusOr<size_t> BufferedInput::Fill() {
   if (eof_) return 0;
   if (begin_ > 0) {
+    dropped_ += begin_;
     std::memmove(buffer_.data(), buffer_.data() + begin_, end_ - begin_);
     end_ -= begin_;
     begin_ = 0;
@@ -62,6 +63,7 @@ absl::StatusOr<bool> BufferedInput::NextLine(absl::string_view* line, bool* term
                             name_, line_number_, max_bytes_));
       }
       *line = absl::string_view(buffer_.data() + begin_, length);
+      line_offset_ = dropped_ + begin_;
       *terminated = newline != nullptr;
       begin_ += length + (newline != nullptr ? 1 : 0);
       return true;
@@ -97,8 +99,8 @@ absl::Status BufferedInput::ReadRest(std::string* out) {
   while (!eof_) {
     if (out->size() > max_bytes_) break;
     size_t old_size = out->size();
-    size_t grow = std::max<size_t>(
-        kFirstReadBytes, std::min<uint64_t>(old_size, max_bytes_ + 1 - old_size));
+    size_t grow =
+        std::max<size_t>(kFirstReadBytes, std::min<uint64_t>(old_size, max_bytes_ + 1 - old_size));
     out->resize(old_size + grow);
     absl::StatusOr<size_t> n = stream_->Read(out->data() + old_size, grow);
     if (!n.ok()) return n.status();

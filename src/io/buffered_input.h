@@ -32,6 +32,8 @@ class BufferedInput {
   absl::StatusOr<bool> NextLine(absl::string_view* line, bool* terminated);
   // 1-based number of the last line returned.
   uint64_t line_number() const { return line_number_; }
+  // Offset in the stream of the first byte of the last line returned.
+  uint64_t line_offset() const { return line_offset_; }
 
   // The first byte that is not JSON whitespace, without consuming anything;
   // -1 when there is none within max_bytes.
@@ -53,6 +55,8 @@ class BufferedInput {
   size_t end_ = 0;    // one past the last byte read from the stream
   bool eof_ = false;
   uint64_t line_number_ = 0;
+  uint64_t line_offset_ = 0;
+  uint64_t dropped_ = 0;  // bytes of the stream before buffer_[0]
 };
 
 }  // namespace kindred::io

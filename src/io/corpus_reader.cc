@@ -105,9 +105,12 @@ class CorpusReader::Impl {
   absl::StatusOr<bool> NextLineDocument(Document* doc);
   absl::StatusOr<bool> NextTreeDocument(Document* doc);
   absl::StatusOr<bool> StartInput(Document* doc);
-  absl::Status OpenLines(const std::string& path, std::string name);
+  // `whole_input`: the file is an input of its own (not a file of a tree),
+  // so that line offsets can find a line again (DocumentSource::offset).
+  absl::Status OpenLines(const std::string& path, std::string name, bool whole_input);
   absl::Status ReadTextDocument(io::BufferedInput* input, Document* doc);
-  absl::StatusOr<std::unique_ptr<io::BufferedInput>> OpenBuffered(const std::string& path);
+  absl::StatusOr<std::unique_ptr<io::BufferedInput>> OpenBuffered(
+      const std::string& path, io::Compression* compression = nullptr);
 
   io::JsonLineParser json_;
   size_t current_ = 0;                        // input being read
@@ -116,25 +119,29 @@ class CorpusReader::Impl {
   std::string lines_name_;                    // their name in ids and messages
   std::string lines_path_;                    // their path in DocumentSource
   std::string lines_display_;                 // their name in messages
+  bool lines_offsets_ = false;                // their line offsets find lines again
   absl::Status failure_;
 };
 
 absl::StatusOr<std::unique_ptr<io::BufferedInput>> CorpusReader::Impl::OpenBuffered(
-    const std::string& path) {
+    const std::string& path, io::Compression* compression) {
   io::DecodeOptions decode;
   decode.max_decompressed_bytes = options_.max_decompressed_bytes;
   decode.raw_bytes = &raw_bytes_;
   if (path == "-") decode.copy_path = options_.stdin_copy_path;
-  auto stream = io::OpenDecoded(path, decode);
+  auto stream = io::OpenDecoded(path, decode, compression);
   if (!stream.ok()) return stream.status();
   return std::make_unique<io::BufferedInput>(std::move(*stream), io::DisplayName(path),
                                              options_.max_document_bytes);
 }
 
-absl::Status CorpusReader::Impl::OpenLines(const std::string& path, std::string name) {
-  auto opened = OpenBuffered(path);
+absl::Status CorpusReader::Impl::OpenLines(const std::string& path, std::string name,
+                                           bool whole_input) {
+  io::Compression compression = io::Compression::kNone;
+  auto opened = OpenBuffered(path, &compression);
   if (!opened.ok()) return opened.status();
   lines_ = std::move(*opened);
+  lines_offsets_ = whole_input && compression == io::Compression::kNone;
   lines_name_ = std::move(name);
   lines_path_ = path;
   lines_display_ = io::DisplayName(path);
@@ -143,6 +150,7 @@ absl::Status CorpusReader::Impl::OpenLines(const std::string& path, std::string 
 
 absl::Status CorpusReader::Impl::ReadTextDocument(io::BufferedInput* input, Document* doc) {
   doc->source.line = 0;
+  doc->source.offset = kUnknownOffset;
   doc->priority = 0;
   doc->has_priority = false;
   doc->invalid_utf8 = 0;
@@ -169,6 +177,7 @@ absl::StatusOr<bool> CorpusReader::Impl::NextLineDocument(Document* doc) {
   if (options_.id_field == io::kLineNumberId) doc->id = absl::StrCat(lines_name_, ":", number);
   doc->source.input = static_cast<uint32_t>(current_);
   doc->source.line = number;
+  doc->source.offset = lines_offsets_ ? lines_->line_offset() : kUnknownOffset;
   doc->source.path = lines_path_;
   return true;
 }
@@ -179,7 +188,7 @@ absl::StatusOr<bool> CorpusReader::Impl::NextTreeDocument(Document* doc) {
     absl::StatusOr<bool> more = tree_->Next(&relative, &full);
     if (!more.ok() || !*more) return more;
     if (resolved_[current_].format == InputFormat::kJsonLines) {
-      absl::Status opened = OpenLines(full, full);
+      absl::Status opened = OpenLines(full, full, false);
       if (!opened.ok()) return opened;
       return false;  // the caller reads the lines
     }
@@ -203,7 +212,7 @@ absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
     return false;
   }
   if (input.format == InputFormat::kJsonLines && (!input.is_stdin || reopened_)) {
-    absl::Status opened = OpenLines(PathOf(input), input.name);
+    absl::Status opened = OpenLines(PathOf(input), input.name, true);
     if (!opened.ok()) return opened;
     return false;
   }
@@ -211,7 +220,8 @@ absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
     ++current_;
     return false;
   }
-  auto opened = OpenBuffered(PathOf(input));
+  io::Compression compression = io::Compression::kNone;
+  auto opened = OpenBuffered(PathOf(input), &compression);
   if (!opened.ok()) return opened.status();
   if (input.format == InputFormat::kAuto) {
     absl::StatusOr<int> first = (*opened)->PeekFirstNonBlank();
@@ -224,6 +234,8 @@ absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
   }
   if (input.format == InputFormat::kJsonLines) {
     lines_ = std::move(*opened);
+    // Standard input's copy holds the decompressed bytes: offsets hold there.
+    lines_offsets_ = input.is_stdin || compression == io::Compression::kNone;
     lines_name_ = input.name;
     lines_path_ = input.name;
     lines_display_ = io::DisplayName(input.name);
