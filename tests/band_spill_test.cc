@@ -3,9 +3,8 @@
 // files that cannot be made are errors, not crashes.
 #include "kindred/band_spill.h"
 
-#include <catch2/catch.hpp>
-
 #include <algorithm>
+#include <catch2/catch.hpp>
 
 #include "kindred/banding.h"
 #include "testlib/similar_sets.h"
@@ -31,9 +30,14 @@ TEST_CASE("Merged runs give the entries of one sort of everything", "[band_spill
   // Runs of uneven sizes, then the rest stays resident.
   size_t begin = 0;
   for (size_t size : {1, 999, 1500, 37, 2000}) {
+    // Band by band, as a corpus holds them.
+    std::vector<std::vector<uint64_t>> columns(kBands);
+    for (size_t doc = begin; doc < begin + size; ++doc) {
+      for (uint32_t band = 0; band < kBands; ++band) columns[band].push_back(keys[doc][band]);
+    }
     std::vector<const uint64_t*> run;
-    for (size_t doc = begin; doc < begin + size; ++doc) run.push_back(keys[doc].data());
-    REQUIRE((*spill)->AddRun(static_cast<uint32_t>(begin), run).ok());
+    for (const auto& column : columns) run.push_back(column.data());
+    REQUIRE((*spill)->AddRun(static_cast<uint32_t>(begin), size, run).ok());
     begin += size;
   }
   REQUIRE((*spill)->runs() == 5);
@@ -90,8 +94,7 @@ TEST_CASE("A scratch directory that cannot take files is an error", "[band_spill
   auto missing = BandSpill::Create("/nonexistent-kindred-dir", 4);
   REQUIRE(!missing.ok());
   CHECK(missing.status().code() == absl::StatusCode::kAborted);
-  CHECK_THAT(std::string(missing.status().message()),
-             Catch::Contains("/nonexistent-kindred-dir"));
+  CHECK_THAT(std::string(missing.status().message()), Catch::Contains("/nonexistent-kindred-dir"));
 }
 
 }  // namespace

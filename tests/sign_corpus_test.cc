@@ -53,8 +53,9 @@ Outcome Sign(const std::vector<std::string>& inputs, int threads, size_t batch_d
   for (size_t d = 0; d < corpus.size(); ++d) {
     outcome.ids.push_back(corpus.id(d));
     if (lean) {
-      const auto keys = corpus.band_keys(d);
-      outcome.band_keys.insert(outcome.band_keys.end(), keys.begin(), keys.end());
+      for (uint32_t band = 0; band < corpus.lean_banding().bands; ++band) {
+        outcome.band_keys.push_back(corpus.band_key(d, band));
+      }
     } else {
       const auto signature = corpus.signature(d);
       outcome.signatures.insert(outcome.signatures.end(), signature.begin(), signature.end());

@@ -46,16 +46,16 @@ void SortEntries(std::vector<BucketEntry>& entries, std::vector<BucketEntry>& sc
 class BandSpill {
  public:
   // Errors: Aborted naming the directory when the file cannot be created.
-  static absl::StatusOr<std::unique_ptr<BandSpill>> Create(const std::string& dir,
-                                                           uint32_t bands);
+  static absl::StatusOr<std::unique_ptr<BandSpill>> Create(const std::string& dir, uint32_t bands);
   ~BandSpill();
   BandSpill(const BandSpill&) = delete;
   BandSpill& operator=(const BandSpill&) = delete;
 
-  // Writes one run from documents first_doc, first_doc + 1, ...:
-  // keys[i][band] is the key of document first_doc + i in `band` (entries
-  // equal to kNoBandKey are left out). Errors: Aborted (disk full, ...).
-  absl::Status AddRun(uint32_t first_doc, absl::Span<const uint64_t* const> keys);
+  // Writes one run of documents first_doc, ..., first_doc + docs - 1:
+  // columns[band][i] is the key of document first_doc + i in `band`
+  // (entries equal to kNoBandKey are left out). Errors: Aborted (disk
+  // full, ...).
+  absl::Status AddRun(uint32_t first_doc, size_t docs, absl::Span<const uint64_t* const> columns);
 
   uint32_t bands() const { return bands_; }
   size_t runs() const { return runs_.size(); }
@@ -67,7 +67,8 @@ class BandSpill {
     uint64_t offset;  // byte offset in the file
     uint64_t count;   // entries
   };
-  BandSpill(int fd, std::string dir, uint32_t bands) : fd_(fd), dir_(std::move(dir)), bands_(bands) {}
+  BandSpill(int fd, std::string dir, uint32_t bands)
+      : fd_(fd), dir_(std::move(dir)), bands_(bands) {}
 
   int fd_;
   std::string dir_;

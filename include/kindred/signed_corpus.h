@@ -47,6 +47,16 @@ struct DocumentOrigin {
   uint64_t offset = kUnknownOffset;  // DocumentSource::offset
 };
 
+namespace internal {
+// Frees a SignedCorpus key table (HugePageAllocator, `values` keys).
+struct FreeKeyTable {
+  size_t values = 0;
+  void operator()(uint64_t* table) const {
+    HugePageAllocator<uint64_t>().deallocate(table, values);
+  }
+};
+}  // namespace internal
+
 class SignedCorpus {
  public:
   // Keeps signatures and shingle sets of every document.
@@ -110,10 +120,16 @@ class SignedCorpus {
   absl::Span<const uint32_t> signature(size_t doc) const {
     return absl::MakeConstSpan(signature_data_[doc], perms_);
   }
-  // Lean only: the document's band keys (lean_banding().bands of them).
-  // Requires doc >= first_resident().
-  absl::Span<const uint64_t> band_keys(size_t doc) const {
-    return absl::MakeConstSpan(band_key_data_[doc], banding_.bands);
+  // Lean only: the key of document `doc` in `band`. Requires
+  // doc >= first_resident() and band < lean_banding().bands.
+  uint64_t band_key(size_t doc, uint32_t band) const {
+    return key_table_[band * key_stride_ + (doc - first_resident_)];
+  }
+  // Lean only: the keys in `band` of the documents held in memory, from
+  // first_resident() on. Keys are stored band by band, so that candidate
+  // search reads each band's keys in one sequential sweep.
+  absl::Span<const uint64_t> band_column(uint32_t band) const {
+    return absl::MakeConstSpan(key_table_.get() + band * key_stride_, size() - first_resident_);
   }
   // Lean only: a 32-bit digest of the document's band keys (kept for every
   // document, spilled or not), to check a document read again.
@@ -125,7 +141,7 @@ class SignedCorpus {
   // sorted runs in a scratch file in `dir` (see band_spill.h), keeping the
   // memory for the next documents.
   void SetSpill(uint64_t budget_bytes, std::string dir);
-  bool spill_due() const { return spill_budget_ > 0 && band_keys_.bytes_used() > spill_budget_; }
+  bool spill_due() const { return spill_budget_ > 0 && resident_key_bytes() > spill_budget_; }
   // Errors: Aborted when the scratch file cannot be created or written.
   absl::Status SpillBandKeys();
   // The first document whose band keys are in memory (0 when none were
@@ -135,7 +151,10 @@ class SignedCorpus {
 
  private:
   void AddKeys(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
-               uint32_t shingle_count, const uint64_t* keys);
+               uint32_t shingle_count, absl::Span<const uint64_t> keys);
+  size_t resident_key_bytes() const {
+    return (size() - first_resident_) * banding_.bands * sizeof(uint64_t);
+  }
 
   uint32_t perms_;
   Banding banding_{0, 0};
@@ -147,9 +166,14 @@ class SignedCorpus {
   HugePageVector<const uint32_t*> signature_data_;
   BlockArena<uint64_t> shingles_;
   BlockArena<uint32_t> signatures_;
-  HugePageVector<const uint64_t*> band_key_data_;  // lean only; null once spilled
-  HugePageVector<uint32_t> band_key_digests_;      // lean only
-  BlockArena<uint64_t> band_keys_;
+  // Makes room for `docs` resident documents in every band's column.
+  void GrowKeyTable(size_t docs);
+  // Lean only: one allocation (huge pages) holding a column of key_stride_
+  // keys per band: the key of document first_resident_ + i in band b is at
+  // b * key_stride_ + i.
+  std::unique_ptr<uint64_t[], internal::FreeKeyTable> key_table_;
+  size_t key_stride_ = 0;
+  HugePageVector<uint32_t> band_key_digests_;  // lean only
   uint64_t spill_budget_ = 0;
   std::string spill_dir_;
   std::unique_ptr<BandSpill> spill_;

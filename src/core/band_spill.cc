@@ -60,8 +60,8 @@ absl::StatusOr<std::unique_ptr<BandSpill>> BandSpill::Create(const std::string& 
   std::string path = absl::StrCat(dir, "/kindred-bands-XXXXXX");
   const int fd = mkostemp(path.data(), O_CLOEXEC);
   if (fd < 0) {
-    return absl::AbortedError(absl::StrCat("scratch directory ", dir,
-                                           ": cannot create a file: ", strerror(errno)));
+    return absl::AbortedError(
+        absl::StrCat("scratch directory ", dir, ": cannot create a file: ", strerror(errno)));
   }
   unlink(path.c_str());  // gone when closed, whatever happens
   return std::unique_ptr<BandSpill>(new BandSpill(fd, dir, bands));
@@ -69,16 +69,18 @@ absl::StatusOr<std::unique_ptr<BandSpill>> BandSpill::Create(const std::string& 
 
 BandSpill::~BandSpill() { close(fd_); }
 
-absl::Status BandSpill::AddRun(uint32_t first_doc, absl::Span<const uint64_t* const> keys) {
+absl::Status BandSpill::AddRun(uint32_t first_doc, size_t docs,
+                               absl::Span<const uint64_t* const> columns) {
   std::vector<Section> sections(bands_);
   std::vector<BucketEntry> entries, scratch;
   std::vector<uint32_t> offsets;
   std::string bytes;
   for (uint32_t band = 0; band < bands_; ++band) {
     entries.clear();
-    for (size_t i = 0; i < keys.size(); ++i) {
-      if (keys[i][band] != kNoBandKey) {
-        entries.push_back({keys[i][band], static_cast<uint32_t>(first_doc + i)});
+    const uint64_t* column = columns[band];
+    for (size_t i = 0; i < docs; ++i) {
+      if (column[i] != kNoBandKey) {
+        entries.push_back({column[i], static_cast<uint32_t>(first_doc + i)});
       }
     }
     SortEntries(entries, scratch, offsets);
@@ -124,9 +126,9 @@ struct BandMerger::Cursor {
       const ssize_t n = pread(spill->fd_, bytes.data() + done, bytes.size() - done, offset + done);
       if (n < 0 && errno == EINTR) continue;
       if (n <= 0) {
-        return absl::AbortedError(absl::StrCat("scratch directory ", spill->dir_,
-                                               ": cannot read spilled band keys: ",
-                                               n < 0 ? strerror(errno) : "file too short"));
+        return absl::AbortedError(absl::StrCat(
+            "scratch directory ", spill->dir_,
+            ": cannot read spilled band keys: ", n < 0 ? strerror(errno) : "file too short"));
       }
       done += static_cast<size_t>(n);
     }

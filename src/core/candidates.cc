@@ -108,28 +108,30 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCo
                                                                   uint64_t max_bucket) {
   const size_t n = corpus.size();
   const uint32_t bands = banding.bands;
-  // The band keys of each document held in memory: a lean corpus keeps them
-  // (from first_resident() on; the others are in its spill), otherwise
-  // they are computed here into `computed` (doc * bands + band). Documents
-  // with no shingles have no keys (all kNoBandKey).
+  // The band keys of the documents held in memory, band by band: a lean
+  // corpus keeps them (from first_resident() on; the others are in its
+  // spill), otherwise they are computed here into `computed` (band * n +
+  // doc). Documents with no shingles have no keys (all kNoBandKey).
   const size_t first = corpus.lean() ? corpus.first_resident() : 0;
-  std::vector<const uint64_t*> keys(n - first);
+  const size_t resident = n - first;
+  std::vector<const uint64_t*> columns(bands);
   std::vector<uint64_t> computed;
   if (corpus.lean()) {
-    for (size_t doc = first; doc < n; ++doc) keys[doc - first] = corpus.band_keys(doc).data();
+    for (uint32_t band = 0; band < bands; ++band) columns[band] = corpus.band_column(band).data();
   } else {
     computed.resize(n * bands);
     ParallelFor(n, threads, [&](size_t begin, size_t end, int) {
+      std::vector<uint64_t> keys(bands);
       for (size_t doc = begin; doc < end; ++doc) {
-        const absl::Span<uint64_t> out(&computed[doc * bands], bands);
         if (corpus.shingle_count(doc) == 0) {
-          std::fill(out.begin(), out.end(), kNoBandKey);
+          std::fill(keys.begin(), keys.end(), kNoBandKey);
         } else {
-          BandKeys(corpus.signature(doc), banding, out);
+          BandKeys(corpus.signature(doc), banding, absl::MakeSpan(keys));
         }
-        keys[doc] = out.data();
+        for (uint32_t band = 0; band < bands; ++band) computed[band * n + doc] = keys[band];
       }
     });
+    for (uint32_t band = 0; band < bands; ++band) columns[band] = &computed[band * n];
   }
   const BandSpill* spill = corpus.spill();
   std::vector<std::vector<PackedPair>> band_pairs(bands);
@@ -149,10 +151,12 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCo
     std::vector<uint32_t>& offsets = spaces[worker].offsets;
     for (size_t band = begin; band < end; ++band) {
       entries.clear();
-      entries.reserve(keys.size());
-      for (size_t i = 0; i < keys.size(); ++i) {
-        const uint64_t key = keys[i][band];
-        if (key != kNoBandKey) entries.push_back({key, static_cast<uint32_t>(first + i)});
+      entries.reserve(resident);
+      const uint64_t* column = columns[band];
+      for (size_t i = 0; i < resident; ++i) {
+        if (column[i] != kNoBandKey) {
+          entries.push_back({column[i], static_cast<uint32_t>(first + i)});
+        }
       }
       BucketPairer pairer(max_bucket, &band_pairs[band], &band_stats[band]);
       if (spill == nullptr || spill->runs() == 0) {

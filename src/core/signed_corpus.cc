@@ -1,6 +1,7 @@
 #include "kindred/signed_corpus.h"
 
 #include <algorithm>
+#include <cstring>
 #include <memory>
 
 #include "xxhash.h"
@@ -21,7 +22,7 @@ void SignedCorpus::Reserve(size_t documents) {
   shingle_data_.reserve(documents);
   signature_data_.reserve(documents);
   if (lean()) {
-    band_key_data_.reserve(documents);
+    if (documents > first_resident_ + key_stride_) GrowKeyTable(documents - first_resident_);
     band_key_digests_.reserve(documents);
   }
 }
@@ -33,25 +34,24 @@ void SignedCorpus::Clear() {
   shingle_data_.clear();
   shingle_count_.clear();
   signature_data_.clear();
-  band_key_data_.clear();
   band_key_digests_.clear();
   shingles_.Reset();
   signatures_.Reset();
-  band_keys_.Reset();
+  first_resident_ = 0;
 }
 
 size_t SignedCorpus::memory_bytes() const {
-  constexpr size_t kPerDocument = sizeof(std::string) + sizeof(KeepFacts) +
-                                  sizeof(DocumentOrigin) + 3 * sizeof(void*) + 2 * sizeof(uint32_t);
-  return shingles_.bytes_used() + signatures_.bytes_used() + band_keys_.bytes_used() +
-         size() * (kPerDocument + (lean() ? sizeof(void*) : 0));
+  constexpr size_t kPerDocument = sizeof(std::string) + sizeof(KeepFacts) + sizeof(DocumentOrigin) +
+                                  3 * sizeof(void*) + 2 * sizeof(uint32_t);
+  return shingles_.bytes_used() + signatures_.bytes_used() + resident_key_bytes() +
+         size() * kPerDocument;
 }
 
 void SignedCorpus::Add(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
                        absl::Span<const uint64_t> shingles, absl::Span<const uint32_t> signature) {
   if (lean()) {
-    uint64_t* keys = band_keys_.Allocate(banding_.bands);
-    LeanBandKeys(banding_, shingles.empty(), signature, absl::MakeSpan(keys, banding_.bands));
+    std::vector<uint64_t> keys(banding_.bands);
+    LeanBandKeys(banding_, shingles.empty(), signature, absl::MakeSpan(keys));
     AddKeys(std::move(id), facts, origin, static_cast<uint32_t>(shingles.size()), keys);
     return;
   }
@@ -66,20 +66,36 @@ void SignedCorpus::Add(std::string id, const KeepFacts& facts, const DocumentOri
 void SignedCorpus::AddWithBandKeys(std::string id, const KeepFacts& facts,
                                    const DocumentOrigin& origin, uint32_t shingle_count,
                                    absl::Span<const uint64_t> band_keys) {
-  AddKeys(std::move(id), facts, origin, shingle_count,
-          band_keys_.Append(band_keys.data(), banding_.bands));
+  AddKeys(std::move(id), facts, origin, shingle_count, band_keys);
 }
 
 void SignedCorpus::AddKeys(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
-                           uint32_t shingle_count, const uint64_t* keys) {
+                           uint32_t shingle_count, absl::Span<const uint64_t> keys) {
+  const size_t resident = size() - first_resident_;  // before this document
+  if (resident == key_stride_) GrowKeyTable(std::max<size_t>(1024, 2 * key_stride_));
+  for (uint32_t band = 0; band < banding_.bands; ++band) {
+    key_table_[band * key_stride_ + resident] = keys[band];
+  }
   ids_.push_back(std::move(id));
   facts_.push_back(facts);
   origins_.push_back(origin);
   shingle_count_.push_back(shingle_count);
-  band_key_data_.push_back(keys);
-  band_key_digests_.push_back(BandKeyDigest(absl::MakeConstSpan(keys, banding_.bands)));
+  band_key_digests_.push_back(BandKeyDigest(keys.first(banding_.bands)));
   shingle_data_.push_back(nullptr);
   signature_data_.push_back(nullptr);
+}
+
+void SignedCorpus::GrowKeyTable(size_t docs) {
+  const size_t values = docs * banding_.bands;
+  std::unique_ptr<uint64_t[], internal::FreeKeyTable> table(
+      HugePageAllocator<uint64_t>().allocate(values), internal::FreeKeyTable{values});
+  const size_t resident = size() - first_resident_;
+  for (uint32_t band = 0; band < banding_.bands && resident > 0; ++band) {
+    std::memcpy(table.get() + band * docs, key_table_.get() + band * key_stride_,
+                resident * sizeof(uint64_t));
+  }
+  key_table_ = std::move(table);
+  key_stride_ = docs;
 }
 
 void SignedCorpus::LeanBandKeys(Banding banding, bool empty, absl::Span<const uint32_t> signature,
@@ -103,18 +119,21 @@ void SignedCorpus::SetSpill(uint64_t budget_bytes, std::string dir) {
 absl::Status SignedCorpus::SpillBandKeys() {
   if (first_resident_ == size()) return absl::OkStatus();
   if (spill_ == nullptr) {
-    absl::StatusOr<std::unique_ptr<BandSpill>> spill = BandSpill::Create(spill_dir_, banding_.bands);
+    absl::StatusOr<std::unique_ptr<BandSpill>> spill =
+        BandSpill::Create(spill_dir_, banding_.bands);
     if (!spill.ok()) return spill.status();
     spill_ = *std::move(spill);
   }
-  const absl::Span<const uint64_t* const> resident(band_key_data_.data() + first_resident_,
-                                                  size() - first_resident_);
-  if (absl::Status status = spill_->AddRun(static_cast<uint32_t>(first_resident_), resident);
+  std::vector<const uint64_t*> columns;
+  for (uint32_t band = 0; band < banding_.bands; ++band) {
+    columns.push_back(key_table_.get() + band * key_stride_);
+  }
+  if (absl::Status status =
+          spill_->AddRun(static_cast<uint32_t>(first_resident_), size() - first_resident_, columns);
       !status.ok()) {
     return status;
   }
-  std::fill(band_key_data_.begin() + first_resident_, band_key_data_.end(), nullptr);
-  band_keys_.Reset();
+  // The table is kept: the next documents reuse its memory.
   first_resident_ = size();
   return absl::OkStatus();
 }
