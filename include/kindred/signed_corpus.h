@@ -10,13 +10,15 @@
 //     (AttachShingles, after reading the documents again: see reload.h).
 //     A million documents then cost about 200 bytes each instead of ~2 KB,
 //     and most of a sweep's time on fresh memory is saved.
-// Storage is flat (large blocks that never move), so a million documents
-// cost a few allocations, not millions.
+// Storage is flat (large blocks that never move, arrays advised as huge
+// pages; lean band keys one column per band), so a million documents cost a
+// few allocations, not millions.
 //
-// SignCorpus() fills one from a CorpusReader, shingling and signing on a pool
-// of threads while the next batch is read on one more thread (with threads =
-// 1, everything runs on the calling thread); the result does not depend on
-// the thread count.
+// SignCorpus() fills one from a CorpusReader on a fixed pool of `threads`
+// threads (the calling thread is one of them): each reads a small batch in
+// turn, parses, shingles and signs it, and the calling thread appends the
+// signed batches in read order (see src/core/sign_corpus.cc). The result,
+// and the first error reported, do not depend on the thread count.
 //
 // Thread-safety: const methods may be called concurrently; Add() and
 // AttachShingles() may not.
