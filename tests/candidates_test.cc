@@ -135,5 +135,20 @@ TEST_CASE("Empty documents are in no bucket", "[candidates]") {
   CHECK(stats.bucket_entries == 0);
 }
 
+// Regression: an empty full corpus indexed the first key column of an empty
+// vector (undefined behaviour, caught by the sanitizer suite).
+TEST_CASE("An empty corpus has no candidates", "[candidates]") {
+  SignatureSettings settings;
+  for (const bool lean : {false, true}) {
+    const SignedCorpus corpus = lean ? SignedCorpus::Lean(settings.perms, Banding{16, 8})
+                                     : SignedCorpus(settings.perms);
+    for (int threads : {1, 3}) {
+      CandidateStats stats;
+      CHECK(FindCandidatePairs(corpus, Banding{16, 8}, threads, &stats).empty());
+      CHECK(stats.bucket_entries == 0);
+    }
+  }
+}
+
 }  // namespace
 }  // namespace kindred

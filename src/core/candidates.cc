@@ -131,7 +131,7 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCo
         for (uint32_t band = 0; band < bands; ++band) computed[band * n + doc] = keys[band];
       }
     });
-    for (uint32_t band = 0; band < bands; ++band) columns[band] = &computed[band * n];
+    for (uint32_t band = 0; band < bands; ++band) columns[band] = computed.data() + band * n;
   }
   const BandSpill* spill = corpus.spill();
   std::vector<std::vector<PackedPair>> band_pairs(bands);
