@@ -22,6 +22,18 @@
 
 namespace kindred {
 
+// `bytes` (a multiple of 2 MiB) of uninitialized memory, 2 MiB aligned and
+// advised as huge pages where the kernel allows it; release with std::free.
+// Throws std::bad_alloc when there is none.
+inline void* AllocateHugePages(size_t bytes) {
+  void* memory = std::aligned_alloc(size_t{2} << 20, bytes);
+  if (memory == nullptr) throw std::bad_alloc();
+#ifdef MADV_HUGEPAGE
+  madvise(memory, bytes, MADV_HUGEPAGE);
+#endif
+  return memory;
+}
+
 template <typename T>
 class BlockArena {
  public:
@@ -89,11 +101,7 @@ class BlockArena {
     }
     const size_t bytes =
         (std::max(kBlockBytes, at_least * sizeof(T)) + kAlignment - 1) / kAlignment * kAlignment;
-    void* memory = std::aligned_alloc(kAlignment, bytes);
-    if (memory == nullptr) throw std::bad_alloc();
-#ifdef MADV_HUGEPAGE
-    madvise(memory, bytes, MADV_HUGEPAGE);
-#endif
+    void* memory = AllocateHugePages(bytes);
     blocks_.push_back(Block{std::unique_ptr<T, Free>(static_cast<T*>(memory)), bytes / sizeof(T)});
     current_ = blocks_.size() - 1;
     next_ = blocks_.back().data.get();
@@ -126,13 +134,7 @@ struct HugePageAllocator {
   T* allocate(size_t n) {
     const size_t bytes = n * sizeof(T);
     if (bytes < kHugePage) return static_cast<T*>(::operator new(bytes));
-    const size_t rounded = (bytes + kHugePage - 1) / kHugePage * kHugePage;
-    void* memory = std::aligned_alloc(kHugePage, rounded);
-    if (memory == nullptr) throw std::bad_alloc();
-#ifdef MADV_HUGEPAGE
-    madvise(memory, rounded, MADV_HUGEPAGE);
-#endif
-    return static_cast<T*>(memory);
+    return static_cast<T*>(AllocateHugePages((bytes + kHugePage - 1) / kHugePage * kHugePage));
   }
   void deallocate(T* p, size_t n) {
     if (n * sizeof(T) < kHugePage) {

@@ -9,6 +9,7 @@
 #include <memory>
 
 #include "absl/strings/str_cat.h"
+#include "io/json_line.h"
 #include "kindred/banding.h"
 #include "kindred/parallel.h"
 #include "kindred/shingles.h"
@@ -151,7 +152,8 @@ absl::Status ReadAtOffsets(const std::vector<ResolvedInput>& inputs, const Input
         return read;
       }
       doc.unparsed = true;
-      doc.id = options.id_field == "@line" ? absl::StrCat(input.name, ":", origin.line) : "";
+      doc.id =
+          options.id_field == io::kLineNumberId ? absl::StrCat(input.name, ":", origin.line) : "";
       doc.source.input = origin.input;
       doc.source.line = origin.line;
       doc.source.offset = origin.offset;
