@@ -345,13 +345,37 @@ TEST_CASE("invalid UTF-8 inside a JSON string becomes U+FFFD and is counted") {
   const std::string path = dir.File("broken.jsonl");
   // \xff is never valid; \xe2\x82 is a truncated three-byte sequence: two
   // replacements by the maximal-subpart practice (Unicode ch. 3).
-  WriteFile(path, "{\"id\": \"x\", \"text\": \"caf\xff \xe2\x82 ok\"}\n{\"id\": \"y\", \"text\": \"fine\"}\n");
+  WriteFile(
+      path,
+      "{\"id\": \"x\", \"text\": \"caf\xff \xe2\x82 ok\"}\n{\"id\": \"y\", \"text\": \"fine\"}\n");
   auto docs = ReadAll({path});
   REQUIRE(docs.ok());
   REQUIRE(docs->size() == 2);
   CHECK((*docs)[0].text == "caf\xEF\xBF\xBD \xEF\xBF\xBD ok");
   CHECK((*docs)[0].invalid_utf8 == 2);
   CHECK((*docs)[1].invalid_utf8 == 0);
+}
+
+TEST_CASE("the document limit bounds a JSON line as read, not its repaired text") {
+  // Regression (found by fuzzing): each invalid byte becomes the three bytes
+  // of U+FFFD, so a line within the limit can hold a longer text; the bound
+  // is the limit plus 2 bytes per replacement (corpus.h).
+  TempDir dir;
+  const std::string path = dir.File("broken.jsonl");
+  const std::string line = "{\"id\": \"x\", \"text\": \"" + std::string(40, '\xF3') + "\"}";
+  WriteFile(path, line + "\n");
+  InputOptions options;
+  options.max_document_bytes = line.size() + 1;
+  auto docs = ReadAll({path}, options);
+  REQUIRE(docs.ok());
+  REQUIRE(docs->size() == 1);
+  CHECK((*docs)[0].invalid_utf8 == 40);
+  CHECK((*docs)[0].text.size() == 120);
+  CHECK((*docs)[0].text.size() <= options.max_document_bytes + 2 * 40);
+  options.max_document_bytes = line.size() - 1;
+  auto over = ReadAll({path}, options);
+  REQUIRE_FALSE(over.ok());
+  CHECK(over.status().code() == absl::StatusCode::kResourceExhausted);
 }
 
 TEST_CASE("after an error every later batch returns the same error") {

@@ -27,12 +27,17 @@
 //
 // Document text is the raw bytes as stored (decompressed): it may hold
 // invalid UTF-8 or NUL bytes; decoding is the text module's job. Text from a
-// JSON string is unescaped. JSON Lines input must itself be valid UTF-8 (RFC
-// 8259); a line with invalid UTF-8 is an error naming the line.
+// JSON string is unescaped. A JSON line with invalid UTF-8 (which RFC 8259
+// does not allow) is read with every ill-formed sequence replaced by U+FFFD
+// (counted in Document::invalid_utf8) before parsing, so a crawled line with
+// a broken byte is read, not rejected.
 //
 // Memory stays bounded: besides the batch, a reader holds one document or
 // line (at most max_document_bytes, in a buffer at most about twice that)
-// and fixed-size read buffers (256 KiB each).
+// and fixed-size read buffers (256 KiB each). The limit applies to the line
+// as read: the text of a line with invalid UTF-8 can be longer, by at most
+// 2 bytes per replacement (one invalid byte becomes the 3 bytes of U+FFFD),
+// so at most three times the limit.
 //
 // Errors name the input and line (or the document): "corpus.jsonl:17:
 // missing field \"text\"", "corpus.jsonl.gz: truncated gzip stream after

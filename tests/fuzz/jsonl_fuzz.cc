@@ -5,7 +5,8 @@
 // "p"; bit 2: a 64-byte document limit instead of 64 KiB), then the file's
 // bytes. Besides crashes, it checks that every error names the file and
 // stays, that documents come in line order with consecutive ordinals, that
-// no text exceeds the limit, that batches hold at most max_docs documents,
+// no text exceeds the limit (plus 2 bytes per replaced
+// invalid byte), that batches hold at most max_docs documents,
 // and that "@line" ids are "<file>:<line>".
 #include <cstddef>
 #include <cstdint>
@@ -50,7 +51,10 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
       Require(doc.ordinal == next_ordinal++, "ordinals are consecutive");
       Require(doc.source.line > last_line, "lines ascend");
       last_line = doc.source.line;
-      Require(doc.text.size() <= options.max_document_bytes, "text within the limit");
+      // The limit bounds the line as read; each U+FFFD replacing one
+      // invalid byte adds 2 bytes (see corpus.h).
+      Require(doc.text.size() <= options.max_document_bytes + 2 * uint64_t{doc.invalid_utf8},
+              "text within the limit");
       if ((control & 1) != 0) {
         Require(doc.id == absl::StrCat(path, ":", doc.source.line), "@line ids");
       }
