@@ -43,8 +43,9 @@ TEST_CASE("Merged runs give the entries of one sort of everything", "[band_spill
   REQUIRE((*spill)->runs() == 5);
   CHECK((*spill)->bytes_written() > 0);
   for (uint32_t band = 0; band < kBands; ++band) {
-    std::vector<BucketEntry> all, resident, scratch;
-    std::vector<uint32_t> offsets;
+    std::vector<BucketEntry> all;
+    EntryVector resident, scratch;
+    HugePageVector<uint32_t> offsets;
     for (size_t doc = 0; doc < keys.size(); ++doc) {
       if (keys[doc][band] == kNoBandKey) continue;
       all.push_back({keys[doc][band], static_cast<uint32_t>(doc)});
@@ -72,14 +73,14 @@ TEST_CASE("Merged runs give the entries of one sort of everything", "[band_spill
 TEST_CASE("The partitioned sort orders like std::sort, equal keys included", "[band_spill]") {
   SplitMix64 random(12);
   for (size_t n : {0, 5, 1023, 1024, 50000}) {
-    std::vector<BucketEntry> entries, scratch;
-    std::vector<uint32_t> offsets;
+    EntryVector entries, scratch;
+    HugePageVector<uint32_t> offsets;
     for (size_t i = 0; i < n; ++i) {
       // Half random hashes, half a few repeated keys.
       const uint64_t key = i % 2 ? random.Next() : random.Between(1, 5) << 60;
       entries.push_back({key, static_cast<uint32_t>(random.Between(0, 1000000))});
     }
-    std::vector<BucketEntry> expected = entries;
+    std::vector<BucketEntry> expected(entries.begin(), entries.end());
     std::sort(expected.begin(), expected.end());
     SortEntries(entries, scratch, offsets);
     REQUIRE(entries.size() == expected.size());

@@ -2,7 +2,12 @@
 // (RFC 4180), and the three record kinds of a sweep.
 #include "kindred/records.h"
 
+#include <algorithm>
 #include <catch2/catch.hpp>
+#include <string>
+#include <vector>
+
+#include "kindred/groups.h"
 
 namespace kindred {
 namespace {
@@ -85,6 +90,90 @@ TEST_CASE("Sweep records name documents by id", "[records]") {
         "a.txt\tdrop\t1\tc.txt\tc.txt\t0.727273\tnear-duplicate; c.txt is kept\n"
         "c.txt\tkeep\t1\tc.txt\ta.txt\t0.727273\tkeeper of its group (policy longest)\n"
         "empty.txt\tkeep\t\t\t\t\tempty document: no shingles, never a duplicate\n");
+}
+
+TEST_CASE("Decisions match a per-document brute force over random groups", "[records]") {
+  // The oracle scans every document and every pair for each one; ties in
+  // similarity go to the smaller partner.
+  const std::vector<KeepFacts> facts(60);
+  for (uint64_t seed = 1; seed <= 20; ++seed) {
+    uint64_t state = seed;
+    const auto next = [&state](uint32_t bound) {
+      state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+      return static_cast<uint32_t>((state >> 33) % bound);
+    };
+    const size_t n = facts.size();
+    std::vector<std::string> ids;
+    std::vector<uint8_t> empty(n);
+    for (size_t doc = 0; doc < n; ++doc) {
+      ids.push_back("d" + std::to_string(doc));
+      empty[doc] = next(6) == 0;
+    }
+    std::vector<ScoredPair> pairs;
+    for (int i = 0; i < 25; ++i) {
+      ScoredPair pair;
+      pair.a = next(n);
+      pair.b = next(n);
+      if (pair.a == pair.b || empty[pair.a] || empty[pair.b]) continue;
+      if (pair.a > pair.b) std::swap(pair.a, pair.b);
+      pair.jaccard = 0.8 + 0.05 * next(4);  // repeated values: ties happen
+      pairs.push_back(pair);
+    }
+    std::sort(pairs.begin(), pairs.end(), [](const ScoredPair& x, const ScoredPair& y) {
+      return std::pair(x.a, x.b) < std::pair(y.a, y.b);
+    });
+    pairs.erase(std::unique(pairs.begin(), pairs.end(),
+                            [](const ScoredPair& x, const ScoredPair& y) {
+                              return x.a == y.a && x.b == y.b;
+                            }),
+                pairs.end());
+    const std::vector<Group> groups = GroupPairs(pairs, facts, KeepPolicy::kFirst);
+
+    std::string expected;
+    RecordWriter writer(RecordFormat::kTsv,
+                        {"id", "decision", "group", "keeper", "best_match", "jaccard", "reason"},
+                        &expected);
+    for (size_t doc = 0; doc < n; ++doc) {
+      int64_t group = -1;
+      for (size_t g = 0; g < groups.size(); ++g) {
+        for (uint32_t member : groups[g].members) {
+          if (member == doc) group = static_cast<int64_t>(g);
+        }
+      }
+      if (group < 0) {
+        if (!empty[doc]) continue;
+        writer.String(ids[doc]);
+        writer.String("keep");
+        for (int i = 0; i < 4; ++i) writer.Null();
+        writer.String("empty document: no shingles, never a duplicate");
+        writer.EndRow();
+        continue;
+      }
+      int64_t partner = -1;
+      double best = -1;
+      for (const ScoredPair& pair : pairs) {
+        if (pair.a != doc && pair.b != doc) continue;
+        const int64_t other = pair.a == doc ? pair.b : pair.a;
+        if (pair.jaccard > best || (pair.jaccard == best && other < partner)) {
+          partner = other;
+          best = pair.jaccard;
+        }
+      }
+      const uint32_t keeper = groups[group].keeper;
+      writer.String(ids[doc]);
+      writer.String(keeper == doc ? "keep" : "drop");
+      writer.Number(group + 1);
+      writer.String(ids[keeper]);
+      writer.String(ids[partner]);
+      writer.Similarity(best);
+      writer.String(keeper == doc ? "keeper of its group (policy first)"
+                                  : "near-duplicate; " + ids[keeper] + " is kept");
+      writer.EndRow();
+    }
+    std::string out;
+    WriteDecisionRecords(RecordFormat::kTsv, groups, pairs, ids, empty, KeepPolicy::kFirst, &out);
+    CHECK(out == expected);
+  }
 }
 
 }  // namespace

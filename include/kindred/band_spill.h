@@ -26,6 +26,7 @@
 #include "absl/status/status.h"
 #include "absl/status/statusor.h"
 #include "absl/types/span.h"
+#include "kindred/block_arena.h"
 
 namespace kindred {
 
@@ -38,10 +39,13 @@ struct BucketEntry {
   }
 };
 
+// A band's entries: large, filled and sorted once per band, so kept in
+// huge pages.
+using EntryVector = HugePageVector<BucketEntry>;
+
 // Sorts entries by (key, doc), using `scratch` and `offsets` as working
 // space. Expected linear time for keys that are hashes.
-void SortEntries(std::vector<BucketEntry>& entries, std::vector<BucketEntry>& scratch,
-                 std::vector<uint32_t>& offsets);
+void SortEntries(EntryVector& entries, EntryVector& scratch, HugePageVector<uint32_t>& offsets);
 
 class BandSpill {
  public:

@@ -45,45 +45,42 @@ struct SweepFlags {
   std::string list_kept;
 };
 
-struct SweepOutputs {
-  RecordFormat format;
-  std::string pairs, groups, decisions;
-};
-
-SweepOutputs FormatOutputs(const SweepResult& result, RecordFormat format, KeepPolicy keep) {
-  SweepOutputs outputs{format, {}, {}, {}};
+// Formats the record kinds the flags ask for (all three for -o, the one
+// --print names; the default prints groups when there is no -o) and writes
+// them. Kinds nobody asked for are not formatted.
+absl::Status WriteOutputs(const SweepFlags& flags, const SweepResult& result, RecordFormat format,
+                          KeepPolicy keep) {
+  std::string print = flags.print;
+  if (print.empty()) print = flags.output_dir.empty() ? "groups" : "none";
+  const bool to_dir = !flags.output_dir.empty();
   const auto ids = result.corpus.ids();
-  std::vector<uint8_t> empty(result.corpus.size());
-  for (size_t doc = 0; doc < empty.size(); ++doc) {
-    empty[doc] = result.corpus.shingle_count(doc) == 0;
+  std::string pairs, groups, decisions;
+  if (to_dir || print == "pairs") WritePairRecords(format, result.pairs, ids, &pairs);
+  if (to_dir || print == "groups") WriteGroupRecords(format, result.groups, ids, keep, &groups);
+  if (to_dir || print == "decisions") {
+    std::vector<uint8_t> empty(result.corpus.size());
+    for (size_t doc = 0; doc < empty.size(); ++doc) {
+      empty[doc] = result.corpus.shingle_count(doc) == 0;
+    }
+    WriteDecisionRecords(format, result.groups, result.pairs, ids, empty, keep, &decisions);
   }
-  WritePairRecords(format, result.pairs, ids, &outputs.pairs);
-  WriteGroupRecords(format, result.groups, ids, keep, &outputs.groups);
-  WriteDecisionRecords(format, result.groups, result.pairs, ids, empty, keep, &outputs.decisions);
-  return outputs;
-}
-
-absl::Status WriteOutputs(const SweepFlags& flags, const SweepOutputs& outputs) {
-  const std::string suffix = RecordFormatSuffix(outputs.format);
-  if (!flags.output_dir.empty()) {
+  if (to_dir) {
     std::error_code error;
     std::filesystem::create_directories(flags.output_dir, error);
     if (error) {
       return absl::AbortedError(
           absl::StrCat("cannot create output directory ", flags.output_dir, ": ", error.message()));
     }
-    for (const auto& [name, data] :
-         {std::pair{"pairs", &outputs.pairs}, std::pair{"groups", &outputs.groups},
-          std::pair{"decisions", &outputs.decisions}}) {
+    const std::string suffix = RecordFormatSuffix(format);
+    for (const auto& [name, data] : {std::pair{"pairs", &pairs}, std::pair{"groups", &groups},
+                                     std::pair{"decisions", &decisions}}) {
       const std::string path = absl::StrCat(flags.output_dir, "/", name, ".", suffix);
       if (absl::Status status = WriteOutputFile(path, *data); !status.ok()) return status;
     }
   }
-  std::string print = flags.print;
-  if (print.empty()) print = flags.output_dir.empty() ? "groups" : "none";
-  if (print == "pairs") return WriteOutputFile("-", outputs.pairs);
-  if (print == "groups") return WriteOutputFile("-", outputs.groups);
-  if (print == "decisions") return WriteOutputFile("-", outputs.decisions);
+  if (print == "pairs") return WriteOutputFile("-", pairs);
+  if (print == "groups") return WriteOutputFile("-", groups);
+  if (print == "decisions") return WriteOutputFile("-", decisions);
   return absl::OkStatus();
 }
 
@@ -225,8 +222,7 @@ int RunIndexSweep(const SweepFlags& flags) {
   for (size_t doc = 0; doc < result->corpus.size(); ++doc) {
     result->stats.sign.empty_documents += result->corpus.shingle_count(doc) == 0;
   }
-  const SweepOutputs outputs = FormatOutputs(*result, *format, *keep);
-  if (absl::Status status = WriteOutputs(flags, outputs); !status.ok()) {
+  if (absl::Status status = WriteOutputs(flags, *result, *format, *keep); !status.ok()) {
     return Fail(kExitOutput, status);
   }
   if (!flags.general.quiet) {
@@ -320,8 +316,7 @@ int RunSweepCommand(const SweepFlags& flags) {
                 result.status());
   }
 
-  const SweepOutputs outputs = FormatOutputs(*result, *format, options.keep);
-  if (absl::Status status = WriteOutputs(flags, outputs); !status.ok()) {
+  if (absl::Status status = WriteOutputs(flags, *result, *format, options.keep); !status.ok()) {
     return Fail(kExitOutput, status);
   }
   if (WantsKept(flags)) {

@@ -14,8 +14,7 @@
 
 namespace kindred {
 
-void SortEntries(std::vector<BucketEntry>& entries, std::vector<BucketEntry>& scratch,
-                 std::vector<uint32_t>& offsets) {
+void SortEntries(EntryVector& entries, EntryVector& scratch, HugePageVector<uint32_t>& offsets) {
   // Keys are hashes, spread evenly, so one counting pass on their top bits
   // scatters the entries into partitions of a few entries each, in key
   // order; each partition is then sorted on its own. About three times
@@ -72,8 +71,8 @@ BandSpill::~BandSpill() { close(fd_); }
 absl::Status BandSpill::AddRun(uint32_t first_doc, size_t docs,
                                absl::Span<const uint64_t* const> columns) {
   std::vector<Section> sections(bands_);
-  std::vector<BucketEntry> entries, scratch;
-  std::vector<uint32_t> offsets;
+  EntryVector entries, scratch;
+  HugePageVector<uint32_t> offsets;
   std::string bytes;
   for (uint32_t band = 0; band < bands_; ++band) {
     entries.clear();

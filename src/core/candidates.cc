@@ -76,7 +76,7 @@ class BucketPairer {
 // entry in 16), so every bucket of two or more survives whole. Most band
 // keys are unique, and sorting the few left is far cheaper than sorting
 // all of them. Returns the number of entries dropped (buckets of one).
-size_t DropSingletons(std::vector<BucketEntry>& entries, std::vector<uint64_t>& filter) {
+size_t DropSingletons(EntryVector& entries, HugePageVector<uint64_t>& filter) {
   const size_t n = entries.size();
   if (n < 1024) return 0;
   const int bits = static_cast<int>(std::bit_width(n * 16 - 1));
@@ -137,18 +137,18 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCo
   std::vector<std::vector<PackedPair>> band_pairs(bands);
   std::vector<BandStats> band_stats(bands);
   std::vector<absl::Status> band_status(bands);
-  // Working space per worker, kept from band to band (fresh memory for
-  // every band costs page faults on every entry).
+  // Working space per worker, kept from band to band, in huge pages (fresh
+  // small pages for every band cost a page fault per 4 KiB).
   struct Space {
-    std::vector<BucketEntry> entries, scratch;
-    std::vector<uint32_t> offsets;
-    std::vector<uint64_t> filter;
+    EntryVector entries, scratch;
+    HugePageVector<uint32_t> offsets;
+    HugePageVector<uint64_t> filter;
   };
   std::vector<Space> spaces(std::max(1, threads));
   ParallelFor(bands, threads, [&](size_t begin, size_t end, int worker) {
-    std::vector<BucketEntry>& entries = spaces[worker].entries;
-    std::vector<BucketEntry>& scratch = spaces[worker].scratch;
-    std::vector<uint32_t>& offsets = spaces[worker].offsets;
+    EntryVector& entries = spaces[worker].entries;
+    EntryVector& scratch = spaces[worker].scratch;
+    HugePageVector<uint32_t>& offsets = spaces[worker].offsets;
     for (size_t band = begin; band < end; ++band) {
       entries.clear();
       entries.reserve(resident);

@@ -68,18 +68,30 @@ void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
                           absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out) {
   RecordWriter writer(
       format, {"id", "decision", "group", "keeper", "best_match", "jaccard", "reason"}, out);
-  const size_t n = ids.size();
-  std::vector<int64_t> group_of(n, -1);
+  // (document, group index) of every group member, in document order: the
+  // work and memory follow the members, not the corpus.
+  std::vector<std::pair<uint32_t, uint32_t>> members;
   for (size_t g = 0; g < groups.size(); ++g) {
-    for (uint32_t member : groups[g].members) group_of[member] = static_cast<int64_t>(g);
+    for (uint32_t member : groups[g].members) {
+      members.emplace_back(member, static_cast<uint32_t>(g));
+    }
   }
-  std::vector<BestMatch> best(n);
+  std::sort(members.begin(), members.end());
+  std::vector<BestMatch> best(members.size());
+  const auto consider = [&](uint32_t doc, uint32_t partner, double jaccard) {
+    const auto it =
+        std::lower_bound(members.begin(), members.end(), std::pair<uint32_t, uint32_t>{doc, 0});
+    if (it != members.end() && it->first == doc) {
+      Consider(&best[it - members.begin()], partner, jaccard);
+    }
+  };
   for (const ScoredPair& pair : pairs) {
-    Consider(&best[pair.a], pair.b, pair.jaccard);
-    Consider(&best[pair.b], pair.a, pair.jaccard);
+    consider(pair.a, pair.b, pair.jaccard);
+    consider(pair.b, pair.a, pair.jaccard);
   }
-  for (size_t doc = 0; doc < n; ++doc) {
-    if (group_of[doc] < 0) {
+  size_t next = 0;  // next member, in document order
+  for (size_t doc = 0; doc < ids.size(); ++doc) {
+    if (next == members.size() || members[next].first != doc) {
       if (!empty[doc]) continue;
       writer.String(ids[doc]);
       writer.String("keep");
@@ -91,14 +103,17 @@ void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
       writer.EndRow();
       continue;
     }
-    const Group& group = groups[group_of[doc]];
+    const uint32_t g = members[next].second;
+    const BestMatch& match = best[next];
+    ++next;
+    const Group& group = groups[g];
     const bool keeper = group.keeper == doc;
     writer.String(ids[doc]);
     writer.String(keeper ? "keep" : "drop");
-    writer.Number(group_of[doc] + 1);
+    writer.Number(g + 1);
     writer.String(ids[group.keeper]);
-    writer.String(ids[best[doc].partner]);
-    writer.Similarity(best[doc].jaccard);
+    writer.String(ids[match.partner]);
+    writer.Similarity(match.jaccard);
     writer.String(keeper ? absl::StrCat("keeper of its group (policy ", KeepPolicyName(policy), ")")
                          : absl::StrCat("near-duplicate; ", ids[group.keeper], " is kept"));
     writer.EndRow();
