@@ -73,18 +73,30 @@ const char* KeepPolicyName(KeepPolicy policy) {
 
 std::vector<Group> GroupPairs(absl::Span<const ScoredPair> pairs, absl::Span<const KeepFacts> facts,
                               KeepPolicy policy) {
-  UnionFind components(facts.size());
-  for (const ScoredPair& pair : pairs) components.Unite(pair.a, pair.b);
+  // Only documents in a pair can be in a group: the union-find runs over
+  // them alone (numbered in document order, so roots stay the smallest
+  // members), and the work and memory follow the pairs, not the corpus.
+  std::vector<uint32_t> docs;
+  docs.reserve(2 * pairs.size());
+  for (const ScoredPair& pair : pairs) {
+    docs.push_back(pair.a);
+    docs.push_back(pair.b);
+  }
+  std::sort(docs.begin(), docs.end());
+  docs.erase(std::unique(docs.begin(), docs.end()), docs.end());
+  const auto index_of = [&docs](uint32_t doc) {
+    return static_cast<uint32_t>(std::lower_bound(docs.begin(), docs.end(), doc) - docs.begin());
+  };
+  UnionFind components(docs.size());
+  for (const ScoredPair& pair : pairs) components.Unite(index_of(pair.a), index_of(pair.b));
 
-  // Collect members per root; roots are smallest members, so visiting
-  // documents in order yields groups ordered by their smallest member.
-  std::vector<int64_t> group_of_root(facts.size(), -1);
+  // Visiting documents in order yields groups ordered by their smallest
+  // member, members ascending.
+  std::vector<int64_t> group_of_root(docs.size(), -1);
   std::vector<Group> groups;
-  std::vector<uint8_t> touched(facts.size(), 0);
-  for (const ScoredPair& pair : pairs) touched[pair.a] = touched[pair.b] = 1;
-  for (uint32_t doc = 0; doc < facts.size(); ++doc) {
-    if (!touched[doc]) continue;
-    const uint32_t root = components.Find(doc);
+  for (uint32_t i = 0; i < docs.size(); ++i) {
+    const uint32_t doc = docs[i];
+    const uint32_t root = components.Find(i);
     if (group_of_root[root] < 0) {
       group_of_root[root] = static_cast<int64_t>(groups.size());
       groups.push_back(Group{doc, {}});

@@ -12,6 +12,7 @@
 #include "absl/status/statusor.h"
 #include "absl/strings/string_view.h"
 #include "io/byte_stream.h"
+#include "kindred/block_arena.h"
 
 namespace kindred::io {
 
@@ -50,7 +51,7 @@ class BufferedInput {
   std::unique_ptr<ByteStream> stream_;
   std::string name_;
   uint64_t max_bytes_;
-  std::string buffer_;
+  HugePageVector<char> buffer_;  // huge pages: filled once, reused
   size_t begin_ = 0;  // first unread byte
   size_t end_ = 0;    // one past the last byte read from the stream
   bool eof_ = false;
