@@ -21,15 +21,34 @@ constexpr double kTieTolerance = 1e-12;
 // Values on the Simpson grid of [from, to].
 using Grid = std::array<double, kIntervals + 1>;
 
-// 1 - s^rows on the grid: the chance that one band misses a pair of
-// similarity s. A pair is missed by all `bands` bands with (1 - s^rows)^bands.
-void OneBandMissGrid(double from, double to, uint32_t rows, Grid* grid) {
+// The Simpson grid points of [from, to].
+Grid Points(double from, double to) {
+  Grid points;
   const double step = (to - from) / kIntervals;
-  for (int i = 0; i <= kIntervals; ++i) {
-    const double s = i == kIntervals ? to : from + step * i;
-    (*grid)[i] = 1.0 - std::pow(s, static_cast<double>(rows));
-  }
+  for (int i = 0; i <= kIntervals; ++i) points[i] = i == kIntervals ? to : from + step * i;
+  return points;
 }
+
+// s^rows at the grid points, for rows = 1, 2, ...: each call multiplies
+// once more (a pow per point and row count was most of the start-up of a
+// sweep).
+class GridPowers {
+ public:
+  GridPowers(double from, double to) : points_(Points(from, to)) { powers_.fill(1.0); }
+
+  // Advances to the next row count and returns the one-band miss
+  // probability 1 - s^rows at each point.
+  const Grid& NextMiss() {
+    for (int i = 0; i <= kIntervals; ++i) {
+      powers_[i] *= points_[i];
+      miss_[i] = 1.0 - powers_[i];
+    }
+    return miss_;
+  }
+
+ private:
+  Grid points_, powers_, miss_;
+};
 
 // Composite Simpson integral over [from, to] of the values on the grid.
 double Integrate(const Grid& values, double from, double to) {
@@ -43,15 +62,16 @@ double Integrate(const Grid& values, double from, double to) {
 
 // The expected false positive mass (integral of the candidate probability
 // below the threshold) and false negative mass (integral of the miss
-// probability above it) of `rows` rows for 1, 2, ... max_bands bands:
-// calls cost(bands, fp, fn) for each. The miss probability of b + 1 bands
-// is that of b bands times one band's, so each band count costs one pass
-// over the grids (this runs before every sweep: it must be quick).
+// probability above it) of rows with one-band miss probabilities
+// `one_below` and `one_above` (on the grids below and above the threshold)
+// for 1, 2, ... max_bands bands: calls cost(bands, fp, fn) for each. The
+// miss probability of b + 1 bands is that of b bands times one band's, so
+// each band count costs one pass over the grids (this runs before every
+// sweep: it must be quick).
 template <typename Cost>
-void BandCosts(double threshold, uint32_t rows, uint32_t max_bands, Cost cost) {
-  Grid one_below, one_above, miss_below, miss_above, hit_below;
-  OneBandMissGrid(0.0, threshold, rows, &one_below);
-  OneBandMissGrid(threshold, 1.0, rows, &one_above);
+void BandCosts(double threshold, const Grid& one_below, const Grid& one_above, uint32_t max_bands,
+               Cost cost) {
+  Grid miss_below, miss_above, hit_below;
   miss_below.fill(1.0);
   miss_above.fill(1.0);
   for (uint32_t bands = 1; bands <= max_bands; ++bands) {
@@ -104,11 +124,16 @@ double CandidateProbability(double s, uint32_t bands, uint32_t rows) {
 BandingCost CostOf(Banding banding, double threshold, double fn_weight, double fp_weight,
                    double min_recall) {
   BandingCost result;
-  BandCosts(threshold, banding.rows, banding.bands, [&](uint32_t bands, double fp, double fn) {
-    if (bands == banding.bands) {
-      result = MakeCost(banding, threshold, fp, fn, fn_weight, fp_weight, min_recall);
-    }
-  });
+  GridPowers below(0.0, threshold), above(threshold, 1.0);
+  for (uint32_t rows = 1; rows < banding.rows; ++rows) below.NextMiss(), above.NextMiss();
+  const Grid& one_below = below.NextMiss();
+  const Grid& one_above = above.NextMiss();
+  BandCosts(threshold, one_below, one_above, banding.bands,
+            [&](uint32_t bands, double fp, double fn) {
+              if (bands == banding.bands) {
+                result = MakeCost(banding, threshold, fp, fn, fn_weight, fp_weight, min_recall);
+              }
+            });
   return result;
 }
 
@@ -117,11 +142,15 @@ std::vector<BandingCost> RankBandings(double threshold, uint32_t perms, double f
   internal::RequireContract(threshold > 0 && threshold <= 1 && perms >= 1,
                             "RankBandings needs a threshold in (0, 1] and perms >= 1");
   std::vector<BandingCost> ranked;
+  GridPowers below(0.0, threshold), above(threshold, 1.0);
   for (uint32_t rows = 1; rows <= perms; ++rows) {
-    BandCosts(threshold, rows, perms / rows, [&](uint32_t bands, double fp, double fn) {
-      ranked.push_back(
-          MakeCost({bands, rows}, threshold, fp, fn, fn_weight, fp_weight, min_recall));
-    });
+    const Grid& one_below = below.NextMiss();
+    const Grid& one_above = above.NextMiss();
+    BandCosts(threshold, one_below, one_above, perms / rows,
+              [&](uint32_t bands, double fp, double fn) {
+                ranked.push_back(
+                    MakeCost({bands, rows}, threshold, fp, fn, fn_weight, fp_weight, min_recall));
+              });
   }
   std::sort(ranked.begin(), ranked.end(), Better);
   return ranked;
