@@ -102,6 +102,17 @@ class SignedCorpus {
   void AttachShingles(uint32_t doc, absl::Span<const uint64_t> shingles,
                       absl::Span<const uint32_t> signature);
 
+  // Lean only: attaches room for a sorted set of `shingles` values and a
+  // signature to document `doc`, which must not have them yet, and returns
+  // where they go. The caller fills both (from any thread, concurrently for
+  // different documents) before the corpus is read again; filling in the
+  // workers spreads the cost of touching fresh memory over them.
+  struct AttachedRoom {
+    uint64_t* shingles;
+    uint32_t* signature;
+  };
+  AttachedRoom AttachRoom(uint32_t doc, size_t shingles);
+
   const std::string& id(size_t doc) const { return ids_[doc]; }
   absl::Span<const std::string> ids() const { return ids_; }
   const KeepFacts& facts(size_t doc) const { return facts_[doc]; }

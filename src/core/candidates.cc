@@ -70,34 +70,48 @@ class BucketPairer {
   std::vector<uint32_t> members_;
 };
 
-// Keeps only the entries whose key may occur more than once, in their
-// order: a key is kept when another entry's key has the same top bits
-// (log2(16 n) bits of a well-spread hash: a false match for about one
-// entry in 16), so every bucket of two or more survives whole. Most band
-// keys are unique, and sorting the few left is far cheaper than sorting
-// all of them. Returns the number of entries dropped (buckets of one).
-size_t DropSingletons(EntryVector& entries, HugePageVector<uint64_t>& filter) {
-  const size_t n = entries.size();
-  if (n < 1024) return 0;
-  const int bits = static_cast<int>(std::bit_width(n * 16 - 1));
+// The entries of one band column (documents first, first + 1, ...; keys
+// kNoBandKey skipped) whose key may occur more than once, in document
+// order: a key is kept when another key of the column has the same top bits
+// (log2(16 n) bits of a well-spread hash: a false match for about one entry
+// in 16), so every bucket of two or more survives whole. Most band keys are
+// unique, and sorting the few left is far cheaper than sorting all of them;
+// the column is read twice instead of copied whole. With drop_singletons
+// false (or fewer than 1024 keys) every entry is kept. Returns the number of
+// entries dropped (buckets of one).
+size_t CollectEntries(const uint64_t* column, size_t count, size_t first, bool drop_singletons,
+                      HugePageVector<uint64_t>& filter, EntryVector& entries) {
+  entries.clear();
+  const auto collect = [&](auto keep) {
+    size_t valid = 0;
+    for (size_t i = 0; i < count; ++i) {
+      if (column[i] == kNoBandKey) continue;
+      ++valid;
+      if (keep(column[i])) entries.push_back({column[i], static_cast<uint32_t>(first + i)});
+    }
+    return valid - entries.size();
+  };
+  if (!drop_singletons || count < 1024) {
+    entries.reserve(count);
+    return collect([](uint64_t) { return true; });
+  }
+  const int bits = static_cast<int>(std::bit_width(count * 16 - 1));
   const size_t words = (size_t{1} << bits) / 64;
   filter.assign(2 * words, 0);
   uint64_t* once = filter.data();
   uint64_t* twice = filter.data() + words;
   const int shift = 64 - bits;
-  for (const BucketEntry& entry : entries) {
-    const uint64_t slot = entry.key >> shift;
+  for (size_t i = 0; i < count; ++i) {
+    if (column[i] == kNoBandKey) continue;
+    const uint64_t slot = column[i] >> shift;
     const uint64_t bit = uint64_t{1} << (slot & 63);
     twice[slot >> 6] |= once[slot >> 6] & bit;
     once[slot >> 6] |= bit;
   }
-  size_t kept = 0;
-  for (const BucketEntry& entry : entries) {
-    const uint64_t slot = entry.key >> shift;
-    if ((twice[slot >> 6] >> (slot & 63)) & 1) entries[kept++] = entry;
-  }
-  entries.resize(kept);
-  return n - kept;
+  return collect([&](uint64_t key) {
+    const uint64_t slot = key >> shift;
+    return ((twice[slot >> 6] >> (slot & 63)) & 1) != 0;
+  });
 }
 
 }  // namespace
@@ -150,18 +164,13 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCo
     EntryVector& scratch = spaces[worker].scratch;
     HugePageVector<uint32_t>& offsets = spaces[worker].offsets;
     for (size_t band = begin; band < end; ++band) {
-      entries.clear();
-      entries.reserve(resident);
-      const uint64_t* column = columns[band];
-      for (size_t i = 0; i < resident; ++i) {
-        if (column[i] != kNoBandKey) {
-          entries.push_back({column[i], static_cast<uint32_t>(first + i)});
-        }
-      }
+      // Without spilled runs, buckets of one make no pairs: they are
+      // counted, not collected and sorted.
+      const bool in_memory = spill == nullptr || spill->runs() == 0;
+      const size_t dropped =
+          CollectEntries(columns[band], resident, first, in_memory, spaces[worker].filter, entries);
       BucketPairer pairer(max_bucket, &band_pairs[band], &band_stats[band]);
-      if (spill == nullptr || spill->runs() == 0) {
-        // Buckets of one make no pairs: they are counted, not sorted.
-        const size_t dropped = DropSingletons(entries, spaces[worker].filter);
+      if (in_memory) {
         band_stats[band].entries += dropped;
         if (dropped > 0) band_stats[band].largest = std::max<uint64_t>(band_stats[band].largest, 1);
         SortEntries(entries, scratch, offsets);

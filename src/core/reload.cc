@@ -6,6 +6,7 @@
 #include <algorithm>
 #include <cerrno>
 #include <cstring>
+#include <functional>
 #include <memory>
 
 #include "absl/strings/str_cat.h"
@@ -22,6 +23,9 @@ namespace {
 // that each is the document signing saw.
 class Attacher {
  public:
+  // Fills a document's text in a worker thread (null: the text is there).
+  using ReadText = std::function<absl::Status(Document& doc)>;
+
   Attacher(const InputOptions& options, const SignatureSettings& settings, int threads,
            std::vector<std::unique_ptr<Shingler>> shinglers, SignedCorpus* corpus)
       : threads_(threads),
@@ -30,7 +34,7 @@ class Attacher {
         perms_(settings.perms),
         banding_(corpus->lean_banding()),
         corpus_(corpus),
-        keys_(banding_.bands) {
+        keys_(threads, std::vector<uint64_t>(banding_.bands)) {
     for (int t = 0; t < threads; ++t) parsers_.push_back(std::make_unique<LineParser>(options));
   }
 
@@ -38,45 +42,82 @@ class Attacher {
   size_t attached() const { return attached_; }
 
   // `batch` holds documents with their ordinals set (JSON lines may be
-  // unparsed). InvalidArgument naming the first one that changed.
-  absl::Status Attach(std::vector<Document>& batch) {
+  // unparsed). Reading (`read`, when given), parsing, shingling, signing,
+  // the check that a document is unchanged and the copies into the corpus
+  // run in the worker threads; the calling thread only checks the results
+  // and takes room in the corpus, in batch order.
+  // Returns the first read error, or InvalidArgument naming the first
+  // document that changed.
+  absl::Status Attach(std::vector<Document>& batch, const ReadText& read = nullptr) {
     const size_t n = batch.size();
     sets_.resize(n);
     signatures_.resize(n * perms_);
-    errors_.assign(n, absl::OkStatus());
+    read_errors_.assign(n, absl::OkStatus());
+    same_.assign(n, 0);
     ParallelFor(n, threads_, [&](size_t begin, size_t end, int worker) {
       for (size_t i = begin; i < end; ++i) {
-        errors_[i] = parsers_[worker]->Finish(&batch[i]);
-        if (errors_[i].ok()) errors_[i] = shinglers_[worker]->Shingle(batch[i].text, &sets_[i]);
-        signer_.Sign(sets_[i], absl::MakeSpan(&signatures_[i * perms_], perms_));
+        if (read != nullptr) {
+          read_errors_[i] = read(batch[i]);
+          if (!read_errors_[i].ok()) continue;
+        }
+        const auto signature = absl::MakeSpan(&signatures_[i * perms_], perms_);
+        const bool parsed = parsers_[worker]->Finish(&batch[i]).ok() &&
+                            shinglers_[worker]->Shingle(batch[i].text, &sets_[i]).ok();
+        if (parsed) signer_.Sign(sets_[i], signature);
+        same_[i] = parsed && Unchanged(batch[i], sets_[i], signature, keys_[worker]);
       }
     });
-    for (size_t i = 0; i < n; ++i) {
-      const Document& doc = batch[i];
+    // Documents before the first failure are attached (filled, whatever
+    // follows), then the failure is reported.
+    rooms_.resize(n);
+    size_t good = 0;
+    absl::Status failure;
+    for (; good < n; ++good) {
+      const Document& doc = batch[good];
       const uint64_t ordinal = doc.ordinal;
-      const auto signature = absl::MakeConstSpan(&signatures_[i * perms_], perms_);
-      bool same = ordinal < corpus_->size() && errors_[i].ok() && doc.id == corpus_->id(ordinal) &&
-                  sets_[i].empty() == (corpus_->shingle_count(ordinal) == 0);
-      if (same && !sets_[i].empty()) {
-        BandKeys(signature, banding_, absl::MakeSpan(keys_));
-        same = SignedCorpus::BandKeyDigest(keys_) == corpus_->band_key_digest(ordinal);
+      if (!read_errors_[good].ok()) {
+        failure = read_errors_[good];
+        break;
       }
-      if (!same) {
+      if (!same_[good]) {
         const std::string where = doc.source.line > 0
                                       ? absl::StrCat(doc.source.path, ":", doc.source.line)
                                       : doc.source.path;
         const std::string& id = ordinal < corpus_->size() ? corpus_->id(ordinal) : doc.id;
-        return absl::InvalidArgumentError(
+        failure = absl::InvalidArgumentError(
             absl::StrCat(where, ": document \"", id,
                          "\" changed while kindred was reading the corpus; run again"));
+        break;
       }
-      corpus_->AttachShingles(static_cast<uint32_t>(ordinal), sets_[i], signature);
-      ++attached_;
+      rooms_[good] = corpus_->AttachRoom(static_cast<uint32_t>(ordinal), sets_[good].size());
     }
-    return absl::OkStatus();
+    ParallelFor(good, threads_, [&](size_t begin, size_t end, int) {
+      for (size_t i = begin; i < end; ++i) {
+        if (!sets_[i].empty()) {
+          std::memcpy(rooms_[i].shingles, sets_[i].data(), sets_[i].size() * sizeof(uint64_t));
+        }
+        std::memcpy(rooms_[i].signature, &signatures_[i * perms_], perms_ * sizeof(uint32_t));
+      }
+    });
+    attached_ += good;
+    return failure;
   }
 
  private:
+  // Whether the document read again is the one signing saw: same id, same
+  // emptiness, same band keys (by their digest). Reads the corpus only.
+  bool Unchanged(const Document& doc, const ShingleSet& set, absl::Span<const uint32_t> signature,
+                 std::vector<uint64_t>& keys) const {
+    const uint64_t ordinal = doc.ordinal;
+    if (ordinal >= corpus_->size() || doc.id != corpus_->id(ordinal) ||
+        set.empty() != (corpus_->shingle_count(ordinal) == 0)) {
+      return false;
+    }
+    if (set.empty()) return true;
+    BandKeys(signature, banding_, absl::MakeSpan(keys));
+    return SignedCorpus::BandKeyDigest(keys) == corpus_->band_key_digest(ordinal);
+  }
+
   const int threads_;
   std::vector<std::unique_ptr<Shingler>> shinglers_;
   std::vector<std::unique_ptr<LineParser>> parsers_;
@@ -86,8 +127,10 @@ class Attacher {
   SignedCorpus* corpus_;
   std::vector<ShingleSet> sets_;
   std::vector<uint32_t> signatures_;
-  std::vector<absl::Status> errors_;
-  std::vector<uint64_t> keys_;
+  std::vector<absl::Status> read_errors_;
+  std::vector<uint8_t> same_;
+  std::vector<SignedCorpus::AttachedRoom> rooms_;
+  std::vector<std::vector<uint64_t>> keys_;  // per worker
   size_t attached_ = 0;
 };
 
@@ -118,7 +161,8 @@ absl::Status ReadLineAt(int fd, uint64_t offset, uint64_t max_bytes, const std::
   }
 }
 
-// Reads documents `docs` (each with a known offset) at their offsets.
+// Reads documents `docs` (each with a known offset) at their offsets, in
+// the workers (pread on one descriptor per input).
 absl::Status ReadAtOffsets(const std::vector<ResolvedInput>& inputs, const InputOptions& options,
                            const SignedCorpus& corpus, absl::Span<const uint32_t> docs,
                            Attacher* attacher) {
@@ -130,6 +174,11 @@ absl::Status ReadAtOffsets(const std::vector<ResolvedInput>& inputs, const Input
   };
   std::vector<Fd> fds(inputs.size());
   std::vector<Document> batch;
+  const auto read = [&](Document& doc) {
+    const DocumentOrigin& origin = corpus.origin(doc.ordinal);
+    return ReadLineAt(fds[origin.input].fd, origin.offset, options.max_document_bytes,
+                      inputs[origin.input].name, &doc.text);
+  };
   constexpr size_t kBatch = 1024;
   for (size_t start = 0; start < docs.size(); start += kBatch) {
     const size_t n = std::min(kBatch, docs.size() - start);
@@ -146,11 +195,6 @@ absl::Status ReadAtOffsets(const std::vector<ResolvedInput>& inputs, const Input
         }
       }
       Document& doc = batch[i];
-      if (absl::Status read =
-              ReadLineAt(fd.fd, origin.offset, options.max_document_bytes, input.name, &doc.text);
-          !read.ok()) {
-        return read;
-      }
       doc.unparsed = true;
       doc.id =
           options.id_field == io::kLineNumberId ? absl::StrCat(input.name, ":", origin.line) : "";
@@ -160,7 +204,7 @@ absl::Status ReadAtOffsets(const std::vector<ResolvedInput>& inputs, const Input
       doc.source.path = input.name;
       doc.ordinal = ordinal;
     }
-    if (absl::Status attached = attacher->Attach(batch); !attached.ok()) return attached;
+    if (absl::Status attached = attacher->Attach(batch, read); !attached.ok()) return attached;
   }
   return absl::OkStatus();
 }

@@ -4,6 +4,7 @@
 #include <cstring>
 #include <memory>
 
+#include "core/contract_internal.h"
 #include "xxhash.h"
 
 namespace kindred {
@@ -140,9 +141,19 @@ absl::Status SignedCorpus::SpillBandKeys() {
 
 void SignedCorpus::AttachShingles(uint32_t doc, absl::Span<const uint64_t> shingles,
                                   absl::Span<const uint32_t> signature) {
-  shingle_data_[doc] = shingles_.Append(shingles.data(), shingles.size());
-  shingle_count_[doc] = static_cast<uint32_t>(shingles.size());
-  signature_data_[doc] = signatures_.Append(signature.data(), signature.size());
+  internal::RequireContract(signature.size() == perms(), "AttachShingles needs perms() slots");
+  const AttachedRoom room = AttachRoom(doc, shingles.size());
+  if (!shingles.empty()) std::memcpy(room.shingles, shingles.data(), shingles.size() * sizeof(uint64_t));
+  std::memcpy(room.signature, signature.data(), perms() * sizeof(uint32_t));
+}
+
+SignedCorpus::AttachedRoom SignedCorpus::AttachRoom(uint32_t doc, size_t shingles) {
+  uint64_t* set = shingles_.Allocate(shingles);
+  uint32_t* signature = signatures_.Allocate(perms());
+  shingle_data_[doc] = set;
+  shingle_count_[doc] = static_cast<uint32_t>(shingles);
+  signature_data_[doc] = signature;
+  return {set, signature};
 }
 
 }  // namespace kindred

@@ -52,13 +52,17 @@ bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b,
 std::vector<ScoredPair> VerifyPairs(const SignedCorpus& corpus,
                                     absl::Span<const PackedPair> candidates,
                                     const MatchSettings& match, int threads) {
-  constexpr size_t kChunk = 1 << 14;
-  const size_t chunks = (candidates.size() + kChunk - 1) / kChunk;
+  // Chunks of at most 16384 pairs, at least eight per thread when there
+  // are enough pairs (one large chunk per thread left the last one alone);
+  // the output is the same for any chunking.
+  const size_t per_chunk = std::clamp<size_t>(
+      candidates.size() / (8 * static_cast<size_t>(std::max(1, threads))), 256, size_t{1} << 14);
+  const size_t chunks = (candidates.size() + per_chunk - 1) / per_chunk;
   std::vector<std::vector<ScoredPair>> parts(chunks);
   ParallelFor(chunks, threads, [&](size_t begin, size_t end, int) {
     for (size_t chunk = begin; chunk < end; ++chunk) {
-      const size_t stop = std::min(candidates.size(), (chunk + 1) * kChunk);
-      for (size_t i = chunk * kChunk; i < stop; ++i) {
+      const size_t stop = std::min(candidates.size(), (chunk + 1) * per_chunk);
+      for (size_t i = chunk * per_chunk; i < stop; ++i) {
         const uint32_t a = PairFirst(candidates[i]);
         const uint32_t b = PairSecond(candidates[i]);
         const Overlap overlap = MeasureOverlap(corpus.shingles(a), corpus.shingles(b));
