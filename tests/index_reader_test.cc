@@ -5,7 +5,9 @@
 #include <sys/file.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <catch2/catch.hpp>
+#include <tuple>
 
 #include "kindred/index.h"
 #include "kindred/index_match.h"
@@ -100,6 +102,78 @@ TEST_CASE("append adds segments and reports duplicate ids by policy", "[index]")
   auto fresh = OpenOrDie(path);
   REQUIRE(fresh->live_count() == 11);
   REQUIRE_FALSE(fresh->is_live(3));
+}
+
+// Everything a reader answers, compared with a reader opened afresh.
+void RequireSameAsFresh(const IndexReader& reader, uint32_t bands, uint32_t rows) {
+  auto fresh = IndexReader::Open(reader.path());
+  REQUIRE(fresh.ok());
+  if (bands != 0) REQUIRE((*fresh)->UseBanding(bands, rows).ok());
+  REQUIRE(reader.document_count() == (*fresh)->document_count());
+  REQUIRE(reader.live_count() == (*fresh)->live_count());
+  REQUIRE(reader.committed_size() == (*fresh)->committed_size());
+  REQUIRE(reader.segments().size() == (*fresh)->segments().size());
+  for (size_t s = 0; s < reader.segments().size(); ++s) {
+    const SegmentInfo& a = reader.segments()[s];
+    const SegmentInfo& b = (*fresh)->segments()[s];
+    REQUIRE(std::tie(a.number, a.offset, a.bytes, a.first_doc, a.documents, a.retired) ==
+            std::tie(b.number, b.offset, b.bytes, b.first_doc, b.documents, b.retired));
+  }
+  std::vector<uint64_t> a, b;
+  for (uint32_t doc = 0; doc < reader.document_count(); ++doc) {
+    REQUIRE(reader.is_live(doc) == (*fresh)->is_live(doc));
+    REQUIRE(reader.id(doc) == (*fresh)->id(doc));
+    REQUIRE(reader.FindLive(reader.id(doc)) == (*fresh)->FindLive(reader.id(doc)));
+    REQUIRE(
+        std::vector<uint32_t>(reader.signature(doc).begin(), reader.signature(doc).end()) ==
+        std::vector<uint32_t>((*fresh)->signature(doc).begin(), (*fresh)->signature(doc).end()));
+    REQUIRE(reader.ReadShingles(doc, &a).ok());
+    REQUIRE((*fresh)->ReadShingles(doc, &b).ok());
+    REQUIRE(a == b);
+  }
+  std::vector<std::pair<uint64_t, uint32_t>> keys_a, keys_b;
+  reader.ForEachBandKey([&](uint64_t key, uint32_t doc) { keys_a.emplace_back(key, doc); });
+  (*fresh)->ForEachBandKey([&](uint64_t key, uint32_t doc) { keys_b.emplace_back(key, doc); });
+  REQUIRE(keys_a == keys_b);
+  for (const auto& [key, doc] : keys_a) {
+    std::vector<uint32_t> found_a, found_b;
+    reader.Candidates({key}, &found_a);
+    (*fresh)->Candidates({key}, &found_b);
+    REQUIRE(found_a == found_b);
+  }
+}
+
+TEST_CASE("after each append, the reader caught up equals a fresh one", "[index]") {
+  TempDir dir;
+  IndexSettings settings = testing::TestIndexSettings(32, 8, 4);
+  SignedCorpus all = SignTexts(MakeTexts(9, 30, 50, "r"), settings.signature);
+  std::string path = dir.File("x.kin");
+  REQUIRE(CreateIndex(path, settings, Slice(all, 0, 8)).ok());
+  // A plain reader and one with a query-time banding, caught up by hand.
+  auto plain = OpenOrDie(path);
+  auto rebanded = OpenOrDie(path);
+  REQUIRE(rebanded->UseBanding(16, 2).ok());
+  auto writer = IndexWriter::Open(path);
+  REQUIRE(writer.ok());
+  for (size_t begin = 8; begin < 30; begin += 5) {
+    const size_t end = std::min<size_t>(30, begin + 5);
+    REQUIRE((*writer)->Append(Slice(all, begin, end), DuplicateIdPolicy::kError).ok());
+    // Two earlier documents come back with other content: retirements.
+    SignedCorpus replacement(settings.signature.perms);
+    for (size_t i : {begin - 8, begin - 3}) {
+      replacement.Add(all.id(i), all.facts(end - 1), {}, all.shingles(end - 1),
+                      all.signature(end - 1));
+    }
+    REQUIRE((*writer)->Append(replacement, DuplicateIdPolicy::kReplace).ok());
+    RequireSameAsFresh((*writer)->reader(), 0, 0);
+    REQUIRE(plain->ReadAppended().ok());
+    RequireSameAsFresh(*plain, 0, 0);
+    REQUIRE(rebanded->ReadAppended().ok());
+    RequireSameAsFresh(*rebanded, 16, 2);
+  }
+  REQUIRE((*writer)->reader().segments().size() == 11);
+  REQUIRE(plain->ReadAppended().ok());  // nothing new: unchanged
+  RequireSameAsFresh(*plain, 0, 0);
 }
 
 TEST_CASE("a second writer fails at once with Unavailable", "[index]") {

@@ -77,6 +77,14 @@ class IndexReader {
                                                            const IndexOpenOptions& options = {});
   ~IndexReader();
 
+  // Catches up with segments appended to the file since it was opened (or
+  // last caught up): maps the file again, then verifies and adds only the
+  // segments after committed_size(); those already read stay as they are
+  // (the earlier mapping is kept, so views of them stay valid), and a
+  // query-time banding (UseBanding) is rebuilt. Costs the new segments, not
+  // the whole index. Errors as Open(); on error the reader is unchanged.
+  absl::Status ReadAppended(const IndexOpenOptions& options = {});
+
   const std::string& path() const { return path_; }
   const IndexSettings& settings() const { return settings_; }
   absl::Span<const SegmentInfo> segments() const { return segments_; }
@@ -126,10 +134,14 @@ class IndexReader {
   struct Segment;
   IndexReader() = default;
   absl::Status Load();
+  // Verifies and adds the segments of file_ from committed_size_ on.
+  absl::Status LoadSegments();
   const Segment& SegmentOf(uint32_t doc, uint32_t* local) const;
 
   std::string path_;
   std::unique_ptr<MappedFile> mapping_;
+  // Mappings replaced by ReadAppended(), kept for the views into them.
+  std::vector<std::unique_ptr<MappedFile>> earlier_mappings_;
   std::string_view file_;
   IndexSettings settings_;
   std::vector<SegmentInfo> segments_;

@@ -76,8 +76,9 @@ class IndexWriter {
                                                            const IndexWriteOptions& options = {});
   ~IndexWriter();
 
-  // The committed index as of Open() or the last successful Append(). The
-  // reference is invalidated by Append().
+  // The committed index as of Open() or the last successful Append() (the
+  // reader catches up with each appended segment; what it returned before
+  // stays valid).
   const IndexReader& reader() const { return *reader_; }
   // Bytes of torn tail that Open() cut off.
   uint64_t torn_tail_cut() const { return torn_tail_cut_; }

@@ -33,11 +33,24 @@ absl::Status IndexReader::Load() {
   size_t header_size = 0;
   absl::Status status = index::DecodeFileHeader(file_, &settings_, &header_size);
   if (!status.ok()) return status;
-  uint64_t offset = header_size;
-  uint64_t first_doc = 0;
+  committed_size_ = header_size;
+  bands_ = settings_.bands;
+  rows_ = settings_.rows;
+  return LoadSegments();
+}
+
+absl::Status IndexReader::LoadSegments() {
+  // Parsed into these first, so that an error changes nothing.
+  std::vector<SegmentInfo> infos;
+  std::vector<Segment> views;
+  std::vector<bool> retired = retired_;
+  uint32_t retiring = 0;
+  absl::Status status;
+  uint64_t offset = committed_size_;
+  uint64_t first_doc = document_count_;
   while (offset < file_.size()) {
     Segment segment;
-    uint32_t number = static_cast<uint32_t>(segments_.size());
+    const uint32_t number = static_cast<uint32_t>(segments_.size() + infos.size());
     index::SegmentScan scan =
         segment.Parse(file_, offset, number, first_doc, settings_.signature.perms, &status);
     if (scan == index::SegmentScan::kTornTail) break;
@@ -46,32 +59,53 @@ absl::Status IndexReader::Load() {
     if (first_doc + h.doc_count > index::kMaxDocuments) {
       return absl::DataLossError(absl::StrFormat("index segment %u: too many documents", number));
     }
-    segments_.push_back(SegmentInfo{number, offset, segment.total_bytes(),
-                                    static_cast<uint32_t>(first_doc), h.doc_count, h.retired_count,
-                                    h.key_count, h.shingle_bytes});
-    segment_first_doc_.push_back(static_cast<uint32_t>(first_doc));
-    segment_views_.push_back(segment);
+    retired.resize(first_doc + h.doc_count, false);
+    for (uint64_t i = 0; i < h.retired_count; ++i) {
+      const uint64_t doc = segment.retired(i);
+      if (retired[doc]) {
+        return absl::DataLossError(
+            absl::StrFormat("index segment %u: document %u is retired twice", number, doc));
+      }
+      retired[doc] = true;
+      ++retiring;
+    }
+    infos.push_back(SegmentInfo{number, offset, segment.total_bytes(),
+                                static_cast<uint32_t>(first_doc), h.doc_count, h.retired_count,
+                                h.key_count, h.shingle_bytes});
+    views.push_back(segment);
     offset += segment.total_bytes();
     first_doc += h.doc_count;
   }
+  for (size_t i = 0; i < infos.size(); ++i) {
+    segments_.push_back(infos[i]);
+    segment_first_doc_.push_back(infos[i].first_doc);
+    segment_views_.push_back(views[i]);
+  }
+  live_count_ += static_cast<uint32_t>(first_doc - document_count_) - retiring;
+  retired_ = std::move(retired);
   committed_size_ = offset;
   document_count_ = static_cast<uint32_t>(first_doc);
-  retired_.assign(document_count_, false);
-  live_count_ = document_count_;
-  for (const Segment& segment : segment_views_) {
-    for (uint64_t i = 0; i < segment.header().retired_count; ++i) {
-      uint64_t doc = segment.retired(i);
-      if (retired_[doc]) {
-        return absl::DataLossError(absl::StrFormat("index segment %u: document %u is retired twice",
-                                                   segment.header().segment_number, doc));
-      }
-      retired_[doc] = true;
-      --live_count_;
-    }
-  }
-  bands_ = settings_.bands;
-  rows_ = settings_.rows;
   return absl::OkStatus();
+}
+
+absl::Status IndexReader::ReadAppended(const IndexOpenOptions& options) {
+  auto mapping = options.file_system->Map(path_);
+  if (!mapping.ok()) return mapping.status();
+  std::unique_ptr<MappedFile> previous = std::move(mapping_);
+  const std::string_view previous_file = file_;
+  mapping_ = *std::move(mapping);
+  file_ = mapping_->bytes();
+  absl::Status status = file_.size() >= committed_size_
+                            ? LoadSegments()
+                            : absl::DataLossError("the file is shorter than its committed part");
+  if (!status.ok()) {
+    mapping_ = std::move(previous);
+    file_ = previous_file;
+    return absl::Status(status.code(), absl::StrCat("index ", path_, ": ", status.message()));
+  }
+  earlier_mappings_.push_back(std::move(previous));
+  // A query-time banding covers the new documents too.
+  return memory_keys_.empty() ? absl::OkStatus() : UseBanding(bands_, rows_);
 }
 
 const IndexReader::Segment& IndexReader::SegmentOf(uint32_t doc, uint32_t* local) const {

@@ -127,9 +127,12 @@ absl::StatusOr<AppendResult> IndexWriter::Append(const SignedCorpus& batch,
     return written;
   }
   result.wrote_segment = true;
-  auto reader = IndexReader::Open(path_, IndexOpenOptions{options_.file_system});
-  if (!reader.ok()) return reader.status();
-  reader_ = *std::move(reader);
+  // Reads back and verifies the new segment only (re-opening the whole
+  // index after every segment made building in parts quadratic).
+  if (absl::Status read = reader_->ReadAppended(IndexOpenOptions{options_.file_system});
+      !read.ok()) {
+    return read;
+  }
   return result;
 }
 
