@@ -9,6 +9,7 @@
 #include <catch2/catch.hpp>
 #include <tuple>
 
+#include "absl/strings/str_cat.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
 #include "kindred/index_writer.h"
@@ -306,6 +307,79 @@ TEST_CASE("query-time banding finds the same candidates as a fresh table", "[ind
     reference->Candidates(keys, &b);
     REQUIRE(a == b);
   }
+}
+
+TEST_CASE("a crowded index key proposes its first live document only", "[index]") {
+  TempDir dir;
+  IndexSettings settings = testing::TestIndexSettings(32, 16, 2);
+  // 30 copies of one template (every band key shared by all of them), then
+  // ten distinct documents.
+  std::vector<std::pair<std::string, std::string>> texts;
+  for (int i = 0; i < 30; ++i) {
+    texts.emplace_back(absl::StrCat("t", i), "the same boilerplate footer of every page here");
+  }
+  for (const auto& text : MakeTexts(11, 10, 40, "x")) texts.push_back(text);
+  SignedCorpus all = SignTexts(texts, settings.signature);
+  std::string path = dir.File("x.kin");
+  REQUIRE(CreateIndex(path, settings, all).ok());
+  auto reader = OpenOrDie(path);
+  std::vector<uint64_t> keys(16);
+  BandKeys(all.signature(0), Banding{16, 2}, absl::MakeSpan(keys));
+
+  std::vector<uint32_t> found;
+  uint64_t crowded = 0;
+  reader->Candidates(keys, &found, 0, &crowded);  // no cap
+  REQUIRE(found.size() == 30);
+  REQUIRE(crowded == 0);
+  found.clear();
+  reader->Candidates(keys, &found, 30, &crowded);  // 30 is not more than 30
+  REQUIRE(found.size() == 30);
+  REQUIRE(crowded == 0);
+  found.clear();
+  reader->Candidates(keys, &found, 10, &crowded);
+  REQUIRE(found == std::vector<uint32_t>{0});
+  REQUIRE(crowded == 16);  // every band
+
+  // The representative is the first live one: replace t0, then t1 leads.
+  {
+    auto writer = IndexWriter::Open(path);
+    REQUIRE(writer.ok());
+    SignedCorpus replacement(settings.signature.perms);
+    replacement.Add("t0", all.facts(30), {}, all.shingles(30), all.signature(30));
+    REQUIRE((*writer)->Append(replacement, DuplicateIdPolicy::kReplace).ok());
+  }
+  REQUIRE(reader->ReadAppended().ok());
+  found.clear();
+  reader->Candidates(keys, &found, 10);
+  REQUIRE(found == std::vector<uint32_t>{1});
+  // The same through a query-time banding.
+  REQUIRE(reader->UseBanding(8, 4).ok());
+  std::vector<uint64_t> keys8(8);
+  BandKeys(all.signature(0), Banding{8, 4}, absl::MakeSpan(keys8));
+  found.clear();
+  crowded = 0;
+  reader->Candidates(keys8, &found, 10, &crowded);
+  REQUIRE(found == std::vector<uint32_t>{1});
+  REQUIRE(crowded == 8);
+
+  // Matching: a query copy of the template is confirmed against the
+  // representative only, and the crowded keys are counted.
+  REQUIRE(reader->UseBanding(16, 2).ok());
+  SignedCorpus query = Slice(all, 5, 6);
+  IndexMatchOptions options;
+  options.match.threshold = 0.9;
+  options.max_bucket = 10;
+  options.crowded_keys = &crowded;
+  auto matches = MatchAgainstIndex(*reader, query, options);
+  REQUIRE(matches.ok());
+  REQUIRE(matches->size() == 1);
+  REQUIRE((*matches)[0].other == 1);
+  REQUIRE(crowded == 16);
+  options.max_bucket = 0;
+  matches = MatchAgainstIndex(*reader, query, options);
+  REQUIRE(matches.ok());
+  REQUIRE(matches->size() == 29);  // t1..t29
+  REQUIRE(crowded == 0);
 }
 
 TEST_CASE("matches against an index are confirmed exactly", "[index]") {

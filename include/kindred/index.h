@@ -123,8 +123,15 @@ class IndexReader {
 
   // Appends to *out the live documents that share at least one band key
   // with `keys` (the band keys of a query signature under the current
-  // banding, one per band), ascending and without repeats.
-  void Candidates(absl::Span<const uint64_t> keys, std::vector<uint32_t>* out) const;
+  // banding, one per band), ascending and without repeats. A crowded key,
+  // one that more than `max_bucket` indexed documents (live or retired)
+  // share, proposes only the first live one of them, as sweep pairs the
+  // members of a crowded bucket with its first document only (see
+  // candidates.h), and is counted in *crowded when that is not null.
+  // max_bucket 0: no cap. The cost per key is then logarithmic in the
+  // index, not linear in the bucket.
+  void Candidates(absl::Span<const uint64_t> keys, std::vector<uint32_t>* out,
+                  uint64_t max_bucket = 0, uint64_t* crowded = nullptr) const;
 
   // Calls visit(key, doc) for every band key of every live document under
   // the current banding, segment by segment (keys ascending within each).

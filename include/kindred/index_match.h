@@ -18,6 +18,7 @@
 #include <vector>
 
 #include "absl/status/statusor.h"
+#include "kindred/candidates.h"
 #include "kindred/groups.h"
 #include "kindred/index.h"
 #include "kindred/records.h"
@@ -49,6 +50,14 @@ struct IndexMatchOptions {
   // Leave out indexed documents with the same id as the query (the version a
   // `replace` supersedes).
   bool exclude_same_id = false;
+  // Crowded band buckets (candidates.h): an index key shared by more than
+  // this many indexed documents proposes only the first live one of them
+  // (0: no cap), and batch documents are paired among themselves under the
+  // same cap (0: the default cap). At least 2 when not 0.
+  uint64_t max_bucket = kDefaultMaxBucket;
+  // When set, receives the number of crowded index keys met by all the
+  // queries together. Borrowed.
+  uint64_t* crowded_keys = nullptr;
   // When set, receives for each batch document the seconds its match against
   // the index took (band lookup, reading candidate sets, exact verification;
   // not signing), for latency reports. Borrowed.

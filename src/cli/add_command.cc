@@ -28,6 +28,7 @@ struct AddFlags {
   GeneralFlags general;
   std::string format = "jsonl";
   std::string on_duplicate = "error";
+  uint64_t max_bucket = kDefaultMaxBucket;
   GivenOptions given;
 };
 
@@ -66,6 +67,9 @@ int RunAdd(const AddFlags& flags) {
   if (!policy.ok()) return Fail(kExitUsage, policy.status());
   auto input_options = ToInputOptions(flags.input);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
+  if (absl::Status valid = ValidMaxBucket(flags.max_bucket); !valid.ok()) {
+    return Fail(kExitUsage, valid);
+  }
   auto writer = IndexWriter::Open(flags.index);  // takes the lock first: busy fails at once
   if (!writer.ok()) return Fail(WriteExitCode(writer.status()), writer.status());
   if ((*writer)->torn_tail_cut() > 0 && !flags.general.quiet) {
@@ -91,6 +95,9 @@ int RunAdd(const AddFlags& flags) {
   }
   IndexMatchOptions options{match, threads,
                             /*exclude_same_id=*/*policy == DuplicateIdPolicy::kReplace};
+  options.max_bucket = flags.max_bucket;
+  uint64_t crowded = 0;
+  options.crowded_keys = &crowded;
   auto matches = MatchAgainstIndex(**reader, batch, options);
   if (!matches.ok()) return Fail(matches.status());
   auto appended = (*writer)->Append(batch, *policy);
@@ -102,6 +109,7 @@ int RunAdd(const AddFlags& flags) {
   }
   if (!flags.general.quiet) {
     PrintSummary(flags, *appended, batch, matches->size(), (*writer)->reader());
+    PrintCrowdedKeys(crowded, flags.max_bucket);
   }
   return kExitOk;
 }
@@ -117,6 +125,7 @@ void RegisterAdd(CLI::App& app, int* exit_code) {
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
+  AddMaxBucketOption(command, &flags->max_bucket);
   command
       ->add_option("--on-duplicate", flags->on_duplicate,
                    "a document whose id is already indexed: error (refuse the batch), skip "

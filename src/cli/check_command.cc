@@ -30,6 +30,7 @@ struct CheckFlags {
   GeneralFlags general;
   std::string format = "jsonl";
   bool fail_on_match = false;
+  uint64_t max_bucket = kDefaultMaxBucket;
   GivenOptions given;
 };
 
@@ -65,6 +66,9 @@ int RunCheck(const CheckFlags& flags) {
   if (!format.ok()) return Fail(kExitUsage, format.status());
   auto input_options = ToInputOptions(flags.input);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
+  if (absl::Status valid = ValidMaxBucket(flags.max_bucket); !valid.ok()) {
+    return Fail(kExitUsage, valid);
+  }
   auto reader = IndexReader::Open(flags.index);
   if (!reader.ok()) return Fail(reader.status());
   if ((*reader)->torn_tail_bytes() > 0 && !flags.general.quiet) {
@@ -87,6 +91,9 @@ int RunCheck(const CheckFlags& flags) {
     return Fail(kExitInput, status);
   }
   IndexMatchOptions options{match, threads, false};
+  options.max_bucket = flags.max_bucket;
+  uint64_t crowded = 0;
+  options.crowded_keys = &crowded;
   std::vector<double> latencies;
   if (flags.general.verbose) options.query_seconds = &latencies;
   auto matches = MatchAgainstIndex(**reader, uploads, options);
@@ -104,6 +111,7 @@ int RunCheck(const CheckFlags& flags) {
                  uploads.size(), (*reader)->live_count(), MeasureName(match.measure),
                  match.threshold, (*reader)->bands(), (*reader)->rows(), matched_count,
                  static_cast<unsigned long long>(stats.empty_documents));
+    PrintCrowdedKeys(crowded, flags.max_bucket);
   }
   if (flags.general.verbose && !latencies.empty()) PrintLatencies(latencies);
   return flags.fail_on_match && matched_count > 0 ? kExitMatched : kExitOk;
@@ -120,6 +128,7 @@ void RegisterCheck(CLI::App& app, int* exit_code) {
   AddInputOptions(command, &flags->input);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
+  AddMaxBucketOption(command, &flags->max_bucket);
   command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
       ->default_str("jsonl")
       ->group("Output");

@@ -2,6 +2,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "cli/output.h"
+#include "kindred/candidates.h"
 #include "kindred/parallel.h"
 
 namespace kindred::cli {
@@ -110,6 +111,20 @@ absl::StatusOr<SignatureSettings> ToSignatureSettings(const SignatureFlags& flag
   settings.seed = flags.seed;
   if (absl::Status status = settings.Validate(); !status.ok()) return status;
   return settings;
+}
+
+void AddMaxBucketOption(CLI::App* command, uint64_t* max_bucket) {
+  command
+      ->add_option("--max-bucket", *max_bucket,
+                   "an LSH bucket (band key) shared by more documents proposes its first "
+                   "document only")
+      ->default_str(std::to_string(kDefaultMaxBucket))
+      ->group("Matching");
+}
+
+absl::Status ValidMaxBucket(uint64_t max_bucket) {
+  return max_bucket >= 2 ? absl::OkStatus()
+                         : absl::InvalidArgumentError("--max-bucket must be at least 2");
 }
 
 void AddMatchOptions(CLI::App* command, MatchFlags* flags) {

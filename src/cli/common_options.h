@@ -55,6 +55,11 @@ struct GeneralFlags {
   bool verbose = false;
 };
 void AddGeneralOptions(CLI::App* command, GeneralFlags* flags);
+
+// --max-bucket (sweep, check, add): the crowded-bucket cap of candidates.h,
+// at least 2 (ValidMaxBucket says so otherwise: a usage error).
+void AddMaxBucketOption(CLI::App* command, uint64_t* max_bucket);
+absl::Status ValidMaxBucket(uint64_t max_bucket);
 int ThreadCount(const GeneralFlags& flags);
 
 }  // namespace kindred::cli

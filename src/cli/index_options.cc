@@ -80,4 +80,13 @@ absl::Status SignInputs(const std::vector<std::string>& inputs, const InputOptio
   return SignCorpus(**reader, signature, sign, out, stats);
 }
 
+void PrintCrowdedKeys(uint64_t crowded, uint64_t max_bucket) {
+  if (crowded == 0) return;
+  std::fprintf(stderr,
+               "  crowded keys      %llu band keys shared by more than %llu indexed documents "
+               "proposed their first document only (--max-bucket)\n",
+               static_cast<unsigned long long>(crowded),
+               static_cast<unsigned long long>(max_bucket));
+}
+
 }  // namespace kindred::cli

@@ -40,6 +40,10 @@ absl::StatusOr<MatchSettings> IndexQueryMatch(const MatchFlags& flags, const Giv
 int PrepareIndexQuery(const SignatureFlags& signature, const MatchFlags& match_flags,
                       const GivenOptions& given, IndexReader* reader, MatchSettings* match);
 
+// The summary line for the crowded index keys a check or add met (none:
+// nothing printed).
+void PrintCrowdedKeys(uint64_t crowded, uint64_t max_bucket);
+
 // Reads and signs every input under `signature` (for add and check).
 // Errors are the reader's (exit 3).
 absl::Status SignInputs(const std::vector<std::string>& inputs, const InputOptions& input_options,

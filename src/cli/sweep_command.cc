@@ -255,8 +255,9 @@ int RunSweepCommand(const SweepFlags& flags) {
   auto format = ParseRecordFormat(flags.format);
   if (!format.ok()) return Fail(kExitUsage, format.status());
   options.exhaustive = flags.exhaustive;
-  if (flags.max_bucket < 2)
-    return Fail(kExitUsage, absl::InvalidArgumentError("--max-bucket must be at least 2"));
+  if (absl::Status valid = ValidMaxBucket(flags.max_bucket); !valid.ok()) {
+    return Fail(kExitUsage, valid);
+  }
   options.max_bucket = flags.max_bucket;
   if (!flags.memory.empty()) {
     auto memory = ParseByteSize(flags.memory);
@@ -355,11 +356,7 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
       ->add_flag("--exhaustive", flags->exhaustive,
                  "compare every pair exactly instead of using LSH (slow; the reference)")
       ->group("Matching");
-  command
-      ->add_option("--max-bucket", flags->max_bucket,
-                   "LSH buckets with more documents pair each member with the first only")
-      ->default_str(std::to_string(kDefaultMaxBucket))
-      ->group("Matching");
+  AddMaxBucketOption(command, &flags->max_bucket);
   command
       ->add_option("--memory", flags->memory,
                    "memory budget, e.g. 4G: band keys beyond half of it are spilled to sorted "

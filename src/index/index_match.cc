@@ -15,13 +15,14 @@ namespace {
 
 // The confirmed indexed matches of batch document `q`, appended to *out.
 absl::Status MatchOne(const IndexReader& reader, const SignedCorpus& batch, uint32_t q,
-                      const IndexMatchOptions& options, std::vector<IndexMatch>* out) {
+                      const IndexMatchOptions& options, std::vector<IndexMatch>* out,
+                      uint64_t* crowded) {
   auto query = batch.shingles(q);
   if (query.empty()) return absl::OkStatus();
   std::vector<uint64_t> keys(reader.bands());
   BandKeys(batch.signature(q), Banding{reader.bands(), reader.rows()}, absl::MakeSpan(keys));
   std::vector<uint32_t> candidates;
-  reader.Candidates(keys, &candidates);
+  reader.Candidates(keys, &candidates, options.max_bucket, crowded);
   std::vector<uint64_t> stored;
   for (uint32_t doc : candidates) {
     if (options.exclude_same_id && reader.id(doc) == batch.id(q)) continue;
@@ -47,11 +48,13 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
   if (options.query_seconds != nullptr) options.query_seconds->assign(batch.size(), 0.0);
   std::mutex error_mutex;
   absl::Status error;
+  uint64_t crowded_total = 0;
   ParallelFor(batch.size(), options.threads, [&](size_t begin, size_t end, int) {
+    uint64_t crowded = 0;
     for (size_t q = begin; q < end; ++q) {
       const auto start = std::chrono::steady_clock::now();
       absl::Status status =
-          MatchOne(reader, batch, static_cast<uint32_t>(q), options, &per_query[q]);
+          MatchOne(reader, batch, static_cast<uint32_t>(q), options, &per_query[q], &crowded);
       if (options.query_seconds != nullptr) {
         (*options.query_seconds)[q] =
             std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
@@ -61,13 +64,17 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
         if (error.ok()) error = status;
       }
     }
+    std::lock_guard<std::mutex> lock(error_mutex);
+    crowded_total += crowded;
   });
   if (!error.ok()) return error;
+  if (options.crowded_keys != nullptr) *options.crowded_keys = crowded_total;
   // Within the batch: each confirmed pair (a < b) is reported once, as a
   // match of the later document b with the earlier a.
   CandidateStats stats;
   std::vector<PackedPair> candidates =
-      FindCandidatePairs(batch, Banding{reader.bands(), reader.rows()}, options.threads, &stats);
+      FindCandidatePairs(batch, Banding{reader.bands(), reader.rows()}, options.threads, &stats,
+                         options.max_bucket == 0 ? kDefaultMaxBucket : options.max_bucket);
   for (const ScoredPair& pair : VerifyPairs(batch, candidates, options.match, options.threads)) {
     per_query[pair.b].push_back(IndexMatch{pair.b, false, pair.a, pair.shared, pair.size_b,
                                            pair.size_a, pair.jaccard, pair.estimate});

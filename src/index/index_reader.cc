@@ -195,24 +195,54 @@ absl::Status IndexReader::UseBanding(uint32_t bands, uint32_t rows) {
   return absl::OkStatus();
 }
 
-void IndexReader::Candidates(absl::Span<const uint64_t> keys, std::vector<uint32_t>* out) const {
-  size_t start = out->size();
-  bool stored = memory_keys_.empty() && bands_ == settings_.bands && rows_ == settings_.rows;
+void IndexReader::Candidates(absl::Span<const uint64_t> keys, std::vector<uint32_t>* out,
+                             uint64_t max_bucket, uint64_t* crowded) const {
+  const size_t start = out->size();
+  const bool stored = memory_keys_.empty() && bands_ == settings_.bands && rows_ == settings_.rows;
+  // The entries of a key: one range of the in-memory table, or one range
+  // per segment (document numbers ascending across them).
+  struct Range {
+    size_t segment;  // kMemory for the in-memory table
+    size_t begin, end;
+  };
+  constexpr size_t kMemory = ~size_t{0};
+  std::vector<Range> ranges;
+  const auto doc_at = [&](const Range& range, size_t i) {
+    if (range.segment == kMemory) return memory_keys_[i].second;
+    const Segment& segment = segment_views_[range.segment];
+    return segment_first_doc_[range.segment] + segment.key_docs()[i];
+  };
   for (uint64_t key : keys) {
     if (key == kNoBandKey) continue;
+    ranges.clear();
+    uint64_t entries = 0;
     if (!stored) {
-      auto it = std::lower_bound(memory_keys_.begin(), memory_keys_.end(),
-                                 std::make_pair(key, uint32_t{0}));
-      for (; it != memory_keys_.end() && it->first == key; ++it) out->push_back(it->second);
-      continue;
+      const auto [lo, hi] = std::equal_range(
+          memory_keys_.begin(), memory_keys_.end(), std::make_pair(key, uint32_t{0}),
+          [](const auto& x, const auto& y) { return x.first < y.first; });
+      ranges.push_back({kMemory, static_cast<size_t>(lo - memory_keys_.begin()),
+                        static_cast<size_t>(hi - memory_keys_.begin())});
+      entries += hi - lo;
+    } else {
+      for (size_t s = 0; s < segment_views_.size(); ++s) {
+        const Segment& segment = segment_views_[s];
+        const uint64_t* end = segment.keys() + segment.key_count();
+        const auto [lo, hi] = std::equal_range(segment.keys(), end, key);
+        if (lo == hi) continue;
+        ranges.push_back({s, static_cast<size_t>(lo - segment.keys()),
+                          static_cast<size_t>(hi - segment.keys())});
+        entries += hi - lo;
+      }
     }
-    for (size_t s = 0; s < segment_views_.size(); ++s) {
-      const Segment& segment = segment_views_[s];
-      const uint64_t* end = segment.keys() + segment.key_count();
-      const uint64_t* it = std::lower_bound(segment.keys(), end, key);
-      for (; it != end && *it == key; ++it) {
-        uint32_t doc = segment_first_doc_[s] + segment.key_docs()[it - segment.keys()];
-        if (is_live(doc)) out->push_back(doc);
+    const bool capped = max_bucket > 0 && entries > max_bucket;
+    if (capped && crowded != nullptr) ++*crowded;
+    bool found = false;
+    for (const Range& range : ranges) {
+      for (size_t i = range.begin; i < range.end && !(capped && found); ++i) {
+        const uint32_t doc = doc_at(range, i);
+        if (!is_live(doc)) continue;
+        out->push_back(doc);
+        found = true;
       }
     }
   }

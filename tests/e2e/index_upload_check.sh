@@ -88,6 +88,25 @@ expect_rc 0 "check after add" -- "$K" check "$INDEX" "$SUBMISSIONS" --format tsv
 [ "$(awk -F'\t' '$1 == $2 && $4 == "1.000000"' "$T/out" | wc -l)" -ge $((submitted - 1)) ] ||
   fail "submissions do not match themselves after add"
 
+# Crowded keys: a template copied into many documents makes buckets of all
+# of them; under --max-bucket a copy is checked against the first only, and
+# the summary says so. --max-bucket below 2 is a usage error.
+mkdir "$T/template"
+for i in $(seq 1 12); do
+  printf 'Subscribe to our newsletter for the week ahead in Port Tessary and beyond.\n' \
+    >"$T/template/page-$i.txt"
+done
+expect_rc 0 "build an index of a template" -- "$K" build "$T/template.kin" "$T/template" -q
+expect_rc 0 "check a template copy, crowded" -- "$K" check "$T/template.kin" \
+  "$T/template/page-1.txt" --max-bucket 5 --format tsv
+[ "$(wc -l <"$T/out")" -eq 2 ] || fail "crowded check: expected one match: $(cat "$T/out")"
+grep -q "crowded keys" "$T/err" || fail "crowded check: no summary line: $(cat "$T/err")"
+expect_rc 0 "check a template copy, uncapped" -- "$K" check "$T/template.kin" \
+  "$T/template/page-1.txt" --format tsv
+[ "$(wc -l <"$T/out")" -eq 13 ] || fail "uncapped check: expected 12 matches: $(cat "$T/out")"
+expect_rc 2 "check --max-bucket 1" -- "$K" check "$T/template.kin" "$T/template/page-1.txt" \
+  --max-bucket 1
+
 # Another settings than the index's: exit 5.
 expect_rc 5 "check with other settings" -- "$K" check "$INDEX" "$SUBMISSIONS" -k 4 -q
 grep -q "other settings" "$T/err" || fail "settings mismatch message"
