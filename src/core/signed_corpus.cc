@@ -29,6 +29,7 @@ void SignedCorpus::Reserve(size_t documents) {
 }
 
 void SignedCorpus::Clear() {
+  internal::RequireContract(spill_ == nullptr, "Clear needs a corpus that has not spilled");
   ids_.clear();
   facts_.clear();
   origins_.clear();
