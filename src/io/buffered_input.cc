@@ -19,7 +19,12 @@ bool IsBlankLine(absl::string_view line) {
 
 BufferedInput::BufferedInput(std::unique_ptr<ByteStream> stream, std::string name,
                              uint64_t max_bytes)
-    : stream_(std::move(stream)), name_(std::move(name)), max_bytes_(max_bytes) {}
+    : stream_(std::move(stream)), name_(std::move(name)), max_bytes_(max_bytes) {
+  // Room for the first chunk (not touched until read into): buffer_.data()
+  // is then never null, which memchr, memmove and string assignment need
+  // even for zero bytes.
+  buffer_.reserve(kChunkBytes);
+}
 
 absl::StatusOr<size_t> BufferedInput::Fill() {
   if (eof_) return 0;
