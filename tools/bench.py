@@ -75,6 +75,23 @@ def generate(path, docs, dup_rate, seed=1, extra=()):
                     *extra], check=True, stdout=subprocess.DEVNULL)
 
 
+def core_steps(program, corpus, wc_seconds):
+    """The floor under signing speed: the steps the definition requires of
+    every document (fold and split, XXH3 of each word window, MinHash) on
+    texts already in memory, timed by build/tools/kindred_core_steps (best
+    of 3 rounds), set beside wc -w's median time on the file."""
+    if not program.exists():
+        print(f"\n(no {program}: build with tests to see the floor under signing speed)")
+        return
+    out = subprocess.run([str(program), str(corpus), "3"], capture_output=True, text=True,
+                         check=True).stdout
+    best = out.strip().splitlines()[-1].split()
+    shingle, both = float(best[2]), float(best[5])
+    print(f"\nthe steps every document needs by definition, texts already in memory (best of 3)")
+    print(f"  fold, split and hash word windows {shingle:.3f} s; with MinHash {both:.3f} s")
+    print(f"  = {both / wc_seconds:.2f} of wc -w's time (a 2x ratio leaves 0.50 for everything)")
+
+
 def main():
     parser = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     parser.add_argument("--kindred", default=str(ROOT / "build/kindred"))
@@ -113,6 +130,7 @@ def main():
         print(f"  kindred: {size_mb / a:.1f} MB/s   wc -w: {size_mb / b:.1f} MB/s")
         compare("distance to the read-and-hash limit", sweep + ["--threads", "1", str(plain)],
                 ["xxhsum", "-H3", str(plain)], args.runs, "B = xxhsum -H3 on the same file")
+        core_steps(pathlib.Path(kindred).parent / "tools" / "kindred_core_steps", plain, b)
     if "threads" in only:
         compare("two threads against one", sweep + ["--threads", "2", str(plain)],
                 sweep + ["--threads", "1", str(plain)], args.runs, "bar: ratio >= 1.8")
