@@ -7,7 +7,7 @@
 //   - the lean form (Lean()): only the band keys of one banding and the size
 //     of the shingle set. A sweep needs sets and signatures only for the few
 //     documents that land in candidate pairs; those are attached later
-//     (AttachShingles, after reading the documents again: see reload.h).
+//     (AttachRoom, after reading the documents again: see reload.h).
 //     A million documents then cost about 200 bytes each instead of ~2 KB,
 //     and most of a sweep's time on fresh memory is saved.
 // Storage is flat (large blocks that never move, arrays advised as huge
@@ -21,7 +21,7 @@
 // and the first error reported, do not depend on the thread count.
 //
 // Thread-safety: const methods may be called concurrently; Add() and
-// AttachShingles() may not.
+// AttachRoom() may not (filling the rooms it returns may).
 #ifndef KINDRED_SIGNED_CORPUS_H_
 #define KINDRED_SIGNED_CORPUS_H_
 
@@ -97,11 +97,6 @@ class SignedCorpus {
   static void LeanBandKeys(Banding banding, bool empty, absl::Span<const uint32_t> signature,
                            absl::Span<uint64_t> out);
 
-  // Lean only: attaches the sorted set and the signature of document `doc`,
-  // which must not have them yet. Copies both.
-  void AttachShingles(uint32_t doc, absl::Span<const uint64_t> shingles,
-                      absl::Span<const uint32_t> signature);
-
   // Lean only: attaches room for a sorted set of `shingles` values and a
   // signature to document `doc`, which must not have them yet, and returns
   // where they go. The caller fills both (from any thread, concurrently for
@@ -119,11 +114,11 @@ class SignedCorpus {
   absl::Span<const KeepFacts> all_facts() const { return facts_; }
   const DocumentOrigin& origin(size_t doc) const { return origins_[doc]; }
   // Size of the document's shingle set. In a lean corpus before
-  // AttachShingles, only whether it is zero is known (signing skips the
+  // AttachRoom, only whether it is zero is known (signing skips the
   // sort that would count duplicates).
   uint32_t shingle_count(size_t doc) const { return shingle_count_[doc]; }
   // Whether shingles() and signature() may be called: always when not lean,
-  // after AttachShingles when lean.
+  // after AttachRoom (and filling) when lean.
   bool has_shingles(size_t doc) const { return signature_data_[doc] != nullptr; }
   // Requires has_shingles(doc).
   absl::Span<const uint64_t> shingles(size_t doc) const {

@@ -140,14 +140,6 @@ absl::Status SignedCorpus::SpillBandKeys() {
   return absl::OkStatus();
 }
 
-void SignedCorpus::AttachShingles(uint32_t doc, absl::Span<const uint64_t> shingles,
-                                  absl::Span<const uint32_t> signature) {
-  internal::RequireContract(signature.size() == perms(), "AttachShingles needs perms() slots");
-  const AttachedRoom room = AttachRoom(doc, shingles.size());
-  if (!shingles.empty()) std::memcpy(room.shingles, shingles.data(), shingles.size() * sizeof(uint64_t));
-  std::memcpy(room.signature, signature.data(), perms() * sizeof(uint32_t));
-}
-
 SignedCorpus::AttachedRoom SignedCorpus::AttachRoom(uint32_t doc, size_t shingles) {
   uint64_t* set = shingles_.Allocate(shingles);
   uint32_t* signature = signatures_.Allocate(perms());
