@@ -159,14 +159,14 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCo
     HugePageVector<uint64_t> filter;
   };
   std::vector<Space> spaces(std::max(1, threads));
+  // Without spilled runs, buckets of one make no pairs: they are counted,
+  // not collected and sorted.
+  const bool in_memory = spill == nullptr || spill->runs() == 0;
   ParallelFor(bands, threads, [&](size_t begin, size_t end, int worker) {
     EntryVector& entries = spaces[worker].entries;
     EntryVector& scratch = spaces[worker].scratch;
     HugePageVector<uint32_t>& offsets = spaces[worker].offsets;
     for (size_t band = begin; band < end; ++band) {
-      // Without spilled runs, buckets of one make no pairs: they are
-      // counted, not collected and sorted.
-      const bool in_memory = spill == nullptr || spill->runs() == 0;
       const size_t dropped =
           CollectEntries(columns[band], resident, first, in_memory, spaces[worker].filter, entries);
       BucketPairer pairer(max_bucket, &band_pairs[band], &band_stats[band]);
