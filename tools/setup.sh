@@ -23,6 +23,13 @@ packages=(
   unicode-data python3 python3-icu python3-xxhash xxhash zstd gzip bzip2 libxml2-utils
   # tools/ci_checks.sh: libFuzzer targets and symbolized sanitizer reports
   clang libclang-rt-14-dev llvm
+  # crawl archives: HTML5 reference parser, brotli, the independent html5lib
+  # reference and GNU wget (writes the WARC test crawls)
+  libgumbo-dev libbrotli-dev python3-html5lib wget
+  # kindred serve: HTTP server library; its browser test
+  libcpp-httplib-dev chromium chromium-driver python3-selenium
+  # the Python package and the cluster sweep
+  pybind11-dev python3-dev python3-numpy python3-pytest python3-dask python3-distributed
 )
 
 missing=()
