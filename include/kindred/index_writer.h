@@ -4,10 +4,12 @@
 // Durability: CreateIndex and CompactIndex write a temporary file beside the
 // index, sync it, rename it into place and sync the directory, so a crash
 // leaves either no new file (or the old file intact) or the complete new one.
-// IndexWriter::Append writes a segment, syncs, writes its commit record and
-// syncs again before it returns OK: a crash at any point leaves every earlier
-// committed document readable, and at most a torn tail that readers ignore
-// and the next writer cuts off.
+// IndexWriter::Append writes a segment and its commit record, syncs, then
+// records the new committed length in the file's commit area and syncs
+// again before it returns OK: a crash at any point leaves every earlier
+// committed document readable, and at most a torn tail (bytes after the
+// recorded commit) that readers ignore and the next writer cuts off. No
+// writer ever cuts bytes the file records as committed.
 //
 // One writer at a time: IndexWriter::Open, CompactIndex and RepairIndex take
 // an exclusive advisory lock on the file (flock, never waiting) and fail at
@@ -145,10 +147,27 @@ struct AuditReport {
 absl::StatusOr<AuditReport> AuditIndex(const std::string& path,
                                        const IndexWriteOptions& options = {});
 
-// Cuts off a torn tail under the writer lock and syncs; returns the bytes
-// cut (0 when there was none).
-absl::StatusOr<uint64_t> RepairIndex(const std::string& path,
-                                     const IndexWriteOptions& options = {});
+struct RepairResult {
+  // Bytes after the recorded commit of a sound version-2 file, cut off.
+  uint64_t torn_tail_cut = 0;
+  // Set when the file is damaged (or is a version-1 file with bytes after
+  // its last whole segment): a version-2 copy holding every readable live
+  // document was written here ("INDEX.repaired.kin"); the file itself is
+  // left exactly as it was.
+  std::string repaired_path;
+  uint32_t documents_kept = 0;
+  // What the copy lacks, one sentence each (segments, document numbers and
+  // ids when known, byte ranges).
+  std::vector<std::string> lost;
+};
+
+// Under the writer lock: cuts off a torn tail of a sound version-2 file
+// (synced); for a damaged file writes the repaired copy beside it. Never
+// deletes or cuts committed bytes. AlreadyExists when the copy's path is
+// taken; FailedPrecondition for a newer format; DataLoss when not even the
+// file header can be read.
+absl::StatusOr<RepairResult> RepairIndex(const std::string& path,
+                                         const IndexWriteOptions& options = {});
 
 }  // namespace kindred
 

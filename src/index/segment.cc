@@ -144,6 +144,7 @@ SegmentScan SegmentView::Parse(std::string_view file, uint64_t offset, uint32_t 
     return corrupt("checksum mismatch");
   }
   perms_ = perms;
+  offset_ = offset;
   Bind(rest.substr(kSegmentHeaderSize, layout_.body_length));
   *error = CheckTables(offset);
   return error->ok() ? SegmentScan::kSegment : SegmentScan::kCorrupt;
