@@ -242,7 +242,14 @@ TEST_CASE("torn and corrupt segments are told apart", "[format]") {
   std::string damaged = whole;
   damaged[kSegmentHeaderSize + 3] ^= 0x10;
   REQUIRE(view.Parse(damaged, 0, 0, 0, 16, &error) == SegmentScan::kCorrupt);
-  REQUIRE(std::string(error.message()) == "index segment 0 at byte 0: checksum mismatch");
+  SegmentHeader header;
+  REQUIRE(DecodeSegmentHeader(whole, &header));
+  SectionLayout layout;
+  REQUIRE(ComputeLayout(header, 16, UINT64_MAX, &layout));
+  REQUIRE(std::string(error.message()) ==
+          "index segment 0 at byte 0: its tables (bytes 0.." +
+              std::to_string(kSegmentHeaderSize + layout.tables_end) +
+              ": ids, signatures, band keys) fail their checksum");
 }
 
 }  // namespace

@@ -70,6 +70,7 @@ int RunAdd(const AddFlags& flags) {
   if (absl::Status valid = ValidMaxBucket(flags.max_bucket); !valid.ok()) {
     return Fail(kExitUsage, valid);
   }
+  ReportStaleTempFiles(flags.index);
   auto writer = IndexWriter::Open(flags.index);  // takes the lock first: busy fails at once
   if (!writer.ok()) return Fail(WriteExitCode(writer.status()), writer.status());
   if ((*writer)->torn_tail_cut() > 0 && !flags.general.quiet) {

@@ -4,6 +4,7 @@
 #include <cstdio>
 
 #include "cli/cli.h"
+#include "cli/index_options.h"
 #include "kindred/index_writer.h"
 
 namespace kindred::cli {
@@ -16,6 +17,7 @@ struct AuditFlags {
 };
 
 int RunAudit(const AuditFlags& flags) {
+  ReportStaleTempFiles(flags.index);
   if (flags.repair) {
     auto repair = RepairIndex(flags.index);
     if (!repair.ok()) return Fail(repair.status());
@@ -28,7 +30,7 @@ int RunAudit(const AuditFlags& flags) {
     if (!repair->repaired_path.empty()) {
       for (const std::string& lost : repair->lost) std::printf("lost: %s\n", lost.c_str());
       std::fprintf(stderr,
-                   "kindred audit: %s is damaged and was left as it is; wrote %s with the %u "
+                   "kindred audit: %s was left exactly as it is; wrote %s with its %u "
                    "readable live %s (%zu %s lost; see the \"lost:\" lines)\n",
                    flags.index.c_str(), repair->repaired_path.c_str(), repair->documents_kept,
                    repair->documents_kept == 1 ? "document" : "documents", repair->lost.size(),

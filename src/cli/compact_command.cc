@@ -3,6 +3,7 @@
 #include <cstdio>
 
 #include "cli/cli.h"
+#include "cli/index_options.h"
 #include "kindred/index_writer.h"
 
 namespace kindred::cli {
@@ -16,6 +17,7 @@ struct CompactFlags {
 };
 
 int RunCompact(const CompactFlags& flags) {
+  ReportStaleTempFiles(flags.index);
   auto result = CompactIndex(flags.index, CompactOptions{flags.bands, flags.rows});
   if (!result.ok()) {
     switch (result.status().code()) {

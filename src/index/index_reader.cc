@@ -52,10 +52,12 @@ absl::Status IndexReader::LoadCommitted() {
   const index::CommitState& state = area.current;
   if (file_.size() < state.committed_length) {
     return absl::DataLossError(absl::StrFormat(
-        "the file is %u bytes but records %u committed bytes (%u segments, %u documents): bytes "
-        "%u..%u of committed data are missing",
-        file_.size(), state.committed_length, state.segment_count, state.document_count,
-        file_.size(), state.committed_length));
+        "the file is %u bytes but records %u committed bytes (%u %s, %u %s): bytes %u..%u of "
+        "committed data are missing",
+        file_.size(), state.committed_length, state.segment_count,
+        state.segment_count == 1 ? "segment" : "segments", state.document_count,
+        state.document_count == 1 ? "document" : "documents", file_.size(),
+        state.committed_length));
   }
   if (state.generation < commit_generation_) {
     return absl::DataLossError("the commit area went backwards");

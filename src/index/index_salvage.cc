@@ -4,6 +4,7 @@
 
 #include "absl/container/flat_hash_map.h"
 #include "absl/container/flat_hash_set.h"
+#include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "index/codec.h"
 #include "index/commit_area.h"
@@ -57,16 +58,22 @@ void ScanSegments(std::string_view file, uint64_t start, uint32_t perms, Scan* s
         SegmentScan::kSegment) {
       scan->segments.push_back(view);
       offset += view.total_bytes();
+      scan->gap_start = offset;
     } else {
+      // Its end as its header gives it (a cut-off segment ends past the file).
+      const uint64_t end = view.total_bytes() > 0 ? offset + view.total_bytes() : offset + 8;
       scan->lost.push_back(absl::StrFormat(
-          "segment %u at byte %u: %s: %s lost", h.segment_number, offset,
-          error.ok() ? "cut short" : std::string(error.message()),
+          "%s: %s lost (ids unknown)",
+          error.ok() ? absl::StrFormat("segment %u at bytes %u..%u is cut short (the file ends at "
+                                       "byte %u)",
+                                       h.segment_number, offset, end, file.size())
+                     : std::string(error.message()),
           DocumentRange(h.first_doc, h.first_doc + h.doc_count)));
+      scan->gap_start = std::min<uint64_t>(end, file.size());
       offset += 8;
     }
     scan->next_number = h.segment_number + 1;
     scan->next_doc = h.first_doc + h.doc_count;
-    scan->gap_start = offset;
   }
 }
 
@@ -94,6 +101,7 @@ void KeepLive(const Scan& scan, Salvage* out) {
       if (retired.contains(doc) || last_of_id[id] != doc) continue;
       const DocRecord record = segment.doc(local);
       const std::string_view bytes = segment.shingle_bytes(local);
+      shingles.clear();
       if (Checksum(bytes) != record.shingles_checksum ||
           !DecodeShingleSet(bytes, record.shingle_count, &shingles)) {
         const uint64_t at = segment.shingle_offset(local);
@@ -124,18 +132,26 @@ absl::Status SalvageIndex(std::string_view file, Salvage* out) {
   }
   Scan scan;
   CommitArea area;
-  const bool recorded = version >= 2 && ReadCommitArea(file, &area).ok();
+  const absl::Status commits = version >= 2 ? ReadCommitArea(file, &area) : absl::OkStatus();
+  const bool recorded = version >= 2 && commits.ok();
+  if (!commits.ok()) {
+    scan.lost.push_back(absl::StrCat(commits.message(),
+                                     ": how much the file committed is unknown; any segments "
+                                     "after the readable ones are lost"));
+  }
   uint64_t end = file.size();
   if (recorded) end = std::min<uint64_t>(end, area.current.committed_length);
   ScanSegments(file.substr(0, end), version == 1 ? header_size : kDataStart,
                settings.signature.perms, &scan);
   if (recorded && scan.next_number < area.current.segment_count) {
+    const uint32_t missing = area.current.segment_count - scan.next_number;
     scan.lost.push_back(absl::StrFormat(
-        "committed segment%s %u..%u at bytes %u..%u %s missing or damaged (the file is %u "
-        "bytes): %s lost (ids unknown)",
-        area.current.segment_count - scan.next_number > 1 ? "s" : "", scan.next_number,
-        area.current.segment_count - 1, scan.gap_start, area.current.committed_length,
-        area.current.segment_count - scan.next_number > 1 ? "are" : "is", file.size(),
+        "committed %s at bytes %u..%u %s missing or damaged (the file is %u bytes): %s lost (ids "
+        "unknown)",
+        missing > 1 ? absl::StrFormat("segments %u..%u", scan.next_number,
+                                      area.current.segment_count - 1)
+                    : absl::StrFormat("segment %u", scan.next_number),
+        scan.gap_start, area.current.committed_length, missing > 1 ? "are" : "is", file.size(),
         DocumentRange(scan.next_doc, area.current.document_count)));
   } else if (!recorded && scan.gap_start < end) {
     scan.lost.push_back(absl::StrFormat(
