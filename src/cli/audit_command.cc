@@ -20,6 +20,7 @@ int RunAudit(const AuditFlags& flags) {
   ReportStaleTempFiles(flags.index);
   if (flags.repair) {
     auto repair = RepairIndex(flags.index);
+    if (absl::IsAlreadyExists(repair.status())) return Fail(kExitOutput, repair.status());
     if (!repair.ok()) return Fail(repair.status());
     if (repair->torn_tail_cut > 0 && !flags.quiet) {
       std::fprintf(stderr,

@@ -91,7 +91,7 @@ std::vector<std::string> RemoveStaleTempFiles(const std::string& index) {
     if (kill(pid, 0) == 0 || errno != ESRCH) continue;  // runs (or not ours to know)
     std::error_code size_error, remove_error;
     const uintmax_t bytes = fs::file_size(entry.path(), size_error);
-    std::string path = (directory / name).string();
+    std::string path = index_path.parent_path().empty() ? name : (directory / name).string();
     if (fs::remove(entry.path(), remove_error)) {
       removed.push_back(absl::StrFormat(
           "removed %s (%u bytes), left by process %d that no longer runs (an interrupted build "
