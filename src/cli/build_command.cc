@@ -127,6 +127,12 @@ int RunBuild(const BuildFlags& flags) {
   auto input_options = ToInputOptions(flags.input);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
   if (DefaultFileSystem()->Exists(flags.index)) {
+    if (auto existing = IndexReader::Open(flags.index); absl::IsDataLoss(existing.status())) {
+      return Fail(kExitIndexCorrupt,
+                  absl::DataLossError(absl::StrCat(existing.status().message(),
+                                                   "; the index is damaged and build never "
+                                                   "writes over it (see kindred audit --repair)")));
+    }
     return Fail(kExitUsage,
                 absl::AlreadyExistsError(absl::StrFormat(
                     "index %s already exists (kindred add appends to it)", flags.index)));

@@ -17,17 +17,24 @@ IndexReader::~IndexReader() = default;
 
 absl::StatusOr<std::unique_ptr<IndexReader>> IndexReader::Open(const std::string& path,
                                                                const IndexOpenOptions& options) {
-  auto mapping = options.file_system->Map(path);
-  if (!mapping.ok()) return mapping.status();
-  std::unique_ptr<IndexReader> reader(new IndexReader());
-  reader->path_ = path;
-  reader->mapping_ = *std::move(mapping);
-  reader->file_ = reader->mapping_->bytes();
-  absl::Status status = reader->Load();
-  if (!status.ok()) {
-    return absl::Status(status.code(), absl::StrCat("index ", path, ": ", status.message()));
+  absl::Status status;
+  // A writer may commit between the mapping and the reading of the commit
+  // area (the record then names bytes past the mapped end): a file whose
+  // size changed meanwhile is mapped and read again.
+  for (int attempt = 0; attempt < 4; ++attempt) {
+    auto mapping = options.file_system->Map(path);
+    if (!mapping.ok()) return mapping.status();
+    std::unique_ptr<IndexReader> reader(new IndexReader());
+    reader->path_ = path;
+    reader->mapping_ = *std::move(mapping);
+    reader->file_ = reader->mapping_->bytes();
+    status = reader->Load();
+    if (status.ok()) return reader;
+    if (!absl::IsDataLoss(status)) break;
+    auto again = options.file_system->Map(path);
+    if (!again.ok() || (*again)->bytes().size() == reader->file_.size()) break;
   }
-  return reader;
+  return absl::Status(status.code(), absl::StrCat("index ", path, ": ", status.message()));
 }
 
 absl::Status IndexReader::Load() {

@@ -82,6 +82,12 @@ expect_stderr "the file is 5000 bytes but records $(size_of "$WORK/intact.kin") 
 expect_exit 4 "check on a cut file" -- "$KINDRED" check --fail-on-match "$WORK/short.kin" \
   "$WORK/uploads.jsonl"
 [[ ! -s $WORK/out ]] || fail "check on a cut file printed matches as if complete"
+expect_exit 4 "sweep --index on a cut file" -- "$KINDRED" sweep -q --index "$WORK/short.kin"
+expect_exit 4 "explain --index on a cut file" -- "$KINDRED" explain --index "$WORK/short.kin" \
+  doc000000000 doc000000001
+expect_exit 4 "build onto a cut file" -- "$KINDRED" build -q "$WORK/short.kin" "$WORK/a.jsonl"
+expect_stderr "is damaged" "build names the damage"
+[[ $(size_of "$WORK/short.kin") -eq 5000 ]] || fail "a command changed the cut file"
 
 # audit --repair on a cut file: a repaired copy, the file left as it is.
 expect_exit 4 "repair a cut file" -- "$KINDRED" audit --repair "$WORK/short.kin"
