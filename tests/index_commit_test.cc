@@ -4,8 +4,10 @@
 // it shorter; audit --repair writes a copy instead. Version-1 files are read
 // under their old rules, refused by writers and upgraded by compaction.
 #include <catch2/catch.hpp>
+#include <chrono>
 #include <cstdio>
 #include <filesystem>
+#include <thread>
 
 #include "index/codec.h"
 #include "index/commit_area.h"
@@ -308,6 +310,63 @@ TEST_CASE("version-1 files are read, refused by writers and upgraded by compacti
   auto next = IndexWriter::Open(f.path);
   REQUIRE(next.ok());
   REQUIRE((*next)->Append(Slice(f.all, 10, 12), DuplicateIdPolicy::kError).ok());
+}
+
+TEST_CASE("retiring ids writes a segment of only a retired list, all or nothing", "[commit]") {
+  Fixture f;
+  f.Write();
+  const std::string before = testing::ReadFile(f.path);
+  {
+    auto writer = IndexWriter::Open(f.path);
+    auto missing = (*writer)->Retire({"c1", "nope", "c1"});
+    REQUIRE(absl::IsNotFound(missing.status()));
+    REQUIRE(std::string(missing.status().message()).find("\"nope\"") != std::string::npos);
+    REQUIRE(testing::ReadFile(f.path) == before);
+    auto retired = (*writer)->Retire({"c1", "c8", "c1"});
+    REQUIRE(retired.ok());
+    REQUIRE(retired->wrote_segment);
+    REQUIRE(retired->segment_number == 3);
+    REQUIRE(retired->retired == 2);
+    REQUIRE((*writer)->reader().live_count() == 8);
+  }
+  auto reader = IndexReader::Open(f.path);
+  REQUIRE((*reader)->segments().size() == 4);
+  REQUIRE((*reader)->segments()[3].documents == 0);
+  REQUIRE((*reader)->segments()[3].retired == 2);
+  REQUIRE((*reader)->live_count() == 8);
+  REQUIRE_FALSE((*reader)->is_live(1));
+  REQUIRE_FALSE((*reader)->is_live(8));
+  REQUIRE_FALSE((*reader)->FindLive("c1").has_value());
+  REQUIRE(AuditIndex(f.path)->ok());
+  REQUIRE(CompactIndex(f.path).ok());
+  auto compacted = IndexReader::Open(f.path);
+  REQUIRE((*compacted)->document_count() == 8);
+  REQUIRE_FALSE((*compacted)->FindLive("c8").has_value());
+}
+
+TEST_CASE("a writer waits for the lock for a bounded time", "[commit]") {
+  Fixture f;
+  f.Write();
+  auto holder = IndexWriter::Open(f.path);
+  REQUIRE(holder.ok());
+  IndexWriteOptions options;
+  options.lock_wait_seconds = 0.2;
+  const auto start = std::chrono::steady_clock::now();
+  auto waited = IndexWriter::Open(f.path, options);
+  const double seconds =
+      std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+  REQUIRE(absl::IsUnavailable(waited.status()));
+  REQUIRE(std::string(waited.status().message()).find("after waiting 0.2 s") != std::string::npos);
+  REQUIRE(seconds >= 0.2);
+  // Released while another waits: the waiter gets it.
+  options.lock_wait_seconds = 30;
+  std::thread release([&holder] {
+    std::this_thread::sleep_for(std::chrono::milliseconds(100));
+    holder->reset();
+  });
+  auto next = IndexWriter::Open(f.path, options);
+  release.join();
+  REQUIRE(next.ok());
 }
 
 }  // namespace

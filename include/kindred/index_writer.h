@@ -12,8 +12,9 @@
 // writer ever cuts bytes the file records as committed.
 //
 // One writer at a time: IndexWriter::Open, CompactIndex and RepairIndex take
-// an exclusive advisory lock on the file (flock, never waiting) and fail at
-// once with Unavailable when another writer holds it. Readers need no lock.
+// an exclusive advisory lock on the file (flock) and fail with Unavailable
+// when another writer holds it, at once or after lock_wait_seconds. Readers
+// need no lock.
 //
 // Thread-safety: an IndexWriter is used by one thread; the free functions
 // may run concurrently on different files.
@@ -28,11 +29,15 @@
 
 #include "absl/status/status.h"
 #include "absl/status/statusor.h"
+#include "absl/types/span.h"
 #include "kindred/file_io.h"
 #include "kindred/index.h"
 #include "kindred/signed_corpus.h"
 
 namespace kindred {
+namespace index {
+struct SegmentDocument;
+}  // namespace index
 
 // What Append does with a document whose id is already live in the index.
 enum class DuplicateIdPolicy : uint8_t {
@@ -47,6 +52,9 @@ const char* DuplicateIdPolicyName(DuplicateIdPolicy policy);
 
 struct IndexWriteOptions {
   FileSystem* file_system = DefaultFileSystem();  // borrowed
+  // How long a writer waits for the lock another writer holds, retrying
+  // every 50 ms, before it fails with Unavailable (0: fail at once).
+  double lock_wait_seconds = 0;
 };
 
 // Creates a new index at `path` holding `corpus` (which may be empty) as
@@ -59,6 +67,12 @@ absl::Status CreateIndex(const std::string& path, const IndexSettings& settings,
 // What Append did with each document of a batch.
 enum class AddAction : uint8_t { kAdded, kSkipped, kReplaced };
 const char* AddActionName(AddAction action);
+
+struct RetireResult {
+  bool wrote_segment = false;  // false when nothing was retired
+  uint32_t segment_number = 0;
+  uint32_t retired = 0;  // live documents retired
+};
 
 struct AppendResult {
   bool wrote_segment = false;  // false when nothing was added or retired
@@ -94,8 +108,18 @@ class IndexWriter {
   // writer refuses further appends (FailedPrecondition): open a new one.
   absl::StatusOr<AppendResult> Append(const SignedCorpus& batch, DuplicateIdPolicy policy);
 
+  // Retires the live documents with these ids in one new segment that holds
+  // no documents, only the retired list (FORMAT.md, "retired"); durable like
+  // Append. All or nothing: NotFound naming the ids (up to ten) that are not
+  // live, and nothing is written. Repeated ids count once.
+  absl::StatusOr<RetireResult> Retire(absl::Span<const std::string> ids);
+
  private:
   IndexWriter() = default;
+  // Encodes and commits one segment of `docs` retiring `retired` (sorted);
+  // on success the reader has caught up with it.
+  absl::Status WriteSegment(absl::Span<const index::SegmentDocument> docs,
+                            absl::Span<const uint64_t> retired, uint32_t* segment_number);
 
   std::string path_;
   IndexWriteOptions options_;

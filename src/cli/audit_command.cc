@@ -13,13 +13,19 @@ namespace {
 struct AuditFlags {
   std::string index;
   bool repair = false;
+  double wait_lock = 0;
   bool quiet = false;
 };
 
 int RunAudit(const AuditFlags& flags) {
   ReportStaleTempFiles(flags.index);
   if (flags.repair) {
-    auto repair = RepairIndex(flags.index);
+    if (flags.wait_lock < 0) {
+      return Fail(kExitUsage, absl::InvalidArgumentError("--wait-lock must be 0 or more seconds"));
+    }
+    IndexWriteOptions options;
+    options.lock_wait_seconds = flags.wait_lock;
+    auto repair = RepairIndex(flags.index, options);
     if (absl::IsAlreadyExists(repair.status())) return Fail(kExitOutput, repair.status());
     if (!repair.ok()) return Fail(repair.status());
     if (repair->torn_tail_cut > 0 && !flags.quiet) {
@@ -69,6 +75,7 @@ void RegisterAudit(CLI::App& app, int* exit_code) {
                     "first cut off a torn tail after the last recorded commit, or, when the "
                     "index is damaged, write its readable documents to INDEX.repaired.kin "
                     "(the index is never cut; takes the writer lock)");
+  AddWaitLockOption(command, &flags->wait_lock);
   command->add_flag("-q,--quiet", flags->quiet, "print problems only");
   command->callback([flags, exit_code] { *exit_code = RunAudit(*flags); });
 }

@@ -53,6 +53,7 @@ int main(int argc, char** argv) {
   RegisterCompact(app, &exit_code);
   RegisterTune(app, &exit_code);
   RegisterExplain(app, &exit_code);
+  RegisterRemove(app, &exit_code);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -29,7 +29,7 @@ absl::Status LoadLiveDocuments(const IndexReader& reader, SignedCorpus* out) {
 absl::StatusOr<CompactResult> CompactIndex(const std::string& path, const CompactOptions& compact,
                                            const IndexWriteOptions& options) {
   FileSystem* fs = options.file_system;
-  auto lock = index::LockIndex(path, fs);
+  auto lock = index::LockIndex(path, fs, options.lock_wait_seconds);
   if (!lock.ok()) return lock.status();
   auto reader = IndexReader::Open(path, IndexOpenOptions{fs});
   if (!reader.ok()) return reader.status();

@@ -49,7 +49,7 @@ absl::StatusOr<RepairResult> WriteRepairedCopy(const std::string& path, FileSyst
 absl::StatusOr<RepairResult> RepairIndex(const std::string& path,
                                          const IndexWriteOptions& options) {
   FileSystem* fs = options.file_system;
-  auto lock = index::LockIndex(path, fs);
+  auto lock = index::LockIndex(path, fs, options.lock_wait_seconds);
   if (!lock.ok()) return lock.status();
   auto reader = IndexReader::Open(path, IndexOpenOptions{fs});
   if (!reader.ok() && !absl::IsDataLoss(reader.status())) return reader.status();

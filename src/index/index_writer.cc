@@ -65,7 +65,7 @@ absl::StatusOr<std::unique_ptr<IndexWriter>> IndexWriter::Open(const std::string
   std::unique_ptr<IndexWriter> writer(new IndexWriter());
   writer->path_ = path;
   writer->options_ = options;
-  auto lock = index::LockIndex(path, options.file_system);
+  auto lock = index::LockIndex(path, options.file_system, options.lock_wait_seconds);
   if (!lock.ok()) return lock.status();
   writer->lock_ = *std::move(lock);
   auto reader = IndexReader::Open(path, IndexOpenOptions{options.file_system});
@@ -145,9 +145,22 @@ absl::StatusOr<AppendResult> IndexWriter::Append(const SignedCorpus& batch,
     return absl::ResourceExhaustedError("the index would exceed 2^31 documents");
   }
   std::sort(retired.begin(), retired.end());
-  result.segment_number = static_cast<uint32_t>(reader_->segments().size());
-  index::EncodedSegment segment =
-      index::EncodeSegment(result.segment_number, next, docs, retired, settings);
+  if (absl::Status written = WriteSegment(docs, retired, &result.segment_number); !written.ok()) {
+    return written;
+  }
+  result.wrote_segment = true;
+  return result;
+}
+
+absl::Status IndexWriter::WriteSegment(absl::Span<const index::SegmentDocument> docs,
+                                       absl::Span<const uint64_t> retired,
+                                       uint32_t* segment_number) {
+  if (broken_) {
+    return absl::FailedPreconditionError("an earlier append to this index failed; reopen it");
+  }
+  *segment_number = static_cast<uint32_t>(reader_->segments().size());
+  index::EncodedSegment segment = index::EncodeSegment(
+      *segment_number, reader_->document_count(), docs, retired, reader_->settings());
   const index::CommitPoint before{reader_->commit_generation(), reader_->committed_size(),
                                   static_cast<uint32_t>(reader_->segments().size()),
                                   reader_->document_count()};
@@ -156,13 +169,43 @@ absl::StatusOr<AppendResult> IndexWriter::Append(const SignedCorpus& batch,
     broken_ = true;
     return written;
   }
-  result.wrote_segment = true;
   // Reads back and verifies the new segment only (re-opening the whole
   // index after every segment made building in parts quadratic).
-  if (absl::Status read = reader_->ReadAppended(IndexOpenOptions{options_.file_system});
-      !read.ok()) {
-    return read;
+  return reader_->ReadAppended(IndexOpenOptions{options_.file_system});
+}
+
+absl::StatusOr<RetireResult> IndexWriter::Retire(absl::Span<const std::string> ids) {
+  std::vector<uint64_t> retired;
+  std::vector<std::string_view> missing;
+  for (const std::string& id : ids) {
+    std::optional<uint32_t> doc = reader_->FindLive(id);
+    if (doc) {
+      retired.push_back(*doc);
+    } else {
+      missing.push_back(id);
+    }
   }
+  std::sort(retired.begin(), retired.end());
+  retired.erase(std::unique(retired.begin(), retired.end()), retired.end());
+  std::sort(missing.begin(), missing.end());
+  missing.erase(std::unique(missing.begin(), missing.end()), missing.end());
+  if (!missing.empty()) {
+    std::string list;
+    for (size_t i = 0; i < missing.size() && i < 10; ++i) {
+      absl::StrAppend(&list, i == 0 ? "\"" : ", \"", std::string(missing[i]), "\"");
+    }
+    if (missing.size() > 10) absl::StrAppend(&list, " and ", missing.size() - 10, " more");
+    return absl::NotFoundError(absl::StrFormat(
+        "%u %s not live in the index %s: %s; nothing was retired", missing.size(),
+        missing.size() == 1 ? "id is" : "ids are", path_, list));
+  }
+  RetireResult result;
+  if (retired.empty()) return result;
+  if (absl::Status written = WriteSegment({}, retired, &result.segment_number); !written.ok()) {
+    return written;
+  }
+  result.wrote_segment = true;
+  result.retired = static_cast<uint32_t>(retired.size());
   return result;
 }
 

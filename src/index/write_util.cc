@@ -4,16 +4,29 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "absl/time/clock.h"
+#include "absl/time/time.h"
 #include "index/format.h"
 #include "kindred/temp_files.h"
 
 namespace kindred::index {
 
-absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, FileSystem* fs) {
-  for (int attempt = 0; attempt < 5; ++attempt) {
+absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, FileSystem* fs,
+                                                     double wait_seconds) {
+  const absl::Time deadline = absl::Now() + absl::Seconds(wait_seconds);
+  for (int attempt = 0; attempt < 5;) {
     auto lock = fs->LockExclusive(path);
+    if (absl::IsUnavailable(lock.status()) && wait_seconds > 0) {
+      if (absl::Now() >= deadline) {
+        return absl::UnavailableError(absl::StrFormat(
+            "%s (still, after waiting %g s for it)", lock.status().message(), wait_seconds));
+      }
+      absl::SleepFor(absl::Milliseconds(50));
+      continue;
+    }
     if (!lock.ok()) return lock.status();
     if (fs->LockStillNamesPath(**lock, path)) return lock;
+    ++attempt;
   }
   return absl::UnavailableError(
       absl::StrCat("index ", path, " keeps being replaced by another writer; try again later"));

@@ -150,6 +150,30 @@ grep -q "^documents *6 live" "$WORK/out" || fail "upgraded documents: $(cat "$WO
 expect_exit 0 "add after the upgrade" -- "$KINDRED" add -q --on-duplicate replace "$WORK/v1.kin" \
   "$DATA/v1_more.jsonl"
 
+# remove retires ids in a new segment (all or nothing); writers can wait for
+# the lock for a bounded time.
+cp "$WORK/intact.kin" "$WORK/r.kin"
+printf 'doc000000003\n\ndoc000000004\r\n' >"$WORK/ids.txt"
+expect_exit 3 "remove an id not indexed" -- "$KINDRED" remove "$WORK/r.kin" doc000000001 no-such-id
+expect_stderr '1 id is not live in the index' "remove names the missing id"
+cmp -s "$WORK/r.kin" "$WORK/intact.kin" || fail "a refused remove changed the index"
+expect_exit 0 "remove" -- "$KINDRED" remove "$WORK/r.kin" doc000000001 --ids-from "$WORK/ids.txt"
+expect_stderr "3 documents retired (segment 3); 447 documents live" "remove summary"
+expect_exit 0 "info after remove" -- "$KINDRED" info "$WORK/r.kin"
+grep -q "^documents *447 live, 3 retired, 450 in all" "$WORK/out" || fail "info: $(cat "$WORK/out")"
+grep -qE '^ +3 +[0-9]+ +[0-9]+ +450 +0 +3 ' "$WORK/out" || fail "info: retiring segment: $(cat "$WORK/out")"
+expect_exit 0 "audit after remove" -- "$KINDRED" audit -q "$WORK/r.kin"
+flock "$WORK/r.kin" sleep 1 &
+holder=$!
+sleep 0.2
+expect_exit 6 "remove while locked" -- "$KINDRED" remove "$WORK/r.kin" doc000000005
+expect_exit 6 "remove while locked, waiting too little" -- "$KINDRED" remove --wait-lock 0.1 \
+  "$WORK/r.kin" doc000000005
+expect_stderr "after waiting 0.1 s" "the wait is named"
+expect_exit 0 "remove waiting for the lock" -- "$KINDRED" remove --wait-lock 20 "$WORK/r.kin" \
+  doc000000005
+wait "$holder"
+
 # A temporary file of a process that no longer runs is removed, and said.
 sh -c 'exit 0' &
 dead=$!
