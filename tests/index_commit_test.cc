@@ -137,8 +137,7 @@ TEST_CASE("a file records its commits; each append advances the generation", "[c
   for (uint32_t doc = 0; doc < 10; ++doc) RequireSameDocument(**reader, doc, f.all, doc);
 }
 
-TEST_CASE("a file cut inside its committed part is damage that nothing cuts further",
-          "[commit]") {
+TEST_CASE("a file cut inside its committed part is damage that nothing cuts further", "[commit]") {
   Fixture f;
   f.Write();
   const std::string original = testing::ReadFile(f.path);
@@ -272,8 +271,7 @@ TEST_CASE("writers refuse a file whose shingle sets fail their checksums", "[com
   REQUIRE(testing::ReadFile(f.path) == file);
 }
 
-TEST_CASE("version-1 files are read, refused by writers and upgraded by compaction",
-          "[commit]") {
+TEST_CASE("version-1 files are read, refused by writers and upgraded by compaction", "[commit]") {
   Fixture f;
   const std::string v1 = f.Version1();
   f.dir.Write("x.kin", v1);

@@ -26,7 +26,8 @@ SlotStatus DecodeCommitSlot(std::string_view bytes, CommitState* state) {
     return SlotStatus::kEmpty;
   }
   if (bytes.size() < kCommitSlotSize || bytes.substr(0, 4) != kSlotMagic ||
-      Checksum(bytes.substr(0, kCommitSlotSize - 8)) != LoadU64(bytes.data() + kCommitSlotSize - 8)) {
+      Checksum(bytes.substr(0, kCommitSlotSize - 8)) !=
+          LoadU64(bytes.data() + kCommitSlotSize - 8)) {
     return SlotStatus::kDamaged;
   }
   state->segment_count = LoadU32(bytes.data() + 4);
@@ -55,9 +56,9 @@ absl::Status ReadCommitArea(std::string_view file, CommitArea* area) {
     any = true;
   }
   if (!any) {
-    return absl::DataLossError(absl::StrFormat(
-        "the commit area (bytes %u..%u) is damaged: no commit slot verifies", kCommitSlotOffset[0],
-        kCommitSlotOffset[1] + kCommitSlotSize));
+    return absl::DataLossError(
+        absl::StrFormat("the commit area (bytes %u..%u) is damaged: no commit slot verifies",
+                        kCommitSlotOffset[0], kCommitSlotOffset[1] + kCommitSlotSize));
   }
   if (found.current.committed_length < kDataStart || found.current.committed_length % 8 != 0) {
     return absl::DataLossError(absl::StrFormat("the commit area records a bad committed length %u",

@@ -48,7 +48,7 @@ SlotStatus DecodeCommitSlot(std::string_view bytes, CommitState* state);
 
 // What a reader found in the commit area.
 struct CommitArea {
-  CommitState current;              // the valid slot with the highest generation
+  CommitState current;  // the valid slot with the highest generation
   SlotStatus slots[2] = {SlotStatus::kEmpty, SlotStatus::kEmpty};
 };
 

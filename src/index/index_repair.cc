@@ -31,14 +31,14 @@ absl::StatusOr<RepairResult> WriteRepairedCopy(const std::string& path, FileSyst
   result.repaired_path = RepairedPath(path);
   result.documents_kept = static_cast<uint32_t>(salvage.live.size());
   result.lost = std::move(salvage.lost);
-  index::EncodedSegment segment = index::EncodeSegment(
-      0, 0, index::DocumentsOf(salvage.live), {}, salvage.settings);
+  index::EncodedSegment segment =
+      index::EncodeSegment(0, 0, index::DocumentsOf(salvage.live), {}, salvage.settings);
   absl::Status written = index::WriteWholeFile(result.repaired_path, salvage.settings, segment,
                                                salvage.live.size(), /*replace=*/false, fs);
   if (absl::IsAlreadyExists(written)) {
-    return absl::AlreadyExistsError(absl::StrFormat(
-        "%s already exists (an earlier repair?); move it away to repair again",
-        result.repaired_path));
+    return absl::AlreadyExistsError(
+        absl::StrFormat("%s already exists (an earlier repair?); move it away to repair again",
+                        result.repaired_path));
   }
   if (!written.ok()) return written;
   return result;

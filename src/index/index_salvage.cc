@@ -34,11 +34,12 @@ struct Scan {
 // seen and a segment `number` with first document `first_doc` at `offset`.
 void NoteGap(Scan* scan, uint32_t number, uint64_t first_doc, uint64_t offset) {
   if (number <= scan->next_number) return;
-  scan->lost.push_back(absl::StrFormat(
-      "segment%s %u%s at bytes %u..%u do%s not verify: %s lost (ids unknown)",
-      number - scan->next_number > 1 ? "s" : "", scan->next_number,
-      number - scan->next_number > 1 ? absl::StrFormat("..%u", number - 1) : "", scan->gap_start,
-      offset, number - scan->next_number > 1 ? "" : "es", DocumentRange(scan->next_doc, first_doc)));
+  scan->lost.push_back(
+      absl::StrFormat("segment%s %u%s at bytes %u..%u do%s not verify: %s lost (ids unknown)",
+                      number - scan->next_number > 1 ? "s" : "", scan->next_number,
+                      number - scan->next_number > 1 ? absl::StrFormat("..%u", number - 1) : "",
+                      scan->gap_start, offset, number - scan->next_number > 1 ? "" : "es",
+                      DocumentRange(scan->next_doc, first_doc)));
 }
 
 void ScanSegments(std::string_view file, uint64_t start, uint32_t perms, Scan* scan) {
@@ -106,14 +107,14 @@ void KeepLive(const Scan& scan, Salvage* out) {
           !DecodeShingleSet(bytes, record.shingle_count, &shingles)) {
         const uint64_t at = segment.shingle_offset(local);
         out->lost.push_back(absl::StrFormat(
-            "document \"%s\" (number %u): shingle set at bytes %u..%u does not verify", id, doc,
-            at, at + record.shingles_length));
+            "document \"%s\" (number %u): shingle set at bytes %u..%u does not verify", id, doc, at,
+            at + record.shingles_length));
         continue;
       }
-      out->live.Add(std::string(id),
-                    KeepFacts{record.text_length, record.priority,
-                              (record.flags & kDocFlagHasPriority) != 0},
-                    DocumentOrigin{}, shingles, segment.signature(local));
+      out->live.Add(
+          std::string(id),
+          KeepFacts{record.text_length, record.priority, (record.flags & kDocFlagHasPriority) != 0},
+          DocumentOrigin{}, shingles, segment.signature(local));
     }
   }
 }
@@ -126,9 +127,9 @@ absl::Status SalvageIndex(std::string_view file, Salvage* out) {
   IndexSettings settings;
   absl::Status header = DecodeFileHeader(file, &settings, &header_size, &version);
   if (!header.ok()) {
-    return absl::Status(header.code(),
-                        absl::StrCat(header.message(), "; the settings are unknown, so nothing "
-                                                       "can be salvaged"));
+    return absl::Status(header.code(), absl::StrCat(header.message(),
+                                                    "; the settings are unknown, so nothing "
+                                                    "can be salvaged"));
   }
   Scan scan;
   CommitArea area;
@@ -148,9 +149,9 @@ absl::Status SalvageIndex(std::string_view file, Salvage* out) {
     scan.lost.push_back(absl::StrFormat(
         "committed %s at bytes %u..%u %s missing or damaged (the file is %u bytes): %s lost (ids "
         "unknown)",
-        missing > 1 ? absl::StrFormat("segments %u..%u", scan.next_number,
-                                      area.current.segment_count - 1)
-                    : absl::StrFormat("segment %u", scan.next_number),
+        missing > 1
+            ? absl::StrFormat("segments %u..%u", scan.next_number, area.current.segment_count - 1)
+            : absl::StrFormat("segment %u", scan.next_number),
         scan.gap_start, area.current.committed_length, missing > 1 ? "are" : "is", file.size(),
         DocumentRange(scan.next_doc, area.current.document_count)));
   } else if (!recorded && scan.gap_start < end) {

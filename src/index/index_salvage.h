@@ -16,8 +16,8 @@ namespace kindred::index {
 
 struct Salvage {
   IndexSettings settings;
-  SignedCorpus live{1};            // readable live documents, in index order
-  std::vector<std::string> lost;   // what was not readable
+  SignedCorpus live{1};           // readable live documents, in index order
+  std::vector<std::string> lost;  // what was not readable
 };
 
 // Reads every segment of `file` whose header, tables and commit record
