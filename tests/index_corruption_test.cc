@@ -5,7 +5,6 @@
 #include <cstdio>
 
 #include "absl/strings/str_format.h"
-
 #include "kindred/index.h"
 #include "kindred/index_match.h"
 #include "kindred/index_writer.h"

@@ -5,8 +5,8 @@
 #include "absl/strings/str_cat.h"
 #include "cli/cli.h"
 #include "kindred/banding.h"
-#include "kindred/temp_files.h"
 #include "kindred/shingles.h"
+#include "kindred/temp_files.h"
 
 namespace kindred::cli {
 

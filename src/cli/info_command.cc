@@ -76,12 +76,12 @@ std::string JsonReport(const IndexReader& reader) {
   const IndexSettings& s = reader.settings();
   std::string out = "{\"index\":";
   AppendJsonString(&out, reader.path());
-  absl::StrAppendFormat(&out,
-                        ",\"format_version\":%u,\"commit_generation\":%u,\"shingle\":\"%s\",\"k\":%u,\"seed\":%u,"
-                        "\"signer\":\"%s\",\"perms\":%u,\"unicode\":",
-                        reader.format_version(), reader.commit_generation(),
-                        ShingleModeName(s.signature.mode), s.signature.k, s.signature.seed,
-                        SignerSchemeName(s.signature.scheme), s.signature.perms);
+  absl::StrAppendFormat(
+      &out,
+      ",\"format_version\":%u,\"commit_generation\":%u,\"shingle\":\"%s\",\"k\":%u,\"seed\":%u,"
+      "\"signer\":\"%s\",\"perms\":%u,\"unicode\":",
+      reader.format_version(), reader.commit_generation(), ShingleModeName(s.signature.mode),
+      s.signature.k, s.signature.seed, SignerSchemeName(s.signature.scheme), s.signature.perms);
   AppendJsonString(&out, s.unicode_version);
   absl::StrAppendFormat(&out,
                         ",\"bands\":%u,\"rows\":%u,\"threshold\":%g,\"measure\":\"%s\","

@@ -40,7 +40,6 @@ class FaultFileSystem : public FileSystem {
   // Whether the fault has been injected.
   bool fired() const { return fired_; }
 
-
   absl::StatusOr<std::unique_ptr<AppendFile>> OpenAppend(const std::string& path) override;
   absl::StatusOr<std::unique_ptr<AppendFile>> CreateNew(const std::string& path) override;
   absl::StatusOr<std::unique_ptr<MappedFile>> Map(const std::string& path) override {

@@ -39,8 +39,7 @@ absl::StatusOr<std::unique_ptr<IndexReader>> IndexReader::Open(const std::string
 
 absl::Status IndexReader::Load() {
   size_t header_size = 0;
-  absl::Status status =
-      index::DecodeFileHeader(file_, &settings_, &header_size, &format_version_);
+  absl::Status status = index::DecodeFileHeader(file_, &settings_, &header_size, &format_version_);
   if (!status.ok()) return status;
   bands_ = settings_.bands;
   rows_ = settings_.rows;

@@ -159,8 +159,8 @@ absl::Status IndexWriter::WriteSegment(absl::Span<const index::SegmentDocument> 
     return absl::FailedPreconditionError("an earlier append to this index failed; reopen it");
   }
   *segment_number = static_cast<uint32_t>(reader_->segments().size());
-  index::EncodedSegment segment = index::EncodeSegment(
-      *segment_number, reader_->document_count(), docs, retired, reader_->settings());
+  index::EncodedSegment segment = index::EncodeSegment(*segment_number, reader_->document_count(),
+                                                       docs, retired, reader_->settings());
   const index::CommitPoint before{reader_->commit_generation(), reader_->committed_size(),
                                   static_cast<uint32_t>(reader_->segments().size()),
                                   reader_->document_count()};
@@ -195,9 +195,9 @@ absl::StatusOr<RetireResult> IndexWriter::Retire(absl::Span<const std::string> i
       absl::StrAppend(&list, i == 0 ? "\"" : ", \"", std::string(missing[i]), "\"");
     }
     if (missing.size() > 10) absl::StrAppend(&list, " and ", missing.size() - 10, " more");
-    return absl::NotFoundError(absl::StrFormat(
-        "%u %s not live in the index %s: %s; nothing was retired", missing.size(),
-        missing.size() == 1 ? "id is" : "ids are", path_, list));
+    return absl::NotFoundError(
+        absl::StrFormat("%u %s not live in the index %s: %s; nothing was retired", missing.size(),
+                        missing.size() == 1 ? "id is" : "ids are", path_, list));
   }
   RetireResult result;
   if (retired.empty()) return result;

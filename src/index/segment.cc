@@ -141,9 +141,9 @@ SegmentScan SegmentView::Parse(std::string_view file, uint64_t offset, uint32_t 
     return corrupt("commit record does not match its segment");
   }
   if (Checksum(rest.substr(0, kSegmentHeaderSize + layout_.tables_end)) != commit.tables_checksum) {
-    return corrupt(absl::StrFormat(
-        "its tables (bytes %u..%u: ids, signatures, band keys) fail their checksum", offset,
-        offset + kSegmentHeaderSize + layout_.tables_end));
+    return corrupt(
+        absl::StrFormat("its tables (bytes %u..%u: ids, signatures, band keys) fail their checksum",
+                        offset, offset + kSegmentHeaderSize + layout_.tables_end));
   }
   perms_ = perms;
   offset_ = offset;

@@ -12,14 +12,14 @@
 namespace kindred::index {
 
 absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, FileSystem* fs,
-                                                     double wait_seconds) {
+                                                    double wait_seconds) {
   const absl::Time deadline = absl::Now() + absl::Seconds(wait_seconds);
   for (int attempt = 0; attempt < 5;) {
     auto lock = fs->LockExclusive(path);
     if (absl::IsUnavailable(lock.status()) && wait_seconds > 0) {
       if (absl::Now() >= deadline) {
-        return absl::UnavailableError(absl::StrFormat(
-            "%s (still, after waiting %g s for it)", lock.status().message(), wait_seconds));
+        return absl::UnavailableError(absl::StrFormat("%s (still, after waiting %g s for it)",
+                                                      lock.status().message(), wait_seconds));
       }
       absl::SleepFor(absl::Milliseconds(50));
       continue;
@@ -89,10 +89,10 @@ absl::Status WriteWholeFile(const std::string& path, const IndexSettings& settin
 
 absl::Status AppendSegment(AppendFile* file, const CommitPoint& before, uint64_t added,
                            const EncodedSegment& segment) {
-  const CommitState next{before.generation + 1,
-                         before.committed_length + segment.head_and_body.size() +
-                             segment.commit.size(),
-                         before.segments + 1, before.documents + added};
+  const CommitState next{
+      before.generation + 1,
+      before.committed_length + segment.head_and_body.size() + segment.commit.size(),
+      before.segments + 1, before.documents + added};
   absl::Status status = file->Append(segment.head_and_body);
   if (status.ok()) status = file->Append(segment.commit);
   if (status.ok()) status = file->Sync();

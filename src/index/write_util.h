@@ -21,7 +21,7 @@ namespace kindred::index {
 // (compacted) between opening and locking; while another writer holds it,
 // retries every 50 ms for up to `wait_seconds`, then fails with Unavailable.
 absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, FileSystem* fs,
-                                                     double wait_seconds = 0);
+                                                    double wait_seconds = 0);
 
 // InvalidArgument unless `corpus` can be written under `settings` (perms,
 // banding, id lengths).

@@ -11,10 +11,9 @@
 namespace kindred::fuzz {
 
 // Rewrites in place every checksum field of `file` that the layout lets it
-// find: the file header's, the commit slots' (version 2), then segment by segment each document's shingle
-// checksum, the segment header's, the tables checksum and the commit
-// record's. Stops at the first structure whose sizes do not fit the file.
-// Other bytes are left as they are.
+// find: the file header's, the commit slots' (version 2), then segment by segment each document's
+// shingle checksum, the segment header's, the tables checksum and the commit record's. Stops at the
+// first structure whose sizes do not fit the file. Other bytes are left as they are.
 void FixIndexChecksums(std::string* file);
 
 }  // namespace kindred::fuzz
