@@ -53,8 +53,9 @@ check_cut() {
 # the index cut at many more offsets, in-process).
 cut_sweep() {
   local source=$1 label=$2
+  shift 2
   read -ra marks <<<"$(offsets_of "$source")"
-  local committed=${marks[-1]} lengths=(0 600 1200)
+  local committed=${marks[-1]} lengths=("$@")
   for ((i = 0; i < ${#marks[@]}; ++i)); do
     local start=${marks[i]} end=$committed
     ((i + 1 < ${#marks[@]})) && end=${marks[i + 1]}
@@ -67,7 +68,7 @@ cut_sweep() {
     ((length < committed)) && check_cut "$source" "$length" "$label"
   done
 }
-cut_sweep "$WORK/intact.kin" "three segments"
+cut_sweep "$WORK/intact.kin" "three segments" 0 600 1200  # and inside the header region
 
 # The same after compact (one segment).
 cp "$WORK/intact.kin" "$WORK/compacted.kin"
