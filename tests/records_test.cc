@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "absl/strings/str_cat.h"
 #include "kindred/groups.h"
 
 namespace kindred {
@@ -106,7 +107,7 @@ TEST_CASE("Decisions match a per-document brute force over random groups", "[rec
     std::vector<std::string> ids;
     std::vector<uint8_t> empty(n);
     for (size_t doc = 0; doc < n; ++doc) {
-      ids.push_back("d" + std::to_string(doc));
+      ids.push_back(absl::StrCat("d", doc));
       empty[doc] = next(6) == 0;
     }
     std::vector<ScoredPair> pairs;
