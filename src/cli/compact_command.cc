@@ -3,6 +3,7 @@
 #include <cstdio>
 
 #include "cli/cli.h"
+#include "cli/usage.h"
 #include "kindred/index_writer.h"
 
 namespace kindred::cli {
@@ -47,8 +48,10 @@ void RegisterCompact(CLI::App& app, int* exit_code) {
   CLI::App* command = app.add_subcommand(
       "compact", "Merge an index's segments into one, dropping replaced documents");
   command->add_option("index", flags->index, "the index file")->required();
-  command->add_option("--bands", flags->bands, "store band keys for this many bands (with --rows)");
-  command->add_option("--rows", flags->rows, "rows per band of the stored band keys");
+  command->add_option("--bands", flags->bands, "store band keys for this many bands (with --rows)")
+      ->transform(WholeNumber(0, UINT32_MAX));
+  command->add_option("--rows", flags->rows, "rows per band of the stored band keys")
+      ->transform(WholeNumber(0, UINT32_MAX));
   command->add_flag("-q,--quiet", flags->quiet, "no summary on stderr");
   command->callback([flags, exit_code] { *exit_code = RunCompact(*flags); });
 }

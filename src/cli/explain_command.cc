@@ -9,6 +9,7 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
+#include "cli/usage.h"
 #include "cli/common_options.h"
 #include "cli/output.h"
 #include "kindred/explain.h"
@@ -274,6 +275,7 @@ void RegisterExplain(CLI::App& app, int* exit_code) {
       ->default_str("auto")
       ->group("Output");
   command->add_option("--passages", flags->passages, "longest shared passages listed")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->default_str("10")
       ->group("Output");
   command->add_flag("--no-text", flags->no_text, "do not print the two marked texts")

@@ -17,6 +17,7 @@
 #include "absl/strings/str_format.h"
 #include "absl/strings/str_join.h"
 #include "cli/cli.h"
+#include "cli/usage.h"
 #include "kindred/banding.h"
 #include "kindred/settings.h"
 
@@ -285,6 +286,7 @@ void RegisterPlan(CLI::App& app, int* exit_code) {
   plan->add_option("--threshold", options->threshold, "Similarity threshold, in (0, 1]")
       ->capture_default_str();
   plan->add_option("--perms", options->perms, "Signature length (slots), 1..4096")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->capture_default_str();
   plan->add_option("--fn-weight", options->fn_weight,
                    "Weight of the missed-pair mass above the threshold")
@@ -296,9 +298,12 @@ void RegisterPlan(CLI::App& app, int* exit_code) {
                    "Recall floor at min(threshold + 0.05, (threshold + 1) / "
                    "2); 0 disables it")
       ->capture_default_str();
-  plan->add_option("--bands", options->bands, "Show this band count (with --rows)");
-  plan->add_option("--rows", options->rows, "Show this row count (with --bands)");
+  plan->add_option("--bands", options->bands, "Show this band count (with --rows)")
+      ->transform(WholeNumber(0, UINT32_MAX));
+  plan->add_option("--rows", options->rows, "Show this row count (with --bands)")
+      ->transform(WholeNumber(0, UINT32_MAX));
   plan->add_option("--alternatives", options->alternatives, "Rows in the alternatives table")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->capture_default_str();
   plan->add_option("--format", options->format, "Output format")
       ->check(CLI::IsMember({"text", "jsonl", "tsv"}))
