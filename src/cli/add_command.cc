@@ -7,6 +7,7 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/formats.h"
 #include "cli/index_options.h"
 #include "cli/output.h"
 #include "kindred/index.h"
@@ -131,9 +132,7 @@ void RegisterAdd(CLI::App& app, int* exit_code) {
                    "a document whose id is already indexed: error (refuse the batch), skip "
                    "(keep the indexed one) or replace")
       ->default_str("error");
-  command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
-      ->default_str("jsonl")
-      ->group("Output");
+  AddFormatOption(command, &flags->format, {"jsonl", "tsv", "csv"});
   AddGeneralOptions(command, &flags->general);
   command->callback([flags, command, exit_code] {
     flags->given = OptionsGiven(command);

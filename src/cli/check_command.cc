@@ -10,6 +10,7 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/formats.h"
 #include "cli/index_options.h"
 #include "cli/output.h"
 #include "kindred/index.h"
@@ -129,9 +130,7 @@ void RegisterCheck(CLI::App& app, int* exit_code) {
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
   AddMaxBucketOption(command, &flags->max_bucket);
-  command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
-      ->default_str("jsonl")
-      ->group("Output");
+  AddFormatOption(command, &flags->format, {"jsonl", "tsv", "csv"});
   command
       ->add_flag("--fail-on-match", flags->fail_on_match,
                  "exit with status 1 when any document matches an indexed document")

@@ -4,6 +4,7 @@
 
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
+#include "cli/formats.h"
 #include "cli/output.h"
 #include "kindred/banding.h"
 #include "kindred/index.h"
@@ -102,9 +103,7 @@ void RegisterInfo(CLI::App& app, int* exit_code) {
   CLI::App* command = app.add_subcommand(
       "info", "Describe an index: settings, counts, segments, sizes, band/row choice");
   command->add_option("index", flags->index, "the index file")->required();
-  command->add_option("--format", flags->format, "text or json")
-      ->check(CLI::IsMember({"text", "json"}))
-      ->default_str("text");
+  AddFormatOption(command, &flags->format, {"text", "json"}, {{"jsonl", "json"}});
   command->callback([flags, exit_code] { *exit_code = RunInfo(*flags); });
 }
 

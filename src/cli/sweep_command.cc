@@ -11,6 +11,7 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/formats.h"
 #include "cli/index_options.h"
 #include "cli/output.h"
 #include "io/output_guard.h"
@@ -380,9 +381,7 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
                    "groups, or none with --output-dir)")
       ->check(CLI::IsMember({"pairs", "groups", "decisions", "none"}))
       ->group("Output");
-  command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
-      ->default_str("jsonl")
-      ->group("Output");
+  AddFormatOption(command, &flags->format, {"jsonl", "tsv", "csv"});
   command
       ->add_option("--write-kept", flags->write_kept,
                    "JSON Lines inputs: write the kept lines, verbatim, to this file "

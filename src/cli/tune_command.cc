@@ -7,6 +7,7 @@
 #include "cli/cli.h"
 #include "cli/usage.h"
 #include "cli/common_options.h"
+#include "cli/formats.h"
 #include "cli/output.h"
 #include "kindred/explain.h"
 #include "kindred/labels.h"
@@ -107,10 +108,6 @@ absl::StatusOr<std::vector<ExplainedPair>> ExplainWrongPairs(const TuneResult& r
 
 // The checks of the command line that ToTuneOptions does not make.
 absl::Status CheckFlags(const TuneFlags& flags) {
-  if (flags.format != "text" && flags.format != "jsonl") {
-    return absl::InvalidArgumentError(
-        absl::StrCat("--format: expected text or jsonl, not \"", flags.format, "\""));
-  }
   for (const std::string& input : flags.inputs) {
     if (input == "-") {
       return absl::InvalidArgumentError(
@@ -246,9 +243,7 @@ void RegisterTune(CLI::App& app, int* exit_code) {
                  "(with a warning) "
                  "instead of failing")
       ->group("Input");
-  command->add_option("--format", flags->format, "standard output: text or jsonl")
-      ->default_str("text")
-      ->group("Output");
+  AddFormatOption(command, &flags->format, {"text", "jsonl"});
   command
       ->add_option("--report", flags->report,
                    "write a self-contained HTML report (plots, table, wrong pairs) here")
