@@ -4,6 +4,7 @@
 #include <cstdio>
 
 #include "cli/cli.h"
+#include "core/plural.h"
 #include "kindred/index_writer.h"
 
 namespace kindred::cli {
@@ -20,8 +21,7 @@ int RunAudit(const AuditFlags& flags) {
     auto cut = RepairIndex(flags.index);
     if (!cut.ok()) return Fail(cut.status());
     if (!flags.quiet) {
-      std::fprintf(stderr, "kindred audit: cut a torn tail of %llu bytes\n",
-                   static_cast<unsigned long long>(*cut));
+      std::fprintf(stderr, "kindred audit: cut a torn tail of %s\n", Counted(*cut, "byte").c_str());
     }
   }
   auto report = AuditIndex(flags.index);
@@ -29,15 +29,16 @@ int RunAudit(const AuditFlags& flags) {
   for (const std::string& note : report->notes) std::printf("note: %s\n", note.c_str());
   for (const std::string& problem : report->problems) std::printf("problem: %s\n", problem.c_str());
   if (!report->ok()) {
-    std::fprintf(stderr, "kindred audit: %s: %zu problems\n", flags.index.c_str(),
-                 report->problems.size());
+    std::fprintf(stderr, "kindred audit: %s: %s\n", flags.index.c_str(),
+                 Counted(report->problems.size(), "problem").c_str());
     return kExitIndexCorrupt;
   }
   if (!flags.quiet) {
     std::fprintf(stderr,
-                 "kindred audit: %s: ok (%u segments, %u documents; every checksum, shingle "
+                 "kindred audit: %s: ok (%s, %s; every checksum, shingle "
                  "set, signature and band key verified)\n",
-                 flags.index.c_str(), report->segments, report->documents);
+                 flags.index.c_str(), Counted(report->segments, "segment").c_str(),
+                 Counted(report->documents, "document").c_str());
   }
   return kExitOk;
 }

@@ -23,10 +23,6 @@ void AddInputOptions(CLI::App* command, InputFlags* flags) {
       ->default_str("text")
       ->group("Input");
   command
-      ->add_option("--priority-field", flags->priority_field,
-                   "JSON Lines numeric field read by --keep priority")
-      ->group("Input");
-  command
       ->add_option("--max-document-size", flags->max_document_size,
                    "largest document or JSON line (K, M, G suffixes)")
       ->default_str("64M")
@@ -36,6 +32,15 @@ void AddInputOptions(CLI::App* command, InputFlags* flags) {
                    "largest decompressed size of one compressed input, a guard against "
                    "decompression bombs; 0 = no limit")
       ->default_str("4G")
+      ->group("Input");
+}
+
+void AddPriorityFieldOption(CLI::App* command, InputFlags* flags, bool stored) {
+  command
+      ->add_option("--priority-field", flags->priority_field,
+                   stored ? "JSON Lines numeric field stored in the index for "
+                            "sweep --index --keep priority"
+                          : "JSON Lines numeric field read by --keep priority")
       ->group("Input");
 }
 

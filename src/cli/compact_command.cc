@@ -4,6 +4,7 @@
 
 #include "cli/cli.h"
 #include "cli/usage.h"
+#include "core/plural.h"
 #include "kindred/index_writer.h"
 
 namespace kindred::cli {
@@ -32,10 +33,11 @@ int RunCompact(const CompactFlags& flags) {
   }
   if (!flags.quiet) {
     std::fprintf(stderr,
-                 "kindred compact: %s: %u segments, %u documents -> 1 segment, %u documents; "
-                 "%llu -> %llu bytes\n",
-                 flags.index.c_str(), result->segments_before, result->documents_before,
-                 result->documents_after, static_cast<unsigned long long>(result->bytes_before),
+                 "kindred compact: %s: %s, %s -> 1 segment, %s; %llu -> %llu bytes\n",
+                 flags.index.c_str(), Counted(result->segments_before, "segment").c_str(),
+                 Counted(result->documents_before, "document").c_str(),
+                 Counted(result->documents_after, "document").c_str(),
+                 static_cast<unsigned long long>(result->bytes_before),
                  static_cast<unsigned long long>(result->bytes_after));
   }
   return kExitOk;

@@ -6,6 +6,7 @@
 #include "cli/cli.h"
 #include "cli/formats.h"
 #include "cli/output.h"
+#include "core/plural.h"
 #include "kindred/banding.h"
 #include "kindred/index.h"
 #include "kindred/records.h"
@@ -29,8 +30,8 @@ std::string TextReport(const IndexReader& reader) {
                         s.unicode_version == UnicodeVersionString()
                             ? ""
                             : absl::StrFormat(" (this program: %s)", UnicodeVersionString()));
-  absl::StrAppendFormat(&out, "banding          %u bands x %u rows (%u of %u slots)\n", s.bands,
-                        s.rows, s.bands * s.rows, s.signature.perms);
+  absl::StrAppendFormat(&out, "banding          %s (%u of %u slots)\n", BandsByRows(s.bands, s.rows),
+                        s.bands * s.rows, s.signature.perms);
   absl::StrAppendFormat(&out, "threshold        %s >= %g (candidate probability there %.4f)\n",
                         MeasureName(s.measure), s.threshold,
                         CandidateProbability(s.threshold, s.bands, s.rows));
@@ -61,7 +62,9 @@ std::string JsonReport(const IndexReader& reader) {
   std::string out = "{\"index\":";
   AppendJsonString(&out, reader.path());
   absl::StrAppendFormat(&out,
-                        ",\"format_version\":1,\"shingle\":\"%s\",\"k\":%u,\"seed\":%u,"
+                        // The seed as the text form prints it: a 64-bit number does not
+                        // survive JSON readers that hold numbers as doubles.
+                        ",\"format_version\":1,\"shingle\":\"%s\",\"k\":%u,\"seed\":\"0x%016x\","
                         "\"signer\":\"%s\",\"perms\":%u,\"unicode\":",
                         ShingleModeName(s.signature.mode), s.signature.k, s.signature.seed,
                         SignerSchemeName(s.signature.scheme), s.signature.perms);

@@ -19,6 +19,7 @@
 #include "cli/cli.h"
 #include "cli/formats.h"
 #include "cli/usage.h"
+#include "core/plural.h"
 #include "kindred/banding.h"
 #include "kindred/settings.h"
 
@@ -182,13 +183,15 @@ void PrintTextAlternatives(const Plan& plan) {
 
 void PrintTextChoice(const Plan& plan) {
   const BandingCost& best = plan.ranked.front();
-  std::printf("Choice: %u bands x %u rows (%llu of %u slots)%s\n", best.banding.bands,
-              best.banding.rows, static_cast<unsigned long long>(best.banding.slots()),
+  std::printf("Choice: %s (%llu of %u slots)%s\n",
+              BandsByRows(best.banding.bands, best.banding.rows).c_str(),
+              static_cast<unsigned long long>(best.banding.slots()),
               plan.options.perms,
               best.meets_recall_floor ? "" : "; no setting meets the recall floor");
   if (plan.has_given) {
-    std::printf("Given: %u bands x %u rows ranks %zu of %zu\n", plan.given.banding.bands,
-                plan.given.banding.rows, plan.given_rank, plan.ranked.size());
+    std::printf("Given: %s ranks %zu of %zu\n",
+                BandsByRows(plan.given.banding.bands, plan.given.banding.rows).c_str(),
+                plan.given_rank, plan.ranked.size());
   }
   std::printf("Use it with: --bands %u --rows %u\n", best.banding.bands, best.banding.rows);
 }
