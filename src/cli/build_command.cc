@@ -172,8 +172,9 @@ void RegisterBuild(CLI::App& app, int* exit_code) {
   command
       ->add_option(
           "--memory", flags->memory,
-          "memory budget, e.g. 4G: sign and write the corpus in parts of about a "
-          "quarter of it, one segment each (default: the whole corpus at once, one segment)")
+          "bound on the signed data held before writing, e.g. 4G: sign and write the corpus "
+          "in parts of about a quarter of it (signatures and shingle sets), one segment each "
+          "(default: the whole corpus at once, one segment)")
       ->group("Resources");
   AddInputOptions(command, &flags->input);
   AddPriorityFieldOption(command, &flags->input, /*stored=*/true);

@@ -362,8 +362,11 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
   AddMaxBucketOption(command, &flags->max_bucket);
   command
       ->add_option("--memory", flags->memory,
-                   "memory budget, e.g. 4G: band keys beyond half of it are spilled to sorted "
-                   "runs in the scratch directory (same results; default: no budget)")
+                   "bound on the band keys held in memory, e.g. 4G: band keys beyond half of it "
+                   "are spilled to sorted runs in the scratch directory (same results; default: "
+                   "no bound). Not counted: signatures, ids, documents being signed, and the "
+                   "shingle sets of candidate documents reloaded for verification (README "
+                   "\"Memory\")")
       ->group("Resources");
   command
       ->add_option("--scratch-dir", flags->scratch_dir,

@@ -63,4 +63,12 @@ done
 expect_exit 2 "check --priority-field" -- "$KINDRED" check --priority-field p "$INDEX" "$WORK/two.jsonl"
 expect_stderr "kindred: check: unexpected argument" "check --priority-field"
 
+# --memory says what it bounds (band keys) and what it does not count.
+"$KINDRED" sweep --help | tr -s ' \n' ' ' >"$WORK/help"
+grep -q -- "--memory TEXT bound on the band keys held in memory" "$WORK/help" ||
+  fail "sweep --memory help: $(grep -o -- '--memory.\{0,120\}' "$WORK/help")"
+grep -q "Not counted: signatures, ids, documents being signed" "$WORK/help" ||
+  fail "sweep --memory help does not say what it leaves out"
+grep -qi "memory budget" "$WORK/help" && fail "sweep --help still calls --memory a budget"
+
 finish
