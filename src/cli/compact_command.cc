@@ -32,8 +32,7 @@ int RunCompact(const CompactFlags& flags) {
     }
   }
   if (!flags.quiet) {
-    std::fprintf(stderr,
-                 "kindred compact: %s: %s, %s -> 1 segment, %s; %llu -> %llu bytes\n",
+    std::fprintf(stderr, "kindred compact: %s: %s, %s -> 1 segment, %s; %llu -> %llu bytes\n",
                  flags.index.c_str(), Counted(result->segments_before, "segment").c_str(),
                  Counted(result->documents_before, "document").c_str(),
                  Counted(result->documents_after, "document").c_str(),

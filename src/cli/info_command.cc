@@ -30,8 +30,8 @@ std::string TextReport(const IndexReader& reader) {
                         s.unicode_version == UnicodeVersionString()
                             ? ""
                             : absl::StrFormat(" (this program: %s)", UnicodeVersionString()));
-  absl::StrAppendFormat(&out, "banding          %s (%u of %u slots)\n", BandsByRows(s.bands, s.rows),
-                        s.bands * s.rows, s.signature.perms);
+  absl::StrAppendFormat(&out, "banding          %s (%u of %u slots)\n",
+                        BandsByRows(s.bands, s.rows), s.bands * s.rows, s.signature.perms);
   absl::StrAppendFormat(&out, "threshold        %s >= %g (candidate probability there %.4f)\n",
                         MeasureName(s.measure), s.threshold,
                         CandidateProbability(s.threshold, s.bands, s.rows));

@@ -123,8 +123,7 @@ void PrintSummary(const SweepResult& result, const SweepOptions& options) {
   std::fprintf(stderr, "  drops             %llu (keep policy: %s)\n",
                static_cast<unsigned long long>(stats.drops), KeepPolicyName(options.keep));
   if (stats.sign.invalid_utf8_documents > 0) {
-    std::fprintf(stderr,
-                 "  invalid UTF-8     %s, bytes replaced by U+FFFD (-v names them)\n",
+    std::fprintf(stderr, "  invalid UTF-8     %s, bytes replaced by U+FFFD (-v names them)\n",
                  Counted(stats.sign.invalid_utf8_documents, "document").c_str());
   }
 }

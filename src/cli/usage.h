@@ -31,12 +31,12 @@ inline constexpr uint64_t kMaxThreads = 256;
 // The command named on the command line ("sweep", ...), found by main()
 // before parsing so that parse errors can name it; empty when none was given.
 void SetCommandName(std::string_view name);
-const std::string &CommandName();
+const std::string& CommandName();
 
 // Sets the command name from the first argument that is not an option (the
 // program itself has no option taking a value). When that argument names no
 // command, prints "kindred: unknown command ..." and returns false.
-bool FindCommandName(const CLI::App &app, int argc, char **argv);
+bool FindCommandName(const CLI::App& app, int argc, char** argv);
 
 // "kindred: <command>: " (or "kindred: " without a command): the start of
 // every usage error message.
@@ -55,11 +55,11 @@ CLI::Validator WholeNumber(uint64_t min, uint64_t max);
 CLI::Validator OneOf(std::vector<std::string> names);
 
 // "a, b or c": the words of a list in a message.
-std::string ListWords(const std::vector<std::string> &words);
+std::string ListWords(const std::vector<std::string>& words);
 
 // The CLI11 failure-message hook (CLI::App::failure_message): one line in the
 // style above for every CLI11 parse error.
-std::string ParseErrorMessage(const CLI::App *app, const CLI::Error &error);
+std::string ParseErrorMessage(const CLI::App* app, const CLI::Error& error);
 
 }  // namespace kindred::cli
 

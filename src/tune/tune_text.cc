@@ -33,8 +33,8 @@ std::string Header(const TuneReportInput& input) {
       Counted(input.options->grid.shingles.size(), "shingle setting"),
       Counted(input.options->grid.perms.size(), "perm"),
       Counted(input.options->grid.thresholds.size(), "threshold"),
-      Counted(r.ranking.size(), "setting"), input.options->target_recall,
-      input.options->beta, MeasureName(input.options->measure));
+      Counted(r.ranking.size(), "setting"), input.options->target_recall, input.options->beta,
+      MeasureName(input.options->measure));
 }
 
 std::string Recommendation(const TuneReportInput& input) {
