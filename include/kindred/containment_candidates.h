@@ -25,28 +25,27 @@
 namespace kindred {
 
 struct ContainmentCandidateStats {
-  uint64_t below_min_size = 0; // non-empty documents under the plan's min_size
-  uint64_t bandings = 0;       // distinct bandings searched
-  uint64_t bucket_entries =
-      0; // (band key, document) entries, over all bandings
-  uint64_t largest_bucket = 0;    // documents in the most crowded bucket
-  uint64_t oversized_buckets = 0; // buckets over the cap
-  uint64_t candidate_pairs = 0;   // distinct pairs
+  uint64_t below_min_size = 0;     // non-empty documents under the plan's min_size
+  uint64_t bandings = 0;           // distinct bandings searched
+  uint64_t bucket_entries = 0;     // (band key, document) entries, over all bandings
+  uint64_t largest_bucket = 0;     // documents in the most crowded bucket
+  uint64_t oversized_buckets = 0;  // buckets over the cap
+  uint64_t candidate_pairs = 0;    // distinct pairs
 };
 
 // The distinct candidate pairs of `corpus` under `plan`, ascending.
 // Requires a corpus kept whole (not lean: signatures of every document),
 // plan.options().perms == corpus.perms(), max_bucket >= 2. Memory: the band
 // keys of the documents of one banding at a time (8 bytes per band each).
-std::vector<PackedPair> FindContainmentCandidates(
-    const SignedCorpus &corpus, const ContainmentPlan &plan, int threads,
-    ContainmentCandidateStats *stats, uint64_t max_bucket = kDefaultMaxBucket);
+std::vector<PackedPair> FindContainmentCandidates(const SignedCorpus& corpus,
+                                                  const ContainmentPlan& plan, int threads,
+                                                  ContainmentCandidateStats* stats,
+                                                  uint64_t max_bucket = kDefaultMaxBucket);
 
 // The plan for `corpus`: options with largest_size set to its largest set
 // (at least min_size). Requires a corpus kept whole.
-ContainmentPlan PlanForCorpus(const SignedCorpus &corpus,
-                              ContainmentPlanOptions options);
+ContainmentPlan PlanForCorpus(const SignedCorpus& corpus, ContainmentPlanOptions options);
 
-} // namespace kindred
+}  // namespace kindred
 
-#endif // KINDRED_CONTAINMENT_CANDIDATES_H_
+#endif  // KINDRED_CONTAINMENT_CANDIDATES_H_

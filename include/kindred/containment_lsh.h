@@ -44,25 +44,18 @@
 #include <vector>
 
 #include "kindred/banding.h"
+#include "kindred/settings.h"  // kDefaultMinContainedSize
 
 namespace kindred {
 
-// The least size of the smaller set of a containment pair, in shingles, by
-// default. A set of a few shingles is contained in thousands of others,
-// truly and uselessly (a stock phrase, a signature line); 20 word 5-shingles
-// are 24 words, about two sentences. A judgement of this project, not a
-// published value.
-inline constexpr uint32_t kDefaultMinContainedSize = 20;
-
 // s(c; q, x) = c q / (q + x - c q) for sizes q <= x (see the file comment).
 // Requires c in [0, 1], 1 <= q <= x.
-double JaccardAtContainment(double containment, double small_size,
-                            double large_size);
+double JaccardAtContainment(double containment, double small_size, double large_size);
 
 // P(c; q, x) = 1 - (1 - s(c; q, x)^r)^b. Requires bands, rows >= 1,
 // c in [0, 1], 1 <= q <= x.
-double ContainmentCandidateProbability(double containment, double small_size,
-                                       double large_size, Banding banding);
+double ContainmentCandidateProbability(double containment, double small_size, double large_size,
+                                       Banding banding);
 
 // A size partition: sets of lower..upper shingles (both inclusive).
 struct SizePartition {
@@ -73,38 +66,38 @@ struct SizePartition {
 // The banding of one pair of partitions and its figures at the bounds
 // (q = partitions[small].lower, x = partitions[large].upper).
 struct PartitionBanding {
-  uint32_t small = 0; // partition of the smaller set
-  uint32_t large = 0; // partition of the larger set (>= small)
+  uint32_t small = 0;  // partition of the smaller set
+  uint32_t large = 0;  // partition of the larger set (>= small)
   Banding banding;
-  double probability_at_threshold = 0;    // P(t) at the bounds
-  double probability_at_recall_point = 0; // P(RecallPoint(t)) at the bounds
-  double false_negative_mass = 0;         // integral over [t, 1] of 1 - P(c)
-  double false_positive_mass = 0;         // integral over [0, t] of P(c)
+  double probability_at_threshold = 0;     // P(t) at the bounds
+  double probability_at_recall_point = 0;  // P(RecallPoint(t)) at the bounds
+  double false_negative_mass = 0;          // integral over [t, 1] of 1 - P(c)
+  double false_positive_mass = 0;          // integral over [0, t] of P(c)
   bool meets_recall_floor = false;
 };
 
 struct ContainmentPlanOptions {
-  double threshold = 0.8; // containment threshold t, in (0, 1]
-  uint32_t perms = 128;   // signature length; bands * rows <= perms
-  uint32_t min_size = kDefaultMinContainedSize; // >= 1
-  uint32_t largest_size = 1; // the largest set to cover (>= 1)
+  double threshold = 0.8;                        // containment threshold t, in (0, 1]
+  uint32_t perms = 128;                          // signature length; bands * rows <= perms
+  uint32_t min_size = kDefaultMinContainedSize;  // >= 1
+  uint32_t largest_size = 1;                     // the largest set to cover (>= 1)
   double fn_weight = kDefaultFalseNegativeWeight;
   double fp_weight = kDefaultFalsePositiveWeight;
   double min_recall = kDefaultMinRecall;
 };
 
 class ContainmentPlan {
-public:
+ public:
   // Requires threshold in (0, 1], perms >= 1, min_size >= 1, weights >= 0,
   // min_recall in [0, 1]. Makes at least one partition; the last one covers
   // largest_size. Cost: a few ms per pair of partitions for 128 perms
   // (about 80 pairs for sizes 20..50,000).
-  explicit ContainmentPlan(const ContainmentPlanOptions &options);
+  explicit ContainmentPlan(const ContainmentPlanOptions& options);
 
-  const ContainmentPlanOptions &options() const { return options_; }
-  const std::vector<SizePartition> &partitions() const { return partitions_; }
+  const ContainmentPlanOptions& options() const { return options_; }
+  const std::vector<SizePartition>& partitions() const { return partitions_; }
   // Every pair of partitions, ordered by (small, large).
-  const std::vector<PartitionBanding> &pairs() const { return pairs_; }
+  const std::vector<PartitionBanding>& pairs() const { return pairs_; }
 
   // The partition of a set of `size` shingles, or -1 when size < min_size.
   // Sizes above the last partition's upper bound belong to the last one
@@ -113,14 +106,14 @@ public:
   int PartitionOf(uint32_t size) const;
   // The banding of a smaller set in `small` and a larger set in `large`.
   // Requires small <= large < partitions().size().
-  const PartitionBanding &PairOf(uint32_t small, uint32_t large) const;
+  const PartitionBanding& PairOf(uint32_t small, uint32_t large) const;
 
-private:
+ private:
   ContainmentPlanOptions options_;
   std::vector<SizePartition> partitions_;
   std::vector<PartitionBanding> pairs_;
 };
 
-} // namespace kindred
+}  // namespace kindred
 
-#endif // KINDRED_CONTAINMENT_LSH_H_
+#endif  // KINDRED_CONTAINMENT_LSH_H_

@@ -95,18 +95,30 @@ void PrintSummary(const SweepResult& result, const SweepOptions& options) {
   std::fprintf(stderr, "\n");
   if (options.exhaustive) {
     std::fprintf(stderr, "  candidate pairs   all (exhaustive comparison)\n");
+  } else if (stats.containment_search) {
+    std::fprintf(
+        stderr, "  candidate pairs   %llu (containment LSH: %u size partitions, %llu bandings)\n",
+        static_cast<unsigned long long>(stats.candidates.candidate_pairs),
+        stats.containment_partitions, static_cast<unsigned long long>(stats.containment.bandings));
   } else {
     std::fprintf(stderr, "  candidate pairs   %llu (%u bands x %u rows)\n",
                  static_cast<unsigned long long>(stats.candidates.candidate_pairs),
                  stats.banding.bands, stats.banding.rows);
-    if (stats.candidates.oversized_buckets > 0) {
-      std::fprintf(stderr,
-                   "  crowded buckets   %llu over %llu documents (largest %llu): members paired "
-                   "with the first only (--max-bucket)\n",
-                   static_cast<unsigned long long>(stats.candidates.oversized_buckets),
-                   static_cast<unsigned long long>(options.max_bucket),
-                   static_cast<unsigned long long>(stats.candidates.largest_bucket));
-    }
+  }
+  if (!options.exhaustive && stats.candidates.oversized_buckets > 0) {
+    std::fprintf(stderr,
+                 "  crowded buckets   %llu over %llu documents (largest %llu): members paired "
+                 "with the first only (--max-bucket)\n",
+                 static_cast<unsigned long long>(stats.candidates.oversized_buckets),
+                 static_cast<unsigned long long>(options.max_bucket),
+                 static_cast<unsigned long long>(stats.candidates.largest_bucket));
+  }
+  if (options.match.measure == Measure::kContainment && stats.containment.below_min_size > 0) {
+    std::fprintf(stderr,
+                 "  small documents   %llu under %u shingles: in no containment pair "
+                 "(--min-contained-size)\n",
+                 static_cast<unsigned long long>(stats.containment.below_min_size),
+                 options.match.min_contained_size);
   }
   if (stats.spill_runs > 0) {
     std::fprintf(stderr, "  spilled           %.1f MB of band keys in %llu runs (--memory %s)\n",
