@@ -13,7 +13,8 @@ Documents come in three kinds, in a deterministic shuffled order:
   - hosts (the reverse): a document of its own of --short-min to
     --short-max words, lightly edited, planted as 5% to 60% of a long
     document written around it: the short one lies inside the long one;
-  - fillers: unrelated documents of --short-min to --long-min words.
+  - fillers: unrelated documents of --short-min to --filler-max words
+    (default --long-min).
 
 Output: JSON Lines ({"id", "text"}), ids "doc" and six digits; the --truth
 file lists the planted pairs (inner, outer, kind, fraction, share, edit
@@ -69,6 +70,8 @@ def parse_args(argv):
     p.add_argument("--long-max", type=int, default=50000)
     p.add_argument("--short-min", type=int, default=100)
     p.add_argument("--short-max", type=int, default=3000)
+    p.add_argument("--filler-max", type=int, default=0,
+                   help="longest filler (default: --long-min)")
     p.add_argument("--fraction-min", type=float, default=0.05)
     p.add_argument("--fraction-max", type=float, default=0.60)
     p.add_argument("--share-min", type=float, default=0.35)
@@ -113,7 +116,8 @@ def generate(args):
             docs.append((around[:cut] + copy + around[cut:],
                          ("host", inner_at, len(docs), fraction, share, rate)))
     while len(docs) < args.docs:
-        docs.append((words_of(text, rng, log_uniform(rng, args.short_min, args.long_min)), None))
+        top = args.filler_max or args.long_min
+        docs.append((words_of(text, rng, log_uniform(rng, args.short_min, top)), None))
     return docs
 
 
