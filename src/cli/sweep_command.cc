@@ -224,6 +224,9 @@ int RunIndexSweep(const SweepFlags& flags) {
       code != kExitOk) {
     return code;
   }
+  if (match.measure == Measure::kContainment && flags.match.bands == 0) {
+    match.bands = match.rows = 0;  // the containment LSH, not the stored banding
+  }
   auto keep = ParseKeepPolicy(flags.keep);
   if (!keep.ok()) return Fail(kExitUsage, keep.status());
   auto format = ParseRecordFormat(flags.format);

@@ -48,6 +48,14 @@ done
 "$KINDRED" sweep -q --measure containment -t 0.7 --print pairs -j 3 "$WORK/corpus.jsonl" >"$WORK/j3"
 cmp -s "$WORK/j1" "$WORK/j3" || fail "thread count changed the containment pairs"
 
+# A sweep of an index finds the same containment pairs as a sweep of the
+# corpus it was built from.
+"$KINDRED" build -q "$WORK/corpus.kin" "$WORK/corpus.jsonl" || fail "build"
+expect_exit 0 "index containment sweep" -- \
+  "$KINDRED" sweep --index "$WORK/corpus.kin" --measure containment -t 0.7 --print pairs
+cmp -s "$WORK/out" "$WORK/j1" || fail "index sweep differs from the corpus sweep"
+expect_stderr "containment LSH:" "index sweep uses the containment search"
+
 # The least contained size: a sentence inside a story is left out by
 # default, counted in the summary, and found with a lower bound.
 story="The harbour board met on Tuesday evening to discuss the dredging of the north channel, which has silted up badly since the winter storms. Fishermen told the board that boats with a deep keel can no longer reach the fuel dock at low tide. The chair promised a decision before the end of the month and asked the engineers for a costed plan."
