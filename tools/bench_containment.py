@@ -35,7 +35,8 @@ ROOT = pathlib.Path(__file__).resolve().parent.parent
 
 
 def run(command, out_path):
-    """Runs `command` with stdout to out_path. Returns (wall s, peak KiB, stderr)."""
+    """Runs `command` with stdout to out_path. Returns (wall s, cpu s, peak KiB,
+    stderr)."""
     start = time.monotonic()
     with open(out_path, "wb") as out:
         process = subprocess.Popen(command, stdout=out, stderr=subprocess.PIPE)
@@ -45,7 +46,7 @@ def run(command, out_path):
     process.stderr.close()
     if os.waitstatus_to_exitcode(status) != 0:
         sys.exit(f"bench: {' '.join(command)} failed: {stderr[-500:]}")
-    return wall, usage.ru_maxrss, stderr
+    return wall, usage.ru_utime + usage.ru_stime, usage.ru_maxrss, stderr
 
 
 def pairs_of(path):
@@ -79,25 +80,29 @@ def main():
     base = [args.binary, "sweep", "--measure", "containment", "--print", "pairs",
             "-j", str(args.threads)]
     low = min(thresholds)
-    ex_wall, ex_rss, _ = run(base + ["-t", str(low), "--exhaustive", str(corpus)],
+    ex_wall, ex_cpu, ex_rss, _ = run(base + ["-t", str(low), "--exhaustive", str(corpus)],
                              work / "exhaustive.jsonl")
     reference = pairs_of(work / "exhaustive.jsonl")
-    print(f"exhaustive, t={low}: {ex_wall:.1f} s, peak {ex_rss / 1024:.0f} MB, "
-          f"{len(reference)} pairs")
-    print("t     LSH s (median)  exhaustive s  speed-up  pairs>=t+0.05  recall  candidates")
+    print(f"exhaustive, t={low}: {ex_wall:.1f} s wall, {ex_cpu:.1f} s CPU, peak "
+          f"{ex_rss / 1024:.0f} MB, {len(reference)} pairs")
+    print("Medians of the LSH runs; speed-up = exhaustive / LSH, by wall and by CPU time")
+    print("t     LSH wall s  LSH CPU s  speed-up wall  speed-up CPU  pairs>=t+0.05  recall  "
+          "candidates  peak MB")
     for t in thresholds:
-        walls = []
+        walls, cpus = [], []
         for _ in range(args.runs):
-            wall, rss, stderr = run(base + ["-t", str(t), str(corpus)], work / f"lsh-{t}.jsonl")
+            wall, cpu, rss, stderr = run(base + ["-t", str(t), str(corpus)],
+                                         work / f"lsh-{t}.jsonl")
             walls.append(wall)
+            cpus.append(cpu)
         found = {(q["a"], q["b"]) for q in pairs_of(work / f"lsh-{t}.jsonl")}
         want = [(q["a"], q["b"]) for q in reference if containment(q) >= t + 0.05 - 1e-9]
         recall = sum(k in found for k in want) / max(1, len(want))
         candidates = next((line.split()[2] for line in stderr.splitlines()
                            if "candidate pairs" in line), "?")
-        lsh = statistics.median(walls)
-        print(f"{t:<5} {lsh:14.2f}  {ex_wall:12.1f}  {ex_wall / lsh:8.1f}  {len(want):13d}  "
-              f"{recall:6.4f}  {candidates}")
+        lsh, lsh_cpu = statistics.median(walls), statistics.median(cpus)
+        print(f"{t:<5} {lsh:10.2f}  {lsh_cpu:9.2f}  {ex_wall / lsh:13.1f}  {ex_cpu / lsh_cpu:12.1f}"
+              f"  {len(want):13d}  {recall:6.4f}  {candidates:>10}  {rss / 1024:7.0f}")
 
 
 if __name__ == "__main__":
