@@ -85,7 +85,8 @@ absl::Status LoadIndexedCorpus(const IndexReader& reader, SignedCorpus* out,
                                std::vector<uint32_t>* numbers);
 
 // Pairs and groups of every live indexed document under `match` (with the
-// reader's banding when match.bands is 0) and `keep`; the result's corpus
+// reader's banding when match.bands is 0; for containment with bands 0, by
+// the containment LSH of containment_lsh.h) and `keep`; the result's corpus
 // holds the live documents in index order. Errors: DataLoss.
 absl::StatusOr<SweepResult> SweepIndex(const IndexReader& reader, const MatchSettings& match,
                                        KeepPolicy keep, int threads);

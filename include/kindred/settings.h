@@ -66,6 +66,13 @@ enum class Measure : uint8_t {
   kContainment = 1,  // |A n B| / min(|A|, |B|): the smaller inside the larger
 };
 
+// The least size of the smaller set of a containment pair, in shingles, by
+// default. A set of a few shingles is contained in thousands of others,
+// truly and uselessly (a stock phrase, a signature line); 20 word 5-shingles
+// are 24 words, about two sentences. A judgement of this project, not a
+// published value.
+inline constexpr uint32_t kDefaultMinContainedSize = 20;
+
 struct MatchSettings {
   // A pair is reported when its exact measure is >= threshold. Default 0.8;
   // valid (0, 1].
@@ -76,6 +83,9 @@ struct MatchSettings {
   uint32_t rows = 0;
   // The measure compared with the threshold. Both measures are reported.
   Measure measure = Measure::kJaccard;
+  // Containment only: a pair is reported only when its smaller set has at
+  // least this many shingles (>= 1). Jaccard ignores it.
+  uint32_t min_contained_size = kDefaultMinContainedSize;
 
   absl::Status Validate(const SignatureSettings& signature) const;
 };

@@ -19,6 +19,7 @@
 #include "absl/types/span.h"
 #include "kindred/banding.h"
 #include "kindred/candidates.h"
+#include "kindred/containment_candidates.h"
 #include "kindred/corpus.h"
 #include "kindred/groups.h"
 #include "kindred/settings.h"
@@ -27,7 +28,9 @@
 namespace kindred {
 
 // True when `overlap` passes `match` (measure >= threshold, compared exactly
-// on the counts, with a 1e-9 allowance for the decimal threshold).
+// on the counts, with a 1e-9 allowance for the decimal threshold; for
+// containment, the smaller set also has at least match.min_contained_size
+// shingles).
 bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b, const MatchSettings& match);
 
 // Confirms each candidate pair on the shingle sets; returns the pairs that
@@ -42,6 +45,12 @@ std::vector<ScoredPair> VerifyPairs(const SignedCorpus& corpus,
 std::vector<ScoredPair> ExhaustivePairs(const SignedCorpus& corpus, const MatchSettings& match,
                                         int threads);
 
+// True when an LSH sweep with `match` proposes candidates by the containment
+// LSH (containment_lsh.h): measure containment with automatic banding. With
+// bands and rows given, containment pairs are proposed by that one Jaccard
+// banding, as before.
+bool UsesContainmentSearch(const MatchSettings& match);
+
 struct SweepOptions {
   SignatureSettings signature;
   MatchSettings match;  // bands/rows 0: chosen by ChooseBanding()
@@ -49,9 +58,10 @@ struct SweepOptions {
   bool exhaustive = false;
   uint64_t max_bucket = kDefaultMaxBucket;  // see candidates.h
   SignOptions sign;                         // threads, batch sizes, progress
-  // Keep every document's shingle set and signature in the result. Off, an
-  // LSH sweep keeps a lean corpus (band keys only; see signed_corpus.h) and
-  // reads the documents of candidate pairs a second time to verify them,
+  // Keep every document's shingle set and signature in the result (always
+  // so for a containment search). Off, an LSH sweep keeps a lean corpus
+  // (band keys only; see signed_corpus.h) and reads the documents of
+  // candidate pairs a second time to verify them,
   // when every input can be read again (standard input only through its
   // copy, InputOptions::stdin_copy_path).
   bool keep_sets = false;
@@ -67,7 +77,13 @@ struct SweepOptions {
 struct SweepStats {
   SignStats sign;
   CandidateStats candidates;
-  Banding banding;  // the banding used (zero when exhaustive)
+  Banding banding;  // the banding used (zero when exhaustive or containment search)
+  // Measure containment: the containment search's figures (partitions and
+  // candidates when UsesContainmentSearch; the documents left out by the
+  // least contained size, exhaustive or not).
+  bool containment_search = false;
+  uint32_t containment_partitions = 0;
+  ContainmentCandidateStats containment;
   uint64_t confirmed_pairs = 0;
   uint64_t groups = 0;
   uint64_t drops = 0;

@@ -158,6 +158,12 @@ void AddMatchOptions(CLI::App* command, MatchFlags* flags) {
                    "similarity compared with the threshold: jaccard or containment")
       ->default_str("jaccard")
       ->group("Matching");
+  command
+      ->add_option("--min-contained-size", flags->min_contained_size,
+                   "containment: report a pair only when its smaller document has at least "
+                   "this many shingles")
+      ->default_str(std::to_string(kDefaultMinContainedSize))
+      ->group("Matching");
 }
 
 absl::StatusOr<MatchSettings> ToMatchSettings(const MatchFlags& flags,
@@ -166,6 +172,7 @@ absl::StatusOr<MatchSettings> ToMatchSettings(const MatchFlags& flags,
   match.threshold = flags.threshold;
   match.bands = flags.bands;
   match.rows = flags.rows;
+  match.min_contained_size = flags.min_contained_size;
   if (flags.measure == "jaccard") {
     match.measure = Measure::kJaccard;
   } else if (flags.measure == "containment") {

@@ -48,6 +48,7 @@ struct MatchFlags {
   uint32_t bands = 0;
   uint32_t rows = 0;
   std::string measure = "jaccard";
+  uint32_t min_contained_size = kDefaultMinContainedSize;
 };
 void AddMatchOptions(CLI::App* command, MatchFlags* flags);
 absl::StatusOr<MatchSettings> ToMatchSettings(const MatchFlags& flags,

@@ -20,6 +20,7 @@
 #include "cli/formats.h"
 #include "cli/usage.h"
 #include "core/plural.h"
+#include "cli/plan_containment.h"
 #include "kindred/banding.h"
 #include "kindred/settings.h"
 
@@ -36,6 +37,11 @@ struct PlanOptions {
   uint32_t rows = 0;
   uint32_t alternatives = 10;
   std::string format = "text";
+  std::string measure = "jaccard";
+  uint32_t min_contained_size = kDefaultMinContainedSize;
+  uint32_t largest_size = 100000;
+  uint64_t documents = 0;
+  double background_containment = 0.02;
 };
 
 // Curves shown beside the chosen one.
@@ -275,6 +281,21 @@ void PrintDelimited(const Plan& plan, char sep) {
 
 int RunPlan(const PlanOptions& options) {
   if (absl::Status status = Validate(options); !status.ok()) return Fail(kExitUsage, status);
+  if (options.measure == "containment") {
+    if (options.bands != 0) {
+      return Fail(kExitUsage, absl::InvalidArgumentError(
+                                  "--bands and --rows apply to --measure jaccard: a containment "
+                                  "plan chooses a banding per pair of size partitions"));
+    }
+    if (options.format == "csv") {
+      return Fail(kExitUsage, absl::InvalidArgumentError(
+                                  "plan: --measure containment prints text, jsonl or tsv"));
+    }
+    return RunContainmentPlan({options.threshold, options.perms, options.fn_weight,
+                               options.fp_weight, options.min_recall, options.min_contained_size,
+                               options.largest_size, options.documents,
+                               options.background_containment, options.format});
+  }
   const Plan plan = MakePlan(options);
   if (options.format == "jsonl") {
     PrintJsonl(plan);
@@ -321,6 +342,23 @@ void RegisterPlan(CLI::App& app, int* exit_code) {
       ->transform(WholeNumber(0, UINT32_MAX));
   plan->add_option("--alternatives", options->alternatives, "Rows in the alternatives table")
       ->transform(WholeNumber(0, UINT32_MAX))
+      ->capture_default_str();
+  plan->add_option("--measure", options->measure,
+                   "jaccard (one banding) or containment (a banding per pair of size partitions)")
+      ->check(CLI::IsMember({"jaccard", "containment"}))
+      ->capture_default_str();
+  plan->add_option("--min-contained-size", options->min_contained_size,
+                   "containment: the least size of the smaller document, in shingles")
+      ->capture_default_str();
+  plan->add_option("--largest-size", options->largest_size,
+                   "containment: the largest document to plan for, in shingles")
+      ->capture_default_str();
+  plan->add_option("--documents", options->documents,
+                   "containment: corpus size for the expected false candidates (0: not shown)")
+      ->capture_default_str();
+  plan->add_option("--background-containment", options->background_containment,
+                   "containment: the share of shingles unrelated documents share by chance, "
+                   "for the expected false candidates")
       ->capture_default_str();
   AddFormatOption(plan, &options->format, {"text", "jsonl", "tsv", "csv"});
   plan->callback([options, exit_code] { *exit_code = RunPlan(*options); });

@@ -97,18 +97,30 @@ void PrintSummary(const SweepResult& result, const SweepOptions& options) {
   std::fprintf(stderr, "\n");
   if (options.exhaustive) {
     std::fprintf(stderr, "  candidate pairs   all (exhaustive comparison)\n");
+  } else if (stats.containment_search) {
+    std::fprintf(
+        stderr, "  candidate pairs   %llu (containment LSH: %u size partitions, %llu bandings)\n",
+        static_cast<unsigned long long>(stats.candidates.candidate_pairs),
+        stats.containment_partitions, static_cast<unsigned long long>(stats.containment.bandings));
   } else {
     std::fprintf(stderr, "  candidate pairs   %llu (%s)\n",
                  static_cast<unsigned long long>(stats.candidates.candidate_pairs),
                  BandsByRows(stats.banding.bands, stats.banding.rows).c_str());
-    if (stats.candidates.oversized_buckets > 0) {
-      std::fprintf(stderr,
-                   "  crowded buckets   %llu over %llu documents (largest %llu): members paired "
-                   "with the first only (--max-bucket)\n",
-                   static_cast<unsigned long long>(stats.candidates.oversized_buckets),
-                   static_cast<unsigned long long>(options.max_bucket),
-                   static_cast<unsigned long long>(stats.candidates.largest_bucket));
-    }
+  }
+  if (!options.exhaustive && stats.candidates.oversized_buckets > 0) {
+    std::fprintf(stderr,
+                 "  crowded buckets   %llu over %llu documents (largest %llu): members paired "
+                 "with the first only (--max-bucket)\n",
+                 static_cast<unsigned long long>(stats.candidates.oversized_buckets),
+                 static_cast<unsigned long long>(options.max_bucket),
+                 static_cast<unsigned long long>(stats.candidates.largest_bucket));
+  }
+  if (options.match.measure == Measure::kContainment && stats.containment.below_min_size > 0) {
+    std::fprintf(stderr,
+                 "  small documents   %llu under %u shingles: in no containment pair "
+                 "(--min-contained-size)\n",
+                 static_cast<unsigned long long>(stats.containment.below_min_size),
+                 options.match.min_contained_size);
   }
   if (stats.spill_runs > 0) {
     std::fprintf(stderr, "  spilled           %.1f MB of band keys in %s (--memory %s)\n",
@@ -213,6 +225,9 @@ int RunIndexSweep(const SweepFlags& flags) {
           PrepareIndexQuery(flags.signature, flags.match, flags.given, reader->get(), &match);
       code != kExitOk) {
     return code;
+  }
+  if (match.measure == Measure::kContainment && flags.match.bands == 0) {
+    match.bands = match.rows = 0;  // the containment LSH, not the stored banding
   }
   auto keep = ParseKeepPolicy(flags.keep);
   if (!keep.ok()) return Fail(kExitUsage, keep.status());

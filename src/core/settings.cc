@@ -52,6 +52,9 @@ absl::Status MatchSettings::Validate(const SignatureSettings& signature) const {
         absl::StrFormat("bands x rows = %u x %u = %u exceeds the signature length %u", bands, rows,
                         uint64_t{bands} * rows, signature.perms));
   }
+  if (min_contained_size == 0) {
+    return absl::InvalidArgumentError("the least contained size must be at least 1 shingle");
+  }
   return absl::OkStatus();
 }
 

@@ -40,9 +40,17 @@ std::vector<T> Concatenate(std::vector<std::vector<T>>& parts) {
 
 }  // namespace
 
+bool UsesContainmentSearch(const MatchSettings& match) {
+  return match.measure == Measure::kContainment && match.bands == 0;
+}
+
 bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b,
                      const MatchSettings& match) {
   if (shared == 0) return false;
+  if (match.measure == Measure::kContainment &&
+      std::min(size_a, size_b) < match.min_contained_size) {
+    return false;
+  }
   const double denominator = match.measure == Measure::kJaccard
                                  ? static_cast<double>(size_a) + size_b - shared
                                  : static_cast<double>(std::min(size_a, size_b));
@@ -90,6 +98,10 @@ std::vector<ScoredPair> ExhaustivePairs(const SignedCorpus& corpus, const MatchS
                 match.threshold * std::max(set_a.size(), set_b.size()) - 1e-9) {
           continue;
         }
+        if (match.measure == Measure::kContainment &&
+            std::min(set_a.size(), set_b.size()) < match.min_contained_size) {
+          continue;
+        }
         const Overlap overlap = MeasureOverlap(set_a, set_b);
         if (PassesThreshold(overlap.shared, overlap.size_a, overlap.size_b, match)) {
           parts[a].push_back(Score(corpus, a, b, overlap));
@@ -117,6 +129,38 @@ void GroupAndCount(const SignedCorpus& corpus, const SweepOptions& options, Swee
   for (const Group& group : result->groups) stats.drops += group.members.size() - 1;
 }
 
+// Non-empty documents under the least contained size.
+uint64_t CountBelowContainedSize(const SignedCorpus& corpus, const MatchSettings& match) {
+  uint64_t below = 0;
+  for (size_t doc = 0; doc < corpus.size(); ++doc) {
+    const uint32_t size = corpus.shingle_count(doc);
+    below += size > 0 && size < match.min_contained_size;
+  }
+  return below;
+}
+
+// The containment search's candidates (containment_lsh.h), and its figures
+// in result->stats.
+std::vector<PackedPair> ContainmentCandidates(const SignedCorpus& corpus,
+                                              const SweepOptions& options, SweepResult* result) {
+  ContainmentPlanOptions plan_options;
+  plan_options.threshold = options.match.threshold;
+  plan_options.perms = corpus.perms();
+  plan_options.min_size = options.match.min_contained_size;
+  const ContainmentPlan plan = PlanForCorpus(corpus, plan_options);
+  SweepStats& stats = result->stats;
+  stats.containment_search = true;
+  stats.containment_partitions = static_cast<uint32_t>(plan.partitions().size());
+  stats.containment = ContainmentCandidateStats{};
+  std::vector<PackedPair> candidates = FindContainmentCandidates(
+      corpus, plan, std::max(1, options.sign.threads), &stats.containment, options.max_bucket);
+  stats.candidates.candidate_pairs = stats.containment.candidate_pairs;
+  stats.candidates.bucket_entries = stats.containment.bucket_entries;
+  stats.candidates.largest_bucket = stats.containment.largest_bucket;
+  stats.candidates.oversized_buckets = stats.containment.oversized_buckets;
+  return candidates;
+}
+
 // The documents that appear in `pairs`, ascending.
 std::vector<uint32_t> DocumentsOf(absl::Span<const PackedPair> pairs) {
   std::vector<uint32_t> docs;
@@ -136,8 +180,14 @@ void MatchCorpus(const SignedCorpus& corpus, const SweepOptions& options, SweepR
   const auto start = std::chrono::steady_clock::now();
   const int threads = std::max(1, options.sign.threads);
   SweepStats& stats = result->stats;
+  if (options.match.measure == Measure::kContainment) {
+    stats.containment.below_min_size = CountBelowContainedSize(corpus, options.match);
+  }
   if (options.exhaustive) {
     result->pairs = ExhaustivePairs(corpus, options.match, threads);
+  } else if (UsesContainmentSearch(options.match)) {
+    const std::vector<PackedPair> candidates = ContainmentCandidates(corpus, options, result);
+    result->pairs = VerifyPairs(corpus, candidates, options.match, threads);
   } else {
     stats.banding = BandingFor(options);
     const std::vector<PackedPair> candidates =
@@ -155,6 +205,7 @@ absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& o
   }
   const std::vector<ResolvedInput> inputs = reader.ResolvedInputs();
   const bool lean = !options.exhaustive && !options.keep_sets &&
+                    !UsesContainmentSearch(options.match) &&
                     std::all_of(inputs.begin(), inputs.end(), [](const ResolvedInput& input) {
                       return !input.is_stdin || !input.read_path.empty();
                     });

@@ -128,7 +128,7 @@ absl::StatusOr<SweepResult> SweepIndex(const IndexReader& reader, const MatchSet
   SweepOptions options;
   options.signature = reader.settings().signature;
   options.match = match;
-  if (options.match.bands == 0) {
+  if (options.match.bands == 0 && options.match.measure == Measure::kJaccard) {
     options.match.bands = reader.bands();
     options.match.rows = reader.rows();
   }
