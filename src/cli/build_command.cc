@@ -5,6 +5,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "cli/record_counts.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
 #include "cli/output.h"
@@ -153,6 +154,7 @@ int RunBuild(const BuildFlags& flags) {
                  flags.index.c_str(), static_cast<unsigned long long>(stats.documents),
                  static_cast<unsigned long long>(stats.empty_documents),
                  settings->signature.ToString().c_str(), settings->bands, settings->rows);
+    PrintRecordCounts(**reader);
     PrintThroughput(stats.documents, stats.bytes, progress.Elapsed());
   }
   return kExitOk;

@@ -99,6 +99,7 @@ absl::StatusOr<bool> WarcDocuments::Next(
     read = reader_.SkipBlock(sink);
   }
   if (!read.ok()) return read;
+  record->trailer = reader_.trailer();
   record->role = Decide(*record);
   if (!record->role.document) {
     if (options_.warc.strict && !record->whole) {

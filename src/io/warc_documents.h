@@ -55,6 +55,7 @@ struct WarcRecord {
   WarcHeader header;
   std::string block;
   bool whole = false;
+  std::string trailer;  // the bytes after the block, as read ("\r\n\r\n")
   RecordRole role;
 };
 

@@ -96,6 +96,7 @@ absl::StatusOr<bool> WarcReader::NextLine(absl::string_view* line, uint64_t limi
       if (length > 0 && buffer_[stop - 1] == '\r') --length;
       if (length > limit) break;
       *line = absl::string_view(buffer_.data() + begin_, length);
+      raw_line_ = absl::string_view(buffer_.data() + begin_, stop + 1 - begin_);
       begin_ = stop + 1;
       return true;
     }
@@ -142,7 +143,7 @@ absl::StatusOr<bool> WarcReader::NextHeader(WarcHeader* header) {
         absl::CEscape(line.substr(0, 40)), "\""));
   }
   header->version = std::string(line);
-  absl::StrAppend(&header->raw, line, "\r\n");
+  header->raw.append(raw_line_.data(), raw_line_.size());
   absl::Status parsed = ParseHeader(header);
   if (!parsed.ok()) return parsed;
   block_left_ = header->content_length;
@@ -158,7 +159,7 @@ absl::Status WarcReader::ParseHeader(WarcHeader* header) {
     if (!*more) {
       return absl::InvalidArgumentError(absl::StrCat(Where(), ": the file ends inside the header"));
     }
-    absl::StrAppend(&header->raw, line, "\r\n");
+    header->raw.append(raw_line_.data(), raw_line_.size());
     if (header->raw.size() > limits_.max_header_bytes) {
       return absl::ResourceExhaustedError(
           absl::StrCat(Where(), ": the header is longer than ", limits_.max_header_bytes, " bytes"));
@@ -222,10 +223,14 @@ absl::Status WarcReader::ReadBlock(std::string* block) {
 
 // The block is followed by CRLF CRLF; a wrong Content-Length shows here.
 absl::Status WarcReader::EndOfRecord() {
+  trailer_.clear();
   for (int i = 0; i < 2; ++i) {
     absl::string_view line;
     absl::StatusOr<bool> more = NextLine(&line, 0);
-    if (more.ok() && *more) continue;
+    if (more.ok() && *more) {
+      trailer_.append(raw_line_.data(), raw_line_.size());
+      continue;
+    }
     if (!more.ok() && more.status().code() != absl::StatusCode::kResourceExhausted) {
       return more.status();
     }

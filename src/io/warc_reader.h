@@ -41,7 +41,8 @@ struct WarcLimits {
 struct WarcHeader {
   uint64_t offset = 0;          // decoded offset of the version line
   std::string raw;              // the header bytes as read: version line
-                                // through the empty line, CRLFs included
+                                // through the empty line, line endings
+                                // included
   std::string version;          // "WARC/1.0" or "WARC/1.1"
   std::vector<std::pair<std::string, std::string>> fields;  // as read
   uint64_t content_length = 0;
@@ -65,6 +66,9 @@ class WarcReader {
   absl::Status SkipBlock(const std::function<absl::Status(absl::string_view)>& sink);
 
   const std::string& name() const { return name_; }
+  // The bytes that closed the last block read ("\r\n\r\n" in a valid
+  // file), as read.
+  const std::string& trailer() const { return trailer_; }
   // The error prefix for the current record: "<file>: record at byte N".
   std::string Where() const;
 
@@ -84,6 +88,8 @@ class WarcReader {
   uint64_t consumed_ = 0;  // decoded bytes before buffer_[begin_]
   uint64_t record_offset_ = 0;
   uint64_t block_left_ = 0;
+  absl::string_view raw_line_;  // the last line with its line ending
+  std::string trailer_;
 };
 
 // Reads the first bytes of *stream and says whether they start a WARC
