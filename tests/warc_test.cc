@@ -161,11 +161,12 @@ TEST_CASE("HTTP bodies: chunked, gzip, deflate, br", "[warc]") {
   CHECK(head->status == 200);
   CHECK(head->media_type == "text/html");
   CHECK(head->charset == "ISO-8859-1");
-  std::string block = "HTTP/1.1 200 OK\r\nContent-Type: text/html; charset=\"ISO-8859-1\"\r\n"
-                      "Transfer-Encoding: chunked\r\n\r\n5\r\nhello\r\n3;ext=1\r\n!!!\r\n0\r\n\r\n";
+  std::string block =
+      "HTTP/1.1 200 OK\r\nContent-Type: text/html; charset=\"ISO-8859-1\"\r\n"
+      "Transfer-Encoding: chunked\r\n\r\n5\r\nhello\r\n3;ext=1\r\n!!!\r\n0\r\n\r\n";
   std::string body;
-  REQUIRE(io::DecodeHttpBody(*head, absl::string_view(block).substr(head->body_offset), 1000,
-                             &body).ok());
+  REQUIRE(io::DecodeHttpBody(*head, absl::string_view(block).substr(head->body_offset), 1000, &body)
+              .ok());
   CHECK(body == "hello!!!");
   io::HttpHead gz;
   gz.content_encoding = "gzip";
@@ -201,7 +202,7 @@ TEST_CASE("HTML text by the definition", "[warc]") {
              "<noscript>no</noscript>yes") == "yes");
   CHECK(Html("<my-widget>in</my-widget>line<unknownthing>b</unknownthing>") == "inline|b");
   CHECK(Html("<table><tr><td>1<td>2</table>") == "1|2");
-  CHECK(Html("<p>one<p>two") == "one|two");  // implied end tags
+  CHECK(Html("<p>one<p>two") == "one|two");                         // implied end tags
   CHECK(Html("<b>bold<i>both</b>italic</i>") == "boldbothitalic");  // adoption agency
   CHECK(Html("<script><!-- </script>after") == "after");
   CHECK(Html("a<![CDATA[b]]>c") == "ac");  // a bogus comment in HTML content
@@ -213,8 +214,7 @@ TEST_CASE("WARC records become documents with their URIs as ids", "[warc]") {
   std::string warc =
       Record("warcinfo", "", "software: test\r\n", "Content-Type: application/warc-fields\r\n") +
       Record("request", "http://a.test/", "GET / HTTP/1.1\r\n\r\n") +
-      Response("<http://a.test/>", Http("200 OK", "Content-Type: text/html\r\n",
-                                        "<p>caf\xE9</p>"),
+      Response("<http://a.test/>", Http("200 OK", "Content-Type: text/html\r\n", "<p>caf\xE9</p>"),
                "WARC-Payload-Digest: sha1:AAAAAAAAAAAAAAAAAAAAAAAAAAAAAAAA\r\n") +
       Response("http://a.test/404", Http("404 Not Found", "Content-Type: text/html\r\n", "gone")) +
       Response("http://a.test/img", Http("200 OK", "Content-Type: image/png\r\n", "\x89PNG")) +
@@ -263,10 +263,11 @@ TEST_CASE("WARC records become documents with their URIs as ids", "[warc]") {
 
 TEST_CASE("malformed WARC input names the file and the record's offset", "[warc]") {
   TempDir dir;
-  const std::string good = Record("resource", "http://a.test/", "hello", "Content-Type: text/plain\r\n");
+  const std::string good =
+      Record("resource", "http://a.test/", "hello", "Content-Type: text/plain\r\n");
   const std::string offset = absl::StrCat("record at byte ", good.size());
-  std::string wrong_length = good + Record("resource", "http://b.test/", "hello world",
-                                           "Content-Type: text/plain\r\n");
+  std::string wrong_length =
+      good + Record("resource", "http://b.test/", "hello world", "Content-Type: text/plain\r\n");
   wrong_length.replace(wrong_length.rfind("Content-Length: 11"), 18, "Content-Length: 10");
   std::string truncated = good + Record("resource", "http://b.test/", "hello world");
   truncated.resize(truncated.size() - 8);

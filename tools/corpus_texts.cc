@@ -62,8 +62,8 @@ int HtmlFiles(int argc, char** argv) {
   std::string scratch, text;
   for (int i = 2; i < argc; ++i) {
     uint32_t replaced = 0;
-    absl::Status s = kindred::io::PayloadText(ReadFile(argv[i]), "", true, &scratch, &text,
-                                              &replaced);
+    absl::Status s =
+        kindred::io::PayloadText(ReadFile(argv[i]), "", true, &scratch, &text, &replaced);
     if (!s.ok()) {
       std::fprintf(stderr, "%s: %s\n", argv[i], std::string(s.message()).c_str());
       return 3;
@@ -95,8 +95,8 @@ int HtmlSpeed(const char* path, int rounds) {
       uint32_t replaced = 0;
       (void)kindred::io::PayloadText(page, "utf-8", true, &scratch, &text, &replaced);
     }
-    best = std::min(best, std::chrono::duration<double>(std::chrono::steady_clock::now() - start)
-                              .count());
+    best = std::min(
+        best, std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count());
   }
   std::printf("%zu pages, %.1f MB of HTML, best of %d: %.3f s, %.1f MB/s\n", pages.size(),
               bytes / 1e6, rounds, best, bytes / 1e6 / best);

@@ -58,8 +58,7 @@ constexpr Encoding kEncodings[] = {
     {"KOI8-R", "KOI8-R", "cskoi8r koi koi8 koi8-r koi8_r"},
     {"KOI8-U", "KOI8-U", "koi8-ru koi8-u"},
     {"macintosh", "macos-0_2-10.2", "csmacintosh mac macintosh x-mac-roman"},
-    {"windows-874", "windows-874",
-     "dos-874 iso-8859-11 iso8859-11 iso885911 tis-620 windows-874"},
+    {"windows-874", "windows-874", "dos-874 iso-8859-11 iso8859-11 iso885911 tis-620 windows-874"},
     {"windows-1250", "windows-1250", "cp1250 windows-1250 x-cp1250"},
     {"windows-1251", "windows-1251", "cp1251 windows-1251 x-cp1251"},
     {"windows-1252", "windows-1252",
@@ -88,8 +87,7 @@ constexpr Encoding kEncodings[] = {
     {"replacement", "",
      "csiso2022kr hz-gb-2312 iso-2022-cn iso-2022-cn-ext iso-2022-kr replacement"},
     {"UTF-16BE", "UTF-16BE", "unicodefffe utf-16be"},
-    {"UTF-16LE", "UTF-16LE",
-     "csunicode iso-10646-ucs-2 ucs-2 unicode unicodefeff utf-16 utf-16le"},
+    {"UTF-16LE", "UTF-16LE", "csunicode iso-10646-ucs-2 ucs-2 unicode unicodefeff utf-16 utf-16le"},
     {"x-user-defined", "", "x-user-defined"},
 };
 
@@ -199,16 +197,16 @@ absl::Status ConvertToUtf8(absl::string_view encoding, absl::string_view bytes, 
   }
   ucnv_setToUCallBack(converter, CountingCallback, replaced, nullptr, nullptr, &error);
   icu::UnicodeString text;
-  const int32_t capacity = static_cast<int32_t>(
-      std::min<size_t>(bytes.size() * 2 + 16, static_cast<size_t>(INT32_MAX)));
+  const int32_t capacity =
+      static_cast<int32_t>(std::min<size_t>(bytes.size() * 2 + 16, static_cast<size_t>(INT32_MAX)));
   UChar* buffer = text.getBuffer(capacity);
   int32_t length = ucnv_toUChars(converter, buffer, capacity, bytes.data(),
                                  static_cast<int32_t>(bytes.size()), &error);
   text.releaseBuffer(U_SUCCESS(error) ? length : 0);
   ucnv_close(converter);
   if (U_FAILURE(error)) {
-    return absl::InternalError(absl::StrCat("conversion from ", encoding, " failed: ",
-                                            u_errorName(error)));
+    return absl::InternalError(
+        absl::StrCat("conversion from ", encoding, " failed: ", u_errorName(error)));
   }
   ToUtf8(text, out);
   return absl::OkStatus();

@@ -84,9 +84,8 @@ void Walk(const GumboNode* root, std::string* out) {
       default:
         break;
     }
-    const GumboVector* children = node->type == GUMBO_NODE_DOCUMENT
-                                      ? &node->v.document.children
-                                      : &node->v.element.children;
+    const GumboVector* children =
+        node->type == GUMBO_NODE_DOCUMENT ? &node->v.document.children : &node->v.element.children;
     if (node->type == GUMBO_NODE_ELEMENT) {
       const Role role = RoleOf(node->v.element);
       if (role == Role::kSkipped) continue;

@@ -79,8 +79,7 @@ absl::Status Unbrotli(absl::string_view in, uint64_t max_bytes, std::string* out
     if (result == BROTLI_DECODER_RESULT_NEEDS_MORE_INPUT) break;  // cut short
     if (result == BROTLI_DECODER_RESULT_ERROR) {
       status = absl::InvalidArgumentError(absl::StrCat(
-          "corrupt brotli body: ",
-          BrotliDecoderErrorString(BrotliDecoderGetErrorCode(state))));
+          "corrupt brotli body: ", BrotliDecoderErrorString(BrotliDecoderGetErrorCode(state))));
       break;
     }
   }
@@ -161,7 +160,7 @@ absl::Status Dechunk(absl::string_view body, uint64_t max_bytes, std::string* ou
       return absl::InvalidArgumentError("malformed chunked body");
     }
     pos = eol + 1;
-    if (size == 0) break;  // trailers follow
+    if (size == 0) break;                                    // trailers follow
     if (size > body.size() - pos) size = body.size() - pos;  // cut short
     if (out->size() + size > max_bytes) return TooLarge(max_bytes);
     out->append(body.data() + pos, size);
@@ -192,9 +191,11 @@ absl::Status DecodeHttpBody(const HttpHead& head, absl::string_view body, uint64
       s = Inflate(current, 15 + 32, max_bytes, &next);
     } else if (coding == "deflate") {
       // RFC 9110 says zlib-wrapped; some servers send raw deflate.
-      const bool zlib_wrapped = current.size() >= 2 && (current[0] & 0x0f) == 8 &&
-                                ((static_cast<unsigned char>(current[0]) << 8) |
-                                 static_cast<unsigned char>(current[1])) % 31 == 0;
+      const bool zlib_wrapped =
+          current.size() >= 2 && (current[0] & 0x0f) == 8 &&
+          ((static_cast<unsigned char>(current[0]) << 8) | static_cast<unsigned char>(current[1])) %
+                  31 ==
+              0;
       s = Inflate(current, zlib_wrapped ? 15 : -15, max_bytes, &next);
     } else if (coding == "br") {
       s = Unbrotli(current, max_bytes, &next);

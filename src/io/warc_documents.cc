@@ -1,6 +1,8 @@
 // WarcDocuments: records to documents.
 #include "io/warc_documents.h"
 
+#include <array>
+
 #include "absl/strings/ascii.h"
 #include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
@@ -35,6 +37,18 @@ std::string MediaTypeOf(const WarcHeader& header) {
   return media_type;
 }
 
+// `expected`: the SHA-1 of `bytes` in base32 (the usual form) or hex, any
+// case.
+bool DigestMatches(absl::string_view expected, absl::string_view bytes) {
+  Sha1 sha;
+  sha.Update(bytes);
+  const std::array<uint8_t, 20> digest = sha.Finish();
+  if (absl::EqualsIgnoreCase(expected, Base32(digest.data(), digest.size()))) return true;
+  std::string hex;
+  for (uint8_t byte : digest) absl::StrAppend(&hex, absl::Hex(byte, absl::kZeroPad2));
+  return absl::EqualsIgnoreCase(expected, hex);
+}
+
 absl::string_view StripAngles(absl::string_view value) {
   if (value.size() >= 2 && value.front() == '<' && value.back() == '>') {
     value = value.substr(1, value.size() - 2);
@@ -67,13 +81,14 @@ RecordRole WarcDocuments::Decide(const WarcRecord& record) const {
     }
     role.payload = PayloadOf(head->media_type);
     if (role.payload == RecordRole::Payload::kNone) {
-      return NotDocument(absl::StrCat(
-          "response of type ", head->media_type.empty() ? "(none)" : head->media_type));
+      return NotDocument(absl::StrCat("response of type ",
+                                      head->media_type.empty() ? "(none)" : head->media_type));
     }
   } else if (type == "resource") {
     role.payload = PayloadOf(media_type);
     if (role.payload == RecordRole::Payload::kNone) {
-      return NotDocument(absl::StrCat("resource of type ", media_type.empty() ? "(none)" : media_type));
+      return NotDocument(
+          absl::StrCat("resource of type ", media_type.empty() ? "(none)" : media_type));
     }
   } else {
     role.payload = media_type.empty() ? RecordRole::Payload::kText : PayloadOf(media_type);
@@ -103,9 +118,9 @@ absl::StatusOr<bool> WarcDocuments::Next(
   record->role = Decide(*record);
   if (!record->role.document) {
     if (options_.warc.strict && !record->whole) {
-      return absl::ResourceExhaustedError(absl::StrCat(
-          reader_.Where(), ": the record's block of ", record->header.content_length,
-          " bytes is larger than the limit (--max-document-size)"));
+      return absl::ResourceExhaustedError(
+          absl::StrCat(reader_.Where(), ": the record's block of ", record->header.content_length,
+                       " bytes is larger than the limit (--max-document-size)"));
     }
     Count(record->role.reason);
   }
@@ -120,6 +135,25 @@ absl::Status PayloadText(absl::string_view payload, absl::string_view declared, 
   if (!html) return ConvertToUtf8(encoding, payload, text, replaced);
   if (absl::Status s = ConvertToUtf8(encoding, payload, scratch, replaced); !s.ok()) return s;
   return HtmlToText(*scratch, text);
+}
+
+absl::Status WarcDocuments::CheckDigest(const WarcHeader& header, const HttpHead& head,
+                                        absl::string_view body) {
+  absl::string_view digest = header.Field("WARC-Payload-Digest");
+  if (!absl::StartsWithIgnoreCase(digest, "sha1:")) return absl::OkStatus();
+  if (DigestMatches(digest.substr(5), body)) return absl::OkStatus();
+  std::string dechunked;
+  if (absl::StrContains(head.transfer_encoding, "chunked") &&
+      Dechunk(body, options_.max_document_bytes, &dechunked).ok() &&
+      DigestMatches(digest.substr(5), dechunked)) {
+    return absl::OkStatus();
+  }
+  if (options_.warc.strict) {
+    return absl::InvalidArgumentError(
+        absl::StrCat(reader_.Where(), ": WARC-Payload-Digest does not match the payload"));
+  }
+  Count("payload digest mismatch (counted, still read)");
+  return absl::OkStatus();
 }
 
 absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc) {
@@ -142,25 +176,12 @@ absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc
     if (!head.ok()) return head.status();  // Decide() saw it parse
     declared = head->charset;
     absl::string_view body = payload.substr(head->body_offset);
-    absl::string_view digest = header.Field("WARC-Payload-Digest");
-    if (absl::StartsWithIgnoreCase(digest, "sha1:") && Sha1Digest(body) != digest) {
-      std::string dechunked;
-      const bool chunk_match = absl::StrContains(head->transfer_encoding, "chunked") &&
-                               Dechunk(body, limit, &dechunked).ok() &&
-                               Sha1Digest(dechunked) == digest;
-      if (!chunk_match) {
-        if (options_.warc.strict) {
-          return absl::InvalidArgumentError(absl::StrCat(
-              reader_.Where(), ": WARC-Payload-Digest does not match the payload"));
-        }
-        Count("payload digest mismatch (counted, still read)");
-      }
-    }
+    if (absl::Status checked = CheckDigest(header, *head, body); !checked.ok()) return checked;
     absl::Status decoded = DecodeHttpBody(*head, body, limit, &payload_);
     if (decoded.code() == absl::StatusCode::kResourceExhausted) {
-      return absl::ResourceExhaustedError(absl::StrCat(
-          reader_.Where(), ": ", decoded.message(),
-          " (--max-document-size); a decompression bomb?"));
+      return absl::ResourceExhaustedError(
+          absl::StrCat(reader_.Where(), ": ", decoded.message(),
+                       " (--max-document-size); a decompression bomb?"));
     }
     if (!decoded.ok()) {
       Count("payload not decodable (empty text)");
@@ -168,9 +189,11 @@ absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc
     }
     payload = payload_;
   }
-  absl::Status made = PayloadText(payload, declared, record.role.payload == RecordRole::Payload::kHtml,
-                                  &utf8_, &doc->text, &doc->invalid_utf8);
-  if (!made.ok()) return absl::Status(made.code(), absl::StrCat(reader_.Where(), ": ", made.message()));
+  absl::Status made =
+      PayloadText(payload, declared, record.role.payload == RecordRole::Payload::kHtml, &utf8_,
+                  &doc->text, &doc->invalid_utf8);
+  if (!made.ok())
+    return absl::Status(made.code(), absl::StrCat(reader_.Where(), ": ", made.message()));
   return absl::OkStatus();
 }
 

@@ -37,6 +37,7 @@
 #include <string>
 
 #include "absl/status/statusor.h"
+#include "io/http_payload.h"
 #include "io/warc_reader.h"
 #include "kindred/corpus.h"
 
@@ -80,6 +81,9 @@ class WarcDocuments {
     if (counts_ != nullptr) ++(*counts_)[what];
   }
   RecordRole Decide(const WarcRecord& record) const;
+  // Counts (or with strict, returns) a WARC-Payload-Digest that matches
+  // neither the body as transferred nor the body with chunking removed.
+  absl::Status CheckDigest(const WarcHeader& header, const HttpHead& head, absl::string_view body);
 
   WarcReader reader_;
   const InputOptions& options_;

@@ -32,32 +32,44 @@ std::vector<std::string> Related(const WarcHeader& header) {
   return ids;
 }
 
+// The first pass: the decision for every document, and the ids of the
+// dropped documents and of the records they name.
+struct Drops {
+  std::vector<bool> kept_docs;
+  absl::flat_hash_set<std::string> dropped, named_by_dropped;
+};
+
+absl::Status FindDrops(const std::string& path, const InputOptions& options, uint64_t first_ordinal,
+                       const std::function<bool(uint64_t ordinal)>& keep, Drops* drops) {
+  auto records = Open(path, options);
+  if (!records.ok()) return records.status();
+  WarcRecord record;
+  for (;;) {
+    absl::StatusOr<bool> more = (*records)->Next(&record);
+    if (!more.ok()) return more.status();
+    if (!*more) return absl::OkStatus();
+    if (!record.role.document) continue;
+    const bool kept = keep(first_ordinal + drops->kept_docs.size());
+    drops->kept_docs.push_back(kept);
+    if (kept) continue;
+    drops->dropped.insert(std::string(record.header.Field("WARC-Record-ID")));
+    for (std::string& id : Related(record.header)) drops->named_by_dropped.insert(std::move(id));
+  }
+}
+
 }  // namespace
 
 absl::Status CopyKeptRecords(const std::string& path, const InputOptions& options,
                              uint64_t first_ordinal,
                              const std::function<bool(uint64_t ordinal)>& keep, OutputFile* out,
                              WarcKeptCounts* counts) {
-  // First pass: the decisions, and the ids of the dropped documents and of
-  // the records they name.
-  std::vector<bool> kept_docs;
-  absl::flat_hash_set<std::string> dropped, named_by_dropped;
-  {
-    auto records = Open(path, options);
-    if (!records.ok()) return records.status();
-    WarcRecord record;
-    for (;;) {
-      absl::StatusOr<bool> more = (*records)->Next(&record);
-      if (!more.ok()) return more.status();
-      if (!*more) break;
-      if (!record.role.document) continue;
-      const bool kept = keep(first_ordinal + kept_docs.size());
-      kept_docs.push_back(kept);
-      if (kept) continue;
-      dropped.insert(std::string(record.header.Field("WARC-Record-ID")));
-      for (std::string& id : Related(record.header)) named_by_dropped.insert(std::move(id));
-    }
+  Drops drops;
+  if (absl::Status found = FindDrops(path, options, first_ordinal, keep, &drops); !found.ok()) {
+    return found;
   }
+  const std::vector<bool>& kept_docs = drops.kept_docs;
+  const auto& dropped = drops.dropped;
+  const auto& named_by_dropped = drops.named_by_dropped;
   auto records = Open(path, options);
   if (!records.ok()) return records.status();
   WarcRecord record;
@@ -109,8 +121,9 @@ absl::Status CopyKeptRecords(const std::string& path, const InputOptions& option
       write = keeps_other(record.header);
     }
     if (!write) continue;
-    for (absl::string_view part : {absl::string_view(record.header.raw),
-                                   absl::string_view(record.block), absl::string_view(record.trailer)}) {
+    for (absl::string_view part :
+         {absl::string_view(record.header.raw), absl::string_view(record.block),
+          absl::string_view(record.trailer)}) {
       if (absl::Status s = out->Append(part); !s.ok()) return s;
     }
     if (absl::Status s = out->EndMember(); !s.ok()) return s;

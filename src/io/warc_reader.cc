@@ -88,8 +88,8 @@ absl::StatusOr<size_t> WarcReader::Fill() {
 absl::StatusOr<bool> WarcReader::NextLine(absl::string_view* line, uint64_t limit) {
   size_t scanned = begin_;
   for (;;) {
-    const char* found = static_cast<const char*>(
-        std::memchr(buffer_.data() + scanned, '\n', end_ - scanned));
+    const char* found =
+        static_cast<const char*>(std::memchr(buffer_.data() + scanned, '\n', end_ - scanned));
     if (found != nullptr) {
       size_t stop = found - buffer_.data();
       size_t length = stop - begin_;
@@ -112,8 +112,8 @@ absl::StatusOr<bool> WarcReader::NextLine(absl::string_view* line, uint64_t limi
           absl::StrCat(Where(), ": the file ends inside a header line"));
     }
   }
-  return absl::ResourceExhaustedError(absl::StrCat(
-      Where(), ": a header line is longer than ", limit, " bytes; this is not a WARC header"));
+  return absl::ResourceExhaustedError(absl::StrCat(Where(), ": a header line is longer than ",
+                                                   limit, " bytes; this is not a WARC header"));
 }
 
 absl::StatusOr<bool> WarcReader::NextHeader(WarcHeader* header) {
@@ -138,9 +138,9 @@ absl::StatusOr<bool> WarcReader::NextHeader(WarcHeader* header) {
   }
   header->offset = record_offset_;
   if (!absl::StartsWith(line, kMagic)) {
-    return absl::InvalidArgumentError(absl::StrCat(
-        Where(), ": expected a WARC record (\"WARC/1.0\" or \"WARC/1.1\"), found \"",
-        absl::CEscape(line.substr(0, 40)), "\""));
+    return absl::InvalidArgumentError(
+        absl::StrCat(Where(), ": expected a WARC record (\"WARC/1.0\" or \"WARC/1.1\"), found \"",
+                     absl::CEscape(line.substr(0, 40)), "\""));
   }
   header->version = std::string(line);
   header->raw.append(raw_line_.data(), raw_line_.size());
@@ -161,8 +161,8 @@ absl::Status WarcReader::ParseHeader(WarcHeader* header) {
     }
     header->raw.append(raw_line_.data(), raw_line_.size());
     if (header->raw.size() > limits_.max_header_bytes) {
-      return absl::ResourceExhaustedError(
-          absl::StrCat(Where(), ": the header is longer than ", limits_.max_header_bytes, " bytes"));
+      return absl::ResourceExhaustedError(absl::StrCat(Where(), ": the header is longer than ",
+                                                       limits_.max_header_bytes, " bytes"));
     }
     if (line.empty()) break;
     if ((line[0] == ' ' || line[0] == '\t') && !header->fields.empty()) {
@@ -196,9 +196,9 @@ absl::Status WarcReader::SkipBlock(const std::function<absl::Status(absl::string
       absl::StatusOr<size_t> n = Fill();
       if (!n.ok()) return n.status();
       if (*n == 0) {
-        return absl::InvalidArgumentError(absl::StrCat(
-            Where(), ": the file ends inside the record's block (", block_left_,
-            " of its Content-Length bytes missing)"));
+        return absl::InvalidArgumentError(
+            absl::StrCat(Where(), ": the file ends inside the record's block (", block_left_,
+                         " of its Content-Length bytes missing)"));
       }
     }
     const size_t take = static_cast<size_t>(std::min<uint64_t>(block_left_, end_ - begin_));
@@ -239,8 +239,9 @@ absl::Status WarcReader::EndOfRecord() {
           absl::StrCat(Where(), ": the file ends before the CRLF CRLF that closes the record"));
     }
     return absl::InvalidArgumentError(
-        absl::StrCat(Where(), ": the record's block is not followed by CRLF CRLF; its "
-                              "Content-Length is wrong or the record is damaged"));
+        absl::StrCat(Where(),
+                     ": the record's block is not followed by CRLF CRLF; its "
+                     "Content-Length is wrong or the record is damaged"));
   }
   return absl::OkStatus();
 }

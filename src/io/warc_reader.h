@@ -33,17 +33,17 @@
 namespace kindred::io {
 
 struct WarcLimits {
-  uint64_t max_line_bytes = 64 << 10;     // one header line
-  uint64_t max_header_bytes = 1 << 20;    // the whole header block
+  uint64_t max_line_bytes = 64 << 10;   // one header line
+  uint64_t max_header_bytes = 1 << 20;  // the whole header block
 };
 
 // The header of one record.
 struct WarcHeader {
-  uint64_t offset = 0;          // decoded offset of the version line
-  std::string raw;              // the header bytes as read: version line
-                                // through the empty line, line endings
-                                // included
-  std::string version;          // "WARC/1.0" or "WARC/1.1"
+  uint64_t offset = 0;  // decoded offset of the version line
+  std::string raw;      // the header bytes as read: version line
+                        // through the empty line, line endings
+                        // included
+  std::string version;  // "WARC/1.0" or "WARC/1.1"
   std::vector<std::pair<std::string, std::string>> fields;  // as read
   uint64_t content_length = 0;
 

@@ -40,6 +40,9 @@ grep -q "\"$BASE/news/breakwater-reprint.html\".*drop" "$WORK/out" || fail "repr
 expect_stderr "HTTP status 404: 1" "404 counted"
 expect_stderr "response of type image/png: 1" "image counted"
 expect_stderr "warcinfo record: 1" "warcinfo counted"
+# wget wrote a WARC-Payload-Digest (SHA-1) for every response: all match.
+zcat "$CRAWL" | grep -aq '^WARC-Payload-Digest: sha1:' || fail "the crawl has no payload digests"
+grep -q "digest" "$WORK/err" && fail "payload digests of the wget crawl reported as mismatched"
 expect_exit 0 "forced format" -- "$KINDRED" sweep --input-format warc -t 0.5 --print decisions - <"$CRAWL"
 grep -q "breakwater-reprint.html\".*drop" "$WORK/out" || fail "standard input: reprint not dropped"
 expect_exit 0 "record ids" -- "$KINDRED" sweep "$CRAWL" -t 0.5 --warc-id record-id --print decisions

@@ -17,15 +17,14 @@
 extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   using kindred::fuzz::Require;
   if (size == 0) return 0;
-  static const char* const kCharsets[] = {"",    "utf-8",       "windows-1252", "sjis",
-                                          "utf-16le", "iso-2022-jp", "gbk",     "no-such"};
+  static const char* const kCharsets[] = {"",         "utf-8",       "windows-1252", "sjis",
+                                          "utf-16le", "iso-2022-jp", "gbk",          "no-such"};
   const char* charset = kCharsets[data[0] & 7];
   const bool html = (data[0] & 8) == 0;
   const absl::string_view payload(reinterpret_cast<const char*>(data + 1), size - 1);
   std::string scratch, text, again;
   uint32_t replaced = 0;
-  absl::Status made =
-      kindred::io::PayloadText(payload, charset, html, &scratch, &text, &replaced);
+  absl::Status made = kindred::io::PayloadText(payload, charset, html, &scratch, &text, &replaced);
   Require(made.ok(), "every payload gives a text");
   icu::UnicodeString decoded;
   Require(kindred::text_internal::DecodeUtf8(text, &decoded) == 0, "the text is UTF-8");
