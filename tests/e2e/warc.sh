@@ -48,6 +48,16 @@ grep -q "breakwater-reprint.html\".*drop" "$WORK/out" || fail "standard input: r
 expect_exit 0 "record ids" -- "$KINDRED" sweep "$CRAWL" -t 0.5 --warc-id record-id --print decisions
 grep -q '"<urn:uuid:' "$WORK/out" || fail "--warc-id record-id: $(head -c 300 "$WORK/out")"
 
+# build and check read crawl archives too; the same URI twice is a duplicate id.
+expect_exit 0 "build from the crawl" -- "$KINDRED" build "$WORK/crawl.kin" "$CRAWL" -t 0.5
+expect_stderr "10 documents" "build: documents"
+expect_exit 0 "check against it" -- "$KINDRED" check "$WORK/crawl.kin" "$CRAWL" -t 0.5
+grep -q '"id":"http://127.0.0.1:8765/news/ferry.html","match":"http://127.0.0.1:8765/news/ferry.html"' \
+  "$WORK/out" || fail "check: the chunked page does not match itself"
+cat "$CRAWL" "$CRAWL" >"$WORK/twice.warc.gz"
+expect_exit 3 "the same URI twice" -- "$KINDRED" sweep "$WORK/twice.warc.gz"
+expect_stderr 'duplicate id "http://127.0.0.1:8765/"' "duplicate URI named"
+
 # --write-kept: every record byte-identical to an input record, one gzip
 # member each, the drop and its request left out, and read back the same.
 for kept in kept.warc.gz kept.warc; do
