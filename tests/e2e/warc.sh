@@ -41,12 +41,27 @@ expect_stderr "HTTP status 404: 1" "404 counted"
 expect_stderr "response of type image/png: 1" "image counted"
 expect_stderr "warcinfo record: 1" "warcinfo counted"
 # wget wrote a WARC-Payload-Digest (SHA-1) for every response: all match.
-zcat "$CRAWL" | grep -aq '^WARC-Payload-Digest: sha1:' || fail "the crawl has no payload digests"
+(($(zcat "$CRAWL" | grep -ac '^WARC-Payload-Digest: sha1:') >= 9)) || fail "the crawl lacks payload digests"
 grep -q "digest" "$WORK/err" && fail "payload digests of the wget crawl reported as mismatched"
 expect_exit 0 "forced format" -- "$KINDRED" sweep --input-format warc -t 0.5 --print decisions - <"$CRAWL"
 grep -q "breakwater-reprint.html\".*drop" "$WORK/out" || fail "standard input: reprint not dropped"
 expect_exit 0 "record ids" -- "$KINDRED" sweep "$CRAWL" -t 0.5 --warc-id record-id --print decisions
 grep -q '"<urn:uuid:' "$WORK/out" || fail "--warc-id record-id: $(head -c 300 "$WORK/out")"
+
+# A directory: its WARC files are read by content, beside text files.
+mkdir -p "$WORK/tree/sub"
+cp "$CRAWL" "$WORK/tree/sub/crawl.bin"
+printf 'A plain text note about the harbour.\n' >"$WORK/tree/note.txt"
+expect_exit 0 "a tree with a WARC file" -- "$KINDRED" sweep "$WORK/tree" -t 0.5 --print decisions
+expect_stderr "11 documents" "tree: documents of the WARC file and the text file"
+"$TEXTS" "$WORK/tree" >"$WORK/tree_texts.jsonl" 2>/dev/null || fail "kindred_texts on a tree"
+grep -q '^{"id":"note.txt"' "$WORK/tree_texts.jsonl" || fail "tree: the text file is missing"
+mkdir -p "$WORK/warc_tree"
+cp "$CRAWL" "$WORK/warc_tree/a.warc.gz"
+expect_exit 0 "a tree of WARC files, kept" -- "$KINDRED" sweep "$WORK/warc_tree" --input-format warc \
+  -t 0.5 -q --write-kept "$WORK/tree_kept.warc"
+"$TEXTS" "$WORK/tree_kept.warc" 2>/dev/null | grep -v 'breakwater-reprint' | wc -l | grep -qx 9 ||
+  fail "tree of WARC files: kept documents"
 
 # build and check read crawl archives too; the same URI twice is a duplicate id.
 expect_exit 0 "build from the crawl" -- "$KINDRED" build "$WORK/crawl.kin" "$CRAWL" -t 0.5
@@ -138,7 +153,7 @@ for bad in wrong_length.warc truncated.warc no_version.warc long_line.warc cut.w
     *) expect_stderr "$WORK/$bad: record at byte $offset" "$bad: file and offset named" ;;
   esac
   [[ -e $WORK/kept_$bad ]] && fail "$bad: a kept file was left"
-  ls -a "$WORK" | grep -q "kept_$bad.tmp" && fail "$bad: a temporary kept file was left"
+  compgen -G "$WORK/.kept_$bad.tmp*" >/dev/null && fail "$bad: a temporary kept file was left"
 done
 
 finish
