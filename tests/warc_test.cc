@@ -153,6 +153,16 @@ TEST_CASE("conversion to UTF-8 counts what does not convert", "[warc]") {
   CHECK(replaced == 1);
 }
 
+TEST_CASE("Content-Type values, present or missing", "[warc]") {
+  std::string media_type, charset;
+  io::ParseContentType(absl::string_view(), &media_type, &charset);  // a missing field
+  CHECK(media_type.empty());
+  CHECK(charset.empty());
+  io::ParseContentType(" Text/HTML ; q=1; Charset = 'koi8-r' ", &media_type, &charset);
+  CHECK(media_type == "text/html");
+  CHECK(charset == "koi8-r");
+}
+
 TEST_CASE("HTTP bodies: chunked, gzip, deflate, br", "[warc]") {
   auto head = io::ParseHttpHead(
       "HTTP/1.1 200 OK\r\nContent-Type: text/html; charset=\"ISO-8859-1\"\r\n"

@@ -90,9 +90,12 @@ absl::Status Unbrotli(absl::string_view in, uint64_t max_bytes, std::string* out
 }  // namespace
 
 void ParseContentType(absl::string_view value, std::string* media_type, std::string* charset) {
-  std::vector<absl::string_view> parts = absl::StrSplit(value, ';');
-  *media_type = absl::AsciiStrToLower(absl::StripAsciiWhitespace(parts[0]));
   charset->clear();
+  media_type->clear();
+  // A missing field is a null view, which StrSplit turns into no parts.
+  std::vector<absl::string_view> parts = absl::StrSplit(value, ';');
+  if (parts.empty()) return;
+  *media_type = absl::AsciiStrToLower(absl::StripAsciiWhitespace(parts[0]));
   for (size_t i = 1; i < parts.size(); ++i) {
     absl::string_view param = absl::StripAsciiWhitespace(parts[i]);
     const size_t eq = param.find('=');
