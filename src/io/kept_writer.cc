@@ -54,7 +54,7 @@ absl::Status KeptPass::OpenOutputs(bool needs_lines, bool needs_text) {
   const KeptOutput& output = request_.output;
   if (needs_lines && output.lines_path.empty()) {
     return absl::InvalidArgumentError(
-        "an input is JSON Lines or WARC, but no output file for its kept documents was given");
+        "an input is JSON Lines, but no output file for its kept lines was given");
   }
   if (needs_text && output.copy_dir.empty() == output.path_list.empty()) {
     return absl::InvalidArgumentError(
@@ -199,6 +199,10 @@ absl::StatusOr<KeptCounts> KeptPass::Run() {
     return absl::InvalidArgumentError(
         "the inputs mix JSON Lines and WARC files: their kept documents cannot share one "
         "--write-kept file; sweep them separately");
+  }
+  if (needs_warc && request_.output.lines_path.empty()) {
+    return absl::InvalidArgumentError(
+        "an input is a WARC file, but no output file (--write-kept) for its kept records was given");
   }
   needs_lines = needs_lines || needs_warc;  // the WARC records go to that file
   absl::Status status = OpenOutputs(needs_lines, needs_text);

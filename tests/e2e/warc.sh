@@ -110,6 +110,10 @@ assert sum(r.count(b"WARC-Type: warcinfo") for r in outputs) == 1
 PY
 done
 
+expect_exit 2 "WARC input without --write-kept" -- "$KINDRED" sweep "$CRAWL" -q --list-kept "$WORK/list.txt"
+expect_stderr "no output file (--write-kept) for its kept records" "WARC kept output named"
+[[ -e $WORK/list.txt ]] && fail "a path list was written for a WARC input"
+
 # Malformed archives: exit 3 naming the file and the record's byte offset,
 # and no kept file left behind.
 $PY - "$WORK" "$CRAWL" <<'PY'
