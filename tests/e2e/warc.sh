@@ -45,6 +45,15 @@ expect_stderr "warcinfo record: 1" "warcinfo counted"
 grep -q "digest" "$WORK/err" && fail "payload digests of the wget crawl reported as mismatched"
 expect_exit 0 "forced format" -- "$KINDRED" sweep --input-format warc -t 0.5 --print decisions - <"$CRAWL"
 grep -q "breakwater-reprint.html\".*drop" "$WORK/out" || fail "standard input: reprint not dropped"
+# The same archive plain, gzip-compressed as a whole, and zstd-compressed.
+gzip -dc "$CRAWL" >"$WORK/plain.warc"
+gzip -c "$WORK/plain.warc" >"$WORK/whole.warc.gz"
+zstd -q -c "$WORK/plain.warc" >"$WORK/crawl.warc.zst"
+"$KINDRED" sweep "$CRAWL" -t 0.5 -q --print decisions >"$WORK/decisions_member.jsonl"
+for variant in plain.warc whole.warc.gz crawl.warc.zst; do
+  expect_exit 0 "$variant" -- "$KINDRED" sweep "$WORK/$variant" -t 0.5 -q --print decisions
+  cmp -s "$WORK/out" "$WORK/decisions_member.jsonl" || fail "$variant: other decisions"
+done
 expect_exit 0 "record ids" -- "$KINDRED" sweep "$CRAWL" -t 0.5 --warc-id record-id --print decisions
 grep -q '"<urn:uuid:' "$WORK/out" || fail "--warc-id record-id: $(head -c 300 "$WORK/out")"
 
