@@ -219,6 +219,23 @@ TEST_CASE("HTML text by the definition", "[warc]") {
   CHECK(Html(std::string("n\0ul", 4)) == "nul");
 }
 
+TEST_CASE("pages that could nest too deeply are not parsed", "[warc]") {
+  std::string deep;
+  for (int i = 0; i < io::kMaxOpenElements + 1; ++i) deep += "<div>";
+  std::string text = "left over";
+  CHECK(io::HtmlToText(deep + "x", &text).code() == absl::StatusCode::kFailedPrecondition);
+  CHECK(text.empty());
+  CHECK(io::OpenElementBound(deep) == io::kMaxOpenElements + 1);
+  // Elements whose end tags may be left out, and void elements, do not count.
+  std::string flat;
+  for (int i = 0; i < 20000; ++i) flat += "<li><p>item<br><img src=x><td>";
+  CHECK(io::OpenElementBound(flat) == 0);
+  CHECK(io::OpenElementBound("<div><span></span><b>x</b></div><div>") == 2);
+  std::string nested;
+  for (int i = 0; i < 5000; ++i) nested += "<div>";
+  CHECK(Html(nested + "ok") == "ok");  // deep, but under the guard: parsed
+}
+
 TEST_CASE("WARC records become documents with their URIs as ids", "[warc]") {
   TempDir dir;
   std::string warc =

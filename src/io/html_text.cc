@@ -3,12 +3,14 @@
 
 #include <gumbo.h>
 
+#include <algorithm>
 #include <string>
 #include <utility>
 #include <vector>
 
 #include "absl/container/flat_hash_set.h"
 #include "absl/strings/ascii.h"
+#include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
 
 namespace kindred::io {
@@ -103,8 +105,38 @@ void Walk(const GumboNode* root, std::string* out) {
 
 }  // namespace
 
+int OpenElementBound(absl::string_view html) {
+  static const absl::flat_hash_set<absl::string_view>* kNeverDeep =
+      new absl::flat_hash_set<absl::string_view>(
+          {"area",     "base",    "br",     "col",   "embed",  "hr",       "img",    "input",
+           "link",     "meta",    "source", "track", "wbr",    "param",    "keygen", "image",
+           "p",        "li",      "dt",     "dd",    "option", "optgroup", "tr",     "td",
+           "th",       "thead",   "tbody",  "tfoot", "rb",     "rt",       "rp",     "rtc",
+           "colgroup", "caption", "html",   "head",  "body"});
+  int open = 0, most = 0;
+  size_t i = 0;
+  while ((i = html.find('<', i)) != absl::string_view::npos) {
+    ++i;
+    const bool end = i < html.size() && html[i] == '/';
+    if (end) ++i;
+    size_t j = i;
+    while (j < html.size() && j - i < 16 && absl::ascii_isalnum(html[j])) ++j;
+    if (j == i) continue;
+    const std::string name = absl::AsciiStrToLower(html.substr(i, j - i));
+    if (kNeverDeep->contains(name)) continue;
+    open = end ? std::max(0, open - 1) : open + 1;
+    most = std::max(most, open);
+  }
+  return most;
+}
+
 absl::Status HtmlToText(absl::string_view html, std::string* out) {
   out->clear();
+  if (OpenElementBound(html) > kMaxOpenElements) {
+    return absl::FailedPreconditionError(
+        absl::StrCat("its tags could nest more than ", kMaxOpenElements,
+                     " elements deep; not parsed (a parser-cost guard)"));
+  }
   GumboOptions options = kGumboDefaultOptions;
   options.max_errors = 0;  // errors are not reported, only parsed around
   GumboOutput* output = gumbo_parse_with_options(&options, html.data(), html.size());

@@ -37,9 +37,22 @@ inline constexpr absl::string_view kPhrasingElements =
 inline constexpr absl::string_view kSkippedElements =
     "head script style noscript template svg math";
 
+// A guard on the parser's cost: the HTML5 algorithm scans the stack of open
+// elements for many tags, so a page of N nested elements costs time in
+// N squared (200,000 nested <div> take minutes). A page whose tags could
+// open more than this many elements at once is not parsed.
+inline constexpr int kMaxOpenElements = 10000;
+
+// The most elements the tags of `html` could hold open at once: start tags
+// count one, end tags take one away, except the void elements and those
+// whose end tag may be left out (p, li, td, ...), which never nest deeply.
+// Linear, and never less than the parser's depth in practice.
+int OpenElementBound(absl::string_view html);
+
 // Appends the text of `html` (UTF-8; ill-formed sequences become U+FFFD as
-// the parser reads them) to *out, cleared first. Internal only when the
-// parser fails to allocate.
+// the parser reads them) to *out, cleared first. FailedPrecondition, and an
+// empty text, when OpenElementBound(html) > kMaxOpenElements; Internal only
+// when the parser fails to allocate.
 absl::Status HtmlToText(absl::string_view html, std::string* out);
 
 }  // namespace kindred::io

@@ -192,6 +192,11 @@ absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc
   absl::Status made =
       PayloadText(payload, declared, record.role.payload == RecordRole::Payload::kHtml, &utf8_,
                   &doc->text, &doc->invalid_utf8);
+  if (made.code() == absl::StatusCode::kFailedPrecondition) {  // the nesting guard
+    Count("HTML nested too deeply to parse (empty text)");
+    doc->text.clear();
+    return absl::OkStatus();
+  }
   if (!made.ok())
     return absl::Status(made.code(), absl::StrCat(reader_.Where(), ": ", made.message()));
   return absl::OkStatus();
