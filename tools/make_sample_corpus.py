@@ -797,10 +797,17 @@ def clear(out):
         return
     known = {"archive", "submissions", "archive.jsonl", "labels.tsv",
              "planted.tsv", "submissions_expected.tsv", "README.md"}
-    strangers = [p.name for p in out.iterdir() if p.name not in known]
+    kept = {"crawl"}  # the crawl archive of tools/make_sample_crawl.py stays
+    strangers = [p.name for p in out.iterdir() if p.name not in known | kept]
     if strangers:
         sys.exit(f"{out}: not a sample corpus (found {strangers[0]})")
-    shutil.rmtree(out)
+    for p in out.iterdir():
+        if p.name in kept:
+            continue
+        if p.is_dir():
+            shutil.rmtree(p)
+        else:
+            p.unlink()
 
 
 def main():
@@ -812,7 +819,7 @@ def main():
     args = parser.parse_args()
     corpus, sent, matches = build(random.Random(SEED))
     clear(args.out)
-    args.out.mkdir(parents=True)
+    args.out.mkdir(parents=True, exist_ok=True)
     write_corpus(args.out, corpus, sent, matches)
     print(f"wrote {len(corpus.docs)} archive documents, {len(sent)} "
           f"submissions, {len(corpus.labels)} labelled pairs to {args.out}")

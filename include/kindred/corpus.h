@@ -20,6 +20,17 @@
 // allowed) or zstd (several frames allowed); compression is detected from the
 // first bytes, never from the name, and decompressed as a stream.
 //
+// WARC inputs: a file (or standard input, or a file of a tree) whose
+// decoded bytes start with "WARC/1." is a WARC 1.0 or 1.1 crawl archive
+// (ISO 28500), plain, gzip-compressed record by record or as a whole, or
+// zstd-compressed; InputFormat::kWarc forces it. Its documents are
+// response, resource and conversion records with HTML or plain text
+// payloads, turned into UTF-8 text (HTML by the definition of the README,
+// "Text of HTML pages"); ids are their WARC-Target-URI (or WARC-Record-ID,
+// WarcOptions). Other records are counted (RecordCounts) and skipped. See
+// src/io/warc_documents.h for the exact rules. Errors name the file and
+// the record's byte offset in the decoded stream.
+//
 // With InputFormat::kAuto a directory is a tree of text documents; a file
 // whose name, after stripping ".gz", ".zst" or ".zstd", ends in ".jsonl",
 // ".ndjson" or ".json" is JSON Lines; any other file is one text document.
@@ -55,6 +66,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <functional>
+#include <map>
 #include <memory>
 #include <string>
 #include <vector>
@@ -68,10 +80,22 @@ enum class InputFormat : uint8_t {
   kAuto,       // decided per input, as described above
   kText,       // a file (or each file of a tree) is one document
   kJsonLines,  // a file (or each file of a tree) holds one document per line
+  kWarc,       // a file (or each file of a tree) is a WARC crawl archive
 };
 
-// "auto", "text", "jsonl".
+// "auto", "text", "jsonl", "warc".
 const char* InputFormatName(InputFormat format);
+
+// How WARC crawl archives are read (see "WARC inputs" above).
+struct WarcOptions {
+  // Ids from WARC-Record-ID instead of WARC-Target-URI.
+  bool id_from_record_id = false;
+  // HTTP responses of any status are documents, not only 2xx.
+  bool any_status = false;
+  // A payload digest mismatch or a record over the size limit is an error
+  // (InvalidArgument / ResourceExhausted) instead of being counted.
+  bool strict = false;
+};
 
 struct InputOptions {
   // Format of every input; kAuto decides per input.
@@ -98,6 +122,7 @@ struct InputOptions {
   // pass (WriteKept) can read them again. The caller chooses the path and
   // removes the file when done.
   std::string stdin_copy_path;
+  WarcOptions warc;
 };
 
 // DocumentSource::offset when the line cannot be found again by its offset.
@@ -207,6 +232,10 @@ class CorpusReader {
   // thread while another reads.
   uint64_t raw_bytes_read() const;
   uint64_t raw_bytes_total() const;
+  // WARC inputs: the records that were not documents, by reason ("warcinfo
+  // record", "HTTP status 404", ...), and events such as payload digest
+  // mismatches, counted so far, sorted by reason.
+  std::map<std::string, uint64_t> RecordCounts() const;
 
  private:
   class Impl;

@@ -6,6 +6,7 @@
 #include "absl/cleanup/cleanup.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "cli/record_counts.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
 #include "cli/index_options.h"
@@ -167,6 +168,7 @@ int RunBuild(const BuildFlags& flags) {
                  static_cast<unsigned long long>(stats.empty_documents),
                  settings->signature.ToString().c_str(),
                  BandsByRows(settings->bands, settings->rows).c_str());
+    PrintRecordCounts(**reader);
     PrintThroughput(stats.documents, stats.bytes, progress.Elapsed());
   }
   return kExitOk;

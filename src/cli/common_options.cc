@@ -11,7 +11,7 @@ namespace kindred::cli {
 void AddInputOptions(CLI::App* command, InputFlags* flags) {
   command
       ->add_option("--input-format", flags->format,
-                   "auto (by content and name), text (a file is one document) or jsonl")
+                   "auto (by content and name), text (a file is one document), jsonl or warc")
       ->default_str("auto")
       ->group("Input");
   command
@@ -32,6 +32,21 @@ void AddInputOptions(CLI::App* command, InputFlags* flags) {
                    "largest decompressed size of one compressed input, a guard against "
                    "decompression bombs; 0 = no limit")
       ->default_str("4G")
+      ->group("Input");
+  command
+      ->add_option("--warc-id", flags->warc_id,
+                   "WARC inputs: document ids from the record's uri (WARC-Target-URI) or "
+                   "record-id (WARC-Record-ID)")
+      ->default_str("uri")
+      ->group("Input");
+  command
+      ->add_flag("--warc-any-status", flags->warc_any_status,
+                 "WARC inputs: HTTP responses of any status are documents, not only 2xx")
+      ->group("Input");
+  command
+      ->add_flag("--warc-strict", flags->warc_strict,
+                 "WARC inputs: a payload digest mismatch or a record over --max-document-size "
+                 "is an error, not counted and skipped")
       ->group("Input");
 }
 
@@ -58,10 +73,20 @@ absl::StatusOr<InputOptions> ToInputOptions(const InputFlags& flags) {
     options.format = InputFormat::kText;
   } else if (flags.format == "jsonl") {
     options.format = InputFormat::kJsonLines;
+  } else if (flags.format == "warc") {
+    options.format = InputFormat::kWarc;
+  } else {
+    return absl::InvalidArgumentError(absl::StrCat(
+        "--input-format: expected auto, text, jsonl or warc, not \"", flags.format, "\""));
+  }
+  if (flags.warc_id == "uri" || flags.warc_id == "record-id") {
+    options.warc.id_from_record_id = flags.warc_id == "record-id";
   } else {
     return absl::InvalidArgumentError(
-        absl::StrCat("--input-format: expected auto, text or jsonl, not \"", flags.format, "\""));
+        absl::StrCat("--warc-id: expected uri or record-id, not \"", flags.warc_id, "\""));
   }
+  options.warc.any_status = flags.warc_any_status;
+  options.warc.strict = flags.warc_strict;
   options.id_field = flags.id_field;
   options.text_field = flags.text_field;
   options.priority_field = flags.priority_field;

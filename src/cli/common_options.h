@@ -22,6 +22,9 @@ struct InputFlags {
   std::string priority_field;
   std::string max_document_size = "64M";
   std::string max_decompressed_size = "4G";
+  std::string warc_id = "uri";
+  bool warc_any_status = false;
+  bool warc_strict = false;
 };
 void AddInputOptions(CLI::App* command, InputFlags* flags);
 // --priority-field: only for sweep (read by --keep priority) and for the

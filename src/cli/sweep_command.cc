@@ -19,6 +19,7 @@
 #include "kindred/index.h"
 #include "kindred/index_match.h"
 #include "kindred/kept_writer.h"
+#include "cli/record_counts.h"
 #include "kindred/records.h"
 #include "kindred/shingles.h"
 #include "kindred/sweep.h"
@@ -347,6 +348,7 @@ int RunSweepCommand(const SweepFlags& flags) {
   }
   if (!flags.general.quiet) {
     PrintSummary(*result, options);
+    PrintRecordCounts(**reader);
     PrintThroughput(result->stats.sign.documents, result->stats.sign.bytes, progress.Elapsed());
   }
   if (flags.general.verbose) {
@@ -404,8 +406,8 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
   AddFormatOption(command, &flags->format, {"jsonl", "tsv", "csv"});
   command
       ->add_option("--write-kept", flags->write_kept,
-                   "JSON Lines inputs: write the kept lines, verbatim, to this file "
-                   "(.gz/.zst compress)")
+                   "JSON Lines inputs: write the kept lines, verbatim, to this file; WARC inputs: "
+                   "the kept records, byte for byte, to this WARC file (.gz/.zst compress)")
       ->group("Output");
   command
       ->add_option("--copy-kept", flags->copy_kept,

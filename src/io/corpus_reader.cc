@@ -12,6 +12,7 @@
 #include "io/byte_stream.h"
 #include "io/json_line.h"
 #include "io/tree_walker.h"
+#include "io/warc_documents.h"
 #include "kindred/corpus.h"
 
 namespace kindred {
@@ -22,6 +23,8 @@ const char* InputFormatName(InputFormat format) {
       return "text";
     case InputFormat::kJsonLines:
       return "jsonl";
+    case InputFormat::kWarc:
+      return "warc";
     default:
       return "auto";
   }
@@ -111,6 +114,16 @@ class CorpusReader::Impl {
   absl::Status ReadTextDocument(io::BufferedInput* input, Document* doc);
   absl::StatusOr<std::unique_ptr<io::BufferedInput>> OpenBuffered(
       const std::string& path, io::Compression* compression = nullptr);
+  // Opens `path` decoded; *warc says whether it is to be read as WARC: by
+  // content with kAuto (when `sniff`), always with kWarc.
+  absl::StatusOr<std::unique_ptr<io::ByteStream>> OpenSniffed(const std::string& path,
+                                                              InputFormat format, bool* warc,
+                                                              io::Compression* compression);
+  absl::StatusOr<bool> NextWarcDocument(Document* doc);
+  bool Sniffs(InputFormat format) const {
+    return format == InputFormat::kWarc ||
+           (options_.format == InputFormat::kAuto && format != InputFormat::kJsonLines);
+  }
 
   io::JsonLineParser json_;
   size_t current_ = 0;                        // input being read
@@ -121,7 +134,48 @@ class CorpusReader::Impl {
   std::string lines_display_;                 // their name in messages
   bool lines_offsets_ = false;                // their line offsets find lines again
   absl::Status failure_;
+  std::unique_ptr<io::WarcDocuments> warc_;  // set while reading a WARC file
+  std::string warc_path_;                    // its path in DocumentSource
+  io::WarcRecord record_;                    // reused for every record
+
+ public:
+  std::map<std::string, uint64_t> record_counts_;
 };
+
+absl::StatusOr<std::unique_ptr<io::ByteStream>> CorpusReader::Impl::OpenSniffed(
+    const std::string& path, InputFormat format, bool* warc, io::Compression* compression) {
+  io::DecodeOptions decode;
+  decode.max_decompressed_bytes = options_.max_decompressed_bytes;
+  decode.raw_bytes = &raw_bytes_;
+  if (path == "-") decode.copy_path = options_.stdin_copy_path;
+  auto stream = io::OpenDecoded(path, decode, compression);
+  if (!stream.ok()) return stream.status();
+  *warc = format == InputFormat::kWarc;
+  if (!*warc && Sniffs(format)) {
+    absl::StatusOr<bool> sniffed = io::SniffWarc(&*stream);
+    if (!sniffed.ok()) return sniffed.status();
+    *warc = *sniffed;
+  }
+  if (*warc) {
+    warc_ = std::make_unique<io::WarcDocuments>(std::move(*stream), io::DisplayName(path), options_,
+                                                &record_counts_);
+    warc_path_ = path;
+    return std::unique_ptr<io::ByteStream>();
+  }
+  return std::move(*stream);
+}
+
+absl::StatusOr<bool> CorpusReader::Impl::NextWarcDocument(Document* doc) {
+  for (;;) {
+    absl::StatusOr<bool> more = warc_->Next(&record_);
+    if (!more.ok() || !*more) return more;
+    if (!record_.role.document || !TakeNext()) continue;
+    if (absl::Status made = warc_->MakeDocument(record_, doc); !made.ok()) return made;
+    doc->source.input = static_cast<uint32_t>(current_);
+    doc->source.path = warc_path_;
+    return true;
+  }
+}
 
 absl::StatusOr<std::unique_ptr<io::BufferedInput>> CorpusReader::Impl::OpenBuffered(
     const std::string& path, io::Compression* compression) {
@@ -184,18 +238,34 @@ absl::StatusOr<bool> CorpusReader::Impl::NextLineDocument(Document* doc) {
 
 absl::StatusOr<bool> CorpusReader::Impl::NextTreeDocument(Document* doc) {
   std::string relative, full;
+  std::unique_ptr<io::ByteStream> sniffed;
   do {
     absl::StatusOr<bool> more = tree_->Next(&relative, &full);
     if (!more.ok() || !*more) return more;
-    if (resolved_[current_].format == InputFormat::kJsonLines) {
+    const InputFormat format = resolved_[current_].format;
+    if (format == InputFormat::kJsonLines) {
       absl::Status opened = OpenLines(full, full, false);
       if (!opened.ok()) return opened;
       return false;  // the caller reads the lines
     }
+    if (Sniffs(format)) {
+      bool warc = false;
+      auto stream = OpenSniffed(full, format, &warc, nullptr);
+      if (!stream.ok()) return stream.status();
+      if (warc) return false;  // the caller reads the records
+      sniffed = std::move(*stream);
+    }
   } while (!TakeNext());
-  auto input = OpenBuffered(full);
-  if (!input.ok()) return input.status();
-  absl::Status read = ReadTextDocument(input->get(), doc);
+  std::unique_ptr<io::BufferedInput> input;
+  if (sniffed != nullptr) {
+    input = std::make_unique<io::BufferedInput>(std::move(sniffed), io::DisplayName(full),
+                                                options_.max_document_bytes);
+  } else {
+    auto opened = OpenBuffered(full);
+    if (!opened.ok()) return opened.status();
+    input = std::move(*opened);
+  }
+  absl::Status read = ReadTextDocument(input.get(), doc);
   if (!read.ok()) return read;
   doc->id = std::move(relative);
   doc->source.input = static_cast<uint32_t>(current_);
@@ -216,12 +286,30 @@ absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
     if (!opened.ok()) return opened;
     return false;
   }
-  if (input.format == InputFormat::kText && !TakeNext()) {
+  const bool sniffs = Sniffs(input.format);
+  if (input.format == InputFormat::kText && !sniffs && !TakeNext()) {
     ++current_;
     return false;
   }
   io::Compression compression = io::Compression::kNone;
-  auto opened = OpenBuffered(PathOf(input), &compression);
+  absl::StatusOr<std::unique_ptr<io::BufferedInput>> opened;
+  if (sniffs) {
+    bool warc = false;
+    auto stream = OpenSniffed(PathOf(input), input.format, &warc, &compression);
+    if (!stream.ok()) return stream.status();
+    if (warc) {
+      input.format = InputFormat::kWarc;
+      return false;  // the caller reads the records
+    }
+    opened = std::make_unique<io::BufferedInput>(
+        std::move(*stream), io::DisplayName(PathOf(input)), options_.max_document_bytes);
+    if (input.format == InputFormat::kText && !TakeNext()) {
+      ++current_;
+      return false;
+    }
+  } else {
+    opened = OpenBuffered(PathOf(input), &compression);
+  }
   if (!opened.ok()) return opened.status();
   if (input.format == InputFormat::kAuto) {
     absl::StatusOr<int> first = (*opened)->PeekFirstNonBlank();
@@ -252,6 +340,13 @@ absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
 
 absl::StatusOr<bool> CorpusReader::Impl::Next(Document* doc) {
   while (current_ < resolved_.size()) {
+    if (warc_ != nullptr) {
+      absl::StatusOr<bool> more = NextWarcDocument(doc);
+      if (!more.ok() || *more) return more;
+      warc_.reset();
+      if (!tree_.has_value()) ++current_;
+      continue;
+    }
     if (lines_ != nullptr) {
       absl::StatusOr<bool> more = NextLineDocument(doc);
       if (!more.ok() || *more) return more;
@@ -262,7 +357,7 @@ absl::StatusOr<bool> CorpusReader::Impl::Next(Document* doc) {
     if (tree_.has_value()) {
       absl::StatusOr<bool> more = NextTreeDocument(doc);
       if (!more.ok() || *more) return more;
-      if (lines_ == nullptr) {
+      if (lines_ == nullptr && warc_ == nullptr) {
         tree_.reset();
         ++current_;
       }
@@ -393,5 +488,8 @@ uint64_t CorpusReader::raw_bytes_read() const {
   return impl_->raw_bytes_.load(std::memory_order_relaxed);
 }
 uint64_t CorpusReader::raw_bytes_total() const { return impl_->raw_total_; }
+std::map<std::string, uint64_t> CorpusReader::RecordCounts() const {
+  return impl_->record_counts_;
+}
 
 }  // namespace kindred

@@ -12,6 +12,8 @@
 #include "io/output_file.h"
 #include "io/output_guard.h"
 #include "io/tree_walker.h"
+#include "io/warc_kept.h"
+#include "io/warc_reader.h"
 
 namespace kindred {
 namespace {
@@ -35,6 +37,9 @@ class KeptPass {
   absl::Status OpenOutputs(bool needs_lines, bool needs_text);
   absl::Status CopyLines(const std::string& path);
   absl::Status KeepText(const std::string& relative, const std::string& path);
+  absl::Status CopyWarc(const std::string& path);
+  // A file of a tree read by content: WARC files need the kept records' file.
+  absl::StatusOr<bool> IsWarcFile(const std::string& path) const;
   absl::Status ReadInput(const ResolvedInput& input);
   absl::Status CommitOutputs();
 
@@ -117,7 +122,30 @@ absl::Status KeptPass::KeepText(const std::string& relative, const std::string& 
   return written;
 }
 
+absl::Status KeptPass::CopyWarc(const std::string& path) {
+  if (lines_ == nullptr) {
+    return absl::InvalidArgumentError(absl::StrCat(
+        path, ": a WARC file inside a directory read by content; give --input-format warc to "
+              "write its kept records"));
+  }
+  io::WarcKeptCounts counts;
+  absl::Status copied = io::CopyKeptRecords(path, request_.options, counts_.documents,
+                                            request_.keep, lines_.get(), &counts);
+  counts_.documents += counts.documents;
+  counts_.kept += counts.kept;
+  return copied;
+}
+
+absl::StatusOr<bool> KeptPass::IsWarcFile(const std::string& path) const {
+  if (request_.options.format != InputFormat::kAuto) return false;
+  io::DecodeOptions decode;
+  auto stream = io::OpenDecoded(path, decode);
+  if (!stream.ok()) return stream.status();
+  return io::SniffWarc(&*stream);
+}
+
 absl::Status KeptPass::ReadInput(const ResolvedInput& input) {
+  if (input.format == InputFormat::kWarc && !input.is_directory) return CopyWarc(input.read_path);
   if (input.is_directory) {
     io::TreeWalker walker(input.read_path);
     std::string relative, full;
@@ -125,8 +153,11 @@ absl::Status KeptPass::ReadInput(const ResolvedInput& input) {
       absl::StatusOr<bool> more = walker.Next(&relative, &full);
       if (!more.ok()) return more.status();
       if (!*more) return absl::OkStatus();
-      absl::Status done =
-          input.format == InputFormat::kJsonLines ? CopyLines(full) : KeepText(relative, full);
+      absl::StatusOr<bool> warc = input.format == InputFormat::kWarc ? true : IsWarcFile(full);
+      if (!warc.ok()) return warc.status();
+      absl::Status done = *warc ? CopyWarc(full)
+                          : input.format == InputFormat::kJsonLines ? CopyLines(full)
+                                                                    : KeepText(relative, full);
       if (!done.ok()) return done;
     }
   }
@@ -148,7 +179,7 @@ absl::Status KeptPass::CommitOutputs() {
 }
 
 absl::StatusOr<KeptCounts> KeptPass::Run() {
-  bool needs_lines = false, needs_text = false;
+  bool needs_lines = false, needs_text = false, needs_warc = false;
   for (const ResolvedInput& input : request_.inputs) {
     if (input.format == InputFormat::kAuto) {
       return absl::FailedPreconditionError(
@@ -158,8 +189,22 @@ absl::StatusOr<KeptCounts> KeptPass::Run() {
       return absl::FailedPreconditionError(
           "standard input was not copied while it was read, so it cannot be read again");
     }
+    if (input.format == InputFormat::kWarc) {
+      needs_warc = true;
+      continue;
+    }
     (input.format == InputFormat::kJsonLines ? needs_lines : needs_text) = true;
   }
+  if (needs_warc && needs_lines) {
+    return absl::InvalidArgumentError(
+        "the inputs mix JSON Lines and WARC files: their kept documents cannot share one "
+        "--write-kept file; sweep them separately");
+  }
+  if (needs_warc && request_.output.lines_path.empty()) {
+    return absl::InvalidArgumentError(
+        "an input is a WARC file, but no output file (--write-kept) for its kept records was given");
+  }
+  needs_lines = needs_lines || needs_warc;  // the WARC records go to that file
   absl::Status status = OpenOutputs(needs_lines, needs_text);
   for (size_t i = 0; status.ok() && i < request_.inputs.size(); ++i) {
     status = ReadInput(request_.inputs[i]);

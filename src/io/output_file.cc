@@ -177,6 +177,7 @@ absl::Status OutputFile::Encode(absl::string_view bytes, bool finish) {
 }
 
 absl::Status OutputFile::Append(absl::string_view bytes) {
+  if (!bytes.empty()) member_ended_ = false;
   if (encoder_->kind == Encoder::Kind::kNone || bytes.size() >= 4096) return Encode(bytes, false);
   // Small appends to a compressor are gathered first.
   if (pending_.size() + bytes.size() > kChunkBytes) {
@@ -189,10 +190,25 @@ absl::Status OutputFile::Append(absl::string_view bytes) {
   return absl::OkStatus();
 }
 
+absl::Status OutputFile::EndMember() {
+  if (encoder_->kind == Encoder::Kind::kNone) return absl::OkStatus();
+  std::string gathered = std::move(pending_);
+  pending_.clear();
+  absl::Status encoded = Encode(gathered, true);
+  if (!encoded.ok()) return encoded;
+  if (encoder_->kind == Encoder::Kind::kGzip && deflateReset(&encoder_->z) != Z_OK) {
+    return absl::InternalError("gzip compression failed");
+  }
+  member_ended_ = true;
+  return absl::OkStatus();
+}
+
 absl::Status OutputFile::Commit() {
   absl::Status status;
   if (encoder_->kind == Encoder::Kind::kNone) {
     status = Flush();
+  } else if (member_ended_ && pending_.empty()) {
+    status = absl::OkStatus();  // no empty member at the end
   } else {
     std::string gathered = std::move(pending_);
     pending_.clear();

@@ -30,6 +30,9 @@ class OutputFile {
 
   // Appends bytes (compressed on the way). Call before Commit.
   absl::Status Append(absl::string_view bytes);
+  // Ends the current gzip member or zstd frame; the next Append starts a
+  // new one (nothing for an uncompressed file). Call before Commit.
+  absl::Status EndMember();
   // Ends the stream, fsyncs, renames onto the final path and fsyncs the
   // directory. Call once.
   absl::Status Commit();
@@ -46,6 +49,7 @@ class OutputFile {
   std::unique_ptr<Encoder> encoder_;
   std::string pending_;  // bytes ready for the file
   bool committed_ = false;
+  bool member_ended_ = false;  // EndMember and no byte appended since
 };
 
 // A directory tree of file copies, built beside its final path.

@@ -88,3 +88,30 @@ seed index two_segments 003 <"$work/two.kin"
 seed index char_classic 001 <"$work/char.kin"
 head -c 200 "$work/two.kin" | seed index truncated 001
 echo "seeds written under $seeds"
+
+# --- warc: control byte (bit 0 record ids, bit 1 any status, bit 2 4 KiB limit, bit 3 strict), then the file ---
+warc_record() {  # TYPE URI CONTENT_TYPE BLOCK [EXTRA_HEADER_LINE]
+  printf 'WARC/1.1\r\nWARC-Type: %s\r\nWARC-Target-URI: %s\r\nWARC-Record-ID: <urn:uuid:%s>\r\n%sContent-Type: %s\r\nContent-Length: %d\r\n\r\n%s\r\n\r\n' \
+    "$1" "$2" "$(printf '%s' "$2" | md5sum | cut -c1-12)" "${5:-}" "$3" "${#4}" "$4"
+}
+http_page=$'HTTP/1.1 200 OK\r\nContent-Type: text/html; charset=utf-8\r\n\r\n<p>The harbour <b>board</b> met.</p>'
+chunked=$'HTTP/1.1 200 OK\r\nContent-Type: text/html\r\nTransfer-Encoding: chunked\r\n\r\n5\r\n<p>ab\r\n3\r\ncd.\r\n0\r\n\r\n'
+{ warc_record warcinfo "" application/warc-fields $'software: seed\r\n'
+  warc_record request http://a.test/ 'application/http; msgtype=request' $'GET / HTTP/1.1\r\n\r\n'
+  warc_record response http://a.test/ 'application/http; msgtype=response' "$http_page"
+  warc_record response http://a.test/c 'application/http; msgtype=response' "$chunked" $'WARC-Payload-Digest: sha1:AAAA\r\n'
+  warc_record resource '<http://a.test/r>' 'text/plain; charset=latin1' $'caf\xe9 au lait'
+  warc_record conversion http://a.test/ text/plain 'converted text'
+} | seed warc records 000
+warc_record response http://a.test/404 'application/http; msgtype=response' \
+  $'HTTP/1.1 404 Not Found\r\nContent-Type: text/html\r\n\r\ngone' | seed warc status 002
+printf 'not a warc file\n' | seed warc not_warc 000
+warc_record resource http://a.test/ text/plain 'short' | head -c 60 | seed warc truncated 010
+
+# --- html: control byte (declared charset 0-7, bit 3 plain text), then the payload ---
+printf '<!DOCTYPE html><html><head><title>t</title><style>s</style></head><body><p>one<p>two<br>three<div>four</div><table><td>5</table>' | seed html page 000
+printf '<meta charset="shift_jis"><p>\x82\xa0\x82\xa2</p>' | seed html meta_sjis 000
+printf '<p>caf\xe9 \x93q\x94</p>' | seed html cp1252 002
+printf '<svg><text>x</text></svg><math><mi>y</mi></math><template>z</template><noscript>n</noscript>ok &amp; &eacute &#0; \0 <![CDATA[c]]>' | seed html hostile 001
+printf '\xff\xfe<\0p\0>\0h\0i\0' | seed html bom_utf16 000
+printf 'plain text \xe6\xb8\xaf' | seed html plain 011

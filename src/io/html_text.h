@@ -1,0 +1,60 @@
+// Internal: the text of an HTML document, by this definition (also in the
+// README, "Text of HTML pages"):
+//
+//   The document is parsed by the HTML5 (WHATWG) parsing algorithm. Its
+//   text is the concatenation, in document order, of the text nodes of the
+//   resulting tree (character references decoded), leaving out everything
+//   inside the elements head, script, style, noscript, template, svg and
+//   math (whatever their namespace) and comments. Every element that is not
+//   phrasing content adds a line break ("\n") before and after its
+//   contents; br adds one line break. The phrasing elements are those of
+//   kPhrasingElements below (the HTML standard's list of phrasing content,
+//   plus the obsolete inline elements and the parts of ruby), and every
+//   element whose name holds a '-' (a custom element); all other elements,
+//   known or not, are not phrasing.
+//
+// The reference implementation parses with Gumbo, a packaged HTML5 parser.
+//
+// Thread-safety: plain functions; safe to call from many threads at once.
+#ifndef KINDRED_IO_HTML_TEXT_H_
+#define KINDRED_IO_HTML_TEXT_H_
+
+#include <string>
+
+#include "absl/status/status.h"
+#include "absl/strings/string_view.h"
+
+namespace kindred::io {
+
+// Space-separated names of the phrasing elements of the definition.
+inline constexpr absl::string_view kPhrasingElements =
+    "a abbr area audio b bdi bdo br button canvas cite code data datalist del dfn em embed i "
+    "iframe img input ins kbd label link map mark math meta meter noscript object output picture "
+    "progress q ruby s samp script select slot small span strong sub sup svg template textarea "
+    "time u var video wbr acronym big blink font nobr strike tt rb rp rt rtc";
+
+// Space-separated names of the elements whose contents are left out.
+inline constexpr absl::string_view kSkippedElements =
+    "head script style noscript template svg math";
+
+// A guard on the parser's cost: the HTML5 algorithm scans the stack of open
+// elements for many tags, so a page of N nested elements costs time in
+// N squared (200,000 nested <div> take minutes). A page whose tags could
+// open more than this many elements at once is not parsed.
+inline constexpr int kMaxOpenElements = 10000;
+
+// The most elements the tags of `html` could hold open at once: start tags
+// count one, end tags take one away, except the void elements and those
+// whose end tag may be left out (p, li, td, ...), which never nest deeply.
+// Linear, and never less than the parser's depth in practice.
+int OpenElementBound(absl::string_view html);
+
+// Appends the text of `html` (UTF-8; ill-formed sequences become U+FFFD as
+// the parser reads them) to *out, cleared first. FailedPrecondition, and an
+// empty text, when OpenElementBound(html) > kMaxOpenElements; Internal only
+// when the parser fails to allocate.
+absl::Status HtmlToText(absl::string_view html, std::string* out);
+
+}  // namespace kindred::io
+
+#endif  // KINDRED_IO_HTML_TEXT_H_

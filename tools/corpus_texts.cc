@@ -1,0 +1,137 @@
+// kindred_texts: prints documents as kindred reads them, for tests and
+// benchmarks of crawl archive reading.
+//
+//   kindred_texts INPUT...          JSON Lines {"id": ..., "text": ...} of every
+//                                   document of the inputs (any format kindred
+//                                   reads; WARC records become their texts)
+//   kindred_texts --html FILE...    the text of each HTML file (charset from a
+//                                   BOM or <meta>, else UTF-8), one JSON line
+//                                   {"id": FILE, "text": ...} each
+//   kindred_texts --html-speed FILE [ROUNDS]
+//                                   HTML to text of the pages of FILE (a
+//                                   JSON Lines file of {"html": ...}) in
+//                                   memory: prints MB/s of HTML
+#include <chrono>
+#include <cstdio>
+#include <fstream>
+#include <iostream>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include "io/warc_documents.h"
+#include "kindred/corpus.h"
+#include "simdjson.h"
+
+namespace {
+
+void PrintJsonString(const std::string& s) {
+  std::string out = "\"";
+  for (unsigned char c : s) {
+    if (c == '"' || c == '\\') {
+      out += '\\';
+      out += static_cast<char>(c);
+    } else if (c < 0x20) {
+      char buffer[8];
+      std::snprintf(buffer, sizeof(buffer), "\\u%04x", c);
+      out += buffer;
+    } else {
+      out += static_cast<char>(c);
+    }
+  }
+  out += '"';
+  std::fwrite(out.data(), 1, out.size(), stdout);
+}
+
+void PrintDocument(const std::string& id, const std::string& text) {
+  std::fputs("{\"id\":", stdout);
+  PrintJsonString(id);
+  std::fputs(",\"text\":", stdout);
+  PrintJsonString(text);
+  std::fputs("}\n", stdout);
+}
+
+std::string ReadFile(const char* path) {
+  std::ifstream in(path, std::ios::binary);
+  std::stringstream buffer;
+  buffer << in.rdbuf();
+  return buffer.str();
+}
+
+int HtmlFiles(int argc, char** argv) {
+  std::string scratch, text;
+  for (int i = 2; i < argc; ++i) {
+    uint32_t replaced = 0;
+    absl::Status s =
+        kindred::io::PayloadText(ReadFile(argv[i]), "", true, &scratch, &text, &replaced);
+    if (!s.ok()) {
+      std::fprintf(stderr, "%s: %s\n", argv[i], std::string(s.message()).c_str());
+      return 3;
+    }
+    PrintDocument(argv[i], text);
+  }
+  return 0;
+}
+
+int HtmlSpeed(const char* path, int rounds) {
+  std::vector<std::string> pages;
+  simdjson::ondemand::parser parser;
+  std::ifstream in(path, std::ios::binary);
+  std::string line;
+  size_t bytes = 0;
+  while (std::getline(in, line)) {
+    simdjson::padded_string padded(line);
+    std::string_view html;
+    simdjson::ondemand::document doc;
+    if (parser.iterate(padded).get(doc) || doc["html"].get_string().get(html)) continue;
+    pages.emplace_back(html);
+    bytes += html.size();
+  }
+  std::string scratch, text;
+  double best = 1e100;
+  for (int round = 0; round < rounds; ++round) {
+    const auto start = std::chrono::steady_clock::now();
+    for (const std::string& page : pages) {
+      uint32_t replaced = 0;
+      (void)kindred::io::PayloadText(page, "utf-8", true, &scratch, &text, &replaced);
+    }
+    best = std::min(
+        best, std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count());
+  }
+  std::printf("%zu pages, %.1f MB of HTML, best of %d: %.3f s, %.1f MB/s\n", pages.size(),
+              bytes / 1e6, rounds, best, bytes / 1e6 / best);
+  return 0;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  if (argc < 2) {
+    std::fprintf(stderr, "usage: kindred_texts INPUT... | --html FILE... | --html-speed FILE\n");
+    return 2;
+  }
+  if (std::string(argv[1]) == "--html") return HtmlFiles(argc, argv);
+  if (std::string(argv[1]) == "--html-speed" && argc >= 3) {
+    return HtmlSpeed(argv[2], argc >= 4 ? std::atoi(argv[3]) : 3);
+  }
+  std::vector<std::string> inputs(argv + 1, argv + argc);
+  auto reader = kindred::CorpusReader::Open(inputs, kindred::InputOptions());
+  if (!reader.ok()) {
+    std::fprintf(stderr, "kindred_texts: %s\n", std::string(reader.status().message()).c_str());
+    return 3;
+  }
+  std::vector<kindred::Document> batch;
+  for (;;) {
+    auto n = (*reader)->ReadBatch(&batch, 256, 16 << 20);
+    if (!n.ok()) {
+      std::fprintf(stderr, "kindred_texts: %s\n", std::string(n.status().message()).c_str());
+      return 3;
+    }
+    if (*n == 0) break;
+    for (const kindred::Document& doc : batch) PrintDocument(doc.id, doc.text);
+  }
+  for (const auto& [reason, count] : (*reader)->RecordCounts()) {
+    std::fprintf(stderr, "%s: %llu\n", reason.c_str(), static_cast<unsigned long long>(count));
+  }
+  return 0;
+}
