@@ -8,6 +8,7 @@
 #include "cli/cli.h"
 #include "cli/common_options.h"
 #include "cli/output.h"
+#include "cli/output_checks.h"
 #include "kindred/banding.h"
 #include "kindred/index_writer.h"
 #include "kindred/signed_corpus.h"
@@ -126,6 +127,7 @@ int RunBuild(const BuildFlags& flags) {
                 absl::AlreadyExistsError(absl::StrFormat(
                     "index %s already exists (kindred add appends to it)", flags.index)));
   }
+  if (absl::Status s = CheckOutputFile(flags.index); !s.ok()) return Fail(kExitOutput, s);
   auto reader = CorpusReader::Open(flags.inputs, *input_options);
   if (!reader.ok()) return Fail(kExitInput, reader.status());
   SignOptions sign;

@@ -13,6 +13,7 @@
 #include "cli/common_options.h"
 #include "cli/index_options.h"
 #include "cli/output.h"
+#include "cli/output_checks.h"
 #include "io/output_guard.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
@@ -193,6 +194,60 @@ absl::Status CheckRecordOutputs(const SweepFlags& flags, RecordFormat format,
   return absl::OkStatus();
 }
 
+// The kept outputs the inputs need, checked before any input is read: each
+// text input needs --copy-kept or --list-kept, each JSON Lines input
+// --write-kept, and no kept output is given that no input needs. Standard
+// input of unknown format is judged when it has been read.
+absl::Status CheckKeptOptions(const SweepFlags& flags, const CorpusReader& reader) {
+  if (!WantsKept(flags)) return absl::OkStatus();
+  if (!flags.copy_kept.empty() && !flags.list_kept.empty()) {
+    return absl::InvalidArgumentError("give --copy-kept or --list-kept, not both");
+  }
+  bool needs_lines = false, needs_text = false, unknown = false;
+  std::vector<ResolvedInput> inputs;
+  for (ResolvedInput& input : reader.ResolvedInputs()) {
+    if (input.format == InputFormat::kAuto) {
+      unknown = true;
+      continue;
+    }
+    const bool lines = input.format == InputFormat::kJsonLines;
+    if (lines && flags.write_kept.empty()) {
+      return absl::InvalidArgumentError(absl::StrCat(
+          input.name, " is JSON Lines: give --write-kept FILE for its kept lines "
+                      "(--copy-kept and --list-kept take text documents)"));
+    }
+    if (!lines && flags.copy_kept.empty() && flags.list_kept.empty()) {
+      return absl::InvalidArgumentError(absl::StrCat(
+          input.name, " holds text documents: give --copy-kept DIR or --list-kept FILE for "
+                      "them (--write-kept takes the kept lines of JSON Lines inputs)"));
+    }
+    (lines ? needs_lines : needs_text) = true;
+    if (!input.is_stdin) inputs.push_back(std::move(input));
+  }
+  if (!unknown && !needs_lines && !flags.write_kept.empty()) {
+    return absl::InvalidArgumentError(
+        "--write-kept: no input is JSON Lines (text documents take --copy-kept or --list-kept)");
+  }
+  if (!unknown && !needs_text && (!flags.copy_kept.empty() || !flags.list_kept.empty())) {
+    return absl::InvalidArgumentError(absl::StrCat(
+        flags.copy_kept.empty() ? "--list-kept" : "--copy-kept",
+        ": no input holds text documents (JSON Lines inputs take --write-kept)"));
+  }
+  KeptOutput output{flags.write_kept, flags.copy_kept, flags.list_kept};
+  return io::CheckOutputs(inputs, output, !flags.write_kept.empty(),
+                          !flags.copy_kept.empty() || !flags.list_kept.empty());
+}
+
+// Every output location can be written (exit 7 otherwise; 2 for an invalid
+// name), before the work.
+absl::Status CheckOutputLocations(const SweepFlags& flags) {
+  absl::Status status = CheckOutputDirectory(flags.output_dir);
+  if (status.ok()) status = CheckKeptFile(flags.write_kept);
+  if (status.ok()) status = CheckKeptFile(flags.list_kept);
+  if (status.ok()) status = CheckCopyDirectory(flags.copy_kept);
+  return status;
+}
+
 // kindred sweep --index: the pairs and groups of everything indexed, from the
 // stored shingle sets and signatures, without re-reading the corpus.
 int RunIndexSweep(const SweepFlags& flags) {
@@ -297,6 +352,12 @@ int RunSweepCommand(const SweepFlags& flags) {
   if (!reader.ok()) return Fail(kExitInput, reader.status());
   if (absl::Status checked = CheckRecordOutputs(flags, *format, **reader); !checked.ok()) {
     return Fail(kExitUsage, checked);
+  }
+  if (absl::Status checked = CheckKeptOptions(flags, **reader); !checked.ok()) {
+    return Fail(kExitUsage, checked);
+  }
+  if (absl::Status checked = CheckOutputLocations(flags); !checked.ok()) {
+    return Fail(absl::IsInvalidArgument(checked) ? kExitUsage : kExitOutput, checked);
   }
   Progress progress(flags.general.quiet);
   options.sign.progress = [&progress](const SignStats& stats) {
