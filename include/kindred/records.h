@@ -70,10 +70,12 @@ void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
 // One decision per document that belongs to a group (keep for its keeper,
 // drop for the others), in document order. Documents in no group are kept and
 // not listed. `empty` marks documents with no shingles, which are listed as
-// kept with that reason.
+// kept with that reason. With the priority policy and `facts` given (one per
+// document), the reason shows the priority values compared.
 void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
                           absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
-                          absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out);
+                          absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out,
+                          absl::Span<const KeepFacts> facts = {});
 
 }  // namespace kindred
 

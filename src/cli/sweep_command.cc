@@ -63,7 +63,8 @@ absl::Status WriteOutputs(const SweepFlags& flags, const SweepResult& result, Re
     for (size_t doc = 0; doc < empty.size(); ++doc) {
       empty[doc] = result.corpus.shingle_count(doc) == 0;
     }
-    WriteDecisionRecords(format, result.groups, result.pairs, ids, empty, keep, &decisions);
+    WriteDecisionRecords(format, result.groups, result.pairs, ids, empty, keep, &decisions,
+                         result.corpus.all_facts());
   }
   if (to_dir) {
     std::error_code error;
@@ -121,6 +122,16 @@ void PrintSummary(const SweepResult& result, const SweepOptions& options) {
   std::fprintf(stderr, "  groups            %llu\n", static_cast<unsigned long long>(stats.groups));
   std::fprintf(stderr, "  drops             %llu (keep policy: %s)\n",
                static_cast<unsigned long long>(stats.drops), KeepPolicyName(options.keep));
+  if (options.keep == KeepPolicy::kPriority) {
+    uint64_t without = 0;
+    for (const KeepFacts& facts : result.corpus.all_facts()) without += !facts.has_priority;
+    if (without > 0) {
+      std::fprintf(stderr, "  no priority       %llu of %llu documents lack the priority field "
+                   "(they rank lowest)\n",
+                   static_cast<unsigned long long>(without),
+                   static_cast<unsigned long long>(result.corpus.size()));
+    }
+  }
   if (stats.sign.invalid_utf8_documents > 0) {
     std::fprintf(stderr,
                  "  invalid UTF-8     %llu document(s), bytes replaced by U+FFFD (-v names them)\n",
@@ -306,6 +317,11 @@ int RunSweepCommand(const SweepFlags& flags) {
   options.match = *match;
   auto keep = ParseKeepPolicy(flags.keep);
   if (!keep.ok()) return Fail(kExitUsage, keep.status());
+  if (*keep == KeepPolicy::kPriority && flags.input.priority_field.empty()) {
+    return Fail(kExitUsage, absl::InvalidArgumentError(
+                                "--keep priority needs --priority-field NAME (the JSON Lines "
+                                "field holding each document's priority)"));
+  }
   options.keep = *keep;
   auto format = ParseRecordFormat(flags.format);
   if (!format.ok()) return Fail(kExitUsage, format.status());

@@ -61,11 +61,33 @@ void Consider(BestMatch* best, uint32_t partner, double jaccard) {
   }
 }
 
+std::string PriorityText(const KeepFacts& facts) {
+  return facts.has_priority ? absl::StrCat(facts.priority) : "none";
+}
+
+// The reason of a group member's decision.
+std::string Reason(const Group& group, uint32_t doc, absl::Span<const std::string> ids,
+                   KeepPolicy policy, absl::Span<const KeepFacts> facts) {
+  const bool priorities = policy == KeepPolicy::kPriority && !facts.empty();
+  if (doc == group.keeper) {
+    if (!priorities) return absl::StrCat("keeper of its group (policy ", KeepPolicyName(policy), ")");
+    return absl::StrCat("keeper of its group (policy priority, priority ",
+                        PriorityText(facts[doc]), ")");
+  }
+  std::string reason = absl::StrCat("near-duplicate; ", ids[group.keeper], " is kept");
+  if (priorities) {
+    absl::StrAppend(&reason, " (priority ", PriorityText(facts[group.keeper]), " against ",
+                    PriorityText(facts[doc]), ")");
+  }
+  return reason;
+}
+
 }  // namespace
 
 void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
                           absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
-                          absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out) {
+                          absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out,
+                          absl::Span<const KeepFacts> facts) {
   RecordWriter writer(
       format, {"id", "decision", "group", "keeper", "best_match", "jaccard", "reason"}, out);
   // (document, group index) of every group member, in document order: the
@@ -114,8 +136,7 @@ void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
     writer.String(ids[group.keeper]);
     writer.String(ids[match.partner]);
     writer.Similarity(match.jaccard);
-    writer.String(keeper ? absl::StrCat("keeper of its group (policy ", KeepPolicyName(policy), ")")
-                         : absl::StrCat("near-duplicate; ", ids[group.keeper], " is kept"));
+    writer.String(Reason(group, static_cast<uint32_t>(doc), ids, policy, facts));
     writer.EndRow();
   }
 }
