@@ -34,6 +34,7 @@ struct SweepFlags {
   MatchFlags match;
   GeneralFlags general;
   std::string keep = "first";
+  std::string grouping = "components";
   bool exhaustive = false;
   uint64_t max_bucket = kDefaultMaxBucket;
   std::string memory;
@@ -50,21 +51,23 @@ struct SweepFlags {
 // --print names; the default prints groups when there is no -o) and writes
 // them. Kinds nobody asked for are not formatted.
 absl::Status WriteOutputs(const SweepFlags& flags, const SweepResult& result, RecordFormat format,
-                          KeepPolicy keep) {
+                          KeepPolicy keep, Grouping grouping) {
   std::string print = flags.print;
   if (print.empty()) print = flags.output_dir.empty() ? "groups" : "none";
   const bool to_dir = !flags.output_dir.empty();
   const auto ids = result.corpus.ids();
   std::string pairs, groups, decisions;
   if (to_dir || print == "pairs") WritePairRecords(format, result.pairs, ids, &pairs);
-  if (to_dir || print == "groups") WriteGroupRecords(format, result.groups, ids, keep, &groups);
+  if (to_dir || print == "groups") {
+    WriteGroupRecords(format, result.groups, ids, keep, &groups, grouping);
+  }
   if (to_dir || print == "decisions") {
     std::vector<uint8_t> empty(result.corpus.size());
     for (size_t doc = 0; doc < empty.size(); ++doc) {
       empty[doc] = result.corpus.shingle_count(doc) == 0;
     }
     WriteDecisionRecords(format, result.groups, result.pairs, ids, empty, keep, &decisions,
-                         result.corpus.all_facts());
+                         result.corpus.all_facts(), grouping);
   }
   if (to_dir) {
     std::error_code error;
@@ -119,7 +122,9 @@ void PrintSummary(const SweepResult& result, const SweepOptions& options) {
   std::fprintf(stderr, "  confirmed pairs   %llu (%s >= %g)\n",
                static_cast<unsigned long long>(stats.confirmed_pairs),
                MeasureName(options.match.measure), options.match.threshold);
-  std::fprintf(stderr, "  groups            %llu\n", static_cast<unsigned long long>(stats.groups));
+  std::fprintf(stderr, "  groups            %llu%s\n", static_cast<unsigned long long>(stats.groups),
+               options.grouping == Grouping::kKeepers ? " (around keepers: --grouping keepers)"
+                                                      : "");
   std::fprintf(stderr, "  drops             %llu (keep policy: %s)\n",
                static_cast<unsigned long long>(stats.drops), KeepPolicyName(options.keep));
   if (options.keep == KeepPolicy::kPriority) {
@@ -282,19 +287,29 @@ int RunIndexSweep(const SweepFlags& flags) {
   if (!keep.ok()) return Fail(kExitUsage, keep.status());
   auto format = ParseRecordFormat(flags.format);
   if (!format.ok()) return Fail(kExitUsage, format.status());
+  auto grouping = ParseGrouping(flags.grouping);
+  if (!grouping.ok()) return Fail(kExitUsage, grouping.status());
   auto result = SweepIndex(**reader, match, *keep, ThreadCount(flags.general));
   if (!result.ok()) return Fail(result.status());
+  if (*grouping != Grouping::kComponents) {
+    result->groups = GroupPairs(result->pairs, result->corpus.all_facts(), *keep, *grouping);
+    result->stats.groups = result->groups.size();
+    result->stats.drops = 0;
+    for (const Group& group : result->groups) result->stats.drops += group.members.size() - 1;
+  }
   result->stats.sign.documents = result->corpus.size();
   for (size_t doc = 0; doc < result->corpus.size(); ++doc) {
     result->stats.sign.empty_documents += result->corpus.shingle_count(doc) == 0;
   }
-  if (absl::Status status = WriteOutputs(flags, *result, *format, *keep); !status.ok()) {
+  if (absl::Status status = WriteOutputs(flags, *result, *format, *keep, *grouping);
+      !status.ok()) {
     return Fail(kExitOutput, status);
   }
   if (!flags.general.quiet) {
     SweepOptions options;
     options.match = match;
     options.keep = *keep;
+    options.grouping = *grouping;
     std::fprintf(stderr, "kindred sweep: index %s\n", flags.index.c_str());
     PrintSummary(*result, options);
   }
@@ -323,6 +338,9 @@ int RunSweepCommand(const SweepFlags& flags) {
                                 "field holding each document's priority)"));
   }
   options.keep = *keep;
+  auto grouping = ParseGrouping(flags.grouping);
+  if (!grouping.ok()) return Fail(kExitUsage, grouping.status());
+  options.grouping = *grouping;
   auto format = ParseRecordFormat(flags.format);
   if (!format.ok()) return Fail(kExitUsage, format.status());
   options.exhaustive = flags.exhaustive;
@@ -394,7 +412,8 @@ int RunSweepCommand(const SweepFlags& flags) {
                 result.status());
   }
 
-  if (absl::Status status = WriteOutputs(flags, *result, *format, options.keep); !status.ok()) {
+  if (absl::Status status = WriteOutputs(flags, *result, *format, options.keep, options.grouping);
+      !status.ok()) {
     return Fail(kExitOutput, status);
   }
   if (WantsKept(flags)) {
@@ -446,6 +465,14 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
       ->group("Resources");
   command->add_option("--keep", flags->keep, "keeper of each group: first, longest or priority")
       ->default_str("first")
+      ->group("Grouping");
+  command
+      ->add_option("--grouping", flags->grouping,
+                   "components (a group is a connected component of confirmed pairs) or "
+                   "keepers (the best document by --keep takes every ungrouped document it "
+                   "has a confirmed pair with, and so on: each drop is confirmed with its "
+                   "keeper)")
+      ->default_str("components")
       ->group("Grouping");
   command
       ->add_option("-o,--output-dir", flags->output_dir,
