@@ -80,6 +80,13 @@ struct InputOptions {
   // value "@line" makes the id "<input name>:<line number>" instead (for a
   // tree read as JSON Lines, "<file path>:<line number>").
   std::string id_field = "id";
+  // Ids that name their file, so that inputs with the same relative paths
+  // or ids (two mirrors) can be read together: a file of a tree gets its
+  // path as read (the tree as given, "/", the relative path) instead of the
+  // relative path, and a JSON line "<file path>:<id>" (a file of a tree by
+  // its path as read). Ids of "@line" and of text files given alone (their
+  // path already) do not change.
+  bool ids_with_path = false;
   // JSON Lines field holding the text: a string.
   std::string text_field = "text";
   // JSON Lines field holding a numeric priority (for the keep policy).

@@ -18,6 +18,12 @@ void AddInputOptions(CLI::App* command, InputFlags* flags) {
                    "JSON Lines field holding the document id; @line uses FILE:LINE")
       ->default_str("id")
       ->group("Input");
+  command
+      ->add_flag("--ids-with-path", flags->ids_with_path,
+                 "ids name their file, so that trees or files with the same relative paths or "
+                 "ids can be read together: TREE/relative/path for a file of a tree, FILE:id "
+                 "for a JSON line")
+      ->group("Input");
   command->add_option("--text-field", flags->text_field, "JSON Lines field holding the text")
       ->default_str("text")
       ->group("Input");
@@ -59,6 +65,7 @@ absl::StatusOr<InputOptions> ToInputOptions(const InputFlags& flags) {
   options.id_field = flags.id_field;
   options.text_field = flags.text_field;
   options.priority_field = flags.priority_field;
+  options.ids_with_path = flags.ids_with_path;
   auto max_document = ParseByteSize(flags.max_document_size);
   if (!max_document.ok()) return max_document.status();
   if (*max_document == 0) return absl::InvalidArgumentError("--max-document-size must be > 0");

@@ -20,6 +20,7 @@ struct InputFlags {
   std::string id_field = "id";
   std::string text_field = "text";
   std::string priority_field;
+  bool ids_with_path = false;
   std::string max_document_size = "64M";
   std::string max_decompressed_size = "4G";
 };

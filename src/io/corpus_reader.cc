@@ -173,6 +173,9 @@ absl::StatusOr<bool> CorpusReader::Impl::NextLineDocument(Document* doc) {
   } else {
     absl::Status parsed = json_.Parse(line, lines_display_, number, doc);
     if (!parsed.ok()) return parsed;
+    if (options_.ids_with_path && options_.id_field != io::kLineNumberId) {
+      doc->id.insert(0, absl::StrCat(lines_name_, ":"));
+    }
   }
   if (options_.id_field == io::kLineNumberId) doc->id = absl::StrCat(lines_name_, ":", number);
   doc->source.input = static_cast<uint32_t>(current_);
@@ -197,7 +200,7 @@ absl::StatusOr<bool> CorpusReader::Impl::NextTreeDocument(Document* doc) {
   if (!input.ok()) return input.status();
   absl::Status read = ReadTextDocument(input->get(), doc);
   if (!read.ok()) return read;
-  doc->id = std::move(relative);
+  doc->id = options_.ids_with_path ? full : std::move(relative);
   doc->source.input = static_cast<uint32_t>(current_);
   doc->source.path = std::move(full);
   return true;
@@ -361,8 +364,13 @@ void CorpusReader::DeferParsing() { impl_->defer_parsing_ = true; }
 
 class LineParser::Impl {
  public:
-  explicit Impl(const InputOptions& options) : json(options) {}
+  explicit Impl(const InputOptions& options)
+      : json(options),
+        ids_with_path(options.ids_with_path && options.id_field != io::kLineNumberId),
+        stdin_copy_path(options.stdin_copy_path) {}
   io::JsonLineParser json;
+  bool ids_with_path;
+  std::string stdin_copy_path;
   std::string line;  // the raw line, swapped out of the document
 };
 
@@ -378,7 +386,13 @@ absl::Status LineParser::Finish(Document* doc) {
   const std::string& path = doc->source.path;
   // As io::DisplayName, without a copy of the path for every line.
   const absl::string_view display = path == "-" ? "standard input" : absl::string_view(path);
-  return impl_->json.Parse(impl_->line, display, doc->source.line, doc);
+  absl::Status parsed = impl_->json.Parse(impl_->line, display, doc->source.line, doc);
+  if (parsed.ok() && impl_->ids_with_path) {
+    // Standard input read again from its copy keeps the name "-".
+    const bool copy = !impl_->stdin_copy_path.empty() && path == impl_->stdin_copy_path;
+    doc->id.insert(0, absl::StrCat(copy ? absl::string_view("-") : absl::string_view(path), ":"));
+  }
+  return parsed;
 }
 
 InputFormat CorpusReader::FormatOf(uint32_t input) const { return impl_->resolved_[input].format; }
