@@ -321,7 +321,7 @@ int RunSweepCommand(const SweepFlags& flags) {
   if (flags.inputs.empty()) {
     return Fail(kExitUsage, absl::InvalidArgumentError("no inputs (or --index) given"));
   }
-  auto input_options = ToInputOptions(flags.input);
+  auto input_options = ToInputOptions(flags.input, flags.general.verbose);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
   SweepOptions options;
   auto signature = ToSignatureSettings(flags.signature);
@@ -426,6 +426,7 @@ int RunSweepCommand(const SweepFlags& flags) {
   }
   if (!flags.general.quiet) {
     PrintSummary(*result, options);
+    PrintSkips((*reader)->skips());
     PrintThroughput(result->stats.sign.documents, result->stats.sign.bytes, progress.Elapsed());
   }
   if (flags.general.verbose) {

@@ -6,8 +6,10 @@
 #include <optional>
 #include <utility>
 
+#include "absl/container/flat_hash_set.h"
 #include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
+#include "io/binary_content.h"
 #include "io/buffered_input.h"
 #include "io/byte_stream.h"
 #include "io/json_line.h"
@@ -87,6 +89,7 @@ class CorpusReader::Impl {
   std::atomic<uint64_t> raw_bytes_{0};
   uint64_t raw_total_ = 0;
   std::function<bool(uint64_t)> wanted_;
+  InputSkips skips_;
   bool defer_parsing_ = false;
 
  private:
@@ -104,6 +107,11 @@ class CorpusReader::Impl {
   }
   absl::StatusOr<bool> NextLineDocument(Document* doc);
   absl::StatusOr<bool> NextTreeDocument(Document* doc);
+  // Reads the file at `path` as one text document; with the options, sets
+  // *skip instead (counted, reported) for a binary or unreadable file.
+  absl::Status ReadFileDocument(const std::string& path, Document* doc, bool* skip);
+  absl::Status ReadTextOnly(const std::string& path, Document* doc);
+  void EndTree();  // adds the tree's counts to skips_
   absl::StatusOr<bool> StartInput(Document* doc);
   // `whole_input`: the file is an input of its own (not a file of a tree),
   // so that line offsets can find a line again (DocumentSource::offset).
@@ -115,6 +123,7 @@ class CorpusReader::Impl {
   io::JsonLineParser json_;
   size_t current_ = 0;                        // input being read
   std::optional<io::TreeWalker> tree_;        // set while reading a tree
+  absl::flat_hash_set<std::string> skipped_here_;  // reopened: the tree's skipped files
   std::unique_ptr<io::BufferedInput> lines_;  // set while reading JSON Lines
   std::string lines_name_;                    // their name in ids and messages
   std::string lines_path_;                    // their path in DocumentSource
@@ -185,25 +194,67 @@ absl::StatusOr<bool> CorpusReader::Impl::NextLineDocument(Document* doc) {
   return true;
 }
 
+absl::Status CorpusReader::Impl::ReadFileDocument(const std::string& path, Document* doc,
+                                                   bool* skip) {
+  *skip = false;
+  std::string why;
+  auto input = OpenBuffered(path);
+  absl::Status read = input.ok() ? ReadTextDocument(input->get(), doc) : input.status();
+  if (!read.ok()) {
+    if (!options_.skip_unreadable) return read;
+    ++skips_.unreadable;
+    why = std::string(read.message());
+    const std::string named = absl::StrCat(path, ": ");  // the path is said once
+    if (absl::StartsWith(why, named)) why.erase(0, named.size());
+  } else if (!options_.include_binary && io::LooksBinary(doc->text, &why)) {
+    ++skips_.binary;
+  } else {
+    return absl::OkStatus();
+  }
+  *skip = true;
+  if (options_.on_skip) options_.on_skip(path, why);
+  return absl::OkStatus();
+}
+
 absl::StatusOr<bool> CorpusReader::Impl::NextTreeDocument(Document* doc) {
   std::string relative, full;
-  do {
+  ResolvedInput& resolved = resolved_[current_];
+  for (;;) {
     absl::StatusOr<bool> more = tree_->Next(&relative, &full);
     if (!more.ok() || !*more) return more;
-    if (resolved_[current_].format == InputFormat::kJsonLines) {
+    if (resolved.format == InputFormat::kJsonLines) {
       absl::Status opened = OpenLines(full, full, false);
       if (!opened.ok()) return opened;
       return false;  // the caller reads the lines
     }
-  } while (!TakeNext());
-  auto input = OpenBuffered(full);
-  if (!input.ok()) return input.status();
-  absl::Status read = ReadTextDocument(input->get(), doc);
-  if (!read.ok()) return read;
+    if (reopened_ && skipped_here_.contains(relative)) continue;
+    if (!TakeNext()) continue;
+    bool skip = false;
+    absl::Status read = reopened_ ? ReadTextOnly(full, doc) : ReadFileDocument(full, doc, &skip);
+    if (!read.ok()) return read;
+    if (!skip) break;
+    resolved.skipped_files.push_back(std::move(relative));
+  }
   doc->id = options_.ids_with_path ? full : std::move(relative);
   doc->source.input = static_cast<uint32_t>(current_);
   doc->source.path = std::move(full);
   return true;
+}
+
+absl::Status CorpusReader::Impl::ReadTextOnly(const std::string& path, Document* doc) {
+  auto input = OpenBuffered(path);
+  if (!input.ok()) return input.status();
+  return ReadTextDocument(input->get(), doc);
+}
+
+void CorpusReader::Impl::EndTree() {
+  skips_.links += tree_->counts().links;
+  skips_.broken_links += tree_->counts().broken_links;
+  skips_.repeated_directories += tree_->counts().repeated_directories;
+  skips_.fifos += tree_->counts().fifos;
+  skips_.sockets += tree_->counts().sockets;
+  skips_.devices += tree_->counts().devices;
+  tree_.reset();
 }
 
 // Opens input current_. Returns true when it produced a document (a text
@@ -211,7 +262,13 @@ absl::StatusOr<bool> CorpusReader::Impl::NextTreeDocument(Document* doc) {
 absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
   ResolvedInput& input = resolved_[current_];
   if (input.is_directory) {
-    tree_.emplace(input.name);
+    tree_.emplace(input.name, options_.follow_links);
+    skipped_here_.clear();
+    if (reopened_) skipped_here_.insert(input.skipped_files.begin(), input.skipped_files.end());
+    return false;
+  }
+  if (reopened_ && input.skipped) {
+    ++current_;
     return false;
   }
   if (input.format == InputFormat::kJsonLines && (!input.is_stdin || reopened_)) {
@@ -222,6 +279,18 @@ absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
   if (input.format == InputFormat::kText && !TakeNext()) {
     ++current_;
     return false;
+  }
+  if (input.format == InputFormat::kText && !input.is_stdin && !reopened_) {
+    bool skip = false;
+    absl::Status read = ReadFileDocument(input.name, doc, &skip);
+    if (!read.ok()) return read;
+    input.skipped = skip;
+    ++current_;
+    if (skip) return false;
+    doc->id = input.name;
+    doc->source.input = static_cast<uint32_t>(current_ - 1);
+    doc->source.path = input.name;
+    return true;
   }
   io::Compression compression = io::Compression::kNone;
   auto opened = OpenBuffered(PathOf(input), &compression);
@@ -266,7 +335,7 @@ absl::StatusOr<bool> CorpusReader::Impl::Next(Document* doc) {
       absl::StatusOr<bool> more = NextTreeDocument(doc);
       if (!more.ok() || *more) return more;
       if (lines_ == nullptr) {
-        tree_.reset();
+        EndTree();
         ++current_;
       }
       continue;
@@ -403,6 +472,7 @@ void CorpusReader::SetFilter(std::function<bool(uint64_t ordinal)> wanted) {
 const std::vector<std::string>& CorpusReader::inputs() const { return impl_->inputs_; }
 std::vector<ResolvedInput> CorpusReader::ResolvedInputs() const { return impl_->resolved_; }
 uint64_t CorpusReader::documents_read() const { return impl_->ordinal_; }
+InputSkips CorpusReader::skips() const { return impl_->skips_; }
 uint64_t CorpusReader::raw_bytes_read() const {
   return impl_->raw_bytes_.load(std::memory_order_relaxed);
 }

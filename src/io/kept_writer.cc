@@ -5,6 +5,7 @@
 #include <optional>
 #include <utility>
 
+#include "absl/container/flat_hash_set.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "io/buffered_input.h"
@@ -118,13 +119,17 @@ absl::Status KeptPass::KeepText(const std::string& relative, const std::string& 
 }
 
 absl::Status KeptPass::ReadInput(const ResolvedInput& input) {
+  if (input.skipped) return absl::OkStatus();  // binary or unreadable: not a document
   if (input.is_directory) {
-    io::TreeWalker walker(input.read_path);
+    io::TreeWalker walker(input.read_path, request_.options.follow_links);
+    const absl::flat_hash_set<std::string> skipped(input.skipped_files.begin(),
+                                                   input.skipped_files.end());
     std::string relative, full;
     for (;;) {
       absl::StatusOr<bool> more = walker.Next(&relative, &full);
       if (!more.ok()) return more.status();
       if (!*more) return absl::OkStatus();
+      if (skipped.contains(relative)) continue;
       absl::Status done =
           input.format == InputFormat::kJsonLines ? CopyLines(full) : KeepText(relative, full);
       if (!done.ok()) return done;
