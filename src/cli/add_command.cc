@@ -29,6 +29,7 @@ struct AddFlags {
   std::string format = "jsonl";
   std::string on_duplicate = "error";
   uint64_t max_bucket = kDefaultMaxBucket;
+  double wait_lock = 0;
   GivenOptions given;
 };
 
@@ -70,7 +71,14 @@ int RunAdd(const AddFlags& flags) {
   if (absl::Status valid = ValidMaxBucket(flags.max_bucket); !valid.ok()) {
     return Fail(kExitUsage, valid);
   }
-  auto writer = IndexWriter::Open(flags.index);  // takes the lock first: busy fails at once
+  if (flags.wait_lock < 0) {
+    return Fail(kExitUsage, absl::InvalidArgumentError("--wait-lock must be 0 or more seconds"));
+  }
+  ReportStaleTempFiles(flags.index);
+  IndexWriteOptions write_options;
+  write_options.lock_wait_seconds = flags.wait_lock;
+  // Takes the lock first: busy fails at once (or after --wait-lock).
+  auto writer = IndexWriter::Open(flags.index, write_options);
   if (!writer.ok()) return Fail(WriteExitCode(writer.status()), writer.status());
   if ((*writer)->torn_tail_cut() > 0 && !flags.general.quiet) {
     std::fprintf(stderr, "kindred: cut a torn tail of %llu bytes off %s\n",
@@ -126,6 +134,7 @@ void RegisterAdd(CLI::App& app, int* exit_code) {
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
   AddMaxBucketOption(command, &flags->max_bucket);
+  AddWaitLockOption(command, &flags->wait_lock);
   command
       ->add_option("--on-duplicate", flags->on_duplicate,
                    "a document whose id is already indexed: error (refuse the batch), skip "

@@ -3,15 +3,18 @@
 
 #include <cstdio>
 
+#include "absl/cleanup/cleanup.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/index_options.h"
 #include "cli/output.h"
 #include "cli/output_checks.h"
 #include "kindred/banding.h"
 #include "kindred/index_writer.h"
 #include "kindred/signed_corpus.h"
+#include "kindred/temp_files.h"
 #include "kindred/text.h"
 
 namespace kindred::cli {
@@ -86,6 +89,8 @@ absl::Status BuildInParts(const std::string& index, const IndexSettings& setting
   *write_error = true;
   absl::Status status = CreateIndex(partial, settings, SignedCorpus(settings.signature.perms));
   if (!status.ok()) return status;
+  RegisterTempFile(partial);
+  absl::Cleanup forget = [&partial] { ForgetTempFile(partial); };
   {
     auto writer = IndexWriter::Open(partial);
     if (!writer.ok()) {
@@ -123,10 +128,17 @@ int RunBuild(const BuildFlags& flags) {
   auto input_options = ToInputOptions(flags.input);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
   if (DefaultFileSystem()->Exists(flags.index)) {
+    if (auto existing = IndexReader::Open(flags.index); absl::IsDataLoss(existing.status())) {
+      return Fail(kExitIndexCorrupt,
+                  absl::DataLossError(absl::StrCat(existing.status().message(),
+                                                   "; the index is damaged and build never "
+                                                   "writes over it (see kindred audit --repair)")));
+    }
     return Fail(kExitUsage,
                 absl::AlreadyExistsError(absl::StrFormat(
                     "index %s already exists (kindred add appends to it)", flags.index)));
   }
+  ReportStaleTempFiles(flags.index);
   if (absl::Status s = CheckOutputFile(flags.index); !s.ok()) return Fail(kExitOutput, s);
   auto reader = CorpusReader::Open(flags.inputs, *input_options);
   if (!reader.ok()) return Fail(kExitInput, reader.status());

@@ -69,6 +69,7 @@ int RunCheck(const CheckFlags& flags) {
   if (absl::Status valid = ValidMaxBucket(flags.max_bucket); !valid.ok()) {
     return Fail(kExitUsage, valid);
   }
+  ReportStaleTempFiles(flags.index);
   auto reader = IndexReader::Open(flags.index);
   if (!reader.ok()) return Fail(reader.status());
   if ((*reader)->torn_tail_bytes() > 0 && !flags.general.quiet) {

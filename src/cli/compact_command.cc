@@ -3,6 +3,7 @@
 #include <cstdio>
 
 #include "cli/cli.h"
+#include "cli/index_options.h"
 #include "kindred/index_writer.h"
 
 namespace kindred::cli {
@@ -12,11 +13,18 @@ struct CompactFlags {
   std::string index;
   uint32_t bands = 0;
   uint32_t rows = 0;
+  double wait_lock = 0;
   bool quiet = false;
 };
 
 int RunCompact(const CompactFlags& flags) {
-  auto result = CompactIndex(flags.index, CompactOptions{flags.bands, flags.rows});
+  ReportStaleTempFiles(flags.index);
+  if (flags.wait_lock < 0) {
+    return Fail(kExitUsage, absl::InvalidArgumentError("--wait-lock must be 0 or more seconds"));
+  }
+  IndexWriteOptions options;
+  options.lock_wait_seconds = flags.wait_lock;
+  auto result = CompactIndex(flags.index, CompactOptions{flags.bands, flags.rows}, options);
   if (!result.ok()) {
     switch (result.status().code()) {
       case absl::StatusCode::kResourceExhausted:
@@ -49,6 +57,7 @@ void RegisterCompact(CLI::App& app, int* exit_code) {
   command->add_option("index", flags->index, "the index file")->required();
   command->add_option("--bands", flags->bands, "store band keys for this many bands (with --rows)");
   command->add_option("--rows", flags->rows, "rows per band of the stored band keys");
+  AddWaitLockOption(command, &flags->wait_lock);
   command->add_flag("-q,--quiet", flags->quiet, "no summary on stderr");
   command->callback([flags, exit_code] { *exit_code = RunCompact(*flags); });
 }

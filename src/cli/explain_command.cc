@@ -8,6 +8,7 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/index_options.h"
 #include "cli/output.h"
 #include "kindred/explain.h"
 #include "kindred/index.h"
@@ -88,6 +89,7 @@ absl::Status LoadTexts(const ExplainFlags& flags, Subject* subject) {
 // Numbers from the index's stored sets and signatures; passages from the
 // texts when there are any.
 absl::StatusOr<Explanation> ExplainFromIndex(const ExplainFlags& flags, const Subject& subject) {
+  ReportStaleTempFiles(flags.index);
   absl::StatusOr<std::unique_ptr<IndexReader>> index = IndexReader::Open(flags.index);
   if (!index.ok()) return index.status();
   const SignatureSettings settings = (*index)->settings().signature;

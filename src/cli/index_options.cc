@@ -6,6 +6,7 @@
 #include "cli/cli.h"
 #include "kindred/banding.h"
 #include "kindred/shingles.h"
+#include "kindred/temp_files.h"
 
 namespace kindred::cli {
 
@@ -87,6 +88,12 @@ void PrintCrowdedKeys(uint64_t crowded, uint64_t max_bucket) {
                "proposed their first document only (--max-bucket)\n",
                static_cast<unsigned long long>(crowded),
                static_cast<unsigned long long>(max_bucket));
+}
+
+void ReportStaleTempFiles(const std::string& index) {
+  for (const std::string& line : RemoveStaleTempFiles(index)) {
+    std::fprintf(stderr, "kindred: %s\n", line.c_str());
+  }
 }
 
 }  // namespace kindred::cli

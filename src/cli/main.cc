@@ -2,6 +2,7 @@
 #include <cstdio>
 
 #include "cli/cli.h"
+#include "kindred/temp_files.h"
 
 namespace kindred::cli {
 
@@ -41,6 +42,7 @@ int main(int argc, char** argv) {
   app.require_subcommand(1);
   app.set_version_flag("--version", "kindred 0.1.0");
   int exit_code = kExitOk;
+  kindred::InstallTempFileCleanup();  // SIGINT/SIGTERM remove INDEX.tmp.PID etc.
   RegisterSweep(app, &exit_code);
   RegisterPlan(app, &exit_code);
   RegisterBuild(app, &exit_code);
@@ -51,6 +53,7 @@ int main(int argc, char** argv) {
   RegisterCompact(app, &exit_code);
   RegisterTune(app, &exit_code);
   RegisterExplain(app, &exit_code);
+  RegisterRemove(app, &exit_code);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -275,6 +275,7 @@ int RunIndexSweep(const SweepFlags& flags) {
                                 "--write-kept, --copy-kept and --list-kept need the corpus, not "
                                 "--index; use the decisions with the corpus instead"));
   }
+  ReportStaleTempFiles(flags.index);
   auto reader = IndexReader::Open(flags.index);
   if (!reader.ok()) return Fail(reader.status());
   MatchSettings match;
