@@ -125,7 +125,7 @@ absl::Status BuildInParts(const std::string& index, const IndexSettings& setting
 int RunBuild(const BuildFlags& flags) {
   auto settings = ToIndexSettings(flags);
   if (!settings.ok()) return Fail(kExitUsage, settings.status());
-  auto input_options = ToInputOptions(flags.input);
+  auto input_options = ToInputOptions(flags.input, flags.general.verbose);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
   if (DefaultFileSystem()->Exists(flags.index)) {
     if (auto existing = IndexReader::Open(flags.index); absl::IsDataLoss(existing.status())) {
@@ -167,6 +167,7 @@ int RunBuild(const BuildFlags& flags) {
                  flags.index.c_str(), static_cast<unsigned long long>(stats.documents),
                  static_cast<unsigned long long>(stats.empty_documents),
                  settings->signature.ToString().c_str(), settings->bands, settings->rows);
+    PrintSkips((*reader)->skips());
     PrintThroughput(stats.documents, stats.bytes, progress.Elapsed());
   }
   return kExitOk;

@@ -105,5 +105,8 @@ expect_exit 0 "unreadable skipped, kept list" -- "$KINDRED" sweep -q "$WORK/bad"
 [[ "$(cat "$WORK/bad-kept.txt")" == "$WORK/bad/a-copy.txt" ]] || fail "kept list: $(cat "$WORK/bad-kept.txt")"
 expect_exit 0 "unreadable file given alone" -- "$KINDRED" sweep "$WORK/bad/m-cut.gz" "$WORK/bad/a.txt" --skip-unreadable
 expect_stderr "unreadable files  1 skipped" "a file given alone is skipped too"
+expect_exit 0 "build skips the same files" -- "$KINDRED" build "$WORK/bad.kin" "$WORK/bad" --skip-unreadable
+expect_stderr "kindred build: $WORK/bad.kin: 3 documents" "build: documents"
+expect_stderr "unreadable files  1 skipped" "build counts unreadable files"
 
 finish
