@@ -7,8 +7,10 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/formats.h"
 #include "cli/index_options.h"
 #include "cli/output.h"
+#include "core/plural.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
 #include "kindred/index_writer.h"
@@ -44,8 +46,11 @@ int WriteExitCode(const absl::Status& status) {
   }
 }
 
+// The summary line names the threshold and banding the matches were found
+// with, as check's does.
 void PrintSummary(const AddFlags& flags, const AppendResult& result, const SignedCorpus& batch,
-                  size_t match_count, const IndexReader& after) {
+                  size_t match_count, const MatchSettings& match, const IndexReader& matched,
+                  const IndexReader& after) {
   for (size_t i = 0; i < batch.size(); ++i) {
     if (result.actions[i] != AddAction::kAdded) {
       std::fprintf(stderr, "kindred: %s: id already indexed: %s\n", batch.id(i).c_str(),
@@ -55,10 +60,12 @@ void PrintSummary(const AddFlags& flags, const AppendResult& result, const Signe
   std::string segment = result.wrote_segment ? absl::StrFormat("segment %u", result.segment_number)
                                              : std::string("nothing written");
   std::fprintf(stderr,
-               "kindred add: %s: %u added, %u replaced, %u skipped (%s); %zu matches; "
-               "%u documents live\n",
+               "kindred add: %s: %u added, %u replaced, %u skipped (%s); %s (%s >= %g, %s); "
+               "%s live\n",
                flags.index.c_str(), result.added, result.replaced, result.skipped, segment.c_str(),
-               match_count, after.live_count());
+               Counted(match_count, "match", "matches").c_str(), MeasureName(match.measure),
+               match.threshold, BandsByRows(matched.bands(), matched.rows()).c_str(),
+               Counted(after.live_count(), "document").c_str());
 }
 
 int RunAdd(const AddFlags& flags) {
@@ -81,8 +88,8 @@ int RunAdd(const AddFlags& flags) {
   auto writer = IndexWriter::Open(flags.index, write_options);
   if (!writer.ok()) return Fail(WriteExitCode(writer.status()), writer.status());
   if ((*writer)->torn_tail_cut() > 0 && !flags.general.quiet) {
-    std::fprintf(stderr, "kindred: cut a torn tail of %llu bytes off %s\n",
-                 static_cast<unsigned long long>((*writer)->torn_tail_cut()), flags.index.c_str());
+    std::fprintf(stderr, "kindred: cut a torn tail of %s off %s\n",
+                 Counted((*writer)->torn_tail_cut(), "byte").c_str(), flags.index.c_str());
   }
   auto reader = IndexReader::Open(flags.index);  // for matching, banded as asked
   if (!reader.ok()) return Fail(reader.status());
@@ -101,8 +108,11 @@ int RunAdd(const AddFlags& flags) {
       !status.ok()) {
     return Fail(kExitInput, status);
   }
+  // A document whose id is indexed is never its own match: with replace the
+  // indexed copy is retired, with skip the new one is not added (and with
+  // error the batch is refused).
   IndexMatchOptions options{match, threads,
-                            /*exclude_same_id=*/*policy == DuplicateIdPolicy::kReplace};
+                            /*exclude_same_id=*/*policy != DuplicateIdPolicy::kError};
   options.max_bucket = flags.max_bucket;
   uint64_t crowded = 0;
   options.crowded_keys = &crowded;
@@ -116,7 +126,7 @@ int RunAdd(const AddFlags& flags) {
     return Fail(kExitOutput, written);
   }
   if (!flags.general.quiet) {
-    PrintSummary(flags, *appended, batch, matches->size(), (*writer)->reader());
+    PrintSummary(flags, *appended, batch, matches->size(), match, **reader, (*writer)->reader());
     PrintCrowdedKeys(crowded, flags.max_bucket);
   }
   return kExitOk;
@@ -131,6 +141,7 @@ void RegisterAdd(CLI::App& app, int* exit_code) {
   command->add_option("index", flags->index, "the index file")->required();
   AddInputsArgument(command, &flags->inputs)->required();
   AddInputOptions(command, &flags->input);
+  AddPriorityFieldOption(command, &flags->input, /*stored=*/true);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
   AddMaxBucketOption(command, &flags->max_bucket);
@@ -140,9 +151,7 @@ void RegisterAdd(CLI::App& app, int* exit_code) {
                    "a document whose id is already indexed: error (refuse the batch), skip "
                    "(keep the indexed one) or replace")
       ->default_str("error");
-  command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
-      ->default_str("jsonl")
-      ->group("Output");
+  AddFormatOption(command, &flags->format, {"jsonl", "tsv", "csv"});
   AddGeneralOptions(command, &flags->general);
   command->callback([flags, command, exit_code] {
     flags->given = OptionsGiven(command);

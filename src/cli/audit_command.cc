@@ -5,6 +5,7 @@
 
 #include "cli/cli.h"
 #include "cli/index_options.h"
+#include "core/plural.h"
 #include "kindred/index_writer.h"
 
 namespace kindred::cli {
@@ -29,19 +30,17 @@ int RunAudit(const AuditFlags& flags) {
     if (absl::IsAlreadyExists(repair.status())) return Fail(kExitOutput, repair.status());
     if (!repair.ok()) return Fail(repair.status());
     if (repair->torn_tail_cut > 0 && !flags.quiet) {
-      std::fprintf(stderr,
-                   "kindred audit: cut a torn tail of %llu bytes (after the last recorded "
-                   "commit)\n",
-                   static_cast<unsigned long long>(repair->torn_tail_cut));
+      std::fprintf(stderr, "kindred audit: cut a torn tail of %s (after the last recorded commit)\n",
+                   Counted(repair->torn_tail_cut, "byte").c_str());
     }
     if (!repair->repaired_path.empty()) {
       for (const std::string& lost : repair->lost) std::printf("lost: %s\n", lost.c_str());
       std::fprintf(stderr,
-                   "kindred audit: %s was left exactly as it is; wrote %s with its %u "
-                   "readable live %s (%zu %s lost; see the \"lost:\" lines)\n",
-                   flags.index.c_str(), repair->repaired_path.c_str(), repair->documents_kept,
-                   repair->documents_kept == 1 ? "document" : "documents", repair->lost.size(),
-                   repair->lost.size() == 1 ? "item" : "items");
+                   "kindred audit: %s was left exactly as it is; wrote %s with its %s "
+                   "(%s lost; see the \"lost:\" lines)\n",
+                   flags.index.c_str(), repair->repaired_path.c_str(),
+                   Counted(repair->documents_kept, "readable live document").c_str(),
+                   Counted(repair->lost.size(), "item").c_str());
     }
   }
   auto report = AuditIndex(flags.index);
@@ -49,17 +48,16 @@ int RunAudit(const AuditFlags& flags) {
   for (const std::string& note : report->notes) std::printf("note: %s\n", note.c_str());
   for (const std::string& problem : report->problems) std::printf("problem: %s\n", problem.c_str());
   if (!report->ok()) {
-    std::fprintf(stderr, "kindred audit: %s: %zu %s\n", flags.index.c_str(),
-                 report->problems.size(), report->problems.size() == 1 ? "problem" : "problems");
+    std::fprintf(stderr, "kindred audit: %s: %s\n", flags.index.c_str(),
+                 Counted(report->problems.size(), "problem").c_str());
     return kExitIndexCorrupt;
   }
   if (!flags.quiet) {
     std::fprintf(stderr,
-                 "kindred audit: %s: ok (%u %s, %u %s; every checksum, shingle "
+                 "kindred audit: %s: ok (%s, %s; every checksum, shingle "
                  "set, signature and band key verified)\n",
-                 flags.index.c_str(), report->segments,
-                 report->segments == 1 ? "segment" : "segments", report->documents,
-                 report->documents == 1 ? "document" : "documents");
+                 flags.index.c_str(), Counted(report->segments, "segment").c_str(),
+                 Counted(report->documents, "document").c_str());
   }
   return kExitOk;
 }

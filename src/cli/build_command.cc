@@ -11,6 +11,7 @@
 #include "cli/index_options.h"
 #include "cli/output.h"
 #include "cli/output_checks.h"
+#include "core/plural.h"
 #include "kindred/banding.h"
 #include "kindred/index_writer.h"
 #include "kindred/signed_corpus.h"
@@ -163,10 +164,11 @@ int RunBuild(const BuildFlags& flags) {
   progress.Clear();
   if (!built.ok()) return write_error ? Fail(WriteExitCode(built), built) : Fail(built);
   if (!flags.general.quiet) {
-    std::fprintf(stderr, "kindred build: %s: %llu documents (%llu empty), %s, %u bands x %u rows\n",
-                 flags.index.c_str(), static_cast<unsigned long long>(stats.documents),
+    std::fprintf(stderr, "kindred build: %s: %s (%llu empty), %s, %s\n", flags.index.c_str(),
+                 Counted(stats.documents, "document").c_str(),
                  static_cast<unsigned long long>(stats.empty_documents),
-                 settings->signature.ToString().c_str(), settings->bands, settings->rows);
+                 settings->signature.ToString().c_str(),
+                 BandsByRows(settings->bands, settings->rows).c_str());
     PrintSkips((*reader)->skips());
     PrintThroughput(stats.documents, stats.bytes, progress.Elapsed());
   }
@@ -185,10 +187,12 @@ void RegisterBuild(CLI::App& app, int* exit_code) {
   command
       ->add_option(
           "--memory", flags->memory,
-          "memory budget, e.g. 4G: sign and write the corpus in parts of about a "
-          "quarter of it, one segment each (default: the whole corpus at once, one segment)")
+          "bound on the signed data held before writing, e.g. 4G: sign and write the corpus "
+          "in parts of about a quarter of it (signatures and shingle sets), one segment each "
+          "(default: the whole corpus at once, one segment)")
       ->group("Resources");
   AddInputOptions(command, &flags->input);
+  AddPriorityFieldOption(command, &flags->input, /*stored=*/true);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
   AddGeneralOptions(command, &flags->general);

@@ -9,7 +9,9 @@
 #include "cli/cli.h"
 #include "cli/common_options.h"
 #include "cli/index_options.h"
+#include "cli/formats.h"
 #include "cli/output.h"
+#include "cli/usage.h"
 #include "kindred/explain.h"
 #include "kindred/index.h"
 #include "kindred/records.h"
@@ -217,10 +219,6 @@ std::string JsonRecord(const Subject& subject, const Explanation& e) {
 }
 
 int RunExplainCommand(const ExplainFlags& flags) {
-  if (flags.format != "text" && flags.format != "jsonl") {
-    return Fail(kExitUsage, absl::InvalidArgumentError(absl::StrCat(
-                                "--format: expected text or jsonl, not \"", flags.format, "\"")));
-  }
   if (absl::StatusOr<InputOptions> options = ToInputOptions(flags.input); !options.ok()) {
     return Fail(kExitUsage, options.status());
   }
@@ -236,7 +234,7 @@ int RunExplainCommand(const ExplainFlags& flags) {
   }
   if (!explanation.ok()) return Fail(explanation.status());
   std::string out;
-  if (flags.format == "jsonl") {
+  if (flags.format == "json") {
     out = JsonRecord(subject, *explanation);
   } else {
     const bool color =
@@ -289,13 +287,12 @@ void RegisterExplain(CLI::App& app, int* exit_code) {
       ->default_str("auto")
       ->group("Output");
   command->add_option("--passages", flags->passages, "longest shared passages listed")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->default_str("10")
       ->group("Output");
   command->add_flag("--no-text", flags->no_text, "do not print the two marked texts")
       ->group("Output");
-  command->add_option("--format", flags->format, "text or jsonl (numbers and byte spans)")
-      ->default_str("text")
-      ->group("Output");
+  AddFormatOption(command, &flags->format, {"text", "json"}, {{"jsonl", "json"}});
   command->callback([flags, exit_code] { *exit_code = RunExplainCommand(*flags); });
 }
 

@@ -5,7 +5,9 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/index_options.h"
+#include "cli/formats.h"
 #include "cli/output.h"
+#include "core/plural.h"
 #include "kindred/banding.h"
 #include "kindred/index.h"
 #include "kindred/records.h"
@@ -39,8 +41,8 @@ std::string TextReport(const IndexReader& reader) {
                         s.unicode_version == UnicodeVersionString()
                             ? ""
                             : absl::StrFormat(" (this program: %s)", UnicodeVersionString()));
-  absl::StrAppendFormat(&out, "banding          %u bands x %u rows (%u of %u slots)\n", s.bands,
-                        s.rows, s.bands * s.rows, s.signature.perms);
+  absl::StrAppendFormat(&out, "banding          %s (%u of %u slots)\n",
+                        BandsByRows(s.bands, s.rows), s.bands * s.rows, s.signature.perms);
   absl::StrAppendFormat(&out, "threshold        %s >= %g (candidate probability there %.4f)\n",
                         MeasureName(s.measure), s.threshold,
                         CandidateProbability(s.threshold, s.bands, s.rows));
@@ -76,12 +78,14 @@ std::string JsonReport(const IndexReader& reader) {
   const IndexSettings& s = reader.settings();
   std::string out = "{\"index\":";
   AppendJsonString(&out, reader.path());
-  absl::StrAppendFormat(
-      &out,
-      ",\"format_version\":%u,\"commit_generation\":%u,\"shingle\":\"%s\",\"k\":%u,\"seed\":%u,"
-      "\"signer\":\"%s\",\"perms\":%u,\"unicode\":",
-      reader.format_version(), reader.commit_generation(), ShingleModeName(s.signature.mode),
-      s.signature.k, s.signature.seed, SignerSchemeName(s.signature.scheme), s.signature.perms);
+  absl::StrAppendFormat(&out,
+                        // The seed as the text form prints it: a 64-bit number does not
+                        // survive JSON readers that hold numbers as doubles.
+                        ",\"format_version\":%u,\"commit_generation\":%u,\"shingle\":\"%s\","
+                        "\"k\":%u,\"seed\":\"0x%016x\",\"signer\":\"%s\",\"perms\":%u,\"unicode\":",
+                        reader.format_version(), reader.commit_generation(),
+                        ShingleModeName(s.signature.mode), s.signature.k, s.signature.seed,
+                        SignerSchemeName(s.signature.scheme), s.signature.perms);
   AppendJsonString(&out, s.unicode_version);
   absl::StrAppendFormat(&out,
                         ",\"bands\":%u,\"rows\":%u,\"threshold\":%g,\"measure\":\"%s\","
@@ -121,9 +125,7 @@ void RegisterInfo(CLI::App& app, int* exit_code) {
   CLI::App* command = app.add_subcommand(
       "info", "Describe an index: settings, counts, segments, sizes, band/row choice");
   command->add_option("index", flags->index, "the index file")->required();
-  command->add_option("--format", flags->format, "text or json")
-      ->check(CLI::IsMember({"text", "json"}))
-      ->default_str("text");
+  AddFormatOption(command, &flags->format, {"text", "json"}, {{"jsonl", "json"}});
   command->callback([flags, exit_code] { *exit_code = RunInfo(*flags); });
 }
 

@@ -33,6 +33,26 @@ void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
                        absl::Span<const std::string> ids, KeepPolicy policy, std::string* out,
                        Grouping grouping) {
   const bool keepers = grouping == Grouping::kKeepers;
+  if (format != RecordFormat::kJsonLines) {
+    // One row per drop: a list of ids in one field could not be split back
+    // when ids hold the separator.
+    std::vector<std::string> columns = {"group", "size", "keeper", "drop", "policy"};
+    if (keepers) columns.push_back("grouping");
+    RecordWriter writer(format, std::move(columns), out);
+    for (size_t g = 0; g < groups.size(); ++g) {
+      for (uint32_t member : groups[g].members) {
+        if (member == groups[g].keeper) continue;
+        writer.Number(g + 1);
+        writer.Number(groups[g].members.size());
+        writer.String(ids[groups[g].keeper]);
+        writer.String(ids[member]);
+        writer.String(KeepPolicyName(policy));
+        if (keepers) writer.String(GroupingName(grouping));
+        writer.EndRow();
+      }
+    }
+    return;
+  }
   std::vector<std::string> columns = {"group", "size", "keeper", "drops", "policy"};
   if (keepers) columns.push_back("grouping");
   RecordWriter writer(format, std::move(columns), out);
