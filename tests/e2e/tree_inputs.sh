@@ -84,7 +84,7 @@ grep -q '"a":"prog1","b":"prog2"' "$WORK/out" || fail "included binaries not com
 expect_exit 0 "binary, kept list" -- "$KINDRED" sweep -q "$WORK/bin" --list-kept "$WORK/bin-kept.txt"
 [[ $(wc -l <"$WORK/bin-kept.txt") -eq 2 ]] || fail "kept list holds binary files: $(cat "$WORK/bin-kept.txt")"
 expect_exit 0 "binary file given alone" -- "$KINDRED" sweep "$WORK/bin/prog1" "$WORK/bin/a.txt"
-expect_stderr "kindred sweep: 1 documents" "a binary file given alone is skipped"
+expect_stderr "kindred sweep: 1 document (" "a binary file given alone is skipped"
 
 # 4. Unreadable files: an error by default; --skip-unreadable names and
 #    counts each one, and a skipped file never enters the results.
