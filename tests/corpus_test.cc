@@ -180,7 +180,9 @@ TEST_CASE("text files keep NUL bytes, invalid UTF-8 and empty documents as they 
   WriteFile(dir.File("t/raw.txt"), raw);
   WriteFile(dir.File("t/empty.txt"), "");
   WriteFile(dir.File("single.md"), "one document");
-  auto docs = ReadAll({dir.File("t"), dir.File("single.md")});
+  InputOptions options;
+  options.include_binary = true;  // a NUL byte makes a file binary
+  auto docs = ReadAll({dir.File("t"), dir.File("single.md")}, options);
   REQUIRE(docs.ok());
   REQUIRE(docs->size() == 3);
   CHECK((*docs)[0].id == "empty.txt");
@@ -630,6 +632,64 @@ TEST_CASE("missing inputs and bad input lists") {
              Catch::StartsWith(dir.File("nope.jsonl") + ": cannot open"));
   CHECK(CorpusReader::Open({"-", "-"}, {}).status().code() == absl::StatusCode::kInvalidArgument);
   CHECK(CorpusReader::Open({}, {}).status().code() == absl::StatusCode::kInvalidArgument);
+}
+
+}  // namespace
+}  // namespace kindred
+
+namespace kindred {
+namespace {
+
+TEST_CASE("binary files are skipped, counted and read again the same way") {
+  TempDir dir;
+  WriteFile(dir.File("t/a.txt"), "plain text");
+  WriteFile(dir.File("t/b.bin"), std::string("ELF\0\1", 5));
+  WriteFile(dir.File("t/c.txt"), "caf\xe9 cr\xe8me, a few Latin-1 bytes in a longer text");
+  WriteFile(dir.File("t/d.dat"), std::string(100, '\xe9'));
+  InputOptions options;
+  std::vector<std::string> named;
+  options.on_skip = [&named](const std::string& path, const std::string& why) {
+    named.push_back(path + " " + why);
+  };
+  auto reader = CorpusReader::Open({dir.File("t")}, options);
+  REQUIRE(reader.ok());
+  std::vector<Document> batch;
+  auto n = (*reader)->ReadBatch(&batch, 10, 1 << 20);
+  REQUIRE(n.ok());
+  REQUIRE(*n == 2);
+  CHECK(batch[0].id == "a.txt");
+  CHECK(batch[1].id == "c.txt");
+  CHECK(batch[1].ordinal == 1);
+  REQUIRE((*reader)->ReadBatch(&batch, 10, 1 << 20).ok());
+  CHECK((*reader)->skips().binary == 2);
+  REQUIRE(named.size() == 2);
+  CHECK(named[0] == dir.File("t/b.bin") + " binary: a NUL byte at byte 3");
+  CHECK(named[1] == dir.File("t/d.dat") + " binary: 99 of the first 100 bytes are not UTF-8");
+  // A second reading skips the same files without reading them.
+  auto resolved = (*reader)->ResolvedInputs();
+  CHECK(resolved[0].skipped_files == std::vector<std::string>{"b.bin", "d.dat"});
+  WriteFile(dir.File("t/b.bin"), "now text, yet still skipped by the second reading");
+  auto again = CorpusReader::Reopen(resolved, options);
+  REQUIRE(again.ok());
+  n = (*again)->ReadBatch(&batch, 10, 1 << 20);
+  REQUIRE(n.ok());
+  REQUIRE(*n == 2);
+  CHECK(batch[1].id == "c.txt");
+}
+
+TEST_CASE("unreadable files are skipped only when asked, whole") {
+  TempDir dir;
+  WriteFile(dir.File("t/a.txt"), "plain text");
+  WriteFile(dir.File("t/b.gz"), std::string("\x1f\x8b\x08\x00\x00\x00", 6));  // cut short
+  WriteFile(dir.File("t/c.txt"), "more text");
+  CHECK(!ReadAll({dir.File("t")}).ok());
+  InputOptions options;
+  options.skip_unreadable = true;
+  auto docs = ReadAll({dir.File("t")}, options);
+  REQUIRE(docs.ok());
+  REQUIRE(docs->size() == 2);
+  CHECK((*docs)[1].id == "c.txt");
+  CHECK((*docs)[1].ordinal == 1);
 }
 
 }  // namespace

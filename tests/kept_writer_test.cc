@@ -163,10 +163,12 @@ TEST_CASE("kept text documents are copied into a tree or listed") {
   WriteFile(dir.File("single.md"), "one");
   const std::vector<std::string> inputs = {dir.File("in"), dir.File("single.md")};
   const std::set<std::string> keep = {"a/x.txt", "a/y.txt", "b/c/z.gz", dir.File("single.md")};
+  InputOptions raw;
+  raw.include_binary = true;  // y.txt holds a NUL byte: binary, read on request
 
   KeptOutput copy;
   copy.copy_dir = dir.File("out/copy");
-  auto counts = ReadThenWrite(inputs, keep, copy);
+  auto counts = ReadThenWrite(inputs, keep, copy, raw);
   REQUIRE(counts.ok());
   CHECK(counts->documents == 5);
   CHECK(counts->kept == 4);
@@ -179,7 +181,7 @@ TEST_CASE("kept text documents are copied into a tree or listed") {
 
   KeptOutput list;
   list.path_list = dir.File("kept.txt");
-  REQUIRE(ReadThenWrite(inputs, keep, list).ok());
+  REQUIRE(ReadThenWrite(inputs, keep, list, raw).ok());
   CHECK(ReadFile(dir.File("kept.txt")) == dir.File("in/a/x.txt") + "\n" + dir.File("in/a/y.txt") +
                                               "\n" + dir.File("in/b/c/z.gz") + "\n" +
                                               dir.File("single.md") + "\n");

@@ -6,8 +6,26 @@
 //     is its path relative to the root, '/'-separated. Files are visited in
 //     byte-wise sorted order of that relative path, so the stream is the same
 //     on every run. Symbolic links (to files or to directories) and special
-//     files are skipped. With InputFormat::kJsonLines every file of the tree
-//     is read as JSON Lines instead.
+//     files are skipped and counted (InputSkips); InputOptions::follow_links
+//     follows links (each directory walked once). With
+//     InputFormat::kJsonLines every file of the tree is read as JSON Lines
+//     instead.
+//
+// Binary files: a file read as one text document (a file of a tree, or a
+// text file given alone; not standard input, not JSON Lines, whose texts are
+// JSON strings) whose first 8 KiB, decompressed, hold a NUL byte or more
+// than 10% of bytes in ill-formed UTF-8 sequences (an incomplete sequence
+// cut at 8 KiB does not count) is binary: skipped and counted, unless
+// InputOptions::include_binary.
+//
+// Unreadable files: with InputOptions::skip_unreadable, a file read as one
+// text document that cannot be read to its end (cannot be opened, an I/O
+// error, truncated or corrupt compressed data, over a size limit) is skipped
+// and counted instead of failing. Its text is read whole before it becomes a
+// document, so a skipped file never half-enters the results. JSON Lines
+// files are not skipped: the lines before a fault are documents already.
+// Skipped files use up no ordinal, and a reader made by Reopen skips the
+// same files (ResolvedInput::skipped_files) without reading them.
 //   - a JSON Lines file: one JSON object per line. The id field (a string or
 //     an integer, rendered in decimal), the text field (a string) and an
 //     optional numeric priority field are named by InputOptions. A line that
@@ -104,6 +122,22 @@ struct InputOptions {
   // value "@line" makes the id "<input name>:<line number>" instead (for a
   // tree read as JSON Lines, "<file path>:<line number>").
   std::string id_field = "id";
+  // Ids that name their file, so that inputs with the same relative paths
+  // or ids (two mirrors) can be read together: a file of a tree gets its
+  // path as read (the tree as given, "/", the relative path) instead of the
+  // relative path, and a JSON line "<file path>:<id>" (a file of a tree by
+  // its path as read). Ids of "@line" and of text files given alone (their
+  // path already) do not change.
+  bool ids_with_path = false;
+  // Trees: follow symbolic links (see the top of this file).
+  bool follow_links = false;
+  // Read binary files as text too (see the top of this file).
+  bool include_binary = false;
+  // Skip files that cannot be read instead of failing (see the top).
+  bool skip_unreadable = false;
+  // Called for each file skipped as binary or unreadable (its path as read,
+  // and why), on the reading thread. May be empty.
+  std::function<void(const std::string& path, const std::string& why)> on_skip;
   // JSON Lines field holding the text: a string.
   std::string text_field = "text";
   // JSON Lines field holding a numeric priority (for the keep policy).
@@ -163,6 +197,16 @@ struct Document {
   bool unparsed = false;
 };
 
+// What a reader skipped, so far.
+struct InputSkips {
+  uint64_t links = 0;                 // symbolic links not followed
+  uint64_t broken_links = 0;          // followed links that lead nowhere
+  uint64_t repeated_directories = 0;  // directories reached again by a link
+  uint64_t fifos = 0, sockets = 0, devices = 0;  // special files in trees
+  uint64_t binary = 0;      // binary files
+  uint64_t unreadable = 0;  // files skipped by skip_unreadable
+};
+
 // An input as the reader resolved it: what it is and how to read it again.
 struct ResolvedInput {
   std::string name;       // as given; "-" for standard input
@@ -174,6 +218,10 @@ struct ResolvedInput {
   // kText or kJsonLines once known; kAuto for standard input before its
   // first byte was read.
   InputFormat format = InputFormat::kAuto;
+  // Files skipped as binary or unreadable: for a tree their relative paths,
+  // in the order read; for a file given alone, `skipped`.
+  std::vector<std::string> skipped_files;
+  bool skipped = false;
 };
 
 // Reads documents from a list of inputs, in order, in batches.
@@ -225,6 +273,9 @@ class CorpusReader {
   std::vector<ResolvedInput> ResolvedInputs() const;
   // Documents returned so far.
   uint64_t documents_read() const;
+  // Files and tree entries skipped so far (by the first reading; a reader
+  // made by Reopen counts only links and special files again).
+  InputSkips skips() const;
   // Raw bytes read so far from the inputs' files (compressed bytes for
   // compressed files), and the total size of the inputs when known (every
   // input a regular file, not a tree or standard input), else 0: enough to

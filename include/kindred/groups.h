@@ -1,9 +1,18 @@
 // kindred: grouping confirmed pairs and choosing what to keep.
 //
-// A group is a connected component of the graph whose edges are the confirmed
-// pairs (union-find). One member of each group is the keeper, chosen by a keep
-// policy; the other members are drops. Documents are named by their dense
-// index 0..n-1 in the order they were read ("first seen" order).
+// Two groupings of the graph whose edges are the confirmed pairs:
+//   - components (the default): a group is a connected component
+//     (union-find). One member is the keeper, chosen by a keep policy; the
+//     other members are drops. Pairs chain: a drop need not be confirmed
+//     with its keeper.
+//   - keepers: every drop is confirmed with its keeper. Documents are taken
+//     in keep-policy order (the best first; ties to the first seen); each
+//     one not yet in a group becomes a keeper and takes, as its drops, every
+//     document not yet in a group that it has a confirmed pair with. A
+//     keeper that takes nobody is in no group (it is kept). The result is
+//     deterministic and a document in no group is never dropped.
+// Documents are named by their dense index 0..n-1 in the order they were
+// read ("first seen" order).
 //
 // Pure functions over plain data; thread-safe.
 #ifndef KINDRED_GROUPS_H_
@@ -43,6 +52,16 @@ enum class KeepPolicy : uint8_t {
 absl::StatusOr<KeepPolicy> ParseKeepPolicy(std::string_view name);
 const char* KeepPolicyName(KeepPolicy policy);
 
+// How confirmed pairs make groups (see the top of this file).
+enum class Grouping : uint8_t {
+  kComponents = 0,
+  kKeepers = 1,
+};
+
+// Parses "components", "keepers".
+absl::StatusOr<Grouping> ParseGrouping(std::string_view name);
+const char* GroupingName(Grouping grouping);
+
 // What the keep policies look at, per document.
 struct KeepFacts {
   uint64_t length = 0;  // text length in bytes
@@ -58,7 +77,7 @@ struct Group {
 // Groups `pairs` over documents 0..facts.size()-1. Returns the groups of two
 // or more members, ordered by their smallest member; members ascending.
 std::vector<Group> GroupPairs(absl::Span<const ScoredPair> pairs, absl::Span<const KeepFacts> facts,
-                              KeepPolicy policy);
+                              KeepPolicy policy, Grouping grouping = Grouping::kComponents);
 
 }  // namespace kindred
 

@@ -69,16 +69,24 @@ void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
                       absl::Span<const std::string> ids, std::string* out);
 // Groups: JSON Lines writes one record per group with the drops as an array;
 // TSV and CSV write one row per drop (columns group, size, keeper, drop,
-// policy), so every id is a field of its own and any id round-trips.
+// policy), so every id is a field of its own and any id round-trips. Groups
+// made around keepers (Grouping::kKeepers) carry a last field, "grouping";
+// groups of connected components (the default) do not.
 void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
-                       absl::Span<const std::string> ids, KeepPolicy policy, std::string* out);
+                       absl::Span<const std::string> ids, KeepPolicy policy, std::string* out,
+                       Grouping grouping = Grouping::kComponents);
 // One decision per document that belongs to a group (keep for its keeper,
 // drop for the others), in document order. Documents in no group are kept and
 // not listed. `empty` marks documents with no shingles, which are listed as
-// kept with that reason.
+// kept with that reason. With the priority policy and `facts` given (one per
+// document), the reason shows the priority values compared. Around keepers
+// (Grouping::kKeepers) the reason of a drop gives its Jaccard similarity
+// with its keeper, and a last field "grouping" is added, as in the groups.
 void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
                           absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
-                          absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out);
+                          absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out,
+                          absl::Span<const KeepFacts> facts = {},
+                          Grouping grouping = Grouping::kComponents);
 
 }  // namespace kindred
 

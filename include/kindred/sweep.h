@@ -55,6 +55,7 @@ struct SweepOptions {
   SignatureSettings signature;
   MatchSettings match;  // bands/rows 0: chosen by ChooseBanding()
   KeepPolicy keep = KeepPolicy::kFirst;
+  Grouping grouping = Grouping::kComponents;  // see groups.h
   bool exhaustive = false;
   uint64_t max_bucket = kDefaultMaxBucket;  // see candidates.h
   SignOptions sign;                         // threads, batch sizes, progress

@@ -11,6 +11,7 @@
 #include "cli/common_options.h"
 #include "cli/index_options.h"
 #include "cli/output.h"
+#include "cli/output_checks.h"
 #include "core/plural.h"
 #include "kindred/banding.h"
 #include "kindred/index_writer.h"
@@ -126,7 +127,7 @@ absl::Status BuildInParts(const std::string& index, const IndexSettings& setting
 int RunBuild(const BuildFlags& flags) {
   auto settings = ToIndexSettings(flags);
   if (!settings.ok()) return Fail(kExitUsage, settings.status());
-  auto input_options = ToInputOptions(flags.input);
+  auto input_options = ToInputOptions(flags.input, flags.general.verbose);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
   if (DefaultFileSystem()->Exists(flags.index)) {
     if (auto existing = IndexReader::Open(flags.index); absl::IsDataLoss(existing.status())) {
@@ -140,6 +141,7 @@ int RunBuild(const BuildFlags& flags) {
                     "index %s already exists (kindred add appends to it)", flags.index)));
   }
   ReportStaleTempFiles(flags.index);
+  if (absl::Status s = CheckOutputFile(flags.index); !s.ok()) return Fail(kExitOutput, s);
   auto reader = CorpusReader::Open(flags.inputs, *input_options);
   if (!reader.ok()) return Fail(kExitInput, reader.status());
   SignOptions sign;
@@ -169,6 +171,7 @@ int RunBuild(const BuildFlags& flags) {
                  settings->signature.ToString().c_str(),
                  BandsByRows(settings->bands, settings->rows).c_str());
     PrintRecordCounts(**reader);
+    PrintSkips((*reader)->skips());
     PrintThroughput(stats.documents, stats.bytes, progress.Elapsed());
   }
   return kExitOk;

@@ -1,5 +1,7 @@
 #include "cli/common_options.h"
 
+#include <cstdio>
+
 #include "absl/strings/str_cat.h"
 #include "cli/output.h"
 #include "cli/usage.h"
@@ -18,6 +20,26 @@ void AddInputOptions(CLI::App* command, InputFlags* flags) {
       ->add_option("--id-field", flags->id_field,
                    "JSON Lines field holding the document id; @line uses FILE:LINE")
       ->default_str("id")
+      ->group("Input");
+  command
+      ->add_flag("--ids-with-path", flags->ids_with_path,
+                 "ids name their file, so that trees or files with the same relative paths or "
+                 "ids can be read together: TREE/relative/path for a file of a tree, FILE:id "
+                 "for a JSON line")
+      ->group("Input");
+  command
+      ->add_flag("--follow-links", flags->follow_links,
+                 "trees: read linked files and walk linked directories (each directory once)")
+      ->group("Input");
+  command
+      ->add_flag("--include-binary", flags->include_binary,
+                 "read binary files (a NUL byte, or over 10% of bytes not UTF-8, in the first "
+                 "8 KiB) as text instead of skipping them")
+      ->group("Input");
+  command
+      ->add_flag("--skip-unreadable", flags->skip_unreadable,
+                 "skip text files that cannot be read (corrupt or truncated compression, I/O "
+                 "errors, size limits), naming each, instead of failing")
       ->group("Input");
   command->add_option("--text-field", flags->text_field, "JSON Lines field holding the text")
       ->default_str("text")
@@ -65,7 +87,7 @@ CLI::Option* AddInputsArgument(CLI::App* command, std::vector<std::string>* inpu
                              "for standard input");
 }
 
-absl::StatusOr<InputOptions> ToInputOptions(const InputFlags& flags) {
+absl::StatusOr<InputOptions> ToInputOptions(const InputFlags& flags, bool verbose) {
   InputOptions options;
   if (flags.format == "auto") {
     options.format = InputFormat::kAuto;
@@ -90,6 +112,16 @@ absl::StatusOr<InputOptions> ToInputOptions(const InputFlags& flags) {
   options.id_field = flags.id_field;
   options.text_field = flags.text_field;
   options.priority_field = flags.priority_field;
+  options.ids_with_path = flags.ids_with_path;
+  options.follow_links = flags.follow_links;
+  options.include_binary = flags.include_binary;
+  options.skip_unreadable = flags.skip_unreadable;
+  options.on_skip = [verbose](const std::string& path, const std::string& why) {
+    const bool binary = why.rfind("binary", 0) == 0;
+    if (binary && !verbose) return;
+    std::fprintf(stderr, "kindred: %s %s: %s\n", binary ? "note: skipped" : "skipped",
+                 path.c_str(), why.c_str());
+  };
   auto max_document = ParseByteSize(flags.max_document_size);
   if (!max_document.ok()) return max_document.status();
   if (*max_document == 0) return absl::InvalidArgumentError("--max-document-size must be > 0");
@@ -222,6 +254,35 @@ void AddGeneralOptions(CLI::App* command, GeneralFlags* flags) {
 
 int ThreadCount(const GeneralFlags& flags) {
   return flags.threads > 0 ? flags.threads : DefaultThreadCount();
+}
+
+}  // namespace kindred::cli
+
+namespace kindred::cli {
+
+void PrintSkips(const InputSkips& skips) {
+  const auto count = [](uint64_t n) { return static_cast<unsigned long long>(n); };
+  if (skips.binary > 0) {
+    std::fprintf(stderr, "  binary files      %llu skipped (-v names them; --include-binary reads them)\n",
+                 count(skips.binary));
+  }
+  if (skips.unreadable > 0) {
+    std::fprintf(stderr, "  unreadable files  %llu skipped (--skip-unreadable; named above)\n",
+                 count(skips.unreadable));
+  }
+  if (skips.links > 0) {
+    std::fprintf(stderr, "  symbolic links    %llu not followed (--follow-links follows them)\n",
+                 count(skips.links));
+  }
+  if (skips.broken_links > 0 || skips.repeated_directories > 0) {
+    std::fprintf(stderr, "  links skipped     %llu broken, %llu to directories already walked\n",
+                 count(skips.broken_links), count(skips.repeated_directories));
+  }
+  if (skips.fifos + skips.sockets + skips.devices > 0) {
+    std::fprintf(stderr, "  special files     %llu not read (%llu FIFOs, %llu sockets, %llu devices)\n",
+                 count(skips.fifos + skips.sockets + skips.devices), count(skips.fifos),
+                 count(skips.sockets), count(skips.devices));
+  }
 }
 
 }  // namespace kindred::cli

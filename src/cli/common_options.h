@@ -20,6 +20,10 @@ struct InputFlags {
   std::string id_field = "id";
   std::string text_field = "text";
   std::string priority_field;
+  bool ids_with_path = false;
+  bool follow_links = false;
+  bool include_binary = false;
+  bool skip_unreadable = false;
   std::string max_document_size = "64M";
   std::string max_decompressed_size = "4G";
   std::string warc_id = "uri";
@@ -34,7 +38,12 @@ void AddPriorityFieldOption(CLI::App* command, InputFlags* flags, bool stored);
 // The positional corpus inputs (directories, files, "-"); returns the option
 // so a command can make it required.
 CLI::Option* AddInputsArgument(CLI::App* command, std::vector<std::string>* inputs);
-absl::StatusOr<InputOptions> ToInputOptions(const InputFlags& flags);
+// Validates and converts. Files skipped as unreadable are named on stderr
+// ("kindred: skipped PATH: why"); binary files only when `verbose`.
+absl::StatusOr<InputOptions> ToInputOptions(const InputFlags& flags, bool verbose = false);
+// The summary lines of what the reading skipped (nothing when it skipped
+// nothing), on stderr.
+void PrintSkips(const InputSkips& skips);
 
 struct SignatureFlags {
   std::string shingle = "word";

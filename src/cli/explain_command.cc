@@ -3,8 +3,6 @@
 #include <unistd.h>
 
 #include <cstdio>
-#include <fstream>
-#include <sstream>
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
@@ -43,12 +41,22 @@ struct Subject {
   std::string text_a, text_b;
 };
 
-absl::StatusOr<std::string> ReadFileBytes(const std::string& path) {
-  std::ifstream file(path, std::ios::binary);
-  if (!file) return absl::NotFoundError(absl::StrCat(path, ": cannot open"));
-  std::ostringstream content;
-  content << file.rdbuf();
-  return content.str();
+// One file read as one text document, exactly as sweep reads a text file:
+// gzip or zstd detected by content and decompressed, with the same limits.
+absl::StatusOr<std::string> ReadFileText(const std::string& path, const InputOptions& options) {
+  InputOptions text = options;
+  text.format = InputFormat::kText;
+  absl::StatusOr<std::unique_ptr<CorpusReader>> reader = CorpusReader::Open({path}, text);
+  if (!reader.ok()) return reader.status();
+  if ((*reader)->ResolvedInputs()[0].is_directory) {
+    return absl::InvalidArgumentError(
+        absl::StrCat(path, ": is a directory; give a file, or ids with --corpus"));
+  }
+  std::vector<Document> batch;
+  absl::StatusOr<size_t> read = (*reader)->ReadBatch(&batch, 1, 1);
+  if (!read.ok()) return read.status();
+  if (*read != 1) return absl::InvalidArgumentError(absl::StrCat(path, ": no document"));
+  return std::move(batch[0].text);
 }
 
 absl::Status LoadTexts(const ExplainFlags& flags, Subject* subject) {
@@ -56,9 +64,11 @@ absl::Status LoadTexts(const ExplainFlags& flags, Subject* subject) {
   subject->name_b = flags.b;
   if (flags.corpus.empty()) {
     if (!flags.index.empty()) return absl::OkStatus();
-    absl::StatusOr<std::string> a = ReadFileBytes(flags.a);
+    absl::StatusOr<InputOptions> options = ToInputOptions(flags.input);
+    if (!options.ok()) return options.status();
+    absl::StatusOr<std::string> a = ReadFileText(flags.a, *options);
     if (!a.ok()) return a.status();
-    absl::StatusOr<std::string> b = ReadFileBytes(flags.b);
+    absl::StatusOr<std::string> b = ReadFileText(flags.b, *options);
     if (!b.ok()) return b.status();
     subject->text_a = std::move(*a);
     subject->text_b = std::move(*b);
@@ -209,6 +219,9 @@ std::string JsonRecord(const Subject& subject, const Explanation& e) {
 }
 
 int RunExplainCommand(const ExplainFlags& flags) {
+  if (absl::StatusOr<InputOptions> options = ToInputOptions(flags.input); !options.ok()) {
+    return Fail(kExitUsage, options.status());
+  }
   Subject subject;
   if (absl::Status s = LoadTexts(flags, &subject); !s.ok()) return Fail(kExitInput, s);
   absl::StatusOr<Explanation> explanation;

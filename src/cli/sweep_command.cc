@@ -14,6 +14,7 @@
 #include "cli/formats.h"
 #include "cli/index_options.h"
 #include "cli/output.h"
+#include "cli/output_checks.h"
 #include "core/plural.h"
 #include "io/output_guard.h"
 #include "kindred/index.h"
@@ -36,6 +37,7 @@ struct SweepFlags {
   MatchFlags match;
   GeneralFlags general;
   std::string keep = "first";
+  std::string grouping = "components";
   bool exhaustive = false;
   uint64_t max_bucket = kDefaultMaxBucket;
   std::string memory;
@@ -52,20 +54,23 @@ struct SweepFlags {
 // --print names; the default prints groups when there is no -o) and writes
 // them. Kinds nobody asked for are not formatted.
 absl::Status WriteOutputs(const SweepFlags& flags, const SweepResult& result, RecordFormat format,
-                          KeepPolicy keep) {
+                          KeepPolicy keep, Grouping grouping) {
   std::string print = flags.print;
   if (print.empty()) print = flags.output_dir.empty() ? "groups" : "none";
   const bool to_dir = !flags.output_dir.empty();
   const auto ids = result.corpus.ids();
   std::string pairs, groups, decisions;
   if (to_dir || print == "pairs") WritePairRecords(format, result.pairs, ids, &pairs);
-  if (to_dir || print == "groups") WriteGroupRecords(format, result.groups, ids, keep, &groups);
+  if (to_dir || print == "groups") {
+    WriteGroupRecords(format, result.groups, ids, keep, &groups, grouping);
+  }
   if (to_dir || print == "decisions") {
     std::vector<uint8_t> empty(result.corpus.size());
     for (size_t doc = 0; doc < empty.size(); ++doc) {
       empty[doc] = result.corpus.shingle_count(doc) == 0;
     }
-    WriteDecisionRecords(format, result.groups, result.pairs, ids, empty, keep, &decisions);
+    WriteDecisionRecords(format, result.groups, result.pairs, ids, empty, keep, &decisions,
+                         result.corpus.all_facts(), grouping);
   }
   if (to_dir) {
     std::error_code error;
@@ -132,9 +137,21 @@ void PrintSummary(const SweepResult& result, const SweepOptions& options) {
   std::fprintf(stderr, "  confirmed pairs   %llu (%s >= %g)\n",
                static_cast<unsigned long long>(stats.confirmed_pairs),
                MeasureName(options.match.measure), options.match.threshold);
-  std::fprintf(stderr, "  groups            %llu\n", static_cast<unsigned long long>(stats.groups));
+  std::fprintf(stderr, "  groups            %llu%s\n", static_cast<unsigned long long>(stats.groups),
+               options.grouping == Grouping::kKeepers ? " (around keepers: --grouping keepers)"
+                                                      : "");
   std::fprintf(stderr, "  drops             %llu (keep policy: %s)\n",
                static_cast<unsigned long long>(stats.drops), KeepPolicyName(options.keep));
+  if (options.keep == KeepPolicy::kPriority) {
+    uint64_t without = 0;
+    for (const KeepFacts& facts : result.corpus.all_facts()) without += !facts.has_priority;
+    if (without > 0) {
+      std::fprintf(stderr, "  no priority       %llu of %llu documents lack the priority field "
+                   "(they rank lowest)\n",
+                   static_cast<unsigned long long>(without),
+                   static_cast<unsigned long long>(result.corpus.size()));
+    }
+  }
   if (stats.sign.invalid_utf8_documents > 0) {
     std::fprintf(stderr, "  invalid UTF-8     %s, bytes replaced by U+FFFD (-v names them)\n",
                  Counted(stats.sign.invalid_utf8_documents, "document").c_str());
@@ -207,6 +224,60 @@ absl::Status CheckRecordOutputs(const SweepFlags& flags, RecordFormat format,
   return absl::OkStatus();
 }
 
+// The kept outputs the inputs need, checked before any input is read: each
+// text input needs --copy-kept or --list-kept, each JSON Lines input
+// --write-kept, and no kept output is given that no input needs. Standard
+// input of unknown format is judged when it has been read.
+absl::Status CheckKeptOptions(const SweepFlags& flags, const CorpusReader& reader) {
+  if (!WantsKept(flags)) return absl::OkStatus();
+  if (!flags.copy_kept.empty() && !flags.list_kept.empty()) {
+    return absl::InvalidArgumentError("give --copy-kept or --list-kept, not both");
+  }
+  bool needs_lines = false, needs_text = false, unknown = false;
+  std::vector<ResolvedInput> inputs;
+  for (ResolvedInput& input : reader.ResolvedInputs()) {
+    if (input.format == InputFormat::kAuto) {
+      unknown = true;
+      continue;
+    }
+    const bool lines = input.format == InputFormat::kJsonLines;
+    if (lines && flags.write_kept.empty()) {
+      return absl::InvalidArgumentError(absl::StrCat(
+          input.name, " is JSON Lines: give --write-kept FILE for its kept lines "
+                      "(--copy-kept and --list-kept take text documents)"));
+    }
+    if (!lines && flags.copy_kept.empty() && flags.list_kept.empty()) {
+      return absl::InvalidArgumentError(absl::StrCat(
+          input.name, " holds text documents: give --copy-kept DIR or --list-kept FILE for "
+                      "them (--write-kept takes the kept lines of JSON Lines inputs)"));
+    }
+    (lines ? needs_lines : needs_text) = true;
+    if (!input.is_stdin) inputs.push_back(std::move(input));
+  }
+  if (!unknown && !needs_lines && !flags.write_kept.empty()) {
+    return absl::InvalidArgumentError(
+        "--write-kept: no input is JSON Lines (text documents take --copy-kept or --list-kept)");
+  }
+  if (!unknown && !needs_text && (!flags.copy_kept.empty() || !flags.list_kept.empty())) {
+    return absl::InvalidArgumentError(absl::StrCat(
+        flags.copy_kept.empty() ? "--list-kept" : "--copy-kept",
+        ": no input holds text documents (JSON Lines inputs take --write-kept)"));
+  }
+  KeptOutput output{flags.write_kept, flags.copy_kept, flags.list_kept};
+  return io::CheckOutputs(inputs, output, !flags.write_kept.empty(),
+                          !flags.copy_kept.empty() || !flags.list_kept.empty());
+}
+
+// Every output location can be written (exit 7 otherwise; 2 for an invalid
+// name), before the work.
+absl::Status CheckOutputLocations(const SweepFlags& flags) {
+  absl::Status status = CheckOutputDirectory(flags.output_dir);
+  if (status.ok()) status = CheckKeptFile(flags.write_kept);
+  if (status.ok()) status = CheckKeptFile(flags.list_kept);
+  if (status.ok()) status = CheckCopyDirectory(flags.copy_kept);
+  return status;
+}
+
 // kindred sweep --index: the pairs and groups of everything indexed, from the
 // stored shingle sets and signatures, without re-reading the corpus.
 int RunIndexSweep(const SweepFlags& flags) {
@@ -234,19 +305,29 @@ int RunIndexSweep(const SweepFlags& flags) {
   if (!keep.ok()) return Fail(kExitUsage, keep.status());
   auto format = ParseRecordFormat(flags.format);
   if (!format.ok()) return Fail(kExitUsage, format.status());
+  auto grouping = ParseGrouping(flags.grouping);
+  if (!grouping.ok()) return Fail(kExitUsage, grouping.status());
   auto result = SweepIndex(**reader, match, *keep, ThreadCount(flags.general));
   if (!result.ok()) return Fail(result.status());
+  if (*grouping != Grouping::kComponents) {
+    result->groups = GroupPairs(result->pairs, result->corpus.all_facts(), *keep, *grouping);
+    result->stats.groups = result->groups.size();
+    result->stats.drops = 0;
+    for (const Group& group : result->groups) result->stats.drops += group.members.size() - 1;
+  }
   result->stats.sign.documents = result->corpus.size();
   for (size_t doc = 0; doc < result->corpus.size(); ++doc) {
     result->stats.sign.empty_documents += result->corpus.shingle_count(doc) == 0;
   }
-  if (absl::Status status = WriteOutputs(flags, *result, *format, *keep); !status.ok()) {
+  if (absl::Status status = WriteOutputs(flags, *result, *format, *keep, *grouping);
+      !status.ok()) {
     return Fail(kExitOutput, status);
   }
   if (!flags.general.quiet) {
     SweepOptions options;
     options.match = match;
     options.keep = *keep;
+    options.grouping = *grouping;
     std::fprintf(stderr, "kindred sweep: index %s\n", flags.index.c_str());
     PrintSummary(*result, options);
   }
@@ -258,7 +339,7 @@ int RunSweepCommand(const SweepFlags& flags) {
   if (flags.inputs.empty()) {
     return Fail(kExitUsage, absl::InvalidArgumentError("no inputs (or --index) given"));
   }
-  auto input_options = ToInputOptions(flags.input);
+  auto input_options = ToInputOptions(flags.input, flags.general.verbose);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
   SweepOptions options;
   auto signature = ToSignatureSettings(flags.signature);
@@ -269,7 +350,15 @@ int RunSweepCommand(const SweepFlags& flags) {
   options.match = *match;
   auto keep = ParseKeepPolicy(flags.keep);
   if (!keep.ok()) return Fail(kExitUsage, keep.status());
+  if (*keep == KeepPolicy::kPriority && flags.input.priority_field.empty()) {
+    return Fail(kExitUsage, absl::InvalidArgumentError(
+                                "--keep priority needs --priority-field NAME (the JSON Lines "
+                                "field holding each document's priority)"));
+  }
   options.keep = *keep;
+  auto grouping = ParseGrouping(flags.grouping);
+  if (!grouping.ok()) return Fail(kExitUsage, grouping.status());
+  options.grouping = *grouping;
   auto format = ParseRecordFormat(flags.format);
   if (!format.ok()) return Fail(kExitUsage, format.status());
   options.exhaustive = flags.exhaustive;
@@ -316,6 +405,12 @@ int RunSweepCommand(const SweepFlags& flags) {
   if (absl::Status checked = CheckRecordOutputs(flags, *format, **reader); !checked.ok()) {
     return Fail(kExitUsage, checked);
   }
+  if (absl::Status checked = CheckKeptOptions(flags, **reader); !checked.ok()) {
+    return Fail(kExitUsage, checked);
+  }
+  if (absl::Status checked = CheckOutputLocations(flags); !checked.ok()) {
+    return Fail(absl::IsInvalidArgument(checked) ? kExitUsage : kExitOutput, checked);
+  }
   Progress progress(flags.general.quiet);
   options.sign.progress = [&progress](const SignStats& stats) {
     progress.Update(SigningProgress(stats, progress.Elapsed()));
@@ -335,7 +430,8 @@ int RunSweepCommand(const SweepFlags& flags) {
                 result.status());
   }
 
-  if (absl::Status status = WriteOutputs(flags, *result, *format, options.keep); !status.ok()) {
+  if (absl::Status status = WriteOutputs(flags, *result, *format, options.keep, options.grouping);
+      !status.ok()) {
     return Fail(kExitOutput, status);
   }
   if (WantsKept(flags)) {
@@ -349,6 +445,7 @@ int RunSweepCommand(const SweepFlags& flags) {
   if (!flags.general.quiet) {
     PrintSummary(*result, options);
     PrintRecordCounts(**reader);
+    PrintSkips((*reader)->skips());
     PrintThroughput(result->stats.sign.documents, result->stats.sign.bytes, progress.Elapsed());
   }
   if (flags.general.verbose) {
@@ -392,6 +489,14 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
       ->group("Resources");
   command->add_option("--keep", flags->keep, "keeper of each group: first, longest or priority")
       ->default_str("first")
+      ->group("Grouping");
+  command
+      ->add_option("--grouping", flags->grouping,
+                   "components (a group is a connected component of confirmed pairs) or "
+                   "keepers (the best document by --keep takes every ungrouped document it "
+                   "has a confirmed pair with, and so on: each drop is confirmed with its "
+                   "keeper)")
+      ->default_str("components")
       ->group("Grouping");
   command
       ->add_option("-o,--output-dir", flags->output_dir,

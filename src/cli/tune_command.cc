@@ -9,6 +9,7 @@
 #include "cli/common_options.h"
 #include "cli/formats.h"
 #include "cli/output.h"
+#include "cli/output_checks.h"
 #include "kindred/explain.h"
 #include "kindred/labels.h"
 #include "kindred/tune.h"
@@ -136,6 +137,7 @@ int RunTuneCommand(const TuneFlags& flags) {
   absl::StatusOr<TuneOptions> options = ToTuneOptions(flags);
   if (!options.ok()) return Fail(kExitUsage, options.status());
   if (absl::Status s = CheckFlags(flags); !s.ok()) return Fail(kExitUsage, s);
+  if (absl::Status s = CheckOutputFile(flags.report); !s.ok()) return Fail(kExitOutput, s);
   absl::StatusOr<std::vector<LabelledPair>> labels = ReadLabels(flags.labels);
   if (!labels.ok()) return Fail(kExitInput, labels.status());
 

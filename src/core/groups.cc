@@ -49,7 +49,80 @@ bool Better(const KeepFacts& candidate, const KeepFacts& best, KeepPolicy policy
   return false;
 }
 
+// The documents of `pairs`, ascending, without repeats.
+std::vector<uint32_t> PairedDocuments(absl::Span<const ScoredPair> pairs) {
+  std::vector<uint32_t> docs;
+  docs.reserve(2 * pairs.size());
+  for (const ScoredPair& pair : pairs) {
+    docs.push_back(pair.a);
+    docs.push_back(pair.b);
+  }
+  std::sort(docs.begin(), docs.end());
+  docs.erase(std::unique(docs.begin(), docs.end()), docs.end());
+  return docs;
+}
+
+uint32_t IndexOf(const std::vector<uint32_t>& docs, uint32_t doc) {
+  return static_cast<uint32_t>(std::lower_bound(docs.begin(), docs.end(), doc) - docs.begin());
+}
+
+// Groups around keepers (Grouping::kKeepers). `docs` from PairedDocuments.
+std::vector<Group> GroupAroundKeepers(absl::Span<const ScoredPair> pairs,
+                                      absl::Span<const KeepFacts> facts, KeepPolicy policy,
+                                      const std::vector<uint32_t>& docs) {
+  // Partners of each document, as compact indices (CSR).
+  std::vector<uint32_t> start(docs.size() + 1, 0);
+  for (const ScoredPair& pair : pairs) {
+    ++start[IndexOf(docs, pair.a) + 1];
+    ++start[IndexOf(docs, pair.b) + 1];
+  }
+  for (size_t i = 1; i < start.size(); ++i) start[i] += start[i - 1];
+  std::vector<uint32_t> partners(start.back()), fill(start.begin(), start.end() - 1);
+  for (const ScoredPair& pair : pairs) {
+    const uint32_t a = IndexOf(docs, pair.a), b = IndexOf(docs, pair.b);
+    partners[fill[a]++] = b;
+    partners[fill[b]++] = a;
+  }
+  // Keep-policy order: the best first, ties to the first seen.
+  std::vector<uint32_t> order(docs.size());
+  std::iota(order.begin(), order.end(), 0u);
+  std::stable_sort(order.begin(), order.end(), [&](uint32_t x, uint32_t y) {
+    return Better(facts[docs[x]], facts[docs[y]], policy);
+  });
+  constexpr uint32_t kNone = ~uint32_t{0};
+  std::vector<uint32_t> keeper_of(docs.size(), kNone);
+  std::vector<Group> groups;
+  for (uint32_t keeper : order) {
+    if (keeper_of[keeper] != kNone) continue;
+    keeper_of[keeper] = keeper;
+    Group group{docs[keeper], {docs[keeper]}};
+    for (uint32_t i = start[keeper]; i < start[keeper + 1]; ++i) {
+      const uint32_t partner = partners[i];
+      if (keeper_of[partner] != kNone) continue;
+      keeper_of[partner] = keeper;
+      group.members.push_back(docs[partner]);
+    }
+    if (group.members.size() < 2) continue;
+    std::sort(group.members.begin(), group.members.end());
+    groups.push_back(std::move(group));
+  }
+  std::sort(groups.begin(), groups.end(),
+            [](const Group& x, const Group& y) { return x.members[0] < y.members[0]; });
+  return groups;
+}
+
 }  // namespace
+
+absl::StatusOr<Grouping> ParseGrouping(std::string_view name) {
+  if (name == "components") return Grouping::kComponents;
+  if (name == "keepers") return Grouping::kKeepers;
+  return absl::InvalidArgumentError(absl::StrCat("unknown grouping \"", std::string(name),
+                                                 "\" (expected components or keepers)"));
+}
+
+const char* GroupingName(Grouping grouping) {
+  return grouping == Grouping::kKeepers ? "keepers" : "components";
+}
 
 absl::StatusOr<KeepPolicy> ParseKeepPolicy(std::string_view name) {
   if (name == "first") return KeepPolicy::kFirst;
@@ -72,21 +145,13 @@ const char* KeepPolicyName(KeepPolicy policy) {
 }
 
 std::vector<Group> GroupPairs(absl::Span<const ScoredPair> pairs, absl::Span<const KeepFacts> facts,
-                              KeepPolicy policy) {
+                              KeepPolicy policy, Grouping grouping) {
   // Only documents in a pair can be in a group: the union-find runs over
   // them alone (numbered in document order, so roots stay the smallest
   // members), and the work and memory follow the pairs, not the corpus.
-  std::vector<uint32_t> docs;
-  docs.reserve(2 * pairs.size());
-  for (const ScoredPair& pair : pairs) {
-    docs.push_back(pair.a);
-    docs.push_back(pair.b);
-  }
-  std::sort(docs.begin(), docs.end());
-  docs.erase(std::unique(docs.begin(), docs.end()), docs.end());
-  const auto index_of = [&docs](uint32_t doc) {
-    return static_cast<uint32_t>(std::lower_bound(docs.begin(), docs.end(), doc) - docs.begin());
-  };
+  const std::vector<uint32_t> docs = PairedDocuments(pairs);
+  if (grouping == Grouping::kKeepers) return GroupAroundKeepers(pairs, facts, policy, docs);
+  const auto index_of = [&docs](uint32_t doc) { return IndexOf(docs, doc); };
   UnionFind components(docs.size());
   for (const ScoredPair& pair : pairs) components.Unite(index_of(pair.a), index_of(pair.b));
 

@@ -62,8 +62,17 @@ std::string PlaceOf(const CorpusReader& reader, const SignedCorpus& corpus, uint
   const DocumentOrigin& origin = corpus.origin(doc);
   const ResolvedInput input = reader.ResolvedInputs()[origin.input];
   if (origin.line > 0) return absl::StrCat(input.name, ":", origin.line);
-  if (input.is_directory) return absl::StrCat(input.name, "/", corpus.id(doc));
-  return input.name;
+  if (input.is_directory && !reader.options().ids_with_path) {
+    return absl::StrCat(input.name, "/", corpus.id(doc));
+  }
+  return input.is_directory ? std::string(corpus.id(doc)) : input.name;
+}
+
+// A hint for an id repeated across two inputs.
+const char* HintFor(const CorpusReader& reader, const SignedCorpus& corpus, uint32_t first,
+                    const Document& doc) {
+  if (reader.options().ids_with_path || corpus.origin(first).input == doc.source.input) return "";
+  return "; --ids-with-path makes ids name their files";
 }
 
 // The set of ids seen so far, holding document indices and hashing the ids
@@ -271,7 +280,8 @@ class Pipeline {
         std::lock_guard<std::mutex> reading(read_mu_);  // ResolvedInputs() while others read
         return absl::InvalidArgumentError(absl::StrCat(Place(reader_, doc), ": duplicate id \"",
                                                        doc.id, "\" (first seen at ",
-                                                       PlaceOf(reader_, *out_, *it), ")"));
+                                                       PlaceOf(reader_, *out_, *it), ")",
+                                                       HintFor(reader_, *out_, *it, doc)));
       }
       TextStats& text = batch->text_stats[i];
       text.invalid_utf8 += doc.invalid_utf8;

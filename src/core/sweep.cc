@@ -121,7 +121,7 @@ Banding BandingFor(const SweepOptions& options) {
 
 // Groups result->pairs and fills the counts of result->stats.
 void GroupAndCount(const SignedCorpus& corpus, const SweepOptions& options, SweepResult* result) {
-  result->groups = GroupPairs(result->pairs, corpus.all_facts(), options.keep);
+  result->groups = GroupPairs(result->pairs, corpus.all_facts(), options.keep, options.grouping);
   SweepStats& stats = result->stats;
   stats.confirmed_pairs = result->pairs.size();
   stats.groups = result->groups.size();

@@ -2,6 +2,7 @@
 #include <algorithm>
 
 #include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
 #include "kindred/records.h"
 #include "kindred/verify.h"
 
@@ -29,11 +30,15 @@ void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
 }
 
 void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
-                       absl::Span<const std::string> ids, KeepPolicy policy, std::string* out) {
+                       absl::Span<const std::string> ids, KeepPolicy policy, std::string* out,
+                       Grouping grouping) {
+  const bool keepers = grouping == Grouping::kKeepers;
   if (format != RecordFormat::kJsonLines) {
     // One row per drop: a list of ids in one field could not be split back
     // when ids hold the separator.
-    RecordWriter writer(format, {"group", "size", "keeper", "drop", "policy"}, out);
+    std::vector<std::string> columns = {"group", "size", "keeper", "drop", "policy"};
+    if (keepers) columns.push_back("grouping");
+    RecordWriter writer(format, std::move(columns), out);
     for (size_t g = 0; g < groups.size(); ++g) {
       for (uint32_t member : groups[g].members) {
         if (member == groups[g].keeper) continue;
@@ -42,12 +47,15 @@ void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
         writer.String(ids[groups[g].keeper]);
         writer.String(ids[member]);
         writer.String(KeepPolicyName(policy));
+        if (keepers) writer.String(GroupingName(grouping));
         writer.EndRow();
       }
     }
     return;
   }
-  RecordWriter writer(format, {"group", "size", "keeper", "drops", "policy"}, out);
+  std::vector<std::string> columns = {"group", "size", "keeper", "drops", "policy"};
+  if (keepers) columns.push_back("grouping");
+  RecordWriter writer(format, std::move(columns), out);
   std::vector<std::string_view> drops;
   for (size_t g = 0; g < groups.size(); ++g) {
     drops.clear();
@@ -59,6 +67,7 @@ void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
     writer.String(ids[groups[g].keeper]);
     writer.StringList(drops);
     writer.String(KeepPolicyName(policy));
+    if (keepers) writer.String(GroupingName(grouping));
     writer.EndRow();
   }
 }
@@ -78,13 +87,42 @@ void Consider(BestMatch* best, uint32_t partner, double jaccard) {
   }
 }
 
+std::string PriorityText(const KeepFacts& facts) {
+  return facts.has_priority ? absl::StrCat(facts.priority) : "none";
+}
+
+// The reason of a group member's decision. `keeper_jaccard` >= 0: the
+// drop's similarity with its keeper, shown.
+std::string Reason(const Group& group, uint32_t doc, absl::Span<const std::string> ids,
+                   KeepPolicy policy, absl::Span<const KeepFacts> facts, double keeper_jaccard) {
+  const bool priorities = policy == KeepPolicy::kPriority && !facts.empty();
+  if (doc == group.keeper) {
+    if (!priorities) return absl::StrCat("keeper of its group (policy ", KeepPolicyName(policy), ")");
+    return absl::StrCat("keeper of its group (policy priority, priority ",
+                        PriorityText(facts[doc]), ")");
+  }
+  std::string reason = absl::StrCat("near-duplicate; ", ids[group.keeper], " is kept");
+  if (keeper_jaccard >= 0) {
+    absl::StrAppend(&reason, absl::StrFormat(" (jaccard %.6f with it)", keeper_jaccard));
+  }
+  if (priorities) {
+    absl::StrAppend(&reason, " (priority ", PriorityText(facts[group.keeper]), " against ",
+                    PriorityText(facts[doc]), ")");
+  }
+  return reason;
+}
+
 }  // namespace
 
 void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
                           absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
-                          absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out) {
-  RecordWriter writer(
-      format, {"id", "decision", "group", "keeper", "best_match", "jaccard", "reason"}, out);
+                          absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out,
+                          absl::Span<const KeepFacts> facts, Grouping grouping) {
+  const bool keepers = grouping == Grouping::kKeepers;
+  std::vector<std::string> columns = {"id",         "decision", "group", "keeper",
+                                      "best_match", "jaccard",  "reason"};
+  if (keepers) columns.push_back("grouping");
+  RecordWriter writer(format, std::move(columns), out);
   // (document, group index) of every group member, in document order: the
   // work and memory follow the members, not the corpus.
   std::vector<std::pair<uint32_t, uint32_t>> members;
@@ -95,11 +133,16 @@ void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
   }
   std::sort(members.begin(), members.end());
   std::vector<BestMatch> best(members.size());
+  // Around keepers: each drop's Jaccard similarity with its keeper.
+  std::vector<double> with_keeper(keepers ? members.size() : 0, -1);
   const auto consider = [&](uint32_t doc, uint32_t partner, double jaccard) {
     const auto it =
         std::lower_bound(members.begin(), members.end(), std::pair<uint32_t, uint32_t>{doc, 0});
     if (it != members.end() && it->first == doc) {
       Consider(&best[it - members.begin()], partner, jaccard);
+      if (keepers && groups[it->second].keeper == partner) {
+        with_keeper[it - members.begin()] = jaccard;
+      }
     }
   };
   for (const ScoredPair& pair : pairs) {
@@ -117,11 +160,13 @@ void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
       writer.Null();
       writer.Null();
       writer.String("empty document: no shingles, never a duplicate");
+      if (keepers) writer.String(GroupingName(grouping));
       writer.EndRow();
       continue;
     }
     const uint32_t g = members[next].second;
     const BestMatch& match = best[next];
+    const double keeper_jaccard = keepers ? with_keeper[next] : -1;
     ++next;
     const Group& group = groups[g];
     const bool keeper = group.keeper == doc;
@@ -131,8 +176,8 @@ void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
     writer.String(ids[group.keeper]);
     writer.String(ids[match.partner]);
     writer.Similarity(match.jaccard);
-    writer.String(keeper ? absl::StrCat("keeper of its group (policy ", KeepPolicyName(policy), ")")
-                         : absl::StrCat("near-duplicate; ", ids[group.keeper], " is kept"));
+    writer.String(Reason(group, static_cast<uint32_t>(doc), ids, policy, facts, keeper_jaccard));
+    if (keepers) writer.String(GroupingName(grouping));
     writer.EndRow();
   }
 }

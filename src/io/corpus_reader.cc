@@ -6,8 +6,10 @@
 #include <optional>
 #include <utility>
 
+#include "absl/container/flat_hash_set.h"
 #include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
+#include "io/binary_content.h"
 #include "io/buffered_input.h"
 #include "io/byte_stream.h"
 #include "io/json_line.h"
@@ -90,6 +92,7 @@ class CorpusReader::Impl {
   std::atomic<uint64_t> raw_bytes_{0};
   uint64_t raw_total_ = 0;
   std::function<bool(uint64_t)> wanted_;
+  InputSkips skips_;
   bool defer_parsing_ = false;
 
  private:
@@ -107,6 +110,11 @@ class CorpusReader::Impl {
   }
   absl::StatusOr<bool> NextLineDocument(Document* doc);
   absl::StatusOr<bool> NextTreeDocument(Document* doc);
+  // Reads the file at `path` as one text document; with the options, sets
+  // *skip instead (counted, reported) for a binary or unreadable file.
+  absl::Status ReadFileDocument(const std::string& path, Document* doc, bool* skip);
+  absl::Status ReadTextOnly(const std::string& path, Document* doc);
+  void EndTree();  // adds the tree's counts to skips_
   absl::StatusOr<bool> StartInput(Document* doc);
   // `whole_input`: the file is an input of its own (not a file of a tree),
   // so that line offsets can find a line again (DocumentSource::offset).
@@ -128,6 +136,7 @@ class CorpusReader::Impl {
   io::JsonLineParser json_;
   size_t current_ = 0;                        // input being read
   std::optional<io::TreeWalker> tree_;        // set while reading a tree
+  absl::flat_hash_set<std::string> skipped_here_;  // reopened: the tree's skipped files
   std::unique_ptr<io::BufferedInput> lines_;  // set while reading JSON Lines
   std::string lines_name_;                    // their name in ids and messages
   std::string lines_path_;                    // their path in DocumentSource
@@ -227,6 +236,9 @@ absl::StatusOr<bool> CorpusReader::Impl::NextLineDocument(Document* doc) {
   } else {
     absl::Status parsed = json_.Parse(line, lines_display_, number, doc);
     if (!parsed.ok()) return parsed;
+    if (options_.ids_with_path && options_.id_field != io::kLineNumberId) {
+      doc->id.insert(0, absl::StrCat(lines_name_, ":"));
+    }
   }
   if (options_.id_field == io::kLineNumberId) doc->id = absl::StrCat(lines_name_, ":", number);
   doc->source.input = static_cast<uint32_t>(current_);
@@ -236,41 +248,74 @@ absl::StatusOr<bool> CorpusReader::Impl::NextLineDocument(Document* doc) {
   return true;
 }
 
+absl::Status CorpusReader::Impl::ReadFileDocument(const std::string& path, Document* doc,
+                                                   bool* skip) {
+  *skip = false;
+  std::string why;
+  auto input = OpenBuffered(path);
+  absl::Status read = input.ok() ? ReadTextDocument(input->get(), doc) : input.status();
+  if (!read.ok()) {
+    if (!options_.skip_unreadable) return read;
+    ++skips_.unreadable;
+    why = std::string(read.message());
+    const std::string named = absl::StrCat(path, ": ");  // the path is said once
+    if (absl::StartsWith(why, named)) why.erase(0, named.size());
+  } else if (!options_.include_binary && io::LooksBinary(doc->text, &why)) {
+    ++skips_.binary;
+  } else {
+    return absl::OkStatus();
+  }
+  *skip = true;
+  if (options_.on_skip) options_.on_skip(path, why);
+  return absl::OkStatus();
+}
+
 absl::StatusOr<bool> CorpusReader::Impl::NextTreeDocument(Document* doc) {
   std::string relative, full;
-  std::unique_ptr<io::ByteStream> sniffed;
-  do {
+  ResolvedInput& resolved = resolved_[current_];
+  for (;;) {
     absl::StatusOr<bool> more = tree_->Next(&relative, &full);
     if (!more.ok() || !*more) return more;
-    const InputFormat format = resolved_[current_].format;
-    if (format == InputFormat::kJsonLines) {
+    if (resolved.format == InputFormat::kJsonLines) {
       absl::Status opened = OpenLines(full, full, false);
       if (!opened.ok()) return opened;
       return false;  // the caller reads the lines
     }
-    if (Sniffs(format)) {
+    if (Sniffs(resolved.format)) {
       bool warc = false;
-      auto stream = OpenSniffed(full, format, &warc, nullptr);
-      if (!stream.ok()) return stream.status();
-      if (warc) return false;  // the caller reads the records
-      sniffed = std::move(*stream);
+      auto stream = OpenSniffed(full, resolved.format, &warc, nullptr);
+      // An unreadable file is skipped below when --skip-unreadable asks for it.
+      if (!stream.ok() && !options_.skip_unreadable) return stream.status();
+      if (stream.ok() && warc) return false;  // the caller reads the records
     }
-  } while (!TakeNext());
-  std::unique_ptr<io::BufferedInput> input;
-  if (sniffed != nullptr) {
-    input = std::make_unique<io::BufferedInput>(std::move(sniffed), io::DisplayName(full),
-                                                options_.max_document_bytes);
-  } else {
-    auto opened = OpenBuffered(full);
-    if (!opened.ok()) return opened.status();
-    input = std::move(*opened);
+    if (reopened_ && skipped_here_.contains(relative)) continue;
+    if (!TakeNext()) continue;
+    bool skip = false;
+    absl::Status read = reopened_ ? ReadTextOnly(full, doc) : ReadFileDocument(full, doc, &skip);
+    if (!read.ok()) return read;
+    if (!skip) break;
+    resolved.skipped_files.push_back(std::move(relative));
   }
-  absl::Status read = ReadTextDocument(input.get(), doc);
-  if (!read.ok()) return read;
-  doc->id = std::move(relative);
+  doc->id = options_.ids_with_path ? full : std::move(relative);
   doc->source.input = static_cast<uint32_t>(current_);
   doc->source.path = std::move(full);
   return true;
+}
+
+absl::Status CorpusReader::Impl::ReadTextOnly(const std::string& path, Document* doc) {
+  auto input = OpenBuffered(path);
+  if (!input.ok()) return input.status();
+  return ReadTextDocument(input->get(), doc);
+}
+
+void CorpusReader::Impl::EndTree() {
+  skips_.links += tree_->counts().links;
+  skips_.broken_links += tree_->counts().broken_links;
+  skips_.repeated_directories += tree_->counts().repeated_directories;
+  skips_.fifos += tree_->counts().fifos;
+  skips_.sockets += tree_->counts().sockets;
+  skips_.devices += tree_->counts().devices;
+  tree_.reset();
 }
 
 // Opens input current_. Returns true when it produced a document (a text
@@ -278,7 +323,13 @@ absl::StatusOr<bool> CorpusReader::Impl::NextTreeDocument(Document* doc) {
 absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
   ResolvedInput& input = resolved_[current_];
   if (input.is_directory) {
-    tree_.emplace(input.name);
+    tree_.emplace(input.name, options_.follow_links);
+    skipped_here_.clear();
+    if (reopened_) skipped_here_.insert(input.skipped_files.begin(), input.skipped_files.end());
+    return false;
+  }
+  if (reopened_ && input.skipped) {
+    ++current_;
     return false;
   }
   if (input.format == InputFormat::kJsonLines && (!input.is_stdin || reopened_)) {
@@ -291,24 +342,43 @@ absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
     ++current_;
     return false;
   }
+  // A text file named alone is read whole by ReadFileDocument (binary and
+  // unreadable files may be skipped); standard input and second readings
+  // stream below.
+  const bool whole_file = input.format == InputFormat::kText && !input.is_stdin && !reopened_;
   io::Compression compression = io::Compression::kNone;
   absl::StatusOr<std::unique_ptr<io::BufferedInput>> opened;
   if (sniffs) {
     bool warc = false;
     auto stream = OpenSniffed(PathOf(input), input.format, &warc, &compression);
-    if (!stream.ok()) return stream.status();
-    if (warc) {
+    if (!stream.ok()) {
+      if (!(whole_file && options_.skip_unreadable)) return stream.status();
+      opened = stream.status();
+    } else if (warc) {
       input.format = InputFormat::kWarc;
       return false;  // the caller reads the records
+    } else {
+      opened = std::make_unique<io::BufferedInput>(
+          std::move(*stream), io::DisplayName(PathOf(input)), options_.max_document_bytes);
     }
-    opened = std::make_unique<io::BufferedInput>(
-        std::move(*stream), io::DisplayName(PathOf(input)), options_.max_document_bytes);
     if (input.format == InputFormat::kText && !TakeNext()) {
       ++current_;
       return false;
     }
-  } else {
+  } else if (!whole_file) {
     opened = OpenBuffered(PathOf(input), &compression);
+  }
+  if (whole_file) {
+    bool skip = false;
+    absl::Status read = ReadFileDocument(input.name, doc, &skip);
+    if (!read.ok()) return read;
+    input.skipped = skip;
+    ++current_;
+    if (skip) return false;
+    doc->id = input.name;
+    doc->source.input = static_cast<uint32_t>(current_ - 1);
+    doc->source.path = input.name;
+    return true;
   }
   if (!opened.ok()) return opened.status();
   if (input.format == InputFormat::kAuto) {
@@ -358,7 +428,7 @@ absl::StatusOr<bool> CorpusReader::Impl::Next(Document* doc) {
       absl::StatusOr<bool> more = NextTreeDocument(doc);
       if (!more.ok() || *more) return more;
       if (lines_ == nullptr && warc_ == nullptr) {
-        tree_.reset();
+        EndTree();
         ++current_;
       }
       continue;
@@ -456,8 +526,13 @@ void CorpusReader::DeferParsing() { impl_->defer_parsing_ = true; }
 
 class LineParser::Impl {
  public:
-  explicit Impl(const InputOptions& options) : json(options) {}
+  explicit Impl(const InputOptions& options)
+      : json(options),
+        ids_with_path(options.ids_with_path && options.id_field != io::kLineNumberId),
+        stdin_copy_path(options.stdin_copy_path) {}
   io::JsonLineParser json;
+  bool ids_with_path;
+  std::string stdin_copy_path;
   std::string line;  // the raw line, swapped out of the document
 };
 
@@ -473,7 +548,13 @@ absl::Status LineParser::Finish(Document* doc) {
   const std::string& path = doc->source.path;
   // As io::DisplayName, without a copy of the path for every line.
   const absl::string_view display = path == "-" ? "standard input" : absl::string_view(path);
-  return impl_->json.Parse(impl_->line, display, doc->source.line, doc);
+  absl::Status parsed = impl_->json.Parse(impl_->line, display, doc->source.line, doc);
+  if (parsed.ok() && impl_->ids_with_path) {
+    // Standard input read again from its copy keeps the name "-".
+    const bool copy = !impl_->stdin_copy_path.empty() && path == impl_->stdin_copy_path;
+    doc->id.insert(0, absl::StrCat(copy ? absl::string_view("-") : absl::string_view(path), ":"));
+  }
+  return parsed;
 }
 
 InputFormat CorpusReader::FormatOf(uint32_t input) const { return impl_->resolved_[input].format; }
@@ -484,6 +565,7 @@ void CorpusReader::SetFilter(std::function<bool(uint64_t ordinal)> wanted) {
 const std::vector<std::string>& CorpusReader::inputs() const { return impl_->inputs_; }
 std::vector<ResolvedInput> CorpusReader::ResolvedInputs() const { return impl_->resolved_; }
 uint64_t CorpusReader::documents_read() const { return impl_->ordinal_; }
+InputSkips CorpusReader::skips() const { return impl_->skips_; }
 uint64_t CorpusReader::raw_bytes_read() const {
   return impl_->raw_bytes_.load(std::memory_order_relaxed);
 }

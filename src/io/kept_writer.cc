@@ -5,6 +5,7 @@
 #include <optional>
 #include <utility>
 
+#include "absl/container/flat_hash_set.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "io/buffered_input.h"
@@ -145,14 +146,18 @@ absl::StatusOr<bool> KeptPass::IsWarcFile(const std::string& path) const {
 }
 
 absl::Status KeptPass::ReadInput(const ResolvedInput& input) {
+  if (input.skipped) return absl::OkStatus();  // binary or unreadable: not a document
   if (input.format == InputFormat::kWarc && !input.is_directory) return CopyWarc(input.read_path);
   if (input.is_directory) {
-    io::TreeWalker walker(input.read_path);
+    io::TreeWalker walker(input.read_path, request_.options.follow_links);
+    const absl::flat_hash_set<std::string> skipped(input.skipped_files.begin(),
+                                                   input.skipped_files.end());
     std::string relative, full;
     for (;;) {
       absl::StatusOr<bool> more = walker.Next(&relative, &full);
       if (!more.ok()) return more.status();
       if (!*more) return absl::OkStatus();
+      if (skipped.contains(relative)) continue;
       absl::StatusOr<bool> warc = input.format == InputFormat::kWarc ? true : IsWarcFile(full);
       if (!warc.ok()) return warc.status();
       absl::Status done = *warc ? CopyWarc(full)

@@ -13,25 +13,53 @@
 namespace kindred::io {
 namespace {
 
-// Regular file, directory, or something to skip (links, devices, ...).
+// Regular file, directory, or something skipped (and counted).
 enum class Kind { kFile, kDirectory, kOther };
 
-Kind KindOf(int dir_fd, const dirent& entry) {
+Kind KindOfMode(mode_t mode, TreeCounts* counts) {
+  if (S_ISREG(mode)) return Kind::kFile;
+  if (S_ISDIR(mode)) return Kind::kDirectory;
+  if (S_ISFIFO(mode)) {
+    ++counts->fifos;
+  } else if (S_ISSOCK(mode)) {
+    ++counts->sockets;
+  } else if (S_ISCHR(mode) || S_ISBLK(mode)) {
+    ++counts->devices;
+  }
+  return Kind::kOther;
+}
+
+Kind KindOf(int dir_fd, const dirent& entry, bool follow_links, TreeCounts* counts) {
   switch (entry.d_type) {
     case DT_REG:
       return Kind::kFile;
     case DT_DIR:
       return Kind::kDirectory;
     case DT_UNKNOWN:
+    case DT_LNK:
       break;
+    case DT_FIFO:
+      ++counts->fifos;
+      return Kind::kOther;
+    case DT_SOCK:
+      ++counts->sockets;
+      return Kind::kOther;
     default:
+      ++counts->devices;
       return Kind::kOther;
   }
   struct stat info;
   if (fstatat(dir_fd, entry.d_name, &info, AT_SYMLINK_NOFOLLOW) != 0) return Kind::kOther;
-  if (S_ISREG(info.st_mode)) return Kind::kFile;
-  if (S_ISDIR(info.st_mode)) return Kind::kDirectory;
-  return Kind::kOther;
+  if (!S_ISLNK(info.st_mode)) return KindOfMode(info.st_mode, counts);
+  if (!follow_links) {
+    ++counts->links;
+    return Kind::kOther;
+  }
+  if (fstatat(dir_fd, entry.d_name, &info, 0) != 0) {
+    ++counts->broken_links;
+    return Kind::kOther;
+  }
+  return KindOfMode(info.st_mode, counts);
 }
 
 }  // namespace
@@ -41,7 +69,17 @@ std::string StripTrailingSlashes(std::string path) {
   return path;
 }
 
-TreeWalker::TreeWalker(std::string root) : root_(StripTrailingSlashes(std::move(root))) {}
+void TreeCounts::Add(const TreeCounts& other) {
+  links += other.links;
+  broken_links += other.broken_links;
+  repeated_directories += other.repeated_directories;
+  fifos += other.fifos;
+  sockets += other.sockets;
+  devices += other.devices;
+}
+
+TreeWalker::TreeWalker(std::string root, bool follow_links)
+    : root_(StripTrailingSlashes(std::move(root))), follow_links_(follow_links) {}
 
 absl::Status TreeWalker::PushDirectory(std::string prefix) {
   std::string path = prefix.empty() ? root_ : absl::StrCat(root_, "/", prefix);
@@ -49,13 +87,23 @@ absl::Status TreeWalker::PushDirectory(std::string prefix) {
   if (dir == nullptr) {
     return absl::ErrnoToStatus(errno, absl::StrCat(path, ": cannot read directory"));
   }
+  struct stat info;
+  if (fstat(dirfd(dir), &info) == 0 &&
+      !walked_.insert({static_cast<uint64_t>(info.st_dev), static_cast<uint64_t>(info.st_ino)})
+           .second) {
+    closedir(dir);
+    ++counts_.repeated_directories;
+    return absl::OkStatus();  // walked already: nothing pushed
+  }
   Level level;
   level.prefix = std::move(prefix);
-  errno = 0;
-  while (const dirent* entry = readdir(dir)) {
+  for (;;) {
+    errno = 0;  // stat calls below may set it: readdir's own error only
+    const dirent* entry = readdir(dir);
+    if (entry == nullptr) break;
     absl::string_view name = entry->d_name;
     if (name == "." || name == "..") continue;
-    Kind kind = KindOf(dirfd(dir), *entry);
+    Kind kind = KindOf(dirfd(dir), *entry, follow_links_, &counts_);
     if (kind == Kind::kOther) continue;
     Entry item;
     item.is_directory = kind == Kind::kDirectory;

@@ -78,6 +78,22 @@ expect_stderr "nope.txt: cannot open" "missing file message"
 expect_exit 3 "unknown id" -- "$KINDRED" explain --corpus "$ARCHIVE" "$A" no/such.txt
 expect_stderr "id \"no/such.txt\" is not in the corpus" "unknown id message"
 expect_exit 3 "unknown index id" -- "$KINDRED" explain --index "$WORK/archive.kin" "$A" no/such.txt
+expect_exit 3 "a directory as a file" -- "$KINDRED" explain "$ARCHIVE" "$ARCHIVE/$A"
+expect_stderr "is a directory" "directory message"
+
+# 5. Files are read as every other command reads them: compression is found
+#    by content, so a gzip or zstd copy explains like its plain original.
+gzip -c "$ARCHIVE/$A" >"$WORK/a.gz"
+zstd -q -c "$ARCHIVE/$B" >"$WORK/b.bin"
+"$KINDRED" explain "$ARCHIVE/$A" "$ARCHIVE/$B" --format jsonl >"$WORK/plain.json" || fail "explain plain"
+expect_exit 0 "explain compressed" -- "$KINDRED" explain "$WORK/a.gz" "$WORK/b.bin" --format jsonl
+cmp -s <(sed 's/"a":"[^"]*","b":"[^"]*",//' "$WORK/out") <(sed 's/"a":"[^"]*","b":"[^"]*",//' "$WORK/plain.json") ||
+  fail "compressed files explain differently from their plain copies"
+expect_exit 0 "explain a file and its gzip copy" -- "$KINDRED" explain "$ARCHIVE/$A" "$WORK/a.gz" --format jsonl
+grep -q '"jaccard":1.000000' "$WORK/out" || fail "a file and its gzip copy: $(cat "$WORK/out")"
+head -c 100 "$WORK/a.gz" >"$WORK/cut.gz"
+expect_exit 3 "truncated gzip" -- "$KINDRED" explain "$WORK/cut.gz" "$ARCHIVE/$A"
+expect_stderr "cut.gz" "truncated gzip names the file"
 expect_exit 2 "bad k" -- "$KINDRED" explain "$ARCHIVE/$A" "$ARCHIVE/$B" -k 0
 
 finish
