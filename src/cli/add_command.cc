@@ -11,6 +11,7 @@
 #include "cli/output.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
+#include "kindred/index_query.h"
 #include "kindred/index_writer.h"
 #include "kindred/records.h"
 #include "kindred/signed_corpus.h"
@@ -93,12 +94,11 @@ int RunAdd(const AddFlags& flags) {
       !status.ok()) {
     return Fail(kExitInput, status);
   }
-  IndexMatchOptions options{match, threads,
-                            /*exclude_same_id=*/*policy == DuplicateIdPolicy::kReplace};
+  IndexMatchOptions options{match, threads, false};
   options.max_bucket = flags.max_bucket;
   uint64_t crowded = 0;
   options.crowded_keys = &crowded;
-  auto matches = MatchAgainstIndex(**reader, batch, options);
+  auto matches = MatchForQuery(**reader, batch, *policy, options);
   if (!matches.ok()) return Fail(matches.status());
   auto appended = (*writer)->Append(batch, *policy);
   if (!appended.ok()) return Fail(WriteExitCode(appended.status()), appended.status());
