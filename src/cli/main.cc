@@ -51,6 +51,7 @@ int main(int argc, char** argv) {
   RegisterCompact(app, &exit_code);
   RegisterTune(app, &exit_code);
   RegisterExplain(app, &exit_code);
+  RegisterServe(app, &exit_code);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
