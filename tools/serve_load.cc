@@ -7,6 +7,8 @@
 // BODIES is a file of request bodies, one per line; "@ID@" in a body is
 // replaced by an id unique to the request (for adds). Requests cycle
 // through the bodies, each client starting at its own offset.
+#include <httplib.h>
+
 #include <algorithm>
 #include <atomic>
 #include <chrono>
@@ -15,8 +17,6 @@
 #include <string>
 #include <thread>
 #include <vector>
-
-#include <httplib.h>
 
 int main(int argc, char** argv) {
   if (argc != 8) {
@@ -49,7 +49,8 @@ int main(int argc, char** argv) {
       client.set_read_timeout(60);
       httplib::Headers headers;
       if (token != "-") headers.emplace("Authorization", "Bearer " + token);
-      const std::string tag = std::to_string(std::chrono::system_clock::now().time_since_epoch().count());
+      const std::string tag =
+          std::to_string(std::chrono::system_clock::now().time_since_epoch().count());
       for (size_t n = c * 7919; std::chrono::steady_clock::now() < deadline; ++n) {
         const long number = issued.fetch_add(1);
         if (limit > 0 && number >= limit) break;

@@ -38,11 +38,10 @@ struct ServeFlags {
 // Splits "ADDR:PORT" ("[v6]:PORT" for IPv6).
 absl::Status ParseListen(const std::string& listen, std::string* host, int* port) {
   const size_t colon = listen.rfind(':');
-  if (colon == std::string::npos || colon == 0 || !absl::SimpleAtoi(listen.substr(colon + 1), port) ||
-      *port < 0 || *port > 65535) {
-    return absl::InvalidArgumentError(
-        absl::StrCat("--listen: expected ADDRESS:PORT (port 0 picks a free one), not \"", listen,
-                     "\""));
+  if (colon == std::string::npos || colon == 0 ||
+      !absl::SimpleAtoi(listen.substr(colon + 1), port) || *port < 0 || *port > 65535) {
+    return absl::InvalidArgumentError(absl::StrCat(
+        "--listen: expected ADDRESS:PORT (port 0 picks a free one), not \"", listen, "\""));
   }
   *host = listen.substr(0, colon);
   if (host->size() > 2 && host->front() == '[' && host->back() == ']') {
@@ -84,7 +83,8 @@ absl::StatusOr<HttpOptions> ToHttpOptions(const ServeFlags& flags) {
         "listening on ", options.host, ", which is not a loopback address, needs --token-file"));
   }
   if (flags.allow_add && options.token.empty()) {
-    return absl::InvalidArgumentError("--allow-add needs --token-file: every add must carry the token");
+    return absl::InvalidArgumentError(
+        "--allow-add needs --token-file: every add must carry the token");
   }
   auto document = ParseByteSize(flags.max_document_size);
   if (!document.ok()) return document.status();
@@ -129,7 +129,7 @@ int RunServe(const ServeFlags& flags) {
   (*service)->WithReader([&live](const IndexReader& reader) { live = reader.live_count(); });
   std::fprintf(stderr, "kindred serve: listening on http://%s:%d/ (index %s, %u documents, %s)\n",
                options->host.find(':') == std::string::npos ? options->host.c_str()
-                                                           : ("[" + options->host + "]").c_str(),
+                                                            : ("[" + options->host + "]").c_str(),
                *port, flags.index.c_str(), live,
                flags.allow_add ? "adds allowed with the token" : "read-only");
   std::atomic<bool> running{true};
@@ -157,7 +157,8 @@ int RunServe(const ServeFlags& flags) {
 void RegisterServe(CLI::App& app, int* exit_code) {
   auto flags = std::make_shared<ServeFlags>();
   CLI::App* command = app.add_subcommand(
-      "serve", "Hold an index open and answer checks (and adds) over HTTP, with a page for editors");
+      "serve",
+      "Hold an index open and answer checks (and adds) over HTTP, with a page for editors");
   command->add_option("index", flags->index, "the index file")->required();
   command->add_option("--listen", flags->listen,
                       "ADDRESS:PORT to listen on; port 0 picks a free one (default "
@@ -167,23 +168,29 @@ void RegisterServe(CLI::App& app, int* exit_code) {
   command->add_flag("--allow-add", flags->allow_add,
                     "accept adds (takes the writer lock; needs --token-file)");
   command->add_option("--workers", flags->workers, "worker threads (default 8)")->group("Limits");
-  command->add_option("--queue", flags->queue,
-                      "connections waiting for a worker before 503 (default 64)")
+  command
+      ->add_option("--queue", flags->queue,
+                   "connections waiting for a worker before 503 (default 64)")
       ->group("Limits");
-  command->add_option("--max-document-size", flags->max_document_size,
-                      "largest document text (default 64M)")
+  command
+      ->add_option("--max-document-size", flags->max_document_size,
+                   "largest document text (default 64M)")
       ->group("Limits");
-  command->add_option("--max-request-size", flags->max_request_size,
-                      "largest request body (default 256M)")
+  command
+      ->add_option("--max-request-size", flags->max_request_size,
+                   "largest request body (default 256M)")
       ->group("Limits");
-  command->add_option("--max-documents", flags->max_documents,
-                      "documents per request at most (default 10000)")
+  command
+      ->add_option("--max-documents", flags->max_documents,
+                   "documents per request at most (default 10000)")
       ->group("Limits");
-  command->add_option("--io-timeout", flags->io_timeout,
-                      "seconds one read or write may wait (default 5)")
+  command
+      ->add_option("--io-timeout", flags->io_timeout,
+                   "seconds one read or write may wait (default 5)")
       ->group("Limits");
-  command->add_option("--request-timeout", flags->request_timeout,
-                      "seconds a connection may take to complete a request (default 30)")
+  command
+      ->add_option("--request-timeout", flags->request_timeout,
+                   "seconds a connection may take to complete a request (default 30)")
       ->group("Limits");
   command->add_flag("-q,--quiet", flags->quiet, "no request log on stderr");
   command->callback([flags, exit_code] { *exit_code = RunServe(*flags); });

@@ -22,11 +22,10 @@ struct Route {
   const char* path;
   const char* method;
 };
-constexpr Route kRoutes[] = {{"/", "GET"},          {"/v1/health", "GET"}, {"/v1/info", "GET"},
-                             {"/metrics", "GET"},   {"/v1/check", "POST"}, {"/v1/add", "POST"}};
+constexpr Route kRoutes[] = {{"/", "GET"},        {"/v1/health", "GET"}, {"/v1/info", "GET"},
+                             {"/metrics", "GET"}, {"/v1/check", "POST"}, {"/v1/add", "POST"}};
 
-void SetError(httplib::Response& res, int status, std::string_view kind,
-              std::string_view message) {
+void SetError(httplib::Response& res, int status, std::string_view kind, std::string_view message) {
   std::string body = "{\"error\":";
   AppendJsonString(&body, message);
   body += ",\"kind\":";
@@ -139,8 +138,8 @@ httplib::Server::HandlerResponse HttpServer::Impl::PreRoute(const httplib::Reque
              "this service is read-only: start it with --allow-add to accept adds");
     return HR::Handled;
   }
-  const bool guarded = path == "/v1/add" || (!options.token.empty() && path != "/" &&
-                                             path != "/v1/health");
+  const bool guarded =
+      path == "/v1/add" || (!options.token.empty() && path != "/" && path != "/v1/health");
   if (guarded && !Authorized(req)) {
     res.set_header("WWW-Authenticate", "Bearer");
     SetError(res, 401, "unauthorized", "a valid \"Authorization: Bearer\" token is required");
@@ -169,12 +168,12 @@ httplib::Server::HandlerResponse HttpServer::Impl::PreRoute(const httplib::Reque
 
 void HttpServer::Impl::Query(const httplib::Request& req, httplib::Response& res, bool add) {
   const std::string type = req.get_header_value("Content-Type");
-  auto request = type.rfind("text/plain", 0) == 0
-                     ? service::TextRequest(req.body,
-                                            req.has_param("id") ? req.get_param_value("id")
-                                                                : std::string("upload"),
-                                            options.limits)
-                     : service::ParseJsonRequest(req.body, options.limits);
+  auto request =
+      type.rfind("text/plain", 0) == 0
+          ? service::TextRequest(
+                req.body, req.has_param("id") ? req.get_param_value("id") : std::string("upload"),
+                options.limits)
+          : service::ParseJsonRequest(req.body, options.limits);
   if (!request.ok()) return SetStatusError(res, request.status());
   t_documents = request->documents.size();
   auto reply = add ? service->Add(*request) : service->Check(*request);
@@ -183,8 +182,9 @@ void HttpServer::Impl::Query(const httplib::Request& req, httplib::Response& res
 }
 
 void HttpServer::Impl::Log(const httplib::Request& req, const httplib::Response& res) {
-  const double seconds =
-      t_start == Clock::time_point{} ? 0 : std::chrono::duration<double>(Clock::now() - t_start).count();
+  const double seconds = t_start == Clock::time_point{}
+                             ? 0
+                             : std::chrono::duration<double>(Clock::now() - t_start).count();
   metrics.Record(req.path, res.status, seconds);
   if (watchdog) watchdog->RequestDone(absl::StrCat(req.remote_addr, ":", req.remote_port));
   if (options.log_requests) {
@@ -208,7 +208,8 @@ void HttpServer::Impl::Install() {
   server.set_tcp_nodelay(true);
   server.set_pre_routing_handler(
       [this](const httplib::Request& req, httplib::Response& res) { return PreRoute(req, res); });
-  server.set_logger([this](const httplib::Request& req, const httplib::Response& res) { Log(req, res); });
+  server.set_logger(
+      [this](const httplib::Request& req, const httplib::Response& res) { Log(req, res); });
   server.set_error_handler([](const httplib::Request&, httplib::Response& res) {
     if (!res.body.empty()) return;
     SetError(res, res.status, res.status == 413 ? "too_large" : "bad_request",
@@ -231,10 +232,10 @@ void HttpServer::Impl::Install() {
   });
   server.Get("/v1/health", [this](const httplib::Request&, httplib::Response& res) {
     const service::ServiceCounts counts = service->counts();
-    res.set_content(absl::StrFormat("{\"status\":\"ok\",\"live\":%u,\"allow_add\":%s}\n",
-                                    counts.live_documents,
-                                    service->allows_add() ? "true" : "false"),
-                    "application/json");
+    res.set_content(
+        absl::StrFormat("{\"status\":\"ok\",\"live\":%u,\"allow_add\":%s}\n", counts.live_documents,
+                        service->allows_add() ? "true" : "false"),
+        "application/json");
   });
   server.Get("/metrics", [this](const httplib::Request&, httplib::Response& res) {
     res.set_content(metrics.Render(service->counts()), "text/plain; version=0.0.4");
@@ -262,8 +263,8 @@ absl::StatusOr<int> HttpServer::Bind() {
     port = -1;
   }
   if (port < 0) {
-    return absl::UnavailableError(absl::StrCat("cannot listen on ", impl_->options.host, ":",
-                                               impl_->options.port));
+    return absl::UnavailableError(
+        absl::StrCat("cannot listen on ", impl_->options.host, ":", impl_->options.port));
   }
   return port;
 }
@@ -272,8 +273,7 @@ void HttpServer::Run() {
   impl_->watchdog = std::make_unique<ConnectionWatchdog>(
       impl_->options.request_timeout, [this](const std::string& peer, double seconds) {
         impl_->metrics.CountCutOff();
-        std::fprintf(stderr,
-                     "kindred serve: cut off %s after %.1f s without a complete request\n",
+        std::fprintf(stderr, "kindred serve: cut off %s after %.1f s without a complete request\n",
                      peer.c_str(), seconds);
       });
   impl_->server.listen_after_bind();

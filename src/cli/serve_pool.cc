@@ -80,8 +80,8 @@ void WorkerPool::Work(bool rejecting) {
   }
 }
 
-ConnectionWatchdog::ConnectionWatchdog(
-    std::chrono::seconds timeout, std::function<void(const std::string&, double)> on_cut)
+ConnectionWatchdog::ConnectionWatchdog(std::chrono::seconds timeout,
+                                       std::function<void(const std::string&, double)> on_cut)
     : timeout_(timeout), on_cut_(std::move(on_cut)), thread_([this] { Loop(); }) {}
 
 ConnectionWatchdog::~ConnectionWatchdog() {

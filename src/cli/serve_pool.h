@@ -20,6 +20,8 @@
 #ifndef KINDRED_CLI_SERVE_POOL_H_
 #define KINDRED_CLI_SERVE_POOL_H_
 
+#include <httplib.h>
+
 #include <atomic>
 #include <chrono>
 #include <condition_variable>
@@ -31,8 +33,6 @@
 #include <string>
 #include <thread>
 #include <vector>
-
-#include <httplib.h>
 
 namespace kindred::cli {
 

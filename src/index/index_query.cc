@@ -10,8 +10,9 @@ namespace kindred {
 absl::StatusOr<Measure> ParseMeasure(std::string_view name) {
   if (name == "jaccard") return Measure::kJaccard;
   if (name == "containment") return Measure::kContainment;
-  return absl::InvalidArgumentError(
-      absl::StrCat("measure: expected jaccard or containment, not \"", absl::string_view(name.data(), name.size()), "\""));
+  return absl::InvalidArgumentError(absl::StrCat("measure: expected jaccard or containment, not \"",
+                                                 absl::string_view(name.data(), name.size()),
+                                                 "\""));
 }
 
 absl::StatusOr<MatchSettings> ResolveQueryMatch(const IndexSettings& stored,
@@ -110,8 +111,8 @@ absl::Status TextSigner::Sign(absl::Span<const TextDocument> documents, SignedCo
     auto& [set, text] = signed_docs[i];
     status = shingler->Shingle(documents[i].text, &set, &text);
     if (!status.ok()) {
-      status = absl::Status(status.code(), absl::StrCat("document \"", documents[i].id,
-                                                        "\": ", status.message()));
+      status = absl::Status(status.code(),
+                            absl::StrCat("document \"", documents[i].id, "\": ", status.message()));
       break;
     }
     signer_.Sign(set, absl::MakeSpan(&signatures[i * settings_.perms], settings_.perms));

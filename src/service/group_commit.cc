@@ -150,9 +150,9 @@ void GroupCommitter::CommitGroup(const std::vector<Pending*>& group,
     if (!result.ok()) {
       writer_.reset();  // a failed writer refuses further appends: open again next time
       for (Pending* p : members) {
-        p->status = absl::AbortedError(absl::StrCat(
-            "writing the index failed, nothing of this request was added: ",
-            result.status().message()));
+        p->status = absl::AbortedError(
+            absl::StrCat("writing the index failed, nothing of this request was added: ",
+                         result.status().message()));
       }
       return;
     }

@@ -54,8 +54,9 @@ struct CommitOutcome {
 class GroupCommitter {
  public:
   // Opens the writer (takes the lock). Errors: IndexWriter::Open's.
-  static absl::StatusOr<std::unique_ptr<GroupCommitter>> Open(
-      const std::string& path, size_t max_group_documents, std::function<void()> after_commit);
+  static absl::StatusOr<std::unique_ptr<GroupCommitter>> Open(const std::string& path,
+                                                              size_t max_group_documents,
+                                                              std::function<void()> after_commit);
   // Answers the queued requests, then stops the thread and releases the lock.
   ~GroupCommitter();
 

@@ -17,9 +17,8 @@ double SecondsSince(std::chrono::steady_clock::time_point start) {
 }
 
 // The byte spans of the query document's text whose shingles `other` holds.
-void AppendMarkedSpans(const std::vector<ShingleText>& texts,
-                               absl::Span<const uint64_t> other, uint64_t seed,
-                               std::string* out) {
+void AppendMarkedSpans(const std::vector<ShingleText>& texts, absl::Span<const uint64_t> other,
+                       uint64_t seed, std::string* out) {
   *out += ",\"marked_spans\":[";
   bool first = true;
   for (const TextSpan& span : SharedSpans(texts, other, seed)) {
@@ -201,8 +200,8 @@ absl::StatusOr<std::string> IndexService::Add(const ServiceRequest& request) {
     absl::StrAppend(&reply, ",\"action\":\"", AddActionName(action),
                     "\",\"number\":", outcome->numbers[i], "}");
   }
-  documents_added_ += counts[static_cast<int>(AddAction::kAdded)] +
-                      counts[static_cast<int>(AddAction::kReplaced)];
+  documents_added_ +=
+      counts[static_cast<int>(AddAction::kAdded)] + counts[static_cast<int>(AddAction::kReplaced)];
   matches_ += matches.size();
   absl::StrAppendFormat(&reply, "],\"added\":%u,\"replaced\":%u,\"skipped\":%u,\"segment\":%s,",
                         counts[static_cast<int>(AddAction::kAdded)],

@@ -72,8 +72,8 @@ std::string ServiceMetrics::Render(const ServiceCounts& counts) const {
           counts.segments);
   Counter(&out, "kindred_add_requests_committed_total", "Add requests committed.",
           counts.add_requests_committed);
-  Counter(&out, "kindred_busy_rejections_total", "Requests answered 503 because all workers were busy.",
-          rejected_.load());
+  Counter(&out, "kindred_busy_rejections_total",
+          "Requests answered 503 because all workers were busy.", rejected_.load());
   Counter(&out, "kindred_connections_cut_total",
           "Connections cut off for taking longer than the request timeout.", cut_off_.load());
   Counter(&out, "kindred_live_documents", "Live documents in the index.", counts.live_documents,

@@ -26,9 +26,8 @@ class ServiceMetrics {
   // The routes counted; anything else counts as "other".
   static constexpr std::array<std::string_view, 7> kRoutes = {
       "/", "/v1/check", "/v1/add", "/v1/info", "/v1/health", "/metrics", "other"};
-  static constexpr std::array<double, 14> kBounds = {0.0005, 0.001, 0.002, 0.005, 0.01,
-                                                     0.025,  0.05,  0.1,   0.25,  0.5,
-                                                     1,      2.5,   5,     10};
+  static constexpr std::array<double, 14> kBounds = {0.0005, 0.001, 0.002, 0.005, 0.01, 0.025, 0.05,
+                                                     0.1,    0.25,  0.5,   1,     2.5,  5,     10};
 
   // One answered request.
   void Record(std::string_view path, int status, double seconds);

@@ -56,9 +56,9 @@ absl::Status ReadDocuments(element list, const RequestLimits& limits, ServiceReq
       return Malformed(absl::StrCat("documents[", index, "].text: expected a string"));
     }
     if (body.size() > limits.max_document_bytes) {
-      return absl::ResourceExhaustedError(
-          absl::StrCat("document \"", *id_text, "\" has ", body.size(),
-                       " bytes: the limit is ", limits.max_document_bytes));
+      return absl::ResourceExhaustedError(absl::StrCat("document \"", *id_text, "\" has ",
+                                                       body.size(), " bytes: the limit is ",
+                                                       limits.max_document_bytes));
     }
     out->documents.push_back(TextDocument{std::move(*id_text), std::string(body)});
     ++index;
@@ -87,7 +87,8 @@ absl::Status ReadOptions(simdjson::dom::object object, ServiceRequest* out) {
         out->query.measure = *measure;
       } else {
         auto policy = ParseDuplicateIdPolicy(name);
-        if (!policy.ok()) return Malformed(absl::StrCat("on_duplicate: ", policy.status().message()));
+        if (!policy.ok())
+          return Malformed(absl::StrCat("on_duplicate: ", policy.status().message()));
         out->on_duplicate = *policy;
       }
     } else if (key == "max_bucket") {
@@ -121,8 +122,8 @@ absl::StatusOr<ServiceRequest> ParseJsonRequest(std::string_view body,
   element root;
   if (auto error = parser.parse(padded).get(root); error != simdjson::SUCCESS) {
     if (error == simdjson::DEPTH_ERROR) {
-      return Malformed(absl::StrCat("malformed JSON: nested deeper than ", limits.max_depth,
-                                    " levels"));
+      return Malformed(
+          absl::StrCat("malformed JSON: nested deeper than ", limits.max_depth, " levels"));
     }
     return Malformed(absl::StrCat("malformed JSON: ", simdjson::error_message(error)));
   }
