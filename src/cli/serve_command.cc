@@ -28,7 +28,7 @@ struct ServeFlags {
   int workers = 8;
   size_t queue = 64;
   std::string max_document_size = "64M";
-  std::string max_request_size = "256M";
+  std::string max_request_size = "64M";
   uint64_t max_documents = 10000;
   int io_timeout = 5;
   int request_timeout = 30;
@@ -178,7 +178,7 @@ void RegisterServe(CLI::App& app, int* exit_code) {
       ->group("Limits");
   command
       ->add_option("--max-request-size", flags->max_request_size,
-                   "largest request body (default 256M)")
+                   "largest request body (default 64M)")
       ->group("Limits");
   command
       ->add_option("--max-documents", flags->max_documents,

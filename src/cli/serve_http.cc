@@ -271,9 +271,12 @@ absl::StatusOr<int> HttpServer::Bind() {
 
 void HttpServer::Run() {
   impl_->watchdog = std::make_unique<ConnectionWatchdog>(
-      impl_->options.request_timeout, [this](const std::string& peer, double seconds) {
+      impl_->options.request_timeout, impl_->options.max_request_bytes + (1 << 20),
+      [this](const std::string& peer, double seconds) {
         impl_->metrics.CountCutOff();
-        std::fprintf(stderr, "kindred serve: cut off %s after %.1f s without a complete request\n",
+        std::fprintf(stderr,
+                     "kindred serve: cut off %s after %.1f s without a complete request (too slow "
+                     "or too large)\n",
                      peer.c_str(), seconds);
       });
   impl_->server.listen_after_bind();

@@ -32,7 +32,7 @@ struct HttpOptions {
   std::string token;
   int workers = 8;
   size_t queued = 64;                         // connections waiting for a worker
-  uint64_t max_request_bytes = 256ull << 20;  // request body
+  uint64_t max_request_bytes = 64ull << 20;  // request body
   std::chrono::seconds io_timeout{5};         // each read or write
   std::chrono::seconds request_timeout{30};   // a whole request
   bool log_requests = true;

@@ -6,9 +6,12 @@
 #include <sys/socket.h>
 #include <unistd.h>
 
+#include <cstddef>
 #include <cstdlib>
 #include <cstring>
 #include <set>
+
+#include "cli/socket_bytes.h"
 
 namespace kindred::cli {
 namespace {
@@ -80,9 +83,12 @@ void WorkerPool::Work(bool rejecting) {
   }
 }
 
-ConnectionWatchdog::ConnectionWatchdog(std::chrono::seconds timeout,
+ConnectionWatchdog::ConnectionWatchdog(std::chrono::seconds timeout, uint64_t max_bytes,
                                        std::function<void(const std::string&, double)> on_cut)
-    : timeout_(timeout), on_cut_(std::move(on_cut)), thread_([this] { Loop(); }) {}
+    : timeout_(timeout),
+      max_bytes_(max_bytes),
+      on_cut_(std::move(on_cut)),
+      thread_([this] { Loop(); }) {}
 
 ConnectionWatchdog::~ConnectionWatchdog() {
   {
@@ -166,16 +172,18 @@ void ConnectionWatchdog::Scan() {
       if (peer.empty()) continue;
       seen.insert(inode);
       peers.insert(peer);
-      auto [it, fresh] = since_.emplace(inode, now);
-      if (auto done = done_.find(peer); done != done_.end() && done->second > it->second) {
-        it->second = done->second;
+      const uint64_t bytes = BytesReceived(fd);
+      auto [it, fresh] = since_.emplace(inode, Window{now, bytes});
+      Window& window = it->second;
+      if (auto done = done_.find(peer); done != done_.end() && done->second > window.since) {
+        window = Window{done->second, bytes};
       }
-      const double age = std::chrono::duration<double>(now - it->second).count();
-      if (now - it->second > timeout_) {
+      const double age = std::chrono::duration<double>(now - window.since).count();
+      if (now - window.since > timeout_ || bytes - window.bytes > max_bytes_) {
         overdue.emplace_back(fd, inode);
         ages.push_back(age);
         overdue_peers.push_back(peer);
-        it->second = now;
+        window = Window{now, bytes};
       }
     }
     std::erase_if(since_, [&seen](const auto& entry) { return !seen.contains(entry.first); });

@@ -13,8 +13,10 @@
 // request, so a client that sends one byte a second would hold a worker for
 // hours. Every half second the watchdog lists the process's connected
 // sockets (/proc/self/fd) and shuts down any that has gone longer than the
-// request timeout without completing a request (RequestDone, keyed by the
-// peer's address), which ends the worker's read at once.
+// request timeout, or has received more than `max_bytes`, without completing
+// a request (RequestDone, keyed by the peer's address), which ends the
+// worker's read at once. (cpp-httplib bounds each header line, not their
+// number; the byte bound keeps a flood of headers from taking memory.)
 //
 // Thread-safety: all methods may be called concurrently.
 #ifndef KINDRED_CLI_SERVE_POOL_H_
@@ -65,7 +67,7 @@ class WorkerPool : public httplib::TaskQueue {
 class ConnectionWatchdog {
  public:
   // Calls on_cut(peer, seconds) for each connection cut off.
-  ConnectionWatchdog(std::chrono::seconds timeout,
+  ConnectionWatchdog(std::chrono::seconds timeout, uint64_t max_bytes,
                      std::function<void(const std::string& peer, double seconds)> on_cut);
   ~ConnectionWatchdog();
   // A request from `peer` ("address:port") was answered.
@@ -76,12 +78,18 @@ class ConnectionWatchdog {
   void Scan();
 
   const std::chrono::seconds timeout_;
+  const uint64_t max_bytes_;
   std::function<void(const std::string&, double)> on_cut_;
   std::mutex mu_;
   std::condition_variable wake_;
   bool stopping_ = false;
-  // socket inode -> when first seen or last finished a request
-  std::map<uint64_t, std::chrono::steady_clock::time_point> since_;
+  // Per socket inode: since when, and from which count of bytes received,
+  // it has been without a completed request.
+  struct Window {
+    std::chrono::steady_clock::time_point since;
+    uint64_t bytes = 0;
+  };
+  std::map<uint64_t, Window> since_;
   std::map<std::string, std::chrono::steady_clock::time_point> done_;  // peer -> last answer
   std::thread thread_;
 };

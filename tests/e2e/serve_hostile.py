@@ -121,6 +121,24 @@ check(healthy_during and all(s == 200 for s in healthy_during),
       "answers during the slow client: %s" % healthy_during)
 check("cut off 127.0.0.1:" in server.text_log(), "the log names the connection cut off")
 
+# A flood of header lines (each under the line limit) is cut off once it
+# passes the request limit, instead of filling memory.
+cuts_before = server.text_log().count("cut off")
+flood = socket.create_connection(("127.0.0.1", server.port), timeout=3)
+flood.sendall(b"GET /v1/health HTTP/1.1\r\nHost: x\r\n")
+lines = (b"X-Filler: " + b"a" * 90 + b"\r\n") * 10000
+start, sent = time.monotonic(), 0
+try:
+    while time.monotonic() - start < 20 and sent < 256 << 20:
+        flood.sendall(lines)
+        sent += len(lines)
+except OSError:
+    pass
+flood.close()
+check(sent < 64 << 20 and server.text_log().count("cut off") > cuts_before,
+      "a header flood is cut off (%d bytes sent in %.1f s)" % (sent, time.monotonic() - start))
+healthy("a header flood")
+
 # A disk-full add answers 500 and leaves the index unchanged: see the
 # library's fault-injection tests (the service passes the writer's error on).
 check(server.stop() == 0, "exit 0 after the hostile requests")
