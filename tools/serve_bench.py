@@ -51,6 +51,12 @@ def load(tool, port, token, route, clients, seconds, requests, body_file):
     return result
 
 
+def cpu_seconds(pid):
+    """User + system CPU seconds of a process so far."""
+    fields = open(f"/proc/{pid}/stat").read().rsplit(")", 1)[1].split()
+    return (int(fields[11]) + int(fields[12])) / os.sysconf("SC_CLK_TCK")
+
+
 def main():
     parser = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     parser.add_argument("--kindred", default=str(ROOT / "build/kindred"))
@@ -99,16 +105,20 @@ def main():
         elif server.poll() is not None:
             sys.exit("serve failed: " + text)
         time.sleep(0.05)
-    print(f"machine: {os.cpu_count()} cores; index of {args.docs} documents of about 5 KB; "
+    load_average = open("/proc/loadavg").read().split()[0]
+    print(f"machine: {os.cpu_count()} cores, load average {load_average} before the run; index of {args.docs} documents of about 5 KB; "
           f"service ready in {time.monotonic() - start:.1f} s")
     try:
         for label, body_file in [("uploads that copy an indexed document", copies),
                                  ("uploads that match nothing", originals)]:
+            cpu = cpu_seconds(server.pid)
             one = load(args.load_tool, port, token, "/v1/check", 1, 600, args.single, body_file)
+            cpu = (cpu_seconds(server.pid) - cpu) / max(1, one["requests"])
             many = load(args.load_tool, port, token, "/v1/check", 16, args.seconds, 0, body_file)
             print(f"check, {label}:")
             print(f"  1 client:   median {one['median_ms']:.3f} ms, 99th percentile "
-                  f"{one['p99_ms']:.3f} ms ({one['requests']} checks, {one['errors']} errors)")
+                  f"{one['p99_ms']:.3f} ms ({one['requests']} checks, {one['errors']} errors); "
+                  f"service CPU {cpu * 1e3:.3f} ms per check")
             print(f"  16 clients: {many['per_second']:.0f} checks/s, median {many['median_ms']:.3f} ms, "
                   f"99th percentile {many['p99_ms']:.3f} ms ({many['requests']} checks, "
                   f"{many['errors']} errors)")

@@ -127,7 +127,11 @@ void GroupCommitter::CommitGroup(const std::vector<Pending*>& group,
     }
     return;
   }
-  SignedCorpus combined(writer_->reader().settings().signature.perms);
+  if (combined_ == nullptr || combined_->memory_bytes() > (64 << 20)) {
+    combined_ = std::make_unique<SignedCorpus>(writer_->reader().settings().signature.perms);
+  }
+  combined_->Clear();
+  SignedCorpus& combined = *combined_;
   absl::flat_hash_set<std::string> ids;
   std::vector<Pending*> members;
   std::vector<std::vector<int64_t>> positions;

@@ -83,6 +83,7 @@ class GroupCommitter {
   size_t max_group_documents_ = 0;
   std::function<void()> after_commit_;
   std::unique_ptr<IndexWriter> writer_;  // commit thread only (after Open)
+  std::unique_ptr<SignedCorpus> combined_;  // the group's documents, reused
 
   mutable std::mutex mu_;
   std::condition_variable wake_;

@@ -2,6 +2,7 @@
 
 #include <chrono>
 
+#include "absl/cleanup/cleanup.h"
 #include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
@@ -155,9 +156,31 @@ absl::Status IndexService::SignAndMatch(const ServiceRequest& request,
   return RecordsToArray(lines, *matches, request, **reader, *batch, records);
 }
 
+std::unique_ptr<SignedCorpus> IndexService::TakeCorpus() {
+  {
+    std::lock_guard<std::mutex> lock(pool_mu_);
+    if (!pool_.empty()) {
+      std::unique_ptr<SignedCorpus> corpus = std::move(pool_.back());
+      pool_.pop_back();
+      return corpus;
+    }
+  }
+  return std::make_unique<SignedCorpus>(reader_->settings().signature.perms);
+}
+
+void IndexService::GiveCorpus(std::unique_ptr<SignedCorpus> corpus) {
+  constexpr size_t kLargest = 16 << 20;  // a corpus grown larger is let go
+  if (corpus->memory_bytes() > kLargest) return;
+  corpus->Clear();
+  std::lock_guard<std::mutex> lock(pool_mu_);
+  pool_.push_back(std::move(corpus));
+}
+
 absl::StatusOr<std::string> IndexService::Check(const ServiceRequest& request) {
   const auto start = std::chrono::steady_clock::now();
-  SignedCorpus batch(reader_->settings().signature.perms);
+  std::unique_ptr<SignedCorpus> corpus = TakeCorpus();
+  absl::Cleanup give = [this, &corpus] { GiveCorpus(std::move(corpus)); };
+  SignedCorpus& batch = *corpus;
   std::vector<IndexMatch> matches;
   std::string reply = "{\"matches\":[";
   if (absl::Status status = SignAndMatch(request, std::nullopt, &batch, &matches, &reply);
@@ -180,7 +203,9 @@ absl::StatusOr<std::string> IndexService::Add(const ServiceRequest& request) {
         "this service is read-only: start it with --allow-add to accept adds");
   }
   const auto start = std::chrono::steady_clock::now();
-  SignedCorpus batch(reader_->settings().signature.perms);
+  std::unique_ptr<SignedCorpus> corpus = TakeCorpus();
+  absl::Cleanup give = [this, &corpus] { GiveCorpus(std::move(corpus)); };
+  SignedCorpus& batch = *corpus;
   std::vector<IndexMatch> matches;
   std::string reply = "{\"matches\":[";
   if (absl::Status status = SignAndMatch(request, request.on_duplicate, &batch, &matches, &reply);
