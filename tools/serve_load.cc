@@ -62,7 +62,11 @@ int main(int argc, char** argv) {
         auto result = client.Post(path.c_str(), headers, body, "application/json");
         const auto t1 = std::chrono::steady_clock::now();
         if (!result || result->status != 200) {
-          errors++;
+          if (errors++ < 5) {
+            std::fprintf(stderr, "kindred_serve_load: %s\n",
+                         result ? ("HTTP " + std::to_string(result->status)).c_str()
+                                : httplib::to_string(result.error()).c_str());
+          }
           continue;
         }
         latencies[c].push_back(std::chrono::duration<double>(t1 - t0).count());

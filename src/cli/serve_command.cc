@@ -25,7 +25,7 @@ struct ServeFlags {
   std::string listen = "127.0.0.1:8750";
   std::string token_file;
   bool allow_add = false;
-  int workers = 8;
+  int workers = 32;
   size_t queue = 64;
   std::string max_document_size = "64M";
   std::string max_request_size = "64M";
@@ -167,7 +167,7 @@ void RegisterServe(CLI::App& app, int* exit_code) {
                       "file holding the bearer token that requests must carry");
   command->add_flag("--allow-add", flags->allow_add,
                     "accept adds (takes the writer lock; needs --token-file)");
-  command->add_option("--workers", flags->workers, "worker threads (default 8)")->group("Limits");
+  command->add_option("--workers", flags->workers, "worker threads; each open connection holds one (default 32)")->group("Limits");
   command
       ->add_option("--queue", flags->queue,
                    "connections waiting for a worker before 503 (default 64)")

@@ -6,6 +6,7 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "cli/serve_pool.h"
+#include "cli/socket_info.h"
 #include "kindred/records.h"
 
 namespace kindred::cli {
@@ -202,7 +203,7 @@ void HttpServer::Impl::Install() {
   };
   server.set_read_timeout(options.io_timeout);
   server.set_write_timeout(options.io_timeout);
-  server.set_keep_alive_timeout(5);
+  server.set_keep_alive_timeout(2);
   server.set_keep_alive_max_count(1000);
   server.set_payload_max_length(options.max_request_bytes);
   server.set_tcp_nodelay(true);
@@ -266,6 +267,7 @@ absl::StatusOr<int> HttpServer::Bind() {
     return absl::UnavailableError(
         absl::StrCat("cannot listen on ", impl_->options.host, ":", impl_->options.port));
   }
+  WidenListenBacklogs(SOMAXCONN);
   return port;
 }
 

@@ -30,7 +30,7 @@ struct HttpOptions {
   int port = 8750;  // 0: any free port
   // The bearer token; empty: none (then adds are refused).
   std::string token;
-  int workers = 8;
+  int workers = 32;
   size_t queued = 64;                         // connections waiting for a worker
   uint64_t max_request_bytes = 64ull << 20;  // request body
   std::chrono::seconds io_timeout{5};         // each read or write

@@ -11,7 +11,7 @@
 #include <cstring>
 #include <set>
 
-#include "cli/socket_bytes.h"
+#include "cli/socket_info.h"
 
 namespace kindred::cli {
 namespace {
