@@ -16,11 +16,13 @@ struct GroupCommitter::Pending {
 };
 
 absl::StatusOr<std::unique_ptr<GroupCommitter>> GroupCommitter::Open(
-    const std::string& path, size_t max_group_documents, std::function<void()> after_commit) {
-  auto writer = IndexWriter::Open(path);
+    const std::string& path, size_t max_group_documents, std::function<void()> after_commit,
+    const IndexWriteOptions& write_options) {
+  auto writer = IndexWriter::Open(path, write_options);
   if (!writer.ok()) return writer.status();
   std::unique_ptr<GroupCommitter> committer(new GroupCommitter());
   committer->path_ = path;
+  committer->write_options_ = write_options;
   committer->max_group_documents_ = std::max<size_t>(1, max_group_documents);
   committer->after_commit_ = std::move(after_commit);
   committer->writer_ = std::move(*writer);
@@ -119,7 +121,9 @@ bool GroupCommitter::Resolve(Pending* p, SignedCorpus* combined, std::vector<int
 void GroupCommitter::CommitGroup(const std::vector<Pending*>& group,
                                  std::vector<Pending*>* deferred) {
   if (writer_ == nullptr) {
-    if (auto reopened = IndexWriter::Open(path_); reopened.ok()) writer_ = std::move(*reopened);
+    if (auto reopened = IndexWriter::Open(path_, write_options_); reopened.ok()) {
+      writer_ = std::move(*reopened);
+    }
   }
   if (writer_ == nullptr) {
     for (Pending* p : group) {

@@ -54,9 +54,9 @@ struct CommitOutcome {
 class GroupCommitter {
  public:
   // Opens the writer (takes the lock). Errors: IndexWriter::Open's.
-  static absl::StatusOr<std::unique_ptr<GroupCommitter>> Open(const std::string& path,
-                                                              size_t max_group_documents,
-                                                              std::function<void()> after_commit);
+  static absl::StatusOr<std::unique_ptr<GroupCommitter>> Open(
+      const std::string& path, size_t max_group_documents, std::function<void()> after_commit,
+      const IndexWriteOptions& write_options = {});
   // Answers the queued requests, then stops the thread and releases the lock.
   ~GroupCommitter();
 
@@ -80,6 +80,7 @@ class GroupCommitter {
   bool Resolve(Pending* p, SignedCorpus* combined, std::vector<int64_t>* positions);
 
   std::string path_;
+  IndexWriteOptions write_options_;
   size_t max_group_documents_ = 0;
   std::function<void()> after_commit_;
   std::unique_ptr<IndexWriter> writer_;  // commit thread only (after Open)
