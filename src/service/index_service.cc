@@ -53,10 +53,13 @@ absl::Status RecordsToArray(std::string_view lines, absl::Span<const IndexMatch>
       if (!made.ok()) return made.status();
       texts[m.query] = std::move(*made);
     }
-    absl::Span<const uint64_t> other = batch.shingles(m.other);
+    // m.other is an index document number, or a batch one.
+    absl::Span<const uint64_t> other;
     if (m.in_index) {
       if (absl::Status read = reader.ReadShingles(m.other, &stored); !read.ok()) return read;
       other = stored;
+    } else {
+      other = batch.shingles(m.other);
     }
     *out += record.substr(0, record.size() - 1);  // without the closing brace
     AppendMarkedSpans(*texts[m.query], other, reader.settings().signature.seed, out);

@@ -54,6 +54,11 @@ def trial(number):
     threads = [threading.Thread(target=client, args=(c,)) for c in range(4)]
     for t in threads:
         t.start()
+    # Kill at a random moment once adds are being acknowledged (a slow build,
+    # under a sanitizer, takes longer to answer the first).
+    deadline = time.monotonic() + 30
+    while not acknowledged and time.monotonic() < deadline:
+        time.sleep(0.02)
     time.sleep(random.Random(number).uniform(0.2, 0.8))
     server.stop(signal.SIGKILL)
     stop.set()
