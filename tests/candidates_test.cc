@@ -6,6 +6,7 @@
 #include <map>
 #include <set>
 
+#include "absl/strings/str_cat.h"
 #include "kindred/groups.h"
 #include "kindred/signer.h"
 #include "testlib/similar_sets.h"
@@ -36,7 +37,7 @@ SignedCorpus MakeCorpus(size_t n, uint64_t seed, Banding lean = {0, 0}) {
     std::sort(set.begin(), set.end());
     set.erase(std::unique(set.begin(), set.end()), set.end());
     signer.Sign(set, absl::MakeSpan(signature));
-    corpus.Add("d" + std::to_string(doc), KeepFacts{}, DocumentOrigin{}, set, signature);
+    corpus.Add(absl::StrCat("d", doc), KeepFacts{}, DocumentOrigin{}, set, signature);
   }
   return corpus;
 }
@@ -98,7 +99,7 @@ TEST_CASE("Crowded buckets pair every member with the first only", "[candidates]
   std::vector<uint32_t> signature(settings.perms);
   signer.Sign(set, absl::MakeSpan(signature));
   for (int doc = 0; doc < 300; ++doc) {
-    corpus.Add("t" + std::to_string(doc), KeepFacts{}, DocumentOrigin{}, set, signature);
+    corpus.Add(absl::StrCat("t", doc), KeepFacts{}, DocumentOrigin{}, set, signature);
   }
   CandidateStats stats;
   const auto pairs = FindCandidatePairs(corpus, Banding{16, 8}, 2, &stats, /*max_bucket=*/50);
@@ -128,7 +129,7 @@ TEST_CASE("Empty documents are in no bucket", "[candidates]") {
   std::vector<uint32_t> signature(settings.perms);
   signer.Sign({}, absl::MakeSpan(signature));
   for (int doc = 0; doc < 3; ++doc) {
-    corpus.Add("e" + std::to_string(doc), KeepFacts{}, DocumentOrigin{}, {}, signature);
+    corpus.Add(absl::StrCat("e", doc), KeepFacts{}, DocumentOrigin{}, {}, signature);
   }
   CandidateStats stats;
   CHECK(FindCandidatePairs(corpus, Banding{16, 8}, 1, &stats).empty());

@@ -108,11 +108,17 @@ TEST_CASE("file header round-trips every field", "[format]") {
   settings.rows = 9;
   settings.threshold = 0.65;
   settings.measure = Measure::kContainment;
-  std::string header = EncodeFileHeader(settings);
+  const uint32_t version = GENERATE(1u, 2u);
+  CAPTURE(version);
+  std::string header = EncodeFileHeader(settings, version);
   REQUIRE(header.size() % 8 == 0);
-  REQUIRE(header.size() == 56 + 24 + 8);  // 22 bytes of text padded to 24
+  // Version 1: 22 bytes of text padded to 24; version 2: one 512-byte sector.
+  REQUIRE(header.size() == (version == 1 ? 56 + 24 + 8 : 512));
+  if (version == 2) {
+    REQUIRE(header.substr(80, 512 - 88) == std::string(512 - 88, '\0'));
+  }
   REQUIRE(header.substr(0, 8) == std::string("KINDRED\x1a", 8));
-  REQUIRE(LoadU32(header.data() + 8) == 1);
+  REQUIRE(LoadU32(header.data() + 8) == version);
   REQUIRE(LoadU32(header.data() + 12) == header.size());
   REQUIRE(header[16] == 1);  // char
   REQUIRE(header[17] == 1);  // classic
@@ -126,8 +132,10 @@ TEST_CASE("file header round-trips every field", "[format]") {
   REQUIRE(header.substr(56, 22) == settings.unicode_version);
   IndexSettings back;
   size_t size = 0;
-  REQUIRE(DecodeFileHeader(header, &back, &size).ok());
+  uint32_t version_back = 0;
+  REQUIRE(DecodeFileHeader(header, &back, &size, &version_back).ok());
   REQUIRE(size == header.size());
+  REQUIRE(version_back == version);
   REQUIRE(back == settings);
 }
 
@@ -143,12 +151,12 @@ TEST_CASE("file header errors", "[format]") {
   REQUIRE(absl::IsDataLoss(DecodeFileHeader(flipped, &back, &size)));
   // A newer version with a valid checksum: FailedPrecondition, not DataLoss.
   std::string newer = header;
-  newer[8] = 2;
+  newer[8] = 3;
   uint64_t checksum = Checksum(std::string_view(newer).substr(0, newer.size() - 8));
   std::memcpy(newer.data() + newer.size() - 8, &checksum, 8);
   absl::Status status = DecodeFileHeader(newer, &back, &size);
   REQUIRE(absl::IsFailedPrecondition(status));
-  REQUIRE(std::string(status.message()).find("version 2 is newer") != std::string::npos);
+  REQUIRE(std::string(status.message()).find("version 3 is newer") != std::string::npos);
 }
 
 TEST_CASE("segment encodes and parses every field", "[format]") {
@@ -234,7 +242,14 @@ TEST_CASE("torn and corrupt segments are told apart", "[format]") {
   std::string damaged = whole;
   damaged[kSegmentHeaderSize + 3] ^= 0x10;
   REQUIRE(view.Parse(damaged, 0, 0, 0, 16, &error) == SegmentScan::kCorrupt);
-  REQUIRE(std::string(error.message()) == "index segment 0 at byte 0: checksum mismatch");
+  SegmentHeader header;
+  REQUIRE(DecodeSegmentHeader(whole, &header));
+  SectionLayout layout;
+  REQUIRE(ComputeLayout(header, 16, UINT64_MAX, &layout));
+  REQUIRE(std::string(error.message()) ==
+          "index segment 0 at byte 0: its tables (bytes 0.." +
+              std::to_string(kSegmentHeaderSize + layout.tables_end) +
+              ": ids, signatures, band keys) fail their checksum");
 }
 
 }  // namespace

@@ -5,6 +5,7 @@
 // oracle: no reported pair is below the threshold.
 #include <catch2/catch.hpp>
 
+#include "absl/strings/str_cat.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
 #include "kindred/index_writer.h"
@@ -92,7 +93,7 @@ TEST_CASE("build + add in batches matches one sweep over the union", "[property]
     for (const auto& cuts : splits) {
       testing::TempDir dir;
       for (int threads : {1, 3}) {
-        std::string path = dir.File("p" + std::to_string(threads) + ".kin");
+        std::string path = dir.File(absl::StrCat("p", threads, ".kin"));
         REQUIRE(IncrementalPairs(corpus, settings, cuts, path, threads) == expected);
       }
       // Sweeping the finished index (no corpus re-read) gives the same pairs.

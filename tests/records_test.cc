@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "absl/strings/str_cat.h"
 #include "kindred/groups.h"
 
 namespace kindred {
@@ -106,7 +107,7 @@ TEST_CASE("Decisions match a per-document brute force over random groups", "[rec
     std::vector<std::string> ids;
     std::vector<uint8_t> empty(n);
     for (size_t doc = 0; doc < n; ++doc) {
-      ids.push_back("d" + std::to_string(doc));
+      ids.push_back(absl::StrCat("d", doc));
       empty[doc] = next(6) == 0;
     }
     std::vector<ScoredPair> pairs;
@@ -174,6 +175,33 @@ TEST_CASE("Decisions match a per-document brute force over random groups", "[rec
     WriteDecisionRecords(RecordFormat::kTsv, groups, pairs, ids, empty, KeepPolicy::kFirst, &out);
     CHECK(out == expected);
   }
+}
+
+TEST_CASE("TSV and CSV groups: one row per drop, ids with separators kept whole", "[records]") {
+  const std::vector<std::string> ids = {"a b.txt", "tab\there", "x,\"y\"", "line\nbreak",
+                                        "back\\slash"};
+  const std::vector<Group> groups = {Group{1, {0, 1, 2}}, Group{3, {3, 4}}};
+  std::string out;
+  WriteGroupRecords(RecordFormat::kTsv, groups, ids, KeepPolicy::kFirst, &out);
+  CHECK(out ==
+        "group\tsize\tkeeper\tdrop\tpolicy\n"
+        "1\t3\ttab\\there\ta b.txt\tfirst\n"
+        "1\t3\ttab\\there\tx,\"y\"\tfirst\n"
+        "2\t2\tline\\nbreak\tback\\\\slash\tfirst\n");
+  out.clear();
+  WriteGroupRecords(RecordFormat::kCsv, groups, ids, KeepPolicy::kFirst, &out);
+  CHECK(out ==
+        "group,size,keeper,drop,policy\n"
+        "1,3,tab\there,a b.txt,first\n"
+        "1,3,tab\there,\"x,\"\"y\"\"\",first\n"
+        "2,2,\"line\nbreak\",back\\slash,first\n");
+  out.clear();
+  WriteGroupRecords(RecordFormat::kJsonLines, groups, ids, KeepPolicy::kFirst, &out);
+  CHECK(out ==
+        "{\"group\":1,\"size\":3,\"keeper\":\"tab\\u0009here\",\"drops\":[\"a b.txt\",\"x,\\\"y\\\"\"],"
+        "\"policy\":\"first\"}\n"
+        "{\"group\":2,\"size\":2,\"keeper\":\"line\\u000abreak\",\"drops\":[\"back\\\\slash\"],"
+        "\"policy\":\"first\"}\n");
 }
 
 }  // namespace

@@ -5,7 +5,8 @@
 #      UndefinedBehaviorSanitizer (build-asan/, any report fails the test);
 #   2. the libFuzzer targets of tests/fuzz built with clang (build-fuzz/),
 #      each run for a bounded time from its seeds and regression inputs;
-#      any crash, sanitizer report, leak, timeout or broken property fails.
+#      any crash, sanitizer report, leak, timeout or broken property fails;
+#      this build treats compiler warnings (clang's) as errors.
 # Prints a summary and exits non-zero when a step failed.
 #
 #   tools/ci_checks.sh                      # both steps, 60 s per fuzz target
@@ -53,7 +54,7 @@ run_asan() {
 
 build_fuzz() {
   CC=clang CXX=clang++ cmake -S . -B build-fuzz -G Ninja -DCMAKE_BUILD_TYPE=RelWithDebInfo \
-    -DKINDRED_FUZZ=ON -DKINDRED_BUILD_TESTS=OFF >/dev/null || return 1
+    -DKINDRED_FUZZ=ON -DKINDRED_BUILD_TESTS=OFF -DKINDRED_WERROR=ON >/dev/null || return 1
   # Only the fuzz targets (and the library under them), not the program.
   local targets=()
   for source in tests/fuzz/*_fuzz.cc; do targets+=("$(basename "$source" .cc)"); done

@@ -2,7 +2,8 @@
 # Set-up on a fresh Debian 12 machine: installs the Debian packages kindred
 # builds, tests and benchmarks with, then configures and builds a Release
 # build in build/. Safe to run again: it only installs what is missing and
-# rebuilds what changed.
+# rebuilds what changed. Writes nothing on standard output: progress and
+# errors go to stderr.
 #
 #   tools/setup.sh            # packages + build/
 #   KINDRED_BUILD_DIR=dir tools/setup.sh
@@ -46,6 +47,9 @@ if ((${#missing[@]} > 0)); then
     "${missing[@]}" >/dev/null
 fi
 
+# Standard output stays empty: the build's progress (and any error) goes to
+# stderr, so that "tools/setup.sh && build/kindred ..." prints only kindred's
+# records on standard output.
 cmake -S . -B "$build_dir" -G Ninja -DCMAKE_BUILD_TYPE="$build_type" \
   -DKINDRED_SANITIZE="$sanitize" >/dev/null
-cmake --build "$build_dir" -j"$(nproc)"
+cmake --build "$build_dir" -j"$(nproc)" >&2

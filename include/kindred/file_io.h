@@ -32,6 +32,10 @@ class AppendFile {
   virtual absl::Status Append(std::string_view bytes) = 0;
   // Flushes written data and metadata to stable storage (fsync).
   virtual absl::Status Sync() = 0;
+  // Overwrites bytes [offset, offset + bytes.size()), which must lie within
+  // the file (the index's commit area, rewritten in place). The file's size
+  // and the position of later appends do not change.
+  virtual absl::Status WriteAt(uint64_t offset, std::string_view bytes) = 0;
   // Cuts the file to `size` bytes; later appends continue from there.
   virtual absl::Status Truncate(uint64_t size) = 0;
   // The file's current size in bytes.

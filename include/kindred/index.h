@@ -86,10 +86,20 @@ class IndexReader {
   absl::Status ReadAppended(const IndexOpenOptions& options = {});
 
   const std::string& path() const { return path_; }
+  // 2 for files that record their commits; 1 for older files (readable,
+  // not writable: `compact` rewrites them as version 2).
+  uint32_t format_version() const { return format_version_; }
+  // The commit generation the file records (0 for version 1), and how many
+  // of its two commit slots fail their checksum (an interrupted commit
+  // leaves one; not damage while the other verifies).
+  uint64_t commit_generation() const { return commit_generation_; }
+  uint32_t damaged_commit_slots() const { return damaged_commit_slots_; }
   const IndexSettings& settings() const { return settings_; }
   absl::Span<const SegmentInfo> segments() const { return segments_; }
   uint64_t file_size() const { return file_.size(); }
-  // End of the last committed segment; bytes after it are a torn tail.
+  // End of the last committed segment; bytes after it are a torn tail. In
+  // version 2 this is the committed length the file records: a file shorter
+  // than that, or a committed segment that does not verify, is DataLoss.
   uint64_t committed_size() const { return committed_size_; }
   uint64_t torn_tail_bytes() const { return file_.size() - committed_size_; }
 
@@ -107,8 +117,12 @@ class IndexReader {
   absl::Span<const uint32_t> signature(uint32_t doc) const;
   uint32_t shingle_count(uint32_t doc) const;
   // Decodes the document's shingle set into *out (replacing its contents),
-  // after verifying its checksum: DataLoss names the document on mismatch.
+  // after verifying its checksum: DataLoss names the document's id and the
+  // damaged byte range on mismatch.
   absl::Status ReadShingles(uint32_t doc, std::vector<uint64_t>* out) const;
+  // Verifies the checksum of every document's shingle set (opening checks
+  // the tables only); DataLoss as ReadShingles for the first mismatch.
+  absl::Status VerifyShingleChecksums() const;
 
   // The live document with this id, if any (binary search per segment).
   std::optional<uint32_t> FindLive(std::string_view id) const;
@@ -141,8 +155,15 @@ class IndexReader {
   struct Segment;
   IndexReader() = default;
   absl::Status Load();
-  // Verifies and adds the segments of file_ from committed_size_ on.
-  absl::Status LoadSegments();
+  // Verifies and adds the segments of file_ from committed_size_ to `end`.
+  // `recorded`: `end` is a recorded committed length, so every byte up to
+  // it must be whole segments (version 2); otherwise a segment that cannot
+  // be read whole may end the committed part as a torn tail (version 1).
+  absl::Status LoadSegments(uint64_t end, bool recorded);
+  // Version 2: reads the commit area, then the segments up to what it records.
+  absl::Status LoadCommitted();
+  // The DataLoss status for a damaged shingle set of `doc`.
+  absl::Status ShingleError(uint32_t doc) const;
   const Segment& SegmentOf(uint32_t doc, uint32_t* local) const;
 
   std::string path_;
@@ -156,6 +177,9 @@ class IndexReader {
   std::vector<uint32_t> segment_first_doc_;
   std::vector<bool> retired_;
   uint64_t committed_size_ = 0;
+  uint32_t format_version_ = 0;
+  uint64_t commit_generation_ = 0;
+  uint32_t damaged_commit_slots_ = 0;
   uint32_t document_count_ = 0;
   uint32_t live_count_ = 0;
   uint32_t bands_ = 0;

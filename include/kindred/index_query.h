@@ -66,8 +66,9 @@ bool NeedsOtherBanding(const IndexSettings& stored, const MatchSettings& match);
 size_t CountMatchedUploads(absl::Span<const IndexMatch> matches, size_t uploads);
 
 // The matches a check (policy unset) or an add under `policy` reports for
-// `batch`: MatchAgainstIndex, leaving out the indexed document a replace
-// supersedes. `options.exclude_same_id` is set from the policy.
+// `batch`: MatchAgainstIndex, leaving out indexed documents with the same
+// id under skip and replace (a document is never its own match).
+// `options.exclude_same_id` is set from the policy.
 absl::StatusOr<std::vector<IndexMatch>> MatchForQuery(const IndexReader& reader,
                                                       const SignedCorpus& batch,
                                                       std::optional<DuplicateIdPolicy> policy,

@@ -4,14 +4,17 @@
 // Durability: CreateIndex and CompactIndex write a temporary file beside the
 // index, sync it, rename it into place and sync the directory, so a crash
 // leaves either no new file (or the old file intact) or the complete new one.
-// IndexWriter::Append writes a segment, syncs, writes its commit record and
-// syncs again before it returns OK: a crash at any point leaves every earlier
-// committed document readable, and at most a torn tail that readers ignore
-// and the next writer cuts off.
+// IndexWriter::Append writes a segment and its commit record, syncs, then
+// records the new committed length in the file's commit area and syncs
+// again before it returns OK: a crash at any point leaves every earlier
+// committed document readable, and at most a torn tail (bytes after the
+// recorded commit) that readers ignore and the next writer cuts off. No
+// writer ever cuts bytes the file records as committed.
 //
 // One writer at a time: IndexWriter::Open, CompactIndex and RepairIndex take
-// an exclusive advisory lock on the file (flock, never waiting) and fail at
-// once with Unavailable when another writer holds it. Readers need no lock.
+// an exclusive advisory lock on the file (flock) and fail with Unavailable
+// when another writer holds it, at once or after lock_wait_seconds. Readers
+// need no lock.
 //
 // Thread-safety: an IndexWriter is used by one thread; the free functions
 // may run concurrently on different files.
@@ -26,11 +29,15 @@
 
 #include "absl/status/status.h"
 #include "absl/status/statusor.h"
+#include "absl/types/span.h"
 #include "kindred/file_io.h"
 #include "kindred/index.h"
 #include "kindred/signed_corpus.h"
 
 namespace kindred {
+namespace index {
+struct SegmentDocument;
+}  // namespace index
 
 // What Append does with a document whose id is already live in the index.
 enum class DuplicateIdPolicy : uint8_t {
@@ -45,6 +52,9 @@ const char* DuplicateIdPolicyName(DuplicateIdPolicy policy);
 
 struct IndexWriteOptions {
   FileSystem* file_system = DefaultFileSystem();  // borrowed
+  // How long a writer waits for the lock another writer holds, retrying
+  // every 50 ms, before it fails with Unavailable (0: fail at once).
+  double lock_wait_seconds = 0;
 };
 
 // Creates a new index at `path` holding `corpus` (which may be empty) as
@@ -57,6 +67,12 @@ absl::Status CreateIndex(const std::string& path, const IndexSettings& settings,
 // What Append did with each document of a batch.
 enum class AddAction : uint8_t { kAdded, kSkipped, kReplaced };
 const char* AddActionName(AddAction action);
+
+struct RetireResult {
+  bool wrote_segment = false;  // false when nothing was retired
+  uint32_t segment_number = 0;
+  uint32_t retired = 0;  // live documents retired
+};
 
 struct AppendResult {
   bool wrote_segment = false;  // false when nothing was added or retired
@@ -92,8 +108,18 @@ class IndexWriter {
   // writer refuses further appends (FailedPrecondition): open a new one.
   absl::StatusOr<AppendResult> Append(const SignedCorpus& batch, DuplicateIdPolicy policy);
 
+  // Retires the live documents with these ids in one new segment that holds
+  // no documents, only the retired list (FORMAT.md, "retired"); durable like
+  // Append. All or nothing: NotFound naming the ids (up to ten) that are not
+  // live, and nothing is written. Repeated ids count once.
+  absl::StatusOr<RetireResult> Retire(absl::Span<const std::string> ids);
+
  private:
   IndexWriter() = default;
+  // Encodes and commits one segment of `docs` retiring `retired` (sorted);
+  // on success the reader has caught up with it.
+  absl::Status WriteSegment(absl::Span<const index::SegmentDocument> docs,
+                            absl::Span<const uint64_t> retired, uint32_t* segment_number);
 
   std::string path_;
   IndexWriteOptions options_;
@@ -145,10 +171,27 @@ struct AuditReport {
 absl::StatusOr<AuditReport> AuditIndex(const std::string& path,
                                        const IndexWriteOptions& options = {});
 
-// Cuts off a torn tail under the writer lock and syncs; returns the bytes
-// cut (0 when there was none).
-absl::StatusOr<uint64_t> RepairIndex(const std::string& path,
-                                     const IndexWriteOptions& options = {});
+struct RepairResult {
+  // Bytes after the recorded commit of a sound version-2 file, cut off.
+  uint64_t torn_tail_cut = 0;
+  // Set when the file is damaged (or is a version-1 file with bytes after
+  // its last whole segment): a version-2 copy holding every readable live
+  // document was written here ("INDEX.repaired.kin"); the file itself is
+  // left exactly as it was.
+  std::string repaired_path;
+  uint32_t documents_kept = 0;
+  // What the copy lacks, one sentence each (segments, document numbers and
+  // ids when known, byte ranges).
+  std::vector<std::string> lost;
+};
+
+// Under the writer lock: cuts off a torn tail of a sound version-2 file
+// (synced); for a damaged file writes the repaired copy beside it. Never
+// deletes or cuts committed bytes. AlreadyExists when the copy's path is
+// taken; FailedPrecondition for a newer format; DataLoss when not even the
+// file header can be read.
+absl::StatusOr<RepairResult> RepairIndex(const std::string& path,
+                                         const IndexWriteOptions& options = {});
 
 }  // namespace kindred
 

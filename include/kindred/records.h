@@ -49,7 +49,9 @@ class RecordWriter {
   void Number(uint64_t value);
   void Similarity(double value);
   void Null();  // JSON null, empty TSV/CSV field
-  // A list of strings: a JSON array; in TSV/CSV the items joined by a space.
+  // A list of strings: a JSON array; in TSV/CSV the items joined by a space,
+  // which cannot be split back when an item holds a space: TSV/CSV records
+  // of id lists write one row per item instead (see WriteGroupRecords).
   void StringList(absl::Span<const std::string_view> values);
   void EndRow();
 
@@ -65,6 +67,9 @@ class RecordWriter {
 // The three record kinds of a sweep. `ids` maps document index to id.
 void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
                       absl::Span<const std::string> ids, std::string* out);
+// Groups: JSON Lines writes one record per group with the drops as an array;
+// TSV and CSV write one row per drop (columns group, size, keeper, drop,
+// policy), so every id is a field of its own and any id round-trips.
 void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
                        absl::Span<const std::string> ids, KeepPolicy policy, std::string* out);
 // One decision per document that belongs to a group (keep for its keeper,

@@ -7,8 +7,10 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/formats.h"
 #include "cli/index_options.h"
 #include "cli/output.h"
+#include "core/plural.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
 #include "kindred/index_query.h"
@@ -30,6 +32,7 @@ struct AddFlags {
   std::string format = "jsonl";
   std::string on_duplicate = "error";
   uint64_t max_bucket = kDefaultMaxBucket;
+  double wait_lock = 0;
   GivenOptions given;
 };
 
@@ -44,8 +47,11 @@ int WriteExitCode(const absl::Status& status) {
   }
 }
 
+// The summary line names the threshold and banding the matches were found
+// with, as check's does.
 void PrintSummary(const AddFlags& flags, const AppendResult& result, const SignedCorpus& batch,
-                  size_t match_count, const IndexReader& after) {
+                  size_t match_count, const MatchSettings& match, const IndexReader& matched,
+                  const IndexReader& after) {
   for (size_t i = 0; i < batch.size(); ++i) {
     if (result.actions[i] != AddAction::kAdded) {
       std::fprintf(stderr, "kindred: %s: id already indexed: %s\n", batch.id(i).c_str(),
@@ -55,10 +61,12 @@ void PrintSummary(const AddFlags& flags, const AppendResult& result, const Signe
   std::string segment = result.wrote_segment ? absl::StrFormat("segment %u", result.segment_number)
                                              : std::string("nothing written");
   std::fprintf(stderr,
-               "kindred add: %s: %u added, %u replaced, %u skipped (%s); %zu matches; "
-               "%u documents live\n",
+               "kindred add: %s: %u added, %u replaced, %u skipped (%s); %s (%s >= %g, %s); "
+               "%s live\n",
                flags.index.c_str(), result.added, result.replaced, result.skipped, segment.c_str(),
-               match_count, after.live_count());
+               Counted(match_count, "match", "matches").c_str(), MeasureName(match.measure),
+               match.threshold, BandsByRows(matched.bands(), matched.rows()).c_str(),
+               Counted(after.live_count(), "document").c_str());
 }
 
 int RunAdd(const AddFlags& flags) {
@@ -71,11 +79,18 @@ int RunAdd(const AddFlags& flags) {
   if (absl::Status valid = ValidMaxBucket(flags.max_bucket); !valid.ok()) {
     return Fail(kExitUsage, valid);
   }
-  auto writer = IndexWriter::Open(flags.index);  // takes the lock first: busy fails at once
+  if (flags.wait_lock < 0) {
+    return Fail(kExitUsage, absl::InvalidArgumentError("--wait-lock must be 0 or more seconds"));
+  }
+  ReportStaleTempFiles(flags.index);
+  IndexWriteOptions write_options;
+  write_options.lock_wait_seconds = flags.wait_lock;
+  // Takes the lock first: busy fails at once (or after --wait-lock).
+  auto writer = IndexWriter::Open(flags.index, write_options);
   if (!writer.ok()) return Fail(WriteExitCode(writer.status()), writer.status());
   if ((*writer)->torn_tail_cut() > 0 && !flags.general.quiet) {
-    std::fprintf(stderr, "kindred: cut a torn tail of %llu bytes off %s\n",
-                 static_cast<unsigned long long>((*writer)->torn_tail_cut()), flags.index.c_str());
+    std::fprintf(stderr, "kindred: cut a torn tail of %s off %s\n",
+                 Counted((*writer)->torn_tail_cut(), "byte").c_str(), flags.index.c_str());
   }
   auto reader = IndexReader::Open(flags.index);  // for matching, banded as asked
   if (!reader.ok()) return Fail(reader.status());
@@ -94,6 +109,9 @@ int RunAdd(const AddFlags& flags) {
       !status.ok()) {
     return Fail(kExitInput, status);
   }
+  // A document whose id is indexed is never its own match: with replace the
+  // indexed copy is retired, with skip the new one is not added (and with
+  // error the batch is refused). MatchForQuery sets this from the policy.
   IndexMatchOptions options{match, threads, false};
   options.max_bucket = flags.max_bucket;
   uint64_t crowded = 0;
@@ -108,7 +126,7 @@ int RunAdd(const AddFlags& flags) {
     return Fail(kExitOutput, written);
   }
   if (!flags.general.quiet) {
-    PrintSummary(flags, *appended, batch, matches->size(), (*writer)->reader());
+    PrintSummary(flags, *appended, batch, matches->size(), match, **reader, (*writer)->reader());
     PrintCrowdedKeys(crowded, flags.max_bucket);
   }
   return kExitOk;
@@ -123,17 +141,17 @@ void RegisterAdd(CLI::App& app, int* exit_code) {
   command->add_option("index", flags->index, "the index file")->required();
   AddInputsArgument(command, &flags->inputs)->required();
   AddInputOptions(command, &flags->input);
+  AddPriorityFieldOption(command, &flags->input, /*stored=*/true);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
   AddMaxBucketOption(command, &flags->max_bucket);
+  AddWaitLockOption(command, &flags->wait_lock);
   command
       ->add_option("--on-duplicate", flags->on_duplicate,
                    "a document whose id is already indexed: error (refuse the batch), skip "
                    "(keep the indexed one) or replace")
       ->default_str("error");
-  command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
-      ->default_str("jsonl")
-      ->group("Output");
+  AddFormatOption(command, &flags->format, {"jsonl", "tsv", "csv"});
   AddGeneralOptions(command, &flags->general);
   command->callback([flags, command, exit_code] {
     flags->given = OptionsGiven(command);

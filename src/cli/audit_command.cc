@@ -4,6 +4,8 @@
 #include <cstdio>
 
 #include "cli/cli.h"
+#include "cli/index_options.h"
+#include "core/plural.h"
 #include "kindred/index_writer.h"
 
 namespace kindred::cli {
@@ -12,16 +14,33 @@ namespace {
 struct AuditFlags {
   std::string index;
   bool repair = false;
+  double wait_lock = 0;
   bool quiet = false;
 };
 
 int RunAudit(const AuditFlags& flags) {
+  ReportStaleTempFiles(flags.index);
   if (flags.repair) {
-    auto cut = RepairIndex(flags.index);
-    if (!cut.ok()) return Fail(cut.status());
-    if (!flags.quiet) {
-      std::fprintf(stderr, "kindred audit: cut a torn tail of %llu bytes\n",
-                   static_cast<unsigned long long>(*cut));
+    if (flags.wait_lock < 0) {
+      return Fail(kExitUsage, absl::InvalidArgumentError("--wait-lock must be 0 or more seconds"));
+    }
+    IndexWriteOptions options;
+    options.lock_wait_seconds = flags.wait_lock;
+    auto repair = RepairIndex(flags.index, options);
+    if (absl::IsAlreadyExists(repair.status())) return Fail(kExitOutput, repair.status());
+    if (!repair.ok()) return Fail(repair.status());
+    if (repair->torn_tail_cut > 0 && !flags.quiet) {
+      std::fprintf(stderr, "kindred audit: cut a torn tail of %s (after the last recorded commit)\n",
+                   Counted(repair->torn_tail_cut, "byte").c_str());
+    }
+    if (!repair->repaired_path.empty()) {
+      for (const std::string& lost : repair->lost) std::printf("lost: %s\n", lost.c_str());
+      std::fprintf(stderr,
+                   "kindred audit: %s was left exactly as it is; wrote %s with its %s "
+                   "(%s lost; see the \"lost:\" lines)\n",
+                   flags.index.c_str(), repair->repaired_path.c_str(),
+                   Counted(repair->documents_kept, "readable live document").c_str(),
+                   Counted(repair->lost.size(), "item").c_str());
     }
   }
   auto report = AuditIndex(flags.index);
@@ -29,15 +48,16 @@ int RunAudit(const AuditFlags& flags) {
   for (const std::string& note : report->notes) std::printf("note: %s\n", note.c_str());
   for (const std::string& problem : report->problems) std::printf("problem: %s\n", problem.c_str());
   if (!report->ok()) {
-    std::fprintf(stderr, "kindred audit: %s: %zu problems\n", flags.index.c_str(),
-                 report->problems.size());
+    std::fprintf(stderr, "kindred audit: %s: %s\n", flags.index.c_str(),
+                 Counted(report->problems.size(), "problem").c_str());
     return kExitIndexCorrupt;
   }
   if (!flags.quiet) {
     std::fprintf(stderr,
-                 "kindred audit: %s: ok (%u segments, %u documents; every checksum, shingle "
+                 "kindred audit: %s: ok (%s, %s; every checksum, shingle "
                  "set, signature and band key verified)\n",
-                 flags.index.c_str(), report->segments, report->documents);
+                 flags.index.c_str(), Counted(report->segments, "segment").c_str(),
+                 Counted(report->documents, "document").c_str());
   }
   return kExitOk;
 }
@@ -49,7 +69,11 @@ void RegisterAudit(CLI::App& app, int* exit_code) {
   CLI::App* command =
       app.add_subcommand("audit", "Verify every checksum and invariant of an index");
   command->add_option("index", flags->index, "the index file")->required();
-  command->add_flag("--repair", flags->repair, "first cut off a torn tail (takes the writer lock)");
+  command->add_flag("--repair", flags->repair,
+                    "first cut off a torn tail after the last recorded commit, or, when the "
+                    "index is damaged, write its readable documents to INDEX.repaired.kin "
+                    "(the index is never cut; takes the writer lock)");
+  AddWaitLockOption(command, &flags->wait_lock);
   command->add_flag("-q,--quiet", flags->quiet, "print problems only");
   command->callback([flags, exit_code] { *exit_code = RunAudit(*flags); });
 }

@@ -3,14 +3,18 @@
 
 #include <cstdio>
 
+#include "absl/cleanup/cleanup.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/index_options.h"
 #include "cli/output.h"
+#include "core/plural.h"
 #include "kindred/banding.h"
 #include "kindred/index_writer.h"
 #include "kindred/signed_corpus.h"
+#include "kindred/temp_files.h"
 #include "kindred/text.h"
 
 namespace kindred::cli {
@@ -85,6 +89,8 @@ absl::Status BuildInParts(const std::string& index, const IndexSettings& setting
   *write_error = true;
   absl::Status status = CreateIndex(partial, settings, SignedCorpus(settings.signature.perms));
   if (!status.ok()) return status;
+  RegisterTempFile(partial);
+  absl::Cleanup forget = [&partial] { ForgetTempFile(partial); };
   {
     auto writer = IndexWriter::Open(partial);
     if (!writer.ok()) {
@@ -122,10 +128,17 @@ int RunBuild(const BuildFlags& flags) {
   auto input_options = ToInputOptions(flags.input);
   if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
   if (DefaultFileSystem()->Exists(flags.index)) {
+    if (auto existing = IndexReader::Open(flags.index); absl::IsDataLoss(existing.status())) {
+      return Fail(kExitIndexCorrupt,
+                  absl::DataLossError(absl::StrCat(existing.status().message(),
+                                                   "; the index is damaged and build never "
+                                                   "writes over it (see kindred audit --repair)")));
+    }
     return Fail(kExitUsage,
                 absl::AlreadyExistsError(absl::StrFormat(
                     "index %s already exists (kindred add appends to it)", flags.index)));
   }
+  ReportStaleTempFiles(flags.index);
   auto reader = CorpusReader::Open(flags.inputs, *input_options);
   if (!reader.ok()) return Fail(kExitInput, reader.status());
   SignOptions sign;
@@ -149,10 +162,11 @@ int RunBuild(const BuildFlags& flags) {
   progress.Clear();
   if (!built.ok()) return write_error ? Fail(WriteExitCode(built), built) : Fail(built);
   if (!flags.general.quiet) {
-    std::fprintf(stderr, "kindred build: %s: %llu documents (%llu empty), %s, %u bands x %u rows\n",
-                 flags.index.c_str(), static_cast<unsigned long long>(stats.documents),
+    std::fprintf(stderr, "kindred build: %s: %s (%llu empty), %s, %s\n", flags.index.c_str(),
+                 Counted(stats.documents, "document").c_str(),
                  static_cast<unsigned long long>(stats.empty_documents),
-                 settings->signature.ToString().c_str(), settings->bands, settings->rows);
+                 settings->signature.ToString().c_str(),
+                 BandsByRows(settings->bands, settings->rows).c_str());
     PrintThroughput(stats.documents, stats.bytes, progress.Elapsed());
   }
   return kExitOk;
@@ -170,10 +184,12 @@ void RegisterBuild(CLI::App& app, int* exit_code) {
   command
       ->add_option(
           "--memory", flags->memory,
-          "memory budget, e.g. 4G: sign and write the corpus in parts of about a "
-          "quarter of it, one segment each (default: the whole corpus at once, one segment)")
+          "bound on the signed data held before writing, e.g. 4G: sign and write the corpus "
+          "in parts of about a quarter of it (signatures and shingle sets), one segment each "
+          "(default: the whole corpus at once, one segment)")
       ->group("Resources");
   AddInputOptions(command, &flags->input);
+  AddPriorityFieldOption(command, &flags->input, /*stored=*/true);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
   AddGeneralOptions(command, &flags->general);

@@ -10,8 +10,10 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/formats.h"
 #include "cli/index_options.h"
 #include "cli/output.h"
+#include "core/plural.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
 #include "kindred/index_query.h"
@@ -45,8 +47,9 @@ void PrintLatencies(std::vector<double> seconds) {
   };
   std::fprintf(stderr,
                "  latency per document: median %.3f ms, 99th percentile %.3f ms, largest %.3f ms "
-               "(%zu documents; band lookup and exact verification, signing not included)\n",
-               rank(0.5), rank(0.99), seconds.back() * 1e3, seconds.size());
+               "(%s; band lookup and exact verification, signing not included)\n",
+               rank(0.5), rank(0.99), seconds.back() * 1e3,
+               Counted(seconds.size(), "document").c_str());
 }
 
 int RunCheck(const CheckFlags& flags) {
@@ -57,12 +60,12 @@ int RunCheck(const CheckFlags& flags) {
   if (absl::Status valid = ValidMaxBucket(flags.max_bucket); !valid.ok()) {
     return Fail(kExitUsage, valid);
   }
+  ReportStaleTempFiles(flags.index);
   auto reader = IndexReader::Open(flags.index);
   if (!reader.ok()) return Fail(reader.status());
   if ((*reader)->torn_tail_bytes() > 0 && !flags.general.quiet) {
-    std::fprintf(stderr, "kindred: warning: index %s has a torn tail of %llu bytes (ignored)\n",
-                 flags.index.c_str(),
-                 static_cast<unsigned long long>((*reader)->torn_tail_bytes()));
+    std::fprintf(stderr, "kindred: warning: index %s has a torn tail of %s (ignored)\n",
+                 flags.index.c_str(), Counted((*reader)->torn_tail_bytes(), "byte").c_str());
   }
   MatchSettings match;
   if (int code =
@@ -94,10 +97,13 @@ int RunCheck(const CheckFlags& flags) {
   size_t matched_count = CountMatchedUploads(*matches, uploads.size());
   if (!flags.general.quiet) {
     std::fprintf(stderr,
-                 "kindred check: %zu documents checked against %u indexed (%s >= %g, %u bands x "
-                 "%u rows): %zu match indexed documents, %llu empty\n",
-                 uploads.size(), (*reader)->live_count(), MeasureName(match.measure),
-                 match.threshold, (*reader)->bands(), (*reader)->rows(), matched_count,
+                 "kindred check: %s checked against %u indexed (%s >= %g, %s): %s indexed "
+                 "documents, %llu empty\n",
+                 Counted(uploads.size(), "document").c_str(), (*reader)->live_count(),
+                 MeasureName(match.measure), match.threshold,
+                 BandsByRows((*reader)->bands(), (*reader)->rows()).c_str(),
+                 // the verb: "1 matches", "2 match"
+                 Counted(matched_count, "matches", "match").c_str(),
                  static_cast<unsigned long long>(stats.empty_documents));
     PrintCrowdedKeys(crowded, flags.max_bucket);
   }
@@ -117,9 +123,7 @@ void RegisterCheck(CLI::App& app, int* exit_code) {
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
   AddMaxBucketOption(command, &flags->max_bucket);
-  command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
-      ->default_str("jsonl")
-      ->group("Output");
+  AddFormatOption(command, &flags->format, {"jsonl", "tsv", "csv"});
   command
       ->add_flag("--fail-on-match", flags->fail_on_match,
                  "exit with status 1 when any document matches an indexed document")

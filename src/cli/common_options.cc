@@ -2,6 +2,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "cli/output.h"
+#include "cli/usage.h"
 #include "kindred/candidates.h"
 #include "kindred/parallel.h"
 
@@ -22,10 +23,6 @@ void AddInputOptions(CLI::App* command, InputFlags* flags) {
       ->default_str("text")
       ->group("Input");
   command
-      ->add_option("--priority-field", flags->priority_field,
-                   "JSON Lines numeric field read by --keep priority")
-      ->group("Input");
-  command
       ->add_option("--max-document-size", flags->max_document_size,
                    "largest document or JSON line (K, M, G suffixes)")
       ->default_str("64M")
@@ -35,6 +32,15 @@ void AddInputOptions(CLI::App* command, InputFlags* flags) {
                    "largest decompressed size of one compressed input, a guard against "
                    "decompression bombs; 0 = no limit")
       ->default_str("4G")
+      ->group("Input");
+}
+
+void AddPriorityFieldOption(CLI::App* command, InputFlags* flags, bool stored) {
+  command
+      ->add_option("--priority-field", flags->priority_field,
+                   stored ? "JSON Lines numeric field stored in the index for "
+                            "sweep --index --keep priority"
+                          : "JSON Lines numeric field read by --keep priority")
       ->group("Input");
 }
 
@@ -74,9 +80,11 @@ void AddSignatureOptions(CLI::App* command, SignatureFlags* flags) {
       ->default_str("word")
       ->group("Signature");
   command->add_option("-k,--shingle-size", flags->k, "words (or characters) per shingle, 1..64")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->default_str("5")
       ->group("Signature");
   command->add_option("--perms", flags->perms, "MinHash signature length, 1..4096")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->default_str("128")
       ->group("Signature");
   command
@@ -84,7 +92,10 @@ void AddSignatureOptions(CLI::App* command, SignatureFlags* flags) {
                    "MinHash scheme: oph (one permutation, densified) or classic")
       ->default_str("oph")
       ->group("Signature");
-  command->add_option("--seed", flags->seed, "hash seed of shingles and signatures")
+  command
+      ->add_option("--seed", flags->seed,
+                   "hash seed of shingles and signatures (decimal, or hex after 0x)")
+      ->transform(WholeNumber(0, UINT64_MAX))
       ->group("Signature");
 }
 
@@ -118,6 +129,7 @@ void AddMaxBucketOption(CLI::App* command, uint64_t* max_bucket) {
       ->add_option("--max-bucket", *max_bucket,
                    "an LSH bucket (band key) shared by more documents proposes its first "
                    "document only")
+      ->transform(WholeNumber(2, UINT64_MAX))
       ->default_str(std::to_string(kDefaultMaxBucket))
       ->group("Matching");
 }
@@ -136,8 +148,11 @@ void AddMatchOptions(CLI::App* command, MatchFlags* flags) {
   command
       ->add_option("--bands", flags->bands,
                    "LSH bands (with --rows; default: chosen for the threshold)")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->group("Matching");
-  command->add_option("--rows", flags->rows, "LSH rows per band (with --bands)")->group("Matching");
+  command->add_option("--rows", flags->rows, "LSH rows per band (with --bands)")
+      ->transform(WholeNumber(0, UINT32_MAX))
+      ->group("Matching");
   command
       ->add_option("--measure", flags->measure,
                    "similarity compared with the threshold: jaccard or containment")
@@ -164,7 +179,10 @@ absl::StatusOr<MatchSettings> ToMatchSettings(const MatchFlags& flags,
 }
 
 void AddGeneralOptions(CLI::App* command, GeneralFlags* flags) {
-  command->add_option("-j,--threads", flags->threads, "worker threads (default: all cores)");
+  command
+      ->add_option("-j,--threads", flags->threads,
+                   absl::StrCat("worker threads, 1 to ", kMaxThreads, " (default: all cores)"))
+      ->transform(WholeNumber(1, kMaxThreads));
   command->add_flag("-q,--quiet", flags->quiet, "no progress and no summary on stderr");
   command->add_flag("-v,--verbose", flags->verbose,
                     "also report documents with invalid UTF-8 and timings");

@@ -24,6 +24,10 @@ struct InputFlags {
   std::string max_decompressed_size = "4G";
 };
 void AddInputOptions(CLI::App* command, InputFlags* flags);
+// --priority-field: only for sweep (read by --keep priority) and for the
+// commands that store it in an index (`stored`: build, add) for a later
+// sweep --index --keep priority.
+void AddPriorityFieldOption(CLI::App* command, InputFlags* flags, bool stored);
 // The positional corpus inputs (directories, files, "-"); returns the option
 // so a command can make it required.
 CLI::Option* AddInputsArgument(CLI::App* command, std::vector<std::string>* inputs);

@@ -10,7 +10,10 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/index_options.h"
+#include "cli/formats.h"
 #include "cli/output.h"
+#include "cli/usage.h"
 #include "kindred/explain.h"
 #include "kindred/index.h"
 #include "kindred/records.h"
@@ -78,6 +81,7 @@ absl::Status LoadTexts(const ExplainFlags& flags, Subject* subject) {
 // Numbers from the index's stored sets and signatures; passages from the
 // texts when there are any.
 absl::StatusOr<Explanation> ExplainFromIndex(const ExplainFlags& flags, const Subject& subject) {
+  ReportStaleTempFiles(flags.index);
   absl::StatusOr<std::unique_ptr<IndexReader>> index = IndexReader::Open(flags.index);
   if (!index.ok()) return index.status();
   const SignatureSettings settings = (*index)->settings().signature;
@@ -205,10 +209,6 @@ std::string JsonRecord(const Subject& subject, const Explanation& e) {
 }
 
 int RunExplainCommand(const ExplainFlags& flags) {
-  if (flags.format != "text" && flags.format != "jsonl") {
-    return Fail(kExitUsage, absl::InvalidArgumentError(absl::StrCat(
-                                "--format: expected text or jsonl, not \"", flags.format, "\"")));
-  }
   Subject subject;
   if (absl::Status s = LoadTexts(flags, &subject); !s.ok()) return Fail(kExitInput, s);
   absl::StatusOr<Explanation> explanation;
@@ -221,7 +221,7 @@ int RunExplainCommand(const ExplainFlags& flags) {
   }
   if (!explanation.ok()) return Fail(explanation.status());
   std::string out;
-  if (flags.format == "jsonl") {
+  if (flags.format == "json") {
     out = JsonRecord(subject, *explanation);
   } else {
     const bool color =
@@ -274,13 +274,12 @@ void RegisterExplain(CLI::App& app, int* exit_code) {
       ->default_str("auto")
       ->group("Output");
   command->add_option("--passages", flags->passages, "longest shared passages listed")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->default_str("10")
       ->group("Output");
   command->add_flag("--no-text", flags->no_text, "do not print the two marked texts")
       ->group("Output");
-  command->add_option("--format", flags->format, "text or jsonl (numbers and byte spans)")
-      ->default_str("text")
-      ->group("Output");
+  AddFormatOption(command, &flags->format, {"text", "json"}, {{"jsonl", "json"}});
   command->callback([flags, exit_code] { *exit_code = RunExplainCommand(*flags); });
 }
 

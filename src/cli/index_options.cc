@@ -4,8 +4,11 @@
 
 #include "absl/strings/str_cat.h"
 #include "cli/cli.h"
+#include "core/plural.h"
+#include "kindred/banding.h"
 #include "kindred/index_query.h"
 #include "kindred/shingles.h"
+#include "kindred/temp_files.h"
 
 namespace kindred::cli {
 
@@ -82,10 +85,16 @@ absl::Status SignInputs(const std::vector<std::string>& inputs, const InputOptio
 void PrintCrowdedKeys(uint64_t crowded, uint64_t max_bucket) {
   if (crowded == 0) return;
   std::fprintf(stderr,
-               "  crowded keys      %llu band keys shared by more than %llu indexed documents "
+               "  crowded keys      %s shared by more than %llu indexed documents "
                "proposed their first document only (--max-bucket)\n",
-               static_cast<unsigned long long>(crowded),
+               Counted(crowded, "band key").c_str(),
                static_cast<unsigned long long>(max_bucket));
+}
+
+void ReportStaleTempFiles(const std::string& index) {
+  for (const std::string& line : RemoveStaleTempFiles(index)) {
+    std::fprintf(stderr, "kindred: %s\n", line.c_str());
+  }
 }
 
 }  // namespace kindred::cli

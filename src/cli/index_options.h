@@ -44,6 +44,10 @@ int PrepareIndexQuery(const SignatureFlags& signature, const MatchFlags& match_f
 // nothing printed).
 void PrintCrowdedKeys(uint64_t crowded, uint64_t max_bucket);
 
+// Removes temporary files of `index` left by interrupted processes that no
+// longer run ("INDEX.tmp.PID", "INDEX.building.PID"), saying so on stderr.
+void ReportStaleTempFiles(const std::string& index);
+
 // Reads and signs every input under `signature` (for add and check).
 // Errors are the reader's (exit 3).
 absl::Status SignInputs(const std::vector<std::string>& inputs, const InputOptions& input_options,

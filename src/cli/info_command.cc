@@ -4,7 +4,10 @@
 
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
+#include "cli/index_options.h"
+#include "cli/formats.h"
 #include "cli/output.h"
+#include "core/plural.h"
 #include "kindred/banding.h"
 #include "kindred/index.h"
 #include "kindred/records.h"
@@ -22,14 +25,24 @@ std::string TextReport(const IndexReader& reader) {
   const IndexSettings& s = reader.settings();
   std::string out;
   absl::StrAppendFormat(&out, "index            %s\n", reader.path());
-  absl::StrAppendFormat(&out, "format version   1\n");
+  if (reader.format_version() == 1) {
+    absl::StrAppendFormat(&out,
+                          "format version   1 (records no commits; kindred compact rewrites it as "
+                          "version 2, which add needs)\n");
+  } else {
+    absl::StrAppendFormat(&out, "format version   %u (commit generation %u%s)\n",
+                          reader.format_version(), reader.commit_generation(),
+                          reader.damaged_commit_slots() > 0
+                              ? "; one commit slot does not verify: an interrupted commit"
+                              : "");
+  }
   absl::StrAppendFormat(&out, "signature        %s\n", s.signature.ToString());
   absl::StrAppendFormat(&out, "unicode          %s%s\n", s.unicode_version,
                         s.unicode_version == UnicodeVersionString()
                             ? ""
                             : absl::StrFormat(" (this program: %s)", UnicodeVersionString()));
-  absl::StrAppendFormat(&out, "banding          %u bands x %u rows (%u of %u slots)\n", s.bands,
-                        s.rows, s.bands * s.rows, s.signature.perms);
+  absl::StrAppendFormat(&out, "banding          %s (%u of %u slots)\n",
+                        BandsByRows(s.bands, s.rows), s.bands * s.rows, s.signature.perms);
   absl::StrAppendFormat(&out, "threshold        %s >= %g (candidate probability there %.4f)\n",
                         MeasureName(s.measure), s.threshold,
                         CandidateProbability(s.threshold, s.bands, s.rows));
@@ -38,10 +51,16 @@ std::string TextReport(const IndexReader& reader) {
                         reader.document_count());
   absl::StrAppendFormat(&out, "size             %u bytes (%u committed)\n", reader.file_size(),
                         reader.committed_size());
-  if (reader.torn_tail_bytes() > 0) {
+  if (reader.torn_tail_bytes() > 0 && reader.format_version() == 1) {
     absl::StrAppendFormat(&out,
-                          "torn tail        %u bytes at byte %u (an interrupted write; ignored; "
-                          "the next add or audit --repair cuts it off)\n",
+                          "unread tail      %u bytes at byte %u after the last whole segment (an "
+                          "interrupted write or a cut-off segment; ignored; see kindred audit)\n",
+                          reader.torn_tail_bytes(), reader.committed_size());
+  } else if (reader.torn_tail_bytes() > 0) {
+    absl::StrAppendFormat(&out,
+                          "torn tail        %u bytes at byte %u after the last recorded commit (an "
+                          "interrupted write; ignored; the next add or audit --repair cuts it "
+                          "off)\n",
                           reader.torn_tail_bytes(), reader.committed_size());
   }
   absl::StrAppendFormat(&out, "segments         %u\n", reader.segments().size());
@@ -60,8 +79,11 @@ std::string JsonReport(const IndexReader& reader) {
   std::string out = "{\"index\":";
   AppendJsonString(&out, reader.path());
   absl::StrAppendFormat(&out,
-                        ",\"format_version\":1,\"shingle\":\"%s\",\"k\":%u,\"seed\":%u,"
-                        "\"signer\":\"%s\",\"perms\":%u,\"unicode\":",
+                        // The seed as the text form prints it: a 64-bit number does not
+                        // survive JSON readers that hold numbers as doubles.
+                        ",\"format_version\":%u,\"commit_generation\":%u,\"shingle\":\"%s\","
+                        "\"k\":%u,\"seed\":\"0x%016x\",\"signer\":\"%s\",\"perms\":%u,\"unicode\":",
+                        reader.format_version(), reader.commit_generation(),
                         ShingleModeName(s.signature.mode), s.signature.k, s.signature.seed,
                         SignerSchemeName(s.signature.scheme), s.signature.perms);
   AppendJsonString(&out, s.unicode_version);
@@ -86,6 +108,7 @@ std::string JsonReport(const IndexReader& reader) {
 }
 
 int RunInfo(const InfoFlags& flags) {
+  ReportStaleTempFiles(flags.index);
   auto reader = IndexReader::Open(flags.index);
   if (!reader.ok()) return Fail(reader.status());
   std::string out = flags.format == "json" ? JsonReport(**reader) : TextReport(**reader);
@@ -104,9 +127,7 @@ void RegisterInfo(CLI::App& app, int* exit_code) {
   CLI::App* command = app.add_subcommand(
       "info", "Describe an index: settings, counts, segments, sizes, band/row choice");
   command->add_option("index", flags->index, "the index file")->required();
-  command->add_option("--format", flags->format, "text or json")
-      ->check(CLI::IsMember({"text", "json"}))
-      ->default_str("text");
+  AddFormatOption(command, &flags->format, {"text", "json"}, {{"jsonl", "json"}});
   command->callback([flags, exit_code] { *exit_code = RunInfo(*flags); });
 }
 

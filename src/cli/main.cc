@@ -2,6 +2,8 @@
 #include <cstdio>
 
 #include "cli/cli.h"
+#include "kindred/temp_files.h"
+#include "cli/usage.h"
 
 namespace kindred::cli {
 
@@ -27,7 +29,9 @@ int ExitCodeFor(const absl::Status& status) {
 }
 
 int Fail(int exit_code, const absl::Status& status) {
-  std::fprintf(stderr, "kindred: %s\n", std::string(status.message()).c_str());
+  // Usage errors name the command ("kindred: sweep: ..."), as parse errors do.
+  const std::string prefix = exit_code == kExitUsage ? UsagePrefix() : "kindred: ";
+  std::fprintf(stderr, "%s%s\n", prefix.c_str(), std::string(status.message()).c_str());
   return exit_code;
 }
 
@@ -38,9 +42,11 @@ int Fail(const absl::Status& status) { return Fail(ExitCodeFor(status), status);
 int main(int argc, char** argv) {
   using namespace kindred::cli;
   CLI::App app{"kindred: find near-duplicate text documents", "kindred"};
+  app.failure_message(ParseErrorMessage);
   app.require_subcommand(1);
   app.set_version_flag("--version", "kindred 0.1.0");
   int exit_code = kExitOk;
+  kindred::InstallTempFileCleanup();  // SIGINT/SIGTERM remove INDEX.tmp.PID etc.
   RegisterSweep(app, &exit_code);
   RegisterPlan(app, &exit_code);
   RegisterBuild(app, &exit_code);
@@ -52,6 +58,8 @@ int main(int argc, char** argv) {
   RegisterTune(app, &exit_code);
   RegisterExplain(app, &exit_code);
   RegisterServe(app, &exit_code);
+  RegisterRemove(app, &exit_code);
+  if (!FindCommandName(app, argc, argv)) return kExitUsage;
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -12,6 +12,7 @@
 #include "absl/strings/numbers.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "core/plural.h"
 #include "kindred/file_io.h"
 
 namespace kindred::cli {
@@ -106,7 +107,8 @@ namespace kindred::cli {
 
 std::string SigningProgress(const SignStats& stats, double seconds) {
   const double megabytes = static_cast<double>(stats.bytes) / 1e6;
-  std::string line = absl::StrFormat("signing: %d documents, %.1f MB", stats.documents, megabytes);
+  std::string line =
+      absl::StrFormat("signing: %s, %.1f MB", Counted(stats.documents, "document"), megabytes);
   if (seconds <= 0.5) return line;
   absl::StrAppendFormat(&line, ", %.1f MB/s", megabytes / seconds);
   if (stats.raw_bytes_total > 0 && stats.raw_bytes > 0) {

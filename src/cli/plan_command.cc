@@ -6,8 +6,8 @@
 //  - text: aligned tables for people;
 //  - jsonl: one JSON object per line, field "record" = settings | curve |
 //    alternative | choice | given;
-//  - tsv: three tab-separated tables (curve, alternatives, choice), each with
-//    a header line, separated by one empty line.
+//  - tsv, csv: three tab- (comma-) separated tables (curve, alternatives,
+//    choice), each with a header line, separated by one empty line.
 #include <cmath>
 #include <cstdio>
 #include <string>
@@ -17,6 +17,9 @@
 #include "absl/strings/str_format.h"
 #include "absl/strings/str_join.h"
 #include "cli/cli.h"
+#include "cli/formats.h"
+#include "cli/usage.h"
+#include "core/plural.h"
 #include "kindred/banding.h"
 #include "kindred/settings.h"
 
@@ -180,13 +183,15 @@ void PrintTextAlternatives(const Plan& plan) {
 
 void PrintTextChoice(const Plan& plan) {
   const BandingCost& best = plan.ranked.front();
-  std::printf("Choice: %u bands x %u rows (%llu of %u slots)%s\n", best.banding.bands,
-              best.banding.rows, static_cast<unsigned long long>(best.banding.slots()),
+  std::printf("Choice: %s (%llu of %u slots)%s\n",
+              BandsByRows(best.banding.bands, best.banding.rows).c_str(),
+              static_cast<unsigned long long>(best.banding.slots()),
               plan.options.perms,
               best.meets_recall_floor ? "" : "; no setting meets the recall floor");
   if (plan.has_given) {
-    std::printf("Given: %u bands x %u rows ranks %zu of %zu\n", plan.given.banding.bands,
-                plan.given.banding.rows, plan.given_rank, plan.ranked.size());
+    std::printf("Given: %s ranks %zu of %zu\n",
+                BandsByRows(plan.given.banding.bands, plan.given.banding.rows).c_str(),
+                plan.given_rank, plan.ranked.size());
   }
   std::printf("Use it with: --bands %u --rows %u\n", best.banding.bands, best.banding.rows);
 }
@@ -229,30 +234,43 @@ void PrintJsonl(const Plan& plan) {
   std::printf("{\"record\":\"choice\",%s}\n", CostFields(plan.ranked.front()).c_str());
 }
 
-void PrintTsv(const Plan& plan) {
+// The three tables separated by `sep` (tab or comma). Every field is a
+// number, a banding name such as "8x16" or yes/no: nothing needs quoting.
+void PrintDelimited(const Plan& plan, char sep) {
+  const std::string s1(1, sep);
   std::vector<std::string> header = {"similarity"};
   for (const BandingCost& c : plan.curves) header.push_back(Name(c.banding));
-  std::printf("%s\n", absl::StrJoin(header, "\t").c_str());
+  std::printf("%s\n", absl::StrJoin(header, s1).c_str());
   for (double s : plan.similarities) {
     std::string line = absl::StrFormat("%.4f", s);
     for (const BandingCost& c : plan.curves) {
-      absl::StrAppend(&line, absl::StrFormat("\t%.6f", CandidateProbability(s, c.banding.bands,
-                                                                            c.banding.rows)));
+      absl::StrAppend(
+          &line,
+          absl::StrFormat("%c%.6f", sep, CandidateProbability(s, c.banding.bands, c.banding.rows)));
     }
     std::printf("%s\n", line.c_str());
   }
-  std::printf(
-      "\nrank\tbands\trows\tslots\tprobability_at_threshold\t"
-      "probability_at_recall_point\tfalse_negative_mass\tfalse_positive_mass\t"
-      "weighted_cost\tmeets_recall_floor\n");
+  const std::vector<std::string> columns = {"rank",
+                                            "bands",
+                                            "rows",
+                                            "slots",
+                                            "probability_at_threshold",
+                                            "probability_at_recall_point",
+                                            "false_negative_mass",
+                                            "false_positive_mass",
+                                            "weighted_cost",
+                                            "meets_recall_floor"};
+  std::printf("\n%s\n", absl::StrJoin(columns, s1).c_str());
   for (const auto& [rank, c] : TableRows(plan)) {
-    std::printf("%zu\t%u\t%u\t%llu\t%.6f\t%.6f\t%.6f\t%.6f\t%.6f\t%s\n", rank, c->banding.bands,
-                c->banding.rows, static_cast<unsigned long long>(c->banding.slots()),
-                c->probability_at_threshold, c->probability_at_recall_point, c->false_negative_mass,
-                c->false_positive_mass, c->weighted, c->meets_recall_floor ? "yes" : "no");
+    std::printf("%zu%c%u%c%u%c%llu%c%.6f%c%.6f%c%.6f%c%.6f%c%.6f%c%s\n", rank, sep,
+                c->banding.bands, sep, c->banding.rows, sep,
+                static_cast<unsigned long long>(c->banding.slots()), sep,
+                c->probability_at_threshold, sep, c->probability_at_recall_point, sep,
+                c->false_negative_mass, sep, c->false_positive_mass, sep, c->weighted, sep,
+                c->meets_recall_floor ? "yes" : "no");
   }
   const Banding best = plan.ranked.front().banding;
-  std::printf("\nbands\trows\n%u\t%u\n", best.bands, best.rows);
+  std::printf("\nbands%crows\n%u%c%u\n", sep, best.bands, sep, best.rows);
 }
 
 int RunPlan(const PlanOptions& options) {
@@ -260,8 +278,8 @@ int RunPlan(const PlanOptions& options) {
   const Plan plan = MakePlan(options);
   if (options.format == "jsonl") {
     PrintJsonl(plan);
-  } else if (options.format == "tsv") {
-    PrintTsv(plan);
+  } else if (options.format == "tsv" || options.format == "csv") {
+    PrintDelimited(plan, options.format == "tsv" ? '\t' : ',');
   } else {
     PrintTextHeader(plan);
     PrintTextCurves(plan);
@@ -285,6 +303,7 @@ void RegisterPlan(CLI::App& app, int* exit_code) {
   plan->add_option("--threshold", options->threshold, "Similarity threshold, in (0, 1]")
       ->capture_default_str();
   plan->add_option("--perms", options->perms, "Signature length (slots), 1..4096")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->capture_default_str();
   plan->add_option("--fn-weight", options->fn_weight,
                    "Weight of the missed-pair mass above the threshold")
@@ -296,13 +315,14 @@ void RegisterPlan(CLI::App& app, int* exit_code) {
                    "Recall floor at min(threshold + 0.05, (threshold + 1) / "
                    "2); 0 disables it")
       ->capture_default_str();
-  plan->add_option("--bands", options->bands, "Show this band count (with --rows)");
-  plan->add_option("--rows", options->rows, "Show this row count (with --bands)");
+  plan->add_option("--bands", options->bands, "Show this band count (with --rows)")
+      ->transform(WholeNumber(0, UINT32_MAX));
+  plan->add_option("--rows", options->rows, "Show this row count (with --bands)")
+      ->transform(WholeNumber(0, UINT32_MAX));
   plan->add_option("--alternatives", options->alternatives, "Rows in the alternatives table")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->capture_default_str();
-  plan->add_option("--format", options->format, "Output format")
-      ->check(CLI::IsMember({"text", "jsonl", "tsv"}))
-      ->capture_default_str();
+  AddFormatOption(plan, &options->format, {"text", "jsonl", "tsv", "csv"});
   plan->callback([options, exit_code] { *exit_code = RunPlan(*options); });
 }
 

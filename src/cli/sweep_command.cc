@@ -11,8 +11,10 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
+#include "cli/formats.h"
 #include "cli/index_options.h"
 #include "cli/output.h"
+#include "core/plural.h"
 #include "io/output_guard.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
@@ -86,8 +88,8 @@ absl::Status WriteOutputs(const SweepFlags& flags, const SweepResult& result, Re
 
 void PrintSummary(const SweepResult& result, const SweepOptions& options) {
   const SweepStats& stats = result.stats;
-  std::fprintf(stderr, "kindred sweep: %llu documents (%llu empty)",
-               static_cast<unsigned long long>(stats.sign.documents),
+  std::fprintf(stderr, "kindred sweep: %s (%llu empty)",
+               Counted(stats.sign.documents, "document").c_str(),
                static_cast<unsigned long long>(stats.sign.empty_documents));
   if (stats.sign.bytes > 0) {
     std::fprintf(stderr, ", %.1f MB", static_cast<double>(stats.sign.bytes) / 1e6);
@@ -96,9 +98,9 @@ void PrintSummary(const SweepResult& result, const SweepOptions& options) {
   if (options.exhaustive) {
     std::fprintf(stderr, "  candidate pairs   all (exhaustive comparison)\n");
   } else {
-    std::fprintf(stderr, "  candidate pairs   %llu (%u bands x %u rows)\n",
+    std::fprintf(stderr, "  candidate pairs   %llu (%s)\n",
                  static_cast<unsigned long long>(stats.candidates.candidate_pairs),
-                 stats.banding.bands, stats.banding.rows);
+                 BandsByRows(stats.banding.bands, stats.banding.rows).c_str());
     if (stats.candidates.oversized_buckets > 0) {
       std::fprintf(stderr,
                    "  crowded buckets   %llu over %llu documents (largest %llu): members paired "
@@ -109,9 +111,9 @@ void PrintSummary(const SweepResult& result, const SweepOptions& options) {
     }
   }
   if (stats.spill_runs > 0) {
-    std::fprintf(stderr, "  spilled           %.1f MB of band keys in %llu runs (--memory %s)\n",
+    std::fprintf(stderr, "  spilled           %.1f MB of band keys in %s (--memory %s)\n",
                  static_cast<double>(stats.spilled_bytes) / 1e6,
-                 static_cast<unsigned long long>(stats.spill_runs),
+                 Counted(stats.spill_runs, "run").c_str(),
                  absl::StrFormat("%.0fM", static_cast<double>(options.memory) / (1 << 20)).c_str());
   }
   std::fprintf(stderr, "  confirmed pairs   %llu (%s >= %g)\n",
@@ -121,9 +123,8 @@ void PrintSummary(const SweepResult& result, const SweepOptions& options) {
   std::fprintf(stderr, "  drops             %llu (keep policy: %s)\n",
                static_cast<unsigned long long>(stats.drops), KeepPolicyName(options.keep));
   if (stats.sign.invalid_utf8_documents > 0) {
-    std::fprintf(stderr,
-                 "  invalid UTF-8     %llu document(s), bytes replaced by U+FFFD (-v names them)\n",
-                 static_cast<unsigned long long>(stats.sign.invalid_utf8_documents));
+    std::fprintf(stderr, "  invalid UTF-8     %s, bytes replaced by U+FFFD (-v names them)\n",
+                 Counted(stats.sign.invalid_utf8_documents, "document").c_str());
   }
 }
 
@@ -204,6 +205,7 @@ int RunIndexSweep(const SweepFlags& flags) {
                                 "--write-kept, --copy-kept and --list-kept need the corpus, not "
                                 "--index; use the decisions with the corpus instead"));
   }
+  ReportStaleTempFiles(flags.index);
   auto reader = IndexReader::Open(flags.index);
   if (!reader.ok()) return Fail(reader.status());
   MatchSettings match;
@@ -350,6 +352,7 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
                       "sweep the documents of this index file instead of inputs (the corpus is "
                       "not re-read)");
   AddInputOptions(command, &flags->input);
+  AddPriorityFieldOption(command, &flags->input, /*stored=*/false);
   AddSignatureOptions(command, &flags->signature);
   AddMatchOptions(command, &flags->match);
   command
@@ -359,8 +362,11 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
   AddMaxBucketOption(command, &flags->max_bucket);
   command
       ->add_option("--memory", flags->memory,
-                   "memory budget, e.g. 4G: band keys beyond half of it are spilled to sorted "
-                   "runs in the scratch directory (same results; default: no budget)")
+                   "bound on the band keys held in memory, e.g. 4G: band keys beyond half of it "
+                   "are spilled to sorted runs in the scratch directory (same results; default: "
+                   "no bound). Not counted: signatures, ids, documents being signed, and the "
+                   "shingle sets of candidate documents reloaded for verification (README "
+                   "\"Memory\")")
       ->group("Resources");
   command
       ->add_option("--scratch-dir", flags->scratch_dir,
@@ -380,9 +386,7 @@ void RegisterSweep(CLI::App& app, int* exit_code) {
                    "groups, or none with --output-dir)")
       ->check(CLI::IsMember({"pairs", "groups", "decisions", "none"}))
       ->group("Output");
-  command->add_option("--format", flags->format, "record format: jsonl, tsv or csv")
-      ->default_str("jsonl")
-      ->group("Output");
+  AddFormatOption(command, &flags->format, {"jsonl", "tsv", "csv"});
   command
       ->add_option("--write-kept", flags->write_kept,
                    "JSON Lines inputs: write the kept lines, verbatim, to this file "

@@ -5,7 +5,9 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
+#include "cli/usage.h"
 #include "cli/common_options.h"
+#include "cli/formats.h"
 #include "cli/output.h"
 #include "kindred/explain.h"
 #include "kindred/labels.h"
@@ -106,10 +108,6 @@ absl::StatusOr<std::vector<ExplainedPair>> ExplainWrongPairs(const TuneResult& r
 
 // The checks of the command line that ToTuneOptions does not make.
 absl::Status CheckFlags(const TuneFlags& flags) {
-  if (flags.format != "text" && flags.format != "jsonl") {
-    return absl::InvalidArgumentError(
-        absl::StrCat("--format: expected text or jsonl, not \"", flags.format, "\""));
-  }
   for (const std::string& input : flags.inputs) {
     if (input == "-") {
       return absl::InvalidArgumentError(
@@ -173,6 +171,7 @@ void AddGridOptions(CLI::App* command, TuneFlags* flags) {
       ->default_str("word:3,word:5,word:7")
       ->group("Grid");
   command->add_option("--perms", flags->perms, "signature lengths to try, comma-separated")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->delimiter(',')
       ->default_str("64,128")
       ->group("Grid");
@@ -184,6 +183,7 @@ void AddGridOptions(CLI::App* command, TuneFlags* flags) {
       ->add_option("--bandings-per-threshold", flags->bandings_per_threshold,
                    "best bandings (as `kindred plan` ranks them) tried at each "
                    "threshold")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->default_str("3")
       ->group("Grid");
   command
@@ -200,7 +200,11 @@ void AddGridOptions(CLI::App* command, TuneFlags* flags) {
   command->add_option("--signer", flags->signer, "MinHash scheme: oph or classic")
       ->default_str("oph")
       ->group("Grid");
-  command->add_option("--seed", flags->seed, "hash seed of shingles and signatures")->group("Grid");
+  command
+      ->add_option("--seed", flags->seed,
+                   "hash seed of shingles and signatures (decimal, or hex after 0x)")
+      ->transform(WholeNumber(0, UINT64_MAX))
+      ->group("Grid");
 }
 
 }  // namespace
@@ -239,14 +243,13 @@ void RegisterTune(CLI::App& app, int* exit_code) {
                  "(with a warning) "
                  "instead of failing")
       ->group("Input");
-  command->add_option("--format", flags->format, "standard output: text or jsonl")
-      ->default_str("text")
-      ->group("Output");
+  AddFormatOption(command, &flags->format, {"text", "jsonl"});
   command
       ->add_option("--report", flags->report,
                    "write a self-contained HTML report (plots, table, wrong pairs) here")
       ->group("Output");
   command->add_option("--top", flags->top, "rows of the ranking shown in text and HTML")
+      ->transform(WholeNumber(0, UINT32_MAX))
       ->default_str("20")
       ->group("Output");
   AddGeneralOptions(command, &flags->general);

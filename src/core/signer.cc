@@ -189,7 +189,8 @@ double EstimateJaccard(absl::Span<const uint32_t> a, absl::Span<const uint32_t> 
   if (a.size() != b.size() || a.empty()) return 0.0;
   size_t agree = 0;
   for (size_t i = 0; i < a.size(); ++i) {
-    agree += (a[i] == b[i]) & (a[i] != kEmptySlot);
+    // Branch-free count; integer & keeps the loop free of short-circuit jumps.
+    agree += static_cast<size_t>(a[i] == b[i]) & static_cast<size_t>(a[i] != kEmptySlot);
   }
   return static_cast<double>(agree) / static_cast<double>(a.size());
 }

@@ -30,6 +30,23 @@ void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
 
 void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
                        absl::Span<const std::string> ids, KeepPolicy policy, std::string* out) {
+  if (format != RecordFormat::kJsonLines) {
+    // One row per drop: a list of ids in one field could not be split back
+    // when ids hold the separator.
+    RecordWriter writer(format, {"group", "size", "keeper", "drop", "policy"}, out);
+    for (size_t g = 0; g < groups.size(); ++g) {
+      for (uint32_t member : groups[g].members) {
+        if (member == groups[g].keeper) continue;
+        writer.Number(g + 1);
+        writer.Number(groups[g].members.size());
+        writer.String(ids[groups[g].keeper]);
+        writer.String(ids[member]);
+        writer.String(KeepPolicyName(policy));
+        writer.EndRow();
+      }
+    }
+    return;
+  }
   RecordWriter writer(format, {"group", "size", "keeper", "drops", "policy"}, out);
   std::vector<std::string_view> drops;
   for (size_t g = 0; g < groups.size(); ++g) {

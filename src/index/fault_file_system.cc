@@ -31,6 +31,20 @@ class FaultAppendFile : public AppendFile {
     return owner_->FaultStatus();
   }
 
+  // A crash here writes the first half of the bytes (a torn in-place write).
+  absl::Status WriteAt(uint64_t offset, std::string_view bytes) override {
+    switch (owner_->NextStep(false, false, /*is_overwrite=*/true)) {
+      case FaultFileSystem::Verdict::kProceed:
+        return base_->WriteAt(offset, bytes);
+      case FaultFileSystem::Verdict::kHalfThenFail:
+        base_->WriteAt(offset, bytes.substr(0, bytes.size() / 2)).IgnoreError();
+        return owner_->FaultStatus();
+      case FaultFileSystem::Verdict::kFail:
+        return owner_->FaultStatus();
+    }
+    return owner_->FaultStatus();
+  }
+
   absl::Status Sync() override {
     if (owner_->NextStep(false, /*is_sync=*/true) != FaultFileSystem::Verdict::kProceed) {
       return owner_->FaultStatus();
@@ -54,7 +68,8 @@ class FaultAppendFile : public AppendFile {
 
 }  // namespace
 
-FaultFileSystem::Verdict FaultFileSystem::NextStep(bool is_append, bool is_sync) {
+FaultFileSystem::Verdict FaultFileSystem::NextStep(bool is_append, bool is_sync,
+                                                   bool is_overwrite) {
   int64_t step = steps_++;
   if (fired_) {
     if (kind_ == FaultKind::kCrash) return Verdict::kFail;
@@ -65,6 +80,7 @@ FaultFileSystem::Verdict FaultFileSystem::NextStep(bool is_append, bool is_sync)
   if (kind_ == FaultKind::kSyncFails && !is_sync) return Verdict::kProceed;
   if (kind_ == FaultKind::kDiskFull && !is_append) return Verdict::kProceed;
   fired_ = true;
+  if (is_overwrite) return kind_ == FaultKind::kCrash ? Verdict::kHalfThenFail : Verdict::kFail;
   return is_append ? Verdict::kHalfThenFail : Verdict::kFail;
 }
 

@@ -1,10 +1,10 @@
 // A FileSystem that forwards to another and injects faults, for tests of
-// crash safety and full disks. Each mutating call (Append, Sync, Truncate,
+// crash safety and full disks. Each mutating call (Append, WriteAt, Sync, Truncate,
 // Rename, Remove, SyncDirectoryOf, CreateNew) counts as one step. When the
 // step numbered `fail_at` (0-based) comes:
 //
-// * kCrash: an Append writes only the first half of its bytes, any other
-//   step does nothing; that step and every later mutating call fail with
+// * kCrash: an Append or WriteAt writes only the first half of its bytes,
+//   any other step does nothing; that step and every later mutating call fail with
 //   Aborted, as if the process had died there (later cleanup cannot run).
 // * kDiskFull: an Append writes the first half of its bytes and fails with
 //   ResourceExhausted; later steps succeed unless they append (the disk
@@ -58,7 +58,9 @@ class FaultFileSystem : public FileSystem {
 
   // One mutating step. Returns what the step must do.
   enum class Verdict { kProceed, kHalfThenFail, kFail };
-  Verdict NextStep(bool is_append, bool is_sync);
+  // An overwrite (WriteAt) is torn like an append by a crash but needs no
+  // space on a full disk.
+  Verdict NextStep(bool is_append, bool is_sync, bool is_overwrite = false);
   absl::Status FaultStatus() const;
 
  private:

@@ -2,6 +2,7 @@
 
 #include "absl/strings/str_format.h"
 #include "index/codec.h"
+#include "index/commit_area.h"
 
 namespace kindred::index {
 namespace {
@@ -24,7 +25,8 @@ bool Place(uint64_t bytes, uint64_t* offset, uint64_t* section) {
 
 // The version 1 fields after magic, version and size (FORMAT.md, "File
 // header"), read from `reader`; the header is `size` bytes in all.
-absl::Status DecodeSettingFields(ByteReader* reader_ptr, uint32_t size, IndexSettings* out) {
+absl::Status DecodeSettingFields(ByteReader* reader_ptr, uint32_t version, uint32_t size,
+                                 IndexSettings* out) {
   ByteReader& reader = *reader_ptr;
   uint8_t mode, scheme, measure, reserved;
   uint32_t unicode_length;
@@ -35,7 +37,8 @@ absl::Status DecodeSettingFields(ByteReader* reader_ptr, uint32_t size, IndexSet
   reader.F64(&s.threshold);
   std::string_view unicode;
   if (unicode_length > kMaxUnicodeVersionLength ||
-      RoundUp8(kFileHeaderFixedSize + unicode_length) + 8 != size ||
+      (version == 1 ? RoundUp8(kFileHeaderFixedSize + unicode_length) + 8 : kHeaderSizeV2) !=
+          size ||
       !reader.Bytes(unicode_length, &unicode) || mode > 1 || scheme > 1 || measure > 1 ||
       reserved != 0) {
     return absl::DataLossError("index header: malformed fields");
@@ -55,13 +58,15 @@ absl::Status DecodeSettingFields(ByteReader* reader_ptr, uint32_t size, IndexSet
 
 }  // namespace
 
-std::string EncodeFileHeader(const IndexSettings& settings) {
+std::string EncodeFileHeader(const IndexSettings& settings, uint32_t version) {
   const std::string& unicode = settings.unicode_version;
   std::string out;
   ByteWriter writer(&out);
   writer.Bytes(kFileMagic);
-  writer.U32(kFormatVersion);
-  writer.U32(static_cast<uint32_t>(RoundUp8(kFileHeaderFixedSize + unicode.size()) + 8));
+  writer.U32(version);
+  // Version 2 pads the header to one 512-byte sector, all checksummed.
+  writer.U32(static_cast<uint32_t>(
+      version == 1 ? RoundUp8(kFileHeaderFixedSize + unicode.size()) + 8 : kHeaderSizeV2));
   writer.U8(static_cast<uint8_t>(settings.signature.mode));
   writer.U8(static_cast<uint8_t>(settings.signature.scheme));
   writer.U8(static_cast<uint8_t>(settings.measure));
@@ -75,11 +80,13 @@ std::string EncodeFileHeader(const IndexSettings& settings) {
   writer.F64(settings.threshold);
   writer.Bytes(unicode);
   writer.PadTo8();
+  if (version != 1) out.resize(kHeaderSizeV2 - 8, '\0');
   writer.U64(Checksum(out));
   return out;
 }
 
-absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings, size_t* header_size) {
+absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings, size_t* header_size,
+                              uint32_t* version_out) {
   if (file.size() < kFileMagic.size() || file.substr(0, kFileMagic.size()) != kFileMagic) {
     return absl::DataLossError("not a kindred index (bad magic)");
   }
@@ -102,14 +109,16 @@ absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings, si
         "index format version %u is newer than this program reads (%u); use a newer kindred",
         version, kFormatVersion));
   }
-  if (version != kFormatVersion || size < kFileHeaderFixedSize + 8 || size > kMaxFileHeaderSize) {
+  if (version < kOldestFormatVersion || size < kFileHeaderFixedSize + 8 ||
+      size > (version == 1 ? kMaxFileHeaderSize : kHeaderSizeV2)) {
     return absl::DataLossError(absl::StrFormat("index header: bad version %u", version));
   }
   IndexSettings decoded;
-  absl::Status fields = DecodeSettingFields(&reader, size, &decoded);
+  absl::Status fields = DecodeSettingFields(&reader, version, size, &decoded);
   if (!fields.ok()) return fields;
   *settings = std::move(decoded);
   *header_size = size;
+  if (version_out != nullptr) *version_out = version;
   return absl::OkStatus();
 }
 

@@ -17,7 +17,10 @@ static_assert(std::endian::native == std::endian::little,
               "the index maps little-endian tables directly");
 
 inline constexpr std::string_view kFileMagic{"KINDRED\x1a", 8};  // frozen
-inline constexpr uint32_t kFormatVersion = 1;
+// Version written by this program; version 1 files (no commit area) are
+// still read (FORMAT.md, "Version 1 files").
+inline constexpr uint32_t kFormatVersion = 2;
+inline constexpr uint32_t kOldestFormatVersion = 1;
 inline constexpr std::string_view kSegmentMagic{"KSEG", 4};  // frozen
 inline constexpr std::string_view kCommitMagic{"KCMT", 4};   // frozen
 
@@ -33,12 +36,15 @@ inline constexpr uint32_t kDocFlagHasPriority = 1;  // frozen: doc_table flags b
 
 inline uint64_t RoundUp8(uint64_t n) { return (n + 7) & ~uint64_t{7}; }
 
-// File header <-> IndexSettings.
-std::string EncodeFileHeader(const IndexSettings& settings);
-// Decodes the header at the start of `file`; *header_size gets its length.
-// DataLoss for a bad magic, a short or damaged header; FailedPrecondition
-// for a newer format version.
-absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings, size_t* header_size);
+// File header <-> IndexSettings. `version` is kFormatVersion except in
+// tests that write a version 1 file.
+std::string EncodeFileHeader(const IndexSettings& settings, uint32_t version = kFormatVersion);
+// Decodes the header at the start of `file`; *header_size gets its length,
+// *version (when not null) the format version (1 or 2). DataLoss for a bad
+// magic, a short or damaged header; FailedPrecondition for a newer format
+// version.
+absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings, size_t* header_size,
+                              uint32_t* version = nullptr);
 
 struct SegmentHeader {
   uint32_t segment_number = 0;

@@ -107,11 +107,27 @@ absl::StatusOr<AuditReport> AuditIndex(const std::string& path, const IndexWrite
   report.segments = static_cast<uint32_t>(r.segments().size());
   report.documents = r.document_count();
   report.torn_tail_bytes = r.torn_tail_bytes();
-  if (report.torn_tail_bytes > 0) {
+  if (r.format_version() == 1) {
+    report.notes.push_back(
+        "format version 1: the file does not record its commits (kindred compact rewrites it as "
+        "version 2; add refuses to write to it until then)");
+  }
+  if (report.torn_tail_bytes > 0 && r.format_version() == 1) {
     report.notes.push_back(absl::StrFormat(
-        "torn tail: %u bytes at byte %u after the last committed segment (an interrupted "
-        "write; readers ignore it; the next writer or audit --repair cuts it off)",
+        "%u bytes at byte %u after the last whole segment: an interrupted write or a cut-off "
+        "segment (version 1 cannot tell which); readers ignore them; audit --repair writes the "
+        "readable documents to a version-2 copy",
         report.torn_tail_bytes, r.committed_size()));
+  } else if (report.torn_tail_bytes > 0) {
+    report.notes.push_back(absl::StrFormat(
+        "torn tail: %u bytes at byte %u after the last recorded commit (an interrupted write; "
+        "readers ignore it; the next writer or audit --repair cuts it off)",
+        report.torn_tail_bytes, r.committed_size()));
+  }
+  if (r.damaged_commit_slots() > 0) {
+    report.notes.push_back(absl::StrFormat(
+        "one commit slot does not verify (an interrupted commit); the other records generation %u",
+        r.commit_generation()));
   }
   // The file may have grown since it was mapped; only committed bytes matter.
   std::string_view file = (*mapping)->bytes().substr(0, r.committed_size());

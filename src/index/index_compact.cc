@@ -2,6 +2,7 @@
 #include <vector>
 
 #include "absl/strings/str_format.h"
+#include "index/commit_area.h"
 #include "index/format.h"
 #include "index/segment.h"
 #include "index/write_util.h"
@@ -28,10 +29,17 @@ absl::Status LoadLiveDocuments(const IndexReader& reader, SignedCorpus* out) {
 absl::StatusOr<CompactResult> CompactIndex(const std::string& path, const CompactOptions& compact,
                                            const IndexWriteOptions& options) {
   FileSystem* fs = options.file_system;
-  auto lock = index::LockIndex(path, fs);
+  auto lock = index::LockIndex(path, fs, options.lock_wait_seconds);
   if (!lock.ok()) return lock.status();
   auto reader = IndexReader::Open(path, IndexOpenOptions{fs});
   if (!reader.ok()) return reader.status();
+  if ((*reader)->format_version() == 1 && (*reader)->torn_tail_bytes() > 0) {
+    return absl::FailedPreconditionError(absl::StrFormat(
+        "index %s is format version 1 and has %u bytes after its last whole segment at byte %u, "
+        "which version 1 cannot tell from a cut-off committed segment; nothing was written. "
+        "`kindred audit --repair %s` writes the readable documents to a version-2 copy beside it",
+        path, (*reader)->torn_tail_bytes(), (*reader)->committed_size(), path));
+  }
   IndexSettings settings = (*reader)->settings();
   if ((compact.bands == 0) != (compact.rows == 0)) {
     return absl::InvalidArgumentError("give both bands and rows, or neither");
@@ -47,14 +55,14 @@ absl::StatusOr<CompactResult> CompactIndex(const std::string& path, const Compac
   if (!valid.ok()) return valid;
   index::EncodedSegment segment =
       index::EncodeSegment(0, 0, index::DocumentsOf(live), {}, settings);
-  std::string header = index::EncodeFileHeader(settings);
   CompactResult result;
   result.segments_before = static_cast<uint32_t>((*reader)->segments().size());
   result.documents_before = (*reader)->document_count();
   result.documents_after = static_cast<uint32_t>(live.size());
   result.bytes_before = (*reader)->file_size();
-  result.bytes_after = header.size() + segment.head_and_body.size() + segment.commit.size();
-  absl::Status written = index::WriteWholeFile(path, header, segment, /*replace=*/true, fs);
+  result.bytes_after = index::kDataStart + segment.head_and_body.size() + segment.commit.size();
+  absl::Status written =
+      index::WriteWholeFile(path, settings, segment, live.size(), /*replace=*/true, fs);
   if (!written.ok()) return written;
   return result;
 }

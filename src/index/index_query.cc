@@ -57,7 +57,9 @@ absl::StatusOr<std::vector<IndexMatch>> MatchForQuery(const IndexReader& reader,
                                                       const SignedCorpus& batch,
                                                       std::optional<DuplicateIdPolicy> policy,
                                                       IndexMatchOptions options) {
-  options.exclude_same_id = policy == DuplicateIdPolicy::kReplace;
+  // A document whose id is indexed is never its own match: with replace the
+  // indexed copy is retired, with skip the new one is not added.
+  options.exclude_same_id = policy.has_value() && *policy != DuplicateIdPolicy::kError;
   return MatchAgainstIndex(reader, batch, options);
 }
 

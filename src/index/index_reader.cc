@@ -3,6 +3,7 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "index/codec.h"
+#include "index/commit_area.h"
 #include "index/format.h"
 #include "index/segment.h"
 #include "kindred/banding.h"
@@ -16,30 +17,79 @@ IndexReader::~IndexReader() = default;
 
 absl::StatusOr<std::unique_ptr<IndexReader>> IndexReader::Open(const std::string& path,
                                                                const IndexOpenOptions& options) {
-  auto mapping = options.file_system->Map(path);
-  if (!mapping.ok()) return mapping.status();
-  std::unique_ptr<IndexReader> reader(new IndexReader());
-  reader->path_ = path;
-  reader->mapping_ = *std::move(mapping);
-  reader->file_ = reader->mapping_->bytes();
-  absl::Status status = reader->Load();
-  if (!status.ok()) {
-    return absl::Status(status.code(), absl::StrCat("index ", path, ": ", status.message()));
+  absl::Status status;
+  // A writer may commit between the mapping and the reading of the commit
+  // area (the record then names bytes past the mapped end): a file whose
+  // size changed meanwhile is mapped and read again.
+  for (int attempt = 0; attempt < 4; ++attempt) {
+    auto mapping = options.file_system->Map(path);
+    if (!mapping.ok()) return mapping.status();
+    std::unique_ptr<IndexReader> reader(new IndexReader());
+    reader->path_ = path;
+    reader->mapping_ = *std::move(mapping);
+    reader->file_ = reader->mapping_->bytes();
+    status = reader->Load();
+    if (status.ok()) return reader;
+    if (!absl::IsDataLoss(status)) break;
+    auto again = options.file_system->Map(path);
+    if (!again.ok() || (*again)->bytes().size() == reader->file_.size()) break;
   }
-  return reader;
+  return absl::Status(status.code(), absl::StrCat("index ", path, ": ", status.message()));
 }
 
 absl::Status IndexReader::Load() {
   size_t header_size = 0;
-  absl::Status status = index::DecodeFileHeader(file_, &settings_, &header_size);
+  absl::Status status = index::DecodeFileHeader(file_, &settings_, &header_size, &format_version_);
   if (!status.ok()) return status;
-  committed_size_ = header_size;
   bands_ = settings_.bands;
   rows_ = settings_.rows;
-  return LoadSegments();
+  if (format_version_ == 1) {
+    committed_size_ = header_size;
+    return LoadSegments(file_.size(), /*recorded=*/false);
+  }
+  committed_size_ = index::kDataStart;
+  return LoadCommitted();
 }
 
-absl::Status IndexReader::LoadSegments() {
+absl::Status IndexReader::LoadCommitted() {
+  index::CommitArea area;
+  absl::Status status = index::ReadCommitArea(file_, &area);
+  if (!status.ok()) return status;
+  const index::CommitState& state = area.current;
+  if (file_.size() < state.committed_length) {
+    return absl::DataLossError(absl::StrFormat(
+        "the file is %u bytes but records %u committed bytes (%u %s, %u %s): bytes %u..%u of "
+        "committed data are missing",
+        file_.size(), state.committed_length, state.segment_count,
+        state.segment_count == 1 ? "segment" : "segments", state.document_count,
+        state.document_count == 1 ? "document" : "documents", file_.size(),
+        state.committed_length));
+  }
+  if (state.generation < commit_generation_) {
+    return absl::DataLossError("the commit area went backwards");
+  }
+  if (state.committed_length >= committed_size_) {
+    status = LoadSegments(state.committed_length, /*recorded=*/true);
+    if (!status.ok()) return status;
+    if (segments_.size() != state.segment_count || document_count_ != state.document_count) {
+      return absl::DataLossError(absl::StrFormat(
+          "the commit area records %u segments and %u documents, the committed bytes hold %u "
+          "segments and %u documents",
+          state.segment_count, state.document_count, segments_.size(), document_count_));
+    }
+  }
+  commit_generation_ = state.generation;
+  damaged_commit_slots_ = (area.slots[0] == index::SlotStatus::kDamaged) +
+                          (area.slots[1] == index::SlotStatus::kDamaged);
+  // A slot that does not verify may be a commit interrupted after its
+  // segments were written and synced (or a damaged newer record): whole,
+  // verified segments after the recorded length are read as in version 1,
+  // and the next writer records them.
+  if (damaged_commit_slots_ > 0) return LoadSegments(file_.size(), /*recorded=*/false);
+  return absl::OkStatus();
+}
+
+absl::Status IndexReader::LoadSegments(uint64_t end, bool recorded) {
   // Parsed into these first, so that an error changes nothing.
   std::vector<SegmentInfo> infos;
   std::vector<Segment> views;
@@ -48,11 +98,18 @@ absl::Status IndexReader::LoadSegments() {
   absl::Status status;
   uint64_t offset = committed_size_;
   uint64_t first_doc = document_count_;
-  while (offset < file_.size()) {
+  const std::string_view file = file_.substr(0, end);
+  while (offset < end) {
     Segment segment;
     const uint32_t number = static_cast<uint32_t>(segments_.size() + infos.size());
     index::SegmentScan scan =
-        segment.Parse(file_, offset, number, first_doc, settings_.signature.perms, &status);
+        segment.Parse(file, offset, number, first_doc, settings_.signature.perms, &status);
+    if (scan == index::SegmentScan::kTornTail && recorded) {
+      return absl::DataLossError(absl::StrFormat(
+          "committed segment %u at bytes %u..%u does not verify (the file records %u committed "
+          "bytes; the segment is cut short or zeroed)",
+          number, offset, end, end));
+    }
     if (scan == index::SegmentScan::kTornTail) break;
     if (scan == index::SegmentScan::kCorrupt) return status;
     const index::SegmentHeader& h = segment.header();
@@ -95,9 +152,14 @@ absl::Status IndexReader::ReadAppended(const IndexOpenOptions& options) {
   const std::string_view previous_file = file_;
   mapping_ = *std::move(mapping);
   file_ = mapping_->bytes();
-  absl::Status status = file_.size() >= committed_size_
-                            ? LoadSegments()
-                            : absl::DataLossError("the file is shorter than its committed part");
+  absl::Status status;
+  if (file_.size() < committed_size_) {
+    status = absl::DataLossError("the file is shorter than its committed part");
+  } else if (format_version_ == 1) {
+    status = LoadSegments(file_.size(), /*recorded=*/false);
+  } else {
+    status = LoadCommitted();
+  }
   if (!status.ok()) {
     mapping_ = std::move(previous);
     file_ = previous_file;
@@ -137,6 +199,17 @@ uint32_t IndexReader::shingle_count(uint32_t doc) const {
   return SegmentOf(doc, &local).doc(local).shingle_count;
 }
 
+absl::Status IndexReader::ShingleError(uint32_t doc) const {
+  uint32_t local;
+  const Segment& segment = SegmentOf(doc, &local);
+  const uint64_t at = segment.shingle_offset(local);
+  return absl::DataLossError(absl::StrFormat(
+      "index %s: document \"%s\" (number %u): shingle set does not verify: bytes %u..%u of "
+      "segment %u are damaged",
+      path_, segment.id(local), doc, at, at + segment.doc(local).shingles_length,
+      segment.header().segment_number));
+}
+
 absl::Status IndexReader::ReadShingles(uint32_t doc, std::vector<uint64_t>* out) const {
   uint32_t local;
   const Segment& segment = SegmentOf(doc, &local);
@@ -146,9 +219,18 @@ absl::Status IndexReader::ReadShingles(uint32_t doc, std::vector<uint64_t>* out)
   if (index::Checksum(bytes) != record.shingles_checksum ||
       !index::DecodeShingleSet(bytes, record.shingle_count, out)) {
     out->clear();
-    return absl::DataLossError(
-        absl::StrFormat("index %s: document %u: shingle set checksum mismatch at byte %u", path_,
-                        doc, segments_[&segment - segment_views_.data()].offset));
+    return ShingleError(doc);
+  }
+  return absl::OkStatus();
+}
+
+absl::Status IndexReader::VerifyShingleChecksums() const {
+  for (uint32_t doc = 0; doc < document_count_; ++doc) {
+    uint32_t local;
+    const Segment& segment = SegmentOf(doc, &local);
+    if (index::Checksum(segment.shingle_bytes(local)) != segment.doc(local).shingles_checksum) {
+      return ShingleError(doc);
+    }
   }
   return absl::OkStatus();
 }

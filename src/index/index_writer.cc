@@ -6,6 +6,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "index/commit_area.h"
 #include "index/format.h"
 #include "index/segment.h"
 #include "index/write_util.h"
@@ -53,8 +54,8 @@ absl::Status CreateIndex(const std::string& path, const IndexSettings& settings,
   }
   std::vector<index::SegmentDocument> docs = index::DocumentsOf(corpus);
   index::EncodedSegment segment = index::EncodeSegment(0, 0, docs, {}, settings);
-  return index::WriteWholeFile(path, index::EncodeFileHeader(settings), segment,
-                               /*replace=*/false, options.file_system);
+  return index::WriteWholeFile(path, settings, segment, docs.size(), /*replace=*/false,
+                               options.file_system);
 }
 
 IndexWriter::~IndexWriter() = default;
@@ -64,21 +65,47 @@ absl::StatusOr<std::unique_ptr<IndexWriter>> IndexWriter::Open(const std::string
   std::unique_ptr<IndexWriter> writer(new IndexWriter());
   writer->path_ = path;
   writer->options_ = options;
-  auto lock = index::LockIndex(path, options.file_system);
+  auto lock = index::LockIndex(path, options.file_system, options.lock_wait_seconds);
   if (!lock.ok()) return lock.status();
   writer->lock_ = *std::move(lock);
   auto reader = IndexReader::Open(path, IndexOpenOptions{options.file_system});
   if (!reader.ok()) return reader.status();
   writer->reader_ = *std::move(reader);
+  if (writer->reader_->format_version() == 1) {
+    return absl::FailedPreconditionError(absl::StrFormat(
+        "index %s is format version 1, which does not record its commits, so a writer cannot "
+        "tell a torn tail from lost data; run `kindred compact %s` once to rewrite it as "
+        "version 2, then add to it",
+        path, path));
+  }
+  // Nothing is appended to a file with damaged committed data.
+  if (absl::Status sound = writer->reader_->VerifyShingleChecksums(); !sound.ok()) {
+    return absl::DataLossError(
+        absl::StrCat(sound.message(), "; nothing was written (see kindred audit --repair)"));
+  }
   auto file = options.file_system->OpenAppend(path);
   if (!file.ok()) return file.status();
   writer->file_ = *std::move(file);
-  uint64_t committed = writer->reader_->committed_size();
+  const IndexReader& opened = *writer->reader_;
+  uint64_t committed = opened.committed_size();
   if (writer->file_->size() != committed) {
     writer->torn_tail_cut_ = writer->file_->size() - committed;
     absl::Status cut = writer->file_->Truncate(committed);
     if (cut.ok()) cut = writer->file_->Sync();
     if (!cut.ok()) return cut;
+  }
+  // A slot that does not verify is rewritten with what the file holds
+  // (including segments written before an interrupted commit).
+  if (opened.damaged_commit_slots() > 0) {
+    absl::Status recorded = index::RecordCommit(
+        writer->file_.get(), index::CommitState{opened.commit_generation() + 1, committed,
+                                                static_cast<uint32_t>(opened.segments().size()),
+                                                opened.document_count()});
+    if (!recorded.ok()) return recorded;
+    if (absl::Status read = writer->reader_->ReadAppended(IndexOpenOptions{options.file_system});
+        !read.ok()) {
+      return read;
+    }
   }
   return writer;
 }
@@ -118,28 +145,68 @@ absl::StatusOr<AppendResult> IndexWriter::Append(const SignedCorpus& batch,
     return absl::ResourceExhaustedError("the index would exceed 2^31 documents");
   }
   std::sort(retired.begin(), retired.end());
-  result.segment_number = static_cast<uint32_t>(reader_->segments().size());
-  index::EncodedSegment segment =
-      index::EncodeSegment(result.segment_number, next, docs, retired, settings);
-  absl::Status written = index::AppendSegment(file_.get(), reader_->committed_size(), segment);
+  if (absl::Status written = WriteSegment(docs, retired, &result.segment_number); !written.ok()) {
+    return written;
+  }
+  result.wrote_segment = true;
+  return result;
+}
+
+absl::Status IndexWriter::WriteSegment(absl::Span<const index::SegmentDocument> docs,
+                                       absl::Span<const uint64_t> retired,
+                                       uint32_t* segment_number) {
+  if (broken_) {
+    return absl::FailedPreconditionError("an earlier append to this index failed; reopen it");
+  }
+  *segment_number = static_cast<uint32_t>(reader_->segments().size());
+  index::EncodedSegment segment = index::EncodeSegment(*segment_number, reader_->document_count(),
+                                                       docs, retired, reader_->settings());
+  const index::CommitPoint before{reader_->commit_generation(), reader_->committed_size(),
+                                  static_cast<uint32_t>(reader_->segments().size()),
+                                  reader_->document_count()};
+  absl::Status written = index::AppendSegment(file_.get(), before, docs.size(), segment);
   if (!written.ok()) {
     broken_ = true;
     return written;
   }
-  result.wrote_segment = true;
   // Reads back and verifies the new segment only (re-opening the whole
   // index after every segment made building in parts quadratic).
-  if (absl::Status read = reader_->ReadAppended(IndexOpenOptions{options_.file_system});
-      !read.ok()) {
-    return read;
-  }
-  return result;
+  return reader_->ReadAppended(IndexOpenOptions{options_.file_system});
 }
 
-absl::StatusOr<uint64_t> RepairIndex(const std::string& path, const IndexWriteOptions& options) {
-  auto writer = IndexWriter::Open(path, options);
-  if (!writer.ok()) return writer.status();
-  return (*writer)->torn_tail_cut();
+absl::StatusOr<RetireResult> IndexWriter::Retire(absl::Span<const std::string> ids) {
+  std::vector<uint64_t> retired;
+  std::vector<std::string_view> missing;
+  for (const std::string& id : ids) {
+    std::optional<uint32_t> doc = reader_->FindLive(id);
+    if (doc) {
+      retired.push_back(*doc);
+    } else {
+      missing.push_back(id);
+    }
+  }
+  std::sort(retired.begin(), retired.end());
+  retired.erase(std::unique(retired.begin(), retired.end()), retired.end());
+  std::sort(missing.begin(), missing.end());
+  missing.erase(std::unique(missing.begin(), missing.end()), missing.end());
+  if (!missing.empty()) {
+    std::string list;
+    for (size_t i = 0; i < missing.size() && i < 10; ++i) {
+      absl::StrAppend(&list, i == 0 ? "\"" : ", \"", std::string(missing[i]), "\"");
+    }
+    if (missing.size() > 10) absl::StrAppend(&list, " and ", missing.size() - 10, " more");
+    return absl::NotFoundError(
+        absl::StrFormat("%u %s not live in the index %s: %s; nothing was retired", missing.size(),
+                        missing.size() == 1 ? "id is" : "ids are", path_, list));
+  }
+  RetireResult result;
+  if (retired.empty()) return result;
+  if (absl::Status written = WriteSegment({}, retired, &result.segment_number); !written.ok()) {
+    return written;
+  }
+  result.wrote_segment = true;
+  result.retired = static_cast<uint32_t>(retired.size());
+  return result;
 }
 
 }  // namespace kindred

@@ -54,6 +54,22 @@ class PosixAppendFile : public AppendFile {
     return absl::OkStatus();
   }
 
+  absl::Status WriteAt(uint64_t offset, std::string_view bytes) override {
+    if (offset + bytes.size() > size_) {
+      return absl::InternalError(absl::StrCat("write beyond the end of ", path_));
+    }
+    while (!bytes.empty()) {
+      ssize_t n = pwrite(fd_, bytes.data(), bytes.size(), static_cast<off_t>(offset));
+      if (n < 0) {
+        if (errno == EINTR) continue;
+        return ErrnoStatus("cannot write", path_, errno);
+      }
+      offset += static_cast<uint64_t>(n);
+      bytes.remove_prefix(static_cast<size_t>(n));
+    }
+    return absl::OkStatus();
+  }
+
   absl::Status Sync() override {
     if (fsync(fd_) != 0) return ErrnoStatus("cannot sync", path_, errno);
     return absl::OkStatus();

@@ -141,9 +141,12 @@ SegmentScan SegmentView::Parse(std::string_view file, uint64_t offset, uint32_t 
     return corrupt("commit record does not match its segment");
   }
   if (Checksum(rest.substr(0, kSegmentHeaderSize + layout_.tables_end)) != commit.tables_checksum) {
-    return corrupt("checksum mismatch");
+    return corrupt(
+        absl::StrFormat("its tables (bytes %u..%u: ids, signatures, band keys) fail their checksum",
+                        offset, offset + kSegmentHeaderSize + layout_.tables_end));
   }
   perms_ = perms;
+  offset_ = offset;
   Bind(rest.substr(kSegmentHeaderSize, layout_.body_length));
   *error = CheckTables(offset);
   return error->ok() ? SegmentScan::kSegment : SegmentScan::kCorrupt;

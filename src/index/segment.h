@@ -70,6 +70,11 @@ class SegmentView {
   uint64_t retired(uint64_t i) const { return LoadU64(retired_ + i * 8); }
   // The encoded shingle set of a document (unverified).
   std::string_view shingle_bytes(uint32_t local) const;
+  // Byte range of a document's encoded shingle set in the file.
+  uint64_t shingle_offset(uint32_t local) const {
+    return offset_ + kSegmentHeaderSize + layout_.shingle_bytes + doc(local).shingles_offset;
+  }
+  uint64_t offset() const { return offset_; }
   // The zero padding after the shingle sets (checked by audit).
   std::string_view shingle_padding() const { return shingle_padding_; }
 
@@ -83,6 +88,7 @@ class SegmentView {
   SectionLayout layout_;
   uint32_t perms_ = 0;
   uint64_t total_bytes_ = 0;
+  uint64_t offset_ = 0;
   std::string_view doc_table_, id_bytes_, shingles_, shingle_padding_;
   const char* id_order_ = nullptr;
   const uint32_t* signatures_ = nullptr;

@@ -4,15 +4,29 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "absl/time/clock.h"
+#include "absl/time/time.h"
 #include "index/format.h"
+#include "kindred/temp_files.h"
 
 namespace kindred::index {
 
-absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, FileSystem* fs) {
-  for (int attempt = 0; attempt < 5; ++attempt) {
+absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, FileSystem* fs,
+                                                    double wait_seconds) {
+  const absl::Time deadline = absl::Now() + absl::Seconds(wait_seconds);
+  for (int attempt = 0; attempt < 5;) {
     auto lock = fs->LockExclusive(path);
+    if (absl::IsUnavailable(lock.status()) && wait_seconds > 0) {
+      if (absl::Now() >= deadline) {
+        return absl::UnavailableError(absl::StrFormat("%s (still, after waiting %g s for it)",
+                                                      lock.status().message(), wait_seconds));
+      }
+      absl::SleepFor(absl::Milliseconds(50));
+      continue;
+    }
     if (!lock.ok()) return lock.status();
     if (fs->LockStillNamesPath(**lock, path)) return lock;
+    ++attempt;
   }
   return absl::UnavailableError(
       absl::StrCat("index ", path, " keeps being replaced by another writer; try again later"));
@@ -52,30 +66,45 @@ std::vector<SegmentDocument> DocumentsOf(const SignedCorpus& corpus) {
   return docs;
 }
 
-absl::Status WriteWholeFile(const std::string& path, const std::string& header,
-                            const EncodedSegment& segment, bool replace, FileSystem* fs) {
+absl::Status WriteWholeFile(const std::string& path, const IndexSettings& settings,
+                            const EncodedSegment& segment, uint64_t documents, bool replace,
+                            FileSystem* fs) {
   std::string temp = absl::StrCat(path, ".tmp.", getpid());
   auto file = fs->CreateNew(temp);
   if (!file.ok()) return file.status();
-  absl::Status status = (*file)->Append(header);
+  RegisterTempFile(temp);
+  const uint64_t length = kDataStart + segment.head_and_body.size() + segment.commit.size();
+  absl::Status status = (*file)->Append(
+      EncodeHeaderRegion(EncodeFileHeader(settings), CommitState{1, length, 1, documents}));
   if (status.ok()) status = (*file)->Append(segment.head_and_body);
   if (status.ok()) status = (*file)->Append(segment.commit);
   if (status.ok()) status = (*file)->Sync();
   file->reset();
   if (status.ok()) status = fs->Rename(temp, path, replace);
-  if (!status.ok()) {
-    fs->Remove(temp).IgnoreError();
-    return status;
-  }
+  if (!status.ok()) fs->Remove(temp).IgnoreError();
+  ForgetTempFile(temp);
+  if (!status.ok()) return status;
   return fs->SyncDirectoryOf(path);
 }
 
-absl::Status AppendSegment(AppendFile* file, uint64_t committed, const EncodedSegment& segment) {
+absl::Status AppendSegment(AppendFile* file, const CommitPoint& before, uint64_t added,
+                           const EncodedSegment& segment) {
+  const CommitState next{
+      before.generation + 1,
+      before.committed_length + segment.head_and_body.size() + segment.commit.size(),
+      before.segments + 1, before.documents + added};
   absl::Status status = file->Append(segment.head_and_body);
-  if (status.ok()) status = file->Sync();
   if (status.ok()) status = file->Append(segment.commit);
   if (status.ok()) status = file->Sync();
-  if (!status.ok() && file->Truncate(committed).ok()) file->Sync().IgnoreError();
+  bool slot_written = false;
+  if (status.ok()) {
+    slot_written = true;
+    status = RecordCommit(file, next);
+  }
+  if (status.ok()) return status;
+  // Nothing of the failed commit may stay recorded before the bytes go.
+  if (slot_written && !UndoCommit(file, next).ok()) return status;
+  if (file->Truncate(before.committed_length).ok()) file->Sync().IgnoreError();
   return status;
 }
 

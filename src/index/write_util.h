@@ -9,6 +9,7 @@
 
 #include "absl/status/status.h"
 #include "absl/status/statusor.h"
+#include "index/commit_area.h"
 #include "index/segment.h"
 #include "kindred/file_io.h"
 #include "kindred/index.h"
@@ -17,8 +18,10 @@
 namespace kindred::index {
 
 // Takes the writer lock on `path`, retrying when the file was replaced
-// (compacted) between opening and locking.
-absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, FileSystem* fs);
+// (compacted) between opening and locking; while another writer holds it,
+// retries every 50 ms for up to `wait_seconds`, then fails with Unavailable.
+absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, FileSystem* fs,
+                                                    double wait_seconds = 0);
 
 // InvalidArgument unless `corpus` can be written under `settings` (perms,
 // banding, id lengths).
@@ -27,16 +30,31 @@ absl::Status CheckWritable(const IndexSettings& settings, const SignedCorpus& co
 SegmentDocument DocumentOf(const SignedCorpus& corpus, size_t doc);
 std::vector<SegmentDocument> DocumentsOf(const SignedCorpus& corpus);
 
-// Writes header + segment into a temporary file beside `path`, syncs it,
-// renames it to `path` (replacing only when `replace`) and syncs the
-// directory. Removes the temporary file on failure when it can.
-absl::Status WriteWholeFile(const std::string& path, const std::string& header,
-                            const EncodedSegment& segment, bool replace, FileSystem* fs);
+// Writes a version-2 file of one segment (segment 0, holding `documents`
+// documents) into a temporary file beside `path` ("PATH.tmp.PID", removed
+// on SIGINT/SIGTERM), syncs it, renames it to `path` (replacing only when
+// `replace`) and syncs the directory. Removes the temporary file on failure
+// when it can.
+absl::Status WriteWholeFile(const std::string& path, const IndexSettings& settings,
+                            const EncodedSegment& segment, uint64_t documents, bool replace,
+                            FileSystem* fs);
 
-// Appends a segment at `committed` (the file's current end): body, sync,
-// commit record, sync. On failure cuts the file back to `committed` when it
-// can and returns the write error.
-absl::Status AppendSegment(AppendFile* file, uint64_t committed, const EncodedSegment& segment);
+// What a version-2 file records after its commit `generation`.
+struct CommitPoint {
+  uint64_t generation = 0;
+  uint64_t committed_length = 0;
+  uint32_t segments = 0;
+  uint64_t documents = 0;
+};
+
+// Appends a segment at `before.committed_length` (the file's current end)
+// and commits it: header and body, commit record, sync; then the commit
+// area records the new length, segment and document counts (`added`
+// documents more), synced. On failure restores the commit area and cuts
+// the file back to what `before` records when it can, and returns the
+// write error.
+absl::Status AppendSegment(AppendFile* file, const CommitPoint& before, uint64_t added,
+                           const EncodedSegment& segment);
 
 }  // namespace kindred::index
 

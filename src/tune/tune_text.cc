@@ -3,6 +3,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "core/plural.h"
 #include "kindred/records.h"
 #include "kindred/tune_report.h"
 
@@ -22,15 +23,18 @@ std::string Header(const TuneReportInput& input) {
   const TuneResult& r = *input.result;
   const uint32_t duplicates = CountDuplicates(r);
   return absl::StrFormat(
-      "kindred tune: %u documents, %u labelled pairs (%u duplicate, %u "
+      "kindred tune: %s, %s (%u duplicate, %u "
       "distinct) from %s\n"
-      "Grid: %u shingle settings x %u perms x %u thresholds, %u settings; "
+      "Grid: %s x %s x %s, %s; "
       "target: recall >= "
       "%.4g at the highest precision; F-beta with beta = %.4g; measure: %s\n\n",
-      r.documents, r.labelled.size(), duplicates, r.labelled.size() - duplicates, input.labels_name,
-      input.options->grid.shingles.size(), input.options->grid.perms.size(),
-      input.options->grid.thresholds.size(), r.ranking.size(), input.options->target_recall,
-      input.options->beta, MeasureName(input.options->measure));
+      Counted(r.documents, "document"), Counted(r.labelled.size(), "labelled pair"), duplicates,
+      r.labelled.size() - duplicates, input.labels_name,
+      Counted(input.options->grid.shingles.size(), "shingle setting"),
+      Counted(input.options->grid.perms.size(), "perm"),
+      Counted(input.options->grid.thresholds.size(), "threshold"),
+      Counted(r.ranking.size(), "setting"), input.options->target_recall, input.options->beta,
+      MeasureName(input.options->measure));
 }
 
 std::string Recommendation(const TuneReportInput& input) {

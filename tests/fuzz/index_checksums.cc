@@ -14,7 +14,12 @@ constexpr uint64_t kFileHeaderMax = 1024;
 constexpr uint64_t kSegmentHeader = 64;
 constexpr uint64_t kDocRecord = 56;
 constexpr uint64_t kCommitRecord = 32;
-constexpr uint64_t kLimit = uint64_t{1} << 40;  // larger sizes never fit a fuzz input
+constexpr uint64_t kLimit = uint64_t{1} << 40;
+// Version 2: two 512-byte commit slots after a 512-byte header; segments
+// from byte 1536.
+constexpr uint64_t kSlotOffset[2] = {512, 1024};
+constexpr uint64_t kSlotSize = 512;
+constexpr uint64_t kDataStartV2 = 1536;  // larger sizes never fit a fuzz input
 
 uint64_t Load(const std::string& bytes, uint64_t at, size_t width) {
   uint64_t value = 0;
@@ -77,6 +82,15 @@ void FixIndexChecksums(std::string* file) {
   const uint64_t perms = Load(*file, 32, 4);
   if (perms > 4096) return;
   uint64_t offset = header_size;
+  if (Load(*file, 8, 4) >= 2) {
+    if (file->size() < kDataStartV2) return;
+    for (uint64_t slot : kSlotOffset) {
+      if (file->compare(slot, 4, "KCAS") == 0) {
+        Store64(file, slot + kSlotSize - 8, Hash(*file, slot, kSlotSize - 8));
+      }
+    }
+    offset = kDataStartV2;
+  }
   while (offset < file->size()) {
     const uint64_t end = FixSegment(file, offset, perms);
     if (end == 0) return;

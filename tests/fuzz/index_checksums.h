@@ -1,5 +1,5 @@
 // Recomputes the checksums of an index file's bytes, following the layout of
-// src/index/FORMAT.md (format version 1), so that mutated bytes reach the
+// src/index/FORMAT.md (format versions 1 and 2), so that mutated bytes reach the
 // reader's structural checks instead of stopping at a checksum mismatch.
 //
 // Pure function over a buffer; thread-safe.
@@ -11,10 +11,9 @@
 namespace kindred::fuzz {
 
 // Rewrites in place every checksum field of `file` that the layout lets it
-// find: the file header's, then segment by segment each document's shingle
-// checksum, the segment header's, the tables checksum and the commit
-// record's. Stops at the first structure whose sizes do not fit the file.
-// Other bytes are left as they are.
+// find: the file header's, the commit slots' (version 2), then segment by segment each document's
+// shingle checksum, the segment header's, the tables checksum and the commit record's. Stops at the
+// first structure whose sizes do not fit the file. Other bytes are left as they are.
 void FixIndexChecksums(std::string* file);
 
 }  // namespace kindred::fuzz

@@ -11,7 +11,9 @@
 //     shingle counts, live ids found again, candidates live and ascending);
 //   - an index audited as sound finds each live document with shingles among
 //     the candidates of its own band keys, and its checksums are exactly the
-//     ones FORMAT.md describes.
+//     ones FORMAT.md describes;
+//   - salvage (audit --repair) never crashes, and loses nothing of a sound
+//     index.
 #include <algorithm>
 #include <cstddef>
 #include <cstdint>
@@ -20,6 +22,7 @@
 
 #include "absl/strings/match.h"
 #include "fuzz_util.h"
+#include "index/index_salvage.h"
 #include "index_checksums.h"
 #include "kindred/banding.h"
 #include "kindred/index.h"
@@ -79,16 +82,24 @@ void CheckIndex(const std::string& path, const std::string& bytes, bool other_ba
   auto reader = IndexReader::Open(path);
   auto audit = AuditIndex(path);
   Require(audit.ok(), "audit reads an existing file");
+  index::Salvage salvage;
+  index::SalvageIndex(bytes, &salvage).IgnoreError();  // any bytes: no crash
   if (!reader.ok()) {
     Require(absl::StrContains(reader.status().message(), path), "an error names the index");
     Require(!audit->ok(), "an index that fails to open is not audited as sound");
     return;
   }
   const bool sound = audit->ok();
-  if (sound && (*reader)->torn_tail_bytes() == 0) {  // a torn tail may hold anything
+  // A torn tail may hold anything; a damaged commit slot is sound while the
+  // other one verifies.
+  if (sound && (*reader)->torn_tail_bytes() == 0 && (*reader)->damaged_commit_slots() == 0) {
     std::string fixed = bytes;
     FixIndexChecksums(&fixed);
     Require(fixed == bytes, "a sound index has exactly the checksums FORMAT.md describes");
+    index::Salvage salvage;
+    Require(index::SalvageIndex(bytes, &salvage).ok(), "a sound index can be salvaged");
+    Require(salvage.lost.empty() && salvage.live.size() == (*reader)->live_count(),
+            "salvaging a sound index loses nothing");
   }
   CheckDocuments(**reader, sound);
   if (other_banding) {

@@ -27,7 +27,7 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   kindred::InputOptions options;
   options.format = kindred::InputFormat::kJsonLines;
   if ((control & 1) != 0) options.id_field = "@line";
-  if ((control & 2) != 0) options.priority_field = "p";
+  if ((control & 2) != 0) options.priority_field = std::string(1, 'p');
   options.max_document_bytes = (control & 4) != 0 ? 64 : 64 * 1024;
   auto reader = kindred::CorpusReader::Open({path}, options);
   Require(reader.ok(), "an existing file opens");

@@ -1,7 +1,9 @@
 #!/usr/bin/env bash
 # Writes the seed inputs of the fuzz targets under tests/fuzz/seeds/<target>/.
 # Deterministic: the same program gives the same bytes. The index seeds are
-# made by the program itself (`kindred build` and `kindred add`).
+# made by the program itself (`kindred build` and `kindred add`); the v1_*
+# index seeds are format version 1 files made by the previous release and
+# are kept as they are (this script does not write them).
 #
 #   tests/fuzz/make_seeds.sh build/kindred
 set -euo pipefail

@@ -1,0 +1,104 @@
+// kindred remove: retire documents of an index by id (a takedown without a
+// rebuild), in one new segment that holds only the retired list.
+#include <cstdio>
+#include <fstream>
+
+#include "absl/strings/str_cat.h"
+#include "absl/strings/str_format.h"
+#include "cli/cli.h"
+#include "cli/index_options.h"
+#include "kindred/index_writer.h"
+
+namespace kindred::cli {
+namespace {
+
+struct RemoveFlags {
+  std::string index;
+  std::vector<std::string> ids;
+  std::string ids_from;
+  double wait_lock = 0;
+  bool quiet = false;
+};
+
+// One id per line; empty lines are skipped, a trailing CR is dropped.
+absl::Status ReadIds(const std::string& path, std::vector<std::string>* ids) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) return absl::NotFoundError(absl::StrCat("cannot open ", path));
+  std::string line;
+  while (std::getline(in, line)) {
+    if (!line.empty() && line.back() == '\r') line.pop_back();
+    if (!line.empty()) ids->push_back(line);
+  }
+  if (in.bad()) return absl::DataLossError(absl::StrCat("cannot read ", path));
+  return absl::OkStatus();
+}
+
+int WriteExitCode(const absl::Status& status) {
+  switch (status.code()) {
+    case absl::StatusCode::kResourceExhausted:
+    case absl::StatusCode::kAborted:
+    case absl::StatusCode::kPermissionDenied:
+      return kExitOutput;
+    case absl::StatusCode::kNotFound:
+      return kExitInput;
+    default:
+      return ExitCodeFor(status);
+  }
+}
+
+int RunRemove(const RemoveFlags& flags) {
+  std::vector<std::string> ids = flags.ids;
+  if (!flags.ids_from.empty()) {
+    if (absl::Status read = ReadIds(flags.ids_from, &ids); !read.ok()) {
+      return Fail(kExitInput, read);
+    }
+  }
+  if (ids.empty()) {
+    return Fail(kExitUsage, absl::InvalidArgumentError("give ids to remove, or --ids-from FILE"));
+  }
+  if (flags.wait_lock < 0) {
+    return Fail(kExitUsage, absl::InvalidArgumentError("--wait-lock must be 0 or more seconds"));
+  }
+  ReportStaleTempFiles(flags.index);
+  IndexWriteOptions options;
+  options.lock_wait_seconds = flags.wait_lock;
+  auto writer = IndexWriter::Open(flags.index, options);
+  if (!writer.ok()) return Fail(WriteExitCode(writer.status()), writer.status());
+  if ((*writer)->torn_tail_cut() > 0 && !flags.quiet) {
+    std::fprintf(stderr, "kindred: cut a torn tail of %llu bytes off %s\n",
+                 static_cast<unsigned long long>((*writer)->torn_tail_cut()), flags.index.c_str());
+  }
+  auto retired = (*writer)->Retire(ids);
+  if (!retired.ok()) return Fail(WriteExitCode(retired.status()), retired.status());
+  if (!flags.quiet) {
+    const uint32_t live = (*writer)->reader().live_count();
+    std::fprintf(stderr, "kindred remove: %s: %u %s retired (segment %u); %u %s live\n",
+                 flags.index.c_str(), retired->retired,
+                 retired->retired == 1 ? "document" : "documents", retired->segment_number, live,
+                 live == 1 ? "document" : "documents");
+  }
+  return kExitOk;
+}
+
+}  // namespace
+
+void AddWaitLockOption(CLI::App* command, double* seconds) {
+  command->add_option("--wait-lock", *seconds,
+                      "wait up to this many seconds for another writer's lock (default 0: fail "
+                      "at once with exit code 6)");
+}
+
+void RegisterRemove(CLI::App& app, int* exit_code) {
+  auto flags = std::make_shared<RemoveFlags>();
+  CLI::App* command = app.add_subcommand(
+      "remove",
+      "Retire documents of an index by id, in a new segment (compact drops them for good)");
+  command->add_option("index", flags->index, "the index file")->required();
+  command->add_option("ids", flags->ids, "ids of the documents to retire");
+  command->add_option("--ids-from", flags->ids_from, "read ids from this file, one per line");
+  AddWaitLockOption(command, &flags->wait_lock);
+  command->add_flag("-q,--quiet", flags->quiet, "no summary on stderr");
+  command->callback([flags, exit_code] { *exit_code = RunRemove(*flags); });
+}
+
+}  // namespace kindred::cli
