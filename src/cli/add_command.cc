@@ -13,6 +13,7 @@
 #include "core/plural.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
+#include "kindred/index_query.h"
 #include "kindred/index_writer.h"
 #include "kindred/records.h"
 #include "kindred/signed_corpus.h"
@@ -110,13 +111,12 @@ int RunAdd(const AddFlags& flags) {
   }
   // A document whose id is indexed is never its own match: with replace the
   // indexed copy is retired, with skip the new one is not added (and with
-  // error the batch is refused).
-  IndexMatchOptions options{match, threads,
-                            /*exclude_same_id=*/*policy != DuplicateIdPolicy::kError};
+  // error the batch is refused). MatchForQuery sets this from the policy.
+  IndexMatchOptions options{match, threads, false};
   options.max_bucket = flags.max_bucket;
   uint64_t crowded = 0;
   options.crowded_keys = &crowded;
-  auto matches = MatchAgainstIndex(**reader, batch, options);
+  auto matches = MatchForQuery(**reader, batch, *policy, options);
   if (!matches.ok()) return Fail(matches.status());
   auto appended = (*writer)->Append(batch, *policy);
   if (!appended.ok()) return Fail(WriteExitCode(appended.status()), appended.status());

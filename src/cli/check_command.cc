@@ -16,6 +16,7 @@
 #include "core/plural.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
+#include "kindred/index_query.h"
 #include "kindred/records.h"
 #include "kindred/signed_corpus.h"
 #include "kindred/text.h"
@@ -35,19 +36,6 @@ struct CheckFlags {
   uint64_t max_bucket = kDefaultMaxBucket;
   GivenOptions given;
 };
-
-// Uploads with at least one match among the indexed documents.
-size_t CountMatchedUploads(absl::Span<const IndexMatch> matches, size_t uploads) {
-  std::vector<bool> matched(uploads);
-  size_t count = 0;
-  for (const IndexMatch& m : matches) {
-    if (m.in_index && !matched[m.query]) {
-      matched[m.query] = true;
-      ++count;
-    }
-  }
-  return count;
-}
 
 // Median, 99th percentile and largest of the per-document match times
 // (nearest rank), on stderr.
@@ -99,7 +87,7 @@ int RunCheck(const CheckFlags& flags) {
   options.crowded_keys = &crowded;
   std::vector<double> latencies;
   if (flags.general.verbose) options.query_seconds = &latencies;
-  auto matches = MatchAgainstIndex(**reader, uploads, options);
+  auto matches = MatchForQuery(**reader, uploads, std::nullopt, options);
   if (!matches.ok()) return Fail(matches.status());
   std::string out;
   WriteMatchRecords(*format, *matches, **reader, uploads, &out);

@@ -50,6 +50,7 @@ void RegisterAudit(CLI::App& app, int* exit_code);
 void RegisterCompact(CLI::App& app, int* exit_code);
 void RegisterTune(CLI::App& app, int* exit_code);
 void RegisterExplain(CLI::App& app, int* exit_code);
+void RegisterServe(CLI::App& app, int* exit_code);
 void RegisterRemove(CLI::App& app, int* exit_code);
 // --wait-lock SECONDS of the commands that write an index.
 void AddWaitLockOption(CLI::App* command, double* seconds);

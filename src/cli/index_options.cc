@@ -6,6 +6,7 @@
 #include "cli/cli.h"
 #include "core/plural.h"
 #include "kindred/banding.h"
+#include "kindred/index_query.h"
 #include "kindred/shingles.h"
 #include "kindred/temp_files.h"
 
@@ -41,19 +42,18 @@ absl::Status CheckIndexSignature(const SignatureFlags& flags, const GivenOptions
 
 absl::StatusOr<MatchSettings> IndexQueryMatch(const MatchFlags& flags, const GivenOptions& given,
                                               IndexReader* reader) {
-  const IndexSettings& stored = reader->settings();
-  MatchFlags match_flags = flags;
-  if (!given.threshold) match_flags.threshold = stored.threshold;
-  if (!given.measure) match_flags.measure = MeasureName(stored.measure);
-  auto match = ToMatchSettings(match_flags, stored.signature);
-  if (!match.ok()) return match.status();
-  if (given.threshold && match->bands == 0) {
-    // The stored banding was chosen for the stored threshold; choose again.
-    const Banding banding = ChooseBanding(match->threshold, stored.signature.perms);
-    match->bands = banding.bands;
-    match->rows = banding.rows;
+  QueryRequest request;
+  if (given.threshold) request.threshold = flags.threshold;
+  if (given.measure) {
+    auto measure = ParseMeasure(flags.measure);
+    if (!measure.ok()) return absl::InvalidArgumentError(absl::StrCat("--", measure.status().message()));
+    request.measure = *measure;
   }
-  if (match->bands != 0 && (match->bands != stored.bands || match->rows != stored.rows)) {
+  request.bands = flags.bands;
+  request.rows = flags.rows;
+  auto match = ResolveQueryMatch(reader->settings(), request);
+  if (!match.ok()) return match.status();
+  if (NeedsOtherBanding(reader->settings(), *match)) {
     if (absl::Status status = reader->UseBanding(match->bands, match->rows); !status.ok()) {
       return status;
     }

@@ -120,6 +120,8 @@ int RunInfo(const InfoFlags& flags) {
 
 }  // namespace
 
+std::string IndexInfoJson(const IndexReader& reader) { return JsonReport(reader); }
+
 void RegisterInfo(CLI::App& app, int* exit_code) {
   auto flags = std::make_shared<InfoFlags>();
   CLI::App* command = app.add_subcommand(

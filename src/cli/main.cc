@@ -57,6 +57,7 @@ int main(int argc, char** argv) {
   RegisterCompact(app, &exit_code);
   RegisterTune(app, &exit_code);
   RegisterExplain(app, &exit_code);
+  RegisterServe(app, &exit_code);
   RegisterRemove(app, &exit_code);
   if (!FindCommandName(app, argc, argv)) return kExitUsage;
   try {
