@@ -7,6 +7,7 @@
 #include <cstdio>
 #include <filesystem>
 
+#include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
@@ -16,7 +17,9 @@
 #include "cli/output.h"
 #include "cli/output_checks.h"
 #include "core/plural.h"
+#include "io/byte_stream.h"
 #include "io/output_guard.h"
+#include "io/warc_reader.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
 #include "kindred/kept_writer.h"
@@ -224,6 +227,19 @@ absl::Status CheckRecordOutputs(const SweepFlags& flags, RecordFormat format,
   return absl::OkStatus();
 }
 
+// Whether an input's kept documents are written as records into --write-kept
+// like JSON Lines: a WARC input, known by its format or, read by content, by
+// its first bytes. A directory read by content may hold WARC files; it is
+// taken as WARC when the kept file is named as one (.warc, .warc.gz, ...).
+absl::StatusOr<bool> KeptAsRecords(const ResolvedInput& input, const std::string& write_kept) {
+  if (input.format == InputFormat::kWarc) return true;
+  if (input.format != InputFormat::kText || input.is_stdin) return false;
+  if (input.is_directory) return absl::StrContains(write_kept, ".warc");
+  auto stream = io::OpenDecoded(input.name, io::DecodeOptions());
+  if (!stream.ok()) return stream.status();
+  return io::SniffWarc(&*stream);
+}
+
 // The kept outputs the inputs need, checked before any input is read: each
 // text input needs --copy-kept or --list-kept, each JSON Lines input
 // --write-kept, and no kept output is given that no input needs. Standard
@@ -240,11 +256,14 @@ absl::Status CheckKeptOptions(const SweepFlags& flags, const CorpusReader& reade
       unknown = true;
       continue;
     }
-    const bool lines = input.format == InputFormat::kJsonLines;
+    absl::StatusOr<bool> warc = KeptAsRecords(input, flags.write_kept);
+    if (!warc.ok()) return warc.status();
+    const bool lines = input.format == InputFormat::kJsonLines || *warc;
     if (lines && flags.write_kept.empty()) {
       return absl::InvalidArgumentError(absl::StrCat(
-          input.name, " is JSON Lines: give --write-kept FILE for its kept lines "
-                      "(--copy-kept and --list-kept take text documents)"));
+          input.name, *warc ? " is a crawl archive: give --write-kept FILE for its kept records"
+                            : " is JSON Lines: give --write-kept FILE for its kept lines",
+          " (--copy-kept and --list-kept take text documents)"));
     }
     if (!lines && flags.copy_kept.empty() && flags.list_kept.empty()) {
       return absl::InvalidArgumentError(absl::StrCat(

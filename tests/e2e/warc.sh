@@ -120,7 +120,7 @@ PY
 done
 
 expect_exit 2 "WARC input without --write-kept" -- "$KINDRED" sweep "$CRAWL" -q --list-kept "$WORK/list.txt"
-expect_stderr "no output file (--write-kept) for its kept records" "WARC kept output named"
+expect_stderr "is a crawl archive: give --write-kept FILE for its kept records" "WARC kept output named before any reading"
 [[ -e $WORK/list.txt ]] && fail "a path list was written for a WARC input"
 
 # Malformed archives: exit 3 naming the file and the record's byte offset,
