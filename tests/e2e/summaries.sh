@@ -55,10 +55,10 @@ json_seed=$("$KINDRED" info --format json "$WORK/s.kin" | $PY -c 'import json,sy
 # --priority-field: sweep (--keep), build and add (stored for sweep --index);
 # not check, explain or tune.
 for command in check explain tune; do
-  "$KINDRED" "$command" --help | grep -q -- --priority-field && fail "$command offers --priority-field"
+  "$KINDRED" "$command" --help | grep -- --priority-field >/dev/null && fail "$command offers --priority-field"
 done
 for command in sweep build add; do
-  "$KINDRED" "$command" --help | grep -q -- --priority-field || fail "$command lacks --priority-field"
+  "$KINDRED" "$command" --help | grep -- --priority-field >/dev/null || fail "$command lacks --priority-field"
 done
 expect_exit 2 "check --priority-field" -- "$KINDRED" check --priority-field p "$INDEX" "$WORK/two.jsonl"
 expect_stderr "kindred: check: unexpected argument" "check --priority-field"
