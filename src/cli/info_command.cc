@@ -53,15 +53,15 @@ std::string TextReport(const IndexReader& reader) {
                         reader.committed_size());
   if (reader.torn_tail_bytes() > 0 && reader.format_version() == 1) {
     absl::StrAppendFormat(&out,
-                          "unread tail      %u bytes at byte %u after the last whole segment (an "
+                          "unread tail      %s at byte %u after the last whole segment (an "
                           "interrupted write or a cut-off segment; ignored; see kindred audit)\n",
-                          reader.torn_tail_bytes(), reader.committed_size());
+                          Counted(reader.torn_tail_bytes(), "byte"), reader.committed_size());
   } else if (reader.torn_tail_bytes() > 0) {
     absl::StrAppendFormat(&out,
-                          "torn tail        %u bytes at byte %u after the last recorded commit (an "
+                          "torn tail        %s at byte %u after the last recorded commit (an "
                           "interrupted write; ignored; the next add or audit --repair cuts it "
                           "off)\n",
-                          reader.torn_tail_bytes(), reader.committed_size());
+                          Counted(reader.torn_tail_bytes(), "byte"), reader.committed_size());
   }
   absl::StrAppendFormat(&out, "segments         %u\n", reader.segments().size());
   absl::StrAppendFormat(&out, "  %7s %12s %12s %10s %10s %8s %12s %12s\n", "segment", "offset",

@@ -7,6 +7,7 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/index_options.h"
+#include "core/plural.h"
 #include "kindred/index_writer.h"
 
 namespace kindred::cli {
@@ -65,8 +66,8 @@ int RunRemove(const RemoveFlags& flags) {
   auto writer = IndexWriter::Open(flags.index, options);
   if (!writer.ok()) return Fail(WriteExitCode(writer.status()), writer.status());
   if ((*writer)->torn_tail_cut() > 0 && !flags.quiet) {
-    std::fprintf(stderr, "kindred: cut a torn tail of %llu bytes off %s\n",
-                 static_cast<unsigned long long>((*writer)->torn_tail_cut()), flags.index.c_str());
+    std::fprintf(stderr, "kindred: cut a torn tail of %s off %s\n",
+                 Counted((*writer)->torn_tail_cut(), "byte").c_str(), flags.index.c_str());
   }
   auto retired = (*writer)->Retire(ids);
   if (!retired.ok()) return Fail(WriteExitCode(retired.status()), retired.status());

@@ -42,6 +42,14 @@ grep -q '"id":"one","match":"two"' "$WORK/out" || fail "skip: lost the match wit
 expect_exit 0 "add replace" -- "$KINDRED" add --on-duplicate replace "$INDEX" "$WORK/one.jsonl"
 grep -q '"id":"one","match":"one"' "$WORK/out" && fail "replace: one matched its own indexed copy"
 
+# A torn tail of one byte reads "1 byte" in info and in the writer that cuts it.
+cp "$INDEX" "$WORK/tail.kin"
+printf 'x' >>"$WORK/tail.kin"
+expect_exit 0 "info with a one-byte tail" -- "$KINDRED" info "$WORK/tail.kin"
+grep -q "torn tail        1 byte at byte" "$WORK/out" || fail "info tail: $(grep tail "$WORK/out")"
+expect_exit 0 "remove cuts a one-byte tail" -- "$KINDRED" remove "$WORK/tail.kin" two
+expect_stderr "cut a torn tail of 1 byte off" "remove tail"
+
 # info: the seed in JSON is the text form's hex string.
 expect_exit 0 "info text" -- "$KINDRED" info "$INDEX"
 text_seed=$(sed -n 's/.* seed=\(0x[0-9a-f]*\) .*/\1/p' "$WORK/out")
