@@ -36,17 +36,6 @@ struct AddFlags {
   GivenOptions given;
 };
 
-int WriteExitCode(const absl::Status& status) {
-  switch (status.code()) {
-    case absl::StatusCode::kResourceExhausted:
-    case absl::StatusCode::kAborted:
-    case absl::StatusCode::kPermissionDenied:
-      return kExitOutput;
-    default:
-      return ExitCodeFor(status);
-  }
-}
-
 // The summary line names the threshold and banding the matches were found
 // with, as check's does.
 void PrintSummary(const AddFlags& flags, const AppendResult& result, const SignedCorpus& batch,
@@ -82,16 +71,11 @@ int RunAdd(const AddFlags& flags) {
   if (flags.wait_lock < 0) {
     return Fail(kExitUsage, absl::InvalidArgumentError("--wait-lock must be 0 or more seconds"));
   }
-  ReportStaleTempFiles(flags.index);
-  IndexWriteOptions write_options;
-  write_options.lock_wait_seconds = flags.wait_lock;
   // Takes the lock first: busy fails at once (or after --wait-lock).
-  auto writer = IndexWriter::Open(flags.index, write_options);
-  if (!writer.ok()) return Fail(WriteExitCode(writer.status()), writer.status());
-  if ((*writer)->torn_tail_cut() > 0 && !flags.general.quiet) {
-    std::fprintf(stderr, "kindred: cut a torn tail of %s off %s\n",
-                 Counted((*writer)->torn_tail_cut(), "byte").c_str(), flags.index.c_str());
-  }
+  int exit_code = kExitOk;
+  std::unique_ptr<IndexWriter> writer =
+      OpenIndexForWriting(flags.index, flags.wait_lock, flags.general.quiet, &exit_code);
+  if (writer == nullptr) return exit_code;
   auto reader = IndexReader::Open(flags.index);  // for matching, banded as asked
   if (!reader.ok()) return Fail(reader.status());
   MatchSettings match;
@@ -118,15 +102,15 @@ int RunAdd(const AddFlags& flags) {
   options.crowded_keys = &crowded;
   auto matches = MatchForQuery(**reader, batch, *policy, options);
   if (!matches.ok()) return Fail(matches.status());
-  auto appended = (*writer)->Append(batch, *policy);
-  if (!appended.ok()) return Fail(WriteExitCode(appended.status()), appended.status());
+  auto appended = writer->Append(batch, *policy);
+  if (!appended.ok()) return Fail(IndexWriteExitCode(appended.status()), appended.status());
   std::string out;
   WriteMatchRecords(*format, *matches, **reader, batch, &out);
   if (absl::Status written = WriteOutputFile("-", out); !written.ok()) {
     return Fail(kExitOutput, written);
   }
   if (!flags.general.quiet) {
-    PrintSummary(flags, *appended, batch, matches->size(), match, **reader, (*writer)->reader());
+    PrintSummary(flags, *appended, batch, matches->size(), match, **reader, writer->reader());
     PrintCrowdedKeys(crowded, flags.max_bucket);
   }
   return kExitOk;

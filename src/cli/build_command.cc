@@ -32,19 +32,10 @@ struct BuildFlags {
   GeneralFlags general;
 };
 
-// Exit code of a failed index write: the file system's refusals are output
-// failures (7); the rest keep their usual meaning.
+// Exit code of a failed build: an index file that already exists is a usage
+// error (2); the rest as for every index write.
 int WriteExitCode(const absl::Status& status) {
-  switch (status.code()) {
-    case absl::StatusCode::kResourceExhausted:
-    case absl::StatusCode::kAborted:
-    case absl::StatusCode::kPermissionDenied:
-      return kExitOutput;
-    case absl::StatusCode::kAlreadyExists:
-      return kExitUsage;
-    default:
-      return ExitCodeFor(status);
-  }
+  return absl::IsAlreadyExists(status) ? kExitUsage : IndexWriteExitCode(status);
 }
 
 absl::StatusOr<IndexSettings> ToIndexSettings(const BuildFlags& flags) {

@@ -97,4 +97,32 @@ void ReportStaleTempFiles(const std::string& index) {
   }
 }
 
+int IndexWriteExitCode(const absl::Status& status) {
+  switch (status.code()) {
+    case absl::StatusCode::kResourceExhausted:
+    case absl::StatusCode::kAborted:
+    case absl::StatusCode::kPermissionDenied:
+      return kExitOutput;
+    default:
+      return ExitCodeFor(status);
+  }
+}
+
+std::unique_ptr<IndexWriter> OpenIndexForWriting(const std::string& index, double wait_lock,
+                                                 bool quiet, int* exit_code) {
+  ReportStaleTempFiles(index);
+  IndexWriteOptions options;
+  options.lock_wait_seconds = wait_lock;
+  auto writer = IndexWriter::Open(index, options);
+  if (!writer.ok()) {
+    *exit_code = Fail(IndexWriteExitCode(writer.status()), writer.status());
+    return nullptr;
+  }
+  if ((*writer)->torn_tail_cut() > 0 && !quiet) {
+    std::fprintf(stderr, "kindred: cut a torn tail of %s off %s\n",
+                 Counted((*writer)->torn_tail_cut(), "byte").c_str(), index.c_str());
+  }
+  return std::move(*writer);
+}
+
 }  // namespace kindred::cli

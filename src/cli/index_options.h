@@ -8,6 +8,7 @@
 #include "absl/status/statusor.h"
 #include "cli/common_options.h"
 #include "kindred/index.h"
+#include "kindred/index_writer.h"
 #include "kindred/signed_corpus.h"
 
 namespace kindred::cli {
@@ -47,6 +48,19 @@ void PrintCrowdedKeys(uint64_t crowded, uint64_t max_bucket);
 // Removes temporary files of `index` left by interrupted processes that no
 // longer run ("INDEX.tmp.PID", "INDEX.building.PID"), saying so on stderr.
 void ReportStaleTempFiles(const std::string& index);
+
+// Exit code of a failed index write: the file system's refusals (disk full,
+// an aborted write, permission) are output failures (7); the rest keep the
+// meaning ExitCodeFor gives them.
+int IndexWriteExitCode(const absl::Status& status);
+
+// Opens `index` for writing as add and remove do: removes stale temporary
+// files (ReportStaleTempFiles), takes the writer lock, waiting up to
+// `wait_lock` seconds (0: fails at once when busy), and says on stderr when a
+// torn tail was cut, unless `quiet`. On failure prints the message, sets
+// *exit_code and returns null.
+std::unique_ptr<IndexWriter> OpenIndexForWriting(const std::string& index, double wait_lock,
+                                                 bool quiet, int* exit_code);
 
 // Reads and signs every input under `signature` (for add and check).
 // Errors are the reader's (exit 3).

@@ -34,17 +34,10 @@ absl::Status ReadIds(const std::string& path, std::vector<std::string>* ids) {
   return absl::OkStatus();
 }
 
+// Exit code of a failed retirement: an id the index does not hold is an
+// input error (3); the rest as for every index write.
 int WriteExitCode(const absl::Status& status) {
-  switch (status.code()) {
-    case absl::StatusCode::kResourceExhausted:
-    case absl::StatusCode::kAborted:
-    case absl::StatusCode::kPermissionDenied:
-      return kExitOutput;
-    case absl::StatusCode::kNotFound:
-      return kExitInput;
-    default:
-      return ExitCodeFor(status);
-  }
+  return absl::IsNotFound(status) ? kExitInput : IndexWriteExitCode(status);
 }
 
 int RunRemove(const RemoveFlags& flags) {
@@ -60,19 +53,14 @@ int RunRemove(const RemoveFlags& flags) {
   if (flags.wait_lock < 0) {
     return Fail(kExitUsage, absl::InvalidArgumentError("--wait-lock must be 0 or more seconds"));
   }
-  ReportStaleTempFiles(flags.index);
-  IndexWriteOptions options;
-  options.lock_wait_seconds = flags.wait_lock;
-  auto writer = IndexWriter::Open(flags.index, options);
-  if (!writer.ok()) return Fail(WriteExitCode(writer.status()), writer.status());
-  if ((*writer)->torn_tail_cut() > 0 && !flags.quiet) {
-    std::fprintf(stderr, "kindred: cut a torn tail of %s off %s\n",
-                 Counted((*writer)->torn_tail_cut(), "byte").c_str(), flags.index.c_str());
-  }
-  auto retired = (*writer)->Retire(ids);
+  int exit_code = kExitOk;
+  std::unique_ptr<IndexWriter> writer =
+      OpenIndexForWriting(flags.index, flags.wait_lock, flags.quiet, &exit_code);
+  if (writer == nullptr) return exit_code;
+  auto retired = writer->Retire(ids);
   if (!retired.ok()) return Fail(WriteExitCode(retired.status()), retired.status());
   if (!flags.quiet) {
-    const uint32_t live = (*writer)->reader().live_count();
+    const uint32_t live = writer->reader().live_count();
     std::fprintf(stderr, "kindred remove: %s: %u %s retired (segment %u); %u %s live\n",
                  flags.index.c_str(), retired->retired,
                  retired->retired == 1 ? "document" : "documents", retired->segment_number, live,
