@@ -164,13 +164,16 @@ expect_exit 0 "info after remove" -- "$KINDRED" info "$WORK/r.kin"
 grep -q "^documents *447 live, 3 retired, 450 in all" "$WORK/out" || fail "info: $(cat "$WORK/out")"
 grep -qE '^ +3 +[0-9]+ +[0-9]+ +450 +0 +3 ' "$WORK/out" || fail "info: retiring segment: $(cat "$WORK/out")"
 expect_exit 0 "audit after remove" -- "$KINDRED" audit -q "$WORK/r.kin"
-flock "$WORK/r.kin" sleep 1 &
+# The lock is held until the test says so (no timing assumptions: under a
+# sanitizer a start of the program can take longer than any fixed sleep).
+flock "$WORK/r.kin" sh -c "touch '$WORK/held'; while [ ! -e '$WORK/release' ]; do sleep 0.05; done" &
 holder=$!
-sleep 0.2
+for _ in $(seq 200); do [[ -e "$WORK/held" ]] && break; sleep 0.05; done
 expect_exit 6 "remove while locked" -- "$KINDRED" remove "$WORK/r.kin" doc000000005
 expect_exit 6 "remove while locked, waiting too little" -- "$KINDRED" remove --wait-lock 0.1 \
   "$WORK/r.kin" doc000000005
 expect_stderr "after waiting 0.1 s" "the wait is named"
+(sleep 0.5; touch "$WORK/release") &
 expect_exit 0 "remove waiting for the lock" -- "$KINDRED" remove --wait-lock 20 "$WORK/r.kin" \
   doc000000005
 wait "$holder"
