@@ -14,6 +14,7 @@
 #include <string>
 #include <vector>
 
+#include "testlib/gzip.h"
 #include "testlib/temp_dir.h"
 
 namespace kindred {
@@ -27,21 +28,6 @@ void WriteFile(const std::string& path, const std::string& bytes) {
   fs::create_directories(fs::path(path).parent_path());
   std::ofstream out(path, std::ios::binary);
   out << bytes;
-}
-
-// One gzip member (RFC 1952) made by zlib's deflate.
-std::string Gzip(const std::string& data) {
-  z_stream z{};
-  REQUIRE(deflateInit2(&z, 6, Z_DEFLATED, 15 + 16, 8, Z_DEFAULT_STRATEGY) == Z_OK);
-  std::string out(deflateBound(&z, data.size()) + 64, '\0');
-  z.next_in = reinterpret_cast<Bytef*>(const_cast<char*>(data.data()));
-  z.avail_in = static_cast<uInt>(data.size());
-  z.next_out = reinterpret_cast<Bytef*>(out.data());
-  z.avail_out = static_cast<uInt>(out.size());
-  REQUIRE(deflate(&z, Z_FINISH) == Z_STREAM_END);
-  out.resize(z.total_out);
-  deflateEnd(&z);
-  return out;
 }
 
 // One zstd frame (RFC 8878) made by libzstd.
@@ -398,7 +384,7 @@ TEST_CASE("after an error every later batch returns the same error") {
 TEST_CASE("formats: auto detection by name, and explicit formats") {
   TempDir dir;
   const std::string lines = "{\"id\": \"a\", \"text\": \"b\"}\n{\"id\": \"c\", \"text\": \"d\"}\n";
-  WriteFile(dir.File("x.jsonl.gz"), Gzip(lines));
+  WriteFile(dir.File("x.jsonl.gz"), testing::GzipMember(lines));
   WriteFile(dir.File("x.ndjson.zst"), Zstd(lines));
   WriteFile(dir.File("x.txt"), lines);
   WriteFile(dir.File("x.jsonl.bak"), lines);
@@ -430,7 +416,7 @@ TEST_CASE("a tree read as JSON Lines reads every file's lines in order") {
   TempDir dir;
   WriteFile(dir.File("t/2.jsonl"), "{\"id\": \"c\", \"text\": \"3\"}\n");
   WriteFile(dir.File("t/1/x"),
-            Gzip("{\"id\": \"a\", \"text\": \"1\"}\n{\"id\": \"b\", \"text\": \"2\"}"));
+            testing::GzipMember("{\"id\": \"a\", \"text\": \"1\"}\n{\"id\": \"b\", \"text\": \"2\"}"));
   InputOptions options;
   options.format = InputFormat::kJsonLines;
   options.id_field = "@line";
@@ -451,7 +437,7 @@ TEST_CASE("gzip with several members and zstd with several frames") {
     second +=
         "{\"id\": \"b" + std::to_string(i) + "\", \"text\": \"beta " + std::to_string(i) + "\"}\n";
   }
-  WriteFile(dir.File("m.jsonl.gz"), Gzip(first) + Gzip(second));
+  WriteFile(dir.File("m.jsonl.gz"), testing::GzipMember(first) + testing::GzipMember(second));
   WriteFile(dir.File("m.jsonl.zst"), Zstd(first) + Zstd(second));
   WriteFile(dir.File("m.jsonl"), first + second);
   auto plain = ReadAll({dir.File("m.jsonl")});
@@ -464,7 +450,7 @@ TEST_CASE("gzip with several members and zstd with several frames") {
     CHECK((*docs)[5999].text == "beta 2999");
   }
   // A tree of compressed text files: each file decompressed.
-  WriteFile(dir.File("t/a.gz"), Gzip("one ") + Gzip("two"));
+  WriteFile(dir.File("t/a.gz"), testing::GzipMember("one ") + testing::GzipMember("two"));
   WriteFile(dir.File("t/b"), Zstd("three ") + Zstd(""));
   auto docs = ReadAll({dir.File("t")});
   REQUIRE(docs.ok());
@@ -477,7 +463,7 @@ TEST_CASE("truncated and corrupt compressed input is an error that says so") {
   TempDir dir;
   std::string text;
   for (int i = 0; i < 20000; ++i) text += "word" + std::to_string(i * 7919 % 10007) + " ";
-  const std::string gz = Gzip(text), zst = Zstd(text);
+  const std::string gz = testing::GzipMember(text), zst = Zstd(text);
   struct Case {
     std::string name, bytes, message;
   };
@@ -533,8 +519,8 @@ TEST_CASE("size limits: long lines, large documents, decompression bombs") {
 
   InputOptions bomb;
   bomb.max_decompressed_bytes = 1 << 20;
-  WriteFile(dir.File("bomb.gz"), Gzip(std::string(8 << 20, '\0')));
-  WriteFile(dir.File("fine.gz"), Gzip(std::string(1 << 20, 'a')));
+  WriteFile(dir.File("bomb.gz"), testing::GzipMember(std::string(8 << 20, '\0')));
+  WriteFile(dir.File("fine.gz"), testing::GzipMember(std::string(1 << 20, 'a')));
   result = ReadAll({dir.File("bomb.gz")}, bomb);
   CHECK(result.status().code() == absl::StatusCode::kResourceExhausted);
   CHECK(ErrorOf(result) == dir.File("bomb.gz") +
@@ -593,7 +579,7 @@ void WithStdin(const std::string& path, Body body) {
 TEST_CASE("standard input: JSON Lines or one text document, copied on request") {
   TempDir dir;
   const std::string lines = "  \n{\"id\": \"s\", \"text\": \"from stdin\"}\n";
-  WriteFile(dir.File("in.gz"), Gzip(lines));
+  WriteFile(dir.File("in.gz"), testing::GzipMember(lines));
   WithStdin(dir.File("in.gz"), [&] {
     InputOptions options;
     options.stdin_copy_path = dir.File("copy");

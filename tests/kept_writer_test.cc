@@ -17,6 +17,7 @@
 #include "io/output_file.h"
 #include "io/output_guard.h"
 
+#include "testlib/gzip.h"
 #include "testlib/temp_dir.h"
 
 namespace kindred {
@@ -36,21 +37,6 @@ std::string ReadFile(const std::string& path) {
   std::ifstream in(path, std::ios::binary);
   REQUIRE(in.good());
   return std::string(std::istreambuf_iterator<char>(in), {});
-}
-
-// One gzip member (RFC 1952) made by zlib's deflate.
-std::string Gzip(const std::string& data) {
-  z_stream z{};
-  REQUIRE(deflateInit2(&z, 6, Z_DEFLATED, 15 + 16, 8, Z_DEFAULT_STRATEGY) == Z_OK);
-  std::string out(deflateBound(&z, data.size()) + 64, '\0');
-  z.next_in = reinterpret_cast<Bytef*>(const_cast<char*>(data.data()));
-  z.avail_in = static_cast<uInt>(data.size());
-  z.next_out = reinterpret_cast<Bytef*>(out.data());
-  z.avail_out = static_cast<uInt>(out.size());
-  REQUIRE(deflate(&z, Z_FINISH) == Z_STREAM_END);
-  out.resize(z.total_out);
-  deflateEnd(&z);
-  return out;
 }
 
 // Inflates one gzip member with zlib (windowBits 15 + 16: gzip only) and
@@ -133,7 +119,7 @@ std::string Join(const std::vector<std::string>& parts) {
 
 TEST_CASE("kept JSON lines are copied verbatim, plain or compressed") {
   TempDir dir;
-  WriteFile(dir.File("in/c.jsonl.gz"), Gzip(Join(kLines)));
+  WriteFile(dir.File("in/c.jsonl.gz"), testing::GzipMember(Join(kLines)));
   const std::string expected = kLines[0] + kLines[2] + kLines[5] + "\n";
   const std::vector<std::string> inputs = {dir.File("in/c.jsonl.gz")};
   const std::set<std::string> keep = {"a", "b", "d"};
@@ -159,7 +145,7 @@ TEST_CASE("kept text documents are copied into a tree or listed") {
   WriteFile(dir.File("in/a/x.txt"), "ex");
   WriteFile(dir.File("in/a/y.txt"), std::string("why\0", 4));
   WriteFile(dir.File("in/a-b.txt"), "dropped");
-  WriteFile(dir.File("in/b/c/z.gz"), Gzip("zed"));
+  WriteFile(dir.File("in/b/c/z.gz"), testing::GzipMember("zed"));
   WriteFile(dir.File("single.md"), "one");
   const std::vector<std::string> inputs = {dir.File("in"), dir.File("single.md")};
   const std::set<std::string> keep = {"a/x.txt", "a/y.txt", "b/c/z.gz", dir.File("single.md")};
@@ -174,7 +160,7 @@ TEST_CASE("kept text documents are copied into a tree or listed") {
   CHECK(counts->kept == 4);
   CHECK(ReadFile(dir.File("out/copy/a/x.txt")) == "ex");
   CHECK(ReadFile(dir.File("out/copy/a/y.txt")) == std::string("why\0", 4));
-  CHECK(ReadFile(dir.File("out/copy/b/c/z.gz")) == Gzip("zed"));  // the original bytes
+  CHECK(ReadFile(dir.File("out/copy/b/c/z.gz")) == testing::GzipMember("zed"));  // the original bytes
   CHECK(ReadFile(dir.File("out/copy/single.md")) == "one");
   CHECK_FALSE(fs::exists(dir.File("out/copy/a-b.txt")));
   CHECK(std::distance(fs::directory_iterator(dir.File("out")), fs::directory_iterator()) == 1);
@@ -325,7 +311,7 @@ void WithStdin(const std::string& path, Body body) {
 
 TEST_CASE("standard input is written again from its copy") {
   TempDir dir;
-  WriteFile(dir.File("stdin.zst"), Gzip(Join(kLines)));
+  WriteFile(dir.File("stdin.zst"), testing::GzipMember(Join(kLines)));
   WithStdin(dir.File("stdin.zst"), [&] {
     InputOptions options;
     options.stdin_copy_path = dir.File("spool");
@@ -361,7 +347,7 @@ TEST_CASE("the written corpus reads back as exactly the kept documents") {
     if (i % 3 == 0 || i % 7 == 0) keep.insert(std::to_string(i));
   }
   WriteFile(dir.File("a.jsonl"), lines);
-  WriteFile(dir.File("b.ndjson.zst"), Gzip(lines));
+  WriteFile(dir.File("b.ndjson.zst"), testing::GzipMember(lines));
   KeptOutput output;
   output.lines_path = dir.File("kept.jsonl.zst");
   auto counts = ReadThenWrite({dir.File("a.jsonl"), dir.File("b.ndjson.zst")}, keep, output);

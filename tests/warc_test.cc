@@ -13,6 +13,7 @@
 #include "io/http_payload.h"
 #include "io/sha1.h"
 #include "kindred/corpus.h"
+#include "testlib/gzip.h"
 #include "testlib/temp_dir.h"
 
 namespace kindred {
@@ -36,20 +37,6 @@ std::string Response(const std::string& uri, const std::string& http,
                      const std::string& extra = "") {
   return Record("response", uri, http,
                 absl::StrCat("Content-Type: application/http; msgtype=response\r\n", extra));
-}
-
-std::string GzipMember(const std::string& data) {
-  z_stream z{};
-  REQUIRE(deflateInit2(&z, 6, Z_DEFLATED, 15 + 16, 8, Z_DEFAULT_STRATEGY) == Z_OK);
-  std::string out(deflateBound(&z, data.size()) + 64, '\0');
-  z.next_in = reinterpret_cast<Bytef*>(const_cast<char*>(data.data()));
-  z.avail_in = static_cast<uInt>(data.size());
-  z.next_out = reinterpret_cast<Bytef*>(out.data());
-  z.avail_out = static_cast<uInt>(out.size());
-  REQUIRE(deflate(&z, Z_FINISH) == Z_STREAM_END);
-  out.resize(z.total_out);
-  deflateEnd(&z);
-  return out;
 }
 
 struct ReadResult {
@@ -180,14 +167,14 @@ TEST_CASE("HTTP bodies: chunked, gzip, deflate, br", "[warc]") {
   CHECK(body == "hello!!!");
   io::HttpHead gz;
   gz.content_encoding = "gzip";
-  REQUIRE(io::DecodeHttpBody(gz, GzipMember("squeezed"), 1000, &body).ok());
+  REQUIRE(io::DecodeHttpBody(gz, testing::GzipMember("squeezed"), 1000, &body).ok());
   CHECK(body == "squeezed");
-  CHECK(io::DecodeHttpBody(gz, GzipMember(std::string(5000, 'x')), 1000, &body).code() ==
+  CHECK(io::DecodeHttpBody(gz, testing::GzipMember(std::string(5000, 'x')), 1000, &body).code() ==
         absl::StatusCode::kResourceExhausted);
   CHECK(io::DecodeHttpBody(gz, "not gzip at all", 1000, &body).code() ==
         absl::StatusCode::kInvalidArgument);
   // Raw deflate (no zlib wrapper), as some servers send for "deflate".
-  std::string gzip = GzipMember("raw deflate");
+  std::string gzip = testing::GzipMember("raw deflate");
   io::HttpHead deflate;
   deflate.content_encoding = "deflate";
   REQUIRE(io::DecodeHttpBody(deflate, gzip.substr(10, gzip.size() - 18), 1000, &body).ok());
@@ -254,7 +241,7 @@ TEST_CASE("WARC records become documents with their URIs as ids", "[warc]") {
   while (at < warc.size()) {
     size_t next = warc.find("WARC/1.", at + 1);
     if (next == std::string::npos) next = warc.size();
-    gz += GzipMember(warc.substr(at, next - at));
+    gz += testing::GzipMember(warc.substr(at, next - at));
     at = next;
   }
   for (const std::string& path : {dir.Write("a.warc", warc), dir.Write("b.bin", gz)}) {

@@ -120,6 +120,7 @@ class CorpusReader::Impl {
   // so that line offsets can find a line again (DocumentSource::offset).
   absl::Status OpenLines(const std::string& path, std::string name, bool whole_input);
   absl::Status ReadTextDocument(io::BufferedInput* input, Document* doc);
+  io::DecodeOptions DecodeOptionsFor(const std::string& path);
   absl::StatusOr<std::unique_ptr<io::BufferedInput>> OpenBuffered(
       const std::string& path, io::Compression* compression = nullptr);
   // Opens `path` decoded; *warc says whether it is to be read as WARC: by
@@ -151,13 +152,19 @@ class CorpusReader::Impl {
   std::map<std::string, uint64_t> record_counts_;
 };
 
-absl::StatusOr<std::unique_ptr<io::ByteStream>> CorpusReader::Impl::OpenSniffed(
-    const std::string& path, InputFormat format, bool* warc, io::Compression* compression) {
+// How every input is decoded: the limit on decompressed bytes, the count of
+// raw bytes read, and standard input's private copy.
+io::DecodeOptions CorpusReader::Impl::DecodeOptionsFor(const std::string& path) {
   io::DecodeOptions decode;
   decode.max_decompressed_bytes = options_.max_decompressed_bytes;
   decode.raw_bytes = &raw_bytes_;
   if (path == "-") decode.copy_path = options_.stdin_copy_path;
-  auto stream = io::OpenDecoded(path, decode, compression);
+  return decode;
+}
+
+absl::StatusOr<std::unique_ptr<io::ByteStream>> CorpusReader::Impl::OpenSniffed(
+    const std::string& path, InputFormat format, bool* warc, io::Compression* compression) {
+  auto stream = io::OpenDecoded(path, DecodeOptionsFor(path), compression);
   if (!stream.ok()) return stream.status();
   *warc = format == InputFormat::kWarc;
   if (!*warc && Sniffs(format)) {
@@ -188,11 +195,7 @@ absl::StatusOr<bool> CorpusReader::Impl::NextWarcDocument(Document* doc) {
 
 absl::StatusOr<std::unique_ptr<io::BufferedInput>> CorpusReader::Impl::OpenBuffered(
     const std::string& path, io::Compression* compression) {
-  io::DecodeOptions decode;
-  decode.max_decompressed_bytes = options_.max_decompressed_bytes;
-  decode.raw_bytes = &raw_bytes_;
-  if (path == "-") decode.copy_path = options_.stdin_copy_path;
-  auto stream = io::OpenDecoded(path, decode, compression);
+  auto stream = io::OpenDecoded(path, DecodeOptionsFor(path), compression);
   if (!stream.ok()) return stream.status();
   return std::make_unique<io::BufferedInput>(std::move(*stream), io::DisplayName(path),
                                              options_.max_document_bytes);
