@@ -7,6 +7,7 @@
 #include "absl/strings/str_format.h"
 #include "cli/serve_pool.h"
 #include "cli/socket_info.h"
+#include "core/plural.h"
 #include "kindred/records.h"
 
 namespace kindred::cli {
@@ -189,9 +190,9 @@ void HttpServer::Impl::Log(const httplib::Request& req, const httplib::Response&
   metrics.Record(req.path, res.status, seconds);
   if (watchdog) watchdog->RequestDone(absl::StrCat(req.remote_addr, ":", req.remote_port));
   if (options.log_requests) {
-    std::fprintf(stderr, "kindred serve: %s %s %d %llu documents %.3f ms\n",
-                 LoggedPath(req.method).c_str(), LoggedPath(req.path).c_str(), res.status,
-                 static_cast<unsigned long long>(t_documents), seconds * 1e3);
+    std::fprintf(stderr, "kindred serve: %s %s %d %s %.3f ms\n", LoggedPath(req.method).c_str(),
+                 LoggedPath(req.path).c_str(), res.status,
+                 Counted(t_documents, "document").c_str(), seconds * 1e3);
   }
   t_start = Clock::time_point{};
   t_documents = 0;

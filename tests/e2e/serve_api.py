@@ -50,6 +50,8 @@ status, reply = server.json("POST", "/v1/check?id=" + name, text, content_type="
 cli = run([K, "check", INDEX, os.path.join(SUBMISSIONS, name), "-q", "--format", "jsonl"])
 want = [dict(m, id=name) for m in jsonl(cli.stdout)]
 check(status == 200 and reply["matches"] == want, "text/plain check: %s vs %s" % (reply, want))
+check("POST /v1/check 200 1 document " in server.text_log(),
+      "the request log reads \"1 document\": " + server.text_log()[-300:])
 
 # Marked spans: byte ranges of the upload, within it.
 status, reply = server.json("POST", "/v1/check",
