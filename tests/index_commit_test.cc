@@ -7,6 +7,7 @@
 #include <chrono>
 #include <cstdio>
 #include <filesystem>
+#include <fstream>
 #include <thread>
 
 #include "index/codec.h"
@@ -214,6 +215,90 @@ TEST_CASE("bytes after the recorded commit are a torn tail, even a whole segment
   auto writer = IndexWriter::Open(f.path);
   REQUIRE(writer.ok());
   REQUIRE((*writer)->torn_tail_cut() == file.size() - committed);
+  writer->reset();
+  REQUIRE(FileSize(f.path) == committed);
+}
+
+TEST_CASE("a writer with reserved space overwrites zeros it synced first", "[commit]") {
+  Fixture f;
+  f.Write();
+  const uint64_t committed = FileSize(f.path);
+  IndexWriteOptions options;
+  options.reserve_bytes = 10000;
+  auto writer = IndexWriter::Open(f.path, options);
+  REQUIRE(writer.ok());
+  REQUIRE((*writer)->Append(Slice(f.all, 10, 11), DuplicateIdPolicy::kError).ok());
+  const uint64_t first_end = (*writer)->reader().committed_size();
+  REQUIRE(first_end > committed);
+  // The file holds the reserve: zeros after the commit, which a reader
+  // ignores and counts as reserved, not as a torn tail.
+  REQUIRE(FileSize(f.path) == first_end + 10000);
+  {
+    auto reader = IndexReader::Open(f.path);
+    REQUIRE(reader.ok());
+    REQUIRE((*reader)->document_count() == 11);
+    REQUIRE((*reader)->reserved_bytes() == 10000);
+    REQUIRE((*reader)->torn_tail_bytes() == 0);
+  }
+  // The next segment goes over the zeros: the file does not grow.
+  REQUIRE((*writer)->Append(Slice(f.all, 11, 12), DuplicateIdPolicy::kError).ok());
+  const uint64_t second_end = (*writer)->reader().committed_size();
+  REQUIRE(second_end > first_end);
+  REQUIRE(FileSize(f.path) == first_end + 10000);
+  // Closing cuts the reserve off.
+  writer->reset();
+  REQUIRE(FileSize(f.path) == second_end);
+  auto reader = IndexReader::Open(f.path);
+  REQUIRE((*reader)->document_count() == 12);
+  for (uint32_t doc = 0; doc < 12; ++doc) RequireSameDocument(**reader, doc, f.all, doc);
+  REQUIRE(AuditIndex(f.path)->ok());
+}
+
+// Mappings of `path` the process holds (/proc/self/maps).
+int MappingsOf(const std::string& path) {
+  std::ifstream maps("/proc/self/maps");
+  int count = 0;
+  for (std::string line; std::getline(maps, line);) count += line.find(path) != std::string::npos;
+  return count;
+}
+
+TEST_CASE("readers catch up with commits into reserved space without a mapping each", "[commit]") {
+  Fixture f;
+  f.Write();
+  IndexWriteOptions options;
+  options.reserve_bytes = 1 << 16;
+  auto writer = IndexWriter::Open(f.path, options);
+  REQUIRE(writer.ok());
+  auto reader = IndexReader::Open(f.path);
+  REQUIRE(reader.ok());
+  // Each commit retires and re-adds document 11 (replace), 40 times.
+  for (int round = 0; round < 40; ++round) {
+    REQUIRE((*writer)->Append(Slice(f.all, 11, 12), DuplicateIdPolicy::kReplace).ok());
+    REQUIRE((*reader)->ReadAppended().ok());
+    REQUIRE((*reader)->document_count() == 11 + round);
+    REQUIRE((*reader)->live_count() == 11);
+    REQUIRE((*reader)->torn_tail_bytes() == 0);
+  }
+  RequireSameDocument(**reader, 10 + 39, f.all, 11);
+  // One mapping per file size (the reserve grew at most a few times), not
+  // one per commit, for the writer's reader and this one.
+  CHECK(MappingsOf(f.path) < 10);
+}
+
+TEST_CASE("a tail that ends in zeros: only the bytes before them are torn", "[commit]") {
+  Fixture f;
+  f.Write();
+  const uint64_t committed = FileSize(f.path);
+  std::string file = testing::ReadFile(f.path) + "torn" + std::string(5000, '\0');
+  std::remove(f.path.c_str());
+  f.dir.Write("x.kin", file);
+  auto reader = IndexReader::Open(f.path);
+  REQUIRE(reader.ok());
+  REQUIRE((*reader)->torn_tail_bytes() == 4);
+  REQUIRE((*reader)->reserved_bytes() == 5000);
+  auto writer = IndexWriter::Open(f.path);
+  REQUIRE(writer.ok());
+  REQUIRE((*writer)->torn_tail_cut() == 4);  // the zeros go unreported
   writer->reset();
   REQUIRE(FileSize(f.path) == committed);
 }

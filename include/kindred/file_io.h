@@ -30,7 +30,8 @@ class AppendFile {
   virtual ~AppendFile() = default;
   // Appends all of `bytes` at the end of the file (or fails).
   virtual absl::Status Append(std::string_view bytes) = 0;
-  // Flushes written data and metadata to stable storage (fsync).
+  // Flushes written data, and the metadata needed to read it back (size,
+  // block map), to stable storage (fdatasync).
   virtual absl::Status Sync() = 0;
   // Overwrites bytes [offset, offset + bytes.size()), which must lie within
   // the file (the index's commit area, rewritten in place). The file's size

@@ -78,9 +78,11 @@ class IndexReader {
   ~IndexReader();
 
   // Catches up with segments appended to the file since it was opened (or
-  // last caught up): maps the file again, then verifies and adds only the
-  // segments after committed_size(); those already read stay as they are
-  // (the earlier mapping is kept, so views of them stay valid), and a
+  // last caught up): maps the file again when its size changed (a writer
+  // that reserves space overwrites zeros inside the mapping: the mapping is
+  // shared, so it shows them), then verifies and adds only the segments
+  // after committed_size(); those already read stay as they are (an earlier
+  // mapping is kept, so views of them stay valid), and a
   // query-time banding (UseBanding) is rebuilt. Costs the new segments, not
   // the whole index. Errors as Open(); on error the reader is unchanged.
   absl::Status ReadAppended(const IndexOpenOptions& options = {});
@@ -101,7 +103,12 @@ class IndexReader {
   // version 2 this is the committed length the file records: a file shorter
   // than that, or a committed segment that does not verify, is DataLoss.
   uint64_t committed_size() const { return committed_size_; }
-  uint64_t torn_tail_bytes() const { return file_.size() - committed_size_; }
+  // The bytes after committed_size(): a run of zero bytes at the very end of
+  // a version-2 file is space a writer reserved (FORMAT.md, "Reserved
+  // space"), the rest a torn tail. Both are ignored by readers and cut off
+  // by the next writer. Counted when the file is mapped.
+  uint64_t torn_tail_bytes() const { return file_.size() - committed_size_ - reserved_bytes_; }
+  uint64_t reserved_bytes() const { return reserved_bytes_; }
 
   // Documents are numbered 0..document_count()-1 in the order they were
   // added ("first seen"), across segments. Retired documents (replaced by a
@@ -162,6 +169,8 @@ class IndexReader {
   absl::Status LoadSegments(uint64_t end, bool recorded);
   // Version 2: reads the commit area, then the segments up to what it records.
   absl::Status LoadCommitted();
+  // The run of zero bytes at the end of the mapped file, after the commit.
+  uint64_t CountReservedBytes() const;
   // The DataLoss status for a damaged shingle set of `doc`.
   absl::Status ShingleError(uint32_t doc) const;
   const Segment& SegmentOf(uint32_t doc, uint32_t* local) const;
@@ -177,6 +186,7 @@ class IndexReader {
   std::vector<uint32_t> segment_first_doc_;
   std::vector<bool> retired_;
   uint64_t committed_size_ = 0;
+  uint64_t reserved_bytes_ = 0;
   uint32_t format_version_ = 0;
   uint64_t commit_generation_ = 0;
   uint32_t damaged_commit_slots_ = 0;

@@ -55,6 +55,13 @@ struct IndexWriteOptions {
   // How long a writer waits for the lock another writer holds, retrying
   // every 50 ms, before it fails with Unavailable (0: fail at once).
   double lock_wait_seconds = 0;
+  // With reserve_bytes > 0 (a long-lived writer, such as `kindred serve`),
+  // the writer keeps zero bytes, written and synced, past the committed end
+  // (at least this many after each extension) and writes each segment over
+  // them: the sync of a segment then writes data only, not the file's size
+  // and block map (see FORMAT.md, "Reserved space"). Destroying the writer
+  // cuts the reserve off again.
+  uint64_t reserve_bytes = 0;
 };
 
 // Creates a new index at `path` holding `corpus` (which may be empty) as

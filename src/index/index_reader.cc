@@ -1,4 +1,5 @@
 #include <algorithm>
+#include <cstring>
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
@@ -29,7 +30,10 @@ absl::StatusOr<std::unique_ptr<IndexReader>> IndexReader::Open(const std::string
     reader->mapping_ = *std::move(mapping);
     reader->file_ = reader->mapping_->bytes();
     status = reader->Load();
-    if (status.ok()) return reader;
+    if (status.ok()) {
+      reader->reserved_bytes_ = reader->CountReservedBytes();
+      return reader;
+    }
     if (!absl::IsDataLoss(status)) break;
     auto again = options.file_system->Map(path);
     if (!again.ok() || (*again)->bytes().size() == reader->file_.size()) break;
@@ -148,6 +152,18 @@ absl::Status IndexReader::LoadSegments(uint64_t end, bool recorded) {
 absl::Status IndexReader::ReadAppended(const IndexOpenOptions& options) {
   auto mapping = options.file_system->Map(path_);
   if (!mapping.ok()) return mapping.status();
+  if ((*mapping)->bytes().size() == file_.size() && format_version_ == 2) {
+    // The same size: the current (shared) mapping shows what was written
+    // since, and no mapping piles up per commit.
+    mapping->reset();
+    absl::Status status = LoadCommitted();
+    if (!status.ok()) {
+      return absl::Status(status.code(), absl::StrCat("index ", path_, ": ", status.message()));
+    }
+    // What was reserved and is still past the commit is zeros yet.
+    reserved_bytes_ = std::min(reserved_bytes_, file_.size() - committed_size_);
+    return memory_keys_.empty() ? absl::OkStatus() : UseBanding(bands_, rows_);
+  }
   std::unique_ptr<MappedFile> previous = std::move(mapping_);
   const std::string_view previous_file = file_;
   mapping_ = *std::move(mapping);
@@ -166,8 +182,23 @@ absl::Status IndexReader::ReadAppended(const IndexOpenOptions& options) {
     return absl::Status(status.code(), absl::StrCat("index ", path_, ": ", status.message()));
   }
   earlier_mappings_.push_back(std::move(previous));
+  reserved_bytes_ = CountReservedBytes();
   // A query-time banding covers the new documents too.
   return memory_keys_.empty() ? absl::OkStatus() : UseBanding(bands_, rows_);
+}
+
+uint64_t IndexReader::CountReservedBytes() const {
+  if (format_version_ == 1) return 0;
+  // Whole 4 KiB blocks from the end first, then the bytes of the last one
+  // that is not all zero.
+  static constexpr char kZeros[4096] = {};
+  uint64_t end = file_.size();
+  while (end - committed_size_ >= sizeof(kZeros) &&
+         std::memcmp(file_.data() + end - sizeof(kZeros), kZeros, sizeof(kZeros)) == 0) {
+    end -= sizeof(kZeros);
+  }
+  while (end > committed_size_ && file_[end - 1] == 0) --end;
+  return file_.size() - end;
 }
 
 const IndexReader::Segment& IndexReader::SegmentOf(uint32_t doc, uint32_t* local) const {

@@ -8,6 +8,7 @@
 #include "absl/strings/str_format.h"
 #include "index/commit_area.h"
 #include "index/format.h"
+#include "index/reserved_commit.h"
 #include "index/segment.h"
 #include "index/write_util.h"
 
@@ -58,7 +59,13 @@ absl::Status CreateIndex(const std::string& path, const IndexSettings& settings,
                                options.file_system);
 }
 
-IndexWriter::~IndexWriter() = default;
+IndexWriter::~IndexWriter() {
+  // The reserve goes with the writer (a reader would ignore it anyway).
+  if (options_.reserve_bytes > 0 && file_ != nullptr && !broken_ &&
+      file_->size() > reader_->committed_size()) {
+    if (file_->Truncate(reader_->committed_size()).ok()) file_->Sync().IgnoreError();
+  }
+}
 
 absl::StatusOr<std::unique_ptr<IndexWriter>> IndexWriter::Open(const std::string& path,
                                                                const IndexWriteOptions& options) {
@@ -89,7 +96,8 @@ absl::StatusOr<std::unique_ptr<IndexWriter>> IndexWriter::Open(const std::string
   const IndexReader& opened = *writer->reader_;
   uint64_t committed = opened.committed_size();
   if (writer->file_->size() != committed) {
-    writer->torn_tail_cut_ = writer->file_->size() - committed;
+    // Zeros a writer reserved are cut without being reported as torn.
+    writer->torn_tail_cut_ = opened.torn_tail_bytes();
     absl::Status cut = writer->file_->Truncate(committed);
     if (cut.ok()) cut = writer->file_->Sync();
     if (!cut.ok()) return cut;
@@ -164,7 +172,10 @@ absl::Status IndexWriter::WriteSegment(absl::Span<const index::SegmentDocument> 
   const index::CommitPoint before{reader_->commit_generation(), reader_->committed_size(),
                                   static_cast<uint32_t>(reader_->segments().size()),
                                   reader_->document_count()};
-  absl::Status written = index::AppendSegment(file_.get(), before, docs.size(), segment);
+  absl::Status written = options_.reserve_bytes > 0
+                             ? index::CommitIntoReserve(file_.get(), before, docs.size(), segment,
+                                                        options_.reserve_bytes)
+                             : index::AppendSegment(file_.get(), before, docs.size(), segment);
   if (!written.ok()) {
     broken_ = true;
     return written;

@@ -75,8 +75,10 @@ absl::StatusOr<std::unique_ptr<IndexService>> IndexService::Open(const ServiceOp
   service->options_ = options;
   IndexService* self = service.get();
   if (options.allow_add) {  // the lock first: a busy index fails at once
-    auto committer = GroupCommitter::Open(options.path, options.max_group_documents,
-                                          [self] { self->CatchUp(); });
+    IndexWriteOptions write_options;
+    write_options.reserve_bytes = options.reserve_bytes;
+    auto committer = GroupCommitter::Open(
+        options.path, options.max_group_documents, [self] { self->CatchUp(); }, write_options);
     if (!committer.ok()) return committer.status();
     service->committer_ = std::move(*committer);
   }

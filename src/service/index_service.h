@@ -51,6 +51,9 @@ struct ServiceOptions {
   size_t max_group_documents = 20000;
   // Readers banded otherwise than the stored tables, kept at most.
   size_t other_bandings = 2;
+  // Zero bytes the writer keeps past the committed end, so that a commit's
+  // syncs write data only (IndexWriteOptions::reserve_bytes).
+  uint64_t reserve_bytes = 4 << 20;
 };
 
 // Counts for the metrics page.
