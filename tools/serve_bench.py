@@ -4,11 +4,16 @@ a large index (not a test; the README quotes its figures).
 
 Builds (once, kept in --workdir) a synthetic corpus of --docs documents of
 about 5 KB (tools/gen_corpus.py, 700 to 900 words) and an index of it, starts
-the service, and measures with build/tools/kindred_serve_load:
-  1. one client, one document per check: median and 99th percentile latency;
-  2. 16 clients, checks per second;
+the service, and measures with build/tools/kindred_serve_load, each phase
+--runs times (each run printed, then the medians):
+  1. checks, one document each: one client (median and 99th percentile
+     latency), then 16 clients (checks per second);
+  2. the same while --mixed-adders clients add documents meanwhile;
   3. 16 clients, one document per add: acknowledged documents per second
      (each durable before its reply, by group commit).
+Latencies are measured by the client; the service's own time per request
+(the "seconds" of its replies) is printed beside them. The load average
+before each run is printed too: the machine is shared.
 Uploads are documents of the corpus under new ids (each finds its original,
 so every check reads and verifies at least one stored set) and, for a
 second figure, new documents of the same vocabulary that match nothing.
@@ -17,6 +22,7 @@ The add phase appends to the index in --workdir (ids unique per run).
 
 import argparse
 import json
+import statistics
 import os
 import pathlib
 import re
@@ -57,6 +63,40 @@ def cpu_seconds(pid):
     return (int(fields[11]) + int(fields[12])) / os.sysconf("SC_CLK_TCK")
 
 
+def segments_written(port, token):
+    metrics = subprocess.run(["curl", "-s", "--noproxy", "*", "-H", f"Authorization: Bearer {token}",
+                              f"http://127.0.0.1:{port}/metrics"], capture_output=True,
+                             text=True).stdout
+    found = re.search(r"^kindred_segments_written_total (\d+)", metrics, re.M)
+    return int(found.group(1)) if found else 0
+
+
+def run_phase(args, label, measure, pid=None):
+    """Runs `measure` args.runs times; prints each run and the medians."""
+    results = []
+    for _ in range(args.runs):
+        load_average = open("/proc/loadavg").read().split()[0]
+        cpu = cpu_seconds(pid) if pid else 0
+        result = measure()
+        if pid:
+            result["cpu_ms"] = (cpu_seconds(pid) - cpu) / max(1, result["requests"]) * 1e3
+        result["load"] = float(load_average)
+        results.append(result)
+        extra = f", service CPU {result['cpu_ms']:.3f} ms per request" if pid else ""
+        note = f", {result['note']}" if "note" in result else ""
+        print(f"  {label}: {result['per_second']:.0f}/s, median {result['median_ms']:.3f} ms, "
+              f"99th percentile {result['p99_ms']:.3f} ms (inside the service: median "
+              f"{result['service_median_ms']:.3f} ms, 99th percentile {result['service_p99_ms']:.3f} ms; "
+              f"{result['requests']} requests, "
+              f"{result['errors']} errors{extra}{note}; load average {load_average})", flush=True)
+    if args.runs > 1:
+        def mid(key):
+            return statistics.median(r[key] for r in results)
+        print(f"  {label}, median of {args.runs} runs: {mid('per_second'):.0f}/s, median "
+              f"{mid('median_ms'):.3f} ms, 99th percentile {mid('p99_ms'):.3f} ms "
+              f"(load average {mid('load'):.1f})", flush=True)
+
+
 def main():
     parser = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     parser.add_argument("--kindred", default=str(ROOT / "build/kindred"))
@@ -65,6 +105,11 @@ def main():
     parser.add_argument("--docs", type=int, default=1000000)
     parser.add_argument("--seconds", type=float, default=10)
     parser.add_argument("--single", type=int, default=2000, help="checks of the one-client run")
+    parser.add_argument("--runs", type=int, default=3, help="runs of each phase (medians quoted)")
+    parser.add_argument("--phases", default="check,mixed,add",
+                        help="comma-separated: check, mixed (checks while adds run), add")
+    parser.add_argument("--mixed-adders", type=int, default=4,
+                        help="clients adding during the mixed phase")
     args = parser.parse_args()
     work = pathlib.Path(args.workdir)
     work.mkdir(parents=True, exist_ok=True)
@@ -107,30 +152,40 @@ def main():
         time.sleep(0.05)
     load_average = open("/proc/loadavg").read().split()[0]
     print(f"machine: {os.cpu_count()} cores, load average {load_average} before the run; index of {args.docs} documents of about 5 KB; "
-          f"service ready in {time.monotonic() - start:.1f} s")
+          f"service ready in {time.monotonic() - start:.1f} s; {args.runs} runs of each phase, medians last")
     try:
         for label, body_file in [("uploads that copy an indexed document", copies),
                                  ("uploads that match nothing", originals)]:
-            cpu = cpu_seconds(server.pid)
-            one = load(args.load_tool, port, token, "/v1/check", 1, 600, args.single, body_file)
-            cpu = (cpu_seconds(server.pid) - cpu) / max(1, one["requests"])
-            many = load(args.load_tool, port, token, "/v1/check", 16, args.seconds, 0, body_file)
+            if "check" not in args.phases:
+                break
             print(f"check, {label}:")
-            print(f"  1 client:   median {one['median_ms']:.3f} ms, 99th percentile "
-                  f"{one['p99_ms']:.3f} ms ({one['requests']} checks, {one['errors']} errors); "
-                  f"service CPU {cpu * 1e3:.3f} ms per check")
-            print(f"  16 clients: {many['per_second']:.0f} checks/s, median {many['median_ms']:.3f} ms, "
-                  f"99th percentile {many['p99_ms']:.3f} ms ({many['requests']} checks, "
-                  f"{many['errors']} errors)")
-        added = load(args.load_tool, port, token, "/v1/add", 16, args.seconds, 0, adds)
-        print(f"add, 16 clients, one document each: {added['per_second']:.0f} documents/s "
-              f"acknowledged, median {added['median_ms']:.3f} ms, 99th percentile "
-              f"{added['p99_ms']:.3f} ms ({added['requests']} adds, {added['errors']} errors)")
-        metrics = subprocess.run(["curl", "-s", "--noproxy", "*", "-H", f"Authorization: Bearer {token}",
-                                  f"http://127.0.0.1:{port}/metrics"], capture_output=True, text=True).stdout
-        segments = re.search(r"^kindred_segments_written_total (\d+)", metrics, re.M)
-        if segments:
-            print(f"  segments written by group commit: {segments.group(1)}")
+            run_phase(args, "1 client", lambda: load(args.load_tool, port, token, "/v1/check", 1,
+                                                     600, args.single, body_file),
+                      server.pid)
+            run_phase(args, "16 clients", lambda: load(args.load_tool, port, token, "/v1/check", 16,
+                                                       args.seconds, 0, body_file), server.pid)
+        if "mixed" in args.phases:
+            print(f"check while {args.mixed_adders} clients add (one document each), uploads that "
+                  f"copy an indexed document:")
+            for clients in (1, 16):
+                def mixed(clients=clients):
+                    adders = subprocess.Popen(
+                        [str(args.load_tool), str(port), token, "/v1/add", str(args.mixed_adders),
+                         str(args.seconds + 2), "0", str(adds)],
+                        stdout=subprocess.PIPE, text=True)
+                    time.sleep(1)
+                    result = load(args.load_tool, port, token, "/v1/check", clients,
+                                  args.seconds, 0, copies)
+                    added = json.loads(adders.communicate()[0])
+                    result["note"] = f"adds meanwhile {added['per_second']:.0f}/s"
+                    return result
+                run_phase(args, f"{clients} client{'s' if clients > 1 else ''}", mixed)
+        if "add" in args.phases:
+            print("add, 16 clients, one document each (acknowledged documents/s):")
+            before = segments_written(port, token)
+            run_phase(args, "16 clients", lambda: load(args.load_tool, port, token, "/v1/add", 16,
+                                                       args.seconds, 0, adds), server.pid)
+            print(f"  segments written by group commit: {segments_written(port, token) - before}")
     finally:
         server.terminate()
         server.wait()

@@ -151,8 +151,30 @@ std::string PeerOf(int fd) {
 
 void ConnectionWatchdog::Scan() {
   const auto now = std::chrono::steady_clock::now();
+  // The system calls first, without the lock: a scan preempted on a busy
+  // machine must not hold up RequestDone, which every answer calls.
+  struct Socket {
+    int fd;
+    uint64_t inode;
+    std::string peer;
+    uint64_t bytes;
+  };
+  std::vector<Socket> sockets;
   DIR* dir = opendir("/proc/self/fd");
   if (dir == nullptr) return;
+  while (dirent* entry = readdir(dir)) {
+    if (entry->d_name[0] == '.') continue;
+    const int fd = std::atoi(entry->d_name);
+    const uint64_t inode = SocketInode(fd);
+    if (inode == 0) continue;
+    int listening = 0;
+    socklen_t len = sizeof(listening);
+    if (getsockopt(fd, SOL_SOCKET, SO_ACCEPTCONN, &listening, &len) != 0 || listening) continue;
+    std::string peer = PeerOf(fd);
+    if (peer.empty()) continue;
+    sockets.push_back(Socket{fd, inode, std::move(peer), BytesReceived(fd)});
+  }
+  closedir(dir);
   std::set<uint64_t> seen;
   std::set<std::string> peers;
   std::vector<std::pair<int, uint64_t>> overdue;
@@ -160,36 +182,25 @@ void ConnectionWatchdog::Scan() {
   std::vector<std::string> overdue_peers;
   {
     std::lock_guard<std::mutex> lock(mu_);
-    while (dirent* entry = readdir(dir)) {
-      if (entry->d_name[0] == '.') continue;
-      const int fd = std::atoi(entry->d_name);
-      const uint64_t inode = SocketInode(fd);
-      if (inode == 0) continue;
-      int listening = 0;
-      socklen_t len = sizeof(listening);
-      if (getsockopt(fd, SOL_SOCKET, SO_ACCEPTCONN, &listening, &len) != 0 || listening) continue;
-      const std::string peer = PeerOf(fd);
-      if (peer.empty()) continue;
-      seen.insert(inode);
-      peers.insert(peer);
-      const uint64_t bytes = BytesReceived(fd);
-      auto [it, fresh] = since_.emplace(inode, Window{now, bytes});
+    for (const Socket& socket : sockets) {
+      seen.insert(socket.inode);
+      peers.insert(socket.peer);
+      auto [it, fresh] = since_.emplace(socket.inode, Window{now, socket.bytes});
       Window& window = it->second;
-      if (auto done = done_.find(peer); done != done_.end() && done->second > window.since) {
-        window = Window{done->second, bytes};
+      if (auto done = done_.find(socket.peer); done != done_.end() && done->second > window.since) {
+        window = Window{done->second, socket.bytes};
       }
       const double age = std::chrono::duration<double>(now - window.since).count();
-      if (now - window.since > timeout_ || bytes - window.bytes > max_bytes_) {
-        overdue.emplace_back(fd, inode);
+      if (now - window.since > timeout_ || socket.bytes - window.bytes > max_bytes_) {
+        overdue.emplace_back(socket.fd, socket.inode);
         ages.push_back(age);
-        overdue_peers.push_back(peer);
-        window = Window{now, bytes};
+        overdue_peers.push_back(socket.peer);
+        window = Window{now, socket.bytes};
       }
     }
     std::erase_if(since_, [&seen](const auto& entry) { return !seen.contains(entry.first); });
     std::erase_if(done_, [&peers](const auto& entry) { return !peers.contains(entry.first); });
   }
-  closedir(dir);
   for (size_t i = 0; i < overdue.size(); ++i) {
     // The descriptor may have been closed and reused meanwhile: same inode only.
     if (SocketInode(overdue[i].first) != overdue[i].second) continue;

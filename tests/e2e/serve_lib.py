@@ -35,7 +35,7 @@ def run(args, **kwargs):
 class Server:
     """The program serving an index on 127.0.0.1, on a port it picks."""
 
-    def __init__(self, kindred, index, *args, token=None, workdir=None):
+    def __init__(self, kindred, index, *args, token=None, workdir=None, preexec_fn=None):
         self.workdir = workdir or tempfile.mkdtemp()
         self.token = token
         self.log_path = os.path.join(self.workdir, "serve-%d.log" % time.monotonic_ns())
@@ -46,7 +46,8 @@ class Server:
                 f.write(token + "\n")
             command += ["--token-file", token_path]
         self.log = open(self.log_path, "w")
-        self.process = subprocess.Popen(command, stderr=self.log, stdout=subprocess.DEVNULL)
+        self.process = subprocess.Popen(command, stderr=self.log, stdout=subprocess.DEVNULL,
+                                        preexec_fn=preexec_fn)
         self.port = self._wait_for_port()
 
     def _wait_for_port(self):
