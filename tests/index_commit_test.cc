@@ -14,6 +14,7 @@
 #include "index/commit_area.h"
 #include "index/format.h"
 #include "index/segment.h"
+#include "kindred/banding.h"
 #include "kindred/index.h"
 #include "kindred/index_writer.h"
 #include "testlib/index_fixture.h"
@@ -283,6 +284,55 @@ TEST_CASE("readers catch up with commits into reserved space without a mapping e
   // One mapping per file size (the reserve grew at most a few times), not
   // one per commit, for the writer's reader and this one.
   CHECK(MappingsOf(f.path) < 10);
+}
+
+TEST_CASE("small segments looked up through the tail tables give every candidate", "[commit]") {
+  // A large first segment (looked up on its own) and many small ones, some
+  // replacing earlier documents, read at open and caught up after it.
+  testing::TempDir dir;
+  const std::string path = dir.File("t.kin");
+  IndexSettings settings = testing::TestIndexSettings(16, 8, 2);
+  SignedCorpus all = testing::SignTexts(testing::MakeTexts(5, 160, 30, "t"), settings.signature);
+  REQUIRE(CreateIndex(path, settings, Slice(all, 0, 100)).ok());
+  auto writer = IndexWriter::Open(path);
+  for (size_t begin = 100; begin < 130; begin += 3) {
+    REQUIRE((*writer)->Append(Slice(all, begin, begin + 3), DuplicateIdPolicy::kError).ok());
+  }
+  auto reader = IndexReader::Open(path);
+  REQUIRE(reader.ok());
+  for (size_t begin = 130; begin < 160; begin += 2) {
+    REQUIRE((*writer)->Append(Slice(all, begin, begin + 2), DuplicateIdPolicy::kError).ok());
+    REQUIRE(
+        (*writer)->Append(Slice(all, begin - 40, begin - 39), DuplicateIdPolicy::kReplace).ok());
+    REQUIRE((*reader)->ReadAppended().ok());
+  }
+  const IndexReader& r = **reader;
+  const Banding banding{settings.bands, settings.rows};
+  std::vector<std::vector<uint64_t>> keys(r.document_count(), std::vector<uint64_t>(banding.bands));
+  for (uint32_t doc = 0; doc < r.document_count(); ++doc) {
+    BandKeys(r.signature(doc), banding, absl::MakeSpan(keys[doc]));
+  }
+  for (uint32_t doc = 0; doc < r.document_count(); ++doc) {
+    CAPTURE(doc);
+    std::vector<uint32_t> want;  // live documents sharing a key, by brute force
+    for (uint32_t other = 0; other < r.document_count(); ++other) {
+      bool shared = false;
+      for (uint32_t b = 0; b < banding.bands; ++b) {
+        shared |= keys[doc][b] != kNoBandKey && keys[doc][b] == keys[other][b];
+      }
+      if (shared && r.is_live(other)) want.push_back(other);
+    }
+    std::vector<uint32_t> got;
+    r.Candidates(keys[doc], &got);
+    REQUIRE(got == want);
+    // The live document of each id is the one found.
+    const std::optional<uint32_t> live = r.FindLive(r.id(doc));
+    REQUIRE(live.has_value());
+    REQUIRE(r.is_live(*live));
+    REQUIRE(r.id(*live) == r.id(doc));
+    if (r.is_live(doc)) REQUIRE(*live == doc);
+  }
+  REQUIRE_FALSE(r.FindLive("no such id").has_value());
 }
 
 TEST_CASE("a tail that ends in zeros: only the bytes before them are torn", "[commit]") {

@@ -67,6 +67,10 @@ struct IndexOpenOptions {
   FileSystem* file_system = DefaultFileSystem();  // borrowed
 };
 
+namespace index {
+class TailTables;
+}  // namespace index
+
 class IndexReader {
  public:
   // Maps and verifies `path`. Errors: NotFound/PermissionDenied (cannot
@@ -196,6 +200,12 @@ class IndexReader {
   uint32_t rows_ = 0;
   // With a banding other than the stored one: all (key, doc), sorted.
   std::vector<std::pair<uint64_t, uint32_t>> memory_keys_;
+  // Segments tail_from_.. (the small ones at the end when opened, and all
+  // read by ReadAppended) are looked up through tail_, not one by one.
+  size_t tail_from_ = 0;
+  std::unique_ptr<index::TailTables> tail_;
+  // Adds the segments from `from` (at least tail_from_) on to tail_.
+  void ExtendTail(size_t from);
 };
 
 // Compares the settings a command asks for with the stored ones. Returns

@@ -7,6 +7,7 @@
 #include "index/commit_area.h"
 #include "index/format.h"
 #include "index/segment.h"
+#include "index/tail_tables.h"
 #include "kindred/banding.h"
 #include "kindred/index.h"
 
@@ -32,6 +33,15 @@ absl::StatusOr<std::unique_ptr<IndexReader>> IndexReader::Open(const std::string
     status = reader->Load();
     if (status.ok()) {
       reader->reserved_bytes_ = reader->CountReservedBytes();
+      // The small segments at the end (those group commits write) go to
+      // the tail tables; larger ones are looked up one by one.
+      constexpr uint32_t kTailSegmentDocuments = 64;
+      size_t from = reader->segment_views_.size();
+      while (from > 0 && reader->segment_views_[from - 1].doc_count() < kTailSegmentDocuments) {
+        --from;
+      }
+      reader->tail_from_ = from;
+      reader->ExtendTail(from);
       return reader;
     }
     if (!absl::IsDataLoss(status)) break;
@@ -152,6 +162,7 @@ absl::Status IndexReader::LoadSegments(uint64_t end, bool recorded) {
 absl::Status IndexReader::ReadAppended(const IndexOpenOptions& options) {
   auto mapping = options.file_system->Map(path_);
   if (!mapping.ok()) return mapping.status();
+  const size_t segments_before = segment_views_.size();
   if ((*mapping)->bytes().size() == file_.size() && format_version_ == 2) {
     // The same size: the current (shared) mapping shows what was written
     // since, and no mapping piles up per commit.
@@ -162,6 +173,7 @@ absl::Status IndexReader::ReadAppended(const IndexOpenOptions& options) {
     }
     // What was reserved and is still past the commit is zeros yet.
     reserved_bytes_ = std::min(reserved_bytes_, file_.size() - committed_size_);
+    ExtendTail(segments_before);
     return memory_keys_.empty() ? absl::OkStatus() : UseBanding(bands_, rows_);
   }
   std::unique_ptr<MappedFile> previous = std::move(mapping_);
@@ -183,6 +195,7 @@ absl::Status IndexReader::ReadAppended(const IndexOpenOptions& options) {
   }
   earlier_mappings_.push_back(std::move(previous));
   reserved_bytes_ = CountReservedBytes();
+  ExtendTail(segments_before);
   // A query-time banding covers the new documents too.
   return memory_keys_.empty() ? absl::OkStatus() : UseBanding(bands_, rows_);
 }
@@ -266,8 +279,23 @@ absl::Status IndexReader::VerifyShingleChecksums() const {
   return absl::OkStatus();
 }
 
+void IndexReader::ExtendTail(size_t from) {
+  if (tail_ == nullptr) tail_ = std::make_unique<index::TailTables>();
+  for (size_t s = std::max(from, tail_from_); s < segment_views_.size(); ++s) {
+    tail_->Add(segment_views_[s], segment_first_doc_[s]);
+  }
+}
+
 std::optional<uint32_t> IndexReader::FindLive(std::string_view id) const {
-  for (size_t s = segment_views_.size(); s-- > 0;) {
+  // The newest document with the id is in the tail when the tail holds the
+  // id at all; only when that one is retired may an older one be live.
+  size_t scan_from = segment_views_.size();
+  if (tail_ != nullptr) {
+    const std::optional<uint32_t> newest = tail_->Newest(id);
+    if (newest.has_value() && is_live(*newest)) return newest;
+    if (!newest.has_value()) scan_from = tail_from_;
+  }
+  for (size_t s = scan_from; s-- > 0;) {
     const Segment& segment = segment_views_[s];
     uint32_t lo = 0, hi = segment.doc_count();
     while (lo < hi) {
@@ -314,37 +342,49 @@ void IndexReader::Candidates(absl::Span<const uint64_t> keys, std::vector<uint32
   const bool stored = memory_keys_.empty() && bands_ == settings_.bands && rows_ == settings_.rows;
   // The entries of a key: one range of the in-memory table, or one range
   // per segment (document numbers ascending across them).
+  using Entry = std::pair<uint64_t, uint32_t>;
   struct Range {
-    size_t segment;  // kMemory for the in-memory table
+    const Entry* table;  // an in-memory table, or null for segment `segment`
+    size_t segment;
     size_t begin, end;
   };
-  constexpr size_t kMemory = ~size_t{0};
   std::vector<Range> ranges;
   const auto doc_at = [&](const Range& range, size_t i) {
-    if (range.segment == kMemory) return memory_keys_[i].second;
+    if (range.table != nullptr) return range.table[i].second;
     const Segment& segment = segment_views_[range.segment];
     return segment_first_doc_[range.segment] + segment.key_docs()[i];
+  };
+  const auto add_table = [&ranges](const std::vector<Entry>& table, uint64_t key) {
+    const auto [lo, hi] =
+        std::equal_range(table.begin(), table.end(), std::make_pair(key, uint32_t{0}),
+                         [](const Entry& x, const Entry& y) { return x.first < y.first; });
+    if (lo != hi) {
+      ranges.push_back({table.data(), 0, static_cast<size_t>(lo - table.begin()),
+                        static_cast<size_t>(hi - table.begin())});
+    }
+    return static_cast<uint64_t>(hi - lo);
   };
   for (uint64_t key : keys) {
     if (key == kNoBandKey) continue;
     ranges.clear();
     uint64_t entries = 0;
     if (!stored) {
-      const auto [lo, hi] = std::equal_range(
-          memory_keys_.begin(), memory_keys_.end(), std::make_pair(key, uint32_t{0}),
-          [](const auto& x, const auto& y) { return x.first < y.first; });
-      ranges.push_back({kMemory, static_cast<size_t>(lo - memory_keys_.begin()),
-                        static_cast<size_t>(hi - memory_keys_.begin())});
-      entries += hi - lo;
+      entries += add_table(memory_keys_, key);
     } else {
-      for (size_t s = 0; s < segment_views_.size(); ++s) {
+      // Segments one by one up to the tail, then the tail's runs: document
+      // numbers ascend across the ranges either way.
+      const size_t tail_from = tail_ != nullptr ? tail_from_ : segment_views_.size();
+      for (size_t s = 0; s < tail_from; ++s) {
         const Segment& segment = segment_views_[s];
         const uint64_t* end = segment.keys() + segment.key_count();
         const auto [lo, hi] = std::equal_range(segment.keys(), end, key);
         if (lo == hi) continue;
-        ranges.push_back({s, static_cast<size_t>(lo - segment.keys()),
+        ranges.push_back({nullptr, s, static_cast<size_t>(lo - segment.keys()),
                           static_cast<size_t>(hi - segment.keys())});
         entries += hi - lo;
+      }
+      if (tail_ != nullptr) {
+        for (const std::vector<Entry>& run : tail_->runs()) entries += add_table(run, key);
       }
     }
     const bool capped = max_bucket > 0 && entries > max_bucket;
