@@ -114,7 +114,11 @@ absl::Status ReadOptions(simdjson::dom::object object, ServiceRequest* out) {
 
 absl::StatusOr<ServiceRequest> ParseJsonRequest(std::string_view body,
                                                 const RequestLimits& limits) {
-  const simdjson::padded_string padded(RepairUtf8(body));
+  // Ill-formed UTF-8 is repaired (U+FFFD), as in files; the check first,
+  // at SIMD speed, spares the copy through the repair for valid bodies.
+  const simdjson::padded_string padded = simdjson::validate_utf8(body.data(), body.size())
+                                             ? simdjson::padded_string(body)
+                                             : simdjson::padded_string(RepairUtf8(body));
   simdjson::dom::parser parser;
   if (parser.allocate(padded.size(), limits.max_depth) != simdjson::SUCCESS) {
     return absl::ResourceExhaustedError("cannot allocate the JSON parser");
