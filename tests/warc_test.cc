@@ -261,7 +261,7 @@ TEST_CASE("WARC records become documents with their URIs as ids", "[warc]") {
     CHECK(read.counts["payload digest mismatch (counted, still read)"] == 1);
   }
   InputOptions by_record;
-  by_record.warc.id_from_record_id = true;
+  by_record.warc.id_source = WarcIdSource::kRecordId;
   ReadResult read = ReadAll(dir.Write("c.warc", warc), by_record);
   REQUIRE(read.docs.size() == 3);
   CHECK(read.docs[0].id.rfind("<urn:uuid:", 0) == 0);

@@ -7,11 +7,15 @@
 #      each run for a bounded time from its seeds and regression inputs;
 #      any crash, sanitizer report, leak, timeout or broken property fails;
 #      this build treats compiler warnings (clang's) as errors.
+#   3. a report (never a failure) of the files over 400 lines and functions
+#      over 60 that no comment or allow-list entry explains
+#      (tools/check_sizes.py).
 # Prints a summary and exits non-zero when a step failed.
 #
 #   tools/ci_checks.sh                      # both steps, 60 s per fuzz target
 #   KINDRED_FUZZ_SECONDS=300 tools/ci_checks.sh fuzz
 #   tools/ci_checks.sh asan
+#   tools/ci_checks.sh sizes
 #
 # Environment: KINDRED_FUZZ_SECONDS (default 60) per target, KINDRED_FUZZ_SEED
 # (default 1), KINDRED_JOBS (default: all cores). A finding is saved as
@@ -21,7 +25,7 @@ set -uo pipefail
 
 cd "$(dirname "$0")/.." || exit 2
 steps=("$@")
-((${#steps[@]} > 0)) || steps=(asan fuzz)
+((${#steps[@]} > 0)) || steps=(asan fuzz sizes)
 jobs=${KINDRED_JOBS:-$(nproc)}
 fuzz_seconds=${KINDRED_FUZZ_SECONDS:-60}
 fuzz_seed=${KINDRED_FUZZ_SEED:-1}
@@ -101,12 +105,23 @@ run_fuzz() {
   return $status
 }
 
+# A report only: the sizes of files and functions (DEVELOPERS.md).
+run_sizes() {
+  echo "== sizes: files over 400 lines, functions over 60 (tools/check_sizes.py)" >&2
+  local report count
+  report=$(python3 tools/check_sizes.py)
+  count=$(grep -c . <<<"$report")
+  [[ -n $report ]] && echo "$report" >&2
+  note "sizes  report $count over the limits without a reason (not a failure)"
+}
+
 overall=$(date +%s)
 for step in "${steps[@]}"; do
   case "$step" in
     asan) run_asan || failed=1 ;;
     fuzz) run_fuzz || failed=1 ;;
-    *) echo "ci_checks: unknown step \"$step\" (asan or fuzz)" >&2; exit 2 ;;
+    sizes) run_sizes ;;
+    *) echo "ci_checks: unknown step \"$step\" (asan, fuzz or sizes)" >&2; exit 2 ;;
   esac
 done
 

@@ -19,31 +19,37 @@
 #include "kindred/shingles.h"
 #include "kindred/signer.h"
 
+namespace {
+
+// The texts of the corpus at `path`, into *texts; their bytes into *bytes.
+absl::Status ReadTexts(const char* path, std::vector<std::string>* texts, size_t* bytes) {
+  auto reader = kindred::CorpusReader::Open({path}, {});
+  if (!reader.ok()) return reader.status();
+  std::vector<kindred::Document> batch;
+  for (;;) {
+    auto read = (*reader)->ReadBatch(&batch, 4096, size_t{64} << 20);
+    if (!read.ok()) return read.status();
+    if (*read == 0) return absl::OkStatus();
+    for (kindred::Document& doc : batch) {
+      *bytes += doc.text.size();
+      texts->push_back(std::move(doc.text));
+    }
+  }
+}
+
+}  // namespace
+
 int main(int argc, char** argv) {
   if (argc < 2) {
     std::fprintf(stderr, "usage: kindred_core_steps CORPUS.jsonl [ROUNDS]\n");
     return 2;
   }
   const int rounds = argc > 2 ? std::max(1, std::atoi(argv[2])) : 3;
-  auto reader = kindred::CorpusReader::Open({argv[1]}, {});
-  if (!reader.ok()) {
-    std::fprintf(stderr, "%s\n", reader.status().ToString().c_str());
-    return 3;
-  }
   std::vector<std::string> texts;
-  std::vector<kindred::Document> batch;
   size_t bytes = 0;
-  for (;;) {
-    auto read = (*reader)->ReadBatch(&batch, 4096, size_t{64} << 20);
-    if (!read.ok()) {
-      std::fprintf(stderr, "%s\n", read.status().ToString().c_str());
-      return 3;
-    }
-    if (*read == 0) break;
-    for (kindred::Document& doc : batch) {
-      bytes += doc.text.size();
-      texts.push_back(std::move(doc.text));
-    }
+  if (absl::Status read = ReadTexts(argv[1], &texts, &bytes); !read.ok()) {
+    std::fprintf(stderr, "%s\n", read.ToString().c_str());
+    return 3;
   }
   const kindred::SignatureSettings settings;  // word 5-shingles, 128 perms
   auto shingler = kindred::Shingler::Create(settings);

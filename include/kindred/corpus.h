@@ -87,6 +87,7 @@
 #include <map>
 #include <memory>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "absl/status/status.h"
@@ -103,11 +104,26 @@ enum class InputFormat : uint8_t {
 
 // "auto", "text", "jsonl", "warc".
 const char* InputFormatName(InputFormat format);
+// The inverse of InputFormatName; an unknown name is InvalidArgument
+// "input-format: expected auto, text, jsonl or warc, not \"x\"".
+absl::StatusOr<InputFormat> ParseInputFormat(std::string_view name);
+
+// Which header field of a WARC record gives a document its id.
+enum class WarcIdSource : uint8_t {
+  kUri,       // WARC-Target-URI
+  kRecordId,  // WARC-Record-ID
+};
+
+// "uri", "record-id".
+const char* WarcIdSourceName(WarcIdSource source);
+// The inverse of WarcIdSourceName; an unknown name is InvalidArgument
+// "warc-id: expected uri or record-id, not \"x\"".
+absl::StatusOr<WarcIdSource> ParseWarcIdSource(std::string_view name);
 
 // How WARC crawl archives are read (see "WARC inputs" above).
 struct WarcOptions {
-  // Ids from WARC-Record-ID instead of WARC-Target-URI.
-  bool id_from_record_id = false;
+  // The field ids come from; a record without it uses the other one.
+  WarcIdSource id_source = WarcIdSource::kUri;
   // HTTP responses of any status are documents, not only 2xx.
   bool any_status = false;
   // A payload digest mismatch or a record over the size limit is an error

@@ -47,9 +47,6 @@ struct QueryRequest {
   uint32_t rows = 0;
 };
 
-// Parses "jaccard" or "containment" (InvalidArgument otherwise).
-absl::StatusOr<Measure> ParseMeasure(std::string_view name);
-
 // The match settings of a query against an index with `stored` settings;
 // bands and rows are always set (never 0): when they differ from the stored
 // ones, the reader that answers the query must be re-banded to them

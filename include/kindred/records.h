@@ -10,6 +10,7 @@
 #ifndef KINDRED_RECORDS_H_
 #define KINDRED_RECORDS_H_
 
+#include <cstdint>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -53,15 +54,42 @@ class RecordWriter {
   // which cannot be split back when an item holds a space: TSV/CSV records
   // of id lists write one row per item instead (see WriteGroupRecords).
   void StringList(absl::Span<const std::string_view> values);
+  // true or false.
+  void Bool(bool value);
+  // A number with `decimals` digits after the point ("%.*f").
+  void Fixed(double value, int decimals);
+  // A number in the shortest of fixed and exponent form, 6 significant
+  // digits ("%g": 0.8, 1e-05).
+  void Real(double value);
+  // A list of numbers: a JSON array; in TSV/CSV the numbers joined by a
+  // space.
+  void NumberList(absl::Span<const uint64_t> values);
   void EndRow();
+
+  // Lists of lists and of nested records, JSON Lines only (a TSV or CSV row
+  // holds no nesting; a command offers them in JSON only). BeginList opens a
+  // field holding a JSON array; each ListItem or NumberItem adds one element
+  // to it; EndList closes it.
+  void BeginList();
+  // An element that is a nested record with `columns`: fill its fields with
+  // the writer returned (which appends to the same string), then call its
+  // EndItem() (no line break) before the next element.
+  RecordWriter ListItem(std::vector<std::string> columns);
+  // An element that is a list of numbers.
+  void NumberItem(absl::Span<const uint64_t> values);
+  void EndList();
+  // Ends a nested record of ListItem.
+  void EndItem();
 
  private:
   void BeginField();
+  void NextItem();
 
   RecordFormat format_;
   std::vector<std::string> columns_;
   std::string* out_;
   size_t field_ = 0;
+  bool list_started_ = false;  // an element was added to the open list
 };
 
 // The three record kinds of a sweep. `ids` maps document index to id.

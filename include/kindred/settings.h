@@ -12,8 +12,10 @@
 
 #include <cstdint>
 #include <string>
+#include <string_view>
 
 #include "absl/status/status.h"
+#include "absl/status/statusor.h"
 
 namespace kindred {
 
@@ -95,6 +97,15 @@ struct MatchSettings {
 const char* ShingleModeName(ShingleMode mode);
 const char* SignerSchemeName(SignerScheme scheme);
 const char* MeasureName(Measure measure);
+
+// The inverses of the names above, for every front end (options, request
+// fields, grids). An unknown name is InvalidArgument naming the setting as
+// its option and request field are named: "shingle: expected word or char,
+// not \"x\"", "signer: expected oph or classic, not \"x\"", "measure:
+// expected jaccard or containment, not \"x\"".
+absl::StatusOr<ShingleMode> ParseShingleMode(std::string_view name);
+absl::StatusOr<SignerScheme> ParseSignerScheme(std::string_view name);
+absl::StatusOr<Measure> ParseMeasure(std::string_view name);
 
 }  // namespace kindred
 

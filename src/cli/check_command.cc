@@ -6,35 +6,21 @@
 #include <cmath>
 #include <cstdio>
 
-#include "absl/strings/str_cat.h"
-#include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "cli/common_options.h"
 #include "cli/formats.h"
+#include "cli/index_batch.h"
 #include "cli/index_options.h"
-#include "cli/output.h"
 #include "core/plural.h"
 #include "kindred/index.h"
-#include "kindred/index_match.h"
 #include "kindred/index_query.h"
-#include "kindred/records.h"
-#include "kindred/signed_corpus.h"
-#include "kindred/text.h"
 
 namespace kindred::cli {
 namespace {
 
 struct CheckFlags {
-  std::string index;
-  std::vector<std::string> inputs;
-  InputFlags input;
-  SignatureFlags signature;
-  MatchFlags match;
-  GeneralFlags general;
-  std::string format = "jsonl";
+  BatchFlags batch;
   bool fail_on_match = false;
-  uint64_t max_bucket = kDefaultMaxBucket;
-  GivenOptions given;
 };
 
 // Median, 99th percentile and largest of the per-document match times
@@ -52,14 +38,10 @@ void PrintLatencies(std::vector<double> seconds) {
                Counted(seconds.size(), "document").c_str());
 }
 
-int RunCheck(const CheckFlags& flags) {
-  auto format = ParseRecordFormat(flags.format);
-  if (!format.ok()) return Fail(kExitUsage, format.status());
-  auto input_options = ToInputOptions(flags.input);
-  if (!input_options.ok()) return Fail(kExitUsage, input_options.status());
-  if (absl::Status valid = ValidMaxBucket(flags.max_bucket); !valid.ok()) {
-    return Fail(kExitUsage, valid);
-  }
+int RunCheck(const CheckFlags& check) {
+  const BatchFlags& flags = check.batch;
+  BatchRequest request;
+  if (int code = ParseBatchFlags(flags, &request); code != kExitOk) return code;
   ReportStaleTempFiles(flags.index);
   auto reader = IndexReader::Open(flags.index);
   if (!reader.ok()) return Fail(reader.status());
@@ -67,48 +49,28 @@ int RunCheck(const CheckFlags& flags) {
     std::fprintf(stderr, "kindred: warning: index %s has a torn tail of %s (ignored)\n",
                  flags.index.c_str(), Counted((*reader)->torn_tail_bytes(), "byte").c_str());
   }
-  MatchSettings match;
+  MatchedBatch batch;
   if (int code =
-          PrepareIndexQuery(flags.signature, flags.match, flags.given, reader->get(), &match);
+          MatchBatch(flags, request, reader->get(), std::nullopt, flags.general.verbose, &batch);
       code != kExitOk) {
     return code;
   }
-  const int threads = ThreadCount(flags.general);
-  SignedCorpus uploads((*reader)->settings().signature.perms);
-  SignStats stats;
-  if (absl::Status status = SignInputs(flags.inputs, *input_options,
-                                       (*reader)->settings().signature, threads, &uploads, &stats);
-      !status.ok()) {
-    return Fail(kExitInput, status);
-  }
-  IndexMatchOptions options{match, threads, false};
-  options.max_bucket = flags.max_bucket;
-  uint64_t crowded = 0;
-  options.crowded_keys = &crowded;
-  std::vector<double> latencies;
-  if (flags.general.verbose) options.query_seconds = &latencies;
-  auto matches = MatchForQuery(**reader, uploads, std::nullopt, options);
-  if (!matches.ok()) return Fail(matches.status());
-  std::string out;
-  WriteMatchRecords(*format, *matches, **reader, uploads, &out);
-  if (absl::Status written = WriteOutputFile("-", out); !written.ok()) {
-    return Fail(kExitOutput, written);
-  }
-  size_t matched_count = CountMatchedUploads(*matches, uploads.size());
+  if (int code = WriteBatchMatches(request, batch, **reader); code != kExitOk) return code;
+  const size_t matched_count = CountMatchedUploads(batch.matches, batch.documents->size());
   if (!flags.general.quiet) {
     std::fprintf(stderr,
                  "kindred check: %s checked against %u indexed (%s >= %g, %s): %s indexed "
                  "documents, %llu empty\n",
-                 Counted(uploads.size(), "document").c_str(), (*reader)->live_count(),
-                 MeasureName(match.measure), match.threshold,
+                 Counted(batch.documents->size(), "document").c_str(), (*reader)->live_count(),
+                 MeasureName(batch.match.measure), batch.match.threshold,
                  BandsByRows((*reader)->bands(), (*reader)->rows()).c_str(),
                  // the verb: "1 matches", "2 match"
                  Counted(matched_count, "matches", "match").c_str(),
-                 static_cast<unsigned long long>(stats.empty_documents));
-    PrintCrowdedKeys(crowded, flags.max_bucket);
+                 static_cast<unsigned long long>(batch.stats.empty_documents));
+    PrintCrowdedKeys(batch.crowded_keys, flags.max_bucket);
   }
-  if (flags.general.verbose && !latencies.empty()) PrintLatencies(latencies);
-  return flags.fail_on_match && matched_count > 0 ? kExitMatched : kExitOk;
+  if (flags.general.verbose && !batch.latencies.empty()) PrintLatencies(batch.latencies);
+  return check.fail_on_match && matched_count > 0 ? kExitMatched : kExitOk;
 }
 
 }  // namespace
@@ -117,20 +79,15 @@ void RegisterCheck(CLI::App& app, int* exit_code) {
   auto flags = std::make_shared<CheckFlags>();
   CLI::App* command =
       app.add_subcommand("check", "Match documents (uploads) against an index without changing it");
-  command->add_option("index", flags->index, "the index file")->required();
-  AddInputsArgument(command, &flags->inputs)->required();
-  AddInputOptions(command, &flags->input);
-  AddSignatureOptions(command, &flags->signature);
-  AddMatchOptions(command, &flags->match);
-  AddMaxBucketOption(command, &flags->max_bucket);
-  AddFormatOption(command, &flags->format, {"jsonl", "tsv", "csv"});
+  AddBatchOptions(command, &flags->batch, /*stored_priority=*/false);
+  AddFormatOption(command, &flags->batch.format, {"jsonl", "tsv", "csv"});
   command
       ->add_flag("--fail-on-match", flags->fail_on_match,
                  "exit with status 1 when any document matches an indexed document")
       ->group("Output");
-  AddGeneralOptions(command, &flags->general);
+  AddGeneralOptions(command, &flags->batch.general);
   command->callback([flags, command, exit_code] {
-    flags->given = OptionsGiven(command);
+    flags->batch.given = OptionsGiven(command);
     *exit_code = RunCheck(*flags);
   });
 }

@@ -9,6 +9,27 @@
 #include "kindred/parallel.h"
 
 namespace kindred::cli {
+namespace {
+
+void AddWarcInputOptions(CLI::App* command, InputFlags* flags) {
+  command
+      ->add_option("--warc-id", flags->warc_id,
+                   "WARC inputs: document ids from the record's uri (WARC-Target-URI) or "
+                   "record-id (WARC-Record-ID)")
+      ->default_str("uri")
+      ->group("Input");
+  command
+      ->add_flag("--warc-any-status", flags->warc_any_status,
+                 "WARC inputs: HTTP responses of any status are documents, not only 2xx")
+      ->group("Input");
+  command
+      ->add_flag("--warc-strict", flags->warc_strict,
+                 "WARC inputs: a payload digest mismatch or a record over --max-document-size "
+                 "is an error, not counted and skipped")
+      ->group("Input");
+}
+
+}  // namespace
 
 void AddInputOptions(CLI::App* command, InputFlags* flags) {
   command
@@ -55,21 +76,7 @@ void AddInputOptions(CLI::App* command, InputFlags* flags) {
                    "decompression bombs; 0 = no limit")
       ->default_str("4G")
       ->group("Input");
-  command
-      ->add_option("--warc-id", flags->warc_id,
-                   "WARC inputs: document ids from the record's uri (WARC-Target-URI) or "
-                   "record-id (WARC-Record-ID)")
-      ->default_str("uri")
-      ->group("Input");
-  command
-      ->add_flag("--warc-any-status", flags->warc_any_status,
-                 "WARC inputs: HTTP responses of any status are documents, not only 2xx")
-      ->group("Input");
-  command
-      ->add_flag("--warc-strict", flags->warc_strict,
-                 "WARC inputs: a payload digest mismatch or a record over --max-document-size "
-                 "is an error, not counted and skipped")
-      ->group("Input");
+  AddWarcInputOptions(command, flags);
 }
 
 void AddPriorityFieldOption(CLI::App* command, InputFlags* flags, bool stored) {
@@ -89,24 +96,12 @@ CLI::Option* AddInputsArgument(CLI::App* command, std::vector<std::string>* inpu
 
 absl::StatusOr<InputOptions> ToInputOptions(const InputFlags& flags, bool verbose) {
   InputOptions options;
-  if (flags.format == "auto") {
-    options.format = InputFormat::kAuto;
-  } else if (flags.format == "text") {
-    options.format = InputFormat::kText;
-  } else if (flags.format == "jsonl") {
-    options.format = InputFormat::kJsonLines;
-  } else if (flags.format == "warc") {
-    options.format = InputFormat::kWarc;
-  } else {
-    return absl::InvalidArgumentError(absl::StrCat(
-        "--input-format: expected auto, text, jsonl or warc, not \"", flags.format, "\""));
-  }
-  if (flags.warc_id == "uri" || flags.warc_id == "record-id") {
-    options.warc.id_from_record_id = flags.warc_id == "record-id";
-  } else {
-    return absl::InvalidArgumentError(
-        absl::StrCat("--warc-id: expected uri or record-id, not \"", flags.warc_id, "\""));
-  }
+  absl::StatusOr<InputFormat> format = ParseInputFormat(flags.format);
+  if (!format.ok()) return AsOptionError(format.status());
+  options.format = *format;
+  absl::StatusOr<WarcIdSource> warc_id = ParseWarcIdSource(flags.warc_id);
+  if (!warc_id.ok()) return AsOptionError(warc_id.status());
+  options.warc.id_source = *warc_id;
   options.warc.any_status = flags.warc_any_status;
   options.warc.strict = flags.warc_strict;
   options.id_field = flags.id_field;
@@ -158,22 +153,12 @@ void AddSignatureOptions(CLI::App* command, SignatureFlags* flags) {
 
 absl::StatusOr<SignatureSettings> ToSignatureSettings(const SignatureFlags& flags) {
   SignatureSettings settings;
-  if (flags.shingle == "word") {
-    settings.mode = ShingleMode::kWord;
-  } else if (flags.shingle == "char") {
-    settings.mode = ShingleMode::kChar;
-  } else {
-    return absl::InvalidArgumentError(
-        absl::StrCat("--shingle: expected word or char, not \"", flags.shingle, "\""));
-  }
-  if (flags.signer == "oph") {
-    settings.scheme = SignerScheme::kOnePermutation;
-  } else if (flags.signer == "classic") {
-    settings.scheme = SignerScheme::kClassic;
-  } else {
-    return absl::InvalidArgumentError(
-        absl::StrCat("--signer: expected oph or classic, not \"", flags.signer, "\""));
-  }
+  absl::StatusOr<ShingleMode> mode = ParseShingleMode(flags.shingle);
+  if (!mode.ok()) return AsOptionError(mode.status());
+  settings.mode = *mode;
+  absl::StatusOr<SignerScheme> scheme = ParseSignerScheme(flags.signer);
+  if (!scheme.ok()) return AsOptionError(scheme.status());
+  settings.scheme = *scheme;
   settings.k = flags.k;
   settings.perms = flags.perms;
   settings.seed = flags.seed;
@@ -230,14 +215,9 @@ absl::StatusOr<MatchSettings> ToMatchSettings(const MatchFlags& flags,
   match.bands = flags.bands;
   match.rows = flags.rows;
   match.min_contained_size = flags.min_contained_size;
-  if (flags.measure == "jaccard") {
-    match.measure = Measure::kJaccard;
-  } else if (flags.measure == "containment") {
-    match.measure = Measure::kContainment;
-  } else {
-    return absl::InvalidArgumentError(
-        absl::StrCat("--measure: expected jaccard or containment, not \"", flags.measure, "\""));
-  }
+  absl::StatusOr<Measure> measure = ParseMeasure(flags.measure);
+  if (!measure.ok()) return AsOptionError(measure.status());
+  match.measure = *measure;
   if (absl::Status status = match.Validate(signature); !status.ok()) return status;
   return match;
 }
@@ -250,6 +230,10 @@ void AddGeneralOptions(CLI::App* command, GeneralFlags* flags) {
   command->add_flag("-q,--quiet", flags->quiet, "no progress and no summary on stderr");
   command->add_flag("-v,--verbose", flags->verbose,
                     "also report documents with invalid UTF-8 and timings");
+}
+
+absl::Status AsOptionError(const absl::Status& status) {
+  return absl::Status(status.code(), absl::StrCat("--", status.message()));
 }
 
 int ThreadCount(const GeneralFlags& flags) {

@@ -79,6 +79,11 @@ void AddMaxBucketOption(CLI::App* command, uint64_t* max_bucket);
 absl::Status ValidMaxBucket(uint64_t max_bucket);
 int ThreadCount(const GeneralFlags& flags);
 
+// A library's error for a name it does not know, which names the setting as
+// its option is named ("shingle: expected word or char, not \"x\""), as the
+// option's error ("--shingle: ...").
+absl::Status AsOptionError(const absl::Status& status);
+
 }  // namespace kindred::cli
 
 #endif  // KINDRED_CLI_COMMON_OPTIONS_H_

@@ -180,48 +180,66 @@ std::string MarkedTexts(const Subject& subject, const Explanation& e, bool color
       RepairUtf8(MarkSpans(subject.text_b, e.marked_b, open, close)));
 }
 
-void AppendSpans(const std::vector<TextSpan>& spans, std::string* out) {
-  *out += "[";
-  for (size_t i = 0; i < spans.size(); ++i) {
-    *out += absl::StrFormat("%s[%u,%u]", i ? "," : "", spans[i].begin, spans[i].end);
+void AppendSpans(const std::vector<TextSpan>& spans, RecordWriter* record) {
+  record->BeginList();
+  for (const TextSpan& span : spans) record->NumberItem({span.begin, span.end});
+  record->EndList();
+}
+
+void AppendPassages(const std::vector<AlignedPassage>& passages, RecordWriter* record) {
+  record->BeginList();
+  for (const AlignedPassage& p : passages) {
+    RecordWriter item = record->ListItem({"a", "b", "shingles"});
+    item.NumberList({p.a.begin, p.a.end});
+    item.NumberList({p.b.begin, p.b.end});
+    item.Number(p.shingles);
+    item.EndItem();
   }
-  *out += "]";
+  record->EndList();
 }
 
 std::string JsonRecord(const Subject& subject, const Explanation& e) {
-  std::string out = "{\"a\":";
-  AppendJsonString(&out, subject.name_a);
-  out += ",\"b\":";
-  AppendJsonString(&out, subject.name_b);
-  for (const auto& [name, value] :
-       {std::pair{"jaccard", e.jaccard}, std::pair{"estimate", e.estimate},
-        std::pair{"containment_a_in_b", e.containment_a_in_b},
-        std::pair{"containment_b_in_a", e.containment_b_in_a}}) {
-    out += absl::StrCat(",\"", name, "\":");
-    AppendSimilarity(&out, value);
+  std::vector<std::string> columns = {"a",          "b",          "jaccard",
+                                      "estimate",   "containment_a_in_b", "containment_b_in_a",
+                                      "shingles_a", "shingles_b", "shared",
+                                      "perms"};
+  if (subject.has_texts) columns.insert(columns.end(), {"marked_a", "marked_b", "passages"});
+  std::string out;
+  RecordWriter record(RecordFormat::kJsonLines, std::move(columns), &out);
+  record.String(subject.name_a);
+  record.String(subject.name_b);
+  for (double value : {e.jaccard, e.estimate, e.containment_a_in_b, e.containment_b_in_a}) {
+    record.Similarity(value);
   }
-  out += absl::StrFormat(",\"shingles_a\":%u,\"shingles_b\":%u,\"shared\":%u,\"perms\":%u",
-                         e.overlap.size_a, e.overlap.size_b, e.overlap.shared, e.settings.perms);
+  for (uint64_t value : {uint64_t{e.overlap.size_a}, uint64_t{e.overlap.size_b},
+                         uint64_t{e.overlap.shared}, uint64_t{e.settings.perms}}) {
+    record.Number(value);
+  }
   if (subject.has_texts) {
-    out += ",\"marked_a\":";
-    AppendSpans(e.marked_a, &out);
-    out += ",\"marked_b\":";
-    AppendSpans(e.marked_b, &out);
-    out += ",\"passages\":[";
-    for (size_t i = 0; i < e.passages.size(); ++i) {
-      const AlignedPassage& p = e.passages[i];
-      out += absl::StrFormat("%s{\"a\":[%u,%u],\"b\":[%u,%u],\"shingles\":%u}", i ? "," : "",
-                             p.a.begin, p.a.end, p.b.begin, p.b.end, p.shingles);
-    }
-    out += "]";
+    AppendSpans(e.marked_a, &record);
+    AppendSpans(e.marked_b, &record);
+    AppendPassages(e.passages, &record);
   }
-  return out + "}\n";
+  record.EndRow();
+  return out;
+}
+
+// --color: auto (on a terminal), always or never.
+absl::StatusOr<bool> UseColor(std::string_view color) {
+  if (color == "always") return true;
+  if (color == "never") return false;
+  if (color == "auto") return isatty(STDOUT_FILENO) == 1;
+  return absl::InvalidArgumentError("--color: expected auto, always or never");
 }
 
 int RunExplainCommand(const ExplainFlags& flags) {
   if (absl::StatusOr<InputOptions> options = ToInputOptions(flags.input); !options.ok()) {
     return Fail(kExitUsage, options.status());
   }
+  absl::StatusOr<OutputFormat> format = ParseOutputFormat(flags.format);
+  if (!format.ok()) return Fail(kExitUsage, format.status());
+  absl::StatusOr<bool> color = UseColor(flags.color);
+  if (!color.ok()) return Fail(kExitUsage, color.status());
   Subject subject;
   if (absl::Status s = LoadTexts(flags, &subject); !s.ok()) return Fail(kExitInput, s);
   absl::StatusOr<Explanation> explanation;
@@ -234,15 +252,13 @@ int RunExplainCommand(const ExplainFlags& flags) {
   }
   if (!explanation.ok()) return Fail(explanation.status());
   std::string out;
-  if (flags.format == "json") {
+  if (*format == OutputFormat::kJson) {
     out = JsonRecord(subject, *explanation);
   } else {
-    const bool color =
-        flags.color == "always" || (flags.color == "auto" && isatty(STDOUT_FILENO) == 1);
     out = Numbers(subject, *explanation);
     if (subject.has_texts) {
       out += Passages(subject, *explanation, flags.passages);
-      if (!flags.no_text) out += MarkedTexts(subject, *explanation, color);
+      if (!flags.no_text) out += MarkedTexts(subject, *explanation, *color);
     } else {
       out +=
           "\n(the index holds shingle sets, not texts: give --corpus too to "

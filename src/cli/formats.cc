@@ -22,6 +22,32 @@ std::string Describe(const std::vector<std::string>& names, const std::vector<Fo
 
 }  // namespace
 
+const char* OutputFormatName(OutputFormat format) {
+  switch (format) {
+    case OutputFormat::kText:
+      return "text";
+    case OutputFormat::kJson:
+      return "json";
+    case OutputFormat::kJsonLines:
+      return "jsonl";
+    case OutputFormat::kTsv:
+      return "tsv";
+    case OutputFormat::kCsv:
+      return "csv";
+  }
+  return "text";
+}
+
+absl::StatusOr<OutputFormat> ParseOutputFormat(std::string_view name) {
+  for (OutputFormat format : {OutputFormat::kText, OutputFormat::kJson, OutputFormat::kJsonLines,
+                              OutputFormat::kTsv, OutputFormat::kCsv}) {
+    if (name == OutputFormatName(format)) return format;
+  }
+  return absl::InvalidArgumentError(
+      absl::StrCat("--format: expected text, json, jsonl, tsv or csv, not \"",
+                   absl::string_view(name.data(), name.size()), "\""));
+}
+
 CLI::Option* AddFormatOption(CLI::App* command, std::string* format, std::vector<std::string> names,
                              std::vector<FormatAlias> aliases) {
   const std::string help = Describe(names, aliases, *format);

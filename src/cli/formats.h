@@ -13,13 +13,26 @@
 #ifndef KINDRED_CLI_FORMATS_H_
 #define KINDRED_CLI_FORMATS_H_
 
+#include <cstdint>
 #include <string>
+#include <string_view>
 #include <utility>
 #include <vector>
 
 #include "CLI/CLI.hpp"
+#include "absl/status/statusor.h"
 
 namespace kindred::cli {
+
+// The names of the vocabulary. The record formats (jsonl, tsv, csv) are the
+// library's RecordFormat (records.h): a command that writes records parses
+// them with ParseRecordFormat.
+enum class OutputFormat : uint8_t { kText, kJson, kJsonLines, kTsv, kCsv };
+
+// "text", "json", "jsonl", "tsv", "csv".
+const char* OutputFormatName(OutputFormat format);
+// The inverse of OutputFormatName (InvalidArgument for any other name).
+absl::StatusOr<OutputFormat> ParseOutputFormat(std::string_view name);
 
 struct FormatAlias {
   std::string alias;      // accepted on the command line

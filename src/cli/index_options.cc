@@ -46,7 +46,7 @@ absl::StatusOr<MatchSettings> IndexQueryMatch(const MatchFlags& flags, const Giv
   if (given.threshold) request.threshold = flags.threshold;
   if (given.measure) {
     auto measure = ParseMeasure(flags.measure);
-    if (!measure.ok()) return absl::InvalidArgumentError(absl::StrCat("--", measure.status().message()));
+    if (!measure.ok()) return AsOptionError(measure.status());
     request.measure = *measure;
   }
   request.bands = flags.bands;

@@ -74,44 +74,63 @@ std::string TextReport(const IndexReader& reader) {
   return out;
 }
 
+void AppendSegments(const IndexReader& reader, RecordWriter* record) {
+  record->BeginList();
+  for (const SegmentInfo& seg : reader.segments()) {
+    RecordWriter item = record->ListItem({"segment", "offset", "bytes", "first_doc", "documents",
+                                          "retired", "band_keys", "shingle_bytes"});
+    for (uint64_t value : {uint64_t{seg.number}, uint64_t{seg.offset}, uint64_t{seg.bytes},
+                           uint64_t{seg.first_doc}, uint64_t{seg.documents}, uint64_t{seg.retired},
+                           uint64_t{seg.band_keys}, uint64_t{seg.shingle_bytes}}) {
+      item.Number(value);
+    }
+    item.EndItem();
+  }
+  record->EndList();
+}
+
 std::string JsonReport(const IndexReader& reader) {
   const IndexSettings& s = reader.settings();
-  std::string out = "{\"index\":";
-  AppendJsonString(&out, reader.path());
-  absl::StrAppendFormat(&out,
-                        // The seed as the text form prints it: a 64-bit number does not
-                        // survive JSON readers that hold numbers as doubles.
-                        ",\"format_version\":%u,\"commit_generation\":%u,\"shingle\":\"%s\","
-                        "\"k\":%u,\"seed\":\"0x%016x\",\"signer\":\"%s\",\"perms\":%u,\"unicode\":",
-                        reader.format_version(), reader.commit_generation(),
-                        ShingleModeName(s.signature.mode), s.signature.k, s.signature.seed,
-                        SignerSchemeName(s.signature.scheme), s.signature.perms);
-  AppendJsonString(&out, s.unicode_version);
-  absl::StrAppendFormat(&out,
-                        ",\"bands\":%u,\"rows\":%u,\"threshold\":%g,\"measure\":\"%s\","
-                        "\"documents\":%u,\"live\":%u,\"file_bytes\":%u,\"committed_bytes\":%u,"
-                        "\"torn_tail_bytes\":%u,\"segments\":[",
-                        s.bands, s.rows, s.threshold, MeasureName(s.measure),
-                        reader.document_count(), reader.live_count(), reader.file_size(),
-                        reader.committed_size(), reader.torn_tail_bytes());
-  for (const SegmentInfo& seg : reader.segments()) {
-    absl::StrAppendFormat(&out,
-                          "%s{\"segment\":%u,\"offset\":%u,\"bytes\":%u,\"first_doc\":%u,"
-                          "\"documents\":%u,\"retired\":%u,\"band_keys\":%u,"
-                          "\"shingle_bytes\":%u}",
-                          seg.number == 0 ? "" : ",", seg.number, seg.offset, seg.bytes,
-                          seg.first_doc, seg.documents, seg.retired, seg.band_keys,
-                          seg.shingle_bytes);
+  std::string out;
+  RecordWriter record(RecordFormat::kJsonLines,
+                      {"index", "format_version", "commit_generation", "shingle", "k", "seed",
+                       "signer", "perms", "unicode", "bands", "rows", "threshold", "measure",
+                       "documents", "live", "file_bytes", "committed_bytes", "torn_tail_bytes",
+                       "segments"},
+                      &out);
+  record.String(reader.path());
+  record.Number(reader.format_version());
+  record.Number(reader.commit_generation());
+  record.String(ShingleModeName(s.signature.mode));
+  record.Number(s.signature.k);
+  // The seed as the text form prints it: a 64-bit number does not survive
+  // JSON readers that hold numbers as doubles.
+  record.String(absl::StrFormat("0x%016x", s.signature.seed));
+  record.String(SignerSchemeName(s.signature.scheme));
+  record.Number(s.signature.perms);
+  record.String(s.unicode_version);
+  record.Number(s.bands);
+  record.Number(s.rows);
+  record.Real(s.threshold);
+  record.String(MeasureName(s.measure));
+  for (uint64_t value : {uint64_t{reader.document_count()}, uint64_t{reader.live_count()},
+                         uint64_t{reader.file_size()}, uint64_t{reader.committed_size()},
+                         uint64_t{reader.torn_tail_bytes()}}) {
+    record.Number(value);
   }
-  out += "]}\n";
+  AppendSegments(reader, &record);
+  record.EndRow();
   return out;
 }
 
 int RunInfo(const InfoFlags& flags) {
+  absl::StatusOr<OutputFormat> format = ParseOutputFormat(flags.format);
+  if (!format.ok()) return Fail(kExitUsage, format.status());
   ReportStaleTempFiles(flags.index);
   auto reader = IndexReader::Open(flags.index);
   if (!reader.ok()) return Fail(reader.status());
-  std::string out = flags.format == "json" ? JsonReport(**reader) : TextReport(**reader);
+  std::string out =
+      *format == OutputFormat::kJson ? JsonReport(**reader) : TextReport(**reader);
   if (absl::Status written = WriteOutputFile("-", out); !written.ok()) {
     return Fail(kExitOutput, written);
   }

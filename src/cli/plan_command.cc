@@ -10,6 +10,7 @@
 //    choice), each with a header line, separated by one empty line.
 #include <cmath>
 #include <cstdio>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -17,11 +18,13 @@
 #include "absl/strings/str_format.h"
 #include "absl/strings/str_join.h"
 #include "cli/cli.h"
+#include "cli/common_options.h"
 #include "cli/formats.h"
 #include "cli/usage.h"
 #include "core/plural.h"
 #include "cli/plan_containment.h"
 #include "kindred/banding.h"
+#include "kindred/records.h"
 #include "kindred/settings.h"
 
 namespace kindred::cli {
@@ -202,42 +205,64 @@ void PrintTextChoice(const Plan& plan) {
   std::printf("Use it with: --bands %u --rows %u\n", best.banding.bands, best.banding.rows);
 }
 
-std::string CostFields(const BandingCost& c) {
-  return absl::StrFormat(
-      "\"bands\":%u,\"rows\":%u,\"slots\":%llu,\"probability_at_threshold\":%."
-      "6f,"
-      "\"probability_at_recall_point\":%.6f,\"false_negative_mass\":%.6f,"
-      "\"false_positive_mass\":%.6f,\"weighted_cost\":%.6f,\"meets_recall_"
-      "floor\":%s",
-      c.banding.bands, c.banding.rows, static_cast<unsigned long long>(c.banding.slots()),
-      c.probability_at_threshold, c.probability_at_recall_point, c.false_negative_mass,
-      c.false_positive_mass, c.weighted, c.meets_recall_floor ? "true" : "false");
+// The fields of one banding's costs, after `record` and `rank` (when set).
+void AppendCostRecord(const char* record, std::optional<size_t> rank, const BandingCost& c,
+                      std::string* out) {
+  std::vector<std::string> columns = {"record"};
+  if (rank.has_value()) columns.push_back("rank");
+  columns.insert(columns.end(),
+                 {"bands", "rows", "slots", "probability_at_threshold",
+                  "probability_at_recall_point", "false_negative_mass", "false_positive_mass",
+                  "weighted_cost", "meets_recall_floor"});
+  RecordWriter row(RecordFormat::kJsonLines, std::move(columns), out);
+  row.String(record);
+  if (rank.has_value()) row.Number(*rank);
+  row.Number(c.banding.bands);
+  row.Number(c.banding.rows);
+  row.Number(c.banding.slots());
+  for (double value : {c.probability_at_threshold, c.probability_at_recall_point,
+                       c.false_negative_mass, c.false_positive_mass, c.weighted}) {
+    row.Fixed(value, 6);
+  }
+  row.Bool(c.meets_recall_floor);
+  row.EndRow();
+}
+
+void AppendSettingsRecord(const PlanOptions& o, std::string* out) {
+  RecordWriter row(RecordFormat::kJsonLines,
+                   {"record", "threshold", "perms", "fn_weight", "fp_weight", "min_recall",
+                    "recall_point"},
+                   out);
+  row.String("settings");
+  row.Fixed(o.threshold, 6);
+  row.Number(o.perms);
+  for (double value : {o.fn_weight, o.fp_weight, o.min_recall, RecallPoint(o.threshold)}) {
+    row.Fixed(value, 6);
+  }
+  row.EndRow();
 }
 
 void PrintJsonl(const Plan& plan) {
-  const PlanOptions& o = plan.options;
-  std::printf(
-      "{\"record\":\"settings\",\"threshold\":%.6f,\"perms\":%u,\"fn_"
-      "weight\":%.6f,"
-      "\"fp_weight\":%.6f,\"min_recall\":%.6f,\"recall_point\":%.6f}\n",
-      o.threshold, o.perms, o.fn_weight, o.fp_weight, o.min_recall, RecallPoint(o.threshold));
+  std::string out;
+  AppendSettingsRecord(plan.options, &out);
+  RecordWriter curve(RecordFormat::kJsonLines,
+                     {"record", "bands", "rows", "similarity", "probability"}, &out);
   for (const BandingCost& cost : plan.curves) {
     for (double s : plan.similarities) {
-      std::printf(
-          "{\"record\":\"curve\",\"bands\":%u,\"rows\":%u,\"similarity\":%.6f,"
-          "\"probability\":%.6f}\n",
-          cost.banding.bands, cost.banding.rows, s,
-          CandidateProbability(s, cost.banding.bands, cost.banding.rows));
+      curve.String("curve");
+      curve.Number(cost.banding.bands);
+      curve.Number(cost.banding.rows);
+      curve.Fixed(s, 6);
+      curve.Fixed(CandidateProbability(s, cost.banding.bands, cost.banding.rows), 6);
+      curve.EndRow();
     }
   }
   for (const auto& [rank, cost] : TableRows(plan)) {
-    std::printf("{\"record\":\"alternative\",\"rank\":%zu,%s}\n", rank, CostFields(*cost).c_str());
+    AppendCostRecord("alternative", rank, *cost, &out);
   }
-  if (plan.has_given) {
-    std::printf("{\"record\":\"given\",\"rank\":%zu,%s}\n", plan.given_rank,
-                CostFields(plan.given).c_str());
-  }
-  std::printf("{\"record\":\"choice\",%s}\n", CostFields(plan.ranked.front()).c_str());
+  if (plan.has_given) AppendCostRecord("given", plan.given_rank, plan.given, &out);
+  AppendCostRecord("choice", std::nullopt, plan.ranked.front(), &out);
+  std::fputs(out.c_str(), stdout);
 }
 
 // The three tables separated by `sep` (tab or comma). Every field is a
@@ -281,26 +306,30 @@ void PrintDelimited(const Plan& plan, char sep) {
 
 int RunPlan(const PlanOptions& options) {
   if (absl::Status status = Validate(options); !status.ok()) return Fail(kExitUsage, status);
-  if (options.measure == "containment") {
+  absl::StatusOr<Measure> measure = ParseMeasure(options.measure);
+  if (!measure.ok()) return Fail(kExitUsage, AsOptionError(measure.status()));
+  absl::StatusOr<OutputFormat> format = ParseOutputFormat(options.format);
+  if (!format.ok()) return Fail(kExitUsage, format.status());
+  if (*measure == Measure::kContainment) {
     if (options.bands != 0) {
       return Fail(kExitUsage, absl::InvalidArgumentError(
                                   "--bands and --rows apply to --measure jaccard: a containment "
                                   "plan chooses a banding per pair of size partitions"));
     }
-    if (options.format == "csv") {
+    if (*format == OutputFormat::kCsv) {
       return Fail(kExitUsage, absl::InvalidArgumentError(
                                   "plan: --measure containment prints text, jsonl or tsv"));
     }
     return RunContainmentPlan({options.threshold, options.perms, options.fn_weight,
                                options.fp_weight, options.min_recall, options.min_contained_size,
                                options.largest_size, options.documents,
-                               options.background_containment, options.format});
+                               options.background_containment, *format});
   }
   const Plan plan = MakePlan(options);
-  if (options.format == "jsonl") {
+  if (*format == OutputFormat::kJsonLines) {
     PrintJsonl(plan);
-  } else if (options.format == "tsv" || options.format == "csv") {
-    PrintDelimited(plan, options.format == "tsv" ? '\t' : ',');
+  } else if (*format == OutputFormat::kTsv || *format == OutputFormat::kCsv) {
+    PrintDelimited(plan, *format == OutputFormat::kTsv ? '\t' : ',');
   } else {
     PrintTextHeader(plan);
     PrintTextCurves(plan);

@@ -24,6 +24,7 @@
 #include "absl/strings/str_format.h"
 #include "cli/cli.h"
 #include "kindred/containment_lsh.h"
+#include "kindred/records.h"
 
 namespace kindred::cli {
 namespace {
@@ -111,39 +112,74 @@ void PrintText(const ContainmentPlan& plan, const ContainmentPlanRequest& r) {
   }
 }
 
+void AppendSettingsRecord(const ContainmentPlanRequest& r, std::string* out) {
+  RecordWriter row(RecordFormat::kJsonLines,
+                   {"record", "measure", "threshold", "perms", "min_contained_size",
+                    "largest_size", "documents", "background_containment", "min_recall",
+                    "recall_point"},
+                   out);
+  row.String("settings");
+  row.String("containment");
+  row.Fixed(r.threshold, 6);
+  row.Number(r.perms);
+  row.Number(r.min_size);
+  row.Number(r.largest);
+  row.Number(r.documents);
+  for (double value : {r.background, r.min_recall, RecallPoint(r.threshold)}) row.Fixed(value, 6);
+  row.EndRow();
+}
+
+void AppendPairRecord(const ContainmentPlan& plan, const ContainmentPlanRequest& r,
+                      const PartitionBanding& pair, std::string* out) {
+  RecordWriter row(RecordFormat::kJsonLines,
+                   {"record", "smaller", "larger", "bands", "rows", "probability_at_threshold",
+                    "probability_at_recall_point", "false_negative_mass", "false_positive_mass",
+                    "meets_recall_floor", "false_candidate_share", "expected_false_candidates"},
+                   out);
+  row.String("pair");
+  for (uint64_t value : {uint64_t{pair.small}, uint64_t{pair.large},
+                         uint64_t{pair.banding.bands}, uint64_t{pair.banding.rows}}) {
+    row.Number(value);
+  }
+  for (double value : {pair.probability_at_threshold, pair.probability_at_recall_point,
+                       pair.false_negative_mass, pair.false_positive_mass}) {
+    row.Fixed(value, 6);
+  }
+  row.Bool(pair.meets_recall_floor);
+  row.Fixed(FalseCandidateShare(pair, r.threshold), 6);
+  row.Fixed(PairsBetween(r.documents, plan.partitions().size(), pair) *
+                CurveAt(plan, pair, r.background),
+            1);
+  row.EndRow();
+}
+
 void PrintJsonl(const ContainmentPlan& plan, const ContainmentPlanRequest& r) {
-  std::printf(
-      "{\"record\":\"settings\",\"measure\":\"containment\",\"threshold\":%.6f,\"perms\":%u,"
-      "\"min_contained_size\":%u,\"largest_size\":%u,\"documents\":%llu,"
-      "\"background_containment\":%.6f,\"min_recall\":%.6f,"
-      "\"recall_point\":%.6f}\n",
-      r.threshold, r.perms, r.min_size, r.largest, static_cast<unsigned long long>(r.documents),
-      r.background, r.min_recall, RecallPoint(r.threshold));
+  std::string out;
+  AppendSettingsRecord(r, &out);
   const auto& parts = plan.partitions();
+  RecordWriter partition(RecordFormat::kJsonLines, {"record", "partition", "lower", "upper"},
+                         &out);
   for (size_t k = 0; k < parts.size(); ++k) {
-    std::printf("{\"record\":\"partition\",\"partition\":%zu,\"lower\":%u,\"upper\":%u}\n", k,
-                parts[k].lower, parts[k].upper);
+    partition.String("partition");
+    partition.Number(k);
+    partition.Number(parts[k].lower);
+    partition.Number(parts[k].upper);
+    partition.EndRow();
   }
-  for (const PartitionBanding& pair : plan.pairs()) {
-    std::printf(
-        "{\"record\":\"pair\",\"smaller\":%u,\"larger\":%u,\"bands\":%u,\"rows\":%u,"
-        "\"probability_at_threshold\":%.6f,\"probability_at_recall_point\":%.6f,"
-        "\"false_negative_mass\":%.6f,\"false_positive_mass\":%.6f,\"meets_recall_floor\":%s,"
-        "\"false_candidate_share\":%.6f,\"expected_false_candidates\":%.1f}\n",
-        pair.small, pair.large, pair.banding.bands, pair.banding.rows,
-        pair.probability_at_threshold, pair.probability_at_recall_point, pair.false_negative_mass,
-        pair.false_positive_mass, pair.meets_recall_floor ? "true" : "false",
-        FalseCandidateShare(pair, r.threshold),
-        PairsBetween(r.documents, parts.size(), pair) * CurveAt(plan, pair, r.background));
-  }
+  for (const PartitionBanding& pair : plan.pairs()) AppendPairRecord(plan, r, pair, &out);
+  RecordWriter curve(RecordFormat::kJsonLines,
+                     {"record", "smaller", "larger", "containment", "probability"}, &out);
   for (const PartitionBanding& pair : plan.pairs()) {
     for (double c : Containments(r.threshold)) {
-      std::printf(
-          "{\"record\":\"curve\",\"smaller\":%u,\"larger\":%u,\"containment\":%.6f,"
-          "\"probability\":%.6f}\n",
-          pair.small, pair.large, c, CurveAt(plan, pair, c));
+      curve.String("curve");
+      curve.Number(pair.small);
+      curve.Number(pair.large);
+      curve.Fixed(c, 6);
+      curve.Fixed(CurveAt(plan, pair, c), 6);
+      curve.EndRow();
     }
   }
+  std::fputs(out.c_str(), stdout);
 }
 
 void PrintTsv(const ContainmentPlan& plan, const ContainmentPlanRequest& r) {
@@ -182,9 +218,9 @@ int RunContainmentPlan(const ContainmentPlanRequest& request) {
   options.fp_weight = request.fp_weight;
   options.min_recall = request.min_recall;
   const ContainmentPlan plan(options);
-  if (request.format == "jsonl") {
+  if (request.format == OutputFormat::kJsonLines) {
     PrintJsonl(plan, request);
-  } else if (request.format == "tsv") {
+  } else if (request.format == OutputFormat::kTsv) {
     PrintTsv(plan, request);
   } else {
     PrintText(plan, request);

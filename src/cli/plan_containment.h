@@ -8,6 +8,8 @@
 #include <cstdint>
 #include <string>
 
+#include "cli/formats.h"
+
 namespace kindred::cli {
 
 struct ContainmentPlanRequest {
@@ -20,7 +22,7 @@ struct ContainmentPlanRequest {
   uint32_t largest = 0;      // --largest-size: the largest document, in shingles
   uint64_t documents = 0;    // --documents: corpus size for expected candidates (0: none)
   double background = 0.02;  // --background-containment of unrelated pairs
-  std::string format = "text";
+  OutputFormat format = OutputFormat::kText;
 };
 
 // Prints the plan in `request.format` (text, jsonl or tsv) on stdout;

@@ -60,18 +60,13 @@ absl::StatusOr<TuneOptions> ToTuneOptions(const TuneFlags& flags) {
   options.grid.bandings_per_threshold = flags.bandings_per_threshold;
   options.target_recall = flags.target_recall;
   options.beta = flags.beta;
-  SignatureFlags signature;
-  signature.signer = flags.signer;
-  signature.seed = flags.seed;
-  absl::StatusOr<SignatureSettings> settings = ToSignatureSettings(signature);
-  if (!settings.ok()) return settings.status();
-  options.scheme = settings->scheme;
-  options.seed = settings->seed;
-  MatchFlags match;
-  match.measure = flags.measure;
-  absl::StatusOr<MatchSettings> measure = ToMatchSettings(match, *settings);
-  if (!measure.ok()) return measure.status();
-  options.measure = measure->measure;
+  absl::StatusOr<SignerScheme> scheme = ParseSignerScheme(flags.signer);
+  if (!scheme.ok()) return AsOptionError(scheme.status());
+  options.scheme = *scheme;
+  options.seed = flags.seed;
+  absl::StatusOr<Measure> measure = ParseMeasure(flags.measure);
+  if (!measure.ok()) return AsOptionError(measure.status());
+  options.measure = *measure;
   options.skip_unknown_ids = flags.skip_unknown;
   options.threads = ThreadCount(flags.general);
   if (absl::Status status = options.Validate(); !status.ok()) return status;
@@ -137,6 +132,8 @@ int RunTuneCommand(const TuneFlags& flags) {
   absl::StatusOr<TuneOptions> options = ToTuneOptions(flags);
   if (!options.ok()) return Fail(kExitUsage, options.status());
   if (absl::Status s = CheckFlags(flags); !s.ok()) return Fail(kExitUsage, s);
+  absl::StatusOr<OutputFormat> format = ParseOutputFormat(flags.format);
+  if (!format.ok()) return Fail(kExitUsage, format.status());
   if (absl::Status s = CheckOutputFile(flags.report); !s.ok()) return Fail(kExitOutput, s);
   absl::StatusOr<std::vector<LabelledPair>> labels = ReadLabels(flags.labels);
   if (!labels.ok()) return Fail(kExitInput, labels.status());
@@ -158,8 +155,8 @@ int RunTuneCommand(const TuneFlags& flags) {
   if (!flags.report.empty()) {
     if (int code = WriteReport(flags, report, open_corpus); code != kExitOk) return code;
   }
-  const std::string out =
-      flags.format == "jsonl" ? FormatTuneJsonLines(report) : FormatTuneText(report);
+  const std::string out = *format == OutputFormat::kJsonLines ? FormatTuneJsonLines(report)
+                                                              : FormatTuneText(report);
   if (absl::Status s = WriteOutputFile("-", out); !s.ok()) return Fail(kExitOutput, s);
   return kExitOk;
 }

@@ -7,14 +7,6 @@
 
 namespace kindred {
 
-absl::StatusOr<Measure> ParseMeasure(std::string_view name) {
-  if (name == "jaccard") return Measure::kJaccard;
-  if (name == "containment") return Measure::kContainment;
-  return absl::InvalidArgumentError(absl::StrCat("measure: expected jaccard or containment, not \"",
-                                                 absl::string_view(name.data(), name.size()),
-                                                 "\""));
-}
-
 absl::StatusOr<MatchSettings> ResolveQueryMatch(const IndexSettings& stored,
                                                 const QueryRequest& request) {
   MatchSettings match;

@@ -48,37 +48,42 @@ bool ReadId(simdjson::dom::element value, std::string* id) {
   }
 }
 
+// Copies `text` into the reusable padded buffer and parses it.
+simdjson::error_code ParseRoot(absl::string_view text, std::string* padded,
+                               simdjson::dom::parser* parser, simdjson::dom::element* root) {
+  if (padded->size() < text.size() + simdjson::SIMDJSON_PADDING) {
+    padded->resize(text.size() + simdjson::SIMDJSON_PADDING);
+  }
+  std::memcpy(padded->data(), text.data(), text.size());
+  std::memset(padded->data() + text.size(), ' ', simdjson::SIMDJSON_PADDING);
+  return parser->parse(padded->data(), text.size(), false).get(*root);
+}
+
+// Parses `line`. Text is UTF-8 with replacement (ill-formed sequences
+// become U+FFFD and are counted in *invalid_utf8), in JSON Lines as in text
+// files: a crawled line with a broken byte is read, not rejected.
+simdjson::error_code ParseRepairing(absl::string_view line, std::string* padded,
+                                    std::string* repaired, simdjson::dom::parser* parser,
+                                    simdjson::dom::element* root, uint32_t* invalid_utf8) {
+  *invalid_utf8 = 0;
+  simdjson::error_code error = ParseRoot(line, padded, parser, root);
+  if (error != simdjson::UTF8_ERROR) return error;
+  icu::UnicodeString decoded;
+  *invalid_utf8 = text_internal::DecodeUtf8(std::string_view(line.data(), line.size()), &decoded);
+  repaired->clear();
+  text_internal::AppendUtf8(decoded.getBuffer(), 0, decoded.length(), repaired);
+  return ParseRoot(*repaired, padded, parser, root);
+}
+
 }  // namespace
 
 absl::Status JsonLineParser::Parse(absl::string_view line, absl::string_view path,
                                    uint64_t line_number, Document* doc) {
   // "file:line", made only for a message (not for every line).
   const auto where = [&] { return absl::StrCat(path, ":", line_number); };
-  // Copies `text` into the reusable padded buffer and parses it.
-  const auto parse_root = [this](absl::string_view text, simdjson::dom::element* root) {
-    std::string& padded = state_->padded;
-    if (padded.size() < text.size() + simdjson::SIMDJSON_PADDING) {
-      padded.resize(text.size() + simdjson::SIMDJSON_PADDING);
-    }
-    std::memcpy(padded.data(), text.data(), text.size());
-    std::memset(padded.data() + text.size(), ' ', simdjson::SIMDJSON_PADDING);
-    return state_->parser.parse(padded.data(), text.size(), false).get(*root);
-  };
   simdjson::dom::element root;
-  doc->invalid_utf8 = 0;
-  simdjson::error_code error = parse_root(line, &root);
-  if (error == simdjson::UTF8_ERROR) {
-    // Text is UTF-8 with replacement (ill-formed sequences become U+FFFD and
-    // are counted), in JSON Lines as in text files: a crawled line with a
-    // broken byte is read, not rejected.
-    icu::UnicodeString decoded;
-    doc->invalid_utf8 =
-        text_internal::DecodeUtf8(std::string_view(line.data(), line.size()), &decoded);
-    std::string& repaired = state_->repaired;
-    repaired.clear();
-    text_internal::AppendUtf8(decoded.getBuffer(), 0, decoded.length(), &repaired);
-    error = parse_root(repaired, &root);
-  }
+  const simdjson::error_code error = ParseRepairing(
+      line, &state_->padded, &state_->repaired, &state_->parser, &root, &doc->invalid_utf8);
   if (error) {
     return absl::InvalidArgumentError(
         absl::StrCat(where(), ": invalid JSON: ", simdjson::error_message(error)));

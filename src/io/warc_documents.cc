@@ -160,8 +160,9 @@ absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc
   const WarcHeader& header = record.header;
   absl::string_view uri = StripAngles(header.Field("WARC-Target-URI"));
   absl::string_view record_id = header.Field("WARC-Record-ID");
-  absl::string_view id = options_.warc.id_from_record_id ? record_id : uri;
-  if (id.empty()) id = options_.warc.id_from_record_id ? uri : record_id;
+  const bool by_record_id = options_.warc.id_source == WarcIdSource::kRecordId;
+  absl::string_view id = by_record_id ? record_id : uri;
+  if (id.empty()) id = by_record_id ? uri : record_id;
   doc->id.assign(id.data(), id.size());
   doc->priority = 0;
   doc->has_priority = false;

@@ -17,7 +17,7 @@
 // same documents.
 //
 // The id is WARC-Target-URI (angle brackets of WARC 1.0 writers removed), or
-// WARC-Record-ID with WarcOptions::id_from_record_id; a record without the
+// WARC-Record-ID with WarcOptions::id_source; a record without the
 // chosen field uses the other one.
 //
 // The text: HTTP transfer and content codings removed (a payload that does

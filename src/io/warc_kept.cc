@@ -57,6 +57,29 @@ absl::Status FindDrops(const std::string& path, const InputOptions& options, uin
   }
 }
 
+// Whether a record that is not a document is written: warcinfo always,
+// others unless linked to a dropped document.
+bool KeepsOther(const Drops& drops, const WarcHeader& header) {
+  if (absl::EqualsIgnoreCase(header.Field("WARC-Type"), "warcinfo")) return true;
+  if (drops.named_by_dropped.contains(header.Field("WARC-Record-ID"))) return false;
+  for (const std::string& id : Related(header)) {
+    if (drops.dropped.contains(id)) return false;
+  }
+  return true;
+}
+
+// Writes a whole record as it was read, as one member of the output.
+absl::Status WriteRecord(const WarcRecord& record, OutputFile* out, WarcKeptCounts* counts) {
+  for (absl::string_view part :
+       {absl::string_view(record.header.raw), absl::string_view(record.block),
+        absl::string_view(record.trailer)}) {
+    if (absl::Status s = out->Append(part); !s.ok()) return s;
+  }
+  if (absl::Status s = out->EndMember(); !s.ok()) return s;
+  ++counts->records;
+  return absl::OkStatus();
+}
+
 }  // namespace
 
 absl::Status CopyKeptRecords(const std::string& path, const InputOptions& options,
@@ -68,22 +91,10 @@ absl::Status CopyKeptRecords(const std::string& path, const InputOptions& option
     return found;
   }
   const std::vector<bool>& kept_docs = drops.kept_docs;
-  const auto& dropped = drops.dropped;
-  const auto& named_by_dropped = drops.named_by_dropped;
   auto records = Open(path, options);
   if (!records.ok()) return records.status();
   WarcRecord record;
   size_t doc = 0;
-  // Whether a record that is not a document is written: warcinfo always,
-  // others unless linked to a dropped document.
-  auto keeps_other = [&](const WarcHeader& header) {
-    if (absl::EqualsIgnoreCase(header.Field("WARC-Type"), "warcinfo")) return true;
-    if (named_by_dropped.contains(header.Field("WARC-Record-ID"))) return false;
-    for (const std::string& id : Related(header)) {
-      if (dropped.contains(id)) return false;
-    }
-    return true;
-  };
   for (;;) {
     // A block too large to hold (never a document) is written as it streams
     // by, after its header.
@@ -92,7 +103,7 @@ absl::Status CopyKeptRecords(const std::string& path, const InputOptions& option
         [&](absl::string_view bytes) -> absl::Status {
       if (!started) {
         started = true;
-        writing = keeps_other(record.header);
+        writing = KeepsOther(drops, record.header);
         if (writing) {
           if (absl::Status s = out->Append(record.header.raw); !s.ok()) return s;
         }
@@ -118,16 +129,10 @@ absl::Status CopyKeptRecords(const std::string& path, const InputOptions& option
       }
       continue;
     } else {
-      write = keeps_other(record.header);
+      write = KeepsOther(drops, record.header);
     }
     if (!write) continue;
-    for (absl::string_view part :
-         {absl::string_view(record.header.raw), absl::string_view(record.block),
-          absl::string_view(record.trailer)}) {
-      if (absl::Status s = out->Append(part); !s.ok()) return s;
-    }
-    if (absl::Status s = out->EndMember(); !s.ok()) return s;
-    ++counts->records;
+    if (absl::Status s = WriteRecord(record, out, counts); !s.ok()) return s;
   }
   return absl::OkStatus();
 }

@@ -46,19 +46,12 @@ std::string ShingleChoice::ToString() const { return absl::StrCat(ShingleModeNam
 absl::StatusOr<ShingleChoice> ParseShingleChoice(std::string_view text) {
   const size_t colon = text.find(':');
   ShingleChoice choice;
-  const std::string_view mode = text.substr(0, colon);
-  if (mode == "word") {
-    choice.mode = ShingleMode::kWord;
-  } else if (mode == "char") {
-    choice.mode = ShingleMode::kChar;
-  } else {
+  absl::StatusOr<ShingleMode> mode = ParseShingleMode(text.substr(0, colon));
+  if (!mode.ok() || colon == std::string_view::npos) {
     return absl::InvalidArgumentError(
         absl::StrCat("shingle setting \"", std::string(text), "\": expected word:K or char:K"));
   }
-  if (colon == std::string_view::npos) {
-    return absl::InvalidArgumentError(
-        absl::StrCat("shingle setting \"", std::string(text), "\": expected word:K or char:K"));
-  }
+  choice.mode = *mode;
   const std::string k(text.substr(colon + 1));
   absl::StatusOr<uint32_t> value = ParseCount(k, "shingle size");
   if (!value.ok()) return value.status();

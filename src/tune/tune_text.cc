@@ -115,50 +115,73 @@ std::string HistogramText(const TuneReportInput& input) {
 
 void AppendSettingRecord(const SettingScore& s, size_t rank, const TuneResult& r,
                          std::string* out) {
-  *out += absl::StrFormat(
-      "{\"record\":\"setting\",\"rank\":%u,\"shingle\":\"%"
-      "s\",\"k\":%u,\"perms\":%u,"
-      "\"bands\":%u,\"rows\":%u,\"threshold\":%.2f,"
-      "\"banding_rank\":%u,\"meets_target\":%s,",
-      rank, ShingleModeName(s.setting.shingle.mode), s.setting.shingle.k, s.setting.perms,
-      s.setting.banding.bands, s.setting.banding.rows, s.setting.threshold, s.setting.banding_rank,
-      s.meets_target ? "true" : "false");
-  for (const auto& [name, value] :
-       {std::pair{"precision", s.labels.precision}, std::pair{"recall", s.labels.recall},
-        std::pair{"f1", s.labels.f1}, std::pair{"fbeta", s.labels.fbeta}}) {
-    *out += absl::StrCat("\"", name, "\":");
-    AppendSimilarity(out, value);
-    *out += ",";
+  RecordWriter row(RecordFormat::kJsonLines,
+                   {"record", "rank", "shingle", "k", "perms", "bands", "rows", "threshold",
+                    "banding_rank", "meets_target", "precision", "recall", "f1", "fbeta",
+                    "true_positives", "false_positives", "false_negatives", "true_negatives",
+                    "candidate_pairs", "candidates_per_document", "wrong_lines"},
+                   out);
+  row.String("setting");
+  row.Number(rank);
+  row.String(ShingleModeName(s.setting.shingle.mode));
+  for (uint64_t value : {uint64_t{s.setting.shingle.k}, uint64_t{s.setting.perms},
+                         uint64_t{s.setting.banding.bands}, uint64_t{s.setting.banding.rows}}) {
+    row.Number(value);
   }
-  *out += absl::StrFormat(
-      "\"true_positives\":%u,\"false_positives\":%u,\"false_negatives\":%u,"
-      "\"true_negatives\":%u,\"candidate_pairs\":%u,\"candidates_per_"
-      "document\":%.6f,"
-      "\"wrong_lines\":[",
-      s.labels.true_positives, s.labels.false_positives, s.labels.false_negatives,
-      s.labels.true_negatives, s.candidate_pairs, s.candidates_per_document);
-  for (size_t i = 0; i < s.wrong.size(); ++i) {
-    *out += absl::StrCat(i ? "," : "", r.labels[r.labelled[s.wrong[i]].label].line);
+  row.Fixed(s.setting.threshold, 2);
+  row.Number(s.setting.banding_rank);
+  row.Bool(s.meets_target);
+  for (double value : {s.labels.precision, s.labels.recall, s.labels.f1, s.labels.fbeta}) {
+    row.Similarity(value);
   }
-  *out += "]}\n";
+  for (uint64_t value : {uint64_t{s.labels.true_positives}, uint64_t{s.labels.false_positives},
+                         uint64_t{s.labels.false_negatives}, uint64_t{s.labels.true_negatives},
+                         uint64_t{s.candidate_pairs}}) {
+    row.Number(value);
+  }
+  row.Fixed(s.candidates_per_document, 6);
+  std::vector<uint64_t> lines;
+  for (uint32_t wrong : s.wrong) lines.push_back(r.labels[r.labelled[wrong].label].line);
+  row.NumberList(lines);
+  row.EndRow();
 }
 
 void AppendWrongRecord(const TuneReportInput& input, uint32_t i, std::string* out) {
   const TuneResult& r = *input.result;
   const LabelledPair& label = r.labels[r.labelled[i].label];
   const PairMeasure& m = r.ShinglesOf(r.recommended().setting).labelled[i];
-  *out += "{\"record\":\"wrong\",\"a\":";
-  AppendJsonString(out, label.a);
-  *out += ",\"b\":";
-  AppendJsonString(out, label.b);
-  *out += absl::StrFormat(",\"line\":%u,\"label\":\"%s\",\"jaccard\":", label.line,
-                          label.duplicate ? "duplicate" : "distinct");
-  AppendSimilarity(out, m.jaccard);
-  *out += ",\"measure\":";
-  AppendSimilarity(out, m.measure);
-  *out += ",\"estimate\":";
-  AppendSimilarity(out, r.SignatureOf(r.recommended().setting).estimates[i]);
-  *out += absl::StrCat(",\"reason\":\"", WrongReason(r, *input.options, i), "\"}\n");
+  RecordWriter row(RecordFormat::kJsonLines,
+                   {"record", "a", "b", "line", "label", "jaccard", "measure", "estimate", "reason"},
+                   out);
+  row.String("wrong");
+  row.String(label.a);
+  row.String(label.b);
+  row.Number(label.line);
+  row.String(label.duplicate ? "duplicate" : "distinct");
+  row.Similarity(m.jaccard);
+  row.Similarity(m.measure);
+  row.Similarity(r.SignatureOf(r.recommended().setting).estimates[i]);
+  row.String(WrongReason(r, *input.options, i));
+  row.EndRow();
+}
+
+void AppendSummaryRecord(const TuneReportInput& input, std::string* out) {
+  const TuneResult& r = *input.result;
+  const uint32_t duplicates = CountDuplicates(r);
+  RecordWriter row(RecordFormat::kJsonLines,
+                   {"record", "documents", "labelled_pairs", "duplicate", "distinct", "settings",
+                    "target_recall", "beta", "measure", "target_met"},
+                   out);
+  row.String("summary");
+  for (uint64_t value : {uint64_t{r.documents}, uint64_t{r.labelled.size()}, uint64_t{duplicates},
+                         uint64_t{r.labelled.size() - duplicates}, uint64_t{r.ranking.size()}}) {
+    row.Number(value);
+  }
+  row.Fixed(input.options->target_recall, 6);
+  row.Fixed(input.options->beta, 6);
+  row.String(MeasureName(input.options->measure));
+  row.Bool(r.target_met);
+  row.EndRow();
 }
 
 }  // namespace
@@ -176,28 +199,24 @@ std::string FormatTuneText(const TuneReportInput& input) {
 
 std::string FormatTuneJsonLines(const TuneReportInput& input) {
   const TuneResult& r = *input.result;
-  const uint32_t duplicates = CountDuplicates(r);
-  std::string out = absl::StrFormat(
-      "{\"record\":\"summary\",\"documents\":%u,\"labelled_pairs\":%u,"
-      "\"duplicate\":%u,"
-      "\"distinct\":%u,\"settings\":%u,\"target_recall\":%.6f,\"beta\":%.6f,"
-      "\"measure\":\"%s\","
-      "\"target_met\":%s}\n",
-      r.documents, r.labelled.size(), duplicates, r.labelled.size() - duplicates, r.ranking.size(),
-      input.options->target_recall, input.options->beta, MeasureName(input.options->measure),
-      r.target_met ? "true" : "false");
+  std::string out;
+  AppendSummaryRecord(input, &out);
   for (size_t i = 0; i < r.ranking.size(); ++i) AppendSettingRecord(r.ranking[i], i + 1, r, &out);
   for (uint32_t i : r.recommended().wrong) AppendWrongRecord(input, i, &out);
   const SimilarityHistogram& histogram = r.SignatureOf(r.recommended().setting).best_histogram;
+  RecordWriter bins(RecordFormat::kJsonLines, {"record", "from", "to", "pairs"}, &out);
   for (size_t bin = 0; bin < histogram.size(); ++bin) {
-    out += absl::StrFormat("{\"record\":\"histogram\",\"from\":%.2f,\"to\":%.2f,\"pairs\":%u}\n",
-                           bin / 20.0, (bin + 1) / 20.0, histogram[bin]);
+    bins.String("histogram");
+    bins.Fixed(bin / 20.0, 2);
+    bins.Fixed((bin + 1) / 20.0, 2);
+    bins.Number(histogram[bin]);
+    bins.EndRow();
   }
-  out += "{\"record\":\"recommendation\",\"setting\":";
-  AppendJsonString(&out, r.recommended().setting.ToString());
-  out += ",\"command\":";
-  AppendJsonString(&out, SweepCommandLine(r.recommended().setting, *input.options, input.inputs));
-  out += "}\n";
+  RecordWriter recommendation(RecordFormat::kJsonLines, {"record", "setting", "command"}, &out);
+  recommendation.String("recommendation");
+  recommendation.String(r.recommended().setting.ToString());
+  recommendation.String(SweepCommandLine(r.recommended().setting, *input.options, input.inputs));
+  recommendation.EndRow();
   return out;
 }
 

@@ -44,7 +44,8 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   const std::string& path = kindred::fuzz::WriteScratch(data + 1, size - 1, ".warc");
   kindred::InputOptions options;
   options.format = kindred::InputFormat::kWarc;
-  options.warc.id_from_record_id = (control & 1) != 0;
+  options.warc.id_source =
+      (control & 1) != 0 ? kindred::WarcIdSource::kRecordId : kindred::WarcIdSource::kUri;
   options.warc.any_status = (control & 2) != 0;
   options.max_document_bytes = (control & 4) != 0 ? 4096 : 65536;
   options.warc.strict = (control & 8) != 0;
