@@ -103,7 +103,7 @@ int RunAdd(const AddFlags& flags) {
   auto matches = MatchForQuery(**reader, batch, *policy, options);
   if (!matches.ok()) return Fail(matches.status());
   auto appended = writer->Append(batch, *policy);
-  if (!appended.ok()) return Fail(IndexWriteExitCode(appended.status()), appended.status());
+  if (!appended.ok()) return Fail(appended.status());
   std::string out;
   WriteMatchRecords(*format, *matches, **reader, batch, &out);
   if (absl::Status written = WriteOutputFile("-", out); !written.ok()) {

@@ -20,6 +20,7 @@
 #include "io/byte_stream.h"
 #include "io/output_guard.h"
 #include "io/warc_reader.h"
+#include "kindred/errors.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
 #include "kindred/kept_writer.h"
@@ -79,7 +80,7 @@ absl::Status WriteOutputs(const SweepFlags& flags, const SweepResult& result, Re
     std::error_code error;
     std::filesystem::create_directories(flags.output_dir, error);
     if (error) {
-      return absl::AbortedError(
+      return WriteFailed(
           absl::StrCat("cannot create output directory ", flags.output_dir, ": ", error.message()));
     }
     const std::string suffix = RecordFormatSuffix(format);
@@ -443,10 +444,8 @@ int RunSweepCommand(const SweepFlags& flags) {
   auto result = RunSweep(**reader, options);
   progress.Clear();
   if (!result.ok()) {
-    // Aborted: the scratch file could not be written or read.
-    return Fail(result.status().code() == absl::StatusCode::kAborted ? kExitOutput
-                                                                     : ExitCodeFor(result.status()),
-                result.status());
+    // A scratch file that cannot be written or read is a write failure (7).
+    return Fail(result.status());
   }
 
   if (absl::Status status = WriteOutputs(flags, *result, *format, options.keep, options.grouping);
@@ -456,9 +455,7 @@ int RunSweepCommand(const SweepFlags& flags) {
   if (WantsKept(flags)) {
     auto kept = WriteKeptCorpus(flags, *result, **reader, *input_options);
     if (!kept.ok()) {
-      return Fail(
-          kept.status().code() == absl::StatusCode::kInvalidArgument ? kExitUsage : kExitOutput,
-          kept.status());
+      return Fail(kept.status());
     }
   }
   if (!flags.general.quiet) {

@@ -7,6 +7,7 @@
 #include "absl/time/clock.h"
 #include "absl/time/time.h"
 #include "index/format.h"
+#include "kindred/errors.h"
 #include "kindred/temp_files.h"
 
 namespace kindred::index {
@@ -18,8 +19,8 @@ absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, Fil
     auto lock = fs->LockExclusive(path);
     if (absl::IsUnavailable(lock.status()) && wait_seconds > 0) {
       if (absl::Now() >= deadline) {
-        return absl::UnavailableError(absl::StrFormat("%s (still, after waiting %g s for it)",
-                                                      lock.status().message(), wait_seconds));
+        return IndexBusy(absl::StrFormat("%s (still, after waiting %g s for it)",
+                                         lock.status().message(), wait_seconds));
       }
       absl::SleepFor(absl::Milliseconds(50));
       continue;
@@ -28,7 +29,7 @@ absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, Fil
     if (fs->LockStillNamesPath(**lock, path)) return lock;
     ++attempt;
   }
-  return absl::UnavailableError(
+  return IndexBusy(
       absl::StrCat("index ", path, " keeps being replaced by another writer; try again later"));
 }
 

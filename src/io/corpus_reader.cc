@@ -16,6 +16,7 @@
 #include "io/tree_walker.h"
 #include "io/warc_documents.h"
 #include "kindred/corpus.h"
+#include "kindred/errors.h"
 
 namespace kindred {
 
@@ -59,7 +60,7 @@ absl::StatusOr<ResolvedInput> Resolve(const std::string& name, const InputOption
   }
   struct stat info;
   if (stat(name.c_str(), &info) != 0) {
-    return absl::ErrnoToStatus(errno, absl::StrCat(name, ": cannot open"));
+    return InputErrno(errno, absl::StrCat(name, ": cannot open"));
   }
   input.is_directory = S_ISDIR(info.st_mode);
   if (options.format != InputFormat::kAuto) {

@@ -15,6 +15,7 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
 #include "io/byte_stream.h"
+#include "kindred/errors.h"
 
 namespace kindred::io {
 namespace {
@@ -24,7 +25,7 @@ absl::Status WriteAll(int fd, const char* data, size_t size, const std::string& 
     ssize_t n = write(fd, data, size);
     if (n < 0) {
       if (errno == EINTR) continue;
-      return absl::ErrnoToStatus(errno, absl::StrCat(name, ": write failed"));
+      return OutputErrno(errno, absl::StrCat(name, ": write failed"));
     }
     data += n;
     size -= static_cast<size_t>(n);
@@ -36,9 +37,9 @@ absl::Status SyncAndClose(int fd, const std::string& name) {
   if (fsync(fd) != 0) {
     int error = errno;
     close(fd);
-    return absl::ErrnoToStatus(error, absl::StrCat(name, ": fsync failed"));
+    return OutputErrno(error, absl::StrCat(name, ": fsync failed"));
   }
-  if (close(fd) != 0) return absl::ErrnoToStatus(errno, absl::StrCat(name, ": close failed"));
+  if (close(fd) != 0) return OutputErrno(errno, absl::StrCat(name, ": close failed"));
   return absl::OkStatus();
 }
 
@@ -46,7 +47,7 @@ absl::Status MakeDirectories(const std::string& dir) {
   std::error_code error;
   std::filesystem::create_directories(dir, error);
   if (error) {
-    return absl::ErrnoToStatus(error.value(), absl::StrCat(dir, ": cannot create directory"));
+    return OutputErrno(error.value(), absl::StrCat(dir, ": cannot create directory"));
   }
   return absl::OkStatus();
 }
@@ -67,7 +68,7 @@ std::string ParentDirectory(const std::string& path) {
 
 absl::Status SyncDirectory(const std::string& dir) {
   int fd = open(dir.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
-  if (fd < 0) return absl::ErrnoToStatus(errno, absl::StrCat(dir, ": cannot open directory"));
+  if (fd < 0) return OutputErrno(errno, absl::StrCat(dir, ": cannot open directory"));
   return SyncAndClose(fd, dir);
 }
 
@@ -77,7 +78,7 @@ absl::Status CheckRelativePath(absl::string_view relative) {
     if (part.empty() || part == "." || part == "..") bad = true;
   }
   if (bad) {
-    return absl::InvalidArgumentError(
+    return InvalidRequest(
         absl::StrCat("refusing to write outside the output directory: \"", relative, "\""));
   }
   return absl::OkStatus();
@@ -113,7 +114,7 @@ absl::StatusOr<std::unique_ptr<OutputFile>> OutputFile::Create(const std::string
   if (!made.ok()) return made;
   std::string temp = absl::StrCat(dir, "/.", BaseName(path), ".tmp-XXXXXX");
   int fd = mkostemp(temp.data(), O_CLOEXEC);
-  if (fd < 0) return absl::ErrnoToStatus(errno, absl::StrCat(path, ": cannot create"));
+  if (fd < 0) return OutputErrno(errno, absl::StrCat(path, ": cannot create"));
   fchmod(fd, 0644);
   std::unique_ptr<OutputFile> file(new OutputFile(path, temp, fd));
   Encoder& encoder = *file->encoder_;
@@ -218,7 +219,7 @@ absl::Status OutputFile::Commit() {
   committed_ = true;  // the descriptor is closed below, whatever happens
   status = SyncAndClose(fd_, path_);
   if (status.ok() && rename(temp_path_.c_str(), path_.c_str()) != 0) {
-    status = absl::ErrnoToStatus(errno, absl::StrCat(path_, ": cannot rename into place"));
+    status = OutputErrno(errno, absl::StrCat(path_, ": cannot rename into place"));
   }
   if (!status.ok()) {
     unlink(temp_path_.c_str());
@@ -246,7 +247,7 @@ absl::StatusOr<std::unique_ptr<CopyTree>> CopyTree::Create(const std::string& di
   if (!made.ok()) return made;
   std::string temp = absl::StrCat(parent, "/.", BaseName(final_dir), ".tmp-XXXXXX");
   if (mkdtemp(temp.data()) == nullptr) {
-    return absl::ErrnoToStatus(errno, absl::StrCat(dir, ": cannot create directory"));
+    return OutputErrno(errno, absl::StrCat(dir, ": cannot create directory"));
   }
   chmod(temp.c_str(), 0755);
   return std::unique_ptr<CopyTree>(new CopyTree(final_dir, temp));
@@ -259,7 +260,7 @@ absl::Status CopyTree::MakeParents(const std::string& relative) {
     if (mkdir(absl::StrCat(temp_dir_, "/", part).c_str(), 0755) == 0) {
       created_.push_back(std::move(part));
     } else if (errno != EEXIST) {
-      return absl::ErrnoToStatus(errno, absl::StrCat(dir_, "/", part, ": cannot create directory"));
+      return OutputErrno(errno, absl::StrCat(dir_, "/", part, ": cannot create directory"));
     }
   }
   return absl::OkStatus();
@@ -274,10 +275,10 @@ absl::Status CopyTree::Add(const std::string& relative, const std::string& sourc
   const std::string shown = absl::StrCat(dir_, "/", relative);
   int fd = open(target.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_NOFOLLOW | O_CLOEXEC, 0644);
   if (fd < 0 && errno == EEXIST) {
-    return absl::InvalidArgumentError(
+    return InvalidRequest(
         absl::StrCat(shown, ": two kept documents would be copied to the same path"));
   }
-  if (fd < 0) return absl::ErrnoToStatus(errno, absl::StrCat(shown, ": cannot create"));
+  if (fd < 0) return OutputErrno(errno, absl::StrCat(shown, ": cannot create"));
   created_.push_back(relative);
   absl::StatusOr<std::unique_ptr<ByteStream>> input = OpenRaw(source);
   absl::Status status = input.status();
@@ -311,9 +312,9 @@ absl::Status CopyTree::Commit() {
   // rename(2) replaces an empty directory and refuses a non-empty one.
   if (rename(temp_dir_.c_str(), dir_.c_str()) != 0) {
     if (errno == ENOTEMPTY || errno == EEXIST) {
-      return absl::InvalidArgumentError(absl::StrCat(dir_, ": exists and is not empty"));
+      return InvalidRequest(absl::StrCat(dir_, ": exists and is not empty"));
     }
-    return absl::ErrnoToStatus(errno, absl::StrCat(dir_, ": cannot rename into place"));
+    return OutputErrno(errno, absl::StrCat(dir_, ": cannot rename into place"));
   }
   committed_ = true;
   return SyncDirectory(ParentDirectory(dir_));
