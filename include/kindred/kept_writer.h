@@ -43,6 +43,7 @@
 
 #include "absl/status/statusor.h"
 #include "kindred/corpus.h"
+#include "kindred/file_io.h"
 
 namespace kindred {
 
@@ -72,6 +73,8 @@ struct KeptRequest {
   // is written.
   uint64_t expected_documents = 0;
   KeptOutput output;
+  // Where the outputs are written (borrowed; tests inject faults here).
+  FileSystem* file_system = DefaultFileSystem();
 };
 
 struct KeptCounts {

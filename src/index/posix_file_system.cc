@@ -22,6 +22,7 @@ namespace {
 absl::Status ErrnoStatus(const char* what, const std::string& path, int error) {
   std::string message = absl::StrCat(what, " ", path, ": ", std::strerror(error));
   if (error == ENOSPC || error == EDQUOT || error == EFBIG) return DiskFull(message);
+  if (error == ENAMETOOLONG) return InvalidRequest(message);  // a usage error
   if (error == ENOENT) return absl::NotFoundError(message);
   if (error == EEXIST) return absl::AlreadyExistsError(message);
   if (error == EACCES || error == EPERM || error == EROFS) {
@@ -34,7 +35,11 @@ absl::Status ErrnoStatus(const char* what, const std::string& path, int error) {
 // (DiskFull or WriteFailed), whatever the errno, except that an existing
 // target stays AlreadyExists (callers decide what that means).
 absl::Status AsWriteFailure(absl::Status status) {
-  if (absl::IsAlreadyExists(status) || KindOf(status) == ErrorKind::kDiskFull) return status;
+  const ErrorKind kind = KindOf(status);
+  if (absl::IsAlreadyExists(status) || kind == ErrorKind::kDiskFull ||
+      kind == ErrorKind::kInvalidRequest) {
+    return status;
+  }
   return WithKind(std::move(status), ErrorKind::kWriteFailed);
 }
 

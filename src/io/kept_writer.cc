@@ -71,17 +71,17 @@ absl::Status KeptPass::OpenOutputs(bool needs_lines, bool needs_text) {
   absl::Status checked = io::CheckOutputs(request_.inputs, output, needs_lines, needs_text);
   if (!checked.ok()) return checked;
   if (needs_lines) {
-    auto file = io::OutputFile::Create(output.lines_path);
+    auto file = io::OutputFile::Create(output.lines_path, request_.file_system);
     if (!file.ok()) return file.status();
     lines_ = std::move(*file);
   }
   if (needs_text && !output.path_list.empty()) {
-    auto file = io::OutputFile::Create(output.path_list);
+    auto file = io::OutputFile::Create(output.path_list, request_.file_system);
     if (!file.ok()) return file.status();
     path_list_ = std::move(*file);
   }
   if (needs_text && !output.copy_dir.empty()) {
-    auto tree = io::CopyTree::Create(output.copy_dir);
+    auto tree = io::CopyTree::Create(output.copy_dir, request_.file_system);
     if (!tree.ok()) return tree.status();
     copies_ = std::move(*tree);
   }
