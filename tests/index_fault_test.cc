@@ -5,7 +5,7 @@
 #include <cstdio>
 #include <filesystem>
 
-#include "index/fault_file_system.h"
+#include "testlib/fault_file_system.h"
 #include "kindred/index.h"
 #include "kindred/index_writer.h"
 #include "testlib/index_fixture.h"
@@ -14,8 +14,8 @@
 namespace kindred {
 namespace {
 
-using index::FaultFileSystem;
-using index::FaultKind;
+using testing::FaultFileSystem;
+using testing::FaultKind;
 using testing::RequireSameDocument;
 using testing::Slice;
 

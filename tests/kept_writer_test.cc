@@ -17,6 +17,7 @@
 #include "io/output_file.h"
 #include "io/output_guard.h"
 
+#include "kindred/errors.h"
 #include "testlib/gzip.h"
 #include "testlib/temp_dir.h"
 
@@ -290,7 +291,7 @@ TEST_CASE("inputs that changed since they were read: nothing is written") {
   request.expected_documents = (*reader)->documents_read();
   request.output.lines_path = dir.File("out.jsonl");
   auto result = WriteKept(request);
-  CHECK(result.status().code() == absl::StatusCode::kFailedPrecondition);
+  CHECK(KindOf(result.status()) == ErrorKind::kInputChanged);
   CHECK(result.status().message() ==
         "the inputs changed since they were read: 5 documents now, 4 before; nothing written");
   CHECK(std::distance(fs::directory_iterator(dir.path()), fs::directory_iterator()) == 1);

@@ -9,6 +9,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "kindred/groups.h"
+#include "kindred/text.h"
 
 namespace kindred {
 namespace {
@@ -34,6 +35,41 @@ TEST_CASE("Invalid UTF-8 in a JSON string becomes U+FFFD", "[records]") {
   CHECK(Json("\xC3") == "\"\xEF\xBF\xBD\"");                                  // truncated sequence
   CHECK(Json("\xED\xA0\x80") == "\"\xEF\xBF\xBD\xEF\xBF\xBD\xEF\xBF\xBD\"");  // surrogate
   CHECK(Json("\xC0\xAF") == "\"\xEF\xBF\xBD\xEF\xBF\xBD\"");                  // overlong
+}
+
+// Reference: The Unicode Standard 15.0, section 3.9, "U+FFFD Substitution of
+// Maximal Subparts": E2 80 is a maximal subpart (a truncated three-byte
+// sequence) and becomes exactly one U+FFFD, in every output format alike.
+TEST_CASE("An id with a truncated sequence gets one U+FFFD in JSON, TSV and CSV", "[records]") {
+  const std::vector<std::string> ids = {"a\xE2\x80"
+                                        "b",
+                                        "c"};
+  ScoredPair pair;
+  pair.a = 0;
+  pair.b = 1;
+  pair.shared = 1;
+  pair.size_a = 1;
+  pair.size_b = 1;
+  pair.jaccard = 1;
+  pair.estimate = 1;
+  const std::vector<ScoredPair> pairs = {pair};
+  const std::string repaired = "a\xEF\xBF\xBD"
+                               "b";
+  for (RecordFormat format : {RecordFormat::kJsonLines, RecordFormat::kTsv, RecordFormat::kCsv}) {
+    std::string out;
+    WritePairRecords(format, pairs, ids, &out);
+    INFO(RecordFormatSuffix(format) << ": " << out);
+    size_t replacements = 0;
+    for (size_t at = out.find("\xEF\xBF\xBD"); at != std::string::npos;
+         at = out.find("\xEF\xBF\xBD", at + 1)) {
+      ++replacements;
+    }
+    CHECK(replacements == 1);
+    CHECK(out.find(repaired) != std::string::npos);
+    CHECK(out.find("\xE2\x80" "b") == std::string::npos);
+  }
+  CHECK(Json(ids[0]) == absl::StrCat("\"", repaired, "\""));
+  CHECK(Json(ids[0]) == absl::StrCat("\"", RepairUtf8(ids[0]), "\""));
 }
 
 TEST_CASE("Similarities have six decimals", "[records]") {

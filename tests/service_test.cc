@@ -6,7 +6,7 @@
 #include <thread>
 #include <vector>
 
-#include "index/fault_file_system.h"
+#include "testlib/fault_file_system.h"
 #include "kindred/index.h"
 #include "kindred/index_writer.h"
 #include "service/group_commit.h"
@@ -17,9 +17,9 @@
 namespace kindred {
 namespace {
 
-using index::FaultFileSystem;
-using index::FaultKind;
 using service::GroupCommitter;
+using testing::FaultFileSystem;
+using testing::FaultKind;
 using testing::Slice;
 
 struct Fixture {

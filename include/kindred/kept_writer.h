@@ -43,6 +43,7 @@
 
 #include "absl/status/statusor.h"
 #include "kindred/corpus.h"
+#include "kindred/file_io.h"
 
 namespace kindred {
 
@@ -68,9 +69,12 @@ struct KeptRequest {
   std::function<bool(uint64_t ordinal)> keep;
   // The number of documents the reader returned
   // (CorpusReader::documents_read()). A different count on the second pass
-  // means the inputs changed: FailedPrecondition, and nothing is written.
+  // means the inputs changed: InputChanged (kindred/errors.h), and nothing
+  // is written.
   uint64_t expected_documents = 0;
   KeptOutput output;
+  // Where the outputs are written (borrowed; tests inject faults here).
+  FileSystem* file_system = DefaultFileSystem();
 };
 
 struct KeptCounts {
@@ -78,11 +82,12 @@ struct KeptCounts {
   uint64_t kept = 0;       // documents written (lines, copies or paths)
 };
 
-// Writes the kept documents as described above. Errors: InvalidArgument for
-// a missing or refused output (with the reason), FailedPrecondition when the
-// inputs changed or cannot be read again (standard input read without a
-// copy, or a format still unknown), the reader's errors for the inputs, and the errno's code
-// for write failures (a full disk is ResourceExhausted).
+// Writes the kept documents as described above. Errors (kinds of
+// kindred/errors.h): InvalidRequest for outputs that do not fit the inputs
+// or a refused output (with the reason), InputChanged when the inputs
+// changed, FailedPrecondition when they cannot be read again (standard
+// input read without a copy, or a format still unknown), the reader's errors
+// for the inputs, and DiskFull or WriteFailed for write failures.
 absl::StatusOr<KeptCounts> WriteKept(const KeptRequest& request);
 
 }  // namespace kindred

@@ -28,8 +28,10 @@ absl::StatusOr<RecordFormat> ParseRecordFormat(std::string_view name);
 // "jsonl", "tsv", "csv": the file suffix of each format.
 const char* RecordFormatSuffix(RecordFormat format);
 
-// Appends `text` as a JSON string literal (quotes included). Invalid UTF-8
-// bytes are written as U+FFFD so the output is always valid JSON.
+// Appends `text` as a JSON string literal (quotes included). Ill-formed
+// UTF-8 is repaired by RepairUtf8 (kindred/text.h: one U+FFFD per maximal
+// subpart), as every text field of every format is (RecordWriter), so the
+// output is always valid JSON and an id reads the same in all formats.
 void AppendJsonString(std::string* out, std::string_view text);
 // Appends a similarity with 6 decimals ("0.912345").
 void AppendSimilarity(std::string* out, double value);

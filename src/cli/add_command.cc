@@ -67,7 +67,7 @@ int RunAdd(const AddFlags& add) {
     return code;
   }
   auto appended = writer->Append(*batch.documents, *policy);
-  if (!appended.ok()) return Fail(IndexWriteExitCode(appended.status()), appended.status());
+  if (!appended.ok()) return Fail(appended.status());
   if (int code = WriteBatchMatches(request, batch, **reader); code != kExitOk) return code;
   if (!flags.general.quiet) {
     PrintSummary(flags.index, *appended, *batch.documents, batch.matches.size(), batch.match,

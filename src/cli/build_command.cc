@@ -35,7 +35,7 @@ struct BuildFlags {
 // Exit code of a failed build: an index file that already exists is a usage
 // error (2); the rest as for every index write.
 int WriteExitCode(const absl::Status& status) {
-  return absl::IsAlreadyExists(status) ? kExitUsage : IndexWriteExitCode(status);
+  return absl::IsAlreadyExists(status) ? kExitUsage : ExitCodeFor(status);
 }
 
 absl::StatusOr<IndexSettings> ToIndexSettings(const BuildFlags& flags) {

@@ -28,16 +28,9 @@ int RunCompact(const CompactFlags& flags) {
   options.lock_wait_seconds = flags.wait_lock;
   auto result = CompactIndex(flags.index, CompactOptions{flags.bands, flags.rows}, options);
   if (!result.ok()) {
-    switch (result.status().code()) {
-      case absl::StatusCode::kResourceExhausted:
-      case absl::StatusCode::kAborted:
-      case absl::StatusCode::kPermissionDenied:
-        return Fail(kExitOutput, result.status());
-      case absl::StatusCode::kInvalidArgument:
-        return Fail(kExitUsage, result.status());
-      default:
-        return Fail(result.status());
-    }
+    // Its invalid arguments are the --bands and --rows given.
+    const absl::Status& status = result.status();
+    return Fail(absl::IsInvalidArgument(status) ? kExitUsage : ExitCodeFor(status), status);
   }
   if (!flags.quiet) {
     std::fprintf(stderr, "kindred compact: %s: %s, %s -> 1 segment, %s; %llu -> %llu bytes\n",

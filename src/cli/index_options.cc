@@ -6,6 +6,7 @@
 #include "cli/cli.h"
 #include "core/plural.h"
 #include "kindred/banding.h"
+#include "kindred/errors.h"
 #include "kindred/index_query.h"
 #include "kindred/shingles.h"
 #include "kindred/temp_files.h"
@@ -37,7 +38,7 @@ absl::Status CheckIndexSignature(const SignatureFlags& flags, const GivenOptions
     std::fprintf(stderr, "kindred: warning: %s\n", warning.c_str());
   }
   if (status.ok()) return status;
-  return absl::Status(status.code(), absl::StrCat("index ", reader.path(), ": ", status.message()));
+  return Annotate(status, absl::StrCat("index ", reader.path()));
 }
 
 absl::StatusOr<MatchSettings> IndexQueryMatch(const MatchFlags& flags, const GivenOptions& given,
@@ -97,17 +98,6 @@ void ReportStaleTempFiles(const std::string& index) {
   }
 }
 
-int IndexWriteExitCode(const absl::Status& status) {
-  switch (status.code()) {
-    case absl::StatusCode::kResourceExhausted:
-    case absl::StatusCode::kAborted:
-    case absl::StatusCode::kPermissionDenied:
-      return kExitOutput;
-    default:
-      return ExitCodeFor(status);
-  }
-}
-
 std::unique_ptr<IndexWriter> OpenIndexForWriting(const std::string& index, double wait_lock,
                                                  bool quiet, int* exit_code) {
   ReportStaleTempFiles(index);
@@ -115,7 +105,7 @@ std::unique_ptr<IndexWriter> OpenIndexForWriting(const std::string& index, doubl
   options.lock_wait_seconds = wait_lock;
   auto writer = IndexWriter::Open(index, options);
   if (!writer.ok()) {
-    *exit_code = Fail(IndexWriteExitCode(writer.status()), writer.status());
+    *exit_code = Fail(writer.status());
     return nullptr;
   }
   if ((*writer)->torn_tail_cut() > 0 && !quiet) {

@@ -49,11 +49,6 @@ void PrintCrowdedKeys(uint64_t crowded, uint64_t max_bucket);
 // longer run ("INDEX.tmp.PID", "INDEX.building.PID"), saying so on stderr.
 void ReportStaleTempFiles(const std::string& index);
 
-// Exit code of a failed index write: the file system's refusals (disk full,
-// an aborted write, permission) are output failures (7); the rest keep the
-// meaning ExitCodeFor gives them.
-int IndexWriteExitCode(const absl::Status& status);
-
 // Opens `index` for writing as add and remove do: removes stale temporary
 // files (ReportStaleTempFiles), takes the writer lock, waiting up to
 // `wait_lock` seconds (0: fails at once when busy), and says on stderr when a

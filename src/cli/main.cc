@@ -2,30 +2,34 @@
 #include <cstdio>
 
 #include "cli/cli.h"
+#include "kindred/errors.h"
 #include "kindred/temp_files.h"
 #include "cli/usage.h"
 
 namespace kindred::cli {
 
 int ExitCodeFor(const absl::Status& status) {
-  switch (status.code()) {
-    case absl::StatusCode::kOk:
-      return kExitOk;
-    case absl::StatusCode::kDataLoss:
-      return kExitIndexCorrupt;
-    case absl::StatusCode::kFailedPrecondition:
-      return kExitIndexMismatch;
-    case absl::StatusCode::kUnavailable:
-      return kExitIndexBusy;
-    case absl::StatusCode::kInvalidArgument:
-    case absl::StatusCode::kNotFound:
-    case absl::StatusCode::kOutOfRange:
-    case absl::StatusCode::kResourceExhausted:
-    case absl::StatusCode::kPermissionDenied:
+  if (status.ok()) return kExitOk;
+  switch (KindOf(status)) {
+    case ErrorKind::kInvalidRequest:
+      return kExitUsage;
+    case ErrorKind::kBadInput:
+    case ErrorKind::kLimitExceeded:
+    case ErrorKind::kInputChanged:
       return kExitInput;
-    default:
-      return kExitInternal;
+    case ErrorKind::kIndexDamaged:
+      return kExitIndexCorrupt;
+    case ErrorKind::kSettingsMismatch:
+      return kExitIndexMismatch;
+    case ErrorKind::kIndexBusy:
+      return kExitIndexBusy;
+    case ErrorKind::kDiskFull:
+    case ErrorKind::kWriteFailed:
+      return kExitOutput;
+    case ErrorKind::kInternal:
+      break;
   }
+  return kExitInternal;
 }
 
 int Fail(int exit_code, const absl::Status& status) {

@@ -13,6 +13,8 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "core/plural.h"
+#include "io/atomic_file.h"
+#include "kindred/errors.h"
 #include "kindred/file_io.h"
 
 namespace kindred::cli {
@@ -21,24 +23,12 @@ absl::Status WriteOutputFile(const std::string& path, std::string_view data) {
   if (path == "-") {
     if (std::fwrite(data.data(), 1, data.size(), stdout) != data.size() ||
         std::fflush(stdout) != 0) {
-      return absl::AbortedError("cannot write to standard output");
+      return WriteFailed("cannot write to standard output");
     }
     return absl::OkStatus();
   }
-  FileSystem* fs = DefaultFileSystem();
-  const std::string temporary = absl::StrCat(path, ".tmp-", getpid());
-  auto file = fs->CreateNew(temporary);
-  if (!file.ok()) return file.status();
-  absl::Status status = (*file)->Append(data);
-  if (status.ok()) status = (*file)->Sync();
-  file->reset();
-  if (status.ok()) status = fs->Rename(temporary, path, /*replace=*/true);
-  if (status.ok()) status = fs->SyncDirectoryOf(path);
-  if (!status.ok()) {
-    fs->Remove(temporary).IgnoreError();
-    return absl::Status(status.code(), absl::StrCat("cannot write ", path, ": ", status.message()));
-  }
-  return absl::OkStatus();
+  return Annotate(io::WriteFileAtomically(path, data, DefaultFileSystem()),
+                  absl::StrCat("cannot write ", path));
 }
 
 absl::StatusOr<uint64_t> ParseByteSize(std::string_view text) {

@@ -13,8 +13,9 @@
 
 namespace kindred::cli {
 
-// Writes `data` to `path` whole or not at all: a temporary file in the same
-// directory, fsync, then rename over `path`. "-" writes to standard output.
+// Writes `data` to `path` whole or not at all (io::WriteFileAtomically: a
+// temporary file in the same directory, fsync, then rename over `path`).
+// "-" writes to standard output. Errors keep their kind (DiskFull, ...).
 absl::Status WriteOutputFile(const std::string& path, std::string_view data);
 
 // Parses a byte size: a number with an optional K, M, G or T suffix (powers of

@@ -10,12 +10,13 @@
 
 #include "absl/strings/str_cat.h"
 #include "io/output_file.h"
+#include "kindred/errors.h"
 
 namespace kindred::cli {
 namespace {
 
 absl::Status CannotWrite(const std::string& path, absl::string_view reason) {
-  return absl::AbortedError(absl::StrCat("cannot write ", path, ": ", reason));
+  return WriteFailed(absl::StrCat("cannot write ", path, ": ", reason));
 }
 
 // Keeps an invalid name (a name too long, ...) a usage error, as the real

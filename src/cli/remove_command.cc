@@ -37,7 +37,7 @@ absl::Status ReadIds(const std::string& path, std::vector<std::string>* ids) {
 // Exit code of a failed retirement: an id the index does not hold is an
 // input error (3); the rest as for every index write.
 int WriteExitCode(const absl::Status& status) {
-  return absl::IsNotFound(status) ? kExitInput : IndexWriteExitCode(status);
+  return absl::IsNotFound(status) ? kExitInput : ExitCodeFor(status);
 }
 
 int RunRemove(const RemoveFlags& flags) {

@@ -166,10 +166,8 @@ int RunSweepCommand(const SweepFlags& flags) {
   auto result = RunSweep(**reader, plan.options);
   progress.Clear();
   if (!result.ok()) {
-    // Aborted: the scratch file could not be written or read.
-    return Fail(result.status().code() == absl::StatusCode::kAborted ? kExitOutput
-                                                                     : ExitCodeFor(result.status()),
-                result.status());
+    // A scratch file that cannot be written or read is a write failure (7).
+    return Fail(result.status());
   }
   if (absl::Status status = WriteRecordOutputs(plan.records, *result); !status.ok()) {
     return Fail(kExitOutput, status);

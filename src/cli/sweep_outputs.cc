@@ -12,6 +12,7 @@
 #include "io/byte_stream.h"
 #include "io/output_guard.h"
 #include "io/warc_reader.h"
+#include "kindred/errors.h"
 
 namespace kindred::cli {
 namespace {
@@ -161,7 +162,7 @@ absl::Status WriteRecordFiles(const RecordOutputs& records, const FormattedRecor
   std::error_code error;
   std::filesystem::create_directories(records.output_dir, error);
   if (error) {
-    return absl::AbortedError(
+    return WriteFailed(
         absl::StrCat("cannot create output directory ", records.output_dir, ": ", error.message()));
   }
   const std::string suffix = RecordFormatSuffix(records.format);
@@ -227,9 +228,7 @@ int WriteKeptOutputs(const SweepFlags& flags, const SweepResult& result, const C
   request.output = KeptOutput{flags.write_kept, flags.copy_kept, flags.list_kept};
   absl::StatusOr<KeptCounts> kept = WriteKept(request);
   if (!kept.ok()) {
-    return Fail(
-        kept.status().code() == absl::StatusCode::kInvalidArgument ? kExitUsage : kExitOutput,
-        kept.status());
+    return Fail(kept.status());
   }
   return kExitOk;
 }

@@ -3,37 +3,22 @@
 #include <cstdio>
 
 #include "absl/strings/str_cat.h"
+#include "kindred/text.h"
 
 namespace kindred {
 namespace {
 
-// Length of the valid UTF-8 sequence at text[i], or 0 when it is invalid.
-size_t Utf8SequenceLength(std::string_view text, size_t i) {
-  const auto byte = [&](size_t j) { return static_cast<unsigned char>(text[j]); };
-  const unsigned char lead = byte(i);
-  size_t length;
-  uint32_t min;
-  if (lead < 0x80) return 1;
-  if (lead >= 0xC2 && lead <= 0xDF) {
-    length = 2, min = 0x80;
-  } else if (lead >= 0xE0 && lead <= 0xEF) {
-    length = 3, min = 0x800;
-  } else if (lead >= 0xF0 && lead <= 0xF4) {
-    length = 4, min = 0x10000;
-  } else {
-    return 0;
-  }
-  if (i + length > text.size()) return 0;
-  uint32_t code = lead & (0x7F >> length);
-  for (size_t j = 1; j < length; ++j) {
-    if ((byte(i + j) & 0xC0) != 0x80) return 0;
-    code = (code << 6) | (byte(i + j) & 0x3F);
-  }
-  if (code < min || code > 0x10FFFF || (code >= 0xD800 && code <= 0xDFFF)) return 0;
-  return length;
+// `text` as well-formed UTF-8: itself when it is, else its repair by
+// RepairUtf8 (one U+FFFD per maximal subpart, as the text layer decodes
+// inputs) held in *storage. Every output format goes through this one repair.
+std::string_view WellFormed(std::string_view text, std::string* storage) {
+  if (IsAscii(text)) return text;
+  uint32_t replaced = 0;
+  *storage = RepairUtf8(text, &replaced);
+  return replaced == 0 ? text : std::string_view(*storage);
 }
 
-void AppendDelimited(std::string* out, std::string_view text, RecordFormat format) {
+void AppendDelimitedWellFormed(std::string* out, std::string_view text, RecordFormat format) {
   if (format == RecordFormat::kTsv) {
     for (char c : text) {
       switch (c) {
@@ -67,6 +52,11 @@ void AppendDelimited(std::string* out, std::string_view text, RecordFormat forma
   out->push_back('"');
 }
 
+void AppendDelimited(std::string* out, std::string_view text, RecordFormat format) {
+  std::string storage;
+  AppendDelimitedWellFormed(out, WellFormed(text, &storage), format);
+}
+
 }  // namespace
 
 absl::StatusOr<RecordFormat> ParseRecordFormat(std::string_view name) {
@@ -90,30 +80,21 @@ const char* RecordFormatSuffix(RecordFormat format) {
 }
 
 void AppendJsonString(std::string* out, std::string_view text) {
+  std::string storage;
+  text = WellFormed(text, &storage);
   out->push_back('"');
-  for (size_t i = 0; i < text.size();) {
-    const unsigned char c = static_cast<unsigned char>(text[i]);
+  for (const char byte : text) {
+    const unsigned char c = static_cast<unsigned char>(byte);
     if (c == '"' || c == '\\') {
       out->push_back('\\');
-      out->push_back(static_cast<char>(c));
+      out->push_back(byte);
     } else if (c < 0x20) {
       char escape[8];
       std::snprintf(escape, sizeof(escape), "\\u%04x", c);
       out->append(escape);
-    } else if (c >= 0x80) {
-      const size_t length = Utf8SequenceLength(text, i);
-      if (length == 0) {
-        out->append("\xEF\xBF\xBD");  // U+FFFD
-        ++i;
-        continue;
-      }
-      out->append(text.substr(i, length));
-      i += length;
-      continue;
     } else {
-      out->push_back(static_cast<char>(c));
+      out->push_back(byte);
     }
-    ++i;
   }
   out->push_back('"');
 }

@@ -3,6 +3,7 @@
 #include "absl/strings/str_format.h"
 #include "index/codec.h"
 #include "index/commit_area.h"
+#include "kindred/errors.h"
 
 namespace kindred::index {
 namespace {
@@ -105,7 +106,7 @@ absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings, si
     return absl::DataLossError("index header: checksum mismatch");
   }
   if (version > kFormatVersion) {
-    return absl::FailedPreconditionError(absl::StrFormat(
+    return SettingsMismatch(absl::StrFormat(
         "index format version %u is newer than this program reads (%u); use a newer kindred",
         version, kFormatVersion));
   }

@@ -3,6 +3,7 @@
 #include "absl/container/flat_hash_set.h"
 #include "absl/strings/str_cat.h"
 #include "kindred/banding.h"
+#include "kindred/errors.h"
 #include "kindred/text.h"
 
 namespace kindred {
@@ -105,8 +106,7 @@ absl::Status TextSigner::Sign(absl::Span<const TextDocument> documents, SignedCo
     auto& [set, text] = signed_docs[i];
     status = shingler->Shingle(documents[i].text, &set, &text);
     if (!status.ok()) {
-      status = absl::Status(status.code(),
-                            absl::StrCat("document \"", documents[i].id, "\": ", status.message()));
+      status = Annotate(status, absl::StrCat("document \"", documents[i].id, "\""));
       break;
     }
     signer_.Sign(set, absl::MakeSpan(&signatures[i * settings_.perms], settings_.perms));

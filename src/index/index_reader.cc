@@ -9,6 +9,7 @@
 #include "index/segment.h"
 #include "index/tail_tables.h"
 #include "kindred/banding.h"
+#include "kindred/errors.h"
 #include "kindred/index.h"
 
 namespace kindred {
@@ -48,7 +49,7 @@ absl::StatusOr<std::unique_ptr<IndexReader>> IndexReader::Open(const std::string
     auto again = options.file_system->Map(path);
     if (!again.ok() || (*again)->bytes().size() == reader->file_.size()) break;
   }
-  return absl::Status(status.code(), absl::StrCat("index ", path, ": ", status.message()));
+  return Annotate(status, absl::StrCat("index ", path));
 }
 
 absl::Status IndexReader::Load() {
@@ -191,7 +192,7 @@ absl::Status IndexReader::ReadAppended(const IndexOpenOptions& options) {
   if (!status.ok()) {
     mapping_ = std::move(previous);
     file_ = previous_file;
-    return absl::Status(status.code(), absl::StrCat("index ", path_, ": ", status.message()));
+    return Annotate(status, absl::StrCat("index ", path_));
   }
   earlier_mappings_.push_back(std::move(previous));
   reserved_bytes_ = CountReservedBytes();
@@ -422,9 +423,9 @@ absl::Status CheckIndexSettings(const IndexSettings& stored, const SignatureSett
                                 std::string_view current_unicode_version,
                                 std::vector<std::string>* warnings) {
   if (stored.signature != wanted) {
-    return absl::FailedPreconditionError(
-        absl::StrCat("the index was made with other settings: index has ",
-                     stored.signature.ToString(), ", this command asks for ", wanted.ToString()));
+    return SettingsMismatch(absl::StrCat("the index was made with other settings: index has ",
+                                         stored.signature.ToString(), ", this command asks for ",
+                                         wanted.ToString()));
   }
   if (stored.unicode_version != current_unicode_version) {
     warnings->push_back(absl::StrCat(

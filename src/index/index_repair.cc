@@ -5,6 +5,7 @@
 #include "index/index_salvage.h"
 #include "index/segment.h"
 #include "index/write_util.h"
+#include "kindred/errors.h"
 #include "kindred/index_writer.h"
 
 namespace kindred {
@@ -25,7 +26,7 @@ absl::StatusOr<RepairResult> WriteRepairedCopy(const std::string& path, FileSyst
   index::Salvage salvage;
   absl::Status salvaged = index::SalvageIndex((*mapping)->bytes(), &salvage);
   if (!salvaged.ok()) {
-    return absl::Status(salvaged.code(), absl::StrCat("index ", path, ": ", salvaged.message()));
+    return Annotate(salvaged, absl::StrCat("index ", path));
   }
   RepairResult result;
   result.repaired_path = RepairedPath(path);

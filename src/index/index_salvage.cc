@@ -10,6 +10,7 @@
 #include "index/commit_area.h"
 #include "index/format.h"
 #include "index/segment.h"
+#include "kindred/errors.h"
 
 namespace kindred::index {
 namespace {
@@ -127,9 +128,9 @@ absl::Status SalvageIndex(std::string_view file, Salvage* out) {
   IndexSettings settings;
   absl::Status header = DecodeFileHeader(file, &settings, &header_size, &version);
   if (!header.ok()) {
-    return absl::Status(header.code(), absl::StrCat(header.message(),
-                                                    "; the settings are unknown, so nothing "
-                                                    "can be salvaged"));
+    return WithMessage(header, absl::StrCat(header.message(),
+                                            "; the settings are unknown, so nothing "
+                                            "can be salvaged"));
   }
   Scan scan;
   CommitArea area;

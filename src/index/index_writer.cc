@@ -11,6 +11,7 @@
 #include "index/reserved_commit.h"
 #include "index/segment.h"
 #include "index/write_util.h"
+#include "kindred/errors.h"
 
 namespace kindred {
 
@@ -79,7 +80,7 @@ absl::StatusOr<std::unique_ptr<IndexWriter>> IndexWriter::Open(const std::string
   if (!reader.ok()) return reader.status();
   writer->reader_ = *std::move(reader);
   if (writer->reader_->format_version() == 1) {
-    return absl::FailedPreconditionError(absl::StrFormat(
+    return SettingsMismatch(absl::StrFormat(
         "index %s is format version 1, which does not record its commits, so a writer cannot "
         "tell a torn tail from lost data; run `kindred compact %s` once to rewrite it as "
         "version 2, then add to it",
@@ -150,7 +151,7 @@ absl::StatusOr<AppendResult> IndexWriter::Append(const SignedCorpus& batch,
   }
   if (docs.empty() && retired.empty()) return result;
   if (uint64_t{next} + docs.size() > index::kMaxDocuments) {
-    return absl::ResourceExhaustedError("the index would exceed 2^31 documents");
+    return LimitExceeded("the index would exceed 2^31 documents");
   }
   std::sort(retired.begin(), retired.end());
   if (absl::Status written = WriteSegment(docs, retired, &result.segment_number); !written.ok()) {

@@ -8,24 +8,43 @@
 
 #include <cerrno>
 #include <cstring>
+#include <utility>
 
 #include "absl/strings/str_cat.h"
+#include "kindred/errors.h"
 #include "kindred/file_io.h"
 
 namespace kindred {
 namespace {
 
+// The status of a failed call that reads or opens: its kind follows from the
+// code (kindred/errors.h), except for a full disk.
 absl::Status ErrnoStatus(const char* what, const std::string& path, int error) {
   std::string message = absl::StrCat(what, " ", path, ": ", std::strerror(error));
-  if (error == ENOSPC || error == EDQUOT || error == EFBIG) {
-    return absl::ResourceExhaustedError(message);
-  }
+  if (error == ENOSPC || error == EDQUOT || error == EFBIG) return DiskFull(message);
+  if (error == ENAMETOOLONG) return InvalidRequest(message);  // a usage error
   if (error == ENOENT) return absl::NotFoundError(message);
   if (error == EEXIST) return absl::AlreadyExistsError(message);
   if (error == EACCES || error == EPERM || error == EROFS) {
     return absl::PermissionDeniedError(message);
   }
   return absl::AbortedError(message);
+}
+
+// `status` of a call that changes the file system as a write failure
+// (DiskFull or WriteFailed), whatever the errno, except that an existing
+// target stays AlreadyExists (callers decide what that means).
+absl::Status AsWriteFailure(absl::Status status) {
+  const ErrorKind kind = KindOf(status);
+  if (absl::IsAlreadyExists(status) || kind == ErrorKind::kDiskFull ||
+      kind == ErrorKind::kInvalidRequest) {
+    return status;
+  }
+  return WithKind(std::move(status), ErrorKind::kWriteFailed);
+}
+
+absl::Status WriteErrnoStatus(const char* what, const std::string& path, int error) {
+  return AsWriteFailure(ErrnoStatus(what, path, error));
 }
 
 std::string DirectoryOf(const std::string& path) {
@@ -46,7 +65,7 @@ class PosixAppendFile : public AppendFile {
       ssize_t n = pwrite(fd_, bytes.data(), bytes.size(), static_cast<off_t>(size_));
       if (n < 0) {
         if (errno == EINTR) continue;
-        return ErrnoStatus("cannot write", path_, errno);
+        return WriteErrnoStatus("cannot write", path_, errno);
       }
       size_ += static_cast<uint64_t>(n);
       bytes.remove_prefix(static_cast<size_t>(n));
@@ -62,7 +81,7 @@ class PosixAppendFile : public AppendFile {
       ssize_t n = pwrite(fd_, bytes.data(), bytes.size(), static_cast<off_t>(offset));
       if (n < 0) {
         if (errno == EINTR) continue;
-        return ErrnoStatus("cannot write", path_, errno);
+        return WriteErrnoStatus("cannot write", path_, errno);
       }
       offset += static_cast<uint64_t>(n);
       bytes.remove_prefix(static_cast<size_t>(n));
@@ -74,13 +93,13 @@ class PosixAppendFile : public AppendFile {
     // fdatasync: the data and what reading it back needs (the size, the
     // block map), not the modification time, whose update would otherwise
     // force a journal commit on every sync of an overwrite.
-    if (fdatasync(fd_) != 0) return ErrnoStatus("cannot sync", path_, errno);
+    if (fdatasync(fd_) != 0) return WriteErrnoStatus("cannot sync", path_, errno);
     return absl::OkStatus();
   }
 
   absl::Status Truncate(uint64_t size) override {
     if (ftruncate(fd_, static_cast<off_t>(size)) != 0) {
-      return ErrnoStatus("cannot truncate", path_, errno);
+      return WriteErrnoStatus("cannot truncate", path_, errno);
     }
     size_ = size;
     return absl::OkStatus();
@@ -124,11 +143,17 @@ class PosixFileLock : public FileLock {
 class PosixFileSystem : public FileSystem {
  public:
   absl::StatusOr<std::unique_ptr<AppendFile>> OpenAppend(const std::string& path) override {
-    return Open(path, O_WRONLY | O_CLOEXEC);
+    auto file = Open(path, O_WRONLY | O_CLOEXEC);
+    // A missing file is the caller's input (an index to add to); any other
+    // refusal is a failed write.
+    if (file.ok() || absl::IsNotFound(file.status())) return file;
+    return AsWriteFailure(file.status());
   }
 
   absl::StatusOr<std::unique_ptr<AppendFile>> CreateNew(const std::string& path) override {
-    return Open(path, O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC);
+    auto file = Open(path, O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC);
+    if (file.ok()) return file;
+    return AsWriteFailure(file.status());
   }
 
   absl::StatusOr<std::unique_ptr<MappedFile>> Map(const std::string& path) override {
@@ -165,7 +190,7 @@ class PosixFileSystem : public FileSystem {
       int error = errno;
       close(fd);
       if (error == EWOULDBLOCK) {
-        return absl::UnavailableError(
+        return IndexBusy(
             absl::StrCat("index ", path, " is in use by another writer; try again later"));
       }
       return ErrnoStatus("cannot lock", path, error);
@@ -188,24 +213,24 @@ class PosixFileSystem : public FileSystem {
   absl::Status Rename(const std::string& from, const std::string& to, bool replace) override {
     unsigned flags = replace ? 0 : RENAME_NOREPLACE;
     if (renameat2(AT_FDCWD, from.c_str(), AT_FDCWD, to.c_str(), flags) != 0) {
-      return ErrnoStatus("cannot rename to", to, errno);
+      return WriteErrnoStatus("cannot rename to", to, errno);
     }
     return absl::OkStatus();
   }
 
   absl::Status Remove(const std::string& path) override {
-    if (unlink(path.c_str()) != 0) return ErrnoStatus("cannot remove", path, errno);
+    if (unlink(path.c_str()) != 0) return WriteErrnoStatus("cannot remove", path, errno);
     return absl::OkStatus();
   }
 
   absl::Status SyncDirectoryOf(const std::string& path) override {
     std::string dir = DirectoryOf(path);
     int fd = open(dir.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
-    if (fd < 0) return ErrnoStatus("cannot open directory", dir, errno);
+    if (fd < 0) return WriteErrnoStatus("cannot open directory", dir, errno);
     int rc = fsync(fd);
     int error = errno;
     close(fd);
-    if (rc != 0) return ErrnoStatus("cannot sync directory", dir, error);
+    if (rc != 0) return WriteErrnoStatus("cannot sync directory", dir, error);
     return absl::OkStatus();
   }
 

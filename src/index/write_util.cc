@@ -7,6 +7,8 @@
 #include "absl/time/clock.h"
 #include "absl/time/time.h"
 #include "index/format.h"
+#include "io/atomic_file.h"
+#include "kindred/errors.h"
 #include "kindred/temp_files.h"
 
 namespace kindred::index {
@@ -18,8 +20,8 @@ absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, Fil
     auto lock = fs->LockExclusive(path);
     if (absl::IsUnavailable(lock.status()) && wait_seconds > 0) {
       if (absl::Now() >= deadline) {
-        return absl::UnavailableError(absl::StrFormat("%s (still, after waiting %g s for it)",
-                                                      lock.status().message(), wait_seconds));
+        return IndexBusy(absl::StrFormat("%s (still, after waiting %g s for it)",
+                                         lock.status().message(), wait_seconds));
       }
       absl::SleepFor(absl::Milliseconds(50));
       continue;
@@ -28,7 +30,7 @@ absl::StatusOr<std::unique_ptr<FileLock>> LockIndex(const std::string& path, Fil
     if (fs->LockStillNamesPath(**lock, path)) return lock;
     ++attempt;
   }
-  return absl::UnavailableError(
+  return IndexBusy(
       absl::StrCat("index ", path, " keeps being replaced by another writer; try again later"));
 }
 
@@ -69,22 +71,15 @@ std::vector<SegmentDocument> DocumentsOf(const SignedCorpus& corpus) {
 absl::Status WriteWholeFile(const std::string& path, const IndexSettings& settings,
                             const EncodedSegment& segment, uint64_t documents, bool replace,
                             FileSystem* fs) {
-  std::string temp = absl::StrCat(path, ".tmp.", getpid());
-  auto file = fs->CreateNew(temp);
+  auto file = io::AtomicFile::Create(path, fs, replace);
   if (!file.ok()) return file.status();
-  RegisterTempFile(temp);
   const uint64_t length = kDataStart + segment.head_and_body.size() + segment.commit.size();
   absl::Status status = (*file)->Append(
       EncodeHeaderRegion(EncodeFileHeader(settings), CommitState{1, length, 1, documents}));
   if (status.ok()) status = (*file)->Append(segment.head_and_body);
   if (status.ok()) status = (*file)->Append(segment.commit);
-  if (status.ok()) status = (*file)->Sync();
-  file->reset();
-  if (status.ok()) status = fs->Rename(temp, path, replace);
-  if (!status.ok()) fs->Remove(temp).IgnoreError();
-  ForgetTempFile(temp);
-  if (!status.ok()) return status;
-  return fs->SyncDirectoryOf(path);
+  if (status.ok()) status = (*file)->Commit();
+  return status;
 }
 
 absl::Status AppendSegment(AppendFile* file, const CommitPoint& before, uint64_t added,

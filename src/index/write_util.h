@@ -31,10 +31,10 @@ SegmentDocument DocumentOf(const SignedCorpus& corpus, size_t doc);
 std::vector<SegmentDocument> DocumentsOf(const SignedCorpus& corpus);
 
 // Writes a version-2 file of one segment (segment 0, holding `documents`
-// documents) into a temporary file beside `path` ("PATH.tmp.PID", removed
-// on SIGINT/SIGTERM), syncs it, renames it to `path` (replacing only when
-// `replace`) and syncs the directory. Removes the temporary file on failure
-// when it can.
+// documents) whole or not at all through an io::AtomicFile: a temporary
+// file beside `path` ("PATH.tmp.PID", removed on SIGINT/SIGTERM), synced,
+// renamed to `path` (replacing only when `replace`), the directory synced.
+// Removes the temporary file on failure when it can.
 absl::Status WriteWholeFile(const std::string& path, const IndexSettings& settings,
                             const EncodedSegment& segment, uint64_t documents, bool replace,
                             FileSystem* fs);

@@ -5,6 +5,7 @@
 #include <utility>
 
 #include "absl/strings/str_format.h"
+#include "kindred/errors.h"
 
 namespace kindred::io {
 
@@ -63,7 +64,7 @@ absl::StatusOr<bool> BufferedInput::NextLine(absl::string_view* line, bool* term
       if (newline == nullptr && pending == 0) return false;
       ++line_number_;
       if (length > max_bytes_) {
-        return absl::ResourceExhaustedError(
+        return LimitExceeded(
             absl::StrFormat("%s:%d: line longer than the limit of %d bytes (--max-document-size)",
                             name_, line_number_, max_bytes_));
       }
@@ -113,7 +114,7 @@ absl::Status BufferedInput::ReadRest(std::string* out) {
     if (*n == 0) eof_ = true;
   }
   if (out->size() > max_bytes_) {
-    return absl::ResourceExhaustedError(absl::StrFormat(
+    return LimitExceeded(absl::StrFormat(
         "%s: document larger than the limit of %d bytes (--max-document-size)", name_, max_bytes_));
   }
   return absl::OkStatus();

@@ -12,6 +12,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "kindred/errors.h"
 
 namespace kindred::io {
 namespace {
@@ -46,7 +47,7 @@ class FdStream : public ByteStream {
         if (counter_ != nullptr) counter_->fetch_add(n, std::memory_order_relaxed);
         return static_cast<size_t>(n);
       }
-      if (errno != EINTR) return absl::ErrnoToStatus(errno, absl::StrCat(name_, ": read failed"));
+      if (errno != EINTR) return InputErrno(errno, absl::StrCat(name_, ": read failed"));
     }
   }
 
@@ -196,7 +197,7 @@ class LimitedStream : public ByteStream {
     if (!n.ok()) return n;
     total_ += *n;
     if (total_ > limit_) {
-      return absl::ResourceExhaustedError(absl::StrFormat(
+      return LimitExceeded(absl::StrFormat(
           "%s: decompressed size exceeds the limit of %d bytes (--max-decompressed-size)", name_,
           limit_));
     }
@@ -215,7 +216,7 @@ absl::Status WriteAll(int fd, const char* data, size_t size, const std::string& 
     ssize_t n = write(fd, data, size);
     if (n < 0) {
       if (errno == EINTR) continue;
-      return absl::ErrnoToStatus(errno, absl::StrCat(name, ": write failed"));
+      return OutputErrno(errno, absl::StrCat(name, ": write failed"));
     }
     data += n;
     size -= static_cast<size_t>(n);
@@ -247,7 +248,7 @@ absl::StatusOr<int> OpenForReading(const std::string& path) {
   for (;;) {
     int fd = open(path.c_str(), O_RDONLY | O_CLOEXEC);
     if (fd >= 0) return fd;
-    if (errno != EINTR) return absl::ErrnoToStatus(errno, absl::StrCat(path, ": cannot open"));
+    if (errno != EINTR) return InputErrno(errno, absl::StrCat(path, ": cannot open"));
   }
 }
 
@@ -258,7 +259,7 @@ absl::StatusOr<std::string> ReadMagic(int fd, const std::string& name) {
   while (have < magic.size()) {
     ssize_t n = read(fd, magic.data() + have, magic.size() - have);
     if (n < 0 && errno == EINTR) continue;
-    if (n < 0) return absl::ErrnoToStatus(errno, absl::StrCat(name, ": read failed"));
+    if (n < 0) return InputErrno(errno, absl::StrCat(name, ": read failed"));
     if (n == 0) break;
     have += static_cast<size_t>(n);
   }
@@ -318,7 +319,7 @@ absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
     int copy_fd = open(options.copy_path.c_str(),
                        O_WRONLY | O_CREAT | O_TRUNC | O_NOFOLLOW | O_CLOEXEC, 0600);
     if (copy_fd < 0) {
-      return absl::ErrnoToStatus(errno, absl::StrCat(options.copy_path, ": cannot create"));
+      return OutputErrno(errno, absl::StrCat(options.copy_path, ": cannot create"));
     }
     stream = std::make_unique<TeeStream>(std::move(stream), copy_fd, options.copy_path);
   }

@@ -9,6 +9,7 @@
 #include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
 #include "io/corpus_reader_impl.h"
+#include "kindred/errors.h"
 
 namespace kindred {
 
@@ -39,7 +40,7 @@ absl::StatusOr<ResolvedInput> Resolve(const std::string& name, const InputOption
   }
   struct stat info;
   if (stat(name.c_str(), &info) != 0) {
-    return absl::ErrnoToStatus(errno, absl::StrCat(name, ": cannot open"));
+    return InputErrno(errno, absl::StrCat(name, ": cannot open"));
   }
   input.is_directory = S_ISDIR(info.st_mode);
   if (options.format != InputFormat::kAuto) {

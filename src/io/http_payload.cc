@@ -12,13 +12,13 @@
 #include "absl/strings/numbers.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
+#include "kindred/errors.h"
 
 namespace kindred::io {
 namespace {
 
 absl::Status TooLarge(uint64_t max_bytes) {
-  return absl::ResourceExhaustedError(
-      absl::StrCat("the decoded payload is larger than ", max_bytes, " bytes"));
+  return LimitExceeded(absl::StrCat("the decoded payload is larger than ", max_bytes, " bytes"));
 }
 
 // Inflates one zlib/gzip/raw deflate stream (`window_bits` as for

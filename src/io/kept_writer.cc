@@ -15,6 +15,7 @@
 #include "io/tree_walker.h"
 #include "io/warc_kept.h"
 #include "io/warc_reader.h"
+#include "kindred/errors.h"
 
 namespace kindred {
 namespace {
@@ -54,33 +55,33 @@ class KeptPass {
 absl::Status KeptPass::OpenOutputs(bool needs_lines, bool needs_text) {
   const KeptOutput& output = request_.output;
   if (needs_lines && output.lines_path.empty()) {
-    return absl::InvalidArgumentError(
+    return InvalidRequest(
         "an input is JSON Lines, but no output file for its kept lines was given");
   }
   if (needs_text && output.copy_dir.empty() == output.path_list.empty()) {
-    return absl::InvalidArgumentError(
+    return InvalidRequest(
         "an input holds text documents: give either a copy directory or a path list for them");
   }
   if (needs_lines && needs_text && !output.path_list.empty()) {
     auto lines = io::ResolvePath(output.lines_path), list = io::ResolvePath(output.path_list);
     if (lines.ok() && list.ok() && *lines == *list) {
-      return absl::InvalidArgumentError("the kept lines and the path list name the same file");
+      return InvalidRequest("the kept lines and the path list name the same file");
     }
   }
   absl::Status checked = io::CheckOutputs(request_.inputs, output, needs_lines, needs_text);
   if (!checked.ok()) return checked;
   if (needs_lines) {
-    auto file = io::OutputFile::Create(output.lines_path);
+    auto file = io::OutputFile::Create(output.lines_path, request_.file_system);
     if (!file.ok()) return file.status();
     lines_ = std::move(*file);
   }
   if (needs_text && !output.path_list.empty()) {
-    auto file = io::OutputFile::Create(output.path_list);
+    auto file = io::OutputFile::Create(output.path_list, request_.file_system);
     if (!file.ok()) return file.status();
     path_list_ = std::move(*file);
   }
   if (needs_text && !output.copy_dir.empty()) {
-    auto tree = io::CopyTree::Create(output.copy_dir);
+    auto tree = io::CopyTree::Create(output.copy_dir, request_.file_system);
     if (!tree.ok()) return tree.status();
     copies_ = std::move(*tree);
   }
@@ -115,8 +116,7 @@ absl::Status KeptPass::KeepText(const std::string& relative, const std::string& 
   ++counts_.kept;
   if (copies_ != nullptr) return copies_->Add(relative, path);
   if (path.find('\n') != std::string::npos) {
-    return absl::InvalidArgumentError(
-        absl::StrCat("\"", path, "\": a path with a newline cannot be listed"));
+    return InvalidRequest(absl::StrCat("\"", path, "\": a path with a newline cannot be listed"));
   }
   absl::Status written = path_list_->Append(path);
   if (written.ok()) written = path_list_->Append("\n");
@@ -125,9 +125,10 @@ absl::Status KeptPass::KeepText(const std::string& relative, const std::string& 
 
 absl::Status KeptPass::CopyWarc(const std::string& path) {
   if (lines_ == nullptr) {
-    return absl::InvalidArgumentError(absl::StrCat(
-        path, ": a WARC file inside a directory read by content; give --input-format warc to "
-              "write its kept records"));
+    return InvalidRequest(absl::StrCat(
+        path,
+        ": a WARC file inside a directory read by content; give --input-format warc to "
+        "write its kept records"));
   }
   io::WarcKeptCounts counts;
   absl::Status copied = io::CopyKeptRecords(path, request_.options, counts_.documents,
@@ -168,7 +169,7 @@ absl::Status KeptPass::ReadInput(const ResolvedInput& input) {
   }
   if (input.format == InputFormat::kJsonLines) return CopyLines(input.read_path);
   if (input.is_stdin && copies_ == nullptr) {
-    return absl::InvalidArgumentError(
+    return InvalidRequest(
         "standard input holds a text document: it has no path to list; give a copy directory");
   }
   return KeepText(CopyName(input), input.read_path);
@@ -187,12 +188,15 @@ absl::StatusOr<KeptCounts> KeptPass::Run() {
   bool needs_lines = false, needs_text = false, needs_warc = false;
   for (const ResolvedInput& input : request_.inputs) {
     if (input.format == InputFormat::kAuto) {
-      return absl::FailedPreconditionError(
-          absl::StrCat(input.name, ": its format is not known yet; read it to the end first"));
+      return WithKind(absl::FailedPreconditionError(absl::StrCat(
+                          input.name, ": its format is not known yet; read it to the end first")),
+                      ErrorKind::kInvalidRequest);
     }
     if (input.is_stdin && input.read_path.empty()) {
-      return absl::FailedPreconditionError(
-          "standard input was not copied while it was read, so it cannot be read again");
+      return WithKind(absl::FailedPreconditionError(
+                          "standard input was not copied while it was read, so it cannot be read "
+                          "again"),
+                      ErrorKind::kInvalidRequest);
     }
     if (input.format == InputFormat::kWarc) {
       needs_warc = true;
@@ -201,13 +205,14 @@ absl::StatusOr<KeptCounts> KeptPass::Run() {
     (input.format == InputFormat::kJsonLines ? needs_lines : needs_text) = true;
   }
   if (needs_warc && needs_lines) {
-    return absl::InvalidArgumentError(
+    return InvalidRequest(
         "the inputs mix JSON Lines and WARC files: their kept documents cannot share one "
         "--write-kept file; sweep them separately");
   }
   if (needs_warc && request_.output.lines_path.empty()) {
-    return absl::InvalidArgumentError(
-        "an input is a WARC file, but no output file (--write-kept) for its kept records was given");
+    return InvalidRequest(
+        "an input is a WARC file, but no output file (--write-kept) for its kept records was "
+        "given");
   }
   needs_lines = needs_lines || needs_warc;  // the WARC records go to that file
   absl::Status status = OpenOutputs(needs_lines, needs_text);
@@ -216,7 +221,7 @@ absl::StatusOr<KeptCounts> KeptPass::Run() {
   }
   if (!status.ok()) return status;
   if (counts_.documents != request_.expected_documents) {
-    return absl::FailedPreconditionError(absl::StrFormat(
+    return InputChanged(absl::StrFormat(
         "the inputs changed since they were read: %d documents now, %d before; nothing written",
         counts_.documents, request_.expected_documents));
   }
@@ -228,7 +233,7 @@ absl::StatusOr<KeptCounts> KeptPass::Run() {
 }  // namespace
 
 absl::StatusOr<KeptCounts> WriteKept(const KeptRequest& request) {
-  if (!request.keep) return absl::InvalidArgumentError("no keep predicate given");
+  if (!request.keep) return InvalidRequest("no keep predicate given");
   KeptPass pass(request);
   return pass.Run();
 }

@@ -15,39 +15,15 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
 #include "io/byte_stream.h"
+#include "kindred/errors.h"
 
 namespace kindred::io {
 namespace {
 
-absl::Status WriteAll(int fd, const char* data, size_t size, const std::string& name) {
-  while (size > 0) {
-    ssize_t n = write(fd, data, size);
-    if (n < 0) {
-      if (errno == EINTR) continue;
-      return absl::ErrnoToStatus(errno, absl::StrCat(name, ": write failed"));
-    }
-    data += n;
-    size -= static_cast<size_t>(n);
-  }
-  return absl::OkStatus();
-}
-
-absl::Status SyncAndClose(int fd, const std::string& name) {
-  if (fsync(fd) != 0) {
-    int error = errno;
-    close(fd);
-    return absl::ErrnoToStatus(error, absl::StrCat(name, ": fsync failed"));
-  }
-  if (close(fd) != 0) return absl::ErrnoToStatus(errno, absl::StrCat(name, ": close failed"));
-  return absl::OkStatus();
-}
-
 absl::Status MakeDirectories(const std::string& dir) {
   std::error_code error;
   std::filesystem::create_directories(dir, error);
-  if (error) {
-    return absl::ErrnoToStatus(error.value(), absl::StrCat(dir, ": cannot create directory"));
-  }
+  if (error) return OutputErrno(error.value(), absl::StrCat(dir, ": cannot create directory"));
   return absl::OkStatus();
 }
 
@@ -65,10 +41,8 @@ std::string ParentDirectory(const std::string& path) {
   return path.substr(0, slash);
 }
 
-absl::Status SyncDirectory(const std::string& dir) {
-  int fd = open(dir.c_str(), O_RDONLY | O_DIRECTORY | O_CLOEXEC);
-  if (fd < 0) return absl::ErrnoToStatus(errno, absl::StrCat(dir, ": cannot open directory"));
-  return SyncAndClose(fd, dir);
+absl::Status SyncDirectory(const std::string& dir, FileSystem* fs) {
+  return fs->SyncDirectoryOf(absl::StrCat(dir, "/."));  // syncs `dir` itself
 }
 
 absl::Status CheckRelativePath(absl::string_view relative) {
@@ -77,7 +51,7 @@ absl::Status CheckRelativePath(absl::string_view relative) {
     if (part.empty() || part == "." || part == "..") bad = true;
   }
   if (bad) {
-    return absl::InvalidArgumentError(
+    return InvalidRequest(
         absl::StrCat("refusing to write outside the output directory: \"", relative, "\""));
   }
   return absl::OkStatus();
@@ -94,28 +68,18 @@ struct OutputFile::Encoder {
   }
 };
 
-OutputFile::OutputFile(std::string path, std::string temp_path, int fd)
-    : path_(std::move(path)),
-      temp_path_(std::move(temp_path)),
-      fd_(fd),
-      encoder_(std::make_unique<Encoder>()) {}
+OutputFile::OutputFile(std::unique_ptr<AtomicFile> file)
+    : file_(std::move(file)), encoder_(std::make_unique<Encoder>()) {}
 
-OutputFile::~OutputFile() {
-  if (!committed_) {
-    close(fd_);
-    unlink(temp_path_.c_str());
-  }
-}
+OutputFile::~OutputFile() = default;  // an uncommitted AtomicFile removes itself
 
-absl::StatusOr<std::unique_ptr<OutputFile>> OutputFile::Create(const std::string& path) {
-  const std::string dir = ParentDirectory(path);
-  absl::Status made = MakeDirectories(dir);
+absl::StatusOr<std::unique_ptr<OutputFile>> OutputFile::Create(const std::string& path,
+                                                               FileSystem* fs) {
+  absl::Status made = MakeDirectories(ParentDirectory(path));
   if (!made.ok()) return made;
-  std::string temp = absl::StrCat(dir, "/.", BaseName(path), ".tmp-XXXXXX");
-  int fd = mkostemp(temp.data(), O_CLOEXEC);
-  if (fd < 0) return absl::ErrnoToStatus(errno, absl::StrCat(path, ": cannot create"));
-  fchmod(fd, 0644);
-  std::unique_ptr<OutputFile> file(new OutputFile(path, temp, fd));
+  auto atomic = AtomicFile::Create(path, fs);
+  if (!atomic.ok()) return atomic.status();
+  std::unique_ptr<OutputFile> file(new OutputFile(*std::move(atomic)));
   Encoder& encoder = *file->encoder_;
   if (absl::EndsWith(path, ".gz")) {
     encoder.kind = Encoder::Kind::kGzip;
@@ -133,7 +97,7 @@ absl::StatusOr<std::unique_ptr<OutputFile>> OutputFile::Create(const std::string
 }
 
 absl::Status OutputFile::Flush() {
-  absl::Status written = WriteAll(fd_, pending_.data(), pending_.size(), path_);
+  absl::Status written = file_->Append(pending_);
   pending_.clear();
   return written;
 }
@@ -155,7 +119,7 @@ absl::Status OutputFile::Encode(absl::string_view bytes, bool finish) {
       z.avail_out = sizeof(out);
       result = deflate(&z, finish ? Z_FINISH : Z_NO_FLUSH);
       if (result == Z_STREAM_ERROR) return absl::InternalError("gzip compression failed");
-      absl::Status written = WriteAll(fd_, out, sizeof(out) - z.avail_out, path_);
+      absl::Status written = file_->Append(std::string_view(out, sizeof(out) - z.avail_out));
       if (!written.ok()) return written;
     } while (z.avail_in > 0 || z.avail_out == 0 || (finish && result != Z_STREAM_END));
     return absl::OkStatus();
@@ -170,7 +134,7 @@ absl::Status OutputFile::Encode(absl::string_view bytes, bool finish) {
       return absl::InternalError(
           absl::StrCat("zstd compression failed: ", ZSTD_getErrorName(remaining)));
     }
-    absl::Status written = WriteAll(fd_, out, buffer.pos, path_);
+    absl::Status written = file_->Append(std::string_view(out, buffer.pos));
     if (!written.ok()) return written;
   } while (in.pos < in.size || (finish && remaining != 0));
   return absl::OkStatus();
@@ -215,30 +179,23 @@ absl::Status OutputFile::Commit() {
     status = Encode(gathered, true);
   }
   if (!status.ok()) return status;
-  committed_ = true;  // the descriptor is closed below, whatever happens
-  status = SyncAndClose(fd_, path_);
-  if (status.ok() && rename(temp_path_.c_str(), path_.c_str()) != 0) {
-    status = absl::ErrnoToStatus(errno, absl::StrCat(path_, ": cannot rename into place"));
-  }
-  if (!status.ok()) {
-    unlink(temp_path_.c_str());
-    return status;
-  }
-  return SyncDirectory(ParentDirectory(path_));
+  committed_ = true;
+  return file_->Commit();
 }
 
-CopyTree::CopyTree(std::string dir, std::string temp_dir)
-    : dir_(std::move(dir)), temp_dir_(std::move(temp_dir)) {}
+CopyTree::CopyTree(std::string dir, std::string temp_dir, FileSystem* fs)
+    : dir_(std::move(dir)), temp_dir_(std::move(temp_dir)), fs_(fs) {}
 
 CopyTree::~CopyTree() {
   if (committed_) return;
   for (auto it = created_.rbegin(); it != created_.rend(); ++it) {
-    remove(absl::StrCat(temp_dir_, "/", *it).c_str());
+    const std::string path = absl::StrCat(temp_dir_, "/", *it);
+    if (!fs_->Remove(path).ok()) rmdir(path.c_str());  // a file, else a directory
   }
   rmdir(temp_dir_.c_str());
 }
 
-absl::StatusOr<std::unique_ptr<CopyTree>> CopyTree::Create(const std::string& dir) {
+absl::StatusOr<std::unique_ptr<CopyTree>> CopyTree::Create(const std::string& dir, FileSystem* fs) {
   std::string final_dir = dir;
   while (final_dir.size() > 1 && final_dir.back() == '/') final_dir.pop_back();
   const std::string parent = ParentDirectory(final_dir);
@@ -246,10 +203,10 @@ absl::StatusOr<std::unique_ptr<CopyTree>> CopyTree::Create(const std::string& di
   if (!made.ok()) return made;
   std::string temp = absl::StrCat(parent, "/.", BaseName(final_dir), ".tmp-XXXXXX");
   if (mkdtemp(temp.data()) == nullptr) {
-    return absl::ErrnoToStatus(errno, absl::StrCat(dir, ": cannot create directory"));
+    return OutputErrno(errno, absl::StrCat(dir, ": cannot create directory"));
   }
   chmod(temp.c_str(), 0755);
-  return std::unique_ptr<CopyTree>(new CopyTree(final_dir, temp));
+  return std::unique_ptr<CopyTree>(new CopyTree(final_dir, temp, fs));
 }
 
 absl::Status CopyTree::MakeParents(const std::string& relative) {
@@ -259,7 +216,7 @@ absl::Status CopyTree::MakeParents(const std::string& relative) {
     if (mkdir(absl::StrCat(temp_dir_, "/", part).c_str(), 0755) == 0) {
       created_.push_back(std::move(part));
     } else if (errno != EEXIST) {
-      return absl::ErrnoToStatus(errno, absl::StrCat(dir_, "/", part, ": cannot create directory"));
+      return OutputErrno(errno, absl::StrCat(dir_, "/", part, ": cannot create directory"));
     }
   }
   return absl::OkStatus();
@@ -272,12 +229,13 @@ absl::Status CopyTree::Add(const std::string& relative, const std::string& sourc
   if (!checked.ok()) return checked;
   const std::string target = absl::StrCat(temp_dir_, "/", relative);
   const std::string shown = absl::StrCat(dir_, "/", relative);
-  int fd = open(target.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_NOFOLLOW | O_CLOEXEC, 0644);
-  if (fd < 0 && errno == EEXIST) {
-    return absl::InvalidArgumentError(
+  // Created new (O_EXCL): never through a link planted at the name.
+  auto file = fs_->CreateNew(target);
+  if (absl::IsAlreadyExists(file.status())) {
+    return InvalidRequest(
         absl::StrCat(shown, ": two kept documents would be copied to the same path"));
   }
-  if (fd < 0) return absl::ErrnoToStatus(errno, absl::StrCat(shown, ": cannot create"));
+  if (!file.ok()) return file.status();
   created_.push_back(relative);
   absl::StatusOr<std::unique_ptr<ByteStream>> input = OpenRaw(source);
   absl::Status status = input.status();
@@ -288,13 +246,10 @@ absl::Status CopyTree::Add(const std::string& relative, const std::string& sourc
       status = n.status();
       break;
     }
-    status = WriteAll(fd, buffer.data(), *n, shown);
+    status = (*file)->Append(std::string_view(buffer.data(), *n));
   }
-  if (!status.ok()) {
-    close(fd);
-    return status;
-  }
-  return SyncAndClose(fd, shown);
+  if (status.ok()) status = (*file)->Sync();
+  return status;
 }
 
 absl::Status CopyTree::Commit() {
@@ -302,21 +257,21 @@ absl::Status CopyTree::Commit() {
     const std::string path = absl::StrCat(temp_dir_, "/", part);
     struct stat info;
     if (lstat(path.c_str(), &info) == 0 && S_ISDIR(info.st_mode)) {
-      absl::Status synced = SyncDirectory(path);
+      absl::Status synced = SyncDirectory(path, fs_);
       if (!synced.ok()) return synced;
     }
   }
-  absl::Status synced = SyncDirectory(temp_dir_);
+  absl::Status synced = SyncDirectory(temp_dir_, fs_);
   if (!synced.ok()) return synced;
   // rename(2) replaces an empty directory and refuses a non-empty one.
   if (rename(temp_dir_.c_str(), dir_.c_str()) != 0) {
     if (errno == ENOTEMPTY || errno == EEXIST) {
-      return absl::InvalidArgumentError(absl::StrCat(dir_, ": exists and is not empty"));
+      return InvalidRequest(absl::StrCat(dir_, ": exists and is not empty"));
     }
-    return absl::ErrnoToStatus(errno, absl::StrCat(dir_, ": cannot rename into place"));
+    return OutputErrno(errno, absl::StrCat(dir_, ": cannot rename into place"));
   }
   committed_ = true;
-  return SyncDirectory(ParentDirectory(dir_));
+  return SyncDirectory(ParentDirectory(dir_), fs_);
 }
 
 }  // namespace kindred::io

@@ -1,9 +1,11 @@
 // Internal: outputs that appear whole or not at all.
 //
-// OutputFile writes under a temporary name beside its final path and renames
-// into place on Commit (after fsync of the file, then of the directory).
-// CopyTree builds a directory tree the same way. Either one, destroyed
-// without Commit, removes what it wrote.
+// OutputFile writes through an AtomicFile (io/atomic_file.h): under a
+// temporary name beside its final path, renamed into place on Commit (after
+// fsync of the file, then of the directory), through a FileSystem. CopyTree
+// builds a directory tree the same way; its files go through the FileSystem,
+// its directories (made, renamed, removed) through POSIX calls directly.
+// Either one, destroyed without Commit, removes what it wrote.
 //
 // Not thread-safe.
 #ifndef KINDRED_IO_OUTPUT_FILE_H_
@@ -16,6 +18,8 @@
 #include "absl/status/status.h"
 #include "absl/status/statusor.h"
 #include "absl/strings/string_view.h"
+#include "io/atomic_file.h"
+#include "kindred/file_io.h"
 
 namespace kindred::io {
 
@@ -24,8 +28,9 @@ namespace kindred::io {
 class OutputFile {
  public:
   // Creates the missing parent directories and a temporary file beside
-  // `path`.
-  static absl::StatusOr<std::unique_ptr<OutputFile>> Create(const std::string& path);
+  // `path`. Borrows `fs`, which must outlive the object.
+  static absl::StatusOr<std::unique_ptr<OutputFile>> Create(const std::string& path,
+                                                            FileSystem* fs = DefaultFileSystem());
   ~OutputFile();
 
   // Appends bytes (compressed on the way). Call before Commit.
@@ -39,13 +44,11 @@ class OutputFile {
 
  private:
   struct Encoder;
-  OutputFile(std::string path, std::string temp_path, int fd);
+  explicit OutputFile(std::unique_ptr<AtomicFile> file);
   absl::Status Encode(absl::string_view bytes, bool finish);
   absl::Status Flush();
 
-  std::string path_;
-  std::string temp_path_;
-  int fd_;
+  std::unique_ptr<AtomicFile> file_;
   std::unique_ptr<Encoder> encoder_;
   std::string pending_;  // bytes ready for the file
   bool committed_ = false;
@@ -57,7 +60,9 @@ class CopyTree {
  public:
   // Creates the missing parents of `dir` and a temporary sibling directory.
   // `dir` itself must not exist or be empty (checked again by Commit).
-  static absl::StatusOr<std::unique_ptr<CopyTree>> Create(const std::string& dir);
+  // Borrows `fs`, which must outlive the object.
+  static absl::StatusOr<std::unique_ptr<CopyTree>> Create(const std::string& dir,
+                                                          FileSystem* fs = DefaultFileSystem());
   ~CopyTree();
 
   // Copies the raw bytes of `source` to `relative` under the tree, creating
@@ -68,11 +73,12 @@ class CopyTree {
   absl::Status Commit();
 
  private:
-  CopyTree(std::string dir, std::string temp_dir);
+  CopyTree(std::string dir, std::string temp_dir, FileSystem* fs);
   absl::Status MakeParents(const std::string& relative);
 
   std::string dir_;
   std::string temp_dir_;
+  FileSystem* fs_;
   std::vector<std::string> created_;  // paths under temp_dir_, in creation order
   bool committed_ = false;
 };
@@ -86,7 +92,7 @@ absl::Status CheckRelativePath(absl::string_view relative);
 std::string ParentDirectory(const std::string& path);
 
 // fsync of a directory, so that a rename or creation in it is durable.
-absl::Status SyncDirectory(const std::string& dir);
+absl::Status SyncDirectory(const std::string& dir, FileSystem* fs = DefaultFileSystem());
 
 }  // namespace kindred::io
 

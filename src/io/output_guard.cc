@@ -11,6 +11,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
+#include "kindred/errors.h"
 
 namespace kindred::io {
 namespace {
@@ -18,12 +19,12 @@ namespace {
 absl::StatusOr<std::string> RealPath(const std::string& path) {
   std::unique_ptr<char, decltype(&free)> resolved(realpath(path.c_str(), nullptr), &free);
   if (resolved == nullptr)
-    return absl::ErrnoToStatus(errno, absl::StrCat(path, ": cannot resolve"));
+    return OutputErrno(errno, absl::StrCat(path, ": cannot resolve"));
   return std::string(resolved.get());
 }
 
 absl::Status Refuse(const std::string& path, absl::string_view reason) {
-  return absl::InvalidArgumentError(absl::StrCat(path, ": ", reason));
+  return InvalidRequest(absl::StrCat(path, ": ", reason));
 }
 
 bool SameFile(const std::string& a, const std::string& b) {
@@ -38,7 +39,7 @@ absl::Status CheckEmptyOrMissing(const std::string& dir) {
   if (stat(dir.c_str(), &info) != 0) return absl::OkStatus();
   if (!S_ISDIR(info.st_mode)) return Refuse(dir, "exists and is not a directory");
   DIR* handle = opendir(dir.c_str());
-  if (handle == nullptr) return absl::ErrnoToStatus(errno, absl::StrCat(dir, ": cannot read"));
+  if (handle == nullptr) return OutputErrno(errno, absl::StrCat(dir, ": cannot read"));
   bool empty = true;
   while (const dirent* entry = readdir(handle)) {
     absl::string_view name = entry->d_name;
@@ -80,7 +81,7 @@ absl::StatusOr<std::string> ResolvePath(const std::string& path) {
   std::string absolute = path;
   if (path.empty() || path[0] != '/') {
     char cwd[PATH_MAX];
-    if (getcwd(cwd, sizeof(cwd)) == nullptr) return absl::ErrnoToStatus(errno, "getcwd failed");
+    if (getcwd(cwd, sizeof(cwd)) == nullptr) return OutputErrno(errno, "getcwd failed");
     absolute = absl::StrCat(cwd, "/", path);
   }
   std::vector<std::string> missing;  // trailing components that do not exist, reversed

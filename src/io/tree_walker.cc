@@ -9,6 +9,7 @@
 #include <utility>
 
 #include "absl/strings/str_cat.h"
+#include "kindred/errors.h"
 
 namespace kindred::io {
 namespace {
@@ -85,7 +86,7 @@ absl::Status TreeWalker::PushDirectory(std::string prefix) {
   std::string path = prefix.empty() ? root_ : absl::StrCat(root_, "/", prefix);
   DIR* dir = opendir(path.c_str());
   if (dir == nullptr) {
-    return absl::ErrnoToStatus(errno, absl::StrCat(path, ": cannot read directory"));
+    return InputErrno(errno, absl::StrCat(path, ": cannot read directory"));
   }
   struct stat info;
   if (fstat(dirfd(dir), &info) == 0 &&
@@ -113,7 +114,7 @@ absl::Status TreeWalker::PushDirectory(std::string prefix) {
   const int read_error = errno;
   closedir(dir);
   if (read_error != 0) {
-    return absl::ErrnoToStatus(read_error, absl::StrCat(path, ": cannot read directory"));
+    return InputErrno(read_error, absl::StrCat(path, ": cannot read directory"));
   }
   std::sort(level.entries.begin(), level.entries.end(),
             [](const Entry& a, const Entry& b) { return a.key < b.key; });

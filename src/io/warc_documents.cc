@@ -10,6 +10,7 @@
 #include "io/html_text.h"
 #include "io/http_payload.h"
 #include "io/sha1.h"
+#include "kindred/errors.h"
 
 namespace kindred::io {
 namespace {
@@ -118,9 +119,9 @@ absl::StatusOr<bool> WarcDocuments::Next(
   record->role = Decide(*record);
   if (!record->role.document) {
     if (options_.warc.strict && !record->whole) {
-      return absl::ResourceExhaustedError(
-          absl::StrCat(reader_.Where(), ": the record's block of ", record->header.content_length,
-                       " bytes is larger than the limit (--max-document-size)"));
+      return LimitExceeded(absl::StrCat(reader_.Where(), ": the record's block of ",
+                                        record->header.content_length,
+                                        " bytes is larger than the limit (--max-document-size)"));
     }
     Count(record->role.reason);
   }
@@ -180,9 +181,8 @@ absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc
     if (absl::Status checked = CheckDigest(header, *head, body); !checked.ok()) return checked;
     absl::Status decoded = DecodeHttpBody(*head, body, limit, &payload_);
     if (decoded.code() == absl::StatusCode::kResourceExhausted) {
-      return absl::ResourceExhaustedError(
-          absl::StrCat(reader_.Where(), ": ", decoded.message(),
-                       " (--max-document-size); a decompression bomb?"));
+      return LimitExceeded(absl::StrCat(reader_.Where(), ": ", decoded.message(),
+                                        " (--max-document-size); a decompression bomb?"));
     }
     if (!decoded.ok()) {
       Count("payload not decodable (empty text)");
@@ -198,8 +198,7 @@ absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc
     doc->text.clear();
     return absl::OkStatus();
   }
-  if (!made.ok())
-    return absl::Status(made.code(), absl::StrCat(reader_.Where(), ": ", made.message()));
+  if (!made.ok()) return Annotate(made, reader_.Where());
   return absl::OkStatus();
 }
 

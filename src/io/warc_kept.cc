@@ -7,6 +7,7 @@
 #include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
 #include "io/warc_documents.h"
+#include "kindred/errors.h"
 
 namespace kindred::io {
 namespace {
@@ -116,7 +117,7 @@ absl::Status CopyKeptRecords(const std::string& path, const InputOptions& option
     bool write;
     if (record.role.document) {
       if (doc >= kept_docs.size()) {
-        return absl::FailedPreconditionError(absl::StrCat(path, ": changed while being read"));
+        return InputChanged(absl::StrCat(path, ": changed while being read"));
       }
       write = kept_docs[doc++];
       ++counts->documents;

@@ -9,6 +9,7 @@
 #include "absl/strings/match.h"
 #include "absl/strings/numbers.h"
 #include "absl/strings/str_cat.h"
+#include "kindred/errors.h"
 
 namespace kindred::io {
 namespace {
@@ -112,8 +113,8 @@ absl::StatusOr<bool> WarcReader::NextLine(absl::string_view* line, uint64_t limi
           absl::StrCat(Where(), ": the file ends inside a header line"));
     }
   }
-  return absl::ResourceExhaustedError(absl::StrCat(Where(), ": a header line is longer than ",
-                                                   limit, " bytes; this is not a WARC header"));
+  return LimitExceeded(absl::StrCat(Where(), ": a header line is longer than ", limit,
+                                    " bytes; this is not a WARC header"));
 }
 
 absl::StatusOr<bool> WarcReader::NextHeader(WarcHeader* header) {
@@ -161,8 +162,8 @@ absl::Status WarcReader::ParseHeader(WarcHeader* header) {
     }
     header->raw.append(raw_line_.data(), raw_line_.size());
     if (header->raw.size() > limits_.max_header_bytes) {
-      return absl::ResourceExhaustedError(absl::StrCat(Where(), ": the header is longer than ",
-                                                       limits_.max_header_bytes, " bytes"));
+      return LimitExceeded(absl::StrCat(Where(), ": the header is longer than ",
+                                        limits_.max_header_bytes, " bytes"));
     }
     if (line.empty()) break;
     if ((line[0] == ' ' || line[0] == '\t') && !header->fields.empty()) {

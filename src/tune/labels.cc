@@ -11,6 +11,7 @@
 #include "absl/strings/ascii.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "kindred/errors.h"
 
 namespace kindred {
 namespace {
@@ -246,7 +247,7 @@ absl::StatusOr<std::vector<LabelledPair>> ReadLabels(const std::string& path) {
   if (!file) return absl::NotFoundError(absl::StrCat(path, ": cannot open the labels file"));
   std::ostringstream content;
   content << file.rdbuf();
-  if (file.bad()) return absl::DataLossError(absl::StrCat(path, ": read error"));
+  if (file.bad()) return BadInput(absl::StrCat(path, ": read error"));
   return ParseLabels(content.str(), path);
 }
 

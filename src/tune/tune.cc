@@ -9,6 +9,7 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "kindred/candidates.h"
+#include "kindred/errors.h"
 #include "kindred/parallel.h"
 #include "kindred/signed_corpus.h"
 #include "kindred/signer.h"
@@ -228,7 +229,9 @@ absl::Status EvaluateShingle(const OpenCorpus& open_corpus, uint32_t shingle_ind
   if (shingle_index == 0) {
     if (absl::Status s = ResolveOnce(base, labels_name, options, &result); !s.ok()) return s;
   } else if (base.size() != result.documents) {
-    return absl::FailedPreconditionError("the corpus changed while it was read again");
+    return InputChanged(
+        absl::StrFormat("the corpus changed between two readings: %d documents now, %d before",
+                        base.size(), result.documents));
   }
   ShingleEvaluation evaluation{choice, stats.empty_documents, {}};
   for (const ResolvedPair& pair : result.labelled) {

@@ -1,6 +1,8 @@
-#include "index/fault_file_system.h"
+#include "testlib/fault_file_system.h"
 
-namespace kindred::index {
+#include "kindred/errors.h"
+
+namespace kindred::testing {
 namespace {
 
 class FaultAppendFile : public AppendFile {
@@ -87,13 +89,13 @@ FaultFileSystem::Verdict FaultFileSystem::NextStep(bool is_append, bool is_sync,
 absl::Status FaultFileSystem::FaultStatus() const {
   switch (kind_) {
     case FaultKind::kCrash:
-      return absl::AbortedError("injected crash");
+      return WriteFailed("injected crash");
     case FaultKind::kDiskFull:
-      return absl::ResourceExhaustedError("injected: No space left on device");
+      return DiskFull("injected: No space left on device");
     case FaultKind::kSyncFails:
-      return absl::AbortedError("injected: sync failed");
+      return WriteFailed("injected: sync failed");
   }
-  return absl::AbortedError("injected fault");
+  return WriteFailed("injected fault");
 }
 
 absl::StatusOr<std::unique_ptr<AppendFile>> FaultFileSystem::OpenAppend(const std::string& path) {
@@ -125,4 +127,4 @@ absl::Status FaultFileSystem::SyncDirectoryOf(const std::string& path) {
   return base_->SyncDirectoryOf(path);
 }
 
-}  // namespace kindred::index
+}  // namespace kindred::testing

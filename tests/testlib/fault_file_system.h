@@ -1,19 +1,22 @@
-// A FileSystem that forwards to another and injects faults, for tests of
-// crash safety and full disks. Each mutating call (Append, WriteAt, Sync, Truncate,
-// Rename, Remove, SyncDirectoryOf, CreateNew) counts as one step. When the
-// step numbered `fail_at` (0-based) comes:
+// Test-only: a FileSystem that forwards to another and injects faults, for
+// tests of crash safety and full disks (index writers, output files). Each
+// mutating call (Append, WriteAt, Sync, Truncate, Rename, Remove,
+// SyncDirectoryOf, CreateNew) counts as one step. When the step numbered
+// `fail_at` (0-based) comes:
 //
 // * kCrash: an Append or WriteAt writes only the first half of its bytes,
-//   any other step does nothing; that step and every later mutating call fail with
-//   Aborted, as if the process had died there (later cleanup cannot run).
+//   any other step does nothing; that step and every later mutating call
+//   fail with WriteFailed (Aborted), as if the process had died there (later
+//   cleanup cannot run).
 // * kDiskFull: an Append writes the first half of its bytes and fails with
-//   ResourceExhausted; later steps succeed unless they append (the disk
-//   stays full), so the caller's clean-up (truncate, remove) can run.
+//   DiskFull (ResourceExhausted); later steps succeed unless they append
+//   (the disk stays full), so the caller's clean-up (truncate, remove) can
+//   run.
 // * kSyncFails: the step fails only if it is a Sync; other steps pass.
 //
 // Reads (Map, Exists, LockExclusive) are never failed. Not thread-safe.
-#ifndef KINDRED_INDEX_FAULT_FILE_SYSTEM_H_
-#define KINDRED_INDEX_FAULT_FILE_SYSTEM_H_
+#ifndef KINDRED_TESTS_TESTLIB_FAULT_FILE_SYSTEM_H_
+#define KINDRED_TESTS_TESTLIB_FAULT_FILE_SYSTEM_H_
 
 #include <cstdint>
 #include <memory>
@@ -21,7 +24,7 @@
 
 #include "kindred/file_io.h"
 
-namespace kindred::index {
+namespace kindred::testing {
 
 enum class FaultKind { kCrash, kDiskFull, kSyncFails };
 
@@ -72,6 +75,6 @@ class FaultFileSystem : public FileSystem {
   bool fired_ = false;
 };
 
-}  // namespace kindred::index
+}  // namespace kindred::testing
 
-#endif  // KINDRED_INDEX_FAULT_FILE_SYSTEM_H_
+#endif  // KINDRED_TESTS_TESTLIB_FAULT_FILE_SYSTEM_H_
