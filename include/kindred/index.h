@@ -120,6 +120,10 @@ class IndexReader {
   // after verifying its checksum: DataLoss names the document's id and the
   // damaged byte range on mismatch.
   absl::Status ReadShingles(uint32_t doc, std::vector<uint64_t>* out) const;
+  // The document's encoded shingle set as stored (FORMAT.md, "shingle_bytes")
+  // and, in *checksum, the checksum its record holds; unverified. For
+  // copying a set without decoding it.
+  std::string_view StoredShingles(uint32_t doc, uint64_t* checksum) const;
   // Verifies the checksum of every document's shingle set (opening checks
   // the tables only); DataLoss as ReadShingles for the first mismatch.
   absl::Status VerifyShingleChecksums() const;
