@@ -54,7 +54,7 @@ void PrintSummary(const AddFlags& flags, const AppendResult& result, const Signe
                "%s live\n",
                flags.index.c_str(), result.added, result.replaced, result.skipped, segment.c_str(),
                Counted(match_count, "match", "matches").c_str(), MeasureName(match.measure),
-               match.threshold, BandsByRows(matched.bands(), matched.rows()).c_str(),
+               match.threshold, CandidateSearchText(matched, match).c_str(),
                Counted(after.live_count(), "document").c_str());
 }
 
@@ -105,7 +105,7 @@ int RunAdd(const AddFlags& flags) {
   auto appended = writer->Append(batch, *policy);
   if (!appended.ok()) return Fail(IndexWriteExitCode(appended.status()), appended.status());
   std::string out;
-  WriteMatchRecords(*format, *matches, **reader, batch, &out);
+  WriteMatchRecords(*format, *matches, **reader, batch, &out, &match);
   if (absl::Status written = WriteOutputFile("-", out); !written.ok()) {
     return Fail(kExitOutput, written);
   }

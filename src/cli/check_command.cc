@@ -90,7 +90,7 @@ int RunCheck(const CheckFlags& flags) {
   auto matches = MatchForQuery(**reader, uploads, std::nullopt, options);
   if (!matches.ok()) return Fail(matches.status());
   std::string out;
-  WriteMatchRecords(*format, *matches, **reader, uploads, &out);
+  WriteMatchRecords(*format, *matches, **reader, uploads, &out, &match);
   if (absl::Status written = WriteOutputFile("-", out); !written.ok()) {
     return Fail(kExitOutput, written);
   }
@@ -101,7 +101,7 @@ int RunCheck(const CheckFlags& flags) {
                  "documents, %llu empty\n",
                  Counted(uploads.size(), "document").c_str(), (*reader)->live_count(),
                  MeasureName(match.measure), match.threshold,
-                 BandsByRows((*reader)->bands(), (*reader)->rows()).c_str(),
+                 CandidateSearchText(**reader, match).c_str(),
                  // the verb: "1 matches", "2 match"
                  Counted(matched_count, "matches", "match").c_str(),
                  static_cast<unsigned long long>(stats.empty_documents));

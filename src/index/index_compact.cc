@@ -15,6 +15,7 @@
 #include "absl/strings/str_format.h"
 #include "index/codec.h"
 #include "index/commit_area.h"
+#include "index/containment_keys.h"
 #include "index/format.h"
 #include "index/key_sorter.h"
 #include "index/segment.h"
@@ -90,8 +91,11 @@ struct Plan {
 // and sorts the band keys of the new banding into *keys.
 absl::Status Survey(const IndexReader& reader, const IndexSettings& settings, Plan* plan,
                     index::KeySorter* keys) {
-  const Banding banding{settings.bands, settings.rows};
-  std::vector<uint64_t> band_keys(banding.bands);
+  std::shared_ptr<const ContainmentPlan> containment;
+  if (settings.containment.stored()) {
+    containment = index::PlanOf(settings.containment, settings.signature.perms);
+  }
+  std::vector<uint64_t> band_keys;
   std::vector<uint64_t> shingles;
   index::SegmentHeader& h = plan->header;
   for (uint32_t doc = 0; doc < reader.document_count(); ++doc) {
@@ -105,9 +109,9 @@ absl::Status Survey(const IndexReader& reader, const IndexSettings& settings, Pl
     plan->live.push_back(doc);
     h.id_bytes += reader.id(doc).size();
     h.shingle_bytes += set.size();
-    BandKeys(reader.signature(doc), banding, absl::MakeSpan(band_keys));
+    index::DocumentKeys(settings, containment.get(), reader.signature(doc),
+                        reader.shingle_count(doc), &band_keys);
     for (uint64_t key : band_keys) {
-      if (key == kNoBandKey) continue;
       if (absl::Status added = keys->Add(key, number); !added.ok()) return added;
     }
   }
