@@ -22,6 +22,7 @@ expect_exit 0 "build for containment" -- "$KINDRED" build -q "$WORK/c.kin" "$WOR
 expect_exit 0 "build for jaccard" -- "$KINDRED" build -q "$WORK/j.kin" "$WORK/indexed.jsonl"
 expect_exit 0 "info" -- "$KINDRED" info "$WORK/c.kin"
 grep -q "^format version   3 " "$WORK/out" || fail "containment index: $(head -3 "$WORK/out")"
+grep -q "^containment keys for containment >= 0.7, smaller document at least 20 shingles, 16 size partitions$" "$WORK/out" || fail "info: containment keys"
 expect_exit 0 "info jaccard" -- "$KINDRED" info "$WORK/j.kin"
 grep -q "^format version   2 " "$WORK/out" || fail "jaccard index: $(head -3 "$WORK/out")"
 expect_exit 0 "audit" -- "$KINDRED" audit -q "$WORK/c.kin"
