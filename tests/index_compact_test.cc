@@ -91,5 +91,31 @@ TEST_CASE("compaction under a memory budget writes the same bytes", "[compact]")
   REQUIRE(testing::ReadFile(a) == testing::ReadFile(one));
 }
 
+TEST_CASE("compaction gives an index made for containment its containment keys", "[compact]") {
+  TempDir dir;
+  // A version-2 file whose default measure is containment (as programs
+  // before version 3 wrote one): no containment keys.
+  IndexSettings settings = testing::TestIndexSettings();
+  settings.measure = Measure::kContainment;
+  settings.threshold = 0.7;
+  SignedCorpus all = SignTexts(MakeTexts(9, 60, 40, "u"), settings.signature);
+  const std::string path = dir.File("old.kin");
+  REQUIRE(CreateIndex(path, settings, all).ok());
+  REQUIRE(IndexReader::Open(path).value()->format_version() == 2);
+  REQUIRE(CompactIndex(path).ok());
+  auto reader = IndexReader::Open(path);
+  REQUIRE(reader.ok());
+  REQUIRE((*reader)->format_version() == 3);
+  REQUIRE((*reader)->settings().containment == ContainmentKeysFor(0.7, kDefaultMinContainedSize));
+  auto audit = AuditIndex(path);
+  REQUIRE(audit.ok());
+  REQUIRE(audit->ok());
+  // The same bytes as a file made with the keys from the start.
+  settings.containment = ContainmentKeysFor(0.7, kDefaultMinContainedSize);
+  const std::string fresh = dir.File("fresh.kin");
+  REQUIRE(CreateIndex(fresh, settings, all).ok());
+  REQUIRE(testing::ReadFile(path) == testing::ReadFile(fresh));
+}
+
 }  // namespace
 }  // namespace kindred

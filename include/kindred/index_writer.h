@@ -157,7 +157,10 @@ struct CompactResult {
 // Streams: ids, signatures and shingle sets are copied from the mapped file
 // (every set's checksum verified first), so memory is the band-key sort
 // (see `memory`) plus 4 bytes a live document. A version-1 file is
-// rewritten in the current version.
+// rewritten in the current version; a file whose default measure is
+// containment but that stores no containment keys (made before format
+// version 3) gets them, for its threshold and kDefaultMinContainedSize
+// (version 3).
 absl::StatusOr<CompactResult> CompactIndex(const std::string& path,
                                            const CompactOptions& compact = {},
                                            const IndexWriteOptions& options = {});

@@ -254,6 +254,11 @@ absl::StatusOr<CompactResult> CompactIndex(const std::string& path, const Compac
     settings.bands = compact.bands;
     settings.rows = compact.rows;
   }
+  // An index made for containment before version 3 (or built without its
+  // keys) is upgraded: it gets the containment keys of its threshold.
+  if (settings.measure == Measure::kContainment && !settings.containment.stored()) {
+    settings.containment = ContainmentKeysFor(settings.threshold, kDefaultMinContainedSize);
+  }
   if (uint64_t{settings.bands} * settings.rows > settings.signature.perms) {
     return absl::InvalidArgumentError("index banding does not fit the signature length");
   }
