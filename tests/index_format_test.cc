@@ -151,12 +151,39 @@ TEST_CASE("file header errors", "[format]") {
   REQUIRE(absl::IsDataLoss(DecodeFileHeader(flipped, &back, &size)));
   // A newer version with a valid checksum: FailedPrecondition, not DataLoss.
   std::string newer = header;
-  newer[8] = 3;
+  newer[8] = 4;
   uint64_t checksum = Checksum(std::string_view(newer).substr(0, newer.size() - 8));
   std::memcpy(newer.data() + newer.size() - 8, &checksum, 8);
   absl::Status status = DecodeFileHeader(newer, &back, &size);
   REQUIRE(absl::IsFailedPrecondition(status));
-  REQUIRE(std::string(status.message()).find("version 3 is newer") != std::string::npos);
+  REQUIRE(std::string(status.message()).find("version 4 is newer") != std::string::npos);
+}
+
+TEST_CASE("a version-3 header holds the containment-key settings", "[format]") {
+  IndexSettings settings = testing::TestIndexSettings();
+  REQUIRE(VersionFor(settings) == 2);
+  settings.containment = ContainmentKeysFor(0.7, 20);
+  // Partitions 20 * 2^k .. 20 * 2^(k+1) - 1 up to the one holding 2^20.
+  REQUIRE(settings.containment.partitions == 16);
+  REQUIRE(VersionFor(settings) == 3);
+  std::string header = EncodeFileHeader(settings);
+  REQUIRE(header.size() == 512);
+  REQUIRE(LoadU32(header.data() + 8) == 3);
+  REQUIRE(LoadU32(header.data() + 488) == 20);
+  REQUIRE(LoadU32(header.data() + 492) == 16);
+  REQUIRE(std::bit_cast<double>(LoadU64(header.data() + 496)) == 0.7);
+  IndexSettings back;
+  size_t size = 0;
+  uint32_t version = 0;
+  REQUIRE(DecodeFileHeader(header, &back, &size, &version).ok());
+  REQUIRE(version == 3);
+  REQUIRE(back == settings);
+  // Out-of-range fields under a valid checksum are damage.
+  std::string bad = header;
+  StoreU32(bad.data() + 492, 0);
+  uint64_t checksum = Checksum(std::string_view(bad).substr(0, bad.size() - 8));
+  StoreU64(bad.data() + bad.size() - 8, checksum);
+  REQUIRE(absl::IsDataLoss(DecodeFileHeader(bad, &back, &size)));
 }
 
 TEST_CASE("segment encodes and parses every field", "[format]") {

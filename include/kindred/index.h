@@ -34,6 +34,31 @@
 
 namespace kindred {
 
+// Containment keys (format version 3; src/index/FORMAT.md, "Containment
+// keys"): when min_size > 0, each segment's band-key table also holds every
+// document's band keys under the containment plan (containment_lsh.h) for
+// `threshold`, `min_size` and `partitions` size partitions, so that a
+// containment query with that threshold and least contained size looks
+// them up instead of computing them. All 0: none (versions 1 and 2).
+struct ContainmentKeys {
+  double threshold = 0;
+  uint32_t min_size = 0;
+  uint32_t partitions = 0;
+  bool stored() const { return min_size > 0; }
+  friend bool operator==(const ContainmentKeys&, const ContainmentKeys&) = default;
+};
+
+// Sizes up to this many shingles (about a million words) get a size
+// partition of their own in an index's containment plan; larger documents
+// share the last one (found with less certainty: LSH Ensemble plans a
+// partition for its upper bound). A judgement of this project.
+inline constexpr uint32_t kContainmentKeysLargestSize = uint32_t{1} << 20;
+
+// The containment keys for a threshold and least contained size: as many
+// partitions as cover kContainmentKeysLargestSize. Requires threshold in
+// (0, 1], min_size >= 1.
+ContainmentKeys ContainmentKeysFor(double threshold, uint32_t min_size);
+
 // What the file header holds.
 struct IndexSettings {
   // Decide every stored shingle set and signature.
@@ -47,6 +72,8 @@ struct IndexSettings {
   // Default query threshold and measure.
   double threshold = 0.8;
   Measure measure = Measure::kJaccard;
+  // Stored containment keys (none by default).
+  ContainmentKeys containment;
 
   friend bool operator==(const IndexSettings&, const IndexSettings&) = default;
 };
@@ -92,7 +119,8 @@ class IndexReader {
   absl::Status ReadAppended(const IndexOpenOptions& options = {});
 
   const std::string& path() const { return path_; }
-  // 2 for files that record their commits; 1 for older files (readable,
+  // 2 for files that record their commits, 3 for those that also store
+  // containment keys (settings().containment); 1 for older files (readable,
   // not writable: `compact` rewrites them as version 2).
   uint32_t format_version() const { return format_version_; }
   // The commit generation the file records (0 for version 1), and how many
@@ -131,6 +159,10 @@ class IndexReader {
   // after verifying its checksum: DataLoss names the document's id and the
   // damaged byte range on mismatch.
   absl::Status ReadShingles(uint32_t doc, std::vector<uint64_t>* out) const;
+  // The document's encoded shingle set as stored (FORMAT.md, "shingle_bytes")
+  // and, in *checksum, the checksum its record holds; unverified. For
+  // copying a set without decoding it.
+  std::string_view StoredShingles(uint32_t doc, uint64_t* checksum) const;
   // Verifies the checksum of every document's shingle set (opening checks
   // the tables only); DataLoss as ReadShingles for the first mismatch.
   absl::Status VerifyShingleChecksums() const;

@@ -72,12 +72,20 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
                                                           const SignedCorpus& batch,
                                                           const IndexMatchOptions& options);
 
+// Which way a containment match goes: "id_in_match" when at least
+// `threshold` of the batch document lies inside the other, "match_in_id"
+// when at least that much of the other lies inside the batch document,
+// "both" when both hold.
+const char* ContainedWay(const IndexMatch& match, double threshold);
+
 // Match records (README.md, "Output fields"): one per match, columns id,
 // match, match_in (index or batch), jaccard, estimate,
 // containment_id_in_match, containment_match_in_id, shared, shingles_id,
-// shingles_match. Appends to *out.
+// shingles_match, and, when `match` is given with the measure containment,
+// contained (ContainedWay). Appends to *out.
 void WriteMatchRecords(RecordFormat format, absl::Span<const IndexMatch> matches,
-                       const IndexReader& reader, const SignedCorpus& batch, std::string* out);
+                       const IndexReader& reader, const SignedCorpus& batch, std::string* out,
+                       const MatchSettings* match = nullptr);
 
 // The live documents of an index as a signed corpus (index order; shingle
 // sets verified), with numbers[i] = the index document number of entry i.

@@ -45,18 +45,32 @@ struct QueryRequest {
   // threshold is given, the banding ChooseBanding picks for it.
   uint32_t bands = 0;
   uint32_t rows = 0;
+  // Containment: the least size of the smaller document of a pair (unset:
+  // kDefaultMinContainedSize).
+  std::optional<uint32_t> min_contained_size;
 };
 
 // The match settings of a query against an index with `stored` settings;
-// bands and rows are always set (never 0): when they differ from the stored
-// ones, the reader that answers the query must be re-banded to them
-// (IndexReader::UseBanding). Errors: InvalidArgument (a threshold outside
+// bands and rows are set (not 0) except for the containment search (the
+// measure containment without an explicit banding: both 0, see
+// UsesContainmentSearch in sweep.h; its candidates come from the index's
+// containment keys, or from keys computed in memory when the index stores
+// none for this threshold and least contained size). When they differ from
+// the stored ones, the reader that answers the query must be re-banded to
+// them (IndexReader::UseBanding). Errors: InvalidArgument (a threshold outside
 // (0, 1], a banding that does not fit the signatures).
 absl::StatusOr<MatchSettings> ResolveQueryMatch(const IndexSettings& stored,
                                                 const QueryRequest& request);
 
-// Whether `match` needs a reader banded otherwise than the stored tables.
+// Whether `match` needs a reader banded otherwise than the stored tables
+// (never for the containment search).
 bool NeedsOtherBanding(const IndexSettings& stored, const MatchSettings& match);
+
+// How a query's candidates are found, for summaries: the banding ("15
+// bands x 8 rows"), or for the containment search "containment LSH, keys
+// stored in the index" or "containment LSH, keys computed in memory" (the
+// index stores none for this threshold and least contained size).
+std::string CandidateSearchText(const IndexReader& reader, const MatchSettings& match);
 
 // How many of the `uploads` batch documents have at least one match among
 // the indexed documents.

@@ -141,6 +141,13 @@ struct CompactOptions {
   // New banding of the stored band-key tables; 0 keeps the current one.
   uint32_t bands = 0;
   uint32_t rows = 0;
+  // Memory budget in bytes for sorting the band-key table (0: none, the
+  // whole table is sorted in memory, 32 bytes an entry at the peak). With a
+  // budget (at least 4 MB is used), sorted runs go to an unlinked scratch
+  // file in `scratch_dir` (empty: the index's directory). The new file is
+  // the same bytes either way.
+  uint64_t memory = 0;
+  std::string scratch_dir = "";
 };
 
 struct CompactResult {
@@ -149,10 +156,18 @@ struct CompactResult {
   uint32_t documents_after = 0;   // the live documents, renumbered in order
   uint64_t bytes_before = 0;
   uint64_t bytes_after = 0;
+  size_t scratch_runs = 0;  // sorted runs of band keys written to scratch
 };
 
 // Rewrites the index as one segment of its live documents (in their order),
 // atomically: a crash leaves the old file intact. Takes the writer lock.
+// Streams: ids, signatures and shingle sets are copied from the mapped file
+// (every set's checksum verified first), so memory is the band-key sort
+// (see `memory`) plus 4 bytes a live document. A version-1 file is
+// rewritten in the current version; a file whose default measure is
+// containment but that stores no containment keys (made before format
+// version 3) gets them, for its threshold and kDefaultMinContainedSize
+// (version 3).
 absl::StatusOr<CompactResult> CompactIndex(const std::string& path,
                                            const CompactOptions& compact = {},
                                            const IndexWriteOptions& options = {});

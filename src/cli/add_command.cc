@@ -41,7 +41,7 @@ void PrintSummary(const std::string& index, const AppendResult& result, const Si
                "%s live\n",
                index.c_str(), result.added, result.replaced, result.skipped, segment.c_str(),
                Counted(match_count, "match", "matches").c_str(), MeasureName(match.measure),
-               match.threshold, BandsByRows(matched.bands(), matched.rows()).c_str(),
+               match.threshold, CandidateSearchText(matched, match).c_str(),
                Counted(after.live_count(), "document").c_str());
 }
 

@@ -51,6 +51,10 @@ absl::StatusOr<IndexSettings> ToIndexSettings(const BuildFlags& flags) {
                                       : ChooseBanding(match->threshold, settings.signature.perms);
   settings.bands = banding.bands;
   settings.rows = banding.rows;
+  // An index built for containment stores the containment search's keys.
+  if (match->measure == Measure::kContainment) {
+    settings.containment = ContainmentKeysFor(match->threshold, match->min_contained_size);
+  }
   settings.unicode_version = UnicodeVersionString();
   return settings;
 }

@@ -63,7 +63,7 @@ int RunCheck(const CheckFlags& check) {
                  "documents, %llu empty\n",
                  Counted(batch.documents->size(), "document").c_str(), (*reader)->live_count(),
                  MeasureName(batch.match.measure), batch.match.threshold,
-                 BandsByRows((*reader)->bands(), (*reader)->rows()).c_str(),
+                 CandidateSearchText(**reader, batch.match).c_str(),
                  // the verb: "1 matches", "2 match"
                  Counted(matched_count, "matches", "match").c_str(),
                  static_cast<unsigned long long>(batch.stats.empty_documents));

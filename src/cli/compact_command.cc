@@ -4,6 +4,7 @@
 
 #include "cli/cli.h"
 #include "cli/index_options.h"
+#include "cli/output.h"
 #include "cli/usage.h"
 #include "core/plural.h"
 #include "kindred/index_writer.h"
@@ -17,6 +18,8 @@ struct CompactFlags {
   uint32_t rows = 0;
   double wait_lock = 0;
   bool quiet = false;
+  std::string memory;
+  std::string scratch_dir;
 };
 
 int RunCompact(const CompactFlags& flags) {
@@ -26,7 +29,14 @@ int RunCompact(const CompactFlags& flags) {
   }
   IndexWriteOptions options;
   options.lock_wait_seconds = flags.wait_lock;
-  auto result = CompactIndex(flags.index, CompactOptions{flags.bands, flags.rows}, options);
+  CompactOptions compact{flags.bands, flags.rows};
+  if (!flags.memory.empty()) {
+    auto memory = ParseByteSize(flags.memory);
+    if (!memory.ok()) return Fail(kExitUsage, memory.status());
+    compact.memory = *memory;
+  }
+  compact.scratch_dir = flags.scratch_dir;
+  auto result = CompactIndex(flags.index, compact, options);
   if (!result.ok()) {
     // Its invalid arguments are the --bands and --rows given.
     const absl::Status& status = result.status();
@@ -39,6 +49,10 @@ int RunCompact(const CompactFlags& flags) {
                  Counted(result->documents_after, "document").c_str(),
                  static_cast<unsigned long long>(result->bytes_before),
                  static_cast<unsigned long long>(result->bytes_after));
+    if (result->scratch_runs > 0) {
+      std::fprintf(stderr, "  band keys sorted in %s under --memory\n",
+                   Counted(result->scratch_runs, "run").c_str());
+    }
   }
   return kExitOk;
 }
@@ -54,6 +68,17 @@ void RegisterCompact(CLI::App& app, int* exit_code) {
       ->transform(WholeNumber(0, UINT32_MAX));
   command->add_option("--rows", flags->rows, "rows per band of the stored band keys")
       ->transform(WholeNumber(0, UINT32_MAX));
+  command
+      ->add_option("--memory", flags->memory,
+                   "bound on the band keys held in memory while they are sorted, e.g. 1G (at "
+                   "least 4M is used): sorted runs go to the scratch directory; the new file is "
+                   "the same bytes (default: no bound)")
+      ->group("Resources");
+  command
+      ->add_option("--scratch-dir", flags->scratch_dir,
+                   "directory for the sorted runs (default: the index's directory); the file is "
+                   "removed at once and vanishes when kindred exits")
+      ->group("Resources");
   AddWaitLockOption(command, &flags->wait_lock);
   command->add_flag("-q,--quiet", flags->quiet, "no summary on stderr");
   command->callback([flags, exit_code] { *exit_code = RunCompact(*flags); });

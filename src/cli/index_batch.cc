@@ -61,7 +61,7 @@ int MatchBatch(const BatchFlags& flags, const BatchRequest& request, IndexReader
 int WriteBatchMatches(const BatchRequest& request, const MatchedBatch& batch,
                       const IndexReader& reader) {
   std::string out;
-  WriteMatchRecords(request.format, batch.matches, reader, *batch.documents, &out);
+  WriteMatchRecords(request.format, batch.matches, reader, *batch.documents, &out, &batch.match);
   if (absl::Status written = WriteOutputFile("-", out); !written.ok()) {
     return Fail(kExitOutput, written);
   }

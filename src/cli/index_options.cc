@@ -52,6 +52,7 @@ absl::StatusOr<MatchSettings> IndexQueryMatch(const MatchFlags& flags, const Giv
   }
   request.bands = flags.bands;
   request.rows = flags.rows;
+  request.min_contained_size = flags.min_contained_size;
   auto match = ResolveQueryMatch(reader->settings(), request);
   if (!match.ok()) return match.status();
   if (NeedsOtherBanding(reader->settings(), *match)) {

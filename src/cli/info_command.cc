@@ -46,6 +46,13 @@ std::string TextReport(const IndexReader& reader) {
   absl::StrAppendFormat(&out, "threshold        %s >= %g (candidate probability there %.4f)\n",
                         MeasureName(s.measure), s.threshold,
                         CandidateProbability(s.threshold, s.bands, s.rows));
+  if (s.containment.stored()) {
+    absl::StrAppendFormat(&out,
+                          "containment keys for containment >= %g, smaller document at least %u "
+                          "shingles, %u size partitions\n",
+                          s.containment.threshold, s.containment.min_size,
+                          s.containment.partitions);
+  }
   absl::StrAppendFormat(&out, "documents        %u live, %u retired, %u in all\n",
                         reader.live_count(), reader.document_count() - reader.live_count(),
                         reader.document_count());

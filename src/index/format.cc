@@ -59,7 +59,10 @@ absl::Status DecodeSettingFields(ByteReader* reader_ptr, uint32_t version, uint3
 
 }  // namespace
 
+uint32_t VersionFor(const IndexSettings& settings) { return settings.containment.stored() ? 3 : 2; }
+
 std::string EncodeFileHeader(const IndexSettings& settings, uint32_t version) {
+  if (version == 0) version = VersionFor(settings);
   const std::string& unicode = settings.unicode_version;
   std::string out;
   ByteWriter writer(&out);
@@ -82,6 +85,12 @@ std::string EncodeFileHeader(const IndexSettings& settings, uint32_t version) {
   writer.Bytes(unicode);
   writer.PadTo8();
   if (version != 1) out.resize(kHeaderSizeV2 - 8, '\0');
+  if (version == 3) {
+    char* fields = out.data() + kContainmentFieldsOffset;
+    StoreU32(fields, settings.containment.min_size);
+    StoreU32(fields + 4, settings.containment.partitions);
+    StoreU64(fields + 8, std::bit_cast<uint64_t>(settings.containment.threshold));
+  }
   writer.U64(Checksum(out));
   return out;
 }
@@ -117,6 +126,15 @@ absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings, si
   IndexSettings decoded;
   absl::Status fields = DecodeSettingFields(&reader, version, size, &decoded);
   if (!fields.ok()) return fields;
+  if (version == 3) {
+    const char* at = file.data() + kContainmentFieldsOffset;
+    ContainmentKeys& keys = decoded.containment;
+    keys = {std::bit_cast<double>(LoadU64(at + 8)), LoadU32(at), LoadU32(at + 4)};
+    if (keys.min_size < 1 || keys.partitions < 1 || keys.partitions > 32 ||
+        !(keys.threshold > 0.0 && keys.threshold <= 1.0)) {
+      return absl::DataLossError("index header: containment-key settings out of range");
+    }
+  }
   *settings = std::move(decoded);
   *header_size = size;
   if (version_out != nullptr) *version_out = version;

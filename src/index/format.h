@@ -17,9 +17,12 @@ static_assert(std::endian::native == std::endian::little,
               "the index maps little-endian tables directly");
 
 inline constexpr std::string_view kFileMagic{"KINDRED\x1a", 8};  // frozen
-// Version written by this program; version 1 files (no commit area) are
-// still read (FORMAT.md, "Version 1 files").
-inline constexpr uint32_t kFormatVersion = 2;
+// The newest version this program reads and writes: 3 for files that store
+// containment keys, else 2 (VersionFor); version 1 files (no commit area)
+// are still read (FORMAT.md, "Version 1 files").
+inline constexpr uint32_t kFormatVersion = 3;
+// Where a version-3 header keeps its containment-key settings (FORMAT.md).
+inline constexpr size_t kContainmentFieldsOffset = 488;
 inline constexpr uint32_t kOldestFormatVersion = 1;
 inline constexpr std::string_view kSegmentMagic{"KSEG", 4};  // frozen
 inline constexpr std::string_view kCommitMagic{"KCMT", 4};   // frozen
@@ -36,11 +39,15 @@ inline constexpr uint32_t kDocFlagHasPriority = 1;  // frozen: doc_table flags b
 
 inline uint64_t RoundUp8(uint64_t n) { return (n + 7) & ~uint64_t{7}; }
 
-// File header <-> IndexSettings. `version` is kFormatVersion except in
-// tests that write a version 1 file.
-std::string EncodeFileHeader(const IndexSettings& settings, uint32_t version = kFormatVersion);
+// The version a file with `settings` is written in: 3 when it stores
+// containment keys, else 2 (readable by programs that know version 2).
+uint32_t VersionFor(const IndexSettings& settings);
+
+// File header <-> IndexSettings. `version` 0 is VersionFor(settings); tests
+// give 1 to write a version 1 file.
+std::string EncodeFileHeader(const IndexSettings& settings, uint32_t version = 0);
 // Decodes the header at the start of `file`; *header_size gets its length,
-// *version (when not null) the format version (1 or 2). DataLoss for a bad
+// *version (when not null) the format version (1, 2 or 3). DataLoss for a bad
 // magic, a short or damaged header; FailedPrecondition for a newer format
 // version.
 absl::Status DecodeFileHeader(std::string_view file, IndexSettings* settings, size_t* header_size,

@@ -5,6 +5,7 @@
 
 #include "absl/container/flat_hash_map.h"
 #include "absl/strings/str_format.h"
+#include "index/containment_keys.h"
 #include "index/format.h"
 #include "index/segment.h"
 #include "kindred/banding.h"
@@ -61,14 +62,17 @@ void CheckDocuments(const IndexReader& reader, AuditReport* report) {
 void CheckBandKeys(const IndexReader& reader, AuditReport* report) {
   std::vector<std::pair<uint64_t, uint32_t>> stored, expected;
   reader.ForEachBandKey([&](uint64_t key, uint32_t doc) { stored.emplace_back(key, doc); });
-  Banding banding{reader.settings().bands, reader.settings().rows};
-  std::vector<uint64_t> keys(banding.bands);
+  const IndexSettings& settings = reader.settings();
+  std::shared_ptr<const ContainmentPlan> plan;
+  if (settings.containment.stored()) {
+    plan = index::PlanOf(settings.containment, settings.signature.perms);
+  }
+  std::vector<uint64_t> keys;
   for (uint32_t doc = 0; doc < reader.document_count(); ++doc) {
     if (!reader.is_live(doc)) continue;
-    BandKeys(reader.signature(doc), banding, absl::MakeSpan(keys));
-    for (uint64_t key : keys) {
-      if (key != kNoBandKey) expected.emplace_back(key, doc);
-    }
+    index::DocumentKeys(settings, plan.get(), reader.signature(doc), reader.shingle_count(doc),
+                        &keys);
+    for (uint64_t key : keys) expected.emplace_back(key, doc);
   }
   std::sort(stored.begin(), stored.end());
   std::sort(expected.begin(), expected.end());

@@ -4,8 +4,10 @@
 #include <chrono>
 #include <mutex>
 
+#include "index/containment_lookup.h"
 #include "kindred/banding.h"
 #include "kindred/candidates.h"
+#include "kindred/containment_candidates.h"
 #include "kindred/parallel.h"
 #include "kindred/signer.h"
 #include "kindred/verify.h"
@@ -13,16 +15,23 @@
 namespace kindred {
 namespace {
 
-// The confirmed indexed matches of batch document `q`, appended to *out.
-absl::Status MatchOne(const IndexReader& reader, const SignedCorpus& batch, uint32_t q,
-                      const IndexMatchOptions& options, std::vector<IndexMatch>* out,
-                      uint64_t* crowded) {
+// The confirmed indexed matches of batch document `q`, appended to *out;
+// candidates from `containment` when not null, else from the reader's
+// banding.
+absl::Status MatchOne(const IndexReader& reader, const index::ContainmentLookup* containment,
+                      const SignedCorpus& batch, uint32_t q, const IndexMatchOptions& options,
+                      std::vector<IndexMatch>* out, uint64_t* crowded) {
   auto query = batch.shingles(q);
   if (query.empty()) return absl::OkStatus();
-  std::vector<uint64_t> keys(reader.bands());
-  BandKeys(batch.signature(q), Banding{reader.bands(), reader.rows()}, absl::MakeSpan(keys));
   std::vector<uint32_t> candidates;
-  reader.Candidates(keys, &candidates, options.max_bucket, crowded);
+  if (containment != nullptr) {
+    containment->Candidates(batch.signature(q), static_cast<uint32_t>(query.size()),
+                            options.max_bucket, &candidates, crowded);
+  } else {
+    std::vector<uint64_t> keys(reader.bands());
+    BandKeys(batch.signature(q), Banding{reader.bands(), reader.rows()}, absl::MakeSpan(keys));
+    reader.Candidates(keys, &candidates, options.max_bucket, crowded);
+  }
   std::vector<uint64_t> stored;
   for (uint32_t doc : candidates) {
     if (options.exclude_same_id && reader.id(doc) == batch.id(q)) continue;
@@ -49,12 +58,16 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
   std::mutex error_mutex;
   absl::Status error;
   uint64_t crowded_total = 0;
+  std::unique_ptr<index::ContainmentLookup> containment;
+  if (UsesContainmentSearch(options.match)) {
+    containment = index::ContainmentLookup::Create(reader, options.match);
+  }
   ParallelFor(batch.size(), options.threads, [&](size_t begin, size_t end, int) {
     uint64_t crowded = 0;
     for (size_t q = begin; q < end; ++q) {
       const auto start = std::chrono::steady_clock::now();
-      absl::Status status =
-          MatchOne(reader, batch, static_cast<uint32_t>(q), options, &per_query[q], &crowded);
+      absl::Status status = MatchOne(reader, containment.get(), batch, static_cast<uint32_t>(q),
+                                     options, &per_query[q], &crowded);
       if (options.query_seconds != nullptr) {
         (*options.query_seconds)[q] =
             std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
@@ -74,10 +87,18 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
   // pairs; skipping the search saves its tables, most of a one-document
   // check's time.)
   if (batch.size() > 1) {
-    CandidateStats stats;
-    std::vector<PackedPair> candidates =
-        FindCandidatePairs(batch, Banding{reader.bands(), reader.rows()}, options.threads, &stats,
-                           options.max_bucket == 0 ? kDefaultMaxBucket : options.max_bucket);
+    const uint64_t cap = options.max_bucket == 0 ? kDefaultMaxBucket : options.max_bucket;
+    std::vector<PackedPair> candidates;
+    if (containment != nullptr) {
+      ContainmentPlanOptions plan = containment->plan().options();
+      ContainmentCandidateStats stats;
+      candidates = FindContainmentCandidates(batch, PlanForCorpus(batch, plan),
+                                             std::max(1, options.threads), &stats, cap);
+    } else {
+      CandidateStats stats;
+      candidates = FindCandidatePairs(batch, Banding{reader.bands(), reader.rows()},
+                                      options.threads, &stats, cap);
+    }
     for (const ScoredPair& pair : VerifyPairs(batch, candidates, options.match, options.threads)) {
       per_query[pair.b].push_back(IndexMatch{pair.b, false, pair.a, pair.shared, pair.size_b,
                                              pair.size_a, pair.jaccard, pair.estimate});
@@ -93,12 +114,30 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
   return matches;
 }
 
+const char* ContainedWay(const IndexMatch& match, double threshold) {
+  const auto inside = [&](uint32_t size) { return match.shared >= threshold * size - 1e-9; };
+  const bool id_in_match = inside(match.query_size);
+  const bool match_in_id = inside(match.other_size);
+  if (id_in_match && match_in_id) return "both";
+  return id_in_match ? "id_in_match" : "match_in_id";
+}
+
 void WriteMatchRecords(RecordFormat format, absl::Span<const IndexMatch> matches,
-                       const IndexReader& reader, const SignedCorpus& batch, std::string* out) {
-  RecordWriter writer(format,
-                      {"id", "match", "match_in", "jaccard", "estimate", "containment_id_in_match",
-                       "containment_match_in_id", "shared", "shingles_id", "shingles_match"},
-                      out);
+                       const IndexReader& reader, const SignedCorpus& batch, std::string* out,
+                       const MatchSettings* match) {
+  const bool contained = match != nullptr && match->measure == Measure::kContainment;
+  std::vector<std::string> columns = {"id",
+                                      "match",
+                                      "match_in",
+                                      "jaccard",
+                                      "estimate",
+                                      "containment_id_in_match",
+                                      "containment_match_in_id",
+                                      "shared",
+                                      "shingles_id",
+                                      "shingles_match"};
+  if (contained) columns.push_back("contained");
+  RecordWriter writer(format, columns, out);
   for (const IndexMatch& m : matches) {
     writer.String(batch.id(m.query));
     writer.String(m.in_index ? reader.id(m.other) : std::string_view(batch.id(m.other)));
@@ -110,6 +149,7 @@ void WriteMatchRecords(RecordFormat format, absl::Span<const IndexMatch> matches
     writer.Number(m.shared);
     writer.Number(m.query_size);
     writer.Number(m.other_size);
+    if (contained) writer.String(ContainedWay(m, match->threshold));
     writer.EndRow();
   }
 }

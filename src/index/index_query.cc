@@ -2,8 +2,11 @@
 
 #include "absl/container/flat_hash_set.h"
 #include "absl/strings/str_cat.h"
+#include "core/plural.h"
+#include "index/containment_lookup.h"
 #include "kindred/banding.h"
 #include "kindred/errors.h"
+#include "kindred/sweep.h"
 #include "kindred/text.h"
 
 namespace kindred {
@@ -15,7 +18,11 @@ absl::StatusOr<MatchSettings> ResolveQueryMatch(const IndexSettings& stored,
   match.measure = request.measure.value_or(stored.measure);
   match.bands = request.bands;
   match.rows = request.rows;
+  if (request.min_contained_size.has_value()) {
+    match.min_contained_size = *request.min_contained_size;
+  }
   if (absl::Status status = match.Validate(stored.signature); !status.ok()) return status;
+  if (match.bands == 0 && match.measure == Measure::kContainment) return match;
   if (match.bands == 0) {
     if (request.threshold.has_value()) {
       // The stored banding was chosen for the stored threshold; choose again.
@@ -31,7 +38,15 @@ absl::StatusOr<MatchSettings> ResolveQueryMatch(const IndexSettings& stored,
 }
 
 bool NeedsOtherBanding(const IndexSettings& stored, const MatchSettings& match) {
+  if (match.bands == 0) return false;  // the containment search
   return match.bands != stored.bands || match.rows != stored.rows;
+}
+
+std::string CandidateSearchText(const IndexReader& reader, const MatchSettings& match) {
+  if (!UsesContainmentSearch(match)) return BandsByRows(reader.bands(), reader.rows());
+  return index::ContainmentLookup::UsesStoredKeys(reader, match)
+             ? "containment LSH, keys stored in the index"
+             : "containment LSH, keys computed in memory";
 }
 
 size_t CountMatchedUploads(absl::Span<const IndexMatch> matches, size_t uploads) {

@@ -269,6 +269,13 @@ absl::Status IndexReader::ReadShingles(uint32_t doc, std::vector<uint64_t>* out)
   return absl::OkStatus();
 }
 
+std::string_view IndexReader::StoredShingles(uint32_t doc, uint64_t* checksum) const {
+  uint32_t local;
+  const Segment& segment = SegmentOf(doc, &local);
+  *checksum = segment.doc(local).shingles_checksum;
+  return segment.shingle_bytes(local);
+}
+
 absl::Status IndexReader::VerifyShingleChecksums() const {
   for (uint32_t doc = 0; doc < document_count_; ++doc) {
     uint32_t local;

@@ -5,6 +5,7 @@
 #include <numeric>
 
 #include "absl/strings/str_format.h"
+#include "index/containment_keys.h"
 #include "kindred/banding.h"
 
 namespace kindred::index {
@@ -14,17 +15,18 @@ bool AllZero(std::string_view bytes) {
   return std::all_of(bytes.begin(), bytes.end(), [](char c) { return c == 0; });
 }
 
-// The sorted (key, local doc) table of `docs` under the stored banding.
+// The sorted (key, local doc) table of `docs`: the stored banding's keys,
+// and the containment keys when the settings store them.
 std::vector<std::pair<uint64_t, uint32_t>> BandKeyTable(absl::Span<const SegmentDocument> docs,
                                                         const IndexSettings& settings) {
-  Banding banding{settings.bands, settings.rows};
-  std::vector<uint64_t> keys(banding.bands);
+  std::shared_ptr<const ContainmentPlan> plan;
+  if (settings.containment.stored()) plan = PlanOf(settings.containment, settings.signature.perms);
+  std::vector<uint64_t> keys;
   std::vector<std::pair<uint64_t, uint32_t>> table;
   for (uint32_t i = 0; i < docs.size(); ++i) {
-    BandKeys(docs[i].signature, banding, absl::MakeSpan(keys));
-    for (uint64_t key : keys) {
-      if (key != kNoBandKey) table.emplace_back(key, i);
-    }
+    DocumentKeys(settings, plan.get(), docs[i].signature,
+                 static_cast<uint32_t>(docs[i].shingles.size()), &keys);
+    for (uint64_t key : keys) table.emplace_back(key, i);
   }
   std::sort(table.begin(), table.end());
   return table;

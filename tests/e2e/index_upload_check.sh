@@ -154,12 +154,12 @@ grep -q "^problem: " "$T/out" || fail "audit problem line"
 import struct, sys, xxhash
 data = bytearray(open(sys.argv[1], "rb").read())
 size = struct.unpack_from("<I", data, 12)[0]
-struct.pack_into("<I", data, 8, 3)
+struct.pack_into("<I", data, 8, 4)
 struct.pack_into("<Q", data, size - 8, xxhash.xxh3_64_intdigest(bytes(data[:size - 8])))
 open(sys.argv[2], "wb").write(bytes(data))
 PY
 expect_rc 5 "check of a newer index" -- "$K" check "$T/newer.kin" "$original" -q
-grep -q "version 3 is newer" "$T/err" || fail "newer version message"
+grep -q "version 4 is newer" "$T/err" || fail "newer version message"
 # Not an index at all.
 expect_rc 4 "info of a text file" -- "$K" info "$SRC/sample_corpus/README.md"
 grep -q "not a kindred index" "$T/err" || fail "bad magic message"
