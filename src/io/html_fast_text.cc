@@ -53,7 +53,10 @@ class Tokenizer {
       }
       const char d = html_[at + 2];
       if (IsAlpha(d)) return Tag(at + 2, /*end=*/true);
-      if (d == '>') return at + 3;
+      if (d == '>') {  // "</>": nothing
+        after_empty_end_tag_ = at + 3;
+        return at + 3;
+      }
       return BogusComment(at + 2);
     }
     if (IsAlpha(c)) return Tag(at + 1, /*end=*/false);
@@ -116,6 +119,13 @@ class Tokenizer {
     const size_t after = html_scan::SkipAttributes(html_, i, &tag.self_closing);
     if (after == kNotFound) return n;  // EOF in a tag: dropped
     tag.attributes = html_.substr(i, after - i);
+    if (from == after_empty_end_tag_ + 1 + end &&
+        (tag.id == html_tags::kUnknown || tag.id == html_tags::kSvg || tag.id == html_tags::kMath ||
+         tree_->InForeign())) {
+      // The reference parser takes "</>" into the source text of the next
+      // tag and may then misread its name.
+      return Decline("an unknown, svg or math tag right after \"</>\"");
+    }
     if (end) {
       tree_->EndTag(tag);
       return after;
@@ -157,14 +167,16 @@ class Tokenizer {
 
   absl::string_view html_;
   HtmlTree* tree_;
-  const char* declined_ = nullptr;  // a tag name the tree's names cannot hold
+  const char* declined_ = nullptr;                        // a tag name the tree's names cannot hold
+  size_t after_empty_end_tag_ = absl::string_view::npos;  // just after the last "</>"
 };
 
 }  // namespace
 
-bool FastHtmlToText(absl::string_view html, std::string* out, const char** reason) {
+bool FastHtmlToText(absl::string_view html, std::string* out, const char** reason,
+                    bool valid_utf8) {
   out->clear();
-  if (!html_scan::IsValidUtf8(html)) {
+  if (!valid_utf8 && !html_scan::IsValidUtf8(html)) {
     if (reason != nullptr) *reason = "not valid UTF-8";
     return false;
   }

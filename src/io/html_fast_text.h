@@ -44,7 +44,10 @@ namespace kindred::io {
 // Sets *out (cleared first) to the text of `html` and returns true, or
 // returns false (leaving *out unspecified) when the document is outside
 // the fast path's scope; *reason (when not null) then names why, in words.
-bool FastHtmlToText(absl::string_view html, std::string* out, const char** reason = nullptr);
+// `valid_utf8` promises that `html` is well-formed UTF-8 (else it is
+// checked, and declined if not).
+bool FastHtmlToText(absl::string_view html, std::string* out, const char** reason = nullptr,
+                    bool valid_utf8 = false);
 
 }  // namespace kindred::io
 

@@ -21,7 +21,9 @@ struct Row {
 
 // The HTML standard's tree construction rules, "in body", as the reference
 // parser (Gumbo 0.10.1) implements them; flags from the standard's
-// categories and the text definition's lists.
+// categories and the text definition's lists. Only names the reference
+// parser knows are here: it treats every other name alike (see
+// HtmlTree::AnyOtherEndTag).
 const Row kRows[] = {
     {"html", Start::kIgnored, End::kIgnore, S | B | T},
     {"head", Start::kIgnored, End::kAnyOther, S | K},
@@ -36,8 +38,10 @@ const Row kRows[] = {
     {"template", Start::kBail, End::kIgnore, S | K | P | B},
     {"address article aside blockquote center details dir div dl fieldset "
      "figcaption figure "
-     "footer header hgroup main menu nav ol section summary ul",
+     "footer header hgroup menu nav ol section summary ul",
      Start::kBlock, End::kBlock, S},
+    // Not in the reference parser's "special" category.
+    {"main", Start::kBlock, End::kBlock, 0},
     {"p", Start::kBlock, End::kParagraph, S | I},
     {"h1 h2 h3 h4 h5 h6", Start::kHeading, End::kHeading, S | H},
     {"pre listing", Start::kPre, End::kBlock, S},
@@ -74,11 +78,25 @@ const Row kRows[] = {
      Start::kBail, End::kAnyOther, S},
     {"abbr audio bdi bdo canvas cite data datalist del dfn ins kbd label map "
      "mark meter output "
-     "picture progress q ruby samp slot span sub sup time var video acronym "
+     "progress q ruby samp span sub sup time var video acronym "
      "blink",
      Start::kOrdinary, End::kAnyOther, P},
     {"legend multicol spacer nextid", Start::kOrdinary, End::kAnyOther, 0},
 };
+
+// The elements OpenElementBound (io/html_text.h) does not count.
+bool NeverDeepName(absl::string_view name) {
+  static constexpr absl::string_view kNames[] = {
+      "area",     "base",    "br",     "col",   "embed",  "hr",       "img",    "input",
+      "link",     "meta",    "source", "track", "wbr",    "param",    "keygen", "image",
+      "p",        "li",      "dt",     "dd",    "option", "optgroup", "tr",     "td",
+      "th",       "thead",   "tbody",  "tfoot", "rb",     "rt",       "rp",     "rtc",
+      "colgroup", "caption", "html",   "head",  "body"};
+  for (absl::string_view never : kNames) {
+    if (name == never) return true;
+  }
+  return false;
+}
 
 constexpr int kSlots = 512;
 
@@ -92,14 +110,16 @@ struct Table {
     return h % kSlots;
   }
   Table() {
-    infos.push_back({"", Start::kOrdinary, End::kAnyOther, 0});  // kUnknown
+    infos.push_back({"", 0, Start::kOrdinary, End::kAnyOther, 0});  // kUnknown
     for (const Row& row : kRows) {
       for (absl::string_view name : absl::StrSplit(row.names, ' ')) {
         char* copy = new char[name.size() + 1];  // lives as long as the process
         std::memcpy(copy, name.data(), name.size());
         copy[name.size()] = '\0';
         const TagId id = static_cast<TagId>(infos.size());
-        infos.push_back({copy, row.start, row.end, row.flags});
+        const uint16_t never_deep = NeverDeepName(name) ? kNeverDeep : 0;
+        infos.push_back({copy, static_cast<uint8_t>(name.size()), row.start, row.end,
+                         static_cast<uint16_t>(row.flags | never_deep)});
         unsigned slot = Hash(name);
         while (slots[slot] != kUnknown) slot = (slot + 1) % kSlots;
         slots[slot] = id;
@@ -109,7 +129,7 @@ struct Table {
   TagId Find(absl::string_view name) const {
     for (unsigned slot = Hash(name);; slot = (slot + 1) % kSlots) {
       const TagId id = slots[slot];
-      if (id == kUnknown || infos[id].name == name) return id;
+      if (id == kUnknown || absl::string_view(infos[id].name, infos[id].length) == name) return id;
     }
   }
 };

@@ -68,6 +68,7 @@ enum Flags : uint16_t {
   kImpliedEnd = 32,     // popped by "generate implied end tags"
   kHeadingFlag = 64,
   kTableContext = 128,  // table, html: "clear the stack back to a table context"
+  kNeverDeep = 256,     // void, or its end tag may be left out (OpenElementBound)
 };
 
 // Identifies a known name; kUnknown for any other (an ordinary element).
@@ -75,7 +76,8 @@ using TagId = uint8_t;
 inline constexpr TagId kUnknown = 0;
 
 struct TagInfo {
-  const char* name;
+  const char* name;  // NUL-terminated
+  uint8_t length;
   Start start;
   End end;
   uint16_t flags;

@@ -14,6 +14,7 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
 #include "io/html_fast_text.h"
+#include "io/html_tags.h"
 
 namespace kindred::io {
 namespace {
@@ -105,19 +106,6 @@ void Walk(const GumboNode* root, std::string* out) {
   }
 }
 
-// Lower-case `name` (at most 16 bytes) is an element that never nests
-// deeply: void elements and those whose end tag may be left out.
-bool NeverDeep(absl::string_view name) {
-  static const absl::flat_hash_set<std::string>* kNeverDeep = new absl::flat_hash_set<std::string>(
-      {"area",     "base",    "br",     "col",   "embed",  "hr",       "img",    "input",
-       "link",     "meta",    "source", "track", "wbr",    "param",    "keygen", "image",
-       "p",        "li",      "dt",     "dd",    "option", "optgroup", "tr",     "td",
-       "th",       "thead",   "tbody",  "tfoot", "rb",     "rt",       "rp",     "rtc",
-       "colgroup", "caption", "html",   "head",  "body"});
-  if (name.size() > 8) return false;  // the longest listed name
-  return kNeverDeep->contains(name);
-}
-
 std::atomic<uint64_t> fast_documents{0}, reference_documents{0};
 
 }  // namespace
@@ -136,7 +124,11 @@ int OpenElementBound(absl::string_view html) {
       ++j;
     }
     if (j == i) continue;
-    if (NeverDeep(absl::string_view(name, j - i))) continue;
+    if (j - i <= 14 &&
+        (html_tags::Info(html_tags::LookUpTag(absl::string_view(name, j - i))).flags &
+         html_tags::kNeverDeep)) {
+      continue;
+    }
     open = end ? std::max(0, open - 1) : open + 1;
     most = std::max(most, open);
   }
@@ -154,14 +146,16 @@ absl::Status ReferenceHtmlToText(absl::string_view html, std::string* out) {
   return absl::OkStatus();
 }
 
-absl::Status HtmlToText(absl::string_view html, std::string* out) {
+absl::Status HtmlToText(absl::string_view html, std::string* out, bool valid_utf8) {
   out->clear();
-  if (OpenElementBound(html) > kMaxOpenElements) {
+  // Each element counted takes at least two bytes ("<a").
+  if (html.size() / 2 > static_cast<size_t>(kMaxOpenElements) &&
+      OpenElementBound(html) > kMaxOpenElements) {
     return absl::FailedPreconditionError(
         absl::StrCat("its tags could nest more than ", kMaxOpenElements,
                      " elements deep; not parsed (a parser-cost guard)"));
   }
-  if (FastHtmlToText(html, out)) {
+  if (FastHtmlToText(html, out, nullptr, valid_utf8)) {
     fast_documents.fetch_add(1, std::memory_order_relaxed);
     return absl::OkStatus();
   }

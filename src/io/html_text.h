@@ -59,8 +59,9 @@ int OpenElementBound(absl::string_view html);
 // Appends the text of `html` (UTF-8; ill-formed sequences become U+FFFD as
 // the parser reads them) to *out, cleared first. FailedPrecondition, and an
 // empty text, when OpenElementBound(html) > kMaxOpenElements; Internal only
-// when the parser fails to allocate.
-absl::Status HtmlToText(absl::string_view html, std::string* out);
+// when the parser fails to allocate. `valid_utf8` promises that `html` is
+// well-formed UTF-8 (as ConvertToUtf8 makes it), which saves a check.
+absl::Status HtmlToText(absl::string_view html, std::string* out, bool valid_utf8 = false);
 
 // The same by the reference implementation alone (Gumbo), for checks.
 absl::Status ReferenceHtmlToText(absl::string_view html, std::string* out);

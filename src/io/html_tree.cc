@@ -9,14 +9,25 @@ namespace kindred::io {
 
 using namespace html_tags;  // NOLINT: the tag ids read as names here
 
+namespace {
+
+// The phrasing elements of the definition that the reference parser does
+// not know (tag number "unknown"), and custom elements (a '-' in the name).
+bool IsPhrasingName(absl::string_view name) {
+  return name.find('-') != absl::string_view::npos || absl::EqualsIgnoreCase(name, "picture") ||
+         absl::EqualsIgnoreCase(name, "slot");
+}
+
+}  // namespace
+
 void HtmlTree::Push(TagId tag, absl::string_view name, bool foreign) {
   if (stack_.size() >= static_cast<size_t>(kMaxOpenElements))
     return Decline("nesting deeper than the guard");
   uint16_t flags = Info(tag).flags;
   if (foreign) {
     flags = stack_.empty() || !stack_.back().foreign ? kSkipped | kPhrasing : kPhrasing;
-  } else if (tag == kUnknown && name.find('-') != absl::string_view::npos) {
-    flags = kPhrasing;  // a custom element
+  } else if (tag == kUnknown && IsPhrasingName(name)) {
+    flags = kPhrasing;
   }
   if (flags & kSkipped) {
     ++skipped_;
@@ -167,10 +178,9 @@ void HtmlTree::ClearToMarker() {
 void HtmlTree::AnyOtherEndTag(const HtmlTag& tag) {
   for (size_t k = stack_.size(); k-- > 0;) {
     const Element& e = stack_[k];
-    const bool same =
-        !e.foreign &&
-        (tag.id != kUnknown ? e.tag == tag.id
-                            : e.tag == kUnknown && absl::EqualsIgnoreCase(e.name, tag.name));
+    // The reference parser (Gumbo 0.10) knows an end tag by its tag number
+    // only, so an end tag of any unknown name closes any unknown element.
+    const bool same = !e.foreign && e.tag == tag.id;
     if (same) return PopTo(k);
     if (e.flags & kSpecial) return;
   }

@@ -236,7 +236,9 @@ void HtmlTree::EndInBody(const HtmlTag& tag) {
     case End::kFormatting:
       return AdoptionAgency(tag);
     case End::kMarker:
-      if (!InScope(tag.id)) return;
+      // The reference parser checks the table scope here, not the default
+      // scope the standard names.
+      if (!InScope(tag.id, Scope::kTable)) return;
       GenerateImpliedEndTags();
       PopUntil(tag.id);
       return ClearToMarker();

@@ -134,7 +134,7 @@ absl::Status PayloadText(absl::string_view payload, absl::string_view declared, 
   payload.remove_prefix(bom);
   if (!html) return ConvertToUtf8(encoding, payload, text, replaced);
   if (absl::Status s = ConvertToUtf8(encoding, payload, scratch, replaced); !s.ok()) return s;
-  return HtmlToText(*scratch, text);
+  return HtmlToText(*scratch, text, /*valid_utf8=*/true);  // ConvertToUtf8 makes it so
 }
 
 absl::Status WarcDocuments::CheckDigest(const WarcHeader& header, const HttpHead& head,
