@@ -14,6 +14,7 @@
 #include "io/byte_stream.h"
 #include "io/json_line.h"
 #include "io/tree_walker.h"
+#include "io/html_text.h"
 #include "io/warc_documents.h"
 #include "kindred/corpus.h"
 
@@ -186,7 +187,9 @@ absl::StatusOr<bool> CorpusReader::Impl::NextWarcDocument(Document* doc) {
     absl::StatusOr<bool> more = warc_->Next(&record_);
     if (!more.ok() || !*more) return more;
     if (!record_.role.document || !TakeNext()) continue;
-    if (absl::Status made = warc_->MakeDocument(record_, doc); !made.ok()) return made;
+    if (absl::Status made = warc_->MakeDocument(record_, doc, defer_parsing_); !made.ok()) {
+      return made;
+    }
     doc->source.input = static_cast<uint32_t>(current_);
     doc->source.path = warc_path_;
     return true;
@@ -459,6 +462,7 @@ absl::StatusOr<size_t> CorpusReader::Impl::ReadBatch(std::vector<Document>* batc
     // thousands of slots would hold far more than max_bytes.
     if (doc.text.capacity() > kReusedTextBytes) std::string().swap(doc.text);
     doc.unparsed = false;
+    doc.unparsed_html = false;
     absl::StatusOr<bool> more = Next(&doc);
     if (!more.ok()) {
       failure_ = more.status();
@@ -544,6 +548,16 @@ LineParser::~LineParser() = default;
 
 absl::Status LineParser::Finish(Document* doc) {
   if (!doc->unparsed) return absl::OkStatus();
+  if (doc->unparsed_html) {
+    impl_->line.swap(doc->text);
+    doc->unparsed = doc->unparsed_html = false;
+    absl::Status made = io::HtmlToText(impl_->line, &doc->text, /*valid_utf8=*/true);
+    if (!made.ok()) {
+      return absl::Status(made.code(), absl::StrCat(io::DisplayName(doc->source.path), ": ",
+                                                    doc->id, ": ", made.message()));
+    }
+    return absl::OkStatus();
+  }
   // The raw line moves to this parser's buffer and the document's buffer
   // receives the text: both are reused, nothing is allocated per line.
   impl_->line.swap(doc->text);

@@ -135,6 +135,12 @@ int OpenElementBound(absl::string_view html) {
   return most;
 }
 
+bool NestsTooDeeply(absl::string_view html) {
+  // Each element counted takes at least two bytes ("<a").
+  return html.size() / 2 > static_cast<size_t>(kMaxOpenElements) &&
+         OpenElementBound(html) > kMaxOpenElements;
+}
+
 absl::Status ReferenceHtmlToText(absl::string_view html, std::string* out) {
   out->clear();
   GumboOptions options = kGumboDefaultOptions;
@@ -148,9 +154,7 @@ absl::Status ReferenceHtmlToText(absl::string_view html, std::string* out) {
 
 absl::Status HtmlToText(absl::string_view html, std::string* out, bool valid_utf8) {
   out->clear();
-  // Each element counted takes at least two bytes ("<a").
-  if (html.size() / 2 > static_cast<size_t>(kMaxOpenElements) &&
-      OpenElementBound(html) > kMaxOpenElements) {
+  if (NestsTooDeeply(html)) {
     return absl::FailedPreconditionError(
         absl::StrCat("its tags could nest more than ", kMaxOpenElements,
                      " elements deep; not parsed (a parser-cost guard)"));

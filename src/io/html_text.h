@@ -56,6 +56,9 @@ inline constexpr int kMaxOpenElements = 10000;
 // Linear, and never less than the parser's depth in practice.
 int OpenElementBound(absl::string_view html);
 
+// Whether OpenElementBound(html) > kMaxOpenElements (quick for short pages).
+bool NestsTooDeeply(absl::string_view html);
+
 // Appends the text of `html` (UTF-8; ill-formed sequences become U+FFFD as
 // the parser reads them) to *out, cleared first. FailedPrecondition, and an
 // empty text, when OpenElementBound(html) > kMaxOpenElements; Internal only
