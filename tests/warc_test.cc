@@ -206,6 +206,39 @@ TEST_CASE("HTML text by the definition", "[warc]") {
   CHECK(Html(std::string("n\0ul", 4)) == "nul");
 }
 
+TEST_CASE("HTML pages left to the workers get the same texts", "[warc]") {
+  // A reader that defers parsing leaves each page's text to LineParser::
+  // Finish (on the signing threads); the documents must be the same.
+  const std::string path = std::string(KINDRED_SOURCE_DIR) + "/sample_corpus/crawl/harbour.warc.gz";
+  const ReadResult plain = ReadAll(path);
+  REQUIRE(plain.status.ok());
+  auto reader = CorpusReader::Open({path}, InputOptions());
+  REQUIRE(reader.ok());
+  (*reader)->DeferParsing();
+  LineParser parser((*reader)->options());
+  std::vector<Document> batch, docs;
+  int deferred = 0;
+  for (;;) {
+    auto n = (*reader)->ReadBatch(&batch, 3, 1 << 30);
+    REQUIRE(n.ok());
+    if (*n == 0) break;
+    for (Document& doc : batch) {
+      deferred += doc.unparsed_html;
+      REQUIRE(parser.Finish(&doc).ok());
+      CHECK_FALSE(doc.unparsed);
+      docs.push_back(doc);
+    }
+  }
+  CHECK(deferred >= 5);
+  REQUIRE(docs.size() == plain.docs.size());
+  for (size_t i = 0; i < docs.size(); ++i) {
+    CHECK(docs[i].id == plain.docs[i].id);
+    CHECK(docs[i].text == plain.docs[i].text);
+    CHECK(docs[i].invalid_utf8 == plain.docs[i].invalid_utf8);
+  }
+  CHECK((*reader)->RecordCounts() == plain.counts);
+}
+
 TEST_CASE("pages that could nest too deeply are not parsed", "[warc]") {
   std::string deep;
   for (int i = 0; i < io::kMaxOpenElements + 1; ++i) deep += "<div>";

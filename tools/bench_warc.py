@@ -12,9 +12,12 @@ an earlier one with a new headline and navigation. At least --mb MB of HTML.
 Then measures, in the same run (medians of --runs, alternating, as
 tools/bench.py does):
   1. kindred sweep -j 1 of the file against `gzip -dc FILE > /dev/null`;
-  2. HTML to text alone (kindred_texts --html-speed, in memory) in MB/s,
+  2. HTML to text alone (kindred_texts --html-speed, in memory, on a
+     sample of the pages) in MB/s: kindred's fast path (with the pages it
+     declines left to Gumbo, and how many), Gumbo alone (the reference),
+     and the whole payload step (charset conversion + HTML to text);
      beside html5lib's tree building plus the same walk
-     (tests/reference/html_text_reference.py) on a sample;
+     (tests/reference/html_text_reference.py);
   3. the same documents as WARC and as JSON Lines of their texts
      (kindred_texts): pairs and groups must be byte-identical.
 
@@ -129,7 +132,7 @@ def extraction_speed(kindred_texts, warc, work, sample_mb):
                     out.write(json.dumps({"html": body[2].decode("utf-8")}) + "\n")
     ours = subprocess.run([str(kindred_texts), "--html-speed", str(pages_path), "3"], check=True,
                           capture_output=True, text=True).stdout.strip()
-    print(f"\nHTML to text alone, kindred (Gumbo): {ours}")
+    print(f"\nHTML to text alone, kindred: {ours}")
     import html_text_reference as ref
     htmls = [json.loads(line)["html"] for line in open(pages_path)][:150]
     start = time.monotonic()
@@ -146,8 +149,13 @@ def extraction_speed(kindred_texts, warc, work, sample_mb):
 def same_results(kindred, kindred_texts, warc, work):
     texts = work / "texts.jsonl"
     with open(texts, "wb") as out:
-        subprocess.run([str(kindred_texts), str(warc)], stdout=out, stderr=subprocess.DEVNULL,
-                       check=True)
+        run = subprocess.run([str(kindred_texts), str(warc)], stdout=out, stderr=subprocess.PIPE,
+                             check=True, text=True)
+    paths = [line for line in run.stderr.splitlines() if line.startswith("HTML pages:")]
+    if paths:
+        fast, reference = [int(w) for w in paths[0].replace(",", " ").split() if w.isdigit()]
+        print(f"\nthe whole archive: {paths[0]} (fallback rate "
+              f"{100.0 * reference / max(1, fast + reference):.2f}%)")
     outputs = {}
     for name, source in (("warc", warc), ("jsonl", texts)):
         d = work / f"out_{name}"

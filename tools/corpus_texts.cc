@@ -1,16 +1,24 @@
 // kindred_texts: prints documents as kindred reads them, for tests and
 // benchmarks of crawl archive reading.
 //
-//   kindred_texts INPUT...          JSON Lines {"id": ..., "text": ...} of every
+//   kindred_texts INPUT...          JSON Lines {"id": ..., "text": ...} of
+//   every
 //                                   document of the inputs (any format kindred
 //                                   reads; WARC records become their texts)
 //   kindred_texts --html FILE...    the text of each HTML file (charset from a
 //                                   BOM or <meta>, else UTF-8), one JSON line
 //                                   {"id": FILE, "text": ...} each
+//   kindred_texts --html-check FILE...
+//                                   the fast HTML path against the reference
+//                                   parser on each file: prints "declined",
+//                                   "same text", "same words" or "DIFFER"
+//                                   (with both texts) per file, then counts;
+//                                   exits 1 if any differ in words
 //   kindred_texts --html-speed FILE [ROUNDS]
 //                                   HTML to text of the pages of FILE (a
 //                                   JSON Lines file of {"html": ...}) in
 //                                   memory: prints MB/s of HTML
+#include <algorithm>
 #include <chrono>
 #include <cstdio>
 #include <fstream>
@@ -19,8 +27,11 @@
 #include <string>
 #include <vector>
 
+#include "io/html_fast_text.h"
+#include "io/html_text.h"
 #include "io/warc_documents.h"
 #include "kindred/corpus.h"
+#include "kindred/text.h"
 #include "simdjson.h"
 
 namespace {
@@ -73,6 +84,64 @@ int HtmlFiles(int argc, char** argv) {
   return 0;
 }
 
+std::vector<std::string> Words(const std::string& text) {
+  std::vector<std::string> words;
+  auto tokens = kindred::TokenizeWithSpans(text);
+  if (tokens.ok()) {
+    for (const kindred::Token& token : *tokens) words.push_back(token.text);
+  }
+  return words;
+}
+
+int HtmlCheck(int argc, char** argv) {
+  int declined = 0, same_text = 0, same_words = 0, differ = 0;
+  std::string scratch, unused, fast, reference;
+  for (int i = 2; i < argc; ++i) {
+    uint32_t replaced = 0;
+    // The page as HtmlToText sees it: charset chosen and converted.
+    (void)kindred::io::PayloadText(ReadFile(argv[i]), "", false, &scratch, &unused, &replaced);
+    const std::string html = unused;
+    const char* reason = nullptr;
+    if (!kindred::io::FastHtmlToText(html, &fast, &reason)) {
+      ++declined;
+      std::printf("declined %s: %s\n", argv[i], reason);
+      continue;
+    }
+    (void)kindred::io::ReferenceHtmlToText(html, &reference);
+    if (fast == reference) {
+      ++same_text;
+      std::printf("same text %s\n", argv[i]);
+    } else if (Words(fast) == Words(reference)) {
+      ++same_words;
+      std::printf("same words %s\n", argv[i]);
+    } else {
+      ++differ;
+      std::printf("DIFFER %s\n  fast: ", argv[i]);
+      PrintJsonString(fast);
+      std::printf("\n  reference: ");
+      PrintJsonString(reference);
+      std::printf("\n");
+    }
+  }
+  std::printf("%d files: %d declined, %d same text, %d same words only, %d differ\n", argc - 2,
+              declined, same_text, same_words, differ);
+  return differ == 0 ? 0 : 1;
+}
+
+// Median seconds of `rounds` runs of `work`.
+template <typename Work>
+double MedianSeconds(int rounds, Work work) {
+  std::vector<double> times;
+  for (int round = 0; round < rounds; ++round) {
+    const auto start = std::chrono::steady_clock::now();
+    work();
+    times.push_back(
+        std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count());
+  }
+  std::sort(times.begin(), times.end());
+  return times[times.size() / 2];
+}
+
 int HtmlSpeed(const char* path, int rounds) {
   std::vector<std::string> pages;
   simdjson::ondemand::parser parser;
@@ -88,18 +157,30 @@ int HtmlSpeed(const char* path, int rounds) {
     bytes += html.size();
   }
   std::string scratch, text;
-  double best = 1e100;
-  for (int round = 0; round < rounds; ++round) {
-    const auto start = std::chrono::steady_clock::now();
+  size_t declined = 0;
+  for (const std::string& page : pages) declined += !kindred::io::FastHtmlToText(page, &text);
+  const double mb = bytes / 1e6;
+  std::printf("%zu pages, %.1f MB of HTML (UTF-8), median of %d runs:\n", pages.size(), mb, rounds);
+  const double both = MedianSeconds(rounds, [&] {
+    for (const std::string& page : pages) (void)kindred::io::HtmlToText(page, &text);
+  });
+  std::printf(
+      "  HTML to text, fast path (Gumbo for declined pages): %.3f s, %.1f MB/s; "
+      "%zu of %zu pages declined (%.2f%%)\n",
+      both, mb / both, declined, pages.size(), 100.0 * declined / pages.size());
+  const double reference = MedianSeconds(rounds, [&] {
+    for (const std::string& page : pages) (void)kindred::io::ReferenceHtmlToText(page, &text);
+  });
+  std::printf("  HTML to text, reference parser (Gumbo) alone: %.3f s, %.1f MB/s\n", reference,
+              mb / reference);
+  const double payload = MedianSeconds(rounds, [&] {
     for (const std::string& page : pages) {
       uint32_t replaced = 0;
       (void)kindred::io::PayloadText(page, "utf-8", true, &scratch, &text, &replaced);
     }
-    best = std::min(
-        best, std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count());
-  }
-  std::printf("%zu pages, %.1f MB of HTML, best of %d: %.3f s, %.1f MB/s\n", pages.size(),
-              bytes / 1e6, rounds, best, bytes / 1e6 / best);
+  });
+  std::printf("  charset conversion + HTML to text, as a crawl is read: %.3f s, %.1f MB/s\n",
+              payload, mb / payload);
   return 0;
 }
 
@@ -111,6 +192,7 @@ int main(int argc, char** argv) {
     return 2;
   }
   if (std::string(argv[1]) == "--html") return HtmlFiles(argc, argv);
+  if (std::string(argv[1]) == "--html-check") return HtmlCheck(argc, argv);
   if (std::string(argv[1]) == "--html-speed" && argc >= 3) {
     return HtmlSpeed(argv[2], argc >= 4 ? std::atoi(argv[3]) : 3);
   }
@@ -133,5 +215,9 @@ int main(int argc, char** argv) {
   for (const auto& [reason, count] : (*reader)->RecordCounts()) {
     std::fprintf(stderr, "%s: %llu\n", reason.c_str(), static_cast<unsigned long long>(count));
   }
+  const kindred::io::HtmlPathCounts paths = kindred::io::HtmlTextPaths();
+  std::fprintf(stderr, "HTML pages: %llu by the fast path, %llu left to the reference parser\n",
+               static_cast<unsigned long long>(paths.fast),
+               static_cast<unsigned long long>(paths.reference));
   return 0;
 }

@@ -211,6 +211,10 @@ struct Document {
   // "<input>:<line>" with the id field "@line"), the other fields unset.
   // LineParser::Finish makes it an ordinary document.
   bool unparsed = false;
+  // With `unparsed`: `text` holds an HTML page of a crawl archive (WARC),
+  // already converted to UTF-8 and within the nesting guard, whose text is
+  // still to be extracted; LineParser::Finish extracts it.
+  bool unparsed_html = false;
 };
 
 // What a reader skipped, so far.
@@ -274,9 +278,10 @@ class CorpusReader {
   // was first read). Requires input < inputs().size().
   InputFormat FormatOf(uint32_t input) const;
   const InputOptions& options() const;
-  // Makes every later ReadBatch leave JSON lines unparsed (see
-  // Document::unparsed): the reader only finds lines, so that the parsing
-  // can run on worker threads, each with a LineParser. A malformed line is
+  // Makes every later ReadBatch leave JSON lines unparsed, and the text of
+  // the HTML pages of crawl archives unextracted (see Document::unparsed):
+  // the reader only finds lines and records, so that the parsing can run on
+  // worker threads, each with a LineParser. A malformed line is
   // then reported by LineParser::Finish, not by ReadBatch, which reads on.
   void DeferParsing();
   // Makes ReadBatch skip every document whose ordinal `wanted` rejects
@@ -324,6 +329,8 @@ class LineParser {
 
   // Fills doc->id (unless the id field is "@line"), text, priority and
   // invalid_utf8 from the raw line in doc->text, and clears doc->unparsed.
+  // For an HTML page (Document::unparsed_html), replaces doc->text by the
+  // page's text and clears both flags.
   // Does nothing to a document that is not unparsed. On error (malformed
   // JSON, a missing field or one of the wrong type; InvalidArgument, the
   // message starting "<file>:<line>:") the document is left unusable.

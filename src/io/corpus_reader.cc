@@ -103,6 +103,8 @@ absl::StatusOr<size_t> CorpusReader::Impl::ReadBatch(std::vector<Document>* batc
     // thousands of slots would hold far more than max_bytes.
     if (doc.text.capacity() > kReusedTextBytes) std::string().swap(doc.text);
     doc.unparsed = false;
+    doc.unparsed_html = false;
+    doc.unparsed_html = false;
     absl::StatusOr<bool> more = Next(&doc);
     if (!more.ok()) {
       failure_ = more.status();

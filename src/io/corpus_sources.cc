@@ -43,7 +43,9 @@ absl::StatusOr<bool> CorpusReader::Impl::NextWarcDocument(Document* doc) {
     absl::StatusOr<bool> more = warc_->Next(&record_);
     if (!more.ok() || !*more) return more;
     if (!record_.role.document || !TakeNext()) continue;
-    if (absl::Status made = warc_->MakeDocument(record_, doc); !made.ok()) return made;
+    if (absl::Status made = warc_->MakeDocument(record_, doc, defer_parsing_); !made.ok()) {
+      return made;
+    }
     doc->source.input = static_cast<uint32_t>(current_);
     doc->source.path = warc_path_;
     return true;

@@ -4,6 +4,7 @@
 #include <gumbo.h>
 
 #include <algorithm>
+#include <atomic>
 #include <string>
 #include <utility>
 #include <vector>
@@ -12,6 +13,8 @@
 #include "absl/strings/ascii.h"
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_split.h"
+#include "io/html_fast_text.h"
+#include "io/html_tags.h"
 
 namespace kindred::io {
 namespace {
@@ -103,40 +106,43 @@ void Walk(const GumboNode* root, std::string* out) {
   }
 }
 
+std::atomic<uint64_t> fast_documents{0}, reference_documents{0};
+
 }  // namespace
 
 int OpenElementBound(absl::string_view html) {
-  static const absl::flat_hash_set<absl::string_view>* kNeverDeep =
-      new absl::flat_hash_set<absl::string_view>(
-          {"area",     "base",    "br",     "col",   "embed",  "hr",       "img",    "input",
-           "link",     "meta",    "source", "track", "wbr",    "param",    "keygen", "image",
-           "p",        "li",      "dt",     "dd",    "option", "optgroup", "tr",     "td",
-           "th",       "thead",   "tbody",  "tfoot", "rb",     "rt",       "rp",     "rtc",
-           "colgroup", "caption", "html",   "head",  "body"});
   int open = 0, most = 0;
   size_t i = 0;
+  char name[16];
   while ((i = html.find('<', i)) != absl::string_view::npos) {
     ++i;
     const bool end = i < html.size() && html[i] == '/';
     if (end) ++i;
     size_t j = i;
-    while (j < html.size() && j - i < 16 && absl::ascii_isalnum(html[j])) ++j;
+    while (j < html.size() && j - i < 16 && absl::ascii_isalnum(html[j])) {
+      name[j - i] = absl::ascii_tolower(html[j]);
+      ++j;
+    }
     if (j == i) continue;
-    const std::string name = absl::AsciiStrToLower(html.substr(i, j - i));
-    if (kNeverDeep->contains(name)) continue;
+    if (j - i <= 14 &&
+        (html_tags::Info(html_tags::LookUpTag(absl::string_view(name, j - i))).flags &
+         html_tags::kNeverDeep)) {
+      continue;
+    }
     open = end ? std::max(0, open - 1) : open + 1;
     most = std::max(most, open);
   }
   return most;
 }
 
-absl::Status HtmlToText(absl::string_view html, std::string* out) {
+bool NestsTooDeeply(absl::string_view html) {
+  // Each element counted takes at least two bytes ("<a").
+  return html.size() / 2 > static_cast<size_t>(kMaxOpenElements) &&
+         OpenElementBound(html) > kMaxOpenElements;
+}
+
+absl::Status ReferenceHtmlToText(absl::string_view html, std::string* out) {
   out->clear();
-  if (OpenElementBound(html) > kMaxOpenElements) {
-    return absl::FailedPreconditionError(
-        absl::StrCat("its tags could nest more than ", kMaxOpenElements,
-                     " elements deep; not parsed (a parser-cost guard)"));
-  }
   GumboOptions options = kGumboDefaultOptions;
   options.max_errors = 0;  // errors are not reported, only parsed around
   GumboOutput* output = gumbo_parse_with_options(&options, html.data(), html.size());
@@ -144,6 +150,28 @@ absl::Status HtmlToText(absl::string_view html, std::string* out) {
   Walk(output->document, out);
   gumbo_destroy_output(&options, output);
   return absl::OkStatus();
+}
+
+absl::Status HtmlToText(absl::string_view html, std::string* out, bool valid_utf8) {
+  out->clear();
+  if (NestsTooDeeply(html)) {
+    return absl::FailedPreconditionError(
+        absl::StrCat("its tags could nest more than ", kMaxOpenElements,
+                     " elements deep; not parsed (a parser-cost guard)"));
+  }
+  if (FastHtmlToText(html, out, nullptr, valid_utf8)) {
+    fast_documents.fetch_add(1, std::memory_order_relaxed);
+    return absl::OkStatus();
+  }
+  reference_documents.fetch_add(1, std::memory_order_relaxed);
+  return ReferenceHtmlToText(html, out);
+}
+
+HtmlPathCounts HtmlTextPaths() {
+  HtmlPathCounts counts;
+  counts.fast = fast_documents.load(std::memory_order_relaxed);
+  counts.reference = reference_documents.load(std::memory_order_relaxed);
+  return counts;
 }
 
 }  // namespace kindred::io

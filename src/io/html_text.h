@@ -14,11 +14,15 @@
 //   known or not, are not phrasing.
 //
 // The reference implementation parses with Gumbo, a packaged HTML5 parser.
+// HtmlToText first tries a fast path of its own (io/html_fast_text.h), which
+// gives the same text as the reference on the documents it accepts, and
+// leaves every other document to the reference.
 //
 // Thread-safety: plain functions; safe to call from many threads at once.
 #ifndef KINDRED_IO_HTML_TEXT_H_
 #define KINDRED_IO_HTML_TEXT_H_
 
+#include <cstdint>
 #include <string>
 
 #include "absl/status/status.h"
@@ -28,9 +32,12 @@ namespace kindred::io {
 
 // Space-separated names of the phrasing elements of the definition.
 inline constexpr absl::string_view kPhrasingElements =
-    "a abbr area audio b bdi bdo br button canvas cite code data datalist del dfn em embed i "
-    "iframe img input ins kbd label link map mark math meta meter noscript object output picture "
-    "progress q ruby s samp script select slot small span strong sub sup svg template textarea "
+    "a abbr area audio b bdi bdo br button canvas cite code data datalist del "
+    "dfn em embed i "
+    "iframe img input ins kbd label link map mark math meta meter noscript "
+    "object output picture "
+    "progress q ruby s samp script select slot small span strong sub sup svg "
+    "template textarea "
     "time u var video wbr acronym big blink font nobr strike tt rb rp rt rtc";
 
 // Space-separated names of the elements whose contents are left out.
@@ -49,11 +56,25 @@ inline constexpr int kMaxOpenElements = 10000;
 // Linear, and never less than the parser's depth in practice.
 int OpenElementBound(absl::string_view html);
 
+// Whether OpenElementBound(html) > kMaxOpenElements (quick for short pages).
+bool NestsTooDeeply(absl::string_view html);
+
 // Appends the text of `html` (UTF-8; ill-formed sequences become U+FFFD as
 // the parser reads them) to *out, cleared first. FailedPrecondition, and an
 // empty text, when OpenElementBound(html) > kMaxOpenElements; Internal only
-// when the parser fails to allocate.
-absl::Status HtmlToText(absl::string_view html, std::string* out);
+// when the parser fails to allocate. `valid_utf8` promises that `html` is
+// well-formed UTF-8 (as ConvertToUtf8 makes it), which saves a check.
+absl::Status HtmlToText(absl::string_view html, std::string* out, bool valid_utf8 = false);
+
+// The same by the reference implementation alone (Gumbo), for checks.
+absl::Status ReferenceHtmlToText(absl::string_view html, std::string* out);
+
+// How many documents HtmlToText has read by each path in this process.
+struct HtmlPathCounts {
+  uint64_t fast = 0;       // the fast path
+  uint64_t reference = 0;  // left to the reference parser
+};
+HtmlPathCounts HtmlTextPaths();
 
 }  // namespace kindred::io
 

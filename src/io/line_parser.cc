@@ -1,6 +1,7 @@
 // LineParser: JSON lines a reader left unparsed (CorpusReader::DeferParsing)
 // made into documents.
 #include "absl/strings/str_cat.h"
+#include "io/html_text.h"
 #include "io/json_line.h"
 #include "kindred/corpus.h"
 
@@ -23,6 +24,16 @@ LineParser::~LineParser() = default;
 
 absl::Status LineParser::Finish(Document* doc) {
   if (!doc->unparsed) return absl::OkStatus();
+  if (doc->unparsed_html) {
+    impl_->line.swap(doc->text);
+    doc->unparsed = doc->unparsed_html = false;
+    absl::Status made = io::HtmlToText(impl_->line, &doc->text, /*valid_utf8=*/true);
+    if (!made.ok()) {
+      return absl::Status(made.code(), absl::StrCat(io::DisplayName(doc->source.path), ": ",
+                                                    doc->id, ": ", made.message()));
+    }
+    return absl::OkStatus();
+  }
   // The raw line moves to this parser's buffer and the document's buffer
   // receives the text: both are reused, nothing is allocated per line.
   impl_->line.swap(doc->text);

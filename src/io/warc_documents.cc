@@ -128,14 +128,19 @@ absl::StatusOr<bool> WarcDocuments::Next(
   return true;
 }
 
-absl::Status PayloadText(absl::string_view payload, absl::string_view declared, bool html,
-                         std::string* scratch, std::string* text, uint32_t* replaced) {
+absl::Status PayloadUtf8(absl::string_view payload, absl::string_view declared, bool html,
+                         std::string* utf8, uint32_t* replaced) {
   size_t bom = 0;
   const std::string encoding = ChooseEncoding(declared, payload, html, &bom);
   payload.remove_prefix(bom);
-  if (!html) return ConvertToUtf8(encoding, payload, text, replaced);
-  if (absl::Status s = ConvertToUtf8(encoding, payload, scratch, replaced); !s.ok()) return s;
-  return HtmlToText(*scratch, text);
+  return ConvertToUtf8(encoding, payload, utf8, replaced);
+}
+
+absl::Status PayloadText(absl::string_view payload, absl::string_view declared, bool html,
+                         std::string* scratch, std::string* text, uint32_t* replaced) {
+  if (!html) return PayloadUtf8(payload, declared, html, text, replaced);
+  if (absl::Status s = PayloadUtf8(payload, declared, html, scratch, replaced); !s.ok()) return s;
+  return HtmlToText(*scratch, text, /*valid_utf8=*/true);  // ConvertToUtf8 makes it so
 }
 
 absl::Status WarcDocuments::CheckDigest(const WarcHeader& header, const HttpHead& head,
@@ -157,7 +162,7 @@ absl::Status WarcDocuments::CheckDigest(const WarcHeader& header, const HttpHead
   return absl::OkStatus();
 }
 
-absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc) {
+absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc, bool defer_html) {
   const WarcHeader& header = record.header;
   absl::string_view uri = StripAngles(header.Field("WARC-Target-URI"));
   absl::string_view record_id = header.Field("WARC-Record-ID");
@@ -165,6 +170,7 @@ absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc
   absl::string_view id = by_record_id ? record_id : uri;
   if (id.empty()) id = by_record_id ? uri : record_id;
   doc->id.assign(id.data(), id.size());
+  doc->unparsed = doc->unparsed_html = false;
   doc->priority = 0;
   doc->has_priority = false;
   doc->source.line = 0;
@@ -190,9 +196,18 @@ absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc
     }
     payload = payload_;
   }
-  absl::Status made =
-      PayloadText(payload, declared, record.role.payload == RecordRole::Payload::kHtml, &utf8_,
-                  &doc->text, &doc->invalid_utf8);
+  const bool html = record.role.payload == RecordRole::Payload::kHtml;
+  absl::Status made;
+  if (html && defer_html) {
+    made = PayloadUtf8(payload, declared, html, &doc->text, &doc->invalid_utf8);
+    if (made.ok() && NestsTooDeeply(doc->text)) {
+      made = absl::FailedPreconditionError("nested too deeply");
+    } else if (made.ok()) {
+      doc->unparsed = doc->unparsed_html = true;  // LineParser::Finish extracts the text
+    }
+  } else {
+    made = PayloadText(payload, declared, html, &utf8_, &doc->text, &doc->invalid_utf8);
+  }
   if (made.code() == absl::StatusCode::kFailedPrecondition) {  // the nesting guard
     Count("HTML nested too deeply to parse (empty text)");
     doc->text.clear();

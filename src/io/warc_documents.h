@@ -72,8 +72,12 @@ class WarcDocuments {
   // chunks instead. False at the end.
   absl::StatusOr<bool> Next(WarcRecord* record,
                             const std::function<absl::Status(absl::string_view)>& sink = {});
-  // Fills doc->id, text and invalid_utf8 from a document record.
-  absl::Status MakeDocument(const WarcRecord& record, Document* doc);
+  // Fills doc->id, text and invalid_utf8 from a document record. With
+  // `defer_html`, an HTML page is left with its UTF-8 source in doc->text
+  // and doc->unparsed and unparsed_html set, for LineParser::Finish to
+  // extract its text (on another thread); the nesting guard is applied
+  // here all the same.
+  absl::Status MakeDocument(const WarcRecord& record, Document* doc, bool defer_html = false);
   const std::string& name() const { return reader_.name(); }
 
  private:
@@ -95,6 +99,11 @@ class WarcDocuments {
 // HTML reduced to its text. `declared` is the Content-Type charset.
 absl::Status PayloadText(absl::string_view payload, absl::string_view declared, bool html,
                          std::string* scratch, std::string* text, uint32_t* replaced);
+
+// The payload converted to UTF-8 by the charset rules (the first step of
+// PayloadText).
+absl::Status PayloadUtf8(absl::string_view payload, absl::string_view declared, bool html,
+                         std::string* utf8, uint32_t* replaced);
 
 }  // namespace kindred::io
 
