@@ -38,7 +38,7 @@ corpus() {  # corpus NAME: makes the input once, prints its path
       path=$WORK/$name.jsonl
       local rate=${name#gen-}
       [ -e "$path" ] || /usr/bin/python3 "$ROOT/tools/gen_corpus.py" --docs 20000 --seed 7 \
-        --dup-rate "$rate" --edit-rates 0,0.005,0.02,0.05 --boilerplate 0.05 \
+        --dup-rate "$rate" --edit-rates 0.001,0.005,0.02,0.05 --boilerplate 0.05 \
         --out "$path" >/dev/null
       ;;
   esac
