@@ -234,6 +234,52 @@ TEST_CASE("A lean sweep gives the records of one that keeps every set", "[sweep]
   }
 }
 
+TEST_CASE("Groups of identical sets give the records of a sweep over every document", "[sweep]") {
+  // Exact copies, texts that differ but have one set (case, punctuation,
+  // spacing), repeated empty documents, and near-duplicates of the copies;
+  // with a small --max-bucket, the groups crowd buckets and the search runs
+  // over their members.
+  testing::TempDir dir;
+  std::string lines;
+  SplitMix64 random(12);
+  for (int d = 0; d < 120; ++d) {
+    std::string text;
+    for (int w = 0; w < 30; ++w) absl::StrAppend(&text, "w", random.Between(0, 80), " ");
+    const int copies = d % 5 == 0 ? 6 : (d % 3 == 0 ? 2 : 1);
+    for (int c = 0; c < copies; ++c) {
+      std::string variant = c % 2 == 0 ? text : absl::StrCat("  ", text, ". ");
+      if (c == 3) variant += "tail words here";
+      absl::StrAppend(&lines, "{\"id\":\"d", d, "-", c, "\",\"text\":\"", variant, "\"}\n");
+    }
+    if (d % 40 == 0) absl::StrAppend(&lines, "{\"id\":\"e", d, "\",\"text\":\" .\"}\n");
+  }
+  const std::string path = dir.Write("copies.jsonl", lines);
+  for (uint64_t max_bucket : {kDefaultMaxBucket, uint64_t{4}}) {
+    for (uint64_t memory : {uint64_t{0}, uint64_t{1} << 20}) {
+      for (int threads : {1, 2}) {
+        SweepOptions options;
+        options.sign.threads = threads;
+        options.sign.batch_documents = 17;
+        options.max_bucket = max_bucket;
+        options.memory = memory;
+        options.scratch_dir = dir.path();
+        const SweepResult grouped = Sweep(path, options);
+        options.keep_sets = true;
+        const SweepResult full = Sweep(path, options);
+        REQUIRE(!full.pairs.empty());
+        CHECK(grouped.corpus.groups_identical());
+        CHECK(RecordsOf(grouped) == RecordsOf(full));
+        CHECK(grouped.stats.candidates.candidate_pairs == full.stats.candidates.candidate_pairs);
+        CHECK(grouped.stats.candidates.bucket_entries == full.stats.candidates.bucket_entries);
+        CHECK(grouped.stats.candidates.largest_bucket == full.stats.candidates.largest_bucket);
+        CHECK(grouped.stats.candidates.oversized_buckets ==
+              full.stats.candidates.oversized_buckets);
+        CHECK(grouped.stats.sign.empty_documents == full.stats.sign.empty_documents);
+      }
+    }
+  }
+}
+
 TEST_CASE("A document changed between the two readings is an error", "[sweep]") {
   testing::TempDir dir;
   const std::string path = dir.Write("corpus.jsonl",

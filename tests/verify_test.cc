@@ -74,3 +74,32 @@ TEST_CASE("Pairs with known Jaccard measure exactly", "[verify]") {
 
 }  // namespace
 }  // namespace kindred
+
+namespace kindred {
+namespace {
+
+TEST_CASE("MeasureOverlapAtLeast stops only pairs that cannot reach the bound", "[verify]") {
+  SplitMix64 random(11);
+  const std::vector<std::pair<size_t, size_t>> sizes = {
+      {1, 1}, {10, 12}, {100, 90}, {300, 280}, {3, 500}, {500, 3}, {20, 2000}, {1000, 1000}};
+  for (const auto& [size_a, size_b] : sizes) {
+    for (int trial = 0; trial < 20; ++trial) {
+      const auto a = RandomSet(random, size_a, 1500);
+      const auto b = RandomSet(random, size_b, 1500);
+      const Overlap exact = MeasureOverlap(a, b);
+      for (uint32_t needed : {0u, 1u, exact.shared, exact.shared + 1, exact.shared + 50}) {
+        Overlap bounded;
+        const bool reached = MeasureOverlapAtLeast(a, b, needed, &bounded);
+        CHECK(reached == (exact.shared >= needed));
+        if (reached) {
+          CHECK(bounded.shared == exact.shared);
+          CHECK(bounded.size_a == exact.size_a);
+          CHECK(bounded.size_b == exact.size_b);
+        }
+      }
+    }
+  }
+}
+
+}  // namespace
+}  // namespace kindred

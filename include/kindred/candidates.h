@@ -62,6 +62,21 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(
     const SignedCorpus& corpus, Banding banding, int threads, CandidateStats* stats,
     uint64_t max_bucket = kDefaultMaxBucket);
 
+// For a corpus that groups identical sets (SignedCorpus::GroupIdenticalSets):
+// the candidate pairs a search over every document would give (same pairs,
+// same stats; each group is a document of its group's weight). Unless a
+// bucket holds more than max_bucket documents, `pairs` are pairs of
+// representatives: the document pairs are every member pair of each, and
+// every two members of one non-empty group. Otherwise (`expanded`) `pairs`
+// are the document pairs themselves. Errors: as FindSpilledCandidatePairs.
+struct GroupedCandidates {
+  std::vector<PackedPair> pairs;  // ascending
+  bool expanded = false;
+};
+absl::StatusOr<GroupedCandidates> FindGroupedCandidatePairs(
+    const SignedCorpus& corpus, Banding banding, int threads, CandidateStats* stats,
+    uint64_t max_bucket = kDefaultMaxBucket);
+
 }  // namespace kindred
 
 #endif  // KINDRED_CANDIDATES_H_

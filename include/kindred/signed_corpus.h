@@ -31,6 +31,7 @@
 #include <string>
 #include <vector>
 
+#include "absl/container/flat_hash_map.h"
 #include "absl/status/status.h"
 #include "absl/types/span.h"
 #include "kindred/band_spill.h"
@@ -144,6 +145,57 @@ class SignedCorpus {
   uint32_t band_key_digest(size_t doc) const { return band_key_digests_[doc]; }
   static uint32_t BandKeyDigest(absl::Span<const uint64_t> keys);
 
+  // Lean only: groups documents whose shingle sets are identical. Each
+  // group is represented by its first document (its representative): only
+  // representatives have band keys (the others all kNoBandKey), so a group
+  // takes part in candidate search once; identical sets are pairs of
+  // Jaccard exactly 1 and need no intersection (see sweep.cc). Sets are told
+  // apart by a 128-bit XXH3 digest of the sorted set. The sets and
+  // signatures of representatives are kept (attached, as by AttachRoom)
+  // while they take at most `set_budget_bytes` in all; the others are read
+  // again when needed (reload.h). Call before the first document.
+  void GroupIdenticalSets(uint64_t set_budget_bytes);
+  bool groups_identical() const { return identical_; }
+  // A 128-bit digest (XXH3) of a sorted set, or of a text.
+  struct Digest {
+    uint64_t low = 0, high = 0;
+    friend bool operator==(const Digest&, const Digest&) = default;
+    template <typename H>
+    friend H AbslHashValue(H h, const Digest& d) {
+      return H::combine(std::move(h), d.low, d.high);
+    }
+  };
+  static Digest SetDigest(absl::Span<const uint64_t> set);
+  // One signed document for a corpus that groups identical sets:
+  //  - a new text with its sorted set (`sorted`), the set's digest, its
+  //    signature and band keys (of lean_banding()); its set is grouped by
+  //    digest and kept when there is room;
+  //  - a new text signed as a bag (not `sorted`): bag_size, signature and
+  //    band keys; it represents itself;
+  //  - a text already seen: same_text_as, the earlier document with it; when
+  //    `sorted`, set and signature are that text's, kept for its
+  //    representative if that has none yet.
+  struct SignedDocument {
+    bool sorted = false;
+    absl::Span<const uint64_t> set;
+    uint32_t bag_size = 0;
+    Digest digest;
+    absl::Span<const uint32_t> signature;
+    absl::Span<const uint64_t> band_keys;
+    int64_t same_text_as = -1;
+  };
+  // Whether sets are still being kept (the budget is not used up).
+  bool set_room() const { return kept_set_bytes_ < set_budget_; }
+  // Requires groups_identical(). Copies what it keeps.
+  void AddGrouped(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
+                  const SignedDocument& signed_doc);
+  // The representative of doc's group (doc itself when it is one, when the
+  // corpus does not group identical sets, and for empty documents).
+  uint32_t representative(size_t doc) const { return identical_ ? rep_of_[doc] : doc; }
+  // Members of the group doc represents (0 for a document that is not a
+  // representative; 1 when not grouping).
+  uint32_t group_size(size_t doc) const { return identical_ ? group_size_[doc] : 1; }
+
   // Lean only, spilling: once the band keys held in memory take more than
   // `budget_bytes`, spill_due() says so and SpillBandKeys() moves them to
   // sorted runs in a scratch file in `dir` (see band_spill.h), keeping the
@@ -160,6 +212,8 @@ class SignedCorpus {
  private:
   void AddKeys(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
                uint32_t shingle_count, absl::Span<const uint64_t> keys);
+  // Keeps a representative's set and signature when the budget allows.
+  void KeepSet(uint32_t doc, absl::Span<const uint64_t> set, absl::Span<const uint32_t> signature);
   size_t resident_key_bytes() const {
     return (size() - first_resident_) * banding_.bands * sizeof(uint64_t);
   }
@@ -186,6 +240,14 @@ class SignedCorpus {
   std::string spill_dir_;
   std::unique_ptr<BandSpill> spill_;
   size_t first_resident_ = 0;
+  // Grouping identical sets (GroupIdenticalSets).
+  bool identical_ = false;
+  uint64_t set_budget_ = 0;
+  uint64_t kept_set_bytes_ = 0;
+  HugePageVector<uint32_t> rep_of_;
+  HugePageVector<uint32_t> group_size_;
+  absl::flat_hash_map<Digest, uint32_t> by_set_;  // set digest -> representative
+  std::vector<uint64_t> no_keys_;                 // bands x kNoBandKey
 };
 
 // What signing saw, beyond the documents themselves.

@@ -51,6 +51,11 @@ std::vector<ScoredPair> ExhaustivePairs(const SignedCorpus& corpus, const MatchS
 // banding, as before.
 bool UsesContainmentSearch(const MatchSettings& match);
 
+// The bytes of shingle sets and signatures a sweep without a memory budget
+// keeps from signing for verification (4 GiB: a machine of 24 GiB holds it
+// beside the rest of a ten-million-document sweep).
+inline constexpr uint64_t kDefaultSetMemory = uint64_t{4} << 30;
+
 struct SweepOptions {
   SignatureSettings signature;
   MatchSettings match;  // bands/rows 0: chosen by ChooseBanding()
@@ -71,6 +76,10 @@ struct SweepOptions {
   // `scratch_dir` (see band_spill.h); the other half is for ids and
   // per-document facts (about 100 bytes plus the id each) and the batch
   // being signed. Results are the same with and without spilling.
+  // The exact shingle sets of the documents (one per group of identical
+  // sets) are kept for verification while they take at most a quarter of
+  // `memory`, or kDefaultSetMemory without a budget; the documents of
+  // candidate pairs whose sets were not kept are read a second time.
   uint64_t memory = 0;
   std::string scratch_dir = "/tmp";
 };

@@ -35,6 +35,17 @@ struct Overlap {
 // sets of similar size, galloping search when one is much smaller.
 Overlap MeasureOverlap(absl::Span<const uint64_t> a, absl::Span<const uint64_t> b);
 
+// Like MeasureOverlap, but gives up (returns false, *out partly filled) as
+// soon as fewer than `needed` shared hashes remain possible: the shared
+// count so far plus what is left of the shorter remainder. This is the
+// overlap bound of prefix filtering (Chaudhuri, Ganti, Kaushik 2006, "A
+// Primitive Operator for Similarity Joins in Data Cleaning"; Xiao, Wang,
+// Lin, Yu 2008, "Efficient Similarity Joins for Near Duplicate Detection",
+// PPJoin): a pair that cannot reach the threshold stops early. Returns true
+// with the exact overlap otherwise.
+bool MeasureOverlapAtLeast(absl::Span<const uint64_t> a, absl::Span<const uint64_t> b,
+                           uint32_t needed, Overlap* out);
+
 }  // namespace kindred
 
 #endif  // KINDRED_VERIFY_H_

@@ -2,8 +2,10 @@
 
 #include <algorithm>
 #include <bit>
+#include <memory>
 
 #include "core/contract_internal.h"
+#include "core/group_members.h"
 #include "kindred/band_spill.h"
 #include "kindred/parallel.h"
 
@@ -16,15 +18,80 @@ struct BandStats {
   uint64_t oversized = 0;
 };
 
+// How a search counts and pairs the documents of a corpus that groups
+// identical sets (SignedCorpus::GroupIdenticalSets).
+enum class Unit {
+  kDocuments,        // every entry is one document (no grouping)
+  kRepresentatives,  // an entry stands for its group: weighted, pairs of representatives
+  kExpanded,         // an entry stands for its group: pairs of all members
+};
+
 // Turns one band's entries, given in (key, doc) order, into pairs: every two
 // documents that share a bucket, or for a bucket of more than max_bucket
-// documents each member with the first. Holds at most max_bucket entries.
+// documents each member with the first. Holds at most max_bucket entries
+// (kDocuments). With groups of identical sets, an entry counts as its
+// group's members: kRepresentatives pairs representatives and notes a
+// bucket that is crowded by that count (the caller then searches again,
+// kExpanded, which pairs the members themselves).
 class BucketPairer {
  public:
-  BucketPairer(uint64_t max_bucket, std::vector<PackedPair>* pairs, BandStats* stats)
-      : max_bucket_(max_bucket), pairs_(pairs), stats_(stats) {}
+  BucketPairer(uint64_t max_bucket, std::vector<PackedPair>* pairs, BandStats* stats,
+               const SignedCorpus& corpus, Unit unit, const GroupMembers* groups)
+      : max_bucket_(max_bucket),
+        pairs_(pairs),
+        stats_(stats),
+        corpus_(corpus),
+        unit_(unit),
+        groups_(groups) {}
 
   void Push(const BucketEntry& entry) {
+    if (unit_ == Unit::kDocuments) return PushDocument(entry);
+    const uint64_t weight = corpus_.group_size(entry.doc);
+    stats_->entries += weight;
+    if (size_ > 0 && entry.key != key_) Finish();
+    if (size_ == 0) key_ = entry.key;
+    size_ += weight;
+    if (unit_ == Unit::kExpanded) {
+      const absl::Span<const uint32_t> members = groups_->of(entry.doc);
+      members_.insert(members_.end(), members.begin(), members.end());
+      return;
+    }
+    if (size_ > max_bucket_) crowded_ = true;
+    if (!crowded_) members_.push_back(entry.doc);
+  }
+
+  // Ends the current bucket; call once after the last entry too.
+  void Finish() {
+    stats_->largest = std::max(stats_->largest, size_);
+    if (unit_ == Unit::kExpanded) {
+      std::sort(members_.begin(), members_.end());
+      oversized_ = members_.size() > max_bucket_;
+      if (oversized_) {
+        for (size_t y = 1; y < members_.size(); ++y) {
+          pairs_->push_back(PackPair(members_[0], members_[y]));
+        }
+        members_.clear();
+      }
+    }
+    if (oversized_) {
+      stats_->oversized++;
+    } else if (!crowded_) {
+      for (size_t x = 0; x < members_.size(); ++x) {
+        for (size_t y = x + 1; y < members_.size(); ++y) {
+          pairs_->push_back(PackPair(members_[x], members_[y]));
+        }
+      }
+    }
+    members_.clear();
+    size_ = 0;
+    oversized_ = false;
+  }
+
+  // kRepresentatives: whether a bucket held more than max_bucket documents.
+  bool crowded() const { return crowded_; }
+
+ private:
+  void PushDocument(const BucketEntry& entry) {
     ++stats_->entries;
     if (size_ > 0 && entry.key != key_) Finish();
     if (size_ == 0) key_ = entry.key;
@@ -42,30 +109,16 @@ class BucketPairer {
     }
   }
 
-  // Ends the current bucket; call once after the last entry too.
-  void Finish() {
-    stats_->largest = std::max(stats_->largest, size_);
-    if (oversized_) {
-      stats_->oversized++;
-    } else {
-      for (size_t x = 0; x < members_.size(); ++x) {
-        for (size_t y = x + 1; y < members_.size(); ++y) {
-          pairs_->push_back(PackPair(members_[x], members_[y]));
-        }
-      }
-    }
-    members_.clear();
-    size_ = 0;
-    oversized_ = false;
-  }
-
- private:
   const uint64_t max_bucket_;
   std::vector<PackedPair>* pairs_;
   BandStats* stats_;
+  const SignedCorpus& corpus_;
+  const Unit unit_;
+  const GroupMembers* groups_;
   uint64_t key_ = 0;
   uint64_t size_ = 0;
   bool oversized_ = false;
+  bool crowded_ = false;
   uint32_t first_ = 0;
   std::vector<uint32_t> members_;
 };
@@ -77,19 +130,30 @@ class BucketPairer {
 // in 16), so every bucket of two or more survives whole. Most band keys are
 // unique, and sorting the few left is far cheaper than sorting all of them;
 // the column is read twice instead of copied whole. With drop_singletons
-// false (or fewer than 1024 keys) every entry is kept. Returns the number of
-// entries dropped (buckets of one).
-size_t CollectEntries(const uint64_t* column, size_t count, size_t first, bool drop_singletons,
-                      HugePageVector<uint64_t>& filter, EntryVector& entries) {
+// false (or fewer than 1024 keys) every entry is kept. Returns what was
+// dropped (buckets of one entry; an entry counts as the members of its group
+// when the corpus groups identical sets).
+struct Dropped {
+  uint64_t weight = 0;   // documents
+  uint64_t largest = 0;  // documents of the largest bucket dropped
+};
+Dropped CollectEntries(const SignedCorpus& corpus, const uint64_t* column, size_t count,
+                       size_t first, bool drop_singletons, HugePageVector<uint64_t>& filter,
+                       EntryVector& entries) {
   entries.clear();
   const auto collect = [&](auto keep) {
-    size_t valid = 0;
+    Dropped dropped;
     for (size_t i = 0; i < count; ++i) {
       if (column[i] == kNoBandKey) continue;
-      ++valid;
-      if (keep(column[i])) entries.push_back({column[i], static_cast<uint32_t>(first + i)});
+      if (keep(column[i])) {
+        entries.push_back({column[i], static_cast<uint32_t>(first + i)});
+      } else {
+        const uint64_t weight = corpus.group_size(first + i);
+        dropped.weight += weight;
+        dropped.largest = std::max(dropped.largest, weight);
+      }
     }
-    return valid - entries.size();
+    return dropped;
   };
   if (!drop_singletons || count < 1024) {
     entries.reserve(count);
@@ -116,10 +180,15 @@ size_t CollectEntries(const uint64_t* column, size_t count, size_t first, bool d
 
 }  // namespace
 
-absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCorpus& corpus,
-                                                                  Banding banding, int threads,
-                                                                  CandidateStats* stats,
-                                                                  uint64_t max_bucket) {
+namespace {
+
+// The search itself (see FindSpilledCandidatePairs), over documents or
+// groups of identical sets (`unit`; `groups` for kExpanded). *crowded: for
+// kRepresentatives, whether a bucket held more than max_bucket documents.
+absl::StatusOr<std::vector<PackedPair>> Search(const SignedCorpus& corpus, Banding banding,
+                                               int threads, CandidateStats* stats,
+                                               uint64_t max_bucket, Unit unit,
+                                               const GroupMembers* groups, bool* crowded) {
   const size_t n = corpus.size();
   const uint32_t bands = banding.bands;
   // The band keys of the documents held in memory, band by band: a lean
@@ -162,17 +231,21 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCo
   // Without spilled runs, buckets of one make no pairs: they are counted,
   // not collected and sorted.
   const bool in_memory = spill == nullptr || spill->runs() == 0;
+  // Expanded groups make pairs from buckets of one entry too.
+  const bool drop_singletons = in_memory && unit != Unit::kExpanded;
+  std::vector<uint8_t> band_crowded(bands, 0);
   ParallelFor(bands, threads, [&](size_t begin, size_t end, int worker) {
     EntryVector& entries = spaces[worker].entries;
     EntryVector& scratch = spaces[worker].scratch;
     HugePageVector<uint32_t>& offsets = spaces[worker].offsets;
     for (size_t band = begin; band < end; ++band) {
-      const size_t dropped =
-          CollectEntries(columns[band], resident, first, in_memory, spaces[worker].filter, entries);
-      BucketPairer pairer(max_bucket, &band_pairs[band], &band_stats[band]);
+      const Dropped dropped = CollectEntries(corpus, columns[band], resident, first,
+                                             drop_singletons, spaces[worker].filter, entries);
+      BucketPairer pairer(max_bucket, &band_pairs[band], &band_stats[band], corpus, unit, groups);
       if (in_memory) {
-        band_stats[band].entries += dropped;
-        if (dropped > 0) band_stats[band].largest = std::max<uint64_t>(band_stats[band].largest, 1);
+        band_stats[band].entries += dropped.weight;
+        band_stats[band].largest = std::max(band_stats[band].largest, dropped.largest);
+        if (dropped.largest > max_bucket) band_crowded[band] = 1;
         SortEntries(entries, scratch, offsets);
         for (const BucketEntry& entry : entries) pairer.Push(entry);
       } else {
@@ -190,6 +263,7 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCo
         }
       }
       pairer.Finish();
+      band_crowded[band] |= pairer.crowded();
       std::sort(band_pairs[band].begin(), band_pairs[band].end());
     }
   });
@@ -207,8 +281,58 @@ absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCo
   std::sort(pairs.begin(), pairs.end());
   pairs.erase(std::unique(pairs.begin(), pairs.end()), pairs.end());
   stats->candidate_pairs = pairs.size();
+  *crowded = std::any_of(band_crowded.begin(), band_crowded.end(), [](uint8_t c) { return c; });
   return pairs;
 }
+
+}  // namespace
+
+absl::StatusOr<std::vector<PackedPair>> FindSpilledCandidatePairs(const SignedCorpus& corpus,
+                                                                  Banding banding, int threads,
+                                                                  CandidateStats* stats,
+                                                                  uint64_t max_bucket) {
+  bool crowded = false;
+  return Search(corpus, banding, threads, stats, max_bucket,
+                corpus.groups_identical() ? Unit::kExpanded : Unit::kDocuments,
+                corpus.groups_identical() ? std::make_unique<GroupMembers>(corpus).get() : nullptr,
+                &crowded);
+}
+
+absl::StatusOr<GroupedCandidates> FindGroupedCandidatePairs(const SignedCorpus& corpus,
+                                                            Banding banding, int threads,
+                                                            CandidateStats* stats,
+                                                            uint64_t max_bucket) {
+  GroupedCandidates result;
+  CandidateStats found;
+  bool crowded = false;
+  absl::StatusOr<std::vector<PackedPair>> pairs = Search(
+      corpus, banding, threads, &found, max_bucket, Unit::kRepresentatives, nullptr, &crowded);
+  if (!pairs.ok()) return pairs.status();
+  if (!crowded) {
+    // The document pairs: every member pair of each pair of representatives,
+    // and every two members of one group (identical sets share every band).
+    found.candidate_pairs = 0;
+    for (PackedPair pair : *pairs) {
+      found.candidate_pairs +=
+          uint64_t{corpus.group_size(PairFirst(pair))} * corpus.group_size(PairSecond(pair));
+    }
+    for (size_t doc = 0; doc < corpus.size(); ++doc) {
+      const uint64_t size = corpus.shingle_count(doc) == 0 ? 0 : corpus.group_size(doc);
+      found.candidate_pairs += size * (size - (size > 0)) / 2;
+    }
+    *stats = found;
+    result.pairs = *std::move(pairs);
+    return result;
+  }
+  const GroupMembers groups(corpus);
+  pairs = Search(corpus, banding, threads, stats, max_bucket, Unit::kExpanded, &groups, &crowded);
+  if (!pairs.ok()) return pairs.status();
+  result.pairs = *std::move(pairs);
+  result.expanded = true;
+  return result;
+}
+
+
 
 std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding banding, int threads,
                                            CandidateStats* stats, uint64_t max_bucket) {

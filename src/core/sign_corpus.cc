@@ -17,9 +17,11 @@
 // evenly loaded, and batch boundaries depend only on the input, so the
 // corpus and every message are the same for any thread count.
 #include <algorithm>
+#include <atomic>
 #include <condition_variable>
 #include <memory>
 #include <mutex>
+#include <shared_mutex>
 #include <thread>
 #include <vector>
 
@@ -31,6 +33,7 @@
 #include "kindred/shingles.h"
 #include "kindred/signed_corpus.h"
 #include "kindred/signer.h"
+#include "xxhash.h"
 
 namespace kindred {
 namespace {
@@ -49,6 +52,13 @@ struct Batch {
   std::vector<TextStats> text_stats;
   std::vector<absl::Status> errors;
   std::vector<uint8_t> unparsable;  // errors[i] is the line's own parse error
+  // Grouping identical sets (SignedCorpus::groups_identical()): digests of
+  // the texts and the sets, and for a text seen before the document that
+  // had it (else -1).
+  std::vector<SignedCorpus::Digest> text_digests;
+  std::vector<SignedCorpus::Digest> set_digests;
+  std::vector<int64_t> same_text;
+  std::vector<uint8_t> sorted;  // sets[i] is a sorted set (else a bag, or nothing)
 };
 
 std::string Place(const CorpusReader& reader, const Document& doc) {
@@ -104,6 +114,7 @@ class Pipeline {
         signer_(settings),
         perms_(settings.perms),
         lean_(out->lean()),
+        grouped_(out->groups_identical()),
         banding_(out->lean_banding()),
         per_thread_(threads_),
         out_(out),
@@ -233,6 +244,7 @@ class Pipeline {
   }
 
   void Sign(Batch* batch, int worker) {
+    if (grouped_) return SignGrouped(batch, worker);
     const size_t n = batch->docs.size();
     batch->sets.resize(lean_ ? 0 : n);
     batch->set_sizes.resize(n);
@@ -265,9 +277,121 @@ class Pipeline {
     }
   }
 
+  // Clears the per-document results of a batch of n documents.
+  void ResetResults(Batch* batch, size_t n) {
+    batch->sets.resize(n);
+    batch->set_sizes.assign(n, 0);
+    batch->signatures.resize(n * perms_);
+    batch->band_keys.resize(n * banding_.bands);
+    batch->text_stats.assign(n, TextStats{});
+    batch->errors.assign(n, absl::OkStatus());
+    batch->unparsable.assign(n, 0);
+    batch->text_digests.resize(n);
+    batch->set_digests.resize(n);
+    batch->same_text.assign(n, -1);
+    batch->sorted.assign(n, 0);
+  }
+
+  // Sign() for a corpus that groups identical sets. A text seen before (by
+  // its 128-bit digest, among the documents committed so far) is not
+  // shingled again, unless the document that had it kept no set while sets
+  // are being kept: then this copy provides it. While sets are kept
+  // (keeping_), the others get sorted sets and set digests; otherwise bags,
+  // as a lean corpus signs them. Whatever is caught or kept here, the
+  // commit gives the same documents and pairs: this only saves work.
+  void SignGrouped(Batch* batch, int worker) {
+    const size_t n = batch->docs.size();
+    ResetResults(batch, n);
+    PerThread& mine = per_thread_[worker];
+    for (size_t i = 0; i < n; ++i) {
+      Document& doc = batch->docs[i];
+      if (absl::Status parsed = mine.parser->Finish(&doc); !parsed.ok()) {
+        batch->errors[i] = std::move(parsed);
+        batch->unparsable[i] = 1;
+        continue;
+      }
+      const XXH128_hash_t hash = XXH3_128bits(doc.text.data(), doc.text.size());
+      batch->text_digests[i] = {hash.low64, hash.high64};
+    }
+    const bool keeping = keeping_.load(std::memory_order_relaxed);
+    {
+      std::shared_lock<std::shared_mutex> lock(texts_mu_);
+      for (size_t i = 0; i < n; ++i) {
+        if (batch->unparsable[i]) continue;
+        if (auto it = texts_.find(batch->text_digests[i]); it != texts_.end()) {
+          batch->same_text[i] = it->second.doc;
+          batch->text_stats[i].invalid_utf8 = it->second.invalid_utf8;
+          batch->sorted[i] = keeping && !it->second.has_set;
+        } else {
+          batch->sorted[i] = keeping;
+        }
+      }
+    }
+    for (size_t i = 0; i < n; ++i) {
+      if (batch->unparsable[i] || (batch->same_text[i] >= 0 && !batch->sorted[i])) continue;
+      ShingleSet& set = batch->sets[i];
+      TextStats* stats = batch->same_text[i] >= 0 ? nullptr : &batch->text_stats[i];
+      batch->errors[i] = batch->sorted[i] ? mine.shingler->Shingle(batch->docs[i].text, &set, stats)
+                                          : mine.shingler->ShingleBag(batch->docs[i].text, &set, stats);
+      batch->set_sizes[i] = static_cast<uint32_t>(set.size());
+      const auto signature = absl::MakeSpan(&batch->signatures[i * perms_], perms_);
+      signer_.Sign(set, signature);
+      SignedCorpus::LeanBandKeys(
+          banding_, set.empty(), signature,
+          absl::MakeSpan(&batch->band_keys[i * banding_.bands], banding_.bands));
+      if (batch->sorted[i]) batch->set_digests[i] = SignedCorpus::SetDigest(set);
+    }
+  }
+
+  // Appends document i of a signed batch to a corpus that groups identical
+  // sets.
+  void AddGrouped(Batch* batch, size_t i, const KeepFacts& facts, const DocumentOrigin& origin) {
+    SignedCorpus::SignedDocument signed_doc;
+    signed_doc.same_text_as = batch->same_text[i];
+    signed_doc.sorted = batch->sorted[i] != 0;
+    signed_doc.set = batch->sets[i];
+    signed_doc.digest = batch->set_digests[i];
+    signed_doc.signature = absl::MakeConstSpan(&batch->signatures[i * perms_], perms_);
+    signed_doc.band_keys =
+        absl::MakeConstSpan(&batch->band_keys[i * banding_.bands], banding_.bands);
+    if (signed_doc.same_text_as >= 0) {
+      ++repeated_texts_;
+    } else if (!signed_doc.sorted) {
+      signed_doc.set = {};  // a bag: its size is all the corpus takes
+      signed_doc.bag_size = batch->set_sizes[i];
+    }
+    out_->AddGrouped(std::move(batch->docs[i].id), facts, origin, signed_doc);
+  }
+
+  // After a batch's commit: its new texts (and texts whose documents now
+  // have sets), for SignGrouped; and whether sets are still kept. They are
+  // kept while the corpus has room for them and, after its first 4096
+  // documents, while at least one document in 16 repeats an earlier text:
+  // in a corpus of few duplicates, the few candidate documents are cheaper
+  // to read again than every set is to sort and keep.
+  void RememberTexts(const Batch& batch, size_t first_doc) {
+    std::unique_lock<std::shared_mutex> lock(texts_mu_);
+    for (size_t i = 0; i < batch.docs.size(); ++i) {
+      const int64_t same = batch.same_text[i];
+      const uint32_t doc = static_cast<uint32_t>(first_doc + i);
+      const uint32_t rep = out_->representative(same >= 0 ? same : doc);
+      const bool has_set = out_->has_shingles(rep) || out_->shingle_count(rep) == 0;
+      if (same >= 0) {
+        if (has_set) texts_[batch.text_digests[i]].has_set = true;
+        continue;
+      }
+      texts_.try_emplace(batch.text_digests[i],
+                         TextSeen{doc, batch.text_stats[i].invalid_utf8, has_set});
+    }
+    const size_t docs = out_->size();
+    keeping_.store(out_->set_room() && (docs < 4096 || repeated_texts_ * 16 >= docs),
+                   std::memory_order_relaxed);
+  }
+
   // Appends a signed batch to the corpus (calling thread, read order).
   absl::Status Commit(Batch* batch) {
     const size_t n = batch->docs.size();
+    const size_t first_doc = out_->size();
     for (size_t i = 0; i < n; ++i) {
       Document& doc = batch->docs[i];
       if (batch->unparsable[i]) return batch->errors[i];
@@ -283,7 +407,11 @@ class Pipeline {
                                                        PlaceOf(reader_, *out_, *it), ")",
                                                        HintFor(reader_, *out_, *it, doc)));
       }
+      if (grouped_ && batch->same_text[i] >= 0) {
+        batch->set_sizes[i] = out_->shingle_count(batch->same_text[i]);
+      }
       TextStats& text = batch->text_stats[i];
+      const uint32_t shingler_invalid = text.invalid_utf8;
       text.invalid_utf8 += doc.invalid_utf8;
       stats_->documents++;
       stats_->bytes += doc.text.size();
@@ -295,7 +423,10 @@ class Pipeline {
       }
       const KeepFacts facts{doc.text.size(), doc.priority, doc.has_priority};
       const DocumentOrigin origin{doc.source.input, doc.source.line, doc.source.offset};
-      if (lean_) {
+      if (grouped_) {
+        text.invalid_utf8 = shingler_invalid;  // what a repeat of this text gets from signing
+        AddGrouped(batch, i, facts, origin);
+      } else if (lean_) {
         out_->AddWithBandKeys(
             std::move(doc.id), facts, origin, batch->set_sizes[i],
             absl::MakeConstSpan(&batch->band_keys[i * banding_.bands], banding_.bands));
@@ -305,6 +436,7 @@ class Pipeline {
       }
       seen_.insert(static_cast<uint32_t>(out_->size() - 1));
     }
+    if (grouped_) RememberTexts(*batch, first_doc);
     stats_->raw_bytes = reader_.raw_bytes_read();
     stats_->raw_bytes_total = reader_.raw_bytes_total();
     if (batch->sequence == 0 && stats_->raw_bytes_total > 0 && n > 0) {
@@ -336,6 +468,7 @@ class Pipeline {
   const Signer signer_;
   const uint32_t perms_;
   const bool lean_;
+  const bool grouped_;
   const Banding banding_;
   // What each thread works with (index 0: the calling thread), a cache
   // line apart: the bag's end pointer is written for every shingle, and
@@ -351,6 +484,18 @@ class Pipeline {
   SignedCorpus* out_;
   SignStats* stats_;
   absl::flat_hash_set<uint32_t, IdHash, IdEq> seen_;  // ids so far, to name repeats
+
+  // Texts committed so far (grouping identical sets): digest -> the first
+  // document with it and the invalid UTF-8 its shingling counted.
+  struct TextSeen {
+    uint32_t doc;
+    uint32_t invalid_utf8;
+    bool has_set;  // its representative's set is kept (or empty)
+  };
+  std::atomic<bool> keeping_{true};
+  uint64_t repeated_texts_ = 0;  // commit thread
+  std::shared_mutex texts_mu_;
+  absl::flat_hash_map<SignedCorpus::Digest, TextSeen> texts_;
 
   std::mutex read_mu_;  // held while reading; guards the two below
   bool reader_done_ = false;

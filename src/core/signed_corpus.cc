@@ -26,6 +26,10 @@ void SignedCorpus::Reserve(size_t documents) {
     if (documents > first_resident_ + key_stride_) GrowKeyTable(documents - first_resident_);
     band_key_digests_.reserve(documents);
   }
+  if (identical_) {
+    rep_of_.reserve(documents);
+    group_size_.reserve(documents);
+  }
 }
 
 void SignedCorpus::Clear() {
@@ -37,6 +41,10 @@ void SignedCorpus::Clear() {
   shingle_count_.clear();
   signature_data_.clear();
   band_key_digests_.clear();
+  rep_of_.clear();
+  group_size_.clear();
+  by_set_.clear();
+  kept_set_bytes_ = 0;
   shingles_.Reset();
   signatures_.Reset();
   first_resident_ = 0;
@@ -138,6 +146,57 @@ absl::Status SignedCorpus::SpillBandKeys() {
   // The table is kept: the next documents reuse its memory.
   first_resident_ = size();
   return absl::OkStatus();
+}
+
+void SignedCorpus::GroupIdenticalSets(uint64_t set_budget_bytes) {
+  internal::RequireContract(lean() && size() == 0,
+                            "GroupIdenticalSets needs an empty lean corpus");
+  identical_ = true;
+  set_budget_ = set_budget_bytes;
+  no_keys_.assign(banding_.bands, kNoBandKey);
+}
+
+SignedCorpus::Digest SignedCorpus::SetDigest(absl::Span<const uint64_t> set) {
+  const XXH128_hash_t hash = XXH3_128bits(set.data(), set.size() * sizeof(uint64_t));
+  return Digest{hash.low64, hash.high64};
+}
+
+void SignedCorpus::AddGrouped(std::string id, const KeepFacts& facts,
+                              const DocumentOrigin& origin, const SignedDocument& signed_doc) {
+  const auto doc = static_cast<uint32_t>(size());
+  uint32_t rep = doc;
+  uint32_t count = signed_doc.sorted ? static_cast<uint32_t>(signed_doc.set.size())
+                                     : signed_doc.bag_size;
+  if (signed_doc.same_text_as >= 0) {
+    const uint32_t earlier = rep_of_[signed_doc.same_text_as];
+    if (shingle_count_[earlier] > 0 && signed_doc.sorted && !has_shingles(earlier)) {
+      KeepSet(earlier, signed_doc.set, signed_doc.signature);
+    }
+    count = shingle_count_[earlier];
+    if (count > 0) rep = earlier;  // an empty document is nobody's duplicate
+  } else if (count > 0 && signed_doc.sorted) {
+    rep = by_set_.try_emplace(signed_doc.digest, doc).first->second;
+  }
+  rep_of_.push_back(rep);
+  group_size_.push_back(rep == doc ? 1 : 0);
+  if (rep != doc) {
+    ++group_size_[rep];
+    AddKeys(std::move(id), facts, origin, count, no_keys_);
+    band_key_digests_.back() = band_key_digests_[rep];  // what reading it again must give
+    return;
+  }
+  AddKeys(std::move(id), facts, origin, count, count > 0 ? signed_doc.band_keys : no_keys_);
+  if (count > 0 && signed_doc.sorted) KeepSet(doc, signed_doc.set, signed_doc.signature);
+}
+
+void SignedCorpus::KeepSet(uint32_t doc, absl::Span<const uint64_t> set,
+                           absl::Span<const uint32_t> signature) {
+  const uint64_t bytes = set.size() * sizeof(uint64_t) + signature.size() * sizeof(uint32_t);
+  if (kept_set_bytes_ + bytes > set_budget_) return;
+  kept_set_bytes_ += bytes;
+  const AttachedRoom room = AttachRoom(doc, set.size());
+  std::memcpy(room.shingles, set.data(), set.size() * sizeof(uint64_t));
+  std::memcpy(room.signature, signature.data(), signature.size() * sizeof(uint32_t));
 }
 
 SignedCorpus::AttachedRoom SignedCorpus::AttachRoom(uint32_t doc, size_t shingles) {

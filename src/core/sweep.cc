@@ -1,5 +1,6 @@
 #include "kindred/sweep.h"
 
+#include "core/group_members.h"
 #include <algorithm>
 #include <chrono>
 
@@ -15,6 +16,9 @@ double SecondsSince(std::chrono::steady_clock::time_point start) {
   return std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
 }
 
+// The scored pair (a, b); the sets and signatures are those of their
+// representatives (the documents themselves unless the corpus groups
+// identical sets).
 ScoredPair Score(const SignedCorpus& corpus, uint32_t a, uint32_t b, const Overlap& overlap) {
   ScoredPair pair;
   pair.a = a;
@@ -23,8 +27,20 @@ ScoredPair Score(const SignedCorpus& corpus, uint32_t a, uint32_t b, const Overl
   pair.size_a = overlap.size_a;
   pair.size_b = overlap.size_b;
   pair.jaccard = overlap.Jaccard();
-  pair.estimate = EstimateJaccard(corpus.signature(a), corpus.signature(b));
+  pair.estimate = EstimateJaccard(corpus.signature(corpus.representative(a)),
+                                  corpus.signature(corpus.representative(b)));
   return pair;
+}
+
+// A lower bound on the shared count a pair of sets of these sizes needs to
+// pass `match` (one below the exact need, so that rounding never stops a
+// pair that passes): for Jaccard, shared >= t (|A| + |B|) / (1 + t).
+uint32_t NeededShared(size_t size_a, size_t size_b, const MatchSettings& match) {
+  const double t = match.threshold;
+  const double exact = match.measure == Measure::kJaccard
+                           ? t * static_cast<double>(size_a + size_b) / (1 + t)
+                           : t * static_cast<double>(std::min(size_a, size_b));
+  return exact > 1 ? static_cast<uint32_t>(exact) - 1 : 0;
 }
 
 // Concatenates per-chunk results in chunk order.
@@ -73,7 +89,13 @@ std::vector<ScoredPair> VerifyPairs(const SignedCorpus& corpus,
       for (size_t i = chunk * per_chunk; i < stop; ++i) {
         const uint32_t a = PairFirst(candidates[i]);
         const uint32_t b = PairSecond(candidates[i]);
-        const Overlap overlap = MeasureOverlap(corpus.shingles(a), corpus.shingles(b));
+        const auto set_a = corpus.shingles(corpus.representative(a));
+        const auto set_b = corpus.shingles(corpus.representative(b));
+        Overlap overlap;
+        if (!MeasureOverlapAtLeast(set_a, set_b, NeededShared(set_a.size(), set_b.size(), match),
+                                   &overlap)) {
+          continue;
+        }
         if (PassesThreshold(overlap.shared, overlap.size_a, overlap.size_b, match)) {
           parts[chunk].push_back(Score(corpus, a, b, overlap));
         }
@@ -161,19 +183,6 @@ std::vector<PackedPair> ContainmentCandidates(const SignedCorpus& corpus,
   return candidates;
 }
 
-// The documents that appear in `pairs`, ascending.
-std::vector<uint32_t> DocumentsOf(absl::Span<const PackedPair> pairs) {
-  std::vector<uint32_t> docs;
-  docs.reserve(pairs.size());
-  for (PackedPair pair : pairs) {
-    docs.push_back(PairFirst(pair));
-    docs.push_back(PairSecond(pair));
-  }
-  std::sort(docs.begin(), docs.end());
-  docs.erase(std::unique(docs.begin(), docs.end()), docs.end());
-  return docs;
-}
-
 }  // namespace
 
 void MatchCorpus(const SignedCorpus& corpus, const SweepOptions& options, SweepResult* result) {
@@ -213,6 +222,7 @@ absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& o
   if (lean) {
     result.corpus = SignedCorpus::Lean(options.signature.perms, BandingFor(options));
     if (options.memory > 0) result.corpus.SetSpill(options.memory / 2, options.scratch_dir);
+    result.corpus.GroupIdenticalSets(options.memory > 0 ? options.memory / 4 : kDefaultSetMemory);
   }
   const auto start = std::chrono::steady_clock::now();
   if (absl::Status status =
@@ -233,16 +243,21 @@ absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& o
     stats.spilled_bytes = spill->bytes_written();
     stats.spill_runs = spill->runs();
   }
-  absl::StatusOr<std::vector<PackedPair>> candidates = FindSpilledCandidatePairs(
+  absl::StatusOr<GroupedCandidates> candidates = FindGroupedCandidatePairs(
       result.corpus, stats.banding, threads, &stats.candidates, options.max_bucket);
   if (!candidates.ok()) return candidates.status();
-  if (absl::Status status =
-          ReloadShingles(reader.ResolvedInputs(), reader.options(), options.signature,
-                         DocumentsOf(*candidates), threads, &result.corpus);
+  if (absl::Status status = ReloadShingles(reader.ResolvedInputs(), reader.options(),
+                                           options.signature,
+                                           RepresentativesToRead(result.corpus, candidates->pairs),
+                                           threads, &result.corpus);
       !status.ok()) {
     return status;
   }
-  result.pairs = VerifyPairs(result.corpus, *candidates, options.match, threads);
+  result.pairs = VerifyPairs(result.corpus, candidates->pairs, options.match, threads);
+  if (!candidates->expanded) {
+    result.pairs = ExpandGroups(result.corpus, GroupMembers(result.corpus), result.pairs,
+                                options.match);
+  }
   GroupAndCount(result.corpus, options, &result);
   stats.match_seconds = SecondsSince(match_start);
   return result;

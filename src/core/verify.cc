@@ -19,12 +19,45 @@ uint32_t MergeCount(const uint64_t* a, const uint64_t* a_end, const uint64_t* b,
   return shared;
 }
 
-// For each element of the small set, gallops forward in the large one.
-uint32_t GallopCount(absl::Span<const uint64_t> small, absl::Span<const uint64_t> large) {
+// Merge count that stops once `needed` is out of reach: checked every 64
+// steps, so the inner loop stays branch-light. Returns false when stopped.
+bool BoundedMergeCount(const uint64_t* a, const uint64_t* a_end, const uint64_t* b,
+                       const uint64_t* b_end, uint32_t needed, uint32_t* shared_out) {
+  uint32_t shared = 0;
+  for (;;) {
+    const size_t left = static_cast<size_t>(std::min(a_end - a, b_end - b));
+    if (shared + left < needed) return false;
+    if (left < 64) break;
+    for (int step = 0; step < 64; ++step) {  // a and b each advance at most 64
+      const uint64_t x = *a;
+      const uint64_t y = *b;
+      shared += (x == y);
+      a += (x <= y);
+      b += (y <= x);
+    }
+  }
+  *shared_out = shared + MergeCount(a, a_end, b, b_end);
+  return *shared_out >= needed;
+}
+
+// For each element of the small set, gallops forward in the large one: an
+// exponential search then a binary search (Bentley and Yao 1976, "An
+// almost optimal algorithm for unbounded searching"; its use for
+// intersecting sorted sets: Demaine, Lopez-Ortiz, Munro 2000, "Adaptive set
+// intersections, unions, and differences"; Baeza-Yates 2004, "A fast set
+// intersection algorithm for sorted sequences"). Costs about
+// |small| log(|large| / |small|) comparisons instead of |small| + |large|.
+// Stops (returns what it has counted) once fewer than `needed` remain
+// possible.
+uint32_t GallopCount(absl::Span<const uint64_t> small, absl::Span<const uint64_t> large,
+                     uint32_t needed = 0) {
   uint32_t shared = 0;
   const uint64_t* base = large.data();
   const uint64_t* end = large.data() + large.size();
+  size_t left = small.size();
   for (uint64_t x : small) {
+    if (shared + left < needed) break;
+    --left;
     size_t step = 1;
     const uint64_t* probe = base;
     while (probe + step < end && probe[step] < x) {
@@ -76,6 +109,23 @@ Overlap MeasureOverlap(absl::Span<const uint64_t> a, absl::Span<const uint64_t> 
     overlap.shared = MergeCount(a.data(), a.data() + a.size(), b.data(), b.data() + b.size());
   }
   return overlap;
+}
+
+bool MeasureOverlapAtLeast(absl::Span<const uint64_t> a, absl::Span<const uint64_t> b,
+                           uint32_t needed, Overlap* out) {
+  *out = Overlap{0, static_cast<uint32_t>(a.size()), static_cast<uint32_t>(b.size())};
+  if (needed == 0) {
+    *out = MeasureOverlap(a, b);
+    return true;
+  }
+  if (a.empty() || b.empty() || a.back() < b.front() || b.back() < a.front()) return false;
+  if (a.size() * 16 < b.size() || b.size() * 16 < a.size()) {
+    const bool a_small = a.size() < b.size();
+    out->shared = a_small ? GallopCount(a, b, needed) : GallopCount(b, a, needed);
+    return out->shared >= needed;
+  }
+  return BoundedMergeCount(a.data(), a.data() + a.size(), b.data(), b.data() + b.size(), needed,
+                           &out->shared);
 }
 
 }  // namespace kindred
