@@ -1,3 +1,4 @@
+#include "kindred/errors.h"
 #include "kindred/reload.h"
 
 #include <fcntl.h>
@@ -84,7 +85,7 @@ class Attacher {
                                       ? absl::StrCat(doc.source.path, ":", doc.source.line)
                                       : doc.source.path;
         const std::string& id = ordinal < corpus_->size() ? corpus_->id(ordinal) : doc.id;
-        failure = absl::InvalidArgumentError(
+        failure = InputChanged(
             absl::StrCat(where, ": document \"", id,
                          "\" changed while kindred was reading the corpus; run again"));
         break;
@@ -249,7 +250,7 @@ absl::Status ReloadShingles(const std::vector<ResolvedInput>& inputs, const Inpu
     }
   }
   if (attacher.attached() != docs.size()) {
-    return absl::InvalidArgumentError(absl::StrCat(
+    return InputChanged(absl::StrCat(
         "the corpus changed while kindred was reading it: ", docs.size() - attacher.attached(),
         " documents could not be found again; run again"));
   }

@@ -30,6 +30,7 @@
 #include "absl/hash/hash.h"
 #include "absl/strings/str_cat.h"
 #include "kindred/corpus.h"
+#include "kindred/errors.h"
 #include "kindred/shingles.h"
 #include "kindred/signed_corpus.h"
 #include "kindred/signer.h"
@@ -396,9 +397,8 @@ class Pipeline {
       Document& doc = batch->docs[i];
       if (batch->unparsable[i]) return batch->errors[i];
       if (!batch->errors[i].ok()) {
-        return absl::Status(batch->errors[i].code(),
-                            absl::StrCat(Place(reader_, doc), ": document \"", doc.id,
-                                         "\": ", batch->errors[i].message()));
+        return Annotate(batch->errors[i],
+                        absl::StrCat(Place(reader_, doc), ": document \"", doc.id, "\""));
       }
       if (auto it = seen_.find(absl::string_view(doc.id)); it != seen_.end()) {
         std::lock_guard<std::mutex> reading(read_mu_);  // ResolvedInputs() while others read

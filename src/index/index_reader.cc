@@ -170,7 +170,7 @@ absl::Status IndexReader::ReadAppended(const IndexOpenOptions& options) {
     mapping->reset();
     absl::Status status = LoadCommitted();
     if (!status.ok()) {
-      return absl::Status(status.code(), absl::StrCat("index ", path_, ": ", status.message()));
+      return Annotate(status, absl::StrCat("index ", path_));
     }
     // What was reserved and is still past the commit is zeros yet.
     reserved_bytes_ = std::min(reserved_bytes_, file_.size() - committed_size_);

@@ -1,9 +1,11 @@
 // LineParser: JSON lines a reader left unparsed (CorpusReader::DeferParsing)
 // made into documents.
 #include "absl/strings/str_cat.h"
+#include "io/byte_stream.h"
 #include "io/html_text.h"
 #include "io/json_line.h"
 #include "kindred/corpus.h"
+#include "kindred/errors.h"
 
 namespace kindred {
 
@@ -29,8 +31,7 @@ absl::Status LineParser::Finish(Document* doc) {
     doc->unparsed = doc->unparsed_html = false;
     absl::Status made = io::HtmlToText(impl_->line, &doc->text, /*valid_utf8=*/true);
     if (!made.ok()) {
-      return absl::Status(made.code(), absl::StrCat(io::DisplayName(doc->source.path), ": ",
-                                                    doc->id, ": ", made.message()));
+      return Annotate(made, absl::StrCat(io::DisplayName(doc->source.path), ": ", doc->id));
     }
     return absl::OkStatus();
   }
