@@ -1,4 +1,3 @@
-#include "kindred/errors.h"
 #include "kindred/reload.h"
 
 #include <fcntl.h>
@@ -13,6 +12,7 @@
 #include "absl/strings/str_cat.h"
 #include "io/json_line.h"
 #include "kindred/banding.h"
+#include "kindred/errors.h"
 #include "kindred/parallel.h"
 #include "kindred/shingles.h"
 #include "kindred/signer.h"
