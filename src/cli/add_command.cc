@@ -11,6 +11,7 @@
 #include "cli/index_options.h"
 #include "core/plural.h"
 #include "kindred/index.h"
+#include "kindred/index_query.h"
 #include "kindred/index_writer.h"
 #include "kindred/signed_corpus.h"
 
