@@ -157,7 +157,7 @@ absl::Status IndexService::SignAndMatch(const ServiceRequest& request,
   if (!found.ok()) return found.status();
   *matches = std::move(*found);
   std::string lines;
-  WriteMatchRecords(RecordFormat::kJsonLines, *matches, **reader, *batch, &lines);
+  WriteMatchRecords(RecordFormat::kJsonLines, *matches, **reader, *batch, &lines, &*match);
   return RecordsToArray(lines, *matches, request, **reader, *batch, records);
 }
 
