@@ -1,5 +1,7 @@
 // HtmlTree: "in body", the table modes, and svg and math content.
+#include "absl/strings/ascii.h"
 #include "absl/strings/match.h"
+#include "absl/strings/strip.h"
 #include "io/html_scan.h"
 #include "io/html_tree.h"
 
@@ -259,6 +261,12 @@ void HtmlTree::StartForeign(const HtmlTag& tag) {
 
 void HtmlTree::EndForeign(const HtmlTag& tag) {
   if (tag.id == kBr || tag.id == kP) return Decline("br or p end tag in svg or math");
+  // "</svg/svg>": the reference parser leaves svg open after an end tag
+  // with attributes or a slash; such pages go to it.
+  if (tag.self_closing ||
+      !absl::StripAsciiWhitespace(absl::StripSuffix(tag.attributes, ">")).empty()) {
+    return Decline("an end tag with attributes in svg or math");
+  }
   for (size_t k = stack_.size(); k-- > 0;) {
     const Element& e = stack_[k];
     if (!e.foreign)
