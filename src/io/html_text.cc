@@ -15,6 +15,7 @@
 #include "absl/strings/str_split.h"
 #include "io/html_fast_text.h"
 #include "io/html_tags.h"
+#include "kindred/text.h"
 
 namespace kindred::io {
 namespace {
@@ -149,6 +150,10 @@ absl::Status ReferenceHtmlToText(absl::string_view html, std::string* out) {
   if (output == nullptr) return absl::InternalError("the HTML parser failed");
   Walk(output->document, out);
   gumbo_destroy_output(&options, output);
+  // The parser can turn an out-of-range numeric reference into bytes that
+  // are not UTF-8; the text is repaired as every other text is.
+  std::string repaired = RepairUtf8(*out);
+  out->swap(repaired);
   return absl::OkStatus();
 }
 
