@@ -37,18 +37,7 @@ absl::Status CommitIntoReserve(AppendFile* file, const CommitPoint& before, uint
   if (status.ok()) {
     status = file->WriteAt(before.committed_length + segment.head_and_body.size(), segment.commit);
   }
-  if (status.ok()) status = file->Sync();
-  bool slot_written = false;
-  if (status.ok()) {
-    slot_written = true;
-    status = RecordCommit(file, next);
-  }
-  if (status.ok()) return status;
-  // As AppendSegment: nothing of the failed commit may stay recorded before
-  // the bytes go.
-  if (slot_written && !UndoCommit(file, next).ok()) return status;
-  if (file->Truncate(before.committed_length).ok()) file->Sync().IgnoreError();
-  return status;
+  return FinishCommit(file, before, next, status);
 }
 
 }  // namespace kindred::index

@@ -90,6 +90,12 @@ absl::Status AppendSegment(AppendFile* file, const CommitPoint& before, uint64_t
       before.segments + 1, before.documents + added};
   absl::Status status = file->Append(segment.head_and_body);
   if (status.ok()) status = file->Append(segment.commit);
+  return FinishCommit(file, before, next, status);
+}
+
+absl::Status FinishCommit(AppendFile* file, const CommitPoint& before, const CommitState& next,
+                          absl::Status written) {
+  absl::Status status = written;
   if (status.ok()) status = file->Sync();
   bool slot_written = false;
   if (status.ok()) {

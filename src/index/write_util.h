@@ -56,6 +56,13 @@ struct CommitPoint {
 absl::Status AppendSegment(AppendFile* file, const CommitPoint& before, uint64_t added,
                            const EncodedSegment& segment);
 
+// The end of every segment commit, once its bytes are `written` (an error
+// skips to the undo): sync, then record `next` in the commit area; on
+// failure restores the commit area and cuts the file back to `before` when
+// it can, and returns the first error.
+absl::Status FinishCommit(AppendFile* file, const CommitPoint& before, const CommitState& next,
+                          absl::Status written);
+
 }  // namespace kindred::index
 
 #endif  // KINDRED_INDEX_WRITE_UTIL_H_
