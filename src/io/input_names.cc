@@ -1,17 +1,9 @@
 // The names of the input enums of corpus.h, and their parsing.
 #include "absl/strings/str_cat.h"
+#include "core/enum_names.h"
 #include "kindred/corpus.h"
 
 namespace kindred {
-namespace {
-
-absl::Status Unknown(absl::string_view setting, absl::string_view expected, std::string_view name) {
-  return absl::InvalidArgumentError(absl::StrCat(setting, ": expected ", expected, ", not \"",
-                                                 absl::string_view(name.data(), name.size()),
-                                                 "\""));
-}
-
-}  // namespace
 
 const char* InputFormatName(InputFormat format) {
   switch (format) {
@@ -31,7 +23,7 @@ absl::StatusOr<InputFormat> ParseInputFormat(std::string_view name) {
        {InputFormat::kAuto, InputFormat::kText, InputFormat::kJsonLines, InputFormat::kWarc}) {
     if (name == InputFormatName(format)) return format;
   }
-  return Unknown("input-format", "auto, text, jsonl or warc", name);
+  return UnknownName("input-format", "auto, text, jsonl or warc", name);
 }
 
 const char* WarcIdSourceName(WarcIdSource source) {
@@ -42,7 +34,7 @@ absl::StatusOr<WarcIdSource> ParseWarcIdSource(std::string_view name) {
   for (WarcIdSource source : {WarcIdSource::kUri, WarcIdSource::kRecordId}) {
     if (name == WarcIdSourceName(source)) return source;
   }
-  return Unknown("warc-id", "uri or record-id", name);
+  return UnknownName("warc-id", "uri or record-id", name);
 }
 
 }  // namespace kindred
