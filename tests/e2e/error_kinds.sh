@@ -9,20 +9,12 @@ printf '%s\n' '{"id":"a","text":"one two three four five six"}' \
 printf 'a\tb\tduplicate\n' >"$WORK/labels.tsv"
 
 # 1. tune reads its corpus once per shingle setting; a named pipe gives it
-# two documents the first time and three the second. The second text is
-# written once no process holds the pipe open: the first reading has ended
-# (a reader blocked in its second open() holds no descriptor yet), so the
-# two texts do not run together when kindred reads slowly (sanitizer builds).
+# two documents the first time and three the second (feed_pipe.py writes the
+# second text only once the first reading has closed the pipe).
 fifo="$WORK/corpus.jsonl"
 mkfifo "$fifo"
-(
-  cat "$WORK/first.jsonl" >"$fifo"
-  for _ in $(seq 200); do  # at most 10 s, then the second text anyway
-    find /proc/[0-9]*/fd -maxdepth 1 -lname "$fifo" 2>/dev/null | grep -q . || break
-    sleep 0.05
-  done
-  cat "$WORK/second.jsonl" >"$fifo"
-) &
+timeout 120 "$PY" "$(dirname "$0")/feed_pipe.py" "$fifo" "$WORK/first.jsonl" \
+  "$WORK/second.jsonl" &
 writer=$!
 expect_exit 3 "tune, input changed between readings" -- timeout 60 "$KINDRED" tune -q \
   "$WORK/corpus.jsonl" --labels "$WORK/labels.tsv" --shingles word:3,word:5 --perms 16 \
