@@ -53,3 +53,17 @@ fi
 cmake -S . -B "$build_dir" -G Ninja -DCMAKE_BUILD_TYPE="$build_type" \
   -DKINDRED_SANITIZE="$sanitize" >/dev/null
 cmake --build "$build_dir" -j"$(nproc)" >&2
+
+# The Python package, when built (build/python): a kindred.pth file pointing
+# at it in Python's site-packages (/usr/local/lib/python3.X/dist-packages as
+# root), else in the user's site directory (python3 -m site --user-site), so
+# that "python3 -c 'import kindred'" works with Debian's python3.
+if compgen -G "$build_dir/python/kindred/_kindred*.so" >/dev/null; then
+  python_dir=$(cd "$build_dir/python" && pwd)
+  if [[ $(id -u) -eq 0 ]]; then
+    site=$(/usr/bin/python3 -c 'import sysconfig; print(sysconfig.get_paths()["purelib"])')
+  else
+    site=$(/usr/bin/python3 -m site --user-site)
+  fi
+  mkdir -p "$site" && echo "$python_dir" >"$site/kindred.pth"
+fi

@@ -1,0 +1,258 @@
+// The stages of the cluster sweep (kindred.cluster), each a pure function
+// from bytes to bytes over the library's public API, so that a task re-run
+// after a lost worker gives the same bytes. The records are described in
+// python/kindred/cluster/RECORDS.md; all integers little-endian.
+//
+//   sign_shard      a shard -> document table, band-key records split into
+//                   P partitions by key hash, and the shard's set store
+//   candidates      one partition's band keys from every shard -> candidate
+//                   pairs (FindCandidatePairs on those keys, so the crowded
+//                   bucket cap is applied exactly as in a local sweep),
+//                   routed by first document into V verify ranges
+//   verify_plan     one range's candidate pairs from every partition ->
+//                   the pairs, sorted and distinct, and the documents each
+//                   shard must send for them
+//   extract_sets    a set store and the wanted documents -> their sets and
+//                   signatures, one record per verify range
+//   verify          pairs and the sets of their documents -> scored pairs
+//                   (VerifyPairs)
+//   finish          every document table and scored pair -> groups
+//                   (GroupPairs) and the three record files' bytes
+// The last two are in stages_reduce.cc.
+#include <pybind11/stl.h>
+
+#include <algorithm>
+#include <cstring>
+#include <string>
+#include <vector>
+
+#include "convert.h"
+#include "kindred/banding.h"
+#include "kindred/candidates.h"
+#include "kindred/corpus.h"
+#include "kindred/signed_corpus.h"
+#include "kindred/sweep.h"
+#include "stage_bytes.h"
+
+namespace kindred::python {
+namespace {
+
+// The partition of the bucket (band, key).
+uint32_t PartitionOf(uint32_t band, uint64_t key, uint32_t partitions) {
+  return static_cast<uint32_t>(Mix(key ^ (uint64_t{band} << 56 | band)) % partitions);
+}
+
+// The verify range of document `doc` among `documents`: ranges of
+// consecutive documents, so that ranges in order give pairs in order.
+uint32_t RangeOf(uint32_t doc, uint64_t documents, uint32_t ranges) {
+  return static_cast<uint32_t>(uint64_t{doc} * ranges / std::max<uint64_t>(documents, 1));
+}
+
+// sign_shard: reads and signs one shard (SignCorpus, whole), returns
+// (document table, [band keys of partition p], set store).
+py::tuple SignShard(const std::string& path, const py::handle& settings_object,
+                    const std::string& input_format, const std::string& id_field,
+                    const std::string& text_field, const std::string& priority_field,
+                    uint32_t bands, uint32_t rows, uint32_t partitions, int threads) {
+  const SignatureSettings settings = ToSignature(settings_object);
+  InputOptions input;
+  input.format = Take(ParseInputFormat(input_format));
+  input.id_field = id_field;
+  input.text_field = text_field;
+  input.priority_field = priority_field;
+  SignedCorpus corpus(settings.perms);
+  Out table, store;
+  std::vector<Out> keys(partitions);
+  absl::Status status;
+  {
+    py::gil_scoped_release release;
+    auto reader = CorpusReader::Open({path}, input);
+    status = reader.status();
+    if (status.ok()) {
+      SignOptions sign;
+      sign.threads = std::max(1, threads);
+      SignStats stats;
+      status = SignCorpus(**reader, settings, sign, &corpus, &stats);
+    }
+    if (status.ok()) {
+      const Banding banding{bands, rows};
+      std::vector<uint64_t> band_keys(bands);
+      table.Put<uint32_t>(static_cast<uint32_t>(corpus.size()));
+      store.Put<uint32_t>(static_cast<uint32_t>(corpus.size()));
+      for (uint32_t doc = 0; doc < corpus.size(); ++doc) {
+        const KeepFacts& facts = corpus.facts(doc);
+        table.Put<uint64_t>(facts.length);
+        table.Put<double>(facts.priority);
+        table.Put<uint8_t>(facts.has_priority);
+        table.Put<uint32_t>(corpus.shingle_count(doc));
+        table.Put<uint64_t>(corpus.origin(doc).line);
+        table.PutString(corpus.id(doc));
+        store.Put<uint32_t>(corpus.shingle_count(doc));
+        store.PutAll(corpus.signature(doc));
+        store.PutAll(corpus.shingles(doc));
+        if (corpus.shingle_count(doc) == 0) continue;
+        BandKeys(corpus.signature(doc), banding, absl::MakeSpan(band_keys));
+        for (uint32_t band = 0; band < bands; ++band) {
+          if (band_keys[band] == kNoBandKey) continue;
+          Out& part = keys[PartitionOf(band, band_keys[band], partitions)];
+          part.Put<uint64_t>(band_keys[band]);
+          part.Put<uint32_t>(band);
+          part.Put<uint32_t>(doc);
+        }
+      }
+    }
+  }
+  Check(status);
+  py::list parts;
+  for (const Out& part : keys) parts.append(part.Bytes());
+  return py::make_tuple(table.Bytes(), parts, store.Bytes());
+}
+
+// candidates: the band keys of one partition from every shard (in shard
+// order; shard s numbers its documents from offsets[s]) -> [pairs of range v].
+py::list Candidates(const std::vector<py::bytes>& parts, const std::vector<uint64_t>& offsets,
+                    uint64_t documents, uint32_t perms, uint32_t bands, uint32_t rows,
+                    uint32_t ranges, uint64_t max_bucket) {
+  std::vector<std::string_view> views;
+  for (const py::bytes& part : parts) views.push_back(View(part));
+  std::vector<Out> out(ranges);
+  {
+    py::gil_scoped_release release;
+    // The documents with a key here, by global number; their other bands
+    // hold kNoBandKey, so only this partition's buckets propose pairs.
+    struct Entry {
+      uint32_t doc, band;
+      uint64_t key;
+    };
+    std::vector<Entry> entries;
+    for (size_t s = 0; s < views.size(); ++s) {
+      In in(views[s]);
+      while (!in.done()) {
+        const uint64_t key = in.Get<uint64_t>();
+        const uint32_t band = in.Get<uint32_t>();
+        const uint32_t doc = in.Get<uint32_t>();
+        entries.push_back({static_cast<uint32_t>(offsets[s] + doc), band, key});
+      }
+    }
+    std::sort(entries.begin(), entries.end(),
+              [](const Entry& a, const Entry& b) { return a.doc < b.doc; });
+    const Banding banding{bands, rows};
+    SignedCorpus local = SignedCorpus::Lean(perms, banding);
+    std::vector<uint32_t> global;
+    std::vector<uint64_t> keys(bands, kNoBandKey);
+    for (size_t i = 0; i < entries.size();) {
+      std::fill(keys.begin(), keys.end(), kNoBandKey);
+      const uint32_t doc = entries[i].doc;
+      for (; i < entries.size() && entries[i].doc == doc; ++i) keys[entries[i].band] = entries[i].key;
+      global.push_back(doc);
+      local.AddWithBandKeys(std::string(), KeepFacts(), DocumentOrigin(), 1, keys);
+    }
+    CandidateStats stats;
+    for (PackedPair pair : FindCandidatePairs(local, banding, 1, &stats, max_bucket)) {
+      const uint32_t a = global[PairFirst(pair)], b = global[PairSecond(pair)];
+      out[RangeOf(a, documents, ranges)].Put<uint64_t>(PackPair(a, b));
+    }
+  }
+  py::list result;
+  for (const Out& o : out) result.append(o.Bytes());
+  return result;
+}
+
+// verify_plan: range v's pairs from every partition -> (pairs, sorted and
+// distinct; [documents wanted from shard s, local numbers]).
+py::tuple VerifyPlan(const std::vector<py::bytes>& parts, const std::vector<uint64_t>& offsets) {
+  std::vector<std::string_view> views;
+  for (const py::bytes& part : parts) views.push_back(View(part));
+  Out pairs_out;
+  std::vector<Out> wanted(offsets.size());
+  {
+    py::gil_scoped_release release;
+    std::vector<uint64_t> pairs;
+    for (std::string_view view : views) {
+      const size_t start = pairs.size();
+      pairs.resize(start + view.size() / 8);
+      std::memcpy(pairs.data() + start, view.data(), view.size() / 8 * 8);
+    }
+    std::sort(pairs.begin(), pairs.end());
+    pairs.erase(std::unique(pairs.begin(), pairs.end()), pairs.end());
+    pairs_out.PutAll(absl::MakeConstSpan(pairs));
+    std::vector<uint32_t> docs;
+    for (uint64_t pair : pairs) {
+      docs.push_back(PairFirst(pair));
+      docs.push_back(PairSecond(pair));
+    }
+    std::sort(docs.begin(), docs.end());
+    docs.erase(std::unique(docs.begin(), docs.end()), docs.end());
+    size_t shard = 0;
+    for (uint32_t doc : docs) {
+      while (shard + 1 < offsets.size() && doc >= offsets[shard + 1]) ++shard;
+      wanted[shard].Put<uint32_t>(static_cast<uint32_t>(doc - offsets[shard]));
+    }
+  }
+  py::list want;
+  for (const Out& w : wanted) want.append(w.Bytes());
+  return py::make_tuple(pairs_out.Bytes(), want);
+}
+
+// extract_sets: a shard's set store and, per verify range, the documents
+// wanted from it -> per range: (global number, set size, signature, set).
+py::list ExtractSets(const py::bytes& store_bytes, const std::vector<py::bytes>& wanted,
+                     uint64_t offset, uint32_t perms) {
+  const std::string_view store = View(store_bytes);
+  std::vector<std::string_view> views;
+  for (const py::bytes& w : wanted) views.push_back(View(w));
+  std::vector<Out> out(views.size());
+  {
+    py::gil_scoped_release release;
+    // Where each document's record starts in the store.
+    In in(store);
+    const uint32_t count = in.Get<uint32_t>();
+    std::vector<size_t> starts(count);
+    size_t at = sizeof(uint32_t);
+    for (uint32_t doc = 0; doc < count; ++doc) {
+      starts[doc] = at;
+      uint32_t size;
+      std::memcpy(&size, store.data() + at, sizeof(size));
+      at += sizeof(uint32_t) + perms * sizeof(uint32_t) + size * sizeof(uint64_t);
+    }
+    for (size_t v = 0; v < views.size(); ++v) {
+      In docs(views[v]);
+      while (!docs.done()) {
+        const uint32_t doc = docs.Get<uint32_t>();
+        uint32_t size;
+        std::memcpy(&size, store.data() + starts[doc], sizeof(size));
+        out[v].Put<uint32_t>(static_cast<uint32_t>(offset + doc));
+        out[v].str().append(store.substr(starts[doc], sizeof(uint32_t) + perms * sizeof(uint32_t) +
+                                                          size * sizeof(uint64_t)));
+      }
+    }
+  }
+  py::list result;
+  for (const Out& o : out) result.append(o.Bytes());
+  return result;
+}
+
+}  // namespace
+
+void RegisterStages(py::module_& module) {
+  module.def("stage_sign_shard", &SignShard, py::arg("path"), py::arg("settings"),
+             py::arg("input_format"), py::arg("id_field"), py::arg("text_field"),
+             py::arg("priority_field"), py::arg("bands"), py::arg("rows"),
+             py::arg("partitions"), py::arg("threads") = 1);
+  module.def("stage_candidates", &Candidates, py::arg("parts"), py::arg("offsets"),
+             py::arg("documents"), py::arg("perms"), py::arg("bands"), py::arg("rows"),
+             py::arg("ranges"), py::arg("max_bucket"));
+  module.def("stage_verify_plan", &VerifyPlan, py::arg("parts"), py::arg("offsets"));
+  module.def("stage_extract_sets", &ExtractSets, py::arg("store"), py::arg("wanted"),
+             py::arg("offset"), py::arg("perms"));
+  RegisterReduceStages(module);
+  module.def(
+      "choose_banding",
+      [](double threshold, uint32_t perms) {
+        const Banding b = ChooseBanding(threshold, perms);
+        return py::make_tuple(b.bands, b.rows);
+      },
+      py::arg("threshold"), py::arg("perms"));
+}
+
+}  // namespace kindred::python

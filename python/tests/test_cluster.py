@@ -1,0 +1,70 @@
+"""The cluster sweep against `kindred sweep` (the reference: the program's
+own output files over the same shards in the same order)."""
+
+import os
+
+import pytest
+
+import kindred
+import kindred.cluster
+from conftest import run_cli
+
+distributed = pytest.importorskip("distributed")
+
+
+@pytest.fixture(scope="module")
+def client():
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                  dashboard_address=None) as cluster, \
+            distributed.Client(cluster) as client:
+        yield client
+
+
+@pytest.fixture(scope="module")
+def shards(archive, tmp_path_factory):
+    """The sample corpus's JSON Lines file cut into 3 shards."""
+    root = tmp_path_factory.mktemp("shards")
+    lines = open(archive, "rb").read().splitlines(keepends=True)
+    paths = []
+    for n in range(3):
+        path = root / f"shard-{n}.jsonl"
+        path.write_bytes(b"".join(lines[n::3]))
+        paths.append(str(path))
+    return paths
+
+
+def same_files(a, b, fmt="jsonl"):
+    for kind in ("pairs", "groups", "decisions"):
+        assert (a / f"{kind}.{fmt}").read_bytes() == (b / f"{kind}.{fmt}").read_bytes(), kind
+
+
+def test_cluster_sweep_writes_the_program_s_bytes(client, shards, tmp_path):
+    for n, (options, kwargs, fmt) in enumerate((
+            ([], dict(partitions=3, ranges=2), "jsonl"),
+            (["-t", "0.5", "--keep", "longest", "--format", "tsv", "--max-bucket", "2"],
+             dict(threshold=0.5, keep="longest", format="tsv", max_bucket=2, partitions=5,
+                  ranges=3), "tsv"))):
+        want, got = tmp_path / f"cli{n}", tmp_path / f"cluster{n}"
+        run_cli("sweep", *shards, "-q", "-o", str(want), *options)
+        summary = kindred.cluster.sweep(client, shards, str(got), **kwargs)
+        same_files(want, got, fmt)
+        assert summary.documents == 147 and summary.confirmed_pairs > 0
+        assert [s.name for s in summary.stages] == [
+            "sign", "candidates", "plan", "sets", "verify", "finish"]
+        assert "per doc" in summary.text()
+
+
+def test_cluster_sweep_reports_bad_shards_as_the_program_does(client, shards, tmp_path):
+    missing = str(tmp_path / "gone.jsonl")
+    done = run_cli("sweep", shards[0], missing, "-q", "-o", str(tmp_path / "a"), check=False)
+    with pytest.raises(kindred.BadInputError) as caught:
+        kindred.cluster.sweep(client, [shards[0], missing], str(tmp_path / "b"))
+    assert done.stderr.decode() == f"kindred: {caught.value}\n"
+    assert not os.path.exists(tmp_path / "b")
+    # The same shard twice: every id repeated.
+    done = run_cli("sweep", shards[1], shards[1], "-q", "-o", str(tmp_path / "c"), check=False)
+    with pytest.raises(kindred.BadInputError) as caught:
+        kindred.cluster.sweep(client, [shards[1], shards[1]], str(tmp_path / "d"))
+    assert done.stderr.decode() == f"kindred: {caught.value}\n"
+    assert done.returncode == caught.value.exit_code
+    assert not os.path.exists(tmp_path / "d")

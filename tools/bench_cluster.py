@@ -1,0 +1,88 @@
+#!/usr/bin/python3
+"""Benchmark of the cluster sweep (python3 -m kindred.cluster sweep) against
+`kindred sweep --threads 2` on the same shards: wall times (median of
+--runs), the ratio, whether the output files are identical, and the bytes
+handed between tasks per stage (from the cluster sweep's summary).
+
+    PYTHONPATH=build/python /usr/bin/python3 tools/bench_cluster.py \
+        --docs 200000 --shards 20 [--workers 2] [--runs 3] [--keep-dir DIR]
+
+The corpus comes from tools/gen_corpus.py (5% planted near-duplicates by
+default), cut into --shards JSON Lines files. Never a timed test: run by hand.
+"""
+
+import argparse
+import filecmp
+import os
+import pathlib
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+
+ROOT = pathlib.Path(__file__).resolve().parent.parent
+
+
+def make_shards(directory, docs, shards, seed):
+    corpus = directory / "corpus.jsonl"
+    subprocess.run([sys.executable, str(ROOT / "tools" / "gen_corpus.py"), "--docs", str(docs),
+                    "--seed", str(seed), "--out", str(corpus)], check=True)
+    lines = corpus.read_bytes().splitlines(keepends=True)
+    paths = []
+    per = (len(lines) + shards - 1) // shards
+    for n in range(shards):
+        path = directory / f"shard-{n:03d}.jsonl"
+        path.write_bytes(b"".join(lines[n * per:(n + 1) * per]))
+        paths.append(str(path))
+    corpus.unlink()
+    return paths
+
+
+def timed(command, env=None):
+    start = time.monotonic()
+    done = subprocess.run(command, capture_output=True, env=env)
+    if done.returncode != 0:
+        sys.exit(f"{' '.join(command[:4])}...: exit {done.returncode}\n{done.stderr.decode()}")
+    return time.monotonic() - start, done.stderr.decode()
+
+
+def main():
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--docs", type=int, default=200000)
+    parser.add_argument("--shards", type=int, default=20)
+    parser.add_argument("--workers", type=int, default=2)
+    parser.add_argument("--runs", type=int, default=3)
+    parser.add_argument("--seed", type=int, default=7)
+    parser.add_argument("--binary", default=str(ROOT / "build" / "kindred"))
+    parser.add_argument("--keep-dir", help="make the shards here and keep them")
+    args = parser.parse_args()
+    work = pathlib.Path(args.keep_dir or tempfile.mkdtemp(prefix="kindred-cluster-bench-"))
+    work.mkdir(parents=True, exist_ok=True)
+    shards = sorted(str(p) for p in work.glob("shard-*.jsonl")) or \
+        make_shards(work, args.docs, args.shards, args.seed)
+    env = dict(os.environ)
+    env.setdefault("PYTHONPATH", str(ROOT / "build" / "python"))
+    local, cluster, summary = [], [], ""
+    for run in range(args.runs):
+        seconds, _ = timed([args.binary, "sweep", "--threads", "2", "-q", "-o",
+                            str(work / "local"), *shards])
+        local.append(seconds)
+        seconds, summary = timed(["/usr/bin/python3", "-m", "kindred.cluster", "sweep",
+                                  "--local-workers", str(args.workers), "-o",
+                                  str(work / "cluster"), *shards], env)
+        cluster.append(seconds)
+    same = all(filecmp.cmp(work / "local" / f"{k}.jsonl", work / "cluster" / f"{k}.jsonl",
+                           shallow=False) for k in ("pairs", "groups", "decisions"))
+    print(f"documents {sum(1 for s in shards for _ in open(s, 'rb'))} in {len(shards)} shards; "
+          f"{args.workers} workers; medians of {args.runs} runs")
+    print(f"kindred sweep --threads 2   {statistics.median(local):8.2f} s")
+    print(f"kindred.cluster sweep       {statistics.median(cluster):8.2f} s  "
+          f"({statistics.median(cluster) / statistics.median(local):.2f}x)")
+    print(f"outputs identical: {'yes' if same else 'NO'}")
+    print(summary.rstrip())
+    return 0 if same else 1
+
+
+if __name__ == "__main__":
+    sys.exit(main())
