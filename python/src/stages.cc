@@ -48,6 +48,41 @@ uint32_t RangeOf(uint32_t doc, uint64_t documents, uint32_t ranges) {
   return static_cast<uint32_t>(uint64_t{doc} * ranges / std::max<uint64_t>(documents, 1));
 }
 
+// A signed shard's records: its document table, its set store, and its
+// band keys by partition and band.
+struct ShardRecords {
+  Out table, store;
+  std::vector<std::vector<Out>> keys;  // [partition][band]
+};
+
+void WriteShardRecords(const SignedCorpus& corpus, Banding banding, uint32_t partitions,
+                       ShardRecords* out) {
+  out->keys.assign(partitions, std::vector<Out>(banding.bands));
+  std::vector<uint64_t> band_keys(banding.bands);
+  out->table.Put<uint32_t>(static_cast<uint32_t>(corpus.size()));
+  out->store.Put<uint32_t>(static_cast<uint32_t>(corpus.size()));
+  for (uint32_t doc = 0; doc < corpus.size(); ++doc) {
+    const KeepFacts& facts = corpus.facts(doc);
+    out->table.Put<uint64_t>(facts.length);
+    out->table.Put<double>(facts.priority);
+    out->table.Put<uint8_t>(facts.has_priority);
+    out->table.Put<uint32_t>(corpus.shingle_count(doc));
+    out->table.Put<uint64_t>(corpus.origin(doc).line);
+    out->table.PutString(corpus.id(doc));
+    out->store.Put<uint32_t>(corpus.shingle_count(doc));
+    out->store.PutAll(corpus.signature(doc));
+    out->store.PutAll(corpus.shingles(doc));
+    if (corpus.shingle_count(doc) == 0) continue;
+    BandKeys(corpus.signature(doc), banding, absl::MakeSpan(band_keys));
+    for (uint32_t band = 0; band < banding.bands; ++band) {
+      if (band_keys[band] == kNoBandKey) continue;
+      Out& part = out->keys[PartitionOf(band, band_keys[band], partitions)][band];
+      part.Put<uint64_t>(band_keys[band]);
+      part.Put<uint32_t>(doc);
+    }
+  }
+}
+
 // sign_shard: reads and signs one shard (SignCorpus, whole), returns
 // (document table, [band keys of partition p], set store).
 py::tuple SignShard(const std::string& path, const py::handle& settings_object,
@@ -60,12 +95,11 @@ py::tuple SignShard(const std::string& path, const py::handle& settings_object,
   input.id_field = id_field;
   input.text_field = text_field;
   input.priority_field = priority_field;
-  SignedCorpus corpus(settings.perms);
-  Out table, store;
-  std::vector<Out> keys(partitions);
+  ShardRecords records;
   absl::Status status;
   {
     py::gil_scoped_release release;
+    SignedCorpus corpus(settings.perms);
     auto reader = CorpusReader::Open({path}, input);
     status = reader.status();
     if (status.ok()) {
@@ -74,38 +108,19 @@ py::tuple SignShard(const std::string& path, const py::handle& settings_object,
       SignStats stats;
       status = SignCorpus(**reader, settings, sign, &corpus, &stats);
     }
-    if (status.ok()) {
-      const Banding banding{bands, rows};
-      std::vector<uint64_t> band_keys(bands);
-      table.Put<uint32_t>(static_cast<uint32_t>(corpus.size()));
-      store.Put<uint32_t>(static_cast<uint32_t>(corpus.size()));
-      for (uint32_t doc = 0; doc < corpus.size(); ++doc) {
-        const KeepFacts& facts = corpus.facts(doc);
-        table.Put<uint64_t>(facts.length);
-        table.Put<double>(facts.priority);
-        table.Put<uint8_t>(facts.has_priority);
-        table.Put<uint32_t>(corpus.shingle_count(doc));
-        table.Put<uint64_t>(corpus.origin(doc).line);
-        table.PutString(corpus.id(doc));
-        store.Put<uint32_t>(corpus.shingle_count(doc));
-        store.PutAll(corpus.signature(doc));
-        store.PutAll(corpus.shingles(doc));
-        if (corpus.shingle_count(doc) == 0) continue;
-        BandKeys(corpus.signature(doc), banding, absl::MakeSpan(band_keys));
-        for (uint32_t band = 0; band < bands; ++band) {
-          if (band_keys[band] == kNoBandKey) continue;
-          Out& part = keys[PartitionOf(band, band_keys[band], partitions)];
-          part.Put<uint64_t>(band_keys[band]);
-          part.Put<uint32_t>(band);
-          part.Put<uint32_t>(doc);
-        }
-      }
-    }
+    if (status.ok()) WriteShardRecords(corpus, Banding{bands, rows}, partitions, &records);
   }
   Check(status);
   py::list parts;
-  for (const Out& part : keys) parts.append(part.Bytes());
-  return py::make_tuple(table.Bytes(), parts, store.Bytes());
+  for (std::vector<Out>& part : records.keys) {  // per band: u32 count, then (key, doc)s
+    Out joined;
+    for (Out& band : part) {
+      joined.Put<uint32_t>(static_cast<uint32_t>(band.str().size() / 12));
+      joined.str().append(band.str());
+    }
+    parts.append(joined.Bytes());
+  }
+  return py::make_tuple(records.table.Bytes(), parts, records.store.Bytes());
 }
 
 // candidates: the band keys of one partition from every shard (in shard
@@ -127,11 +142,11 @@ py::list Candidates(const std::vector<py::bytes>& parts, const std::vector<uint6
     std::vector<Entry> entries;
     for (size_t s = 0; s < views.size(); ++s) {
       In in(views[s]);
-      while (!in.done()) {
-        const uint64_t key = in.Get<uint64_t>();
-        const uint32_t band = in.Get<uint32_t>();
-        const uint32_t doc = in.Get<uint32_t>();
-        entries.push_back({static_cast<uint32_t>(offsets[s] + doc), band, key});
+      for (uint32_t band = 0; band < bands; ++band) {
+        for (uint32_t n = in.Get<uint32_t>(); n > 0; --n) {
+          const uint64_t key = in.Get<uint64_t>();
+          entries.push_back({static_cast<uint32_t>(offsets[s] + in.Get<uint32_t>()), band, key});
+        }
       }
     }
     std::sort(entries.begin(), entries.end(),

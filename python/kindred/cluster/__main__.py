@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import argparse
 import sys
+import warnings
 
 from .. import Settings, errors
 
@@ -79,6 +80,8 @@ def _run(args) -> int:
 
 def main(argv=None) -> int:
     args = _parser().parse_args(argv)
+    # Debian's tornado warns on every event loop distributed makes: noise.
+    warnings.filterwarnings("ignore", category=DeprecationWarning)
     try:
         return _run(args)
     except errors.KindredError as error:
