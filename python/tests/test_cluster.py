@@ -68,3 +68,13 @@ def test_cluster_sweep_reports_bad_shards_as_the_program_does(client, shards, tm
     assert done.stderr.decode() == f"kindred: {caught.value}\n"
     assert done.returncode == caught.value.exit_code
     assert not os.path.exists(tmp_path / "d")
+    # A malformed line in the third shard: the program's message and code.
+    bad = tmp_path / "bad.jsonl"
+    bad.write_bytes(open(shards[2], "rb").read()[:2000].rsplit(b"\n", 1)[0] + b"\n{\"id\": 7,\n")
+    done = run_cli("sweep", shards[0], shards[1], str(bad), "-q", "-o", str(tmp_path / "e"),
+                   check=False)
+    with pytest.raises(kindred.BadInputError) as caught:
+        kindred.cluster.sweep(client, [shards[0], shards[1], str(bad)], str(tmp_path / "f"))
+    assert done.stderr.decode() == f"kindred: {caught.value}\n"
+    assert done.returncode == caught.value.exit_code == 3
+    assert not os.path.exists(tmp_path / "f")
