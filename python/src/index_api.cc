@@ -66,8 +66,7 @@ class PyIndex {
     Check(status);
     py::list out;
     for (const IndexMatch& m : matches) {
-      const std::string other =
-          m.in_index ? std::string(matched_->id(m.other)) : batch.id(m.other);
+      const std::string other = m.in_index ? std::string(matched_->id(m.other)) : batch.id(m.other);
       out.append(py::make_tuple(batch.id(m.query), other, m.in_index, m.jaccard, m.estimate,
                                 m.shared, m.query_size, m.other_size));
     }
@@ -182,9 +181,8 @@ void RegisterIndex(py::module_& module) {
                              max_bucket);
           },
           py::arg("documents"), py::arg("on_duplicate") = py::none(),
-          py::arg("threshold") = py::none(), py::arg("measure") = py::none(),
-          py::arg("bands") = 0, py::arg("rows") = 0, py::arg("threads") = 1,
-          py::arg("max_bucket") = kDefaultMaxBucket);
+          py::arg("threshold") = py::none(), py::arg("measure") = py::none(), py::arg("bands") = 0,
+          py::arg("rows") = 0, py::arg("threads") = 1, py::arg("max_bucket") = kDefaultMaxBucket);
 }
 
 }  // namespace kindred::python

@@ -158,7 +158,8 @@ py::list Candidates(const std::vector<py::bytes>& parts, const std::vector<uint6
     for (size_t i = 0; i < entries.size();) {
       std::fill(keys.begin(), keys.end(), kNoBandKey);
       const uint32_t doc = entries[i].doc;
-      for (; i < entries.size() && entries[i].doc == doc; ++i) keys[entries[i].band] = entries[i].key;
+      for (; i < entries.size() && entries[i].doc == doc; ++i)
+        keys[entries[i].band] = entries[i].key;
       global.push_back(doc);
       local.AddWithBandKeys(std::string(), KeepFacts(), DocumentOrigin(), 1, keys);
     }
@@ -237,8 +238,8 @@ py::list ExtractSets(const py::bytes& store_bytes, const std::vector<py::bytes>&
         uint32_t size;
         std::memcpy(&size, store.data() + starts[doc], sizeof(size));
         out[v].Put<uint32_t>(static_cast<uint32_t>(offset + doc));
-        out[v].str().append(store.substr(starts[doc], sizeof(uint32_t) + perms * sizeof(uint32_t) +
-                                                          size * sizeof(uint64_t)));
+        out[v].str().append(store.substr(
+            starts[doc], sizeof(uint32_t) + perms * sizeof(uint32_t) + size * sizeof(uint64_t)));
       }
     }
   }
@@ -252,8 +253,8 @@ py::list ExtractSets(const py::bytes& store_bytes, const std::vector<py::bytes>&
 void RegisterStages(py::module_& module) {
   module.def("stage_sign_shard", &SignShard, py::arg("path"), py::arg("settings"),
              py::arg("input_format"), py::arg("id_field"), py::arg("text_field"),
-             py::arg("priority_field"), py::arg("bands"), py::arg("rows"),
-             py::arg("partitions"), py::arg("threads") = 1);
+             py::arg("priority_field"), py::arg("bands"), py::arg("rows"), py::arg("partitions"),
+             py::arg("threads") = 1);
   module.def("stage_candidates", &Candidates, py::arg("parts"), py::arg("offsets"),
              py::arg("documents"), py::arg("perms"), py::arg("bands"), py::arg("rows"),
              py::arg("ranges"), py::arg("max_bucket"));

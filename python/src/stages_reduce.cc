@@ -42,7 +42,8 @@ SignedCorpus ReadExtracted(const std::vector<std::string_view>& views, uint32_t 
       at += 8 + rest;
     }
   }
-  std::sort(docs.begin(), docs.end(), [](const Doc& a, const Doc& b) { return a.global < b.global; });
+  std::sort(docs.begin(), docs.end(),
+            [](const Doc& a, const Doc& b) { return a.global < b.global; });
   SignedCorpus corpus(perms);
   std::vector<uint32_t> signature(perms);
   std::vector<uint64_t> set;
@@ -105,7 +106,8 @@ py::bytes Verify(const py::bytes& pairs_bytes, const std::vector<py::bytes>& set
       return static_cast<uint32_t>(std::lower_bound(global.begin(), global.end(), doc) -
                                    global.begin());
     };
-    for (PackedPair& pair : pairs) pair = PackPair(local_of(PairFirst(pair)), local_of(PairSecond(pair)));
+    for (PackedPair& pair : pairs)
+      pair = PackPair(local_of(PairFirst(pair)), local_of(PairSecond(pair)));
     for (ScoredPair p : VerifyPairs(local, pairs, match, 1)) {
       p.a = global[p.a];
       p.b = global[p.b];

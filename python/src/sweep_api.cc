@@ -96,15 +96,14 @@ std::string Records(const PySweep& sweep, const std::string& kind, const std::st
   if (kind == "pairs") {
     WritePairRecords(format, result.pairs, ids, &out);
   } else if (kind == "groups") {
-    WriteGroupRecords(format, result.groups, ids, sweep.options.keep, &out,
-                      sweep.options.grouping);
+    WriteGroupRecords(format, result.groups, ids, sweep.options.keep, &out, sweep.options.grouping);
   } else if (kind == "decisions") {
     std::vector<uint8_t> empty(result.corpus.size());
     for (size_t doc = 0; doc < empty.size(); ++doc) {
       empty[doc] = result.corpus.shingle_count(doc) == 0;
     }
-    WriteDecisionRecords(format, result.groups, result.pairs, ids, empty, sweep.options.keep,
-                         &out, result.corpus.all_facts(), sweep.options.grouping);
+    WriteDecisionRecords(format, result.groups, result.pairs, ids, empty, sweep.options.keep, &out,
+                         result.corpus.all_facts(), sweep.options.grouping);
   } else {
     Raise(InvalidRequest("records: expected pairs, groups or decisions, not \"" + kind + "\""));
   }
@@ -176,10 +175,9 @@ void RegisterSweep(py::module_& module) {
     auto get = [&](const char* name, auto fallback) {
       return kw.contains(name) ? kw[name].cast<decltype(fallback)>() : fallback;
     };
-    return ToOptions(kw.contains("settings") ? kw["settings"] : py::none(),
-                     get("threshold", 0.8), get("measure", std::string("jaccard")),
-                     get("bands", uint32_t{0}), get("rows", uint32_t{0}),
-                     get("min_contained_size", kDefaultMinContainedSize),
+    return ToOptions(kw.contains("settings") ? kw["settings"] : py::none(), get("threshold", 0.8),
+                     get("measure", std::string("jaccard")), get("bands", uint32_t{0}),
+                     get("rows", uint32_t{0}), get("min_contained_size", kDefaultMinContainedSize),
                      get("keep", std::string("first")), get("grouping", std::string("components")),
                      get("max_bucket", kDefaultMaxBucket), get("exhaustive", false),
                      get("threads", 1));

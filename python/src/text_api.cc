@@ -46,8 +46,8 @@ py::array_t<uint32_t> Sign(const py::iterable& texts, const py::handle& settings
   const SignatureSettings settings = ToSignature(settings_object);
   std::vector<std::string> utf8;
   for (const py::handle text : texts) utf8.push_back(TextOf(text));
-  py::array_t<uint32_t> out({static_cast<py::ssize_t>(utf8.size()),
-                             static_cast<py::ssize_t>(settings.perms)});
+  py::array_t<uint32_t> out(
+      {static_cast<py::ssize_t>(utf8.size()), static_cast<py::ssize_t>(settings.perms)});
   uint32_t* rows = out.mutable_data();
   absl::Status status;
   {
@@ -87,7 +87,8 @@ void CheckSet(const U64Array& set, const char* name) {
   const uint64_t* data = set.data();
   for (py::ssize_t i = 1; i < set.size(); ++i) {
     if (data[i - 1] >= data[i]) {
-      throw py::value_error(std::string(name) + ": a shingle set is sorted ascending, without "
+      throw py::value_error(std::string(name) +
+                            ": a shingle set is sorted ascending, without "
                             "repeats (as kindred.shingles returns it)");
     }
   }
