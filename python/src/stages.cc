@@ -30,6 +30,7 @@
 #include "kindred/banding.h"
 #include "kindred/candidates.h"
 #include "kindred/corpus.h"
+#include "kindred/kept_writer.h"
 #include "kindred/signed_corpus.h"
 #include "kindred/sweep.h"
 #include "stage_bytes.h"
@@ -248,6 +249,43 @@ py::list ExtractSets(const py::bytes& store_bytes, const std::vector<py::bytes>&
   return result;
 }
 
+// write_kept: a shard's kept documents (all but `dropped`, u32 local
+// numbers ascending) into `lines_path` in the shard's own format
+// (WriteKept: JSON Lines lines or WARC records, verbatim, whole or not at
+// all). Returns the documents kept.
+uint64_t WriteKeptShard(const std::string& path, const std::string& input_format,
+                        const std::string& id_field, const std::string& text_field,
+                        const std::string& priority_field, const py::bytes& dropped_bytes,
+                        uint64_t documents, const std::string& lines_path) {
+  InputOptions input;
+  input.format = Take(ParseInputFormat(input_format));
+  input.id_field = id_field;
+  input.text_field = text_field;
+  input.priority_field = priority_field;
+  const std::string_view view = View(dropped_bytes);
+  std::vector<uint32_t> dropped(view.size() / 4);
+  std::memcpy(dropped.data(), view.data(), dropped.size() * 4);
+  absl::StatusOr<KeptCounts> counts;
+  {
+    py::gil_scoped_release release;
+    auto reader = CorpusReader::Open({path}, input);
+    if (!reader.ok()) {
+      counts = reader.status();
+    } else {
+      KeptRequest request;
+      request.inputs = (*reader)->ResolvedInputs();
+      request.options = input;
+      request.keep = [&dropped](uint64_t ordinal) {
+        return !std::binary_search(dropped.begin(), dropped.end(), ordinal);
+      };
+      request.expected_documents = documents;
+      request.output.lines_path = lines_path;
+      counts = WriteKept(request);
+    }
+  }
+  return Take(std::move(counts)).kept;
+}
+
 }  // namespace
 
 void RegisterStages(py::module_& module) {
@@ -261,6 +299,9 @@ void RegisterStages(py::module_& module) {
   module.def("stage_verify_plan", &VerifyPlan, py::arg("parts"), py::arg("offsets"));
   module.def("stage_extract_sets", &ExtractSets, py::arg("store"), py::arg("wanted"),
              py::arg("offset"), py::arg("perms"));
+  module.def("stage_write_kept", &WriteKeptShard, py::arg("path"), py::arg("input_format"),
+             py::arg("id_field"), py::arg("text_field"), py::arg("priority_field"),
+             py::arg("dropped"), py::arg("documents"), py::arg("lines_path"));
   RegisterReduceStages(module);
   module.def(
       "choose_banding",

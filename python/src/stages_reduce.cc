@@ -163,6 +163,23 @@ absl::Status CheckUniqueIds(const Documents& docs, const std::vector<std::string
   return absl::OkStatus();
 }
 
+// The drops of `groups`, by shard, as local numbers ascending.
+void DropsByShard(const std::vector<Group>& groups, const Documents& docs, std::vector<Out>* out) {
+  std::vector<uint32_t> drops;
+  for (const Group& group : groups) {
+    for (uint32_t member : group.members) {
+      if (member != group.keeper) drops.push_back(member);
+    }
+  }
+  std::sort(drops.begin(), drops.end());
+  std::vector<uint32_t> first(out->size(), 0);  // the number of each shard's first document
+  for (uint32_t doc = docs.places.size(); doc-- > 0;) first[docs.places[doc].first] = doc;
+  for (uint32_t doc : drops) {
+    const uint32_t shard = docs.places[doc].first;
+    (*out)[shard].Put<uint32_t>(doc - first[shard]);
+  }
+}
+
 // finish: every shard's document table (its name for messages) and every
 // range's scored pairs, in order -> (pairs, groups, decisions) record bytes.
 py::tuple Finish(const std::vector<py::bytes>& tables, const std::vector<std::string>& shards,
@@ -175,6 +192,7 @@ py::tuple Finish(const std::vector<py::bytes>& tables, const std::vector<std::st
   for (const py::bytes& t : tables) table_views.push_back(View(t));
   for (const py::bytes& s : scored) scored_views.push_back(View(s));
   std::string pairs_out, groups_out, decisions_out;
+  std::vector<Out> dropped(tables.size());  // per shard: u32 local numbers of its drops
   absl::Status status;
   {
     py::gil_scoped_release release;
@@ -190,10 +208,14 @@ py::tuple Finish(const std::vector<py::bytes>& tables, const std::vector<std::st
       WriteGroupRecords(format, groups, docs.ids, keep, &groups_out, grouping);
       WriteDecisionRecords(format, groups, pairs, docs.ids, docs.empty, keep, &decisions_out,
                            docs.facts, grouping);
+      DropsByShard(groups, docs, &dropped);
     }
   }
   Check(status);
-  return py::make_tuple(py::bytes(pairs_out), py::bytes(groups_out), py::bytes(decisions_out));
+  py::list drops;
+  for (const Out& d : dropped) drops.append(d.Bytes());
+  return py::make_tuple(py::bytes(pairs_out), py::bytes(groups_out), py::bytes(decisions_out),
+                        drops);
 }
 
 }  // namespace

@@ -52,6 +52,15 @@ def test_cluster_sweep_writes_the_program_s_bytes(client, shards, tmp_path):
         assert [s.name for s in summary.stages] == [
             "sign", "candidates", "plan", "sets", "verify", "finish"]
         assert "per doc" in summary.text()
+    # Kept documents: the shards' kept files, in shard order, hold the bytes
+    # of the program's --write-kept file.
+    run_cli("sweep", *shards, "-q", "-o", str(tmp_path / "cli-kept"), "--write-kept",
+            str(tmp_path / "kept.jsonl"))
+    summary = kindred.cluster.sweep(client, shards, str(tmp_path / "cluster-kept"),
+                                    write_kept=str(tmp_path / "kept"))
+    joined = b"".join((tmp_path / "kept" / os.path.basename(s)).read_bytes() for s in shards)
+    assert joined == (tmp_path / "kept.jsonl").read_bytes()
+    assert summary.kept == joined.count(b"\n") < 147
 
 
 def test_cluster_sweep_reports_bad_shards_as_the_program_does(client, shards, tmp_path):

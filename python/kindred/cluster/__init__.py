@@ -19,6 +19,8 @@ shards in the same order, for any number of workers and partitions:
   finish     one task: connected components (union-find over the confirmed
              pairs, which the pairs file lists in full anyway), keep
              decisions, the three record files written by the worker
+  kept       with write_kept, a task per shard: its kept documents, in its
+             own format, into a file of the shard's name
 
 Every task is a pure function of its inputs (RECORDS.md), so a task re-run
 after a worker is lost gives the same bytes.
@@ -63,6 +65,7 @@ class ClusterSummary:
     rows: int
     candidate_pairs: int
     confirmed_pairs: int
+    kept: Optional[int] = None  # documents written by write_kept
     stages: List[StageSummary] = field(default_factory=list)
 
     @property
@@ -113,12 +116,17 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
           rows: int = 0, keep: str = "first", grouping: str = "components",
           max_bucket: int = 5000, format: str = "jsonl", input_format: str = "auto",
           id_field: str = "id", text_field: str = "text", priority_field: str = "",
-          partitions: int = 0, ranges: int = 0) -> ClusterSummary:
+          partitions: int = 0, ranges: int = 0,
+          write_kept: Optional[str] = None) -> ClusterSummary:
     """Sweeps `shards` (paths every worker can read) on the cluster of
     `client` (a distributed.Client) and writes pairs, groups and decisions
     files into `output_dir` (a directory the workers can write). Options as
     kindred.sweep; partitions and ranges (0: two per worker) split the
-    candidate and verify stages. Raises kindred.errors classes."""
+    candidate and verify stages. With write_kept, a directory: each shard's
+    kept documents go into a file of the shard's name there, in its own
+    format (JSON Lines or WARC shards), so that the files in shard order
+    hold what `kindred sweep --write-kept FILE` writes. Raises
+    kindred.errors classes."""
     settings = settings or Settings()
     if not shards:
         raise errors.InvalidRequestError("give at least one shard")
@@ -135,6 +143,10 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
             f"bands x rows ({bands} x {rows}) is more than perms ({settings.perms})")
     if max_bucket < 2:
         raise errors.InvalidRequestError("max_bucket must be at least 2")
+    names = [os.path.basename(os.fspath(s)) for s in shards]
+    if write_kept and len(set(names)) != len(names):
+        raise errors.InvalidRequestError(
+            "write_kept: shards with the same file name would write the same kept file")
     workers = max(1, len(client.scheduler_info().get("workers", {})))
     partitions = partitions or 2 * workers
     ranges = ranges or 2 * workers
@@ -184,6 +196,12 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
 
     done = submit(stages.finish, tables, shards, scored, keep, grouping, format,
                   os.fspath(output_dir))
-    _first_error([done])
-    summary.stages.append(StageSummary("finish", 1, time.monotonic() - summary._clock, 0))
+    _stage(summary, "finish", client, [done], [done] if write_kept else [])
+    if write_kept:
+        kept = [submit(stages.write_kept, shards[s], options, submit(stages.pick, done, s),
+                       counts[s], os.fspath(write_kept)) for s in range(len(shards))]
+        _first_error(kept)
+        summary.kept = sum(client.gather(kept))
+        summary.stages.append(StageSummary("kept", len(kept), time.monotonic() - summary._clock,
+                                           0))
     return summary

@@ -48,6 +48,9 @@ def _parser() -> argparse.ArgumentParser:
     add("--id-field", default="id")
     add("--text-field", default="text")
     add("--priority-field", default="")
+    add("--write-kept", metavar="DIR",
+        help="JSON Lines or WARC shards: write each shard's kept documents into DIR, "
+             "under the shard's file name, in its own format")
     add("-q", "--quiet", action="store_true", help="no summary on stderr")
     return parser
 
@@ -64,7 +67,8 @@ def _run(args) -> int:
                    max_bucket=args.max_bucket, format=args.format,
                    input_format=args.input_format, id_field=args.id_field,
                    text_field=args.text_field, priority_field=args.priority_field,
-                   partitions=args.partitions, ranges=args.ranges)
+                   partitions=args.partitions, ranges=args.ranges,
+                   write_kept=args.write_kept)
     if args.scheduler:
         with Client(args.scheduler) as client:
             summary = sweep(client, args.shards, args.output_dir, **options)

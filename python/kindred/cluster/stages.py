@@ -46,18 +46,28 @@ def verify(pairs: bytes, sets: Sequence[bytes], settings, threshold: float, band
 
 
 def finish(tables: Sequence[bytes], shards: List[str], scored: Sequence[bytes], keep: str,
-           grouping: str, format: str, output_dir: str) -> dict:
+           grouping: str, format: str, output_dir: str) -> List[bytes]:
     """Groups, then writes pairs, groups and decisions into output_dir, each
     file whole or not at all (on the worker: the records never pass through
-    the client)."""
+    the client). Returns each shard's drops (u32 local numbers)."""
     import os
     from .. import _write_whole
-    pairs, groups, decisions = _kindred.stage_finish(list(tables), shards, list(scored), keep,
-                                                     grouping, format)
+    pairs, groups, decisions, drops = _kindred.stage_finish(list(tables), shards, list(scored),
+                                                            keep, grouping, format)
     os.makedirs(output_dir, exist_ok=True)
     for kind, data in (("pairs", pairs), ("groups", groups), ("decisions", decisions)):
         _write_whole(os.path.join(output_dir, f"{kind}.{format}"), data)
-    return {"pairs": len(pairs), "groups": len(groups), "decisions": len(decisions)}
+    return drops
+
+
+def write_kept(path: str, options: dict, dropped: bytes, documents: int, kept_dir: str) -> int:
+    """Writes a shard's kept documents into kept_dir under the shard's own
+    file name, in its own format (JSON Lines lines or WARC records)."""
+    import os
+    os.makedirs(kept_dir, exist_ok=True)
+    return _kindred.stage_write_kept(path, options["input_format"], options["id_field"],
+                                     options["text_field"], options["priority_field"], dropped,
+                                     documents, os.path.join(kept_dir, os.path.basename(path)))
 
 
 def size(value) -> int:
