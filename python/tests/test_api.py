@@ -120,6 +120,29 @@ def test_index_check_and_add_match_the_program(archive, source, tmp_path):
     assert any(m.other == docs[0][0] and m.jaccard == 1.0 for m in again)
 
 
+def test_created_index_answers_as_a_built_one(archive, source, tmp_path):
+    # Reference: `kindred build` of the same documents, checked by the program.
+    built = tmp_path / "built.kin"
+    run_cli("build", str(built), archive, "-q")
+    submissions = os.path.join(source, "sample_corpus", "submissions")
+    want = run_cli("check", str(built), submissions, "-q").stdout.decode().splitlines()
+    made = kindred.Index.create(tmp_path / "made.kin")
+    matches, actions = made.add(archive_documents(archive))
+    assert len(actions) == made.documents == 147 and made.banding == (15, 8)
+    got = run_cli("check", str(tmp_path / "made.kin"), submissions, "-q")
+    assert got.stdout.decode().splitlines() == want and want
+    with pytest.raises(kindred.InvalidRequestError):
+        made.add([("x", "a text")], on_duplicate="sometimes")
+    # An id already indexed: the program's message and exit code.
+    first = tmp_path / "first.jsonl"
+    first.write_bytes(open(archive, "rb").readline())
+    done = run_cli("add", str(tmp_path / "made.kin"), str(first), "-q", check=False)
+    with pytest.raises(kindred.BadInputError) as caught:
+        made.add(archive_documents(archive)[:1])
+    assert done.stderr.decode() == f"kindred: {caught.value}\n"
+    assert done.returncode == caught.value.exit_code == 3
+
+
 def test_errors_carry_the_program_s_message_and_kind(tmp_path):
     # Reference: the program's stderr and exit code for the same mistakes.
     missing = str(tmp_path / "nowhere.jsonl")

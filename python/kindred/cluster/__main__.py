@@ -92,6 +92,9 @@ def main(argv=None) -> int:
         prefix = "kindred.cluster: sweep: " if error.exit_code == 2 else "kindred: "
         print(f"{prefix}{error}", file=sys.stderr)
         return error.exit_code
+    except (OSError, TimeoutError) as error:  # a scheduler that cannot be reached, ...
+        print(f"kindred.cluster: {type(error).__name__}: {error}", file=sys.stderr)
+        return errors.InternalError.exit_code
 
 
 if __name__ == "__main__":
