@@ -3,8 +3,9 @@
 // after a lost worker gives the same bytes. The records are described in
 // python/kindred/cluster/RECORDS.md; all integers little-endian.
 //
-//   sign_shard      a shard -> document table, band-key records split into
-//                   P partitions by key hash, and the shard's set store
+//   sign_shard      a shard, signed lean -> document table, band-key
+//                   records split into P partitions by key hash, and a
+//                   band-key digest per document
 //   candidates      one partition's band keys from every shard -> candidate
 //                   pairs (FindCandidatePairs on those keys, so the crowded
 //                   bucket cap is applied exactly as in a local sweep),
@@ -12,13 +13,15 @@
 //   verify_plan     one range's candidate pairs from every partition ->
 //                   the pairs, sorted and distinct, and the documents each
 //                   shard must send for them
-//   extract_sets    a set store and the wanted documents -> their sets and
-//                   signatures, one record per verify range
+//   read_sets       a shard read again for the wanted documents only ->
+//                   their sets and signatures (checked against the digests
+//                   of the first reading), one record per verify range
 //   verify          pairs and the sets of their documents -> scored pairs
 //                   (VerifyPairs)
 //   finish          every document table and scored pair -> groups
 //                   (GroupPairs) and the three record files' bytes
-// The last two are in stages_reduce.cc.
+//   write_kept      a shard's kept documents, in its own format
+// Verify and finish are in stages_reduce.cc.
 #include <pybind11/stl.h>
 
 #include <algorithm>
@@ -26,12 +29,17 @@
 #include <string>
 #include <vector>
 
+#include "absl/container/flat_hash_map.h"
+#include "absl/strings/str_cat.h"
 #include "convert.h"
 #include "kindred/banding.h"
 #include "kindred/candidates.h"
 #include "kindred/corpus.h"
+#include "kindred/errors.h"
 #include "kindred/kept_writer.h"
+#include "kindred/shingles.h"
 #include "kindred/signed_corpus.h"
+#include "kindred/signer.h"
 #include "kindred/sweep.h"
 #include "stage_bytes.h"
 
@@ -49,19 +57,30 @@ uint32_t RangeOf(uint32_t doc, uint64_t documents, uint32_t ranges) {
   return static_cast<uint32_t>(uint64_t{doc} * ranges / std::max<uint64_t>(documents, 1));
 }
 
-// A signed shard's records: its document table, its set store, and its
-// band keys by partition and band.
+// The input options of a shard (the corpus options the stages take).
+InputOptions ShardInput(const std::string& input_format, const std::string& id_field,
+                        const std::string& text_field, const std::string& priority_field) {
+  InputOptions input;
+  input.format = Take(ParseInputFormat(input_format));
+  input.id_field = id_field;
+  input.text_field = text_field;
+  input.priority_field = priority_field;
+  return input;
+}
+
+// A signed shard's records: its document table, the band-key digest of
+// each document (to know it again when it is read again), and its band
+// keys by partition and band.
 struct ShardRecords {
-  Out table, store;
+  Out table, digests;
   std::vector<std::vector<Out>> keys;  // [partition][band]
 };
 
+// `corpus` is lean (band keys only) under `banding`.
 void WriteShardRecords(const SignedCorpus& corpus, Banding banding, uint32_t partitions,
                        ShardRecords* out) {
   out->keys.assign(partitions, std::vector<Out>(banding.bands));
-  std::vector<uint64_t> band_keys(banding.bands);
   out->table.Put<uint32_t>(static_cast<uint32_t>(corpus.size()));
-  out->store.Put<uint32_t>(static_cast<uint32_t>(corpus.size()));
   for (uint32_t doc = 0; doc < corpus.size(); ++doc) {
     const KeepFacts& facts = corpus.facts(doc);
     out->table.Put<uint64_t>(facts.length);
@@ -70,37 +89,34 @@ void WriteShardRecords(const SignedCorpus& corpus, Banding banding, uint32_t par
     out->table.Put<uint32_t>(corpus.shingle_count(doc));
     out->table.Put<uint64_t>(corpus.origin(doc).line);
     out->table.PutString(corpus.id(doc));
-    out->store.Put<uint32_t>(corpus.shingle_count(doc));
-    out->store.PutAll(corpus.signature(doc));
-    out->store.PutAll(corpus.shingles(doc));
+    out->digests.Put<uint32_t>(corpus.band_key_digest(doc));
     if (corpus.shingle_count(doc) == 0) continue;
-    BandKeys(corpus.signature(doc), banding, absl::MakeSpan(band_keys));
     for (uint32_t band = 0; band < banding.bands; ++band) {
-      if (band_keys[band] == kNoBandKey) continue;
-      Out& part = out->keys[PartitionOf(band, band_keys[band], partitions)][band];
-      part.Put<uint64_t>(band_keys[band]);
+      const uint64_t key = corpus.band_key(doc, band);
+      if (key == kNoBandKey) continue;
+      Out& part = out->keys[PartitionOf(band, key, partitions)][band];
+      part.Put<uint64_t>(key);
       part.Put<uint32_t>(doc);
     }
   }
 }
 
 // sign_shard: reads and signs one shard (SignCorpus, whole), returns
-// (document table, [band keys of partition p], set store).
+// (document table, [band keys of partition p], band-key digests). Signing
+// is lean (band keys only, as a local sweep signs): the sets of candidate
+// documents are read again by read_sets.
 py::tuple SignShard(const std::string& path, const py::handle& settings_object,
                     const std::string& input_format, const std::string& id_field,
                     const std::string& text_field, const std::string& priority_field,
                     uint32_t bands, uint32_t rows, uint32_t partitions, int threads) {
   const SignatureSettings settings = ToSignature(settings_object);
-  InputOptions input;
-  input.format = Take(ParseInputFormat(input_format));
-  input.id_field = id_field;
-  input.text_field = text_field;
-  input.priority_field = priority_field;
+  const InputOptions input = ShardInput(input_format, id_field, text_field, priority_field);
   ShardRecords records;
   absl::Status status;
   {
     py::gil_scoped_release release;
-    SignedCorpus corpus(settings.perms);
+    const Banding banding{bands, rows};
+    SignedCorpus corpus = SignedCorpus::Lean(settings.perms, banding);
     auto reader = CorpusReader::Open({path}, input);
     status = reader.status();
     if (status.ok()) {
@@ -109,7 +125,7 @@ py::tuple SignShard(const std::string& path, const py::handle& settings_object,
       SignStats stats;
       status = SignCorpus(**reader, settings, sign, &corpus, &stats);
     }
-    if (status.ok()) WriteShardRecords(corpus, Banding{bands, rows}, partitions, &records);
+    if (status.ok()) WriteShardRecords(corpus, banding, partitions, &records);
   }
   Check(status);
   py::list parts;
@@ -121,7 +137,7 @@ py::tuple SignShard(const std::string& path, const py::handle& settings_object,
     }
     parts.append(joined.Bytes());
   }
-  return py::make_tuple(records.table.Bytes(), parts, records.store.Bytes());
+  return py::make_tuple(records.table.Bytes(), parts, records.digests.Bytes());
 }
 
 // candidates: the band keys of one partition from every shard (in shard
@@ -211,39 +227,88 @@ py::tuple VerifyPlan(const std::vector<py::bytes>& parts, const std::vector<uint
   return py::make_tuple(pairs_out.Bytes(), want);
 }
 
-// extract_sets: a shard's set store and, per verify range, the documents
-// wanted from it -> per range: (global number, set size, signature, set).
-py::list ExtractSets(const py::bytes& store_bytes, const std::vector<py::bytes>& wanted,
-                     uint64_t offset, uint32_t perms) {
-  const std::string_view store = View(store_bytes);
-  std::vector<std::string_view> views;
-  for (const py::bytes& w : wanted) views.push_back(View(w));
-  std::vector<Out> out(views.size());
+// Signs the wanted documents of a shard again (read with a filter, so
+// that the others are only skipped) and checks each against the band-key
+// digest of its first reading. Returns ordinal -> (set size, signature, set).
+absl::StatusOr<absl::flat_hash_map<uint32_t, std::string>> SignAgain(
+    const std::string& path, const InputOptions& input, const SignatureSettings& settings,
+    Banding banding, const std::vector<uint32_t>& digests, const std::vector<uint8_t>& wanted) {
+  auto reader = CorpusReader::Open({path}, input);
+  if (!reader.ok()) return reader.status();
+  auto shingler = Shingler::Create(settings);
+  if (!shingler.ok()) return shingler.status();
+  (*reader)->SetFilter([&wanted](uint64_t n) { return n < wanted.size() && wanted[n] != 0; });
+  const Signer signer(settings);
+  std::vector<uint32_t> signature(settings.perms);
+  std::vector<uint64_t> keys(banding.bands);
+  ShingleSet set;
+  std::vector<Document> batch;
+  absl::flat_hash_map<uint32_t, std::string> out;
+  for (;;) {
+    absl::StatusOr<size_t> count = (*reader)->ReadBatch(&batch, 1024, 16 << 20);
+    if (!count.ok()) return count.status();
+    if (*count == 0) break;
+    for (const Document& doc : batch) {
+      if (absl::Status s = (*shingler)->Shingle(doc.text, &set); !s.ok()) return s;
+      signer.Sign(set, absl::MakeSpan(signature));
+      SignedCorpus::LeanBandKeys(banding, set.empty(), signature, absl::MakeSpan(keys));
+      if (doc.ordinal >= digests.size() ||
+          SignedCorpus::BandKeyDigest(keys) != digests[doc.ordinal]) {
+        return InputChanged(absl::StrCat(path, doc.source.line > 0 ? ":" : "",
+                                         doc.source.line > 0 ? absl::StrCat(doc.source.line) : "",
+                                         ": document \"", doc.id,
+                                         "\" changed since it was first read; run again"));
+      }
+      Out record;
+      record.Put<uint32_t>(static_cast<uint32_t>(set.size()));
+      record.PutAll(absl::MakeConstSpan(signature));
+      record.PutAll(absl::MakeConstSpan(set));
+      out[static_cast<uint32_t>(doc.ordinal)] = std::move(record.str());
+    }
+  }
+  return out;
+}
+
+// read_sets: a shard read again for the documents each verify range wants
+// from it (local numbers) -> per range: (global number, set size,
+// signature, set).
+py::list ReadSets(const std::string& path, const py::handle& settings_object,
+                  const std::string& input_format, const std::string& id_field,
+                  const std::string& text_field, const std::string& priority_field, uint32_t bands,
+                  uint32_t rows, const py::bytes& digest_bytes,
+                  const std::vector<py::bytes>& wanted, uint64_t offset) {
+  const SignatureSettings settings = ToSignature(settings_object);
+  const InputOptions input = ShardInput(input_format, id_field, text_field, priority_field);
+  const std::string_view digest_view = View(digest_bytes);
+  std::vector<uint32_t> digests(digest_view.size() / 4);
+  std::memcpy(digests.data(), digest_view.data(), digests.size() * 4);
+  std::vector<std::vector<uint32_t>> lists;
+  std::vector<uint8_t> any(digests.size(), 0);
+  for (const py::bytes& w : wanted) {
+    const std::string_view view = View(w);
+    lists.emplace_back(view.size() / 4);
+    std::memcpy(lists.back().data(), view.data(), lists.back().size() * 4);
+    for (uint32_t doc : lists.back()) any[doc] = 1;
+  }
+  std::vector<Out> out(lists.size());
+  absl::Status status;
   {
     py::gil_scoped_release release;
-    // Where each document's record starts in the store.
-    In in(store);
-    const uint32_t count = in.Get<uint32_t>();
-    std::vector<size_t> starts(count);
-    size_t at = sizeof(uint32_t);
-    for (uint32_t doc = 0; doc < count; ++doc) {
-      starts[doc] = at;
-      uint32_t size;
-      std::memcpy(&size, store.data() + at, sizeof(size));
-      at += sizeof(uint32_t) + perms * sizeof(uint32_t) + size * sizeof(uint64_t);
-    }
-    for (size_t v = 0; v < views.size(); ++v) {
-      In docs(views[v]);
-      while (!docs.done()) {
-        const uint32_t doc = docs.Get<uint32_t>();
-        uint32_t size;
-        std::memcpy(&size, store.data() + starts[doc], sizeof(size));
+    auto records = SignAgain(path, input, settings, Banding{bands, rows}, digests, any);
+    status = records.status();
+    for (size_t v = 0; status.ok() && v < lists.size(); ++v) {
+      for (uint32_t doc : lists[v]) {
+        auto it = records->find(doc);
+        if (it == records->end()) {
+          status = InputChanged(absl::StrCat(path, ": fewer documents than when first read"));
+          break;
+        }
         out[v].Put<uint32_t>(static_cast<uint32_t>(offset + doc));
-        out[v].str().append(store.substr(
-            starts[doc], sizeof(uint32_t) + perms * sizeof(uint32_t) + size * sizeof(uint64_t)));
+        out[v].str().append(it->second);
       }
     }
   }
+  Check(status);
   py::list result;
   for (const Out& o : out) result.append(o.Bytes());
   return result;
@@ -257,11 +322,7 @@ uint64_t WriteKeptShard(const std::string& path, const std::string& input_format
                         const std::string& id_field, const std::string& text_field,
                         const std::string& priority_field, const py::bytes& dropped_bytes,
                         uint64_t documents, const std::string& lines_path) {
-  InputOptions input;
-  input.format = Take(ParseInputFormat(input_format));
-  input.id_field = id_field;
-  input.text_field = text_field;
-  input.priority_field = priority_field;
+  const InputOptions input = ShardInput(input_format, id_field, text_field, priority_field);
   const std::string_view view = View(dropped_bytes);
   std::vector<uint32_t> dropped(view.size() / 4);
   std::memcpy(dropped.data(), view.data(), dropped.size() * 4);
@@ -297,8 +358,10 @@ void RegisterStages(py::module_& module) {
              py::arg("documents"), py::arg("perms"), py::arg("bands"), py::arg("rows"),
              py::arg("ranges"), py::arg("max_bucket"));
   module.def("stage_verify_plan", &VerifyPlan, py::arg("parts"), py::arg("offsets"));
-  module.def("stage_extract_sets", &ExtractSets, py::arg("store"), py::arg("wanted"),
-             py::arg("offset"), py::arg("perms"));
+  module.def("stage_read_sets", &ReadSets, py::arg("path"), py::arg("settings"),
+             py::arg("input_format"), py::arg("id_field"), py::arg("text_field"),
+             py::arg("priority_field"), py::arg("bands"), py::arg("rows"), py::arg("digests"),
+             py::arg("wanted"), py::arg("offset"));
   module.def("stage_write_kept", &WriteKeptShard, py::arg("path"), py::arg("input_format"),
              py::arg("id_field"), py::arg("text_field"), py::arg("priority_field"),
              py::arg("dropped"), py::arg("documents"), py::arg("lines_path"));

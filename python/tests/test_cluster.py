@@ -2,6 +2,7 @@
 own output files over the same shards in the same order)."""
 
 import os
+import struct
 
 import pytest
 
@@ -87,3 +88,24 @@ def test_cluster_sweep_reports_bad_shards_as_the_program_does(client, shards, tm
     assert done.stderr.decode() == f"kindred: {caught.value}\n"
     assert done.returncode == caught.value.exit_code == 3
     assert not os.path.exists(tmp_path / "f")
+
+
+def test_a_shard_that_changed_before_its_second_reading_is_an_error(shards, tmp_path):
+    # The sets stage reads a shard again; a document that changed since the
+    # sign stage read it is an InputChangedError naming the shard and line.
+    from kindred.cluster import stages
+    options = dict(input_format="auto", id_field="id", text_field="text", priority_field="")
+    shard = tmp_path / "shard.jsonl"
+    shard.write_bytes(open(shards[0], "rb").read())
+    settings = kindred.Settings()
+    table, keys, digests = stages.sign_shard(str(shard), settings, options, 15, 8, 2)
+    wanted = [struct.pack("<II", 0, 3)]
+    sets = stages.read_sets(str(shard), settings, options, 15, 8, digests, wanted, 100)
+    assert struct.unpack_from("<I", sets[0])[0] == 100 and len(sets) == 1
+    lines = shard.read_bytes().splitlines(keepends=True)
+    lines[3] = lines[3].replace(b"the", b"a", 3)
+    shard.write_bytes(b"".join(lines))
+    with pytest.raises(kindred.InputChangedError) as caught:
+        stages.read_sets(str(shard), settings, options, 15, 8, digests, wanted, 100)
+    assert str(caught.value).startswith(f"{shard}:4: document ")
+    assert caught.value.exit_code == 3

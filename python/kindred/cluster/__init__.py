@@ -4,17 +4,19 @@ The stages of a local sweep, as tasks over the shards of a corpus; the files
 written are byte-identical to those of ``kindred sweep -o OUT`` over the same
 shards in the same order, for any number of workers and partitions:
 
-  sign       a task per shard: signs it (documents numbered by shard, then
-             position, as a local sweep numbers them), emits its document
-             table, its band keys split into P partitions by key hash, and
-             its set store (shingle sets and signatures), which stays on
-             the worker that made it
+  sign       a task per shard: signs it lean (band keys only, as a local
+             sweep signs; documents numbered by shard, then position, as a
+             local sweep numbers them), emits its document table, its band
+             keys split into P partitions by key hash, and a 4-byte
+             band-key digest per document
   candidates a task per partition: that partition's band keys from every
              shard -> candidate pairs, the crowded-bucket cap applied
              exactly as locally, routed into V ranges of first documents
   plan       a task per range: its pairs, sorted and distinct, and the
              documents each shard must send for them
-  sets       a task per shard: the sets of the wanted documents only
+  sets       a task per shard: reads the shard again, skipping all but the
+             wanted documents, signs those again (each checked against its
+             digest: a shard that changed is an error) and emits their sets
   verify     a task per range: exact Jaccard on the sets (VerifyPairs)
   finish     one task: connected components (union-find over the confirmed
              pairs, which the pairs file lists in full anyway), keep
@@ -70,8 +72,7 @@ class ClusterSummary:
 
     @property
     def bytes_moved(self) -> int:
-        """Bytes handed between tasks (the set stores that stay on their
-        workers are not counted; the sets extracted from them are)."""
+        """Bytes handed between tasks."""
         return sum(s.bytes_out for s in self.stages)
 
     def text(self) -> str:
@@ -162,13 +163,14 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
     tables = [submit(stages.pick, f, 0) for f in signed]
     keys = [[submit(stages.pick, submit(stages.pick, f, 1), p) for p in range(partitions)]
             for f in signed]
-    stores = [submit(stages.pick, f, 2) for f in signed]
+    digests = [submit(stages.pick, f, 2) for f in signed]
     _first_error(signed)
     counts = client.gather([submit(stages.document_count, t) for t in tables])
     offsets = [sum(counts[:n]) for n in range(len(counts) + 1)]
     documents = offsets[-1]
     summary.documents = documents
-    _stage(summary, "sign", client, signed, [k for row in keys for k in row] + tables)
+    _stage(summary, "sign", client, signed,
+           [k for row in keys for k in row] + tables + digests)
 
     found = [submit(stages.candidates, [keys[s][p] for s in range(len(shards))], offsets,
                     documents, settings.perms, bands, rows, ranges, max_bucket)
@@ -184,8 +186,9 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
     _stage(summary, "plan", client, plans, [w for row in wanted for w in row] + pairs)
     summary.candidate_pairs = sum(client.gather([submit(stages.size, f) for f in pairs])) // 8
 
-    extracted = [submit(stages.extract_sets, stores[s], [wanted[v][s] for v in range(ranges)],
-                        offsets[s], settings.perms) for s in range(len(shards))]
+    extracted = [submit(stages.read_sets, shards[s], settings, options, bands, rows, digests[s],
+                        [wanted[v][s] for v in range(ranges)], offsets[s])
+                 for s in range(len(shards))]
     sets = [[submit(stages.pick, f, v) for v in range(ranges)] for f in extracted]
     _stage(summary, "sets", client, extracted, extracted)
 

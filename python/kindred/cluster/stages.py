@@ -36,8 +36,11 @@ def verify_plan(parts: Sequence[bytes], offsets: List[int]) -> Tuple[bytes, List
     return _kindred.stage_verify_plan(list(parts), offsets)
 
 
-def extract_sets(store: bytes, wanted: Sequence[bytes], offset: int, perms: int) -> List[bytes]:
-    return _kindred.stage_extract_sets(store, list(wanted), offset, perms)
+def read_sets(path: str, settings, options: dict, bands: int, rows: int, digests: bytes,
+              wanted: Sequence[bytes], offset: int) -> List[bytes]:
+    return _kindred.stage_read_sets(path, settings, options["input_format"], options["id_field"],
+                                    options["text_field"], options["priority_field"], bands, rows,
+                                    digests, list(wanted), offset)
 
 
 def verify(pairs: bytes, sets: Sequence[bytes], settings, threshold: float, bands: int,
