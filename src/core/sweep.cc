@@ -6,8 +6,8 @@
 #include "core/group_members.h"
 #include "core/verify_pairs.h"
 
-#include "kindred/parallel.h"
-#include "kindred/reload.h"
+#include "core/parallel.h"
+#include "core/reload.h"
 #include "kindred/signer.h"
 #include "kindred/sweep_stages.h"
 #include "kindred/verify.h"
@@ -144,23 +144,73 @@ void MatchCorpus(const SignedCorpus& corpus, const SweepOptions& options, SweepR
   stats.match_seconds = SecondsSince(start);
 }
 
+namespace {
+
+// Whether a sweep keeps only band keys while signing and reads the
+// documents of candidate pairs again (see SweepOptions::keep_sets): an LSH
+// sweep by Jaccard banding, not asked to keep sets, whose inputs can all be
+// read again.
+bool SweepsLean(const CorpusReader& reader, const SweepOptions& options) {
+  const std::vector<ResolvedInput> inputs = reader.ResolvedInputs();
+  return !options.exhaustive && !options.keep_sets && !UsesContainmentSearch(options.match) &&
+         std::all_of(inputs.begin(), inputs.end(), [](const ResolvedInput& input) {
+           return !input.is_stdin || !input.read_path.empty();
+         });
+}
+
+// The corpus a lean sweep signs into: band keys of the sweep's banding,
+// spilled past half the memory budget, identical sets grouped and kept
+// while they take a quarter of it (kDefaultSetMemory without a budget).
+SignedCorpus LeanCorpus(const SweepOptions& options) {
+  SignedCorpus corpus = SignedCorpus::Lean(options.signature.perms, BandingFor(options));
+  if (options.memory > 0) corpus.SetSpill(options.memory / 2, options.scratch_dir);
+  corpus.GroupIdenticalSets(options.memory > 0 ? options.memory / 4 : kDefaultSetMemory);
+  return corpus;
+}
+
+// The pairs and groups of a lean corpus: candidates of the groups of
+// identical sets, the sets they need read again, verification, the groups
+// expanded to their members, grouping.
+absl::Status MatchLeanCorpus(const CorpusReader& reader, const SweepOptions& options,
+                             SweepResult* result) {
+  const auto start = std::chrono::steady_clock::now();
+  const int threads = std::max(1, options.sign.threads);
+  SweepStats& stats = result->stats;
+  SignedCorpus& corpus = result->corpus;
+  stats.banding = corpus.lean_banding();
+  if (const BandSpill* spill = corpus.spill(); spill != nullptr) {
+    stats.spilled_bytes = spill->bytes_written();
+    stats.spill_runs = spill->runs();
+  }
+  absl::StatusOr<GroupedCandidates> candidates = FindGroupedCandidatePairs(
+      corpus, stats.banding, threads, &stats.candidates, options.max_bucket);
+  if (!candidates.ok()) return candidates.status();
+  if (absl::Status status = ReloadShingles(reader.ResolvedInputs(), reader.options(),
+                                           options.signature,
+                                           RepresentativesToRead(corpus, candidates->pairs),
+                                           threads, &corpus);
+      !status.ok()) {
+    return status;
+  }
+  result->pairs = VerifyPairs(corpus, candidates->pairs, options.match, threads);
+  if (!candidates->expanded) {
+    result->pairs = ExpandGroups(corpus, GroupMembers(corpus), result->pairs, options.match);
+  }
+  GroupAndCount(corpus, options, result);
+  stats.match_seconds = SecondsSince(start);
+  return absl::OkStatus();
+}
+
+}  // namespace
+
 absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& options) {
   if (absl::Status status = options.signature.Validate(); !status.ok()) return status;
   if (absl::Status status = options.match.Validate(options.signature); !status.ok()) {
     return status;
   }
-  const std::vector<ResolvedInput> inputs = reader.ResolvedInputs();
-  const bool lean = !options.exhaustive && !options.keep_sets &&
-                    !UsesContainmentSearch(options.match) &&
-                    std::all_of(inputs.begin(), inputs.end(), [](const ResolvedInput& input) {
-                      return !input.is_stdin || !input.read_path.empty();
-                    });
+  const bool lean = SweepsLean(reader, options);
   SweepResult result(options.signature.perms);
-  if (lean) {
-    result.corpus = SignedCorpus::Lean(options.signature.perms, BandingFor(options));
-    if (options.memory > 0) result.corpus.SetSpill(options.memory / 2, options.scratch_dir);
-    result.corpus.GroupIdenticalSets(options.memory > 0 ? options.memory / 4 : kDefaultSetMemory);
-  }
+  if (lean) result.corpus = LeanCorpus(options);
   const auto start = std::chrono::steady_clock::now();
   if (absl::Status status =
           SignCorpus(reader, options.signature, options.sign, &result.corpus, &result.stats.sign);
@@ -170,33 +220,9 @@ absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& o
   result.stats.sign_seconds = SecondsSince(start);
   if (!lean) {
     MatchCorpus(result.corpus, options, &result);
-    return result;
-  }
-  const auto match_start = std::chrono::steady_clock::now();
-  const int threads = std::max(1, options.sign.threads);
-  SweepStats& stats = result.stats;
-  stats.banding = result.corpus.lean_banding();
-  if (const BandSpill* spill = result.corpus.spill(); spill != nullptr) {
-    stats.spilled_bytes = spill->bytes_written();
-    stats.spill_runs = spill->runs();
-  }
-  absl::StatusOr<GroupedCandidates> candidates = FindGroupedCandidatePairs(
-      result.corpus, stats.banding, threads, &stats.candidates, options.max_bucket);
-  if (!candidates.ok()) return candidates.status();
-  if (absl::Status status = ReloadShingles(reader.ResolvedInputs(), reader.options(),
-                                           options.signature,
-                                           RepresentativesToRead(result.corpus, candidates->pairs),
-                                           threads, &result.corpus);
-      !status.ok()) {
+  } else if (absl::Status status = MatchLeanCorpus(reader, options, &result); !status.ok()) {
     return status;
   }
-  result.pairs = VerifyPairs(result.corpus, candidates->pairs, options.match, threads);
-  if (!candidates->expanded) {
-    result.pairs = ExpandGroups(result.corpus, GroupMembers(result.corpus), result.pairs,
-                                options.match);
-  }
-  GroupAndCount(result.corpus, options, &result);
-  stats.match_seconds = SecondsSince(match_start);
   return result;
 }
 

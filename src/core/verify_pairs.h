@@ -9,7 +9,7 @@
 
 #include "absl/types/span.h"
 #include "kindred/candidate_pairs.h"
-#include "kindred/parallel.h"
+#include "core/parallel.h"
 #include "kindred/scored_pairs.h"
 #include "kindred/settings.h"
 #include "kindred/signer.h"
