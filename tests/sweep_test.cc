@@ -11,7 +11,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "kindred/records.h"
-#include "kindred/reload.h"
+#include "core/reload.h"
 #include "kindred/shingles.h"
 #include "testlib/oracle.h"
 #include "testlib/similar_sets.h"

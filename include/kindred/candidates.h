@@ -15,23 +15,10 @@
 
 #include "absl/status/statusor.h"
 #include "kindred/banding.h"
+#include "kindred/candidate_pairs.h"  // PackedPair, CandidateStats
 #include "kindred/signed_corpus.h"
 
 namespace kindred {
-
-// A candidate pair as (a << 32 | b) with a < b: sorting the packed value
-// sorts by a, then b.
-using PackedPair = uint64_t;
-inline PackedPair PackPair(uint32_t a, uint32_t b) { return (uint64_t{a} << 32) | b; }
-inline uint32_t PairFirst(PackedPair pair) { return static_cast<uint32_t>(pair >> 32); }
-inline uint32_t PairSecond(PackedPair pair) { return static_cast<uint32_t>(pair); }
-
-struct CandidateStats {
-  uint64_t bucket_entries = 0;     // (band key, document) entries
-  uint64_t largest_bucket = 0;     // documents in the most crowded bucket
-  uint64_t oversized_buckets = 0;  // buckets over the cap (see below)
-  uint64_t candidate_pairs = 0;    // distinct pairs
-};
 
 // Buckets hold the documents that agree on a whole band. A bucket of s
 // documents proposes s(s-1)/2 pairs, so a band shared by thousands of

@@ -24,21 +24,9 @@
 
 #include "absl/status/statusor.h"
 #include "absl/types/span.h"
+#include "kindred/scored_pairs.h"  // ScoredPair
 
 namespace kindred {
-
-// A confirmed pair of documents, a < b (indices in first-seen order).
-struct ScoredPair {
-  uint32_t a = 0;
-  uint32_t b = 0;
-  uint32_t shared = 0;  // |A n B| (exact)
-  uint32_t size_a = 0;  // |A|
-  uint32_t size_b = 0;  // |B|
-  double jaccard = 0;   // exact
-  double estimate = 0;  // MinHash signature estimate
-
-  friend bool operator==(const ScoredPair&, const ScoredPair&) = default;
-};
 
 // How the keeper of a group is chosen. Ties always go to the document seen
 // first, so the choice is deterministic.
@@ -67,6 +55,7 @@ struct KeepFacts {
   uint64_t length = 0;  // text length in bytes
   double priority = 0;
   bool has_priority = false;
+  friend bool operator==(const KeepFacts&, const KeepFacts&) = default;
 };
 
 struct Group {

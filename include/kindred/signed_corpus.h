@@ -38,17 +38,11 @@
 #include "kindred/banding.h"
 #include "kindred/block_arena.h"
 #include "kindred/corpus.h"
+#include "kindred/document_table.h"  // DocumentOrigin
 #include "kindred/groups.h"
 #include "kindred/settings.h"
 
 namespace kindred {
-
-// Where a document was read: enough to name it in a message.
-struct DocumentOrigin {
-  uint32_t input = 0;                // index into the reader's input list
-  uint64_t line = 0;                 // 1-based line for JSON Lines, 0 for whole files
-  uint64_t offset = kUnknownOffset;  // DocumentSource::offset
-};
 
 namespace internal {
 // Frees a SignedCorpus key table (HugePageAllocator, `values` keys).

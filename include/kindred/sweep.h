@@ -24,14 +24,9 @@
 #include "kindred/groups.h"
 #include "kindred/settings.h"
 #include "kindred/signed_corpus.h"
+#include "kindred/verify.h"  // PassesThreshold
 
 namespace kindred {
-
-// True when `overlap` passes `match` (measure >= threshold, compared exactly
-// on the counts, with a 1e-9 allowance for the decimal threshold; for
-// containment, the smaller set also has at least match.min_contained_size
-// shingles).
-bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b, const MatchSettings& match);
 
 // Confirms each candidate pair on the shingle sets; returns the pairs that
 // pass, in the order of `candidates` (ascending), with exact and estimated

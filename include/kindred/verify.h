@@ -11,6 +11,7 @@
 #include <cstdint>
 
 #include "absl/types/span.h"
+#include "kindred/settings.h"
 
 namespace kindred {
 
@@ -45,6 +46,12 @@ Overlap MeasureOverlap(absl::Span<const uint64_t> a, absl::Span<const uint64_t> 
 // with the exact overlap otherwise.
 bool MeasureOverlapAtLeast(absl::Span<const uint64_t> a, absl::Span<const uint64_t> b,
                            uint32_t needed, Overlap* out);
+
+// True when `overlap` passes `match` (measure >= threshold, compared exactly
+// on the counts, with a 1e-9 allowance for the decimal threshold; for
+// containment, the smaller set also has at least match.min_contained_size
+// shingles).
+bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b, const MatchSettings& match);
 
 }  // namespace kindred
 

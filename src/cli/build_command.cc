@@ -16,6 +16,7 @@
 #include "kindred/banding.h"
 #include "kindred/index_writer.h"
 #include "kindred/signed_corpus.h"
+#include "kindred/sweep_stages.h"  // ResolveBanding
 #include "kindred/temp_files.h"
 #include "kindred/text.h"
 
@@ -47,8 +48,7 @@ absl::StatusOr<IndexSettings> ToIndexSettings(const BuildFlags& flags) {
   if (!match.ok()) return match.status();
   settings.threshold = match->threshold;
   settings.measure = match->measure;
-  Banding banding = match->bands != 0 ? Banding{match->bands, match->rows}
-                                      : ChooseBanding(match->threshold, settings.signature.perms);
+  const Banding banding = ResolveBanding(*match, settings.signature.perms);
   settings.bands = banding.bands;
   settings.rows = banding.rows;
   // An index built for containment stores the containment search's keys.

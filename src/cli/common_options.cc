@@ -6,7 +6,7 @@
 #include "cli/output.h"
 #include "cli/usage.h"
 #include "kindred/candidates.h"
-#include "kindred/parallel.h"
+#include "core/parallel.h"
 
 namespace kindred::cli {
 namespace {

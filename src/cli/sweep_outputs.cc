@@ -13,6 +13,7 @@
 #include "io/output_guard.h"
 #include "io/warc_reader.h"
 #include "kindred/errors.h"
+#include "kindred/sweep_stages.h"
 
 namespace kindred::cli {
 namespace {
@@ -131,34 +132,30 @@ absl::Status CheckOutputLocations(const SweepFlags& flags) {
 }
 
 // The three record kinds, formatted when wanted (all three for record
-// files, else the printed one only).
-struct FormattedRecords {
-  std::string pairs, groups, decisions;
-};
-
-FormattedRecords FormatRecords(const RecordOutputs& records, const SweepResult& result) {
+// files, else the printed one only), by the sweep's record stage.
+SweepRecords FormatRecords(const RecordOutputs& records, const SweepResult& result) {
   const bool all = !records.output_dir.empty();
-  const auto ids = result.corpus.ids();
-  FormattedRecords out;
-  if (all || records.print == PrintedRecords::kPairs) {
-    WritePairRecords(records.format, result.pairs, ids, &out.pairs);
-  }
-  if (all || records.print == PrintedRecords::kGroups) {
-    WriteGroupRecords(records.format, result.groups, ids, records.keep, &out.groups,
-                      records.grouping);
-  }
-  if (all || records.print == PrintedRecords::kDecisions) {
-    std::vector<uint8_t> empty(result.corpus.size());
+  SweepRecordOptions options;
+  options.format = records.format;
+  options.keep = records.keep;
+  options.grouping = records.grouping;
+  options.pairs = all || records.print == PrintedRecords::kPairs;
+  options.groups = all || records.print == PrintedRecords::kGroups;
+  options.decisions = all || records.print == PrintedRecords::kDecisions;
+  std::vector<uint8_t> empty;
+  if (options.decisions) {
+    empty.resize(result.corpus.size());
     for (size_t doc = 0; doc < empty.size(); ++doc) {
       empty[doc] = result.corpus.shingle_count(doc) == 0;
     }
-    WriteDecisionRecords(records.format, result.groups, result.pairs, ids, empty, records.keep,
-                         &out.decisions, result.corpus.all_facts(), records.grouping);
   }
+  SweepRecords out;
+  WriteSweepRecords(options, result.pairs, result.groups, result.corpus.ids(),
+                    result.corpus.all_facts(), empty, &out);
   return out;
 }
 
-absl::Status WriteRecordFiles(const RecordOutputs& records, const FormattedRecords& formatted) {
+absl::Status WriteRecordFiles(const RecordOutputs& records, const SweepRecords& formatted) {
   std::error_code error;
   std::filesystem::create_directories(records.output_dir, error);
   if (error) {
@@ -196,7 +193,7 @@ int CheckSweepOutputs(const SweepFlags& flags, const RecordOutputs& records,
 }
 
 absl::Status WriteRecordOutputs(const RecordOutputs& records, const SweepResult& result) {
-  const FormattedRecords formatted = FormatRecords(records, result);
+  const SweepRecords formatted = FormatRecords(records, result);
   if (!records.output_dir.empty()) {
     if (absl::Status status = WriteRecordFiles(records, formatted); !status.ok()) return status;
   }

@@ -7,7 +7,7 @@
 #include "core/contract_internal.h"
 #include "core/group_members.h"
 #include "kindred/band_spill.h"
-#include "kindred/parallel.h"
+#include "core/parallel.h"
 
 namespace kindred {
 namespace {
@@ -182,6 +182,93 @@ Dropped CollectEntries(const SignedCorpus& corpus, const uint64_t* column, size_
 
 namespace {
 
+// The band keys of the documents held in memory, one column per band: a
+// lean corpus keeps them (from first_resident() on; the others are in its
+// spill), otherwise they are computed into *computed (band * n + doc).
+// Documents with no shingles have no keys (all kNoBandKey).
+std::vector<const uint64_t*> BandColumns(const SignedCorpus& corpus, Banding banding, int threads,
+                                         std::vector<uint64_t>* computed) {
+  const size_t n = corpus.size();
+  const uint32_t bands = banding.bands;
+  std::vector<const uint64_t*> columns(bands);
+  if (corpus.lean()) {
+    for (uint32_t band = 0; band < bands; ++band) columns[band] = corpus.band_column(band).data();
+    return columns;
+  }
+  computed->resize(n * bands);
+  ParallelFor(n, threads, [&](size_t begin, size_t end, int) {
+    std::vector<uint64_t> keys(bands);
+    for (size_t doc = begin; doc < end; ++doc) {
+      if (corpus.shingle_count(doc) == 0) {
+        std::fill(keys.begin(), keys.end(), kNoBandKey);
+      } else {
+        BandKeys(corpus.signature(doc), banding, absl::MakeSpan(keys));
+      }
+      for (uint32_t band = 0; band < bands; ++band) (*computed)[band * n + doc] = keys[band];
+    }
+  });
+  for (uint32_t band = 0; band < bands; ++band) columns[band] = computed->data() + band * n;
+  return columns;
+}
+
+// Working space of one worker, kept from band to band, in huge pages (fresh
+// small pages for every band cost a page fault per 4 KiB).
+struct Space {
+  EntryVector entries, scratch;
+  HugePageVector<uint32_t> offsets;
+  HugePageVector<uint64_t> filter;
+};
+
+// What the search of one band found.
+struct BandResult {
+  std::vector<PackedPair> pairs;  // ascending, possibly repeated
+  BandStats stats;
+  absl::Status status;
+  bool crowded = false;
+};
+
+// How the search runs (see Search).
+struct SearchPlan {
+  const SignedCorpus& corpus;
+  uint64_t max_bucket;
+  Unit unit;
+  const GroupMembers* groups;
+  const BandSpill* spill;
+  bool in_memory;  // no spilled runs: buckets of one are counted, not sorted
+};
+
+// The pairs of one band: its entries in memory, merged with its spilled
+// runs when there are any.
+void SearchBand(const SearchPlan& plan, uint32_t band, const uint64_t* column, Space& space,
+                BandResult* out) {
+  const SignedCorpus& corpus = plan.corpus;
+  const size_t first = corpus.lean() ? corpus.first_resident() : 0;
+  // Expanded groups make pairs from buckets of one entry too.
+  const bool drop_singletons = plan.in_memory && plan.unit != Unit::kExpanded;
+  const Dropped dropped = CollectEntries(corpus, column, corpus.size() - first, first,
+                                         drop_singletons, space.filter, space.entries);
+  BucketPairer pairer(plan.max_bucket, &out->pairs, &out->stats, corpus, plan.unit, plan.groups);
+  SortEntries(space.entries, space.scratch, space.offsets);
+  if (plan.in_memory) {
+    out->stats.entries += dropped.weight;
+    out->stats.largest = std::max(out->stats.largest, dropped.largest);
+    out->crowded = dropped.largest > plan.max_bucket;
+    for (const BucketEntry& entry : space.entries) pairer.Push(entry);
+  } else {
+    BandMerger merger(*plan.spill, band, space.entries);
+    BucketEntry entry;
+    for (;;) {
+      absl::StatusOr<bool> more = merger.Next(&entry);
+      if (!more.ok()) out->status = more.status();
+      if (!more.ok() || !*more) break;
+      pairer.Push(entry);
+    }
+  }
+  pairer.Finish();
+  out->crowded |= pairer.crowded();
+  std::sort(out->pairs.begin(), out->pairs.end());
+}
+
 // The search itself (see FindSpilledCandidatePairs), over documents or
 // groups of identical sets (`unit`; `groups` for kExpanded). *crowded: for
 // kRepresentatives, whether a bucket held more than max_bucket documents.
@@ -189,99 +276,32 @@ absl::StatusOr<std::vector<PackedPair>> Search(const SignedCorpus& corpus, Bandi
                                                int threads, CandidateStats* stats,
                                                uint64_t max_bucket, Unit unit,
                                                const GroupMembers* groups, bool* crowded) {
-  const size_t n = corpus.size();
-  const uint32_t bands = banding.bands;
-  // The band keys of the documents held in memory, band by band: a lean
-  // corpus keeps them (from first_resident() on; the others are in its
-  // spill), otherwise they are computed here into `computed` (band * n +
-  // doc). Documents with no shingles have no keys (all kNoBandKey).
-  const size_t first = corpus.lean() ? corpus.first_resident() : 0;
-  const size_t resident = n - first;
-  std::vector<const uint64_t*> columns(bands);
   std::vector<uint64_t> computed;
-  if (corpus.lean()) {
-    for (uint32_t band = 0; band < bands; ++band) columns[band] = corpus.band_column(band).data();
-  } else {
-    computed.resize(n * bands);
-    ParallelFor(n, threads, [&](size_t begin, size_t end, int) {
-      std::vector<uint64_t> keys(bands);
-      for (size_t doc = begin; doc < end; ++doc) {
-        if (corpus.shingle_count(doc) == 0) {
-          std::fill(keys.begin(), keys.end(), kNoBandKey);
-        } else {
-          BandKeys(corpus.signature(doc), banding, absl::MakeSpan(keys));
-        }
-        for (uint32_t band = 0; band < bands; ++band) computed[band * n + doc] = keys[band];
-      }
-    });
-    for (uint32_t band = 0; band < bands; ++band) columns[band] = computed.data() + band * n;
-  }
+  const std::vector<const uint64_t*> columns = BandColumns(corpus, banding, threads, &computed);
   const BandSpill* spill = corpus.spill();
-  std::vector<std::vector<PackedPair>> band_pairs(bands);
-  std::vector<BandStats> band_stats(bands);
-  std::vector<absl::Status> band_status(bands);
-  // Working space per worker, kept from band to band, in huge pages (fresh
-  // small pages for every band cost a page fault per 4 KiB).
-  struct Space {
-    EntryVector entries, scratch;
-    HugePageVector<uint32_t> offsets;
-    HugePageVector<uint64_t> filter;
-  };
+  const SearchPlan plan{corpus, max_bucket, unit, groups, spill,
+                        spill == nullptr || spill->runs() == 0};
+  std::vector<BandResult> bands(banding.bands);
   std::vector<Space> spaces(std::max(1, threads));
-  // Without spilled runs, buckets of one make no pairs: they are counted,
-  // not collected and sorted.
-  const bool in_memory = spill == nullptr || spill->runs() == 0;
-  // Expanded groups make pairs from buckets of one entry too.
-  const bool drop_singletons = in_memory && unit != Unit::kExpanded;
-  std::vector<uint8_t> band_crowded(bands, 0);
-  ParallelFor(bands, threads, [&](size_t begin, size_t end, int worker) {
-    EntryVector& entries = spaces[worker].entries;
-    EntryVector& scratch = spaces[worker].scratch;
-    HugePageVector<uint32_t>& offsets = spaces[worker].offsets;
+  ParallelFor(bands.size(), threads, [&](size_t begin, size_t end, int worker) {
     for (size_t band = begin; band < end; ++band) {
-      const Dropped dropped = CollectEntries(corpus, columns[band], resident, first,
-                                             drop_singletons, spaces[worker].filter, entries);
-      BucketPairer pairer(max_bucket, &band_pairs[band], &band_stats[band], corpus, unit, groups);
-      if (in_memory) {
-        band_stats[band].entries += dropped.weight;
-        band_stats[band].largest = std::max(band_stats[band].largest, dropped.largest);
-        if (dropped.largest > max_bucket) band_crowded[band] = 1;
-        SortEntries(entries, scratch, offsets);
-        for (const BucketEntry& entry : entries) pairer.Push(entry);
-      } else {
-        SortEntries(entries, scratch, offsets);
-        BandMerger merger(*spill, static_cast<uint32_t>(band), entries);
-        BucketEntry entry;
-        for (;;) {
-          absl::StatusOr<bool> more = merger.Next(&entry);
-          if (!more.ok()) {
-            band_status[band] = more.status();
-            break;
-          }
-          if (!*more) break;
-          pairer.Push(entry);
-        }
-      }
-      pairer.Finish();
-      band_crowded[band] |= pairer.crowded();
-      std::sort(band_pairs[band].begin(), band_pairs[band].end());
+      SearchBand(plan, static_cast<uint32_t>(band), columns[band], spaces[worker], &bands[band]);
     }
   });
-  for (const absl::Status& status : band_status) {
-    if (!status.ok()) return status;
-  }
   std::vector<PackedPair> pairs;
-  for (uint32_t band = 0; band < bands; ++band) {
-    stats->bucket_entries += band_stats[band].entries;
-    stats->largest_bucket = std::max(stats->largest_bucket, band_stats[band].largest);
-    stats->oversized_buckets += band_stats[band].oversized;
-    pairs.insert(pairs.end(), band_pairs[band].begin(), band_pairs[band].end());
-    std::vector<PackedPair>().swap(band_pairs[band]);
+  *crowded = false;
+  for (BandResult& band : bands) {
+    if (!band.status.ok()) return band.status;
+    stats->bucket_entries += band.stats.entries;
+    stats->largest_bucket = std::max(stats->largest_bucket, band.stats.largest);
+    stats->oversized_buckets += band.stats.oversized;
+    *crowded |= band.crowded;
+    pairs.insert(pairs.end(), band.pairs.begin(), band.pairs.end());
+    std::vector<PackedPair>().swap(band.pairs);
   }
   std::sort(pairs.begin(), pairs.end());
   pairs.erase(std::unique(pairs.begin(), pairs.end()), pairs.end());
   stats->candidate_pairs = pairs.size();
-  *crowded = std::any_of(band_crowded.begin(), band_crowded.end(), [](uint8_t c) { return c; });
   return pairs;
 }
 
@@ -331,8 +351,6 @@ absl::StatusOr<GroupedCandidates> FindGroupedCandidatePairs(const SignedCorpus& 
   result.expanded = true;
   return result;
 }
-
-
 
 std::vector<PackedPair> FindCandidatePairs(const SignedCorpus& corpus, Banding banding, int threads,
                                            CandidateStats* stats, uint64_t max_bucket) {

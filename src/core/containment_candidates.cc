@@ -9,7 +9,7 @@
 
 #include "core/contract_internal.h"
 #include "kindred/band_spill.h"
-#include "kindred/parallel.h"
+#include "core/parallel.h"
 
 namespace kindred {
 namespace {

@@ -1,4 +1,4 @@
-#include "kindred/parallel.h"
+#include "core/parallel.h"
 
 #include <algorithm>
 #include <atomic>

@@ -1,4 +1,4 @@
-#include "kindred/reload.h"
+#include "core/reload.h"
 
 #include <fcntl.h>
 #include <unistd.h>
@@ -13,7 +13,7 @@
 #include "io/json_line.h"
 #include "kindred/banding.h"
 #include "kindred/errors.h"
-#include "kindred/parallel.h"
+#include "core/parallel.h"
 #include "kindred/shingles.h"
 #include "kindred/signer.h"
 

@@ -390,6 +390,31 @@ class Pipeline {
   }
 
   // Appends a signed batch to the corpus (calling thread, read order).
+  // Counts a committed document in the stats (and reports invalid UTF-8).
+  void CountDocument(const Document& doc, uint32_t set_size, uint32_t invalid_utf8) {
+    stats_->documents++;
+    stats_->bytes += doc.text.size();
+    if (set_size == 0) stats_->empty_documents++;
+    if (invalid_utf8 > 0) {
+      stats_->invalid_utf8_documents++;
+      stats_->invalid_utf8_sequences += invalid_utf8;
+      if (options_.on_invalid_utf8) options_.on_invalid_utf8(doc.id, invalid_utf8);
+    }
+  }
+
+  // After the first batch (of n documents): room for the documents the
+  // inputs' total size suggests (text bytes per document so far; markup
+  // makes this a slight overestimate, compression an underestimate).
+  void ReserveForInputs(size_t n) {
+    if (stats_->raw_bytes_total == 0 || n == 0) return;
+    const double per_document =
+        std::max(64.0, static_cast<double>(stats_->bytes) / static_cast<double>(n));
+    const auto expected = static_cast<size_t>(
+        static_cast<double>(stats_->raw_bytes_total) / per_document * 1.02 + 1024);
+    out_->Reserve(out_->size() + expected);
+    seen_.reserve(seen_.size() + expected);
+  }
+
   absl::Status Commit(Batch* batch) {
     const size_t n = batch->docs.size();
     const size_t first_doc = out_->size();
@@ -413,14 +438,7 @@ class Pipeline {
       TextStats& text = batch->text_stats[i];
       const uint32_t shingler_invalid = text.invalid_utf8;
       text.invalid_utf8 += doc.invalid_utf8;
-      stats_->documents++;
-      stats_->bytes += doc.text.size();
-      if (batch->set_sizes[i] == 0) stats_->empty_documents++;
-      if (text.invalid_utf8 > 0) {
-        stats_->invalid_utf8_documents++;
-        stats_->invalid_utf8_sequences += text.invalid_utf8;
-        if (options_.on_invalid_utf8) options_.on_invalid_utf8(doc.id, text.invalid_utf8);
-      }
+      CountDocument(doc, batch->set_sizes[i], text.invalid_utf8);
       const KeepFacts facts{doc.text.size(), doc.priority, doc.has_priority};
       const DocumentOrigin origin{doc.source.input, doc.source.line, doc.source.offset};
       if (grouped_) {
@@ -439,17 +457,7 @@ class Pipeline {
     if (grouped_) RememberTexts(*batch, first_doc);
     stats_->raw_bytes = reader_.raw_bytes_read();
     stats_->raw_bytes_total = reader_.raw_bytes_total();
-    if (batch->sequence == 0 && stats_->raw_bytes_total > 0 && n > 0) {
-      // After the first batch: room for the documents the inputs' total
-      // size suggests (text bytes per document so far; markup makes this a
-      // slight overestimate, compression an underestimate).
-      const double per_document =
-          std::max(64.0, static_cast<double>(stats_->bytes) / static_cast<double>(n));
-      const auto expected = static_cast<size_t>(
-          static_cast<double>(stats_->raw_bytes_total) / per_document * 1.02 + 1024);
-      out_->Reserve(out_->size() + expected);
-      seen_.reserve(seen_.size() + expected);
-    }
+    if (batch->sequence == 0) ReserveForInputs(n);
     if (options_.flush && out_->memory_bytes() > options_.flush_bytes) {
       if (absl::Status flushed = options_.flush(*out_); !flushed.ok()) return flushed;
       out_->Clear();

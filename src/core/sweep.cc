@@ -1,12 +1,15 @@
 #include "kindred/sweep.h"
 
-#include "core/group_members.h"
 #include <algorithm>
 #include <chrono>
 
-#include "kindred/parallel.h"
-#include "kindred/reload.h"
+#include "core/group_members.h"
+#include "core/verify_pairs.h"
+
+#include "core/parallel.h"
+#include "core/reload.h"
 #include "kindred/signer.h"
+#include "kindred/sweep_stages.h"
 #include "kindred/verify.h"
 
 namespace kindred {
@@ -16,43 +19,18 @@ double SecondsSince(std::chrono::steady_clock::time_point start) {
   return std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
 }
 
-// The scored pair (a, b); the sets and signatures are those of their
-// representatives (the documents themselves unless the corpus groups
-// identical sets).
-ScoredPair Score(const SignedCorpus& corpus, uint32_t a, uint32_t b, const Overlap& overlap) {
-  ScoredPair pair;
-  pair.a = a;
-  pair.b = b;
-  pair.shared = overlap.shared;
-  pair.size_a = overlap.size_a;
-  pair.size_b = overlap.size_b;
-  pair.jaccard = overlap.Jaccard();
-  pair.estimate = EstimateJaccard(corpus.signature(corpus.representative(a)),
-                                  corpus.signature(corpus.representative(b)));
-  return pair;
-}
-
-// A lower bound on the shared count a pair of sets of these sizes needs to
-// pass `match` (one below the exact need, so that rounding never stops a
-// pair that passes): for Jaccard, shared >= t (|A| + |B|) / (1 + t).
-uint32_t NeededShared(size_t size_a, size_t size_b, const MatchSettings& match) {
-  const double t = match.threshold;
-  const double exact = match.measure == Measure::kJaccard
-                           ? t * static_cast<double>(size_a + size_b) / (1 + t)
-                           : t * static_cast<double>(std::min(size_a, size_b));
-  return exact > 1 ? static_cast<uint32_t>(exact) - 1 : 0;
-}
-
-// Concatenates per-chunk results in chunk order.
-template <typename T>
-std::vector<T> Concatenate(std::vector<std::vector<T>>& parts) {
-  std::vector<T> all;
-  for (auto& part : parts) {
-    all.insert(all.end(), part.begin(), part.end());
-    std::vector<T>().swap(part);
+// The sets and signatures of a corpus's documents for verification: those
+// of their representatives (the documents themselves unless the corpus
+// groups identical sets).
+struct RepresentativeSets {
+  const SignedCorpus& corpus;
+  absl::Span<const uint64_t> shingles(uint32_t doc) const {
+    return corpus.shingles(corpus.representative(doc));
   }
-  return all;
-}
+  absl::Span<const uint32_t> signature(uint32_t doc) const {
+    return corpus.signature(corpus.representative(doc));
+  }
+};
 
 }  // namespace
 
@@ -60,49 +38,10 @@ bool UsesContainmentSearch(const MatchSettings& match) {
   return match.measure == Measure::kContainment && match.bands == 0;
 }
 
-bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b,
-                     const MatchSettings& match) {
-  if (shared == 0) return false;
-  if (match.measure == Measure::kContainment &&
-      std::min(size_a, size_b) < match.min_contained_size) {
-    return false;
-  }
-  const double denominator = match.measure == Measure::kJaccard
-                                 ? static_cast<double>(size_a) + size_b - shared
-                                 : static_cast<double>(std::min(size_a, size_b));
-  return shared >= match.threshold * denominator - 1e-9;
-}
-
 std::vector<ScoredPair> VerifyPairs(const SignedCorpus& corpus,
                                     absl::Span<const PackedPair> candidates,
                                     const MatchSettings& match, int threads) {
-  // Chunks of at most 16384 pairs, at least eight per thread when there
-  // are enough pairs (one large chunk per thread left the last one alone);
-  // the output is the same for any chunking.
-  const size_t per_chunk = std::clamp<size_t>(
-      candidates.size() / (8 * static_cast<size_t>(std::max(1, threads))), 256, size_t{1} << 14);
-  const size_t chunks = (candidates.size() + per_chunk - 1) / per_chunk;
-  std::vector<std::vector<ScoredPair>> parts(chunks);
-  ParallelFor(chunks, threads, [&](size_t begin, size_t end, int) {
-    for (size_t chunk = begin; chunk < end; ++chunk) {
-      const size_t stop = std::min(candidates.size(), (chunk + 1) * per_chunk);
-      for (size_t i = chunk * per_chunk; i < stop; ++i) {
-        const uint32_t a = PairFirst(candidates[i]);
-        const uint32_t b = PairSecond(candidates[i]);
-        const auto set_a = corpus.shingles(corpus.representative(a));
-        const auto set_b = corpus.shingles(corpus.representative(b));
-        Overlap overlap;
-        if (!MeasureOverlapAtLeast(set_a, set_b, NeededShared(set_a.size(), set_b.size(), match),
-                                   &overlap)) {
-          continue;
-        }
-        if (PassesThreshold(overlap.shared, overlap.size_a, overlap.size_b, match)) {
-          parts[chunk].push_back(Score(corpus, a, b, overlap));
-        }
-      }
-    }
-  });
-  return Concatenate(parts);
+  return internal::VerifyWith(candidates, RepresentativeSets{corpus}, match, threads);
 }
 
 std::vector<ScoredPair> ExhaustivePairs(const SignedCorpus& corpus, const MatchSettings& match,
@@ -126,21 +65,19 @@ std::vector<ScoredPair> ExhaustivePairs(const SignedCorpus& corpus, const MatchS
         }
         const Overlap overlap = MeasureOverlap(set_a, set_b);
         if (PassesThreshold(overlap.shared, overlap.size_a, overlap.size_b, match)) {
-          parts[a].push_back(Score(corpus, a, b, overlap));
+          parts[a].push_back(internal::Score(a, b, overlap, corpus.signature(a), corpus.signature(b)));
         }
       }
     }
   });
-  return Concatenate(parts);
+  return internal::Concatenate(parts);
 }
 
 namespace {
 
 Banding BandingFor(const SweepOptions& options) {
-  return options.match.bands != 0 ? Banding{options.match.bands, options.match.rows}
-                                  : ChooseBanding(options.match.threshold, options.signature.perms);
+  return ResolveBanding(options.match, options.signature.perms);
 }
-
 // Groups result->pairs and fills the counts of result->stats.
 void GroupAndCount(const SignedCorpus& corpus, const SweepOptions& options, SweepResult* result) {
   result->groups = GroupPairs(result->pairs, corpus.all_facts(), options.keep, options.grouping);
@@ -207,23 +144,73 @@ void MatchCorpus(const SignedCorpus& corpus, const SweepOptions& options, SweepR
   stats.match_seconds = SecondsSince(start);
 }
 
+namespace {
+
+// Whether a sweep keeps only band keys while signing and reads the
+// documents of candidate pairs again (see SweepOptions::keep_sets): an LSH
+// sweep by Jaccard banding, not asked to keep sets, whose inputs can all be
+// read again.
+bool SweepsLean(const CorpusReader& reader, const SweepOptions& options) {
+  const std::vector<ResolvedInput> inputs = reader.ResolvedInputs();
+  return !options.exhaustive && !options.keep_sets && !UsesContainmentSearch(options.match) &&
+         std::all_of(inputs.begin(), inputs.end(), [](const ResolvedInput& input) {
+           return !input.is_stdin || !input.read_path.empty();
+         });
+}
+
+// The corpus a lean sweep signs into: band keys of the sweep's banding,
+// spilled past half the memory budget, identical sets grouped and kept
+// while they take a quarter of it (kDefaultSetMemory without a budget).
+SignedCorpus LeanCorpus(const SweepOptions& options) {
+  SignedCorpus corpus = SignedCorpus::Lean(options.signature.perms, BandingFor(options));
+  if (options.memory > 0) corpus.SetSpill(options.memory / 2, options.scratch_dir);
+  corpus.GroupIdenticalSets(options.memory > 0 ? options.memory / 4 : kDefaultSetMemory);
+  return corpus;
+}
+
+// The pairs and groups of a lean corpus: candidates of the groups of
+// identical sets, the sets they need read again, verification, the groups
+// expanded to their members, grouping.
+absl::Status MatchLeanCorpus(const CorpusReader& reader, const SweepOptions& options,
+                             SweepResult* result) {
+  const auto start = std::chrono::steady_clock::now();
+  const int threads = std::max(1, options.sign.threads);
+  SweepStats& stats = result->stats;
+  SignedCorpus& corpus = result->corpus;
+  stats.banding = corpus.lean_banding();
+  if (const BandSpill* spill = corpus.spill(); spill != nullptr) {
+    stats.spilled_bytes = spill->bytes_written();
+    stats.spill_runs = spill->runs();
+  }
+  absl::StatusOr<GroupedCandidates> candidates = FindGroupedCandidatePairs(
+      corpus, stats.banding, threads, &stats.candidates, options.max_bucket);
+  if (!candidates.ok()) return candidates.status();
+  if (absl::Status status = ReloadShingles(reader.ResolvedInputs(), reader.options(),
+                                           options.signature,
+                                           RepresentativesToRead(corpus, candidates->pairs),
+                                           threads, &corpus);
+      !status.ok()) {
+    return status;
+  }
+  result->pairs = VerifyPairs(corpus, candidates->pairs, options.match, threads);
+  if (!candidates->expanded) {
+    result->pairs = ExpandGroups(corpus, GroupMembers(corpus), result->pairs, options.match);
+  }
+  GroupAndCount(corpus, options, result);
+  stats.match_seconds = SecondsSince(start);
+  return absl::OkStatus();
+}
+
+}  // namespace
+
 absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& options) {
   if (absl::Status status = options.signature.Validate(); !status.ok()) return status;
   if (absl::Status status = options.match.Validate(options.signature); !status.ok()) {
     return status;
   }
-  const std::vector<ResolvedInput> inputs = reader.ResolvedInputs();
-  const bool lean = !options.exhaustive && !options.keep_sets &&
-                    !UsesContainmentSearch(options.match) &&
-                    std::all_of(inputs.begin(), inputs.end(), [](const ResolvedInput& input) {
-                      return !input.is_stdin || !input.read_path.empty();
-                    });
+  const bool lean = SweepsLean(reader, options);
   SweepResult result(options.signature.perms);
-  if (lean) {
-    result.corpus = SignedCorpus::Lean(options.signature.perms, BandingFor(options));
-    if (options.memory > 0) result.corpus.SetSpill(options.memory / 2, options.scratch_dir);
-    result.corpus.GroupIdenticalSets(options.memory > 0 ? options.memory / 4 : kDefaultSetMemory);
-  }
+  if (lean) result.corpus = LeanCorpus(options);
   const auto start = std::chrono::steady_clock::now();
   if (absl::Status status =
           SignCorpus(reader, options.signature, options.sign, &result.corpus, &result.stats.sign);
@@ -233,33 +220,9 @@ absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& o
   result.stats.sign_seconds = SecondsSince(start);
   if (!lean) {
     MatchCorpus(result.corpus, options, &result);
-    return result;
-  }
-  const auto match_start = std::chrono::steady_clock::now();
-  const int threads = std::max(1, options.sign.threads);
-  SweepStats& stats = result.stats;
-  stats.banding = result.corpus.lean_banding();
-  if (const BandSpill* spill = result.corpus.spill(); spill != nullptr) {
-    stats.spilled_bytes = spill->bytes_written();
-    stats.spill_runs = spill->runs();
-  }
-  absl::StatusOr<GroupedCandidates> candidates = FindGroupedCandidatePairs(
-      result.corpus, stats.banding, threads, &stats.candidates, options.max_bucket);
-  if (!candidates.ok()) return candidates.status();
-  if (absl::Status status = ReloadShingles(reader.ResolvedInputs(), reader.options(),
-                                           options.signature,
-                                           RepresentativesToRead(result.corpus, candidates->pairs),
-                                           threads, &result.corpus);
-      !status.ok()) {
+  } else if (absl::Status status = MatchLeanCorpus(reader, options, &result); !status.ok()) {
     return status;
   }
-  result.pairs = VerifyPairs(result.corpus, candidates->pairs, options.match, threads);
-  if (!candidates->expanded) {
-    result.pairs = ExpandGroups(result.corpus, GroupMembers(result.corpus), result.pairs,
-                                options.match);
-  }
-  GroupAndCount(result.corpus, options, &result);
-  stats.match_seconds = SecondsSince(match_start);
   return result;
 }
 

@@ -1,5 +1,7 @@
 #include "kindred/verify.h"
 
+#include "core/verify_pairs.h"
+
 #include <algorithm>
 
 namespace kindred {
@@ -127,5 +129,30 @@ bool MeasureOverlapAtLeast(absl::Span<const uint64_t> a, absl::Span<const uint64
   return BoundedMergeCount(a.data(), a.data() + a.size(), b.data(), b.data() + b.size(), needed,
                            &out->shared);
 }
+
+bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b,
+                     const MatchSettings& match) {
+  if (shared == 0) return false;
+  if (match.measure == Measure::kContainment &&
+      std::min(size_a, size_b) < match.min_contained_size) {
+    return false;
+  }
+  const double denominator = match.measure == Measure::kJaccard
+                                 ? static_cast<double>(size_a) + size_b - shared
+                                 : static_cast<double>(std::min(size_a, size_b));
+  return shared >= match.threshold * denominator - 1e-9;
+}
+
+namespace internal {
+
+uint32_t NeededShared(size_t size_a, size_t size_b, const MatchSettings& match) {
+  const double t = match.threshold;
+  const double exact = match.measure == Measure::kJaccard
+                           ? t * static_cast<double>(size_a + size_b) / (1 + t)
+                           : t * static_cast<double>(std::min(size_a, size_b));
+  return exact > 1 ? static_cast<uint32_t>(exact) - 1 : 0;
+}
+
+}  // namespace internal
 
 }  // namespace kindred

@@ -8,7 +8,7 @@
 #include "kindred/banding.h"
 #include "kindred/candidates.h"
 #include "kindred/containment_candidates.h"
-#include "kindred/parallel.h"
+#include "core/parallel.h"
 #include "kindred/signer.h"
 #include "kindred/verify.h"
 

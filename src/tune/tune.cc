@@ -10,7 +10,7 @@
 #include "absl/strings/str_format.h"
 #include "kindred/candidates.h"
 #include "kindred/errors.h"
-#include "kindred/parallel.h"
+#include "core/parallel.h"
 #include "kindred/signed_corpus.h"
 #include "kindred/signer.h"
 #include "kindred/verify.h"

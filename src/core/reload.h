@@ -9,8 +9,8 @@
 // two readings is an error, never a silent mix of two versions.
 //
 // Thread-safety: a plain function; uses `threads` worker threads inside.
-#ifndef KINDRED_RELOAD_H_
-#define KINDRED_RELOAD_H_
+#ifndef KINDRED_CORE_RELOAD_H_
+#define KINDRED_CORE_RELOAD_H_
 
 #include <cstdint>
 #include <vector>
@@ -36,4 +36,4 @@ absl::Status ReloadShingles(const std::vector<ResolvedInput>& inputs, const Inpu
 
 }  // namespace kindred
 
-#endif  // KINDRED_RELOAD_H_
+#endif  // KINDRED_CORE_RELOAD_H_

@@ -5,8 +5,8 @@
 // when all are done. Results are deterministic as long as the function writes
 // each index's result to its own slot; the chunking never affects what is
 // computed, only who computes it.
-#ifndef KINDRED_PARALLEL_H_
-#define KINDRED_PARALLEL_H_
+#ifndef KINDRED_CORE_PARALLEL_H_
+#define KINDRED_CORE_PARALLEL_H_
 
 #include <cstddef>
 #include <functional>
@@ -26,4 +26,4 @@ void ParallelFor(size_t n, int threads,
 
 }  // namespace kindred
 
-#endif  // KINDRED_PARALLEL_H_
+#endif  // KINDRED_CORE_PARALLEL_H_

@@ -1,0 +1,72 @@
+// The frame shared by the serialized records (src/core/RECORDS.md): a
+// 24-byte header (magic "KNDR", a 4-byte record tag, version, flags, payload
+// length), the payload of little-endian fixed-width fields, and an XXH3-64
+// checksum of everything before it.
+#ifndef KINDRED_CORE_RECORD_CODEC_H_
+#define KINDRED_CORE_RECORD_CODEC_H_
+
+#include <cstdint>
+#include <string>
+#include <string_view>
+
+#include "absl/status/status.h"
+
+namespace kindred::internal {
+
+inline constexpr uint32_t kRecordVersion = 1;
+inline constexpr size_t kRecordHeaderBytes = 24;
+inline constexpr size_t kRecordTrailerBytes = 8;
+
+// Builds one record: payload fields appended in order, then Finish().
+class RecordBuilder {
+ public:
+  // `tag`: four ASCII characters naming the record type.
+  explicit RecordBuilder(std::string_view tag);
+  void U8(uint8_t value) { bytes_.push_back(static_cast<char>(value)); }
+  void U32(uint32_t value);
+  void U64(uint64_t value);
+  void F64(double value);  // its IEEE 754 bits
+  void Bytes(std::string_view value);  // u32 length, then the bytes
+  void Reserve(size_t payload_bytes) { bytes_.reserve(bytes_.size() + payload_bytes + 8); }
+  // The whole record (header with the payload length, payload, checksum).
+  std::string Finish() &&;
+
+ private:
+  std::string bytes_;
+};
+
+// Reads one record's payload field by field. A read past the payload's end
+// fails (returns false) and makes status() report truncation.
+class RecordParser {
+ public:
+  // `what` names the record type in messages ("document table").
+  RecordParser(std::string_view bytes, std::string_view tag, std::string_view what);
+  // The frame's own check (magic, tag, version, length, checksum), done by
+  // the constructor. When not OK, every read fails.
+  const absl::Status& status() const { return status_; }
+  bool U8(uint8_t* value);
+  bool U32(uint32_t* value);
+  bool U64(uint64_t* value);
+  bool F64(double* value);
+  bool Bytes(std::string* value);
+  // Bytes of payload not yet read.
+  size_t remaining() const { return payload_.size() - position_; }
+  // A BadInput status "<what>: <message>" (for a check of the values read).
+  absl::Status Corrupt(std::string_view message) const;
+  // OK when the frame was intact, every read succeeded and the whole
+  // payload was read.
+  absl::Status Finish() const;
+
+ private:
+  bool Take(size_t count, const char** data);
+
+  std::string_view what_;
+  std::string_view payload_;
+  size_t position_ = 0;
+  bool overrun_ = false;
+  absl::Status status_;
+};
+
+}  // namespace kindred::internal
+
+#endif  // KINDRED_CORE_RECORD_CODEC_H_

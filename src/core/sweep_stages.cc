@@ -1,0 +1,178 @@
+// The stages of a sweep over records (declared in sweep_stages.h).
+#include "kindred/sweep_stages.h"
+
+#include <algorithm>
+#include <utility>
+
+#include "absl/strings/str_cat.h"
+#include "core/verify_pairs.h"
+#include "kindred/errors.h"
+
+namespace kindred {
+namespace {
+
+// Signs the whole shard into a corpus that keeps every set and signature.
+absl::StatusOr<SignedCorpus> SignWhole(CorpusReader& reader, const SignatureSettings& settings,
+                                       const ShardOptions& options, SignStats* stats) {
+  if (absl::Status status = settings.Validate(); !status.ok()) return status;
+  SignedCorpus corpus(settings.perms);
+  SignOptions sign = options.sign;
+  sign.flush = nullptr;
+  if (absl::Status status = SignCorpus(reader, settings, sign, &corpus, stats); !status.ok()) {
+    return status;
+  }
+  if (corpus.size() > uint64_t{UINT32_MAX} + 1 - options.first_document) {
+    return LimitExceeded("a shard's documents are numbered beyond 2^32");
+  }
+  return corpus;
+}
+
+// The pairs of one bucket (documents ascending) into *pairs, and its counts.
+void PairBucket(absl::Span<const BandKeyRecord> bucket, uint64_t max_bucket,
+                std::vector<PackedPair>* pairs, CandidateStats* stats) {
+  stats->bucket_entries += bucket.size();
+  stats->largest_bucket = std::max<uint64_t>(stats->largest_bucket, bucket.size());
+  if (bucket.size() > max_bucket) {
+    ++stats->oversized_buckets;
+    for (size_t y = 1; y < bucket.size(); ++y) {
+      pairs->push_back(PackPair(bucket[0].document, bucket[y].document));
+    }
+    return;
+  }
+  for (size_t x = 0; x < bucket.size(); ++x) {
+    for (size_t y = x + 1; y < bucket.size(); ++y) {
+      pairs->push_back(PackPair(bucket[x].document, bucket[y].document));
+    }
+  }
+}
+
+}  // namespace
+
+Banding ResolveBanding(const MatchSettings& match, uint32_t perms) {
+  return match.bands != 0 ? Banding{match.bands, match.rows}
+                          : ChooseBanding(match.threshold, perms);
+}
+
+absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSettings& settings,
+                                      Banding banding, const ShardOptions& options) {
+  if (banding.bands == 0 || banding.rows == 0 || banding.slots() > settings.perms) {
+    return InvalidRequest(absl::StrCat("banding ", banding.bands, "x", banding.rows,
+                                       " does not fit signatures of ", settings.perms, " slots"));
+  }
+  SignedShard shard;
+  absl::StatusOr<SignedCorpus> corpus = SignWhole(reader, settings, options, &shard.stats);
+  if (!corpus.ok()) return corpus.status();
+  shard.documents.first_document = options.first_document;
+  shard.documents.documents.resize(corpus->size());
+  shard.sets = SetStore(settings.perms);
+  std::vector<uint64_t> keys(banding.bands);
+  for (size_t doc = 0; doc < corpus->size(); ++doc) {
+    const uint32_t number = options.first_document + static_cast<uint32_t>(doc);
+    DocumentRecord& record = shard.documents.documents[doc];
+    record.id = corpus->id(doc);
+    record.facts = corpus->facts(doc);
+    record.origin = corpus->origin(doc);
+    record.origin.input += options.first_input;
+    record.shingle_count = corpus->shingle_count(doc);
+    if (options.keep_sets) shard.sets.Add(number, corpus->shingles(doc), corpus->signature(doc));
+    if (record.shingle_count == 0) continue;
+    BandKeys(corpus->signature(doc), banding, absl::MakeSpan(keys));
+    for (uint32_t band = 0; band < banding.bands; ++band) {
+      if (keys[band] != kNoBandKey) shard.band_keys.records.push_back({band, keys[band], number});
+    }
+  }
+  SortBandKeys(&shard.band_keys);
+  return shard;
+}
+
+absl::StatusOr<SetStore> ReadShardSets(CorpusReader& reader, const SignatureSettings& settings,
+                                       const ShardOptions& options,
+                                       absl::Span<const uint32_t> documents) {
+  SignStats stats;
+  absl::StatusOr<SignedCorpus> corpus = SignWhole(reader, settings, options, &stats);
+  if (!corpus.ok()) return corpus.status();
+  SetStore sets(settings.perms);
+  for (const uint32_t number : documents) {
+    if (number < options.first_document) continue;
+    const uint64_t doc = number - options.first_document;
+    if (doc >= corpus->size()) continue;
+    sets.Add(number, corpus->shingles(doc), corpus->signature(doc));
+  }
+  return sets;
+}
+
+CandidatePairs FindPartitionCandidates(const BandKeyTable& table, uint64_t max_bucket) {
+  CandidatePairs out;
+  const std::vector<BandKeyRecord>& records = table.records;
+  for (size_t begin = 0; begin < records.size();) {
+    size_t end = begin + 1;
+    while (end < records.size() && records[end].band == records[begin].band &&
+           records[end].key == records[begin].key) {
+      ++end;
+    }
+    PairBucket(absl::MakeConstSpan(records).subspan(begin, end - begin), max_bucket, &out.pairs,
+               &out.stats);
+    begin = end;
+  }
+  std::sort(out.pairs.begin(), out.pairs.end());
+  out.pairs.erase(std::unique(out.pairs.begin(), out.pairs.end()), out.pairs.end());
+  out.stats.candidate_pairs = out.pairs.size();
+  return out;
+}
+
+absl::StatusOr<std::vector<ScoredPair>> VerifyCandidates(absl::Span<const PackedPair> candidates,
+                                                         const SetStore& sets,
+                                                         const MatchSettings& match, int threads) {
+  for (const PackedPair pair : candidates) {
+    for (const uint32_t doc : {PairFirst(pair), PairSecond(pair)}) {
+      if (!sets.contains(doc)) {
+        return InvalidRequest(
+            absl::StrCat("verification: document ", doc, " of a candidate pair has no set"));
+      }
+    }
+  }
+  return internal::VerifyWith(candidates, sets, match, std::max(1, threads));
+}
+
+std::vector<Group> GroupDocuments(const DocumentTable& table, absl::Span<const ScoredPair> pairs,
+                                  KeepPolicy keep, Grouping grouping) {
+  std::vector<KeepFacts> facts;
+  facts.reserve(table.documents.size());
+  for (const DocumentRecord& doc : table.documents) facts.push_back(doc.facts);
+  return GroupPairs(pairs, facts, keep, grouping);
+}
+
+void WriteSweepRecords(const SweepRecordOptions& options, absl::Span<const ScoredPair> pairs,
+                       absl::Span<const Group> groups, absl::Span<const std::string> ids,
+                       absl::Span<const KeepFacts> facts, absl::Span<const uint8_t> empty,
+                       SweepRecords* out) {
+  if (options.pairs) WritePairRecords(options.format, pairs, ids, &out->pairs);
+  if (options.groups) {
+    WriteGroupRecords(options.format, groups, ids, options.keep, &out->groups, options.grouping);
+  }
+  if (options.decisions) {
+    WriteDecisionRecords(options.format, groups, pairs, ids, empty, options.keep, &out->decisions,
+                         facts, options.grouping);
+  }
+}
+
+SweepRecords FormatSweepRecords(const DocumentTable& table, absl::Span<const ScoredPair> pairs,
+                                absl::Span<const Group> groups,
+                                const SweepRecordOptions& options) {
+  std::vector<std::string> ids;
+  std::vector<KeepFacts> facts;
+  std::vector<uint8_t> empty;
+  ids.reserve(table.documents.size());
+  facts.reserve(table.documents.size());
+  empty.reserve(table.documents.size());
+  for (const DocumentRecord& doc : table.documents) {
+    ids.push_back(doc.id);
+    facts.push_back(doc.facts);
+    empty.push_back(doc.shingle_count == 0);
+  }
+  SweepRecords out;
+  WriteSweepRecords(options, pairs, groups, ids, facts, empty, &out);
+  return out;
+}
+
+}  // namespace kindred
