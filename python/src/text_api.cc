@@ -7,7 +7,7 @@
 #include <mutex>
 
 #include "convert.h"
-#include "kindred/parallel.h"
+#include "core/parallel.h"
 #include "kindred/shingles.h"
 #include "kindred/signer.h"
 #include "kindred/verify.h"
