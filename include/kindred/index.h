@@ -96,6 +96,7 @@ struct IndexOpenOptions {
 
 namespace index {
 class TailTables;
+class ContainmentLookupCache;
 }  // namespace index
 
 class IndexReader {
@@ -190,6 +191,11 @@ class IndexReader {
   void Candidates(absl::Span<const uint64_t> keys, std::vector<uint32_t>* out,
                   uint64_t max_bucket = 0, uint64_t* crowded = nullptr) const;
 
+  // The containment search tables built for this reader's queries, kept
+  // between them (index/containment_lookup.h; used by MatchAgainstIndex).
+  // Thread-safe.
+  index::ContainmentLookupCache& containment_lookups() const { return *containment_lookups_; }
+
   // Calls visit(key, doc) for every band key of every live document under
   // the current banding, segment by segment (keys ascending within each).
   void ForEachBandKey(const std::function<void(uint64_t key, uint32_t doc)>& visit) const;
@@ -236,6 +242,7 @@ class IndexReader {
   // read by ReadAppended) are looked up through tail_, not one by one.
   size_t tail_from_ = 0;
   std::unique_ptr<index::TailTables> tail_;
+  std::unique_ptr<index::ContainmentLookupCache> containment_lookups_;
   // Adds the segments from `from` (at least tail_from_) on to tail_.
   void ExtendTail(size_t from);
 };

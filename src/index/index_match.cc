@@ -58,9 +58,9 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
   std::mutex error_mutex;
   absl::Status error;
   uint64_t crowded_total = 0;
-  std::unique_ptr<index::ContainmentLookup> containment;
+  std::shared_ptr<const index::ContainmentLookup> containment;
   if (UsesContainmentSearch(options.match)) {
-    containment = index::ContainmentLookup::Create(reader, options.match);
+    containment = reader.containment_lookups().For(reader, options.match);
   }
   ParallelFor(batch.size(), options.threads, [&](size_t begin, size_t end, int) {
     uint64_t crowded = 0;

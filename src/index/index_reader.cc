@@ -5,6 +5,7 @@
 #include "absl/strings/str_format.h"
 #include "index/codec.h"
 #include "index/commit_area.h"
+#include "index/containment_lookup.h"
 #include "index/format.h"
 #include "index/segment.h"
 #include "index/tail_tables.h"
@@ -31,6 +32,7 @@ absl::StatusOr<std::unique_ptr<IndexReader>> IndexReader::Open(const std::string
     reader->path_ = path;
     reader->mapping_ = *std::move(mapping);
     reader->file_ = reader->mapping_->bytes();
+    reader->containment_lookups_ = std::make_unique<index::ContainmentLookupCache>();
     status = reader->Load();
     if (status.ok()) {
       reader->reserved_bytes_ = reader->CountReservedBytes();
