@@ -39,7 +39,9 @@ absl::StatusOr<std::unique_ptr<IndexService>> IndexService::Open(const ServiceOp
     if (!committer.ok()) return committer.status();
     service->committer_ = std::move(*committer);
   }
-  auto reader = IndexReader::Open(options.path);
+  IndexOpenOptions open_options;
+  open_options.many_queries = true;
+  auto reader = IndexReader::Open(options.path, open_options);
   if (!reader.ok()) return reader.status();
   service->reader_ = std::move(*reader);
   auto signer = TextSigner::Create(service->reader_->settings().signature);
