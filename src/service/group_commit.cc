@@ -8,6 +8,18 @@
 #include "service/service_errors.h"
 
 namespace kindred::service {
+namespace {
+
+// The error of every request of a group whose segment could not be
+// written: a full disk stays DiskFull, any other failure is WriteFailed.
+absl::Status WriteFailure(const absl::Status& written) {
+  const ErrorKind kind =
+      KindOf(written) == ErrorKind::kDiskFull ? ErrorKind::kDiskFull : ErrorKind::kWriteFailed;
+  return WithKind(Annotate(written, "writing the index failed, nothing of this request was added"),
+                  kind);
+}
+
+}  // namespace
 
 struct GroupCommitter::Pending {
   const SignedCorpus* batch = nullptr;
@@ -101,9 +113,8 @@ bool GroupCommitter::Resolve(Pending* p, SignedCorpus* combined, std::vector<int
   for (size_t i = 0; i < batch.size(); ++i) {
     live[i] = reader.FindLive(batch.id(i));
     if (live[i].has_value() && p->policy == DuplicateIdPolicy::kError) {
-      p->status = Refuse(
-          Refusal::kDuplicateId,
-          absl::StrCat("id already indexed: \"", batch.id(i), "\" (on_duplicate is error)"));
+      p->status = Refuse(Refusal::kDuplicateId, absl::StrCat("id already indexed: \"", batch.id(i),
+                                                             "\" (on_duplicate is error)"));
       return false;
     }
   }
@@ -130,8 +141,7 @@ void GroupCommitter::CommitGroup(const std::vector<Pending*>& group,
   }
   if (writer_ == nullptr) {
     for (Pending* p : group) {
-      p->status =
-          Refuse(Refusal::kUnavailable, "the index cannot be opened for writing again");
+      p->status = Refuse(Refusal::kUnavailable, "the index cannot be opened for writing again");
     }
     return;
   }
@@ -161,13 +171,7 @@ void GroupCommitter::CommitGroup(const std::vector<Pending*>& group,
     auto result = writer_->Append(combined, DuplicateIdPolicy::kReplace);
     if (!result.ok()) {
       writer_.reset();  // a failed writer refuses further appends: open again next time
-      // A full disk stays DiskFull; any other failure is WriteFailed.
-      const ErrorKind kind = KindOf(result.status()) == ErrorKind::kDiskFull
-                                 ? ErrorKind::kDiskFull
-                                 : ErrorKind::kWriteFailed;
-      const absl::Status failed = WithKind(
-          Annotate(result.status(), "writing the index failed, nothing of this request was added"),
-          kind);
+      const absl::Status failed = WriteFailure(result.status());
       for (Pending* p : members) p->status = failed;
       return;
     }
