@@ -6,10 +6,12 @@
 #include <unistd.h>
 
 #include <algorithm>
+#include <filesystem>
 #include <catch2/catch.hpp>
 #include <tuple>
 
 #include "absl/strings/str_cat.h"
+#include "kindred/banding.h"
 #include "kindred/index.h"
 #include "kindred/index_match.h"
 #include "kindred/index_writer.h"
@@ -408,6 +410,67 @@ TEST_CASE("matches against an index are confirmed exactly", "[index]") {
     REQUIRE(m.QueryInOther() == Approx(double(both.size()) / q.size()));
     REQUIRE(m.OtherInQuery() == Approx(double(both.size()) / o.size()));
     if (!m.in_index) REQUIRE(m.other < m.query);
+  }
+}
+
+}  // namespace
+}  // namespace kindred
+
+namespace kindred {
+namespace {
+
+// The ids of the candidates `reader` proposes for every document of `all`.
+std::vector<std::vector<std::string>> CandidateIds(const IndexReader& reader,
+                                                   const SignedCorpus& all) {
+  std::vector<std::vector<std::string>> out;
+  std::vector<uint64_t> keys(reader.bands());
+  for (size_t i = 0; i < all.size(); ++i) {
+    BandKeys(all.signature(i), Banding{reader.bands(), reader.rows()}, absl::MakeSpan(keys));
+    std::vector<uint32_t> docs;
+    reader.Candidates(keys, &docs);
+    std::vector<std::string> ids;
+    for (uint32_t doc : docs) ids.emplace_back(reader.id(doc));
+    std::sort(ids.begin(), ids.end());
+    out.push_back(std::move(ids));
+  }
+  return out;
+}
+
+TEST_CASE("a file of many mid-sized segments answers as its compacted copy", "[reader]") {
+  TempDir dir;
+  const std::string path = dir.File("many.kin");
+  const IndexSettings settings = testing::TestIndexSettings();
+  auto texts = MakeTexts(3, 12 * 70, 20, "m");
+  const SignedCorpus all = SignTexts(texts, settings.signature);
+  REQUIRE(CreateIndex(path, settings, Slice(all, 0, 70)).ok());
+  {
+    auto writer = IndexWriter::Open(path);
+    REQUIRE(writer.ok());
+    for (size_t k = 1; k < 12; ++k) {  // segments of 70 documents: not small, more than 8
+      REQUIRE((*writer)->Append(Slice(all, 70 * k, 70 * k + 70), DuplicateIdPolicy::kError).ok());
+    }
+    const SignedCorpus replacement =
+        SignTexts({{texts[5].first, texts[800].second}}, settings.signature);
+    REQUIRE((*writer)->Append(replacement, DuplicateIdPolicy::kReplace).ok());
+  }
+  const std::string copy = dir.File("one.kin");
+  std::filesystem::copy_file(path, copy);
+  REQUIRE(CompactIndex(copy).ok());
+  IndexOpenOptions options;
+  options.many_queries = GENERATE(false, true);
+  auto many = IndexReader::Open(path, options);
+  auto one = IndexReader::Open(copy);
+  REQUIRE(many.ok());
+  REQUIRE(one.ok());
+  REQUIRE((*many)->segments().size() == 13);
+  REQUIRE((*one)->segments().size() == 1);
+  REQUIRE(CandidateIds(**many, all) == CandidateIds(**one, all));
+  for (const auto& [id, text] : texts) {
+    auto a = (*many)->FindLive(id);
+    auto b = (*one)->FindLive(id);
+    REQUIRE(a.has_value());
+    REQUIRE(b.has_value());
+    REQUIRE((*many)->shingle_count(*a) == (*one)->shingle_count(*b));
   }
 }
 

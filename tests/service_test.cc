@@ -9,7 +9,10 @@
 #include "testlib/fault_file_system.h"
 #include "kindred/index.h"
 #include "kindred/index_writer.h"
+#include "kindred/errors.h"
 #include "service/group_commit.h"
+#include "service/service_errors.h"
+#include "service/service_replies.h"
 #include "service/service_request.h"
 #include "testlib/index_fixture.h"
 #include "testlib/temp_dir.h"
@@ -64,7 +67,7 @@ TEST_CASE("group commit: duplicate ids per policy", "[service]") {
   REQUIRE(committer.ok());
   SignedCorpus old = Slice(f.all, 5, 7);  // ids already indexed
   auto refused = (*committer)->Submit(old, DuplicateIdPolicy::kError);
-  REQUIRE(absl::IsAlreadyExists(refused.status()));
+  REQUIRE(service::RefusalOf(refused.status()) == service::Refusal::kDuplicateId);
   auto skipped = (*committer)->Submit(old, DuplicateIdPolicy::kSkip);
   REQUIRE(skipped.ok());
   REQUIRE(skipped->actions == std::vector<AddAction>{AddAction::kSkipped, AddAction::kSkipped});
@@ -80,11 +83,13 @@ TEST_CASE("group commit: a full disk fails the group and keeps the index", "[ser
   Fixture f;
   const std::string before = testing::ReadFile(f.path);
   FaultFileSystem full(DefaultFileSystem(), FaultKind::kDiskFull, 0);
-  auto committer = GroupCommitter::Open(f.path, 1000, [] {}, IndexWriteOptions{&full});
+  auto committer = GroupCommitter::Open(
+      f.path, 1000, [] {}, IndexWriteOptions{&full});
   REQUIRE(committer.ok());
   SignedCorpus batch = Slice(f.all, 10, 12);
   auto failed = (*committer)->Submit(batch, DuplicateIdPolicy::kError);
-  REQUIRE(absl::IsAborted(failed.status()));
+  REQUIRE(KindOf(failed.status()) == ErrorKind::kDiskFull);
+  REQUIRE_FALSE(service::RefusalOf(failed.status()).has_value());
   // The disk stays full: the next request fails too, the service goes on.
   auto again = (*committer)->Submit(batch, DuplicateIdPolicy::kError);
   REQUIRE_FALSE(again.ok());
@@ -110,23 +115,41 @@ TEST_CASE("request parsing: fields, limits, nesting, invalid UTF-8", "[service]"
   REQUIRE(parsed->on_duplicate == DuplicateIdPolicy::kSkip);
   REQUIRE(parsed->max_bucket == 0);
   REQUIRE(parsed->marked_spans);
-  REQUIRE(absl::IsResourceExhausted(
-      service::ParseJsonRequest(R"({"documents":[{"id":"a","text":"0123456789x"}]})", limits)
-          .status()));
-  REQUIRE(absl::IsResourceExhausted(
-      service::ParseJsonRequest(
-          R"({"documents":[{"id":"a","text":""},{"id":"b","text":""},{"id":"c","text":""}]})",
-          limits)
-          .status()));
-  REQUIRE(absl::IsInvalidArgument(
-      service::ParseJsonRequest(R"({"documents":[[[[[[[[[[[]]]]]]]]]]]})", limits).status()));
-  REQUIRE(absl::IsInvalidArgument(
-      service::ParseJsonRequest(R"({"documents":[],"colour":1})", limits).status()));
+  REQUIRE(
+      KindOf(service::ParseJsonRequest(R"({"documents":[{"id":"a","text":"0123456789x"}]})", limits)
+                 .status()) == ErrorKind::kLimitExceeded);
+  REQUIRE(
+      KindOf(
+          service::ParseJsonRequest(
+              R"({"documents":[{"id":"a","text":""},{"id":"b","text":""},{"id":"c","text":""}]})",
+              limits)
+              .status()) == ErrorKind::kLimitExceeded);
+  REQUIRE(KindOf(service::ParseJsonRequest(R"({"documents":[[[[[[[[[[[]]]]]]]]]]]})", limits)
+                     .status()) == ErrorKind::kBadInput);
+  REQUIRE(KindOf(service::ParseJsonRequest(R"({"documents":[],"colour":1})", limits).status()) ==
+          ErrorKind::kBadInput);
   // U+FFFD stands for each ill-formed sequence, as in JSON Lines inputs.
-  auto repaired = service::ParseJsonRequest("{\"documents\":[{\"id\":\"a\",\"text\":\"\xff\"}]}",
-                                            limits);
+  auto repaired =
+      service::ParseJsonRequest("{\"documents\":[{\"id\":\"a\",\"text\":\"\xff\"}]}", limits);
   REQUIRE(repaired.ok());
   REQUIRE(repaired->documents[0].text == "\xEF\xBF\xBD");
+}
+
+TEST_CASE("refusals: kind kept through a status, none on other errors", "[service]") {
+  const absl::Status refused = service::Refuse(service::Refusal::kReadOnly, "read-only");
+  REQUIRE(absl::IsFailedPrecondition(refused));
+  REQUIRE(refused.message() == "read-only");
+  REQUIRE(service::RefusalOf(refused) == service::Refusal::kReadOnly);
+  REQUIRE(service::RefusalOf(Annotate(refused, "add")) == service::Refusal::kReadOnly);
+  REQUIRE_FALSE(service::RefusalOf(BadInput("x")).has_value());
+  REQUIRE_FALSE(service::RefusalOf(absl::UnavailableError("x")).has_value());
+}
+
+TEST_CASE("replies: one JSON object per line, strings escaped", "[service]") {
+  REQUIRE(service::ErrorReply("bad \"x\"\n", "bad_request") ==
+          "{\"error\":\"bad \\\"x\\\"\\u000a\",\"kind\":\"bad_request\"}\n");
+  REQUIRE(service::HealthReply(147, true) ==
+          "{\"status\":\"ok\",\"live\":147,\"allow_add\":true}\n");
 }
 
 }  // namespace

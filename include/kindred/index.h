@@ -92,10 +92,18 @@ struct SegmentInfo {
 
 struct IndexOpenOptions {
   FileSystem* file_system = DefaultFileSystem();  // borrowed
+  // Many queries will follow (a service): segments after the first 8 are
+  // looked up through in-memory tables built at open (16 bytes per band
+  // key; for a million documents in many segments, seconds of opening and
+  // about 240 MB), so a file of many mid-sized segments answers about as
+  // fast as its compacted copy. Otherwise only the small segments at the
+  // end are (those group commits write).
+  bool many_queries = false;
 };
 
 namespace index {
 class TailTables;
+class ContainmentLookupCache;
 }  // namespace index
 
 class IndexReader {
@@ -190,6 +198,11 @@ class IndexReader {
   void Candidates(absl::Span<const uint64_t> keys, std::vector<uint32_t>* out,
                   uint64_t max_bucket = 0, uint64_t* crowded = nullptr) const;
 
+  // The containment search tables built for this reader's queries, kept
+  // between them (index/containment_lookup.h; used by MatchAgainstIndex).
+  // Thread-safe.
+  index::ContainmentLookupCache& containment_lookups() const { return *containment_lookups_; }
+
   // Calls visit(key, doc) for every band key of every live document under
   // the current banding, segment by segment (keys ascending within each).
   void ForEachBandKey(const std::function<void(uint64_t key, uint32_t doc)>& visit) const;
@@ -232,10 +245,12 @@ class IndexReader {
   uint32_t rows_ = 0;
   // With a banding other than the stored one: all (key, doc), sorted.
   std::vector<std::pair<uint64_t, uint32_t>> memory_keys_;
-  // Segments tail_from_.. (the small ones at the end when opened, and all
-  // read by ReadAppended) are looked up through tail_, not one by one.
+  // Segments tail_from_.. (when opened: the small ones at the end, and with
+  // many_queries all after the first 8; and all read by ReadAppended) are
+  // looked up through tail_, not one by one.
   size_t tail_from_ = 0;
   std::unique_ptr<index::TailTables> tail_;
+  std::unique_ptr<index::ContainmentLookupCache> containment_lookups_;
   // Adds the segments from `from` (at least tail_from_) on to tail_.
   void ExtendTail(size_t from);
 };

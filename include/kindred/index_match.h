@@ -15,6 +15,7 @@
 #define KINDRED_INDEX_MATCH_H_
 
 #include <cstdint>
+#include <string>
 #include <vector>
 
 #include "absl/status/statusor.h"
@@ -86,6 +87,14 @@ const char* ContainedWay(const IndexMatch& match, double threshold);
 void WriteMatchRecords(RecordFormat format, absl::Span<const IndexMatch> matches,
                        const IndexReader& reader, const SignedCorpus& batch, std::string* out,
                        const MatchSettings* match = nullptr);
+
+// The columns of those match records, in order.
+std::vector<std::string> MatchRecordColumns(const MatchSettings* match = nullptr);
+// The fields of one match record, in MatchRecordColumns(match) order, into
+// `writer` (a row or a nested list item of a larger record; the caller
+// ends it, after any fields of its own).
+void WriteMatchFields(const IndexMatch& m, const IndexReader& reader, const SignedCorpus& batch,
+                      const MatchSettings* match, RecordWriter* writer);
 
 // The live documents of an index as a signed corpus (index order; shingle
 // sets verified), with numbers[i] = the index document number of entry i.

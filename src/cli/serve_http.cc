@@ -4,11 +4,12 @@
 
 #include "absl/strings/numbers.h"
 #include "absl/strings/str_cat.h"
-#include "absl/strings/str_format.h"
 #include "cli/serve_pool.h"
 #include "cli/socket_info.h"
 #include "core/plural.h"
-#include "kindred/records.h"
+#include "kindred/errors.h"
+#include "service/service_errors.h"
+#include "service/service_replies.h"
 
 namespace kindred::cli {
 
@@ -28,37 +29,55 @@ constexpr Route kRoutes[] = {{"/", "GET"},        {"/v1/health", "GET"}, {"/v1/i
                              {"/metrics", "GET"}, {"/v1/check", "POST"}, {"/v1/add", "POST"}};
 
 void SetError(httplib::Response& res, int status, std::string_view kind, std::string_view message) {
-  std::string body = "{\"error\":";
-  AppendJsonString(&body, message);
-  body += ",\"kind\":";
-  AppendJsonString(&body, kind);
-  body += "}\n";
   res.status = status;
-  res.set_content(body, "application/json");
+  res.set_content(service::ErrorReply(message, kind), "application/json");
 }
 
-// The HTTP status and kind of a service error.
-void SetStatusError(httplib::Response& res, const absl::Status& status) {
-  const std::string message(status.message());
-  switch (status.code()) {
-    case absl::StatusCode::kInvalidArgument:
-      return SetError(res, 400, "bad_request", message);
-    case absl::StatusCode::kAlreadyExists:
-      return SetError(res, 409, "duplicate_id", message);
-    case absl::StatusCode::kResourceExhausted:
-      return SetError(res, 413, "too_large", message);
-    case absl::StatusCode::kFailedPrecondition:
-      return SetError(res, 405, "read_only", message);
-    case absl::StatusCode::kUnavailable:
-      res.set_header("Retry-After", "1");
-      return SetError(res, 503, "unavailable", message);
-    case absl::StatusCode::kAborted:
-      return SetError(res, 500, "write_failed", message);
-    case absl::StatusCode::kDataLoss:
-      return SetError(res, 500, "index_damaged", message);
-    default:
-      return SetError(res, 500, "internal", message);
+// The HTTP status and "kind" of an error of the service core: a refusal of
+// the service (service_errors.h), else by the library's error kind
+// (kindred/errors.h). The one place where errors become HTTP statuses.
+struct HttpError {
+  int status;
+  std::string_view kind;
+};
+
+HttpError HttpErrorFor(const absl::Status& status) {
+  if (const auto refusal = service::RefusalOf(status); refusal.has_value()) {
+    switch (*refusal) {
+      case service::Refusal::kDuplicateId:
+        return {409, "duplicate_id"};
+      case service::Refusal::kReadOnly:
+        return {405, "read_only"};
+      case service::Refusal::kUnavailable:
+        return {503, "unavailable"};
+    }
   }
+  switch (KindOf(status)) {
+    case ErrorKind::kInvalidRequest:
+    case ErrorKind::kBadInput:
+      return {400, "bad_request"};
+    case ErrorKind::kLimitExceeded:
+      return {413, "too_large"};
+    case ErrorKind::kIndexBusy:
+      return {503, "unavailable"};
+    case ErrorKind::kDiskFull:
+    case ErrorKind::kWriteFailed:
+      return {500, "write_failed"};
+    case ErrorKind::kIndexDamaged:
+      return {500, "index_damaged"};
+    case ErrorKind::kSettingsMismatch:
+      return {500, "settings_mismatch"};
+    case ErrorKind::kInputChanged:
+    case ErrorKind::kInternal:
+      break;
+  }
+  return {500, "internal"};
+}
+
+void SetStatusError(httplib::Response& res, const absl::Status& status) {
+  const HttpError error = HttpErrorFor(status);
+  if (error.status == 503) res.set_header("Retry-After", "1");
+  SetError(res, error.status, error.kind, std::string(status.message()));
 }
 
 // Compares in time that depends on the lengths only, not on where the
@@ -234,10 +253,8 @@ void HttpServer::Impl::Install() {
   });
   server.Get("/v1/health", [this](const httplib::Request&, httplib::Response& res) {
     const service::ServiceCounts counts = service->counts();
-    res.set_content(
-        absl::StrFormat("{\"status\":\"ok\",\"live\":%u,\"allow_add\":%s}\n", counts.live_documents,
-                        service->allows_add() ? "true" : "false"),
-        "application/json");
+    res.set_content(service::HealthReply(counts.live_documents, service->allows_add()),
+                    "application/json");
   });
   server.Get("/metrics", [this](const httplib::Request&, httplib::Response& res) {
     res.set_content(metrics.Render(service->counts()), "text/plain; version=0.0.4");

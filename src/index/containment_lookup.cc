@@ -16,27 +16,56 @@ bool ContainmentLookup::UsesStoredKeys(const IndexReader& reader, const MatchSet
 }
 
 std::unique_ptr<ContainmentLookup> ContainmentLookup::Create(const IndexReader& reader,
-                                                             const MatchSettings& match) {
+                                                             const MatchSettings& match,
+                                                             const ContainmentLookup* earlier) {
   const IndexSettings& settings = reader.settings();
-  const ContainmentKeys& stored_keys = settings.containment;
   const bool stored = UsesStoredKeys(reader, match);
   const ContainmentKeys keys =
-      stored ? stored_keys : ContainmentKeysFor(match.threshold, match.min_contained_size);
+      stored ? settings.containment : ContainmentKeysFor(match.threshold, match.min_contained_size);
   std::unique_ptr<ContainmentLookup> lookup(
-      new ContainmentLookup(reader, PlanOf(keys, settings.signature.perms), stored));
+      new ContainmentLookup(reader, keys, PlanOf(keys, settings.signature.perms), stored));
   if (stored) return lookup;
-  // No stored keys for this query: every live document's, in memory.
-  IndexSettings memory_settings = settings;
-  memory_settings.containment = keys;
-  std::vector<uint64_t> doc_keys;
-  for (uint32_t doc = 0; doc < reader.document_count(); ++doc) {
-    if (!reader.is_live(doc)) continue;
-    DocumentKeys(memory_settings, lookup->plan_.get(), reader.signature(doc),
-                 reader.shingle_count(doc), &doc_keys);
-    for (uint64_t key : doc_keys) lookup->memory_.emplace_back(key, doc);
+  // No stored keys for this query: every document's, in memory.
+  const uint32_t count = reader.document_count();
+  if (earlier == nullptr || earlier->stored_ || earlier->covered_ > count) {
+    auto table = std::make_shared<KeyTable>();
+    lookup->AddKeys(0, count, table.get());
+    std::sort(table->begin(), table->end());
+    lookup->base_ = std::move(table);
+    lookup->covered_ = count;
+    return lookup;
   }
-  std::sort(lookup->memory_.begin(), lookup->memory_.end());
+  // The earlier base table is shared; the keys added since join its recent
+  // part, which is merged into a new base once it is no longer small.
+  KeyTable added;
+  lookup->AddKeys(earlier->covered_, count, &added);
+  std::sort(added.begin(), added.end());
+  KeyTable recent(earlier->recent_.size() + added.size());
+  std::merge(earlier->recent_.begin(), earlier->recent_.end(), added.begin(), added.end(),
+             recent.begin());
+  const size_t small = std::max<size_t>(size_t{1} << 16, earlier->base_->size() / 16);
+  if (recent.size() <= small) {
+    lookup->base_ = earlier->base_;
+    lookup->recent_ = std::move(recent);
+  } else {
+    auto merged = std::make_shared<KeyTable>(earlier->base_->size() + recent.size());
+    std::merge(earlier->base_->begin(), earlier->base_->end(), recent.begin(), recent.end(),
+               merged->begin());
+    lookup->base_ = std::move(merged);
+  }
+  lookup->covered_ = count;
   return lookup;
+}
+
+void ContainmentLookup::AddKeys(uint32_t from, uint32_t to, KeyTable* table) const {
+  IndexSettings memory_settings = reader_.settings();
+  memory_settings.containment = keys_;
+  std::vector<uint64_t> doc_keys;
+  for (uint32_t doc = from; doc < to; ++doc) {
+    DocumentKeys(memory_settings, plan_.get(), reader_.signature(doc), reader_.shingle_count(doc),
+                 &doc_keys);
+    for (uint64_t key : doc_keys) table->emplace_back(key, doc);
+  }
 }
 
 void ContainmentLookup::Lookup(uint64_t key, uint64_t max_bucket, std::vector<uint32_t>* out,
@@ -46,15 +75,44 @@ void ContainmentLookup::Lookup(uint64_t key, uint64_t max_bucket, std::vector<ui
     reader_.Candidates(keys, out, max_bucket, crowded);
     return;
   }
-  const auto [lo, hi] =
-      std::equal_range(memory_.begin(), memory_.end(), std::make_pair(key, uint32_t{0}),
-                       [](const auto& x, const auto& y) { return x.first < y.first; });
-  const bool capped = max_bucket > 0 && static_cast<uint64_t>(hi - lo) > max_bucket;
+  const auto range = [key](const KeyTable& table) {
+    return std::equal_range(table.begin(), table.end(), std::make_pair(key, uint32_t{0}),
+                            [](const auto& x, const auto& y) { return x.first < y.first; });
+  };
+  // Documents of the base table come before the recent ones, so the first
+  // live one found is the first live one of the bucket.
+  const auto ranges = {range(*base_), range(recent_)};
+  uint64_t size = 0;
+  for (const auto& [lo, hi] : ranges) size += hi - lo;
+  const bool capped = max_bucket > 0 && size > max_bucket;
   if (capped && crowded != nullptr) ++*crowded;
-  for (auto it = lo; it != hi; ++it) {
-    out->push_back(it->second);  // only live documents are in the table
-    if (capped) break;
+  for (const auto& [lo, hi] : ranges) {
+    for (auto it = lo; it != hi; ++it) {
+      if (!reader_.is_live(it->second)) continue;
+      out->push_back(it->second);
+      if (capped) return;
+    }
   }
+}
+
+std::shared_ptr<const ContainmentLookup> ContainmentLookupCache::For(const IndexReader& reader,
+                                                                     const MatchSettings& match) {
+  std::lock_guard<std::mutex> lock(mu_);
+  std::shared_ptr<const ContainmentLookup>& slot =
+      lookups_[std::make_pair(match.threshold, match.min_contained_size)];
+  if (slot != nullptr && slot->stored() != ContainmentLookup::UsesStoredKeys(reader, match)) {
+    slot = nullptr;  // the reader's banding changed
+  }
+  if (slot == nullptr || (!slot->stored() && slot->covered() < reader.document_count())) {
+    slot = ContainmentLookup::Create(reader, match, slot.get());
+    tables_built_ += !slot->stored();
+  }
+  return slot;
+}
+
+uint64_t ContainmentLookupCache::tables_built() const {
+  std::lock_guard<std::mutex> lock(mu_);
+  return tables_built_;
 }
 
 void ContainmentLookup::Candidates(absl::Span<const uint32_t> signature, uint32_t shingle_count,

@@ -58,9 +58,9 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
   std::mutex error_mutex;
   absl::Status error;
   uint64_t crowded_total = 0;
-  std::unique_ptr<index::ContainmentLookup> containment;
+  std::shared_ptr<const index::ContainmentLookup> containment;
   if (UsesContainmentSearch(options.match)) {
-    containment = index::ContainmentLookup::Create(reader, options.match);
+    containment = reader.containment_lookups().For(reader, options.match);
   }
   ParallelFor(batch.size(), options.threads, [&](size_t begin, size_t end, int) {
     uint64_t crowded = 0;
@@ -122,10 +122,7 @@ const char* ContainedWay(const IndexMatch& match, double threshold) {
   return id_in_match ? "id_in_match" : "match_in_id";
 }
 
-void WriteMatchRecords(RecordFormat format, absl::Span<const IndexMatch> matches,
-                       const IndexReader& reader, const SignedCorpus& batch, std::string* out,
-                       const MatchSettings* match) {
-  const bool contained = match != nullptr && match->measure == Measure::kContainment;
+std::vector<std::string> MatchRecordColumns(const MatchSettings* match) {
   std::vector<std::string> columns = {"id",
                                       "match",
                                       "match_in",
@@ -136,20 +133,33 @@ void WriteMatchRecords(RecordFormat format, absl::Span<const IndexMatch> matches
                                       "shared",
                                       "shingles_id",
                                       "shingles_match"};
-  if (contained) columns.push_back("contained");
-  RecordWriter writer(format, columns, out);
+  if (match != nullptr && match->measure == Measure::kContainment) columns.push_back("contained");
+  return columns;
+}
+
+void WriteMatchFields(const IndexMatch& m, const IndexReader& reader, const SignedCorpus& batch,
+                      const MatchSettings* match, RecordWriter* writer) {
+  writer->String(batch.id(m.query));
+  writer->String(m.in_index ? reader.id(m.other) : std::string_view(batch.id(m.other)));
+  writer->String(m.in_index ? "index" : "batch");
+  writer->Similarity(m.jaccard);
+  writer->Similarity(m.estimate);
+  writer->Similarity(m.QueryInOther());
+  writer->Similarity(m.OtherInQuery());
+  writer->Number(m.shared);
+  writer->Number(m.query_size);
+  writer->Number(m.other_size);
+  if (match != nullptr && match->measure == Measure::kContainment) {
+    writer->String(ContainedWay(m, match->threshold));
+  }
+}
+
+void WriteMatchRecords(RecordFormat format, absl::Span<const IndexMatch> matches,
+                       const IndexReader& reader, const SignedCorpus& batch, std::string* out,
+                       const MatchSettings* match) {
+  RecordWriter writer(format, MatchRecordColumns(match), out);
   for (const IndexMatch& m : matches) {
-    writer.String(batch.id(m.query));
-    writer.String(m.in_index ? reader.id(m.other) : std::string_view(batch.id(m.other)));
-    writer.String(m.in_index ? "index" : "batch");
-    writer.Similarity(m.jaccard);
-    writer.Similarity(m.estimate);
-    writer.Similarity(m.QueryInOther());
-    writer.Similarity(m.OtherInQuery());
-    writer.Number(m.shared);
-    writer.Number(m.query_size);
-    writer.Number(m.other_size);
-    if (contained) writer.String(ContainedWay(m, match->threshold));
+    WriteMatchFields(m, reader, batch, match, &writer);
     writer.EndRow();
   }
 }

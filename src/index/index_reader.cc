@@ -5,6 +5,7 @@
 #include "absl/strings/str_format.h"
 #include "index/codec.h"
 #include "index/commit_area.h"
+#include "index/containment_lookup.h"
 #include "index/format.h"
 #include "index/segment.h"
 #include "index/tail_tables.h"
@@ -31,18 +32,25 @@ absl::StatusOr<std::unique_ptr<IndexReader>> IndexReader::Open(const std::string
     reader->path_ = path;
     reader->mapping_ = *std::move(mapping);
     reader->file_ = reader->mapping_->bytes();
+    reader->containment_lookups_ = std::make_unique<index::ContainmentLookupCache>();
     status = reader->Load();
     if (status.ok()) {
       reader->reserved_bytes_ = reader->CountReservedBytes();
       // The small segments at the end (those group commits write) go to
-      // the tail tables; larger ones are looked up one by one.
+      // the tail tables; larger ones are looked up one by one, but for a
+      // reader of many queries at most kDirectSegments of them (the first):
+      // a file of many mid-sized segments (built under --memory, or grown
+      // by many adds) would otherwise cost a search per segment and band
+      // key. The tables cost memory (16 bytes per band key) and time at
+      // open that a compacted file does not.
       constexpr uint32_t kTailSegmentDocuments = 64;
+      constexpr size_t kDirectSegments = 8;
       size_t from = reader->segment_views_.size();
       while (from > 0 && reader->segment_views_[from - 1].doc_count() < kTailSegmentDocuments) {
         --from;
       }
-      reader->tail_from_ = from;
-      reader->ExtendTail(from);
+      reader->tail_from_ = options.many_queries ? std::min(from, kDirectSegments) : from;
+      reader->ExtendTail(reader->tail_from_);
       return reader;
     }
     if (!absl::IsDataLoss(status)) break;

@@ -4,8 +4,22 @@
 
 #include "absl/container/flat_hash_set.h"
 #include "absl/strings/str_cat.h"
+#include "kindred/errors.h"
+#include "service/service_errors.h"
 
 namespace kindred::service {
+namespace {
+
+// The error of every request of a group whose segment could not be
+// written: a full disk stays DiskFull, any other failure is WriteFailed.
+absl::Status WriteFailure(const absl::Status& written) {
+  const ErrorKind kind =
+      KindOf(written) == ErrorKind::kDiskFull ? ErrorKind::kDiskFull : ErrorKind::kWriteFailed;
+  return WithKind(Annotate(written, "writing the index failed, nothing of this request was added"),
+                  kind);
+}
+
+}  // namespace
 
 struct GroupCommitter::Pending {
   const SignedCorpus* batch = nullptr;
@@ -45,7 +59,7 @@ absl::StatusOr<CommitOutcome> GroupCommitter::Submit(const SignedCorpus& batch,
   pending.batch = &batch;
   pending.policy = policy;
   std::unique_lock<std::mutex> lock(mu_);
-  if (stopping_) return absl::UnavailableError("the service is stopping");
+  if (stopping_) return Refuse(Refusal::kUnavailable, "the service is stopping");
   queue_.push_back(&pending);
   wake_.notify_one();
   done_.wait(lock, [&pending] { return pending.done; });
@@ -99,8 +113,8 @@ bool GroupCommitter::Resolve(Pending* p, SignedCorpus* combined, std::vector<int
   for (size_t i = 0; i < batch.size(); ++i) {
     live[i] = reader.FindLive(batch.id(i));
     if (live[i].has_value() && p->policy == DuplicateIdPolicy::kError) {
-      p->status = absl::AlreadyExistsError(
-          absl::StrCat("id already indexed: \"", batch.id(i), "\" (on_duplicate is error)"));
+      p->status = Refuse(Refusal::kDuplicateId, absl::StrCat("id already indexed: \"", batch.id(i),
+                                                             "\" (on_duplicate is error)"));
       return false;
     }
   }
@@ -127,7 +141,7 @@ void GroupCommitter::CommitGroup(const std::vector<Pending*>& group,
   }
   if (writer_ == nullptr) {
     for (Pending* p : group) {
-      p->status = absl::UnavailableError("the index cannot be opened for writing again");
+      p->status = Refuse(Refusal::kUnavailable, "the index cannot be opened for writing again");
     }
     return;
   }
@@ -157,11 +171,8 @@ void GroupCommitter::CommitGroup(const std::vector<Pending*>& group,
     auto result = writer_->Append(combined, DuplicateIdPolicy::kReplace);
     if (!result.ok()) {
       writer_.reset();  // a failed writer refuses further appends: open again next time
-      for (Pending* p : members) {
-        p->status = absl::AbortedError(
-            absl::StrCat("writing the index failed, nothing of this request was added: ",
-                         result.status().message()));
-      }
+      const absl::Status failed = WriteFailure(result.status());
+      for (Pending* p : members) p->status = failed;
       return;
     }
     appended = std::move(*result);

@@ -61,7 +61,10 @@ class GroupCommitter {
   ~GroupCommitter();
 
   // Blocks until `batch` is durable in the index or refused. `batch` is
-  // borrowed until then.
+  // borrowed until then. Errors: refusals (service_errors.h) kDuplicateId
+  // (an id already indexed under DuplicateIdPolicy::kError) and kUnavailable
+  // (stopping, or the writer cannot be opened again); DiskFull or
+  // WriteFailed (writing failed: nothing of the batch was added).
   absl::StatusOr<CommitOutcome> Submit(const SignedCorpus& batch, DuplicateIdPolicy policy);
 
   // Segments written and requests committed so far.

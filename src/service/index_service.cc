@@ -3,12 +3,11 @@
 #include <chrono>
 
 #include "absl/cleanup/cleanup.h"
-#include "absl/strings/match.h"
+#include "absl/container/flat_hash_set.h"
 #include "absl/strings/str_cat.h"
-#include "absl/strings/str_format.h"
-#include "kindred/explain.h"
 #include "kindred/records.h"
-#include "kindred/shingles.h"
+#include "service/service_errors.h"
+#include "service/service_replies.h"
 
 namespace kindred::service {
 namespace {
@@ -17,55 +16,13 @@ double SecondsSince(std::chrono::steady_clock::time_point start) {
   return std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
 }
 
-// The byte spans of the query document's text whose shingles `other` holds.
-void AppendMarkedSpans(const std::vector<ShingleText>& texts, absl::Span<const uint64_t> other,
-                       uint64_t seed, std::string* out) {
-  *out += ",\"marked_spans\":[";
-  bool first = true;
-  for (const TextSpan& span : SharedSpans(texts, other, seed)) {
-    absl::StrAppend(out, first ? "" : ",", "[", span.begin, ",", span.end, "]");
-    first = false;
+// The first id that `documents` repeats, if any.
+std::optional<std::string_view> RepeatedId(absl::Span<const TextDocument> documents) {
+  absl::flat_hash_set<std::string_view> seen;
+  for (const TextDocument& doc : documents) {
+    if (!seen.insert(doc.id).second) return doc.id;
   }
-  *out += "]";
-}
-
-// JSON Lines match records -> the elements of a JSON array, each record
-// with its marked spans when asked for.
-absl::Status RecordsToArray(std::string_view lines, absl::Span<const IndexMatch> matches,
-                            const ServiceRequest& request, const IndexReader& reader,
-                            const SignedCorpus& batch, std::string* out) {
-  std::vector<std::optional<std::vector<ShingleText>>> texts(batch.size());
-  std::vector<uint64_t> stored;
-  size_t i = 0;
-  for (size_t begin = 0; begin < lines.size(); ++i) {
-    size_t end = lines.find('\n', begin);
-    if (end == std::string_view::npos) end = lines.size();
-    std::string_view record = lines.substr(begin, end - begin);
-    begin = end + 1;
-    if (i > 0) *out += ",";
-    if (!request.marked_spans) {
-      *out += record;
-      continue;
-    }
-    const IndexMatch& m = matches[i];
-    if (!texts[m.query].has_value()) {
-      auto made = ShingleTexts(request.documents[m.query].text, reader.settings().signature);
-      if (!made.ok()) return made.status();
-      texts[m.query] = std::move(*made);
-    }
-    // m.other is an index document number, or a batch one.
-    absl::Span<const uint64_t> other;
-    if (m.in_index) {
-      if (absl::Status read = reader.ReadShingles(m.other, &stored); !read.ok()) return read;
-      other = stored;
-    } else {
-      other = batch.shingles(m.other);
-    }
-    *out += record.substr(0, record.size() - 1);  // without the closing brace
-    AppendMarkedSpans(*texts[m.query], other, reader.settings().signature.seed, out);
-    *out += "}";
-  }
-  return absl::OkStatus();
+  return std::nullopt;
 }
 
 }  // namespace
@@ -82,7 +39,9 @@ absl::StatusOr<std::unique_ptr<IndexService>> IndexService::Open(const ServiceOp
     if (!committer.ok()) return committer.status();
     service->committer_ = std::move(*committer);
   }
-  auto reader = IndexReader::Open(options.path);
+  IndexOpenOptions open_options;
+  open_options.many_queries = true;
+  auto reader = IndexReader::Open(options.path, open_options);
   if (!reader.ok()) return reader.status();
   service->reader_ = std::move(*reader);
   auto signer = TextSigner::Create(service->reader_->settings().signature);
@@ -139,13 +98,14 @@ absl::StatusOr<std::shared_ptr<const IndexReader>> IndexService::ReaderFor(
 absl::Status IndexService::SignAndMatch(const ServiceRequest& request,
                                         std::optional<DuplicateIdPolicy> policy,
                                         SignedCorpus* batch, std::vector<IndexMatch>* matches,
-                                        std::string* records) {
+                                        RecordWriter* reply) {
   auto match = ResolveQueryMatch(reader_->settings(), request.query);
   if (!match.ok()) return match.status();
+  if (auto repeated = RepeatedId(request.documents); repeated.has_value()) {
+    return Refuse(Refusal::kDuplicateId,
+                  absl::StrCat("duplicate id \"", std::string(*repeated), "\""));
+  }
   if (absl::Status signed_ok = signer_->Sign(request.documents, batch); !signed_ok.ok()) {
-    if (absl::StrContains(signed_ok.message(), "duplicate id")) {
-      return absl::AlreadyExistsError(signed_ok.message());
-    }
     return signed_ok;
   }
   std::shared_lock<std::shared_mutex> lock(state_mu_);
@@ -156,9 +116,7 @@ absl::Status IndexService::SignAndMatch(const ServiceRequest& request,
   auto found = MatchForQuery(**reader, *batch, policy, options);
   if (!found.ok()) return found.status();
   *matches = std::move(*found);
-  std::string lines;
-  WriteMatchRecords(RecordFormat::kJsonLines, *matches, **reader, *batch, &lines, &*match);
-  return RecordsToArray(lines, *matches, request, **reader, *batch, records);
+  return WriteMatchList(*matches, request, **reader, *batch, *match, reply);
 }
 
 std::unique_ptr<SignedCorpus> IndexService::TakeCorpus() {
@@ -187,7 +145,8 @@ absl::StatusOr<std::string> IndexService::Check(const ServiceRequest& request) {
   absl::Cleanup give = [this, &corpus] { GiveCorpus(std::move(corpus)); };
   SignedCorpus& batch = *corpus;
   std::vector<IndexMatch> matches;
-  std::string reply = "{\"matches\":[";
+  std::string out;
+  RecordWriter reply(RecordFormat::kJsonLines, CheckReplyColumns(), &out);
   if (absl::Status status = SignAndMatch(request, std::nullopt, &batch, &matches, &reply);
       !status.ok()) {
     return status;
@@ -196,51 +155,44 @@ absl::StatusOr<std::string> IndexService::Check(const ServiceRequest& request) {
   for (size_t i = 0; i < batch.size(); ++i) empty += batch.shingle_count(i) == 0;
   documents_checked_ += batch.size();
   matches_ += matches.size();
-  absl::StrAppendFormat(&reply, "],\"checked\":%u,\"matched\":%u,\"empty\":%u,\"seconds\":%.6f}\n",
-                        batch.size(), CountMatchedUploads(matches, batch.size()), empty,
-                        SecondsSince(start));
-  return reply;
+  reply.Number(batch.size());
+  reply.Number(CountMatchedUploads(matches, batch.size()));
+  reply.Number(empty);
+  reply.Fixed(SecondsSince(start), 6);
+  reply.EndRow();
+  return out;
 }
 
 absl::StatusOr<std::string> IndexService::Add(const ServiceRequest& request) {
   if (committer_ == nullptr) {
-    return absl::FailedPreconditionError(
-        "this service is read-only: start it with --allow-add to accept adds");
+    return Refuse(Refusal::kReadOnly,
+                  "this service is read-only: start it with --allow-add to accept adds");
   }
   const auto start = std::chrono::steady_clock::now();
   std::unique_ptr<SignedCorpus> corpus = TakeCorpus();
   absl::Cleanup give = [this, &corpus] { GiveCorpus(std::move(corpus)); };
   SignedCorpus& batch = *corpus;
   std::vector<IndexMatch> matches;
-  std::string reply = "{\"matches\":[";
+  std::string out;
+  RecordWriter reply(RecordFormat::kJsonLines, AddReplyColumns(), &out);
   if (absl::Status status = SignAndMatch(request, request.on_duplicate, &batch, &matches, &reply);
       !status.ok()) {
     return status;
   }
   auto outcome = committer_->Submit(batch, request.on_duplicate);
   if (!outcome.ok()) return outcome.status();
-  reply += "],\"documents\":[";
-  uint32_t counts[3] = {0, 0, 0};
-  for (size_t i = 0; i < batch.size(); ++i) {
-    const AddAction action = outcome->actions[i];
-    counts[static_cast<int>(action)]++;
-    if (i > 0) reply += ",";
-    reply += "{\"id\":";
-    AppendJsonString(&reply, batch.id(i));
-    absl::StrAppend(&reply, ",\"action\":\"", AddActionName(action),
-                    "\",\"number\":", outcome->numbers[i], "}");
-  }
-  documents_added_ +=
-      counts[static_cast<int>(AddAction::kAdded)] + counts[static_cast<int>(AddAction::kReplaced)];
+  WriteAddedDocuments(batch, *outcome, &reply);
+  for (AddAction action : outcome->actions) documents_added_ += action != AddAction::kSkipped;
   matches_ += matches.size();
-  absl::StrAppendFormat(&reply, "],\"added\":%u,\"replaced\":%u,\"skipped\":%u,\"segment\":%s,",
-                        counts[static_cast<int>(AddAction::kAdded)],
-                        counts[static_cast<int>(AddAction::kReplaced)],
-                        counts[static_cast<int>(AddAction::kSkipped)],
-                        outcome->wrote_segment ? absl::StrCat(outcome->segment) : "null");
-  absl::StrAppendFormat(&reply, "\"group_requests\":%u,\"seconds\":%.6f}\n",
-                        outcome->group_requests, SecondsSince(start));
-  return reply;
+  if (outcome->wrote_segment) {
+    reply.Number(outcome->segment);
+  } else {
+    reply.Null();
+  }
+  reply.Number(outcome->group_requests);
+  reply.Fixed(SecondsSince(start), 6);
+  reply.EndRow();
+  return out;
 }
 
 }  // namespace kindred::service

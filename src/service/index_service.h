@@ -14,12 +14,13 @@
 // commit the readers catch up (IndexReader::ReadAppended) under an exclusive
 // lock; queries hold a shared one.
 //
-// Status codes of Check and Add: InvalidArgument (a bad option),
-// AlreadyExists (an id repeated in the request, or already indexed with
-// on_duplicate "error"), FailedPrecondition (adds not allowed),
-// Aborted (writing failed; nothing of the request added), Unavailable
-// (stopping, or the writer could not be opened again), DataLoss (a stored
-// shingle set fails its checksum).
+// Errors of Check and Add carry a library error kind (kindred/errors.h) or
+// a refusal of the service (service_errors.h): InvalidRequest or BadInput
+// (a bad option), refusal kDuplicateId (an id repeated in the request, or
+// already indexed with on_duplicate "error"), kReadOnly (adds not
+// allowed), kUnavailable (stopping, or the writer could not be opened
+// again), DiskFull or WriteFailed (writing failed; nothing of the request
+// added), IndexDamaged (a stored shingle set fails its checksum).
 //
 // Thread-safety: all methods may be called concurrently.
 #ifndef KINDRED_SERVICE_INDEX_SERVICE_H_
@@ -38,6 +39,7 @@
 #include "absl/status/statusor.h"
 #include "kindred/index.h"
 #include "kindred/index_query.h"
+#include "kindred/records.h"
 #include "service/group_commit.h"
 #include "service/service_request.h"
 
@@ -94,11 +96,11 @@ class IndexService {
   IndexService() = default;
   // The reader for `match` (stored or other banding); requires the shared lock.
   absl::StatusOr<std::shared_ptr<const IndexReader>> ReaderFor(const MatchSettings& match);
-  // Signs and matches `request` under the shared lock; appends the match
-  // records to *records.
+  // Signs and matches `request` under the shared lock; writes the reply's
+  // "matches" field into *reply.
   absl::Status SignAndMatch(const ServiceRequest& request, std::optional<DuplicateIdPolicy> policy,
                             SignedCorpus* batch, std::vector<IndexMatch>* matches,
-                            std::string* records);
+                            RecordWriter* reply);
   void CatchUp();
   // A cleared corpus for one request, from the pool (building a corpus
   // costs its first storage blocks, about a millisecond; a cleared one

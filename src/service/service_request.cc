@@ -3,6 +3,7 @@
 #include <simdjson.h>
 
 #include "absl/strings/str_cat.h"
+#include "kindred/errors.h"
 #include "kindred/text.h"
 
 namespace kindred::service {
@@ -12,7 +13,7 @@ using simdjson::dom::element;
 using simdjson::dom::element_type;
 
 absl::Status Malformed(std::string_view what) {
-  return absl::InvalidArgumentError(std::string(what));
+  return BadInput(what);
 }
 
 absl::StatusOr<std::string> IdOf(element value, size_t index) {
@@ -34,7 +35,7 @@ absl::Status ReadDocuments(element list, const RequestLimits& limits, ServiceReq
     return Malformed("\"documents\": expected an array");
   }
   if (array.size() > limits.max_documents) {
-    return absl::ResourceExhaustedError(absl::StrCat(
+    return LimitExceeded(absl::StrCat(
         array.size(), " documents in one request: the limit is ", limits.max_documents));
   }
   size_t index = 0;
@@ -56,7 +57,7 @@ absl::Status ReadDocuments(element list, const RequestLimits& limits, ServiceReq
       return Malformed(absl::StrCat("documents[", index, "].text: expected a string"));
     }
     if (body.size() > limits.max_document_bytes) {
-      return absl::ResourceExhaustedError(absl::StrCat("document \"", *id_text, "\" has ",
+      return LimitExceeded(absl::StrCat("document \"", *id_text, "\" has ",
                                                        body.size(), " bytes: the limit is ",
                                                        limits.max_document_bytes));
     }
@@ -121,7 +122,7 @@ absl::StatusOr<ServiceRequest> ParseJsonRequest(std::string_view body,
                                              : simdjson::padded_string(RepairUtf8(body));
   simdjson::dom::parser parser;
   if (parser.allocate(padded.size(), limits.max_depth) != simdjson::SUCCESS) {
-    return absl::ResourceExhaustedError("cannot allocate the JSON parser");
+    return LimitExceeded("cannot allocate the JSON parser");
   }
   element root;
   if (auto error = parser.parse(padded).get(root); error != simdjson::SUCCESS) {
@@ -150,7 +151,7 @@ absl::StatusOr<ServiceRequest> ParseJsonRequest(std::string_view body,
 absl::StatusOr<ServiceRequest> TextRequest(std::string_view body, std::string id,
                                            const RequestLimits& limits) {
   if (body.size() > limits.max_document_bytes) {
-    return absl::ResourceExhaustedError(absl::StrCat(
+    return LimitExceeded(absl::StrCat(
         "document of ", body.size(), " bytes: the limit is ", limits.max_document_bytes));
   }
   ServiceRequest request;

@@ -42,13 +42,13 @@ struct ServiceRequest {
   bool marked_spans = false;
 };
 
-// Parses a JSON request body. Errors: InvalidArgument (malformed JSON, a
-// missing or mistyped field, an unknown measure or policy, nesting deeper
-// than the limit; the message says which), ResourceExhausted (a document
-// or the document count over its limit).
+// Parses a JSON request body. Errors (kindred/errors.h): BadInput
+// (malformed JSON, a missing or mistyped field, an unknown measure or
+// policy, nesting deeper than the limit; the message says which),
+// LimitExceeded (a document or the document count over its limit).
 absl::StatusOr<ServiceRequest> ParseJsonRequest(std::string_view body, const RequestLimits& limits);
 
-// A text/plain body as one document with id `id`. Errors: ResourceExhausted.
+// A text/plain body as one document with id `id`. Errors: LimitExceeded.
 absl::StatusOr<ServiceRequest> TextRequest(std::string_view body, std::string id,
                                            const RequestLimits& limits);
 
