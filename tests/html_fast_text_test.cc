@@ -331,6 +331,10 @@ TEST_CASE("what the fast path leaves to the reference", "[html]") {
       "<p>&#4294967361;x",
       "<p>&#x1000000000041;",
       "<textarea>&#x110000;</textarea>",
+      // An end tag with white space after its name in svg or math: the
+      // reference compares "svg " with "svg" there and leaves svg open.
+      "<svg></svg >s",
+      "<math></math\r>s",
   };
   for (const char* html : declined) {
     std::string text;
