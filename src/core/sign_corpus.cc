@@ -416,6 +416,8 @@ class Pipeline {
       stats_->documents++;
       stats_->bytes += doc.text.size();
       if (batch->set_sizes[i] == 0) stats_->empty_documents++;
+      stats_->html_pages += doc.html_page;
+      stats_->html_reference_pages += doc.html_by_reference;
       if (text.invalid_utf8 > 0) {
         stats_->invalid_utf8_documents++;
         stats_->invalid_utf8_sequences += text.invalid_utf8;
