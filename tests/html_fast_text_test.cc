@@ -325,6 +325,16 @@ TEST_CASE("what the fast path leaves to the reference", "[html]") {
       "<!DOCTYPE html PUBLIC \"-//W3C//DTD HTML 4.01//EN\"><p><table></table>",  // quirks
       "&amp; before the body",
       "<p>\xff</p>",  // not UTF-8
+      // Numeric references past U+10FFFF: U+FFFD by the standard, but the
+      // reference wraps the value in 32 bits (4294967361 = 2^32 + 65, "A").
+      "<p>a &#1114112; b",
+      "<p>&#4294967361;x",
+      "<p>&#x1000000000041;",
+      "<textarea>&#x110000;</textarea>",
+      // An end tag with white space after its name in svg or math: the
+      // reference compares "svg " with "svg" there and leaves svg open.
+      "<svg></svg >s",
+      "<math></math\r>s",
   };
   for (const char* html : declined) {
     std::string text;

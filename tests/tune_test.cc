@@ -131,7 +131,7 @@ TEST_CASE("grid values parse; bad ones are errors", "[tune]") {
 }
 
 TEST_CASE("the sweep command line names every setting and quotes inputs", "[tune]") {
-  TuneSetting setting{{ShingleMode::kWord, 5}, 128, {16, 8}, 0.8, 1};
+  TuneSetting setting{{ShingleMode::kWord, 5}, 128, {16, 8}, 0.8, 1, nullptr};
   TuneOptions options;
   const std::vector<std::string> inputs = {"archive", "my docs/it's.jsonl"};
   CHECK(SweepCommandLine(setting, options, inputs) ==

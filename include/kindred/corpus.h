@@ -215,6 +215,11 @@ struct Document {
   // already converted to UTF-8 and within the nesting guard, whose text is
   // still to be extracted; LineParser::Finish extracts it.
   bool unparsed_html = false;
+  // The text is (or, with unparsed_html, will be) that of an HTML page of
+  // a crawl archive; and it was extracted by the reference HTML parser,
+  // the fast path having declined the page (io/html_text.h).
+  bool html_page = false;
+  bool html_by_reference = false;
 };
 
 // What a reader skipped, so far.

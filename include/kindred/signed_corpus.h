@@ -251,6 +251,10 @@ struct SignStats {
   uint64_t bytes = 0;            // text bytes read
   uint64_t invalid_utf8_documents = 0;
   uint64_t invalid_utf8_sequences = 0;
+  // HTML pages of crawl archives, and those of them the reference HTML
+  // parser read because the fast path declined them.
+  uint64_t html_pages = 0;
+  uint64_t html_reference_pages = 0;
   // How far reading has come: raw bytes read from the input files, and
   // their total size when known (else 0). See CorpusReader.
   uint64_t raw_bytes = 0;

@@ -15,6 +15,17 @@
 // pairs over the WHOLE corpus divided by the number of documents: what a
 // sweep must verify per document.
 //
+// With the containment measure, a setting's search is the containment LSH
+// of containment_lsh.h (LSH Ensemble, Zhu et al., VLDB 2016) instead of one
+// banding: for each (shingle setting, perms, threshold) the plan for the
+// corpus (size partitions from min_contained_size to the largest set, a
+// banding per pair of partitions), exactly as `sweep --measure containment`
+// searches. A labelled pair is then a candidate when its smaller set has at
+// least min_contained_size shingles and the two agree on one band of the
+// banding of their partitions; the cost counts the plan's candidate pairs
+// over the corpus (crowded buckets capped as the sweep caps them). The
+// bandings_per_threshold and extra_bandings of the grid do not apply.
+//
 // Each document is shingled once per shingle setting and signed once per
 // (shingle setting, perms); every (bands x rows, threshold) is evaluated
 // from those signatures. For each threshold the grid takes the best few
@@ -44,6 +55,7 @@
 #include "absl/status/statusor.h"
 #include "absl/types/span.h"
 #include "kindred/banding.h"
+#include "kindred/containment_lsh.h"
 #include "kindred/corpus.h"
 #include "kindred/labels.h"
 #include "kindred/settings.h"
@@ -85,6 +97,9 @@ struct TuneOptions {
   // F-beta's beta (> 0). Default 1 (F1).
   double beta = 1.0;
   Measure measure = Measure::kJaccard;
+  // Containment only: the least size (in shingles) of the smaller document
+  // of a pair (>= 1), as sweep's --min-contained-size.
+  uint32_t min_contained_size = kDefaultMinContainedSize;
   // Fixed parts of the signature settings.
   uint64_t seed = kDefaultSeed;
   SignerScheme scheme = SignerScheme::kOnePermutation;
@@ -102,14 +117,18 @@ struct TuneOptions {
 struct TuneSetting {
   ShingleChoice shingle;
   uint32_t perms = 128;
-  Banding banding;
+  Banding banding;  // 0x0 for a containment search
   double threshold = 0.8;
   // 1-based rank of the banding in RankBandings(threshold, perms); 1 is the
-  // automatic choice.
+  // automatic choice (and the only one of a containment search).
   uint32_t banding_rank = 1;
+  // A containment search: its plan for the corpus (shared, immutable).
+  std::shared_ptr<const ContainmentPlan> plan;
 
   SignatureSettings Signature(const TuneOptions& options) const;
   MatchSettings Match(const TuneOptions& options) const;
+  // "16x8", or "plan/5" for a containment plan of 5 size partitions.
+  std::string SearchName() const;
   // "word:5 perms=128 16x8 t=0.80".
   std::string ToString() const;
 };
@@ -195,12 +214,13 @@ struct TuneResult {
 
 // Scores `labelled` for one threshold: `candidate[i]` says whether pair i
 // is a candidate, `measures[i]` is its exact measure (passes when
-// PassesThreshold does). Appends the wrong pairs' indices to *wrong when not
-// null.
+// PassesThreshold does, with `min_contained_size` for containment). Appends
+// the wrong pairs' indices to *wrong when not null.
 LabelScore ScoreLabels(absl::Span<const ResolvedPair> labelled,
                        absl::Span<const PairMeasure> measures, absl::Span<const uint8_t> candidate,
                        double threshold, Measure measure, double beta,
-                       std::vector<uint32_t>* wrong);
+                       std::vector<uint32_t>* wrong,
+                       uint32_t min_contained_size = kDefaultMinContainedSize);
 
 // True when `x` ranks before `y` (see the file comment).
 bool RanksBefore(const SettingScore& x, const SettingScore& y);

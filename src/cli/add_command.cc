@@ -9,6 +9,7 @@
 #include "cli/formats.h"
 #include "cli/index_batch.h"
 #include "cli/index_options.h"
+#include "cli/record_counts.h"
 #include "core/plural.h"
 #include "kindred/index.h"
 #include "kindred/index_query.h"
@@ -74,6 +75,7 @@ int RunAdd(const AddFlags& add) {
     PrintSummary(flags.index, *appended, *batch.documents, batch.matches.size(), batch.match,
                  **reader, writer->reader());
     PrintCrowdedKeys(batch.crowded_keys, flags.max_bucket);
+    PrintHtmlPages(batch.stats);
   }
   return kExitOk;
 }

@@ -165,6 +165,7 @@ int RunBuild(const BuildFlags& flags) {
                  static_cast<unsigned long long>(stats.empty_documents),
                  settings->signature.ToString().c_str(),
                  BandsByRows(settings->bands, settings->rows).c_str());
+    PrintHtmlPages(stats);
     PrintRecordCounts(**reader);
     PrintSkips((*reader)->skips());
     PrintThroughput(stats.documents, stats.bytes, progress.Elapsed());

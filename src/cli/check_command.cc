@@ -11,6 +11,7 @@
 #include "cli/formats.h"
 #include "cli/index_batch.h"
 #include "cli/index_options.h"
+#include "cli/record_counts.h"
 #include "core/plural.h"
 #include "kindred/index.h"
 #include "kindred/index_query.h"
@@ -68,6 +69,7 @@ int RunCheck(const CheckFlags& check) {
                  Counted(matched_count, "matches", "match").c_str(),
                  static_cast<unsigned long long>(batch.stats.empty_documents));
     PrintCrowdedKeys(batch.crowded_keys, flags.max_bucket);
+    PrintHtmlPages(batch.stats);
   }
   if (flags.general.verbose && !batch.latencies.empty()) PrintLatencies(batch.latencies);
   return check.fail_on_match && matched_count > 0 ? kExitMatched : kExitOk;

@@ -17,4 +17,13 @@ void PrintRecordCounts(const CorpusReader& reader) {
   std::fprintf(stderr, "  not documents     %s\n", line.c_str());
 }
 
+void PrintHtmlPages(const SignStats& stats) {
+  if (stats.html_pages == 0) return;
+  std::fprintf(stderr,
+               "  HTML pages        %llu, %llu of them by the reference parser (the fast path "
+               "declined them)\n",
+               static_cast<unsigned long long>(stats.html_pages),
+               static_cast<unsigned long long>(stats.html_reference_pages));
+}
+
 }  // namespace kindred::cli

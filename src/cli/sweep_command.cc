@@ -130,6 +130,7 @@ void PrintCorpusSummary(const SweepFlags& flags, const SweepResult& result,
                         const SweepOptions& options, const CorpusReader& reader, double seconds) {
   if (!flags.general.quiet) {
     PrintSweepSummary(result, options);
+    PrintHtmlPages(result.stats.sign);
     PrintRecordCounts(reader);
     PrintSkips(reader.skips());
     PrintThroughput(result.stats.sign.documents, result.stats.sign.bytes, seconds);

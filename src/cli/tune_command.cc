@@ -34,6 +34,7 @@ struct TuneFlags {
   double target_recall = 0.95;
   double beta = 1;
   std::string measure = "jaccard";
+  uint32_t min_contained_size = kDefaultMinContainedSize;
   std::string signer = "oph";
   uint64_t seed = kDefaultSeed;
   bool skip_unknown = false;
@@ -67,6 +68,7 @@ absl::StatusOr<TuneOptions> ToTuneOptions(const TuneFlags& flags) {
   absl::StatusOr<Measure> measure = ParseMeasure(flags.measure);
   if (!measure.ok()) return AsOptionError(measure.status());
   options.measure = *measure;
+  options.min_contained_size = flags.min_contained_size;
   options.skip_unknown_ids = flags.skip_unknown;
   options.threads = ThreadCount(flags.general);
   if (absl::Status status = options.Validate(); !status.ok()) return status;
@@ -193,8 +195,16 @@ void AddGridOptions(CLI::App* command, TuneFlags* flags) {
   command
       ->add_option("--measure", flags->measure,
                    "similarity compared with the threshold: "
-                   "jaccard or containment")
+                   "jaccard or containment (containment: each threshold is searched by its "
+                   "size-partition plan, as sweep does)")
       ->default_str("jaccard")
+      ->group("Grid");
+  command
+      ->add_option("--min-contained-size", flags->min_contained_size,
+                   "containment: the smaller document of a pair needs at least this many "
+                   "shingles")
+      ->transform(WholeNumber(1, UINT32_MAX))
+      ->default_str(std::to_string(kDefaultMinContainedSize))
       ->group("Grid");
   command->add_option("--signer", flags->signer, "MinHash scheme: oph or classic")
       ->default_str("oph")

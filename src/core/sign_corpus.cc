@@ -395,6 +395,8 @@ class Pipeline {
     stats_->documents++;
     stats_->bytes += doc.text.size();
     if (set_size == 0) stats_->empty_documents++;
+    stats_->html_pages += doc.html_page;
+    stats_->html_reference_pages += doc.html_by_reference;
     if (invalid_utf8 > 0) {
       stats_->invalid_utf8_documents++;
       stats_->invalid_utf8_sequences += invalid_utf8;

@@ -4,14 +4,12 @@
 // decoded), so memory does not grow with the shingle sets. What does grow
 // with the index: the band-key table, sorted under CompactOptions::memory
 // (key_sorter.h), and 4 bytes a live document for the id order.
-#include <unistd.h>
 #include <xxhash.h>
 
 #include <algorithm>
 #include <cstring>
 #include <vector>
 
-#include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "index/codec.h"
 #include "index/commit_area.h"
@@ -20,9 +18,9 @@
 #include "index/key_sorter.h"
 #include "index/segment.h"
 #include "index/write_util.h"
+#include "io/atomic_file.h"
 #include "kindred/banding.h"
 #include "kindred/index_writer.h"
-#include "kindred/temp_files.h"
 
 namespace kindred {
 namespace {
@@ -30,7 +28,7 @@ namespace {
 // Appends to a file through a buffer, hashing what it writes while asked to.
 class StreamWriter {
  public:
-  explicit StreamWriter(AppendFile* file) : file_(file), state_(XXH3_createState()) {
+  explicit StreamWriter(io::AtomicFile* file) : file_(file), state_(XXH3_createState()) {
     XXH3_64bits_reset(state_);
   }
   ~StreamWriter() { XXH3_freeState(state_); }
@@ -72,7 +70,7 @@ class StreamWriter {
 
  private:
   static constexpr size_t kFlushBytes = size_t{1} << 20;
-  AppendFile* file_;
+  io::AtomicFile* file_;
   XXH3_state_t* state_;
   bool hashing_ = false;
   uint64_t written_ = 0;
@@ -194,15 +192,13 @@ absl::Status WriteSegment(const IndexReader& reader, const Plan& plan, const ind
   return absl::OkStatus();
 }
 
-// Writes the new file beside `path` and renames it into place (as
-// index::WriteWholeFile does for a segment held in memory).
+// Writes the new file beside `path` and renames it into place, through
+// the one atomic-write helper (io/atomic_file.h).
 absl::Status WriteCompacted(const std::string& path, const IndexReader& reader,
                             const IndexSettings& settings, const Plan& plan,
                             const index::KeySorter& keys, FileSystem* fs) {
-  const std::string temp = absl::StrCat(path, ".tmp.", getpid());
-  auto file = fs->CreateNew(temp);
+  auto file = io::AtomicFile::Create(path, fs);
   if (!file.ok()) return file.status();
-  RegisterTempFile(temp);
   const uint64_t length = index::kDataStart + index::kSegmentHeaderSize + plan.layout.body_length +
                           index::kCommitRecordSize;
   absl::Status status;
@@ -214,13 +210,8 @@ absl::Status WriteCompacted(const std::string& path, const IndexReader& reader,
     out.Flush();
     if (status.ok()) status = out.status();
   }
-  if (status.ok()) status = (*file)->Sync();
-  file->reset();
-  if (status.ok()) status = fs->Rename(temp, path, /*replace=*/true);
-  if (!status.ok()) fs->Remove(temp).IgnoreError();
-  ForgetTempFile(temp);
-  if (!status.ok()) return status;
-  return fs->SyncDirectoryOf(path);
+  if (!status.ok()) return status;  // the temporary file is removed with `file`
+  return (*file)->Commit();
 }
 
 // The directory of `path`, for scratch files.

@@ -104,7 +104,7 @@ absl::StatusOr<size_t> CorpusReader::Impl::ReadBatch(std::vector<Document>* batc
     if (doc.text.capacity() > kReusedTextBytes) std::string().swap(doc.text);
     doc.unparsed = false;
     doc.unparsed_html = false;
-    doc.unparsed_html = false;
+    doc.html_page = doc.html_by_reference = false;
     absl::StatusOr<bool> more = Next(&doc);
     if (!more.ok()) {
       failure_ = more.status();

@@ -32,8 +32,10 @@ constexpr char16_t kC1Replacements[32] = {
 
 // `text` starts after "&#". Appends the referenced character and returns
 // the bytes consumed after "&#", or 0 (nothing appended) when no digits
-// follow.
-size_t AppendNumericReference(absl::string_view text, std::string* out) {
+// follow. Sets *past_unicode when the value is past U+10FFFF (U+FFFD is
+// appended, as the standard says; the reference parser wraps such values
+// in a 32-bit integer instead, so the caller declines the page).
+size_t AppendNumericReference(absl::string_view text, std::string* out, bool* past_unicode) {
   size_t i = 0;
   const bool hex = i < text.size() && (text[i] == 'x' || text[i] == 'X');
   if (hex) ++i;
@@ -58,6 +60,7 @@ size_t AppendNumericReference(absl::string_view text, std::string* out) {
   }
   if (i == digits_start) return 0;
   if (i < text.size() && text[i] == ';') ++i;
+  if (too_big) *past_unicode = true;
   if (too_big || value == 0 || (value >= 0xD800 && value <= 0xDFFF)) {
     out->append(kReplacement, 3);
   } else if (value >= 0x80 && value <= 0x9F && kC1Replacements[value - 0x80] != 0) {
@@ -69,10 +72,10 @@ size_t AppendNumericReference(absl::string_view text, std::string* out) {
 }
 
 // `text` starts at a '&'. Appends what it stands for; returns the bytes
-// consumed (at least 1).
-size_t AppendReference(absl::string_view text, std::string* out) {
+// consumed (at least 1). Sets *past_unicode as AppendNumericReference does.
+size_t AppendReference(absl::string_view text, std::string* out, bool* past_unicode) {
   if (text.size() > 1 && text[1] == '#') {
-    if (size_t used = AppendNumericReference(text.substr(2), out)) return used + 2;
+    if (size_t used = AppendNumericReference(text.substr(2), out, past_unicode)) return used + 2;
     out->push_back('&');
     return 1;
   }
@@ -198,15 +201,16 @@ bool IsValidUtf8(absl::string_view bytes) {
   return true;
 }
 
-void AppendText(absl::string_view run, TextKind kind, std::string* out) {
+bool AppendText(absl::string_view run, TextKind kind, std::string* out) {
+  bool past_unicode = false;
   size_t i = 0;
   while (i < run.size()) {
     const size_t special = FindTextSpecial(run, i);
     out->append(run.data() + i, special - i);
-    if (special == run.size()) return;
+    if (special == run.size()) break;
     const char c = run[special];
     if (c == '&' && kind != TextKind::kRawtext) {
-      i = special + AppendReference(run.substr(special), out);
+      i = special + AppendReference(run.substr(special), out, &past_unicode);
     } else if (c == '&' || c == '<') {
       out->push_back(c);
       i = special + 1;
@@ -214,6 +218,7 @@ void AppendText(absl::string_view run, TextKind kind, std::string* out) {
       i = special + AppendSpecial(run.substr(special), kind, out);
     }
   }
+  return !past_unicode;
 }
 
 }  // namespace kindred::io::html_scan

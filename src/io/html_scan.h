@@ -40,8 +40,12 @@ enum class TextKind {
   kRawtext,  // as is, NUL -> U+FFFD (iframe, xmp, noembed, noframes)
 };
 
-// Appends `run` (with no '<' for kData) to *out by `kind`.
-void AppendText(absl::string_view run, TextKind kind, std::string* out);
+// Appends `run` (with no '<' for kData) to *out by `kind`. Returns false
+// when the run holds a numeric character reference past U+10FFFF: it is
+// appended as U+FFFD, as the standard says, but the reference parser (Gumbo
+// 0.10) wraps the value in a 32-bit integer, so the fast path declines such
+// a page rather than differ.
+bool AppendText(absl::string_view run, TextKind kind, std::string* out);
 
 // `html[i]` is just after a tag's name. Skips its attributes: returns the
 // index just after the closing '>', or kNotFound when the input ends first

@@ -157,8 +157,10 @@ absl::Status ReferenceHtmlToText(absl::string_view html, std::string* out) {
   return absl::OkStatus();
 }
 
-absl::Status HtmlToText(absl::string_view html, std::string* out, bool valid_utf8) {
+absl::Status HtmlToText(absl::string_view html, std::string* out, bool valid_utf8,
+                        bool* by_reference) {
   out->clear();
+  if (by_reference != nullptr) *by_reference = false;
   if (NestsTooDeeply(html)) {
     return absl::FailedPreconditionError(
         absl::StrCat("its tags could nest more than ", kMaxOpenElements,
@@ -169,6 +171,7 @@ absl::Status HtmlToText(absl::string_view html, std::string* out, bool valid_utf
     return absl::OkStatus();
   }
   reference_documents.fetch_add(1, std::memory_order_relaxed);
+  if (by_reference != nullptr) *by_reference = true;
   return ReferenceHtmlToText(html, out);
 }
 

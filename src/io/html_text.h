@@ -64,7 +64,10 @@ bool NestsTooDeeply(absl::string_view html);
 // empty text, when OpenElementBound(html) > kMaxOpenElements; Internal only
 // when the parser fails to allocate. `valid_utf8` promises that `html` is
 // well-formed UTF-8 (as ConvertToUtf8 makes it), which saves a check.
-absl::Status HtmlToText(absl::string_view html, std::string* out, bool valid_utf8 = false);
+// *by_reference, when given, is set to whether the reference parser read
+// the page (the fast path declined it).
+absl::Status HtmlToText(absl::string_view html, std::string* out, bool valid_utf8 = false,
+                        bool* by_reference = nullptr);
 
 // The same by the reference implementation alone (Gumbo), for checks.
 absl::Status ReferenceHtmlToText(absl::string_view html, std::string* out);

@@ -11,6 +11,8 @@ using namespace html_tags;  // NOLINT: the tag ids read as names here
 
 namespace {
 
+constexpr char kPastUnicode[] = "a numeric character reference past U+10FFFF";
+
 // The phrasing elements of the definition that the reference parser does
 // not know (tag number "unknown"), and custom elements (a '-' in the name).
 bool IsPhrasingName(absl::string_view name) {
@@ -222,10 +224,12 @@ void HtmlTree::RawText(absl::string_view run) {
   if (skipped_ > 0 || run.empty()) return;
   if (drop_lf_ && run[0] == '\0') return Decline("NUL after a dropped line feed");
   const Element& e = stack_.back();
-  html_scan::AppendText(run,
-                        e.tag == kTitle || e.tag == kTextarea ? html_scan::TextKind::kRcdata
-                                                              : html_scan::TextKind::kRawtext,
-                        out_);
+  if (!html_scan::AppendText(run,
+                             e.tag == kTitle || e.tag == kTextarea ? html_scan::TextKind::kRcdata
+                                                                   : html_scan::TextKind::kRawtext,
+                             out_)) {
+    return Decline(kPastUnicode);
+  }
   if (drop_lf_ && out_->size() > drop_lf_at_ && (*out_)[drop_lf_at_] == '\n') {
     out_->erase(drop_lf_at_, 1);
   }
@@ -313,7 +317,7 @@ void HtmlTree::Text(absl::string_view run) {
   Reconstruct();
   if (skipped_ > 0) return;
   const size_t before = out_->size();
-  html_scan::AppendText(run, html_scan::TextKind::kData, out_);
+  if (!html_scan::AppendText(run, html_scan::TextKind::kData, out_)) return Decline(kPastUnicode);
   if (drop_lf && out_->size() > before && (*out_)[before] == '\n') out_->erase(before, 1);
 }
 

@@ -261,11 +261,12 @@ void HtmlTree::StartForeign(const HtmlTag& tag) {
 
 void HtmlTree::EndForeign(const HtmlTag& tag) {
   if (tag.id == kBr || tag.id == kP) return Decline("br or p end tag in svg or math");
-  // "</svg/svg>": the reference parser leaves svg open after an end tag
-  // with attributes or a slash; such pages go to it.
-  if (tag.self_closing ||
-      !absl::StripAsciiWhitespace(absl::StripSuffix(tag.attributes, ">")).empty()) {
-    return Decline("an end tag with attributes in svg or math");
+  // "</svg/svg>", "</svg >": the reference parser (Gumbo 0.10) compares
+  // the whole source between "</" and ">" with the open element's name in
+  // foreign content, so an end tag with anything after its name (a slash,
+  // attributes, even white space) leaves svg open there; such pages go to it.
+  if (tag.self_closing || tag.attributes != ">") {
+    return Decline("an end tag with more than its name in svg or math");
   }
   for (size_t k = stack_.size(); k-- > 0;) {
     const Element& e = stack_[k];

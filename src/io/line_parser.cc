@@ -29,7 +29,8 @@ absl::Status LineParser::Finish(Document* doc) {
   if (doc->unparsed_html) {
     impl_->line.swap(doc->text);
     doc->unparsed = doc->unparsed_html = false;
-    absl::Status made = io::HtmlToText(impl_->line, &doc->text, /*valid_utf8=*/true);
+    absl::Status made =
+        io::HtmlToText(impl_->line, &doc->text, /*valid_utf8=*/true, &doc->html_by_reference);
     if (!made.ok()) {
       return Annotate(made, absl::StrCat(io::DisplayName(doc->source.path), ": ", doc->id));
     }

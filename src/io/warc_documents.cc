@@ -137,10 +137,12 @@ absl::Status PayloadUtf8(absl::string_view payload, absl::string_view declared, 
 }
 
 absl::Status PayloadText(absl::string_view payload, absl::string_view declared, bool html,
-                         std::string* scratch, std::string* text, uint32_t* replaced) {
+                         std::string* scratch, std::string* text, uint32_t* replaced,
+                         bool* by_reference) {
   if (!html) return PayloadUtf8(payload, declared, html, text, replaced);
   if (absl::Status s = PayloadUtf8(payload, declared, html, scratch, replaced); !s.ok()) return s;
-  return HtmlToText(*scratch, text, /*valid_utf8=*/true);  // ConvertToUtf8 makes it so
+  // ConvertToUtf8 makes the page valid UTF-8.
+  return HtmlToText(*scratch, text, /*valid_utf8=*/true, by_reference);
 }
 
 absl::Status WarcDocuments::CheckDigest(const WarcHeader& header, const HttpHead& head,
@@ -171,6 +173,7 @@ absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc
   if (id.empty()) id = by_record_id ? uri : record_id;
   doc->id.assign(id.data(), id.size());
   doc->unparsed = doc->unparsed_html = false;
+  doc->html_page = doc->html_by_reference = false;
   doc->priority = 0;
   doc->has_priority = false;
   doc->source.line = 0;
@@ -197,6 +200,7 @@ absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc
     payload = payload_;
   }
   const bool html = record.role.payload == RecordRole::Payload::kHtml;
+  doc->html_page = html;
   absl::Status made;
   if (html && defer_html) {
     made = PayloadUtf8(payload, declared, html, &doc->text, &doc->invalid_utf8);
@@ -206,7 +210,8 @@ absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc
       doc->unparsed = doc->unparsed_html = true;  // LineParser::Finish extracts the text
     }
   } else {
-    made = PayloadText(payload, declared, html, &utf8_, &doc->text, &doc->invalid_utf8);
+    made = PayloadText(payload, declared, html, &utf8_, &doc->text, &doc->invalid_utf8,
+                       &doc->html_by_reference);
   }
   if (made.code() == absl::StatusCode::kFailedPrecondition) {  // the nesting guard
     Count("HTML nested too deeply to parse (empty text)");

@@ -97,8 +97,10 @@ class WarcDocuments {
 
 // The text of a payload: converted to UTF-8 by the charset rules, and for
 // HTML reduced to its text. `declared` is the Content-Type charset.
+// *by_reference as HtmlToText sets it.
 absl::Status PayloadText(absl::string_view payload, absl::string_view declared, bool html,
-                         std::string* scratch, std::string* text, uint32_t* replaced);
+                         std::string* scratch, std::string* text, uint32_t* replaced,
+                         bool* by_reference = nullptr);
 
 // The payload converted to UTF-8 by the charset rules (the first step of
 // PayloadText).

@@ -6,6 +6,7 @@
 #include "absl/strings/str_format.h"
 #include "kindred/tune_report.h"
 #include "tune/svg.h"
+#include "tune/tune_containment.h"
 
 namespace kindred {
 namespace {
@@ -85,14 +86,15 @@ std::string PrecisionRecallPlot(const TuneReportInput& input) {
   for (int i = 1; i <= 100; ++i) {
     const double t = i / 100.0;
     const LabelScore score = ScoreLabels(r.labelled, shingles.labelled, signing.best_candidates, t,
-                                         input.options->measure, input.options->beta, nullptr);
+                                         input.options->measure, input.options->beta, nullptr,
+                                         input.options->min_contained_size);
     precision.push_back({t, score.precision});
     recall.push_back({t, score.recall});
     fbeta.push_back({t, score.fbeta});
   }
-  SvgPlot plot(absl::StrFormat("Precision and recall against the threshold (%s, %u perms, %ux%u)",
+  SvgPlot plot(absl::StrFormat("Precision and recall against the threshold (%s, %u perms, %s)",
                                best.setting.shingle.ToString(), best.setting.perms,
-                               best.setting.banding.bands, best.setting.banding.rows),
+                               best.setting.SearchName()),
                Axis{"threshold", 0, 1, 0.1, 1}, Axis{"precision, recall", 0, 1, 0.2, 1});
   plot.Line(precision, kPalette[0], "precision");
   plot.Line(recall, kPalette[1], "recall");
@@ -137,7 +139,7 @@ std::string RankingTable(const TuneReportInput& input) {
     out += absl::StrCat(
         i == 0 ? "<tr class=\"chosen\">" : "<tr>", Cell(absl::StrCat(i + 1)),
         Cell(s.setting.shingle.ToString()), Cell(absl::StrCat(s.setting.perms)),
-        Cell(absl::StrFormat("%ux%u", s.setting.banding.bands, s.setting.banding.rows)),
+        Cell(s.setting.SearchName()),
         Cell(absl::StrFormat("%.2f", s.setting.threshold)),
         Cell(absl::StrFormat("%.4f", s.labels.precision)),
         Cell(absl::StrFormat("%.4f", s.labels.recall)), Cell(absl::StrFormat("%.4f", s.labels.f1)),
@@ -216,9 +218,13 @@ std::string FormatTuneHtml(const TuneReportInput& input,
       "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n"
       "<title>kindred tune report</title>\n<style>",
       kStyle, "</style>\n</head>\n<body>\n<h1>kindred tune report</h1>\n", Summary(input));
-  out += absl::StrCat("<h2>S-curves</h2>\n", SCurvePlot(input),
-                      "<p class=\"note\">Dots below the axis are the labelled pairs at their "
-                      "exact similarity; hover for their ids.</p>\n");
+  if (input.result->recommended().setting.plan != nullptr) {
+    out += tune_internal::ContainmentHtml(input);
+  } else {
+    out += absl::StrCat("<h2>S-curves</h2>\n", SCurvePlot(input),
+                        "<p class=\"note\">Dots below the axis are the labelled pairs at their "
+                        "exact similarity; hover for their ids.</p>\n");
+  }
   out += absl::StrCat("<h2>Precision and recall</h2>\n", PrecisionRecallPlot(input));
   out += absl::StrCat("<h2>Candidate similarity</h2>\n", HistogramPlot(input));
   out += absl::StrCat("<h2>Ranking</h2>\n", RankingTable(input));

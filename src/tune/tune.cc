@@ -4,16 +4,20 @@
 
 #include <algorithm>
 #include <map>
+#include <memory>
+#include <tuple>
 #include <utility>
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "kindred/candidates.h"
+#include "kindred/containment_candidates.h"
 #include "kindred/errors.h"
 #include "core/parallel.h"
 #include "kindred/signed_corpus.h"
 #include "kindred/signer.h"
 #include "kindred/verify.h"
+#include "tune/tune_containment.h"
 
 namespace kindred {
 namespace {
@@ -26,9 +30,13 @@ struct PlannedSetting {
 };
 
 // The (threshold, banding) list of one perms, in grid order.
-std::vector<PlannedSetting> PlanSettings(const TuneGrid& grid, uint32_t perms) {
+std::vector<PlannedSetting> PlanSettings(const TuneGrid& grid, uint32_t perms, Measure measure) {
   std::vector<PlannedSetting> planned;
   for (double threshold : grid.thresholds) {
+    if (measure == Measure::kContainment) {  // one plan per threshold (tune.h)
+      planned.push_back({threshold, Banding{0, 0}, 1});
+      continue;
+    }
     const std::vector<BandingCost> ranked = RankBandings(threshold, perms);
     std::vector<Banding> chosen;
     for (size_t i = 0; i < ranked.size() && i < grid.bandings_per_threshold; ++i) {
@@ -87,10 +95,16 @@ std::vector<uint8_t> LabelledCandidates(const SignedCorpus& corpus,
   return candidate;
 }
 
-SimilarityHistogram CandidateHistogram(const SignedCorpus& corpus, Banding banding, Measure measure,
-                                       int threads) {
-  CandidateStats stats;
-  const std::vector<PackedPair> pairs = FindCandidatePairs(corpus, banding, threads, &stats);
+SimilarityHistogram CandidateHistogram(const SignedCorpus& corpus, const TuneSetting& setting,
+                                       Measure measure, int threads) {
+  std::vector<PackedPair> pairs;
+  if (setting.plan != nullptr) {
+    ContainmentCandidateStats stats;
+    pairs = FindContainmentCandidates(corpus, *setting.plan, threads, &stats);
+  } else {
+    CandidateStats stats;
+    pairs = FindCandidatePairs(corpus, setting.banding, threads, &stats);
+  }
   constexpr size_t kChunk = 1 << 14;
   const size_t chunks = (pairs.size() + kChunk - 1) / kChunk;
   std::vector<SimilarityHistogram> parts(chunks, SimilarityHistogram{});
@@ -117,20 +131,49 @@ struct Context {
   uint32_t grid_order = 0;
 };
 
-// What one banding gives, computed once per signing: the number of
-// candidate pairs over the corpus and whether each labelled pair is one.
+// What one banding (or containment plan) gives, computed once per signing:
+// the number of candidate pairs over the corpus and whether each labelled
+// pair is one.
 struct BandingOutcome {
   uint64_t candidate_pairs = 0;
   std::vector<uint8_t> labelled_candidates;
+  std::shared_ptr<const ContainmentPlan> plan;  // a containment search
 };
-using BandingOutcomes = std::map<std::pair<uint32_t, uint32_t>, BandingOutcome>;
+// Keyed by (bands, rows, threshold): the threshold only for a plan.
+using OutcomeKey = std::tuple<uint32_t, uint32_t, double>;
+using BandingOutcomes = std::map<OutcomeKey, BandingOutcome>;
 
-const BandingOutcome& OutcomeOf(const SignedCorpus& corpus, Banding banding, const Context& context,
-                                BandingOutcomes* outcomes) {
-  const auto key = std::pair(banding.bands, banding.rows);
+OutcomeKey KeyOf(const PlannedSetting& plan, Measure measure) {
+  return {plan.banding.bands, plan.banding.rows,
+          measure == Measure::kContainment ? plan.threshold : 0.0};
+}
+
+BandingOutcome PlanOutcome(const SignedCorpus& corpus, double threshold, const Context& context) {
+  const TuneOptions& options = *context.options;
+  if (options.progress) {
+    options.progress(absl::StrFormat("perms=%u: containment candidates at t=%.2f", corpus.perms(),
+                                     threshold));
+  }
+  BandingOutcome outcome;
+  outcome.plan = tune_internal::PlanFor(corpus, threshold, options);
+  ContainmentCandidateStats stats;
+  FindContainmentCandidates(corpus, *outcome.plan, options.threads, &stats);
+  outcome.candidate_pairs = stats.candidate_pairs;
+  outcome.labelled_candidates =
+      tune_internal::PlanLabelledCandidates(corpus, context.result->labelled, *outcome.plan);
+  return outcome;
+}
+
+const BandingOutcome& OutcomeOf(const SignedCorpus& corpus, const PlannedSetting& plan,
+                                const Context& context, BandingOutcomes* outcomes) {
+  const OutcomeKey key = KeyOf(plan, context.options->measure);
   auto it = outcomes->find(key);
   if (it != outcomes->end()) return it->second;
   const TuneOptions& options = *context.options;
+  if (options.measure == Measure::kContainment) {
+    return outcomes->emplace(key, PlanOutcome(corpus, plan.threshold, context)).first->second;
+  }
+  const Banding banding = plan.banding;
   if (options.progress) {
     options.progress(absl::StrFormat("perms=%u: candidates under %ux%u", corpus.perms(),
                                      banding.bands, banding.rows));
@@ -138,7 +181,7 @@ const BandingOutcome& OutcomeOf(const SignedCorpus& corpus, Banding banding, con
   CandidateStats stats;
   FindCandidatePairs(corpus, banding, options.threads, &stats);
   BandingOutcome outcome{stats.candidate_pairs,
-                         LabelledCandidates(corpus, context.result->labelled, banding)};
+                         LabelledCandidates(corpus, context.result->labelled, banding), nullptr};
   return outcomes->emplace(key, std::move(outcome)).first->second;
 }
 
@@ -149,7 +192,8 @@ SettingScore ScoreSetting(const TuneSetting& setting, const BandingOutcome& outc
   score.setting = setting;
   score.labels =
       ScoreLabels(context->result->labelled, shingles.labelled, outcome.labelled_candidates,
-                  setting.threshold, options.measure, options.beta, &score.wrong);
+                  setting.threshold, options.measure, options.beta, &score.wrong,
+                  options.min_contained_size);
   score.candidate_pairs = outcome.candidate_pairs;
   score.candidates_per_document = static_cast<double>(score.candidate_pairs) / documents;
   score.meets_target = score.labels.recall >= options.target_recall;
@@ -173,18 +217,19 @@ void EvaluateSignature(const SignedCorpus& corpus, uint32_t shingle_index,
   BandingOutcomes outcomes;
   const size_t first_score = result.ranking.size();
   for (const PlannedSetting& plan : planned) {
+    const BandingOutcome& outcome = OutcomeOf(corpus, plan, *context, &outcomes);
     const TuneSetting setting{shingles.shingle, corpus.perms(), plan.banding, plan.threshold,
-                              plan.rank};
-    const BandingOutcome& outcome = OutcomeOf(corpus, plan.banding, *context, &outcomes);
+                              plan.rank, outcome.plan};
     result.ranking.push_back(ScoreSetting(setting, outcome, shingles, corpus.size(), context));
   }
   const SettingScore& best =
       *std::min_element(result.ranking.begin() + first_score, result.ranking.end(), RanksBefore);
   signing.best = best.setting;
+  const PlannedSetting best_plan{best.setting.threshold, best.setting.banding, 0};
   signing.best_candidates =
-      outcomes[{best.setting.banding.bands, best.setting.banding.rows}].labelled_candidates;
-  signing.best_histogram = CandidateHistogram(corpus, best.setting.banding,
-                                              context->options->measure, context->options->threads);
+      outcomes[KeyOf(best_plan, context->options->measure)].labelled_candidates;
+  signing.best_histogram = CandidateHistogram(corpus, best.setting, context->options->measure,
+                                              context->options->threads);
   result.signatures.push_back(std::move(signing));
 }
 
@@ -221,7 +266,7 @@ absl::Status EvaluateShingle(const OpenCorpus& open_corpus, uint32_t shingle_ind
   TuneResult& result = *context->result;
   const ShingleChoice choice = options.grid.shingles[shingle_index];
   if (options.progress) options.progress(absl::StrCat("signing with ", choice.ToString()));
-  TuneSetting first{choice, options.grid.perms[0], {}, 0, 0};
+  TuneSetting first{choice, options.grid.perms[0], {}, 0, 0, nullptr};
   SignedCorpus base(first.perms);
   SignStats stats;
   absl::Status signed_ok = SignFirst(open_corpus, first.Signature(options), options, &base, &stats);
@@ -242,11 +287,11 @@ absl::Status EvaluateShingle(const OpenCorpus& open_corpus, uint32_t shingle_ind
   result.shingles.push_back(std::move(evaluation));
   for (size_t p = 0; p < options.grid.perms.size(); ++p) {
     const uint32_t perms = options.grid.perms[p];
-    const std::vector<PlannedSetting> planned = PlanSettings(options.grid, perms);
+    const std::vector<PlannedSetting> planned = PlanSettings(options.grid, perms, options.measure);
     if (p == 0) {
       EvaluateSignature(base, shingle_index, planned, context);
     } else {
-      TuneSetting setting{choice, perms, {}, 0, 0};
+      TuneSetting setting{choice, perms, {}, 0, 0, nullptr};
       const SignedCorpus corpus = Resign(base, setting.Signature(options), options.threads);
       EvaluateSignature(corpus, shingle_index, planned, context);
     }

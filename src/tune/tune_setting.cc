@@ -104,6 +104,14 @@ absl::Status TuneOptions::Validate() const {
       return absl::InvalidArgumentError(absl::StrCat("perms ", grid.perms[i], " is listed twice"));
     }
   }
+  if (min_contained_size < 1) {
+    return absl::InvalidArgumentError("the least contained size must be >= 1");
+  }
+  if (measure == Measure::kContainment && !grid.extra_bandings.empty()) {
+    return absl::InvalidArgumentError(
+        "bandings cannot be listed with the containment measure: its plan chooses a banding "
+        "per pair of size partitions");
+  }
   if (grid.bandings_per_threshold < 1) {
     return absl::InvalidArgumentError("bandings per threshold must be >= 1");
   }
@@ -133,12 +141,18 @@ MatchSettings TuneSetting::Match(const TuneOptions& options) const {
   match.bands = banding.bands;
   match.rows = banding.rows;
   match.measure = options.measure;
+  match.min_contained_size = options.min_contained_size;
   return match;
 }
 
+std::string TuneSetting::SearchName() const {
+  if (plan != nullptr) return absl::StrCat("plan/", plan->partitions().size());
+  return absl::StrFormat("%ux%u", banding.bands, banding.rows);
+}
+
 std::string TuneSetting::ToString() const {
-  return absl::StrFormat("%s perms=%u %ux%u t=%.2f", shingle.ToString(), perms, banding.bands,
-                         banding.rows, threshold);
+  return absl::StrFormat("%s perms=%u %s t=%.2f", shingle.ToString(), perms, SearchName(),
+                         threshold);
 }
 
 void DeriveMeasures(double beta, LabelScore* s) {
@@ -163,10 +177,11 @@ size_t HistogramBin(double similarity) {
 LabelScore ScoreLabels(absl::Span<const ResolvedPair> labelled,
                        absl::Span<const PairMeasure> measures, absl::Span<const uint8_t> candidate,
                        double threshold, Measure measure, double beta,
-                       std::vector<uint32_t>* wrong) {
+                       std::vector<uint32_t>* wrong, uint32_t min_contained_size) {
   MatchSettings match;
   match.threshold = threshold;
   match.measure = measure;
+  match.min_contained_size = min_contained_size;
   LabelScore score;
   for (size_t i = 0; i < labelled.size(); ++i) {
     const PairMeasure& m = measures[i];
@@ -210,10 +225,16 @@ std::string SweepCommandLine(const TuneSetting& setting, const TuneOptions& opti
   words.push_back(absl::StrCat("-k ", setting.shingle.k));
   words.push_back(absl::StrCat("--perms ", setting.perms));
   words.push_back(absl::StrFormat("--threshold %g", setting.threshold));
-  words.push_back(absl::StrCat("--bands ", setting.banding.bands));
-  words.push_back(absl::StrCat("--rows ", setting.banding.rows));
+  if (setting.plan == nullptr) {
+    words.push_back(absl::StrCat("--bands ", setting.banding.bands));
+    words.push_back(absl::StrCat("--rows ", setting.banding.rows));
+  }
   if (options.measure != Measure::kJaccard) {
     words.push_back(absl::StrCat("--measure ", MeasureName(options.measure)));
+  }
+  if (options.measure == Measure::kContainment &&
+      options.min_contained_size != kDefaultMinContainedSize) {
+    words.push_back(absl::StrCat("--min-contained-size ", options.min_contained_size));
   }
   if (options.scheme != SignerScheme::kOnePermutation) {
     words.push_back(absl::StrCat("--signer ", SignerSchemeName(options.scheme)));

@@ -6,6 +6,7 @@
 #include "core/plural.h"
 #include "kindred/records.h"
 #include "kindred/tune_report.h"
+#include "tune/tune_containment.h"
 
 namespace kindred {
 namespace {
@@ -13,10 +14,6 @@ namespace {
 uint32_t CountDuplicates(const TuneResult& result) {
   return static_cast<uint32_t>(std::count_if(result.labelled.begin(), result.labelled.end(),
                                              [](const ResolvedPair& p) { return p.duplicate; }));
-}
-
-std::string BandingName(const Banding& banding) {
-  return absl::StrFormat("%ux%u", banding.bands, banding.rows);
 }
 
 std::string Header(const TuneReportInput& input) {
@@ -68,7 +65,7 @@ std::string RankingTable(const TuneReportInput& input) {
     const SettingScore& s = r.ranking[i];
     out += absl::StrFormat("%4u%s  %-8s %5u %8s %9.2f %9.4f %7.4f %7.4f %7.4f %9.4f %5u\n", i + 1,
                            s.meets_target ? "*" : " ", s.setting.shingle.ToString(),
-                           s.setting.perms, BandingName(s.setting.banding), s.setting.threshold,
+                           s.setting.perms, s.setting.SearchName(), s.setting.threshold,
                            s.labels.precision, s.labels.recall, s.labels.f1, s.labels.fbeta,
                            s.candidates_per_document, s.wrong.size());
   }
@@ -113,14 +110,24 @@ std::string HistogramText(const TuneReportInput& input) {
   return out;
 }
 
+// The fields of a setting record; a containment search (bands and rows 0)
+// adds its plan's partition count.
+std::vector<std::string> SettingFields(bool plan) {
+  std::vector<std::string> fields = {
+      "record",         "rank",           "shingle",         "k",
+      "perms",          "bands",          "rows",            "threshold",
+      "banding_rank",   "meets_target",   "precision",       "recall",
+      "f1",             "fbeta",          "true_positives",  "false_positives",
+      "false_negatives", "true_negatives", "candidate_pairs", "candidates_per_document",
+      "wrong_lines"};
+  if (plan) fields.push_back("partitions");
+  return fields;
+}
+
 void AppendSettingRecord(const SettingScore& s, size_t rank, const TuneResult& r,
                          std::string* out) {
   RecordWriter row(RecordFormat::kJsonLines,
-                   {"record", "rank", "shingle", "k", "perms", "bands", "rows", "threshold",
-                    "banding_rank", "meets_target", "precision", "recall", "f1", "fbeta",
-                    "true_positives", "false_positives", "false_negatives", "true_negatives",
-                    "candidate_pairs", "candidates_per_document", "wrong_lines"},
-                   out);
+                   SettingFields(s.setting.plan != nullptr), out);
   row.String("setting");
   row.Number(rank);
   row.String(ShingleModeName(s.setting.shingle.mode));
@@ -143,6 +150,7 @@ void AppendSettingRecord(const SettingScore& s, size_t rank, const TuneResult& r
   std::vector<uint64_t> lines;
   for (uint32_t wrong : s.wrong) lines.push_back(r.labels[r.labelled[wrong].label].line);
   row.NumberList(lines);
+  if (s.setting.plan != nullptr) row.Number(s.setting.plan->partitions().size());
   row.EndRow();
 }
 
@@ -188,12 +196,22 @@ void AppendSummaryRecord(const TuneReportInput& input, std::string* out) {
 
 std::string WrongReason(const TuneResult& result, const TuneOptions& options, uint32_t i) {
   const SettingScore& best = result.recommended();
-  if (!result.SignatureOf(best.setting).best_candidates[i]) return "not a candidate";
+  if (!result.SignatureOf(best.setting).best_candidates[i]) {
+    const PairMeasure& m = result.ShinglesOf(best.setting).labelled[i];
+    if (best.setting.plan != nullptr && std::min(m.size_a, m.size_b) > 0 &&
+        std::min(m.size_a, m.size_b) < options.min_contained_size) {
+      return "smaller under the least size";
+    }
+    return "not a candidate";
+  }
   return result.labelled[i].duplicate ? "below the threshold" : "at or above the threshold";
 }
 
 std::string FormatTuneText(const TuneReportInput& input) {
-  return Header(input) + Recommendation(input) + RankingTable(input) + WrongList(input) +
+  const std::string plan = input.result->recommended().setting.plan != nullptr
+                               ? tune_internal::ContainmentText(input)
+                               : std::string();
+  return Header(input) + Recommendation(input) + plan + RankingTable(input) + WrongList(input) +
          HistogramText(input);
 }
 
@@ -212,6 +230,7 @@ std::string FormatTuneJsonLines(const TuneReportInput& input) {
     bins.Number(histogram[bin]);
     bins.EndRow();
   }
+  if (r.recommended().setting.plan != nullptr) tune_internal::AppendContainmentRecords(input, &out);
   RecordWriter recommendation(RecordFormat::kJsonLines, {"record", "setting", "command"}, &out);
   recommendation.String("recommendation");
   recommendation.String(r.recommended().setting.ToString());

@@ -169,4 +169,23 @@ for bad in wrong_length.warc truncated.warc no_version.warc long_line.warc cut.w
   compgen -G "$WORK/.kept_$bad.tmp*" >/dev/null && fail "$bad: a temporary kept file was left"
 done
 
+# The summary counts the HTML pages and those the reference parser read
+# because the fast path declined them (text in a table: foster parenting).
+$PY - "$WORK/pages.warc" <<'PY' || fail "pages.warc"
+import sys
+def rec(uri, block):
+    return (b"WARC/1.1\r\nWARC-Type: resource\r\nWARC-Target-URI: " + uri.encode() +
+            b"\r\nContent-Type: text/html\r\nContent-Length: " + str(len(block)).encode() +
+            b"\r\n\r\n" + block + b"\r\n\r\n")
+open(sys.argv[1], "wb").write(rec("http://a/", b"<p>an ordinary page of words</p>") +
+                              rec("http://b/", b"<table>stray text in a table</table>") +
+                              rec("http://c/", b"<p>another page</p>"))
+PY
+expect_exit 0 "sweep of html pages" -- "$KINDRED" sweep "$WORK/pages.warc"
+expect_stderr "HTML pages        3, 1 of them by the reference parser" "sweep counts the fallback"
+expect_exit 0 "build of html pages" -- "$KINDRED" build "$WORK/pages.kin" "$WORK/pages.warc"
+expect_stderr "HTML pages        3, 1 of them by the reference parser" "build counts the fallback"
+expect_exit 0 "check of html pages" -- "$KINDRED" check "$WORK/pages.kin" "$WORK/pages.warc"
+expect_stderr "HTML pages        3, 1 of them by the reference parser" "check counts the fallback"
+
 finish
