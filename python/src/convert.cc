@@ -89,4 +89,14 @@ void RegisterSettings(py::module_& module) {
            [](const SignatureSettings& s) { return "kindred.Settings(" + s.ToString() + ")"; });
 }
 
+InputOptions ToInput(const std::string& input_format, const std::string& id_field,
+                     const std::string& text_field, const std::string& priority_field) {
+  InputOptions input;
+  input.format = Take(ParseInputFormat(input_format));
+  input.id_field = id_field;
+  input.text_field = text_field;
+  input.priority_field = priority_field;
+  return input;
+}
+
 }  // namespace kindred::python

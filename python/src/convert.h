@@ -13,6 +13,7 @@
 
 #include "absl/status/status.h"
 #include "absl/status/statusor.h"
+#include "kindred/corpus.h"
 #include "kindred/index_query.h"
 #include "kindred/settings.h"
 
@@ -36,6 +37,11 @@ T Take(absl::StatusOr<T> value) {
 
 // The signature settings of the Python Settings object (kindred.Settings).
 SignatureSettings ToSignature(const py::handle& settings);
+
+// The input options the sweep and the shard stages take (format name, and
+// the JSON field names; empty keeps the defaults).
+InputOptions ToInput(const std::string& input_format, const std::string& id_field,
+                     const std::string& text_field, const std::string& priority_field);
 
 // Documents given as an iterable of (id, text) pairs (str or bytes each),
 // read with the GIL held.

@@ -57,17 +57,6 @@ uint32_t RangeOf(uint32_t doc, uint64_t documents, uint32_t ranges) {
   return static_cast<uint32_t>(uint64_t{doc} * ranges / std::max<uint64_t>(documents, 1));
 }
 
-// The input options of a shard (the corpus options the stages take).
-InputOptions ShardInput(const std::string& input_format, const std::string& id_field,
-                        const std::string& text_field, const std::string& priority_field) {
-  InputOptions input;
-  input.format = Take(ParseInputFormat(input_format));
-  input.id_field = id_field;
-  input.text_field = text_field;
-  input.priority_field = priority_field;
-  return input;
-}
-
 // A signed shard's records: its document table, the band-key digest of
 // each document (to know it again when it is read again), and its band
 // keys by partition and band.
@@ -110,7 +99,7 @@ py::tuple SignShard(const std::string& path, const py::handle& settings_object,
                     const std::string& text_field, const std::string& priority_field,
                     uint32_t bands, uint32_t rows, uint32_t partitions, int threads) {
   const SignatureSettings settings = ToSignature(settings_object);
-  const InputOptions input = ShardInput(input_format, id_field, text_field, priority_field);
+  const InputOptions input = ToInput(input_format, id_field, text_field, priority_field);
   ShardRecords records;
   absl::Status status;
   {
@@ -278,7 +267,7 @@ py::list ReadSets(const std::string& path, const py::handle& settings_object,
                   uint32_t rows, const py::bytes& digest_bytes,
                   const std::vector<py::bytes>& wanted, uint64_t offset) {
   const SignatureSettings settings = ToSignature(settings_object);
-  const InputOptions input = ShardInput(input_format, id_field, text_field, priority_field);
+  const InputOptions input = ToInput(input_format, id_field, text_field, priority_field);
   const std::string_view digest_view = View(digest_bytes);
   std::vector<uint32_t> digests(digest_view.size() / 4);
   std::memcpy(digests.data(), digest_view.data(), digests.size() * 4);
@@ -322,7 +311,7 @@ uint64_t WriteKeptShard(const std::string& path, const std::string& input_format
                         const std::string& id_field, const std::string& text_field,
                         const std::string& priority_field, const py::bytes& dropped_bytes,
                         uint64_t documents, const std::string& lines_path) {
-  const InputOptions input = ShardInput(input_format, id_field, text_field, priority_field);
+  const InputOptions input = ToInput(input_format, id_field, text_field, priority_field);
   const std::string_view view = View(dropped_bytes);
   std::vector<uint32_t> dropped(view.size() / 4);
   std::memcpy(dropped.data(), view.data(), dropped.size() * 4);

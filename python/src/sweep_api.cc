@@ -40,16 +40,6 @@ SweepOptions ToOptions(const py::handle& settings, double threshold, const std::
   return options;
 }
 
-InputOptions ToInput(const std::string& input_format, const std::string& id_field,
-                     const std::string& text_field, const std::string& priority_field) {
-  InputOptions input;
-  input.format = Take(ParseInputFormat(input_format));
-  input.id_field = id_field;
-  input.text_field = text_field;
-  input.priority_field = priority_field;
-  return input;
-}
-
 PySweep SweepFiles(std::vector<std::string> inputs, const SweepOptions& options,
                    const InputOptions& input) {
   if (inputs.empty()) Raise(InvalidRequest("give at least one input"));
