@@ -41,6 +41,7 @@
 #define KINDRED_CONTAINMENT_LSH_H_
 
 #include <cstdint>
+#include <string>
 #include <vector>
 
 #include "kindred/banding.h"
@@ -113,6 +114,11 @@ class ContainmentPlan {
   std::vector<SizePartition> partitions_;
   std::vector<PartitionBanding> pairs_;
 };
+
+// Appends one JSON Lines record per size partition of `plan` to `out`
+// ({"record":"partition","partition":K,"lower":L,"upper":U}), as `plan` and
+// `tune` print them.
+void AppendPartitionRecords(const ContainmentPlan& plan, std::string* out);
 
 }  // namespace kindred
 

@@ -156,16 +156,7 @@ void AppendPairRecord(const ContainmentPlan& plan, const ContainmentPlanRequest&
 void PrintJsonl(const ContainmentPlan& plan, const ContainmentPlanRequest& r) {
   std::string out;
   AppendSettingsRecord(r, &out);
-  const auto& parts = plan.partitions();
-  RecordWriter partition(RecordFormat::kJsonLines, {"record", "partition", "lower", "upper"},
-                         &out);
-  for (size_t k = 0; k < parts.size(); ++k) {
-    partition.String("partition");
-    partition.Number(k);
-    partition.Number(parts[k].lower);
-    partition.Number(parts[k].upper);
-    partition.EndRow();
-  }
+  AppendPartitionRecords(plan, &out);
   for (const PartitionBanding& pair : plan.pairs()) AppendPairRecord(plan, r, pair, &out);
   RecordWriter curve(RecordFormat::kJsonLines,
                      {"record", "smaller", "larger", "containment", "probability"}, &out);

@@ -11,6 +11,7 @@
 #include <limits>
 
 #include "core/contract_internal.h"
+#include "kindred/records.h"
 
 namespace kindred {
 namespace {
@@ -147,6 +148,18 @@ const PartitionBanding& ContainmentPlan::PairOf(uint32_t small, uint32_t large) 
   // which hold n + (n - 1) + ... + (n - small + 1) pairs.
   const size_t row_start = small * n - (small * (small - 1)) / 2;
   return pairs_[row_start + (large - small)];
+}
+
+void AppendPartitionRecords(const ContainmentPlan& plan, std::string* out) {
+  const std::vector<SizePartition>& parts = plan.partitions();
+  RecordWriter row(RecordFormat::kJsonLines, {"record", "partition", "lower", "upper"}, out);
+  for (size_t k = 0; k < parts.size(); ++k) {
+    row.String("partition");
+    row.Number(k);
+    row.Number(parts[k].lower);
+    row.Number(parts[k].upper);
+    row.EndRow();
+  }
 }
 
 }  // namespace kindred

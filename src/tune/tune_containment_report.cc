@@ -68,15 +68,7 @@ std::string ContainmentText(const TuneReportInput& input) {
 
 void AppendContainmentRecords(const TuneReportInput& input, std::string* out) {
   const ContainmentPlan& plan = PlanOf(input);
-  const auto& parts = plan.partitions();
-  RecordWriter partition(RecordFormat::kJsonLines, {"record", "partition", "lower", "upper"}, out);
-  for (size_t k = 0; k < parts.size(); ++k) {
-    partition.String("partition");
-    partition.Number(k);
-    partition.Number(parts[k].lower);
-    partition.Number(parts[k].upper);
-    partition.EndRow();
-  }
+  AppendPartitionRecords(plan, out);
   RecordWriter pairs(RecordFormat::kJsonLines,
                      {"record", "smaller", "larger", "bands", "rows", "probability_at_threshold",
                       "probability_at_recall_point", "meets_recall_floor"},
