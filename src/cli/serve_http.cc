@@ -110,6 +110,9 @@ struct HttpServer::Impl {
 
   httplib::Server::HandlerResponse PreRoute(const httplib::Request& req, httplib::Response& res);
   bool Authorized(const httplib::Request& req) const;
+  // Sets the error response when a POST body is too large or of the wrong
+  // media type, and says whether it did.
+  bool RejectedBody(const httplib::Request& req, httplib::Response& res) const;
   void Query(const httplib::Request& req, httplib::Response& res, bool add);
   void Log(const httplib::Request& req, const httplib::Response& res);
   void Install();
@@ -122,6 +125,26 @@ bool HttpServer::Impl::Authorized(const httplib::Request& req) const {
     return false;
   }
   return SameToken(std::string_view(header).substr(kBearer.size()), options.token);
+}
+
+bool HttpServer::Impl::RejectedBody(const httplib::Request& req, httplib::Response& res) const {
+  uint64_t length = 0;
+  if (!absl::SimpleAtoi(req.get_header_value("Content-Length"), &length)) length = 0;
+  if (length > options.max_request_bytes) {
+    res.set_header("Connection", "close");
+    SetError(res, 413, "too_large",
+             absl::StrCat("a request body of ", length, " bytes: the limit is ",
+                          options.max_request_bytes));
+    return true;
+  }
+  const std::string type = req.get_header_value("Content-Type");
+  const std::string media = type.substr(0, type.find(';'));
+  if (media != "application/json" && media != "text/plain") {
+    SetError(res, 415, "unsupported_media_type",
+             "send application/json or text/plain (one document)");
+    return true;
+  }
+  return false;
 }
 
 httplib::Server::HandlerResponse HttpServer::Impl::PreRoute(const httplib::Request& req,
@@ -166,24 +189,7 @@ httplib::Server::HandlerResponse HttpServer::Impl::PreRoute(const httplib::Reque
     SetError(res, 401, "unauthorized", "a valid \"Authorization: Bearer\" token is required");
     return HR::Handled;
   }
-  if (std::string_view(route->method) == "POST") {
-    uint64_t length = 0;
-    if (!absl::SimpleAtoi(req.get_header_value("Content-Length"), &length)) length = 0;
-    if (length > options.max_request_bytes) {
-      res.set_header("Connection", "close");
-      SetError(res, 413, "too_large",
-               absl::StrCat("a request body of ", length, " bytes: the limit is ",
-                            options.max_request_bytes));
-      return HR::Handled;
-    }
-    const std::string type = req.get_header_value("Content-Type");
-    const std::string media = type.substr(0, type.find(';'));
-    if (media != "application/json" && media != "text/plain") {
-      SetError(res, 415, "unsupported_media_type",
-               "send application/json or text/plain (one document)");
-      return HR::Handled;
-    }
-  }
+  if (std::string_view(route->method) == "POST" && RejectedBody(req, res)) return HR::Handled;
   return HR::Unhandled;
 }
 

@@ -112,6 +112,44 @@ std::string Reason(const Group& group, uint32_t doc, absl::Span<const std::strin
   return reason;
 }
 
+// Every group member with its group and its best-scoring partner (and,
+// around keepers, its Jaccard similarity with its keeper), in document order:
+// the work and memory follow the members, not the corpus.
+struct MemberMatches {
+  std::vector<std::pair<uint32_t, uint32_t>> members;  // (document, group index)
+  std::vector<BestMatch> best;
+  std::vector<double> with_keeper;  // -1 where unknown; empty unless keepers
+};
+
+MemberMatches CollectMemberMatches(absl::Span<const Group> groups,
+                                   absl::Span<const ScoredPair> pairs, bool keepers) {
+  MemberMatches out;
+  std::vector<std::pair<uint32_t, uint32_t>>& members = out.members;
+  for (size_t g = 0; g < groups.size(); ++g) {
+    for (uint32_t member : groups[g].members) {
+      members.emplace_back(member, static_cast<uint32_t>(g));
+    }
+  }
+  std::sort(members.begin(), members.end());
+  out.best.resize(members.size());
+  out.with_keeper.assign(keepers ? members.size() : 0, -1);
+  const auto consider = [&](uint32_t doc, uint32_t partner, double jaccard) {
+    const auto it =
+        std::lower_bound(members.begin(), members.end(), std::pair<uint32_t, uint32_t>{doc, 0});
+    if (it != members.end() && it->first == doc) {
+      Consider(&out.best[it - members.begin()], partner, jaccard);
+      if (keepers && groups[it->second].keeper == partner) {
+        out.with_keeper[it - members.begin()] = jaccard;
+      }
+    }
+  };
+  for (const ScoredPair& pair : pairs) {
+    consider(pair.a, pair.b, pair.jaccard);
+    consider(pair.b, pair.a, pair.jaccard);
+  }
+  return out;
+}
+
 }  // namespace
 
 void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
@@ -123,32 +161,8 @@ void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
                                       "best_match", "jaccard",  "reason"};
   if (keepers) columns.push_back("grouping");
   RecordWriter writer(format, std::move(columns), out);
-  // (document, group index) of every group member, in document order: the
-  // work and memory follow the members, not the corpus.
-  std::vector<std::pair<uint32_t, uint32_t>> members;
-  for (size_t g = 0; g < groups.size(); ++g) {
-    for (uint32_t member : groups[g].members) {
-      members.emplace_back(member, static_cast<uint32_t>(g));
-    }
-  }
-  std::sort(members.begin(), members.end());
-  std::vector<BestMatch> best(members.size());
-  // Around keepers: each drop's Jaccard similarity with its keeper.
-  std::vector<double> with_keeper(keepers ? members.size() : 0, -1);
-  const auto consider = [&](uint32_t doc, uint32_t partner, double jaccard) {
-    const auto it =
-        std::lower_bound(members.begin(), members.end(), std::pair<uint32_t, uint32_t>{doc, 0});
-    if (it != members.end() && it->first == doc) {
-      Consider(&best[it - members.begin()], partner, jaccard);
-      if (keepers && groups[it->second].keeper == partner) {
-        with_keeper[it - members.begin()] = jaccard;
-      }
-    }
-  };
-  for (const ScoredPair& pair : pairs) {
-    consider(pair.a, pair.b, pair.jaccard);
-    consider(pair.b, pair.a, pair.jaccard);
-  }
+  const MemberMatches matches = CollectMemberMatches(groups, pairs, keepers);
+  const auto& members = matches.members;
   size_t next = 0;  // next member, in document order
   for (size_t doc = 0; doc < ids.size(); ++doc) {
     if (next == members.size() || members[next].first != doc) {
@@ -165,8 +179,8 @@ void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
       continue;
     }
     const uint32_t g = members[next].second;
-    const BestMatch& match = best[next];
-    const double keeper_jaccard = keepers ? with_keeper[next] : -1;
+    const BestMatch& match = matches.best[next];
+    const double keeper_jaccard = keepers ? matches.with_keeper[next] : -1;
     ++next;
     const Group& group = groups[g];
     const bool keeper = group.keeper == doc;

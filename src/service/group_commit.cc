@@ -132,19 +132,21 @@ bool GroupCommitter::Resolve(Pending* p, SignedCorpus* combined, std::vector<int
   return true;
 }
 
+bool GroupCommitter::ReopenWriter(const std::vector<Pending*>& group) {
+  if (writer_ != nullptr) return true;
+  if (auto reopened = IndexWriter::Open(path_, write_options_); reopened.ok()) {
+    writer_ = std::move(*reopened);
+    return true;
+  }
+  for (Pending* p : group) {
+    p->status = Refuse(Refusal::kUnavailable, "the index cannot be opened for writing again");
+  }
+  return false;
+}
+
 void GroupCommitter::CommitGroup(const std::vector<Pending*>& group,
                                  std::vector<Pending*>* deferred) {
-  if (writer_ == nullptr) {
-    if (auto reopened = IndexWriter::Open(path_, write_options_); reopened.ok()) {
-      writer_ = std::move(*reopened);
-    }
-  }
-  if (writer_ == nullptr) {
-    for (Pending* p : group) {
-      p->status = Refuse(Refusal::kUnavailable, "the index cannot be opened for writing again");
-    }
-    return;
-  }
+  if (!ReopenWriter(group)) return;
   if (combined_ == nullptr || combined_->memory_bytes() > (64 << 20)) {
     combined_ = std::make_unique<SignedCorpus>(writer_->reader().settings().signature.perms);
   }

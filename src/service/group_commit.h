@@ -78,6 +78,9 @@ class GroupCommitter {
   // Commits what it can of `group`; requests that must wait are appended to
   // *deferred.
   void CommitGroup(const std::vector<Pending*>& group, std::vector<Pending*>* deferred);
+  // Opens the writer again after a failure; false (every request of the
+  // group refused) when it cannot be opened.
+  bool ReopenWriter(const std::vector<Pending*>& group);
   // Decides each document of `p` against the index, adds the kept ones to
   // *combined (their positions in *positions); false when refused.
   bool Resolve(Pending* p, SignedCorpus* combined, std::vector<int64_t>* positions);
