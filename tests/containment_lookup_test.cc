@@ -26,7 +26,9 @@ std::vector<std::tuple<uint32_t, bool, uint32_t, uint32_t>> Found(const IndexRea
   auto matches = MatchAgainstIndex(reader, batch, IndexMatchOptions{match, 1, false});
   REQUIRE(matches.ok());
   std::vector<std::tuple<uint32_t, bool, uint32_t, uint32_t>> out;
-  for (const IndexMatch& m : *matches) out.emplace_back(m.query, m.in_index, m.other, m.shared);
+  for (const IndexMatch& m : *matches) {
+    out.emplace_back(m.query(), m.in_index, m.other(), m.pair.shared);
+  }
   return out;
 }
 

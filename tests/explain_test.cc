@@ -8,6 +8,7 @@
 
 #include "kindred/shingles.h"
 #include "kindred/signer.h"
+#include "kindred/verify.h"
 #include "testlib/temp_dir.h"
 
 namespace kindred {
@@ -31,12 +32,12 @@ TEST_CASE("word 2-shingles: the shared run is marked in both texts", "[explain]"
   // Shared 2-shingles: "cat sat" and "sat on". Each text has 5 distinct.
   const auto e = Explain("The cat sat on the mat.", "A cat sat on a mat", Words(2));
   REQUIRE(e.ok());
-  CHECK(e->overlap.shared == 2);
-  CHECK(e->overlap.size_a == 5);
-  CHECK(e->overlap.size_b == 5);
-  CHECK(e->jaccard == Approx(2.0 / 8));
-  CHECK(e->containment_a_in_b == Approx(0.4));
-  CHECK(e->containment_b_in_a == Approx(0.4));
+  CHECK(e->measure.shared == 2);
+  CHECK(e->measure.size_a == 5);
+  CHECK(e->measure.size_b == 5);
+  CHECK(e->measure.jaccard == Approx(2.0 / 8));
+  CHECK(e->measure.ContainmentOfAInB() == Approx(0.4));
+  CHECK(e->measure.ContainmentOfBInA() == Approx(0.4));
   CHECK(e->marked_a == Spans({{4, 14}}));
   CHECK(e->marked_b == Spans({{2, 12}}));
   REQUIRE(e->passages.size() == 1);
@@ -58,7 +59,7 @@ TEST_CASE("separate runs stay separate; overlapping runs merge", "[explain]") {
   REQUIRE(e.ok());
   CHECK(e->marked_a == Spans({{0, 9}}));
   CHECK(e->marked_b == Spans({{0, 5}, {8, 13}}));
-  CHECK(e->overlap.shared == 2);
+  CHECK(e->measure.shared == 2);
 }
 
 TEST_CASE("char shingles map back to original bytes of multi-byte text", "[explain]") {
@@ -68,8 +69,8 @@ TEST_CASE("char shingles map back to original bytes of multi-byte text", "[expla
   settings.k = 4;
   const auto e = Explain("naïve café", "CAFÉ", settings);
   REQUIRE(e.ok());
-  CHECK(e->overlap.shared == 1);
-  CHECK(e->overlap.size_b == 1);
+  CHECK(e->measure.shared == 1);
+  CHECK(e->measure.size_b == 1);
   CHECK(e->marked_a == Spans({{7, 12}}));
   CHECK(e->marked_b == Spans({{0, 5}}));
 }
@@ -91,14 +92,14 @@ TEST_CASE("aligned passages: the longest run first, with both ranges", "[explain
 TEST_CASE("empty and disjoint texts mark nothing", "[explain]") {
   auto e = Explain("", "anything at all here", Words(3));
   REQUIRE(e.ok());
-  CHECK(e->overlap.size_a == 0);
-  CHECK(e->jaccard == 0);
-  CHECK(e->estimate == 0);
+  CHECK(e->measure.size_a == 0);
+  CHECK(e->measure.jaccard == 0);
+  CHECK(e->measure.estimate == 0);
   CHECK(e->marked_a.empty());
   CHECK(e->marked_b.empty());
   e = Explain("red green blue", "one two three", Words(1));
   REQUIRE(e.ok());
-  CHECK(e->overlap.shared == 0);
+  CHECK(e->measure.shared == 0);
   CHECK(e->passages.empty());
 }
 
@@ -118,14 +119,14 @@ TEST_CASE("numbers agree with the signing path", "[explain]") {
   ShingleSet set_a, set_b;
   REQUIRE((*shingler)->Shingle(a, &set_a).ok());
   REQUIRE((*shingler)->Shingle(b, &set_b).ok());
-  const Overlap overlap = MeasureOverlap(set_a, set_b);
-  CHECK(e->overlap.shared == overlap.shared);
-  CHECK(e->overlap.size_a == set_a.size());
-  CHECK(e->overlap.size_b == set_b.size());
+  const ScoredPair overlap = MeasureOverlap(set_a, set_b);
+  CHECK(e->measure.shared == overlap.shared);
+  CHECK(e->measure.size_a == set_a.size());
+  CHECK(e->measure.size_b == set_b.size());
   const Signer signer(settings);
-  CHECK(e->estimate == EstimateJaccard(signer.Sign(set_a), signer.Sign(set_b)));
+  CHECK(e->measure.estimate == EstimateJaccard(signer.Sign(set_a), signer.Sign(set_b)));
   // All of a lies inside b: the whole of a's words is marked.
-  CHECK(e->containment_a_in_b == 1.0);
+  CHECK(e->measure.ContainmentOfAInB() == 1.0);
   REQUIRE(e->marked_a.size() == 1);
   CHECK(e->marked_a[0] == TextSpan{0, static_cast<uint32_t>(a.size() - 1)});  // no final '.'
 }

@@ -28,9 +28,9 @@ struct Expected {
 bool SameMatches(const std::vector<IndexMatch>& a, const std::vector<IndexMatch>& b) {
   if (a.size() != b.size()) return false;
   for (size_t i = 0; i < a.size(); ++i) {
-    if (a[i].query != b[i].query || a[i].other != b[i].other || a[i].in_index != b[i].in_index ||
-        a[i].shared != b[i].shared || a[i].jaccard != b[i].jaccard ||
-        a[i].estimate != b[i].estimate) {
+    if (a[i].query() != b[i].query() || a[i].other() != b[i].other() ||
+        a[i].in_index != b[i].in_index || a[i].pair.shared != b[i].pair.shared ||
+        a[i].pair.jaccard != b[i].pair.jaccard || a[i].pair.estimate != b[i].pair.estimate) {
       return false;
     }
   }

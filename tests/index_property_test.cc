@@ -68,10 +68,11 @@ std::vector<Pair> IncrementalPairs(const SignedCorpus& corpus, const IndexSettin
     auto matches = MatchAgainstIndex((*writer)->reader(), batch, options);
     REQUIRE(matches.ok());
     for (const IndexMatch& m : *matches) {
-      uint32_t query = static_cast<uint32_t>(cuts[c]) + m.query;
-      uint32_t other = m.in_index ? m.other : static_cast<uint32_t>(cuts[c]) + m.other;
+      uint32_t query = static_cast<uint32_t>(cuts[c]) + m.query();
+      uint32_t other = m.in_index ? m.other() : static_cast<uint32_t>(cuts[c]) + m.other();
       pairs.push_back(
-          {std::min(query, other), std::max(query, other), m.shared, m.jaccard, m.estimate});
+          {std::min(query, other), std::max(query, other), m.pair.shared, m.pair.jaccard,
+           m.pair.estimate});
     }
     REQUIRE((*writer)->Append(batch, DuplicateIdPolicy::kError).ok());
   }

@@ -376,7 +376,7 @@ TEST_CASE("a crowded index key proposes its first live document only", "[index]"
   auto matches = MatchAgainstIndex(*reader, query, options);
   REQUIRE(matches.ok());
   REQUIRE(matches->size() == 1);
-  REQUIRE((*matches)[0].other == 1);
+  REQUIRE((*matches)[0].other() == 1);
   REQUIRE(crowded == 16);
   options.max_bucket = 0;
   matches = MatchAgainstIndex(*reader, query, options);
@@ -399,17 +399,17 @@ TEST_CASE("matches against an index are confirmed exactly", "[index]") {
   REQUIRE_FALSE(matches->empty());
   for (const IndexMatch& m : *matches) {
     // Exact Jaccard recomputed here with std::set_intersection.
-    auto q = all.shingles(20 + m.query);
-    auto o = all.shingles(m.in_index ? m.other : 20 + m.other);
+    auto q = all.shingles(20 + m.query());
+    auto o = all.shingles(m.in_index ? m.other() : 20 + m.other());
     std::vector<uint64_t> both;
     std::set_intersection(q.begin(), q.end(), o.begin(), o.end(), std::back_inserter(both));
     double jaccard = double(both.size()) / double(q.size() + o.size() - both.size());
-    REQUIRE(m.jaccard == Approx(jaccard));
-    REQUIRE(m.jaccard >= 0.5);
-    REQUIRE(m.shared == both.size());
-    REQUIRE(m.QueryInOther() == Approx(double(both.size()) / q.size()));
-    REQUIRE(m.OtherInQuery() == Approx(double(both.size()) / o.size()));
-    if (!m.in_index) REQUIRE(m.other < m.query);
+    REQUIRE(m.pair.jaccard == Approx(jaccard));
+    REQUIRE(m.pair.jaccard >= 0.5);
+    REQUIRE(m.pair.shared == both.size());
+    REQUIRE(m.pair.ContainmentOfAInB() == Approx(double(both.size()) / q.size()));
+    REQUIRE(m.pair.ContainmentOfBInA() == Approx(double(both.size()) / o.size()));
+    if (!m.in_index) REQUIRE(m.other() < m.query());
   }
 }
 

@@ -68,12 +68,12 @@ TEST_CASE(
     "[tune]") {
   const std::vector<ResolvedPair> labelled = {
       {0, 1, true, 0}, {0, 2, true, 1}, {1, 2, false, 2}, {2, 3, false, 3}, {1, 3, true, 4}};
-  // shared, |A|, |B|, jaccard, measure: Jaccard 0.8, 0.8, 0.8, 0.4, 0.5.
-  const std::vector<PairMeasure> measures = {{8, 9, 9, 0.8, 0.8},
-                                             {8, 9, 9, 0.8, 0.8},
-                                             {8, 9, 9, 0.8, 0.8},
-                                             {4, 7, 7, 0.4, 0.4},
-                                             {5, 7, 8, 0.5, 0.5}};
+  // a, b, shared, |A|, |B|, jaccard, estimate: Jaccard 0.8, 0.8, 0.8, 0.4, 0.5.
+  const std::vector<ScoredPair> measures = {{0, 1, 8, 9, 9, 0.8, 0},
+                                            {0, 2, 8, 9, 9, 0.8, 0},
+                                            {1, 2, 8, 9, 9, 0.8, 0},
+                                            {2, 3, 4, 7, 7, 0.4, 0},
+                                            {1, 3, 5, 7, 8, 0.5, 0}};
   const std::vector<uint8_t> candidate = {1, 0, 1, 1, 1};
   std::vector<uint32_t> wrong;
   const LabelScore s =

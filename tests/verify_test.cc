@@ -33,7 +33,7 @@ TEST_CASE("MeasureOverlap agrees with std::set_intersection", "[verify]") {
       const auto b = RandomSet(random, size_b, range);
       std::vector<uint64_t> common;
       std::set_intersection(a.begin(), a.end(), b.begin(), b.end(), std::back_inserter(common));
-      const Overlap overlap = MeasureOverlap(a, b);
+      const ScoredPair overlap = MeasureOverlap(a, b);
       INFO("sizes " << a.size() << " and " << b.size() << ", range " << range);
       CHECK(overlap.shared == common.size());
       CHECK(overlap.size_a == a.size());
@@ -43,8 +43,11 @@ TEST_CASE("MeasureOverlap agrees with std::set_intersection", "[verify]") {
 }
 
 TEST_CASE("Jaccard and containment follow their definitions", "[verify]") {
-  const Overlap overlap{3, 4, 6};  // |A n B| = 3, |A u B| = 7
-  CHECK(overlap.Jaccard() == Approx(3.0 / 7.0));
+  ScoredPair overlap;  // |A n B| = 3, |A u B| = 7
+  overlap.shared = 3;
+  overlap.size_a = 4;
+  overlap.size_b = 6;
+  CHECK(JaccardOf(3, 4, 6) == Approx(3.0 / 7.0));
   CHECK(overlap.ContainmentOfAInB() == Approx(0.75));
   CHECK(overlap.ContainmentOfBInA() == Approx(0.5));
   CHECK(overlap.Containment() == Approx(0.75));
@@ -52,23 +55,23 @@ TEST_CASE("Jaccard and containment follow their definitions", "[verify]") {
 
 TEST_CASE("Two empty sets have Jaccard 0, never 1", "[verify]") {
   const std::vector<uint64_t> empty;
-  const Overlap overlap = MeasureOverlap(empty, empty);
-  CHECK(overlap.Jaccard() == 0.0);
+  const ScoredPair overlap = MeasureOverlap(empty, empty);
+  CHECK(overlap.jaccard == 0.0);
   CHECK(overlap.Containment() == 0.0);
 }
 
 TEST_CASE("Identical sets have Jaccard 1", "[verify]") {
   const std::vector<uint64_t> set = {1, 5, 9, 1ull << 63, ~0ull};
-  CHECK(MeasureOverlap(set, set).Jaccard() == 1.0);
+  CHECK(MeasureOverlap(set, set).jaccard == 1.0);
 }
 
 TEST_CASE("Pairs with known Jaccard measure exactly", "[verify]") {
   SplitMix64 random(11);
   for (uint64_t intersection : {0, 1, 37, 250, 400}) {
     const auto pair = testing::MakeSetPair(random, 400, intersection);
-    const Overlap overlap = MeasureOverlap(pair.a, pair.b);
+    const ScoredPair overlap = MeasureOverlap(pair.a, pair.b);
     CHECK(overlap.shared == intersection);
-    CHECK(overlap.Jaccard() == Approx(static_cast<double>(intersection) / 400));
+    CHECK(overlap.jaccard == Approx(static_cast<double>(intersection) / 400));
   }
 }
 
@@ -86,9 +89,9 @@ TEST_CASE("MeasureOverlapAtLeast stops only pairs that cannot reach the bound", 
     for (int trial = 0; trial < 20; ++trial) {
       const auto a = RandomSet(random, size_a, 1500);
       const auto b = RandomSet(random, size_b, 1500);
-      const Overlap exact = MeasureOverlap(a, b);
+      const ScoredPair exact = MeasureOverlap(a, b);
       for (uint32_t needed : {0u, 1u, exact.shared, exact.shared + 1, exact.shared + 50}) {
-        Overlap bounded;
+        ScoredPair bounded;
         const bool reached = MeasureOverlapAtLeast(a, b, needed, &bounded);
         CHECK(reached == (exact.shared >= needed));
         if (reached) {

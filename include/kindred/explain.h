@@ -31,7 +31,7 @@
 #include "kindred/corpus.h"
 #include "kindred/settings.h"
 #include "kindred/shingles.h"
-#include "kindred/verify.h"
+#include "kindred/scored_pairs.h"
 
 namespace kindred {
 
@@ -51,11 +51,11 @@ struct AlignedPassage {
 
 struct Explanation {
   SignatureSettings settings;
-  Overlap overlap;      // shared, size_a, size_b (distinct shingles)
-  double jaccard = 0;   // exact
-  double estimate = 0;  // signature estimate with settings.perms slots
-  double containment_a_in_b = 0;
-  double containment_b_in_a = 0;
+  // The two texts measured (a = 0, b = 1): shared, size_a, size_b
+  // (distinct shingles), the exact Jaccard, the signature estimate with
+  // settings.perms slots; the containments are its ContainmentOfAInB() and
+  // ContainmentOfBInA().
+  ScoredPair measure;
   std::vector<TextSpan> marked_a;  // ascending, disjoint
   std::vector<TextSpan> marked_b;
   std::vector<AlignedPassage> passages;  // longest first
@@ -79,7 +79,7 @@ std::vector<AlignedPassage> AlignPassages(absl::Span<const ShingleText> a,
 absl::StatusOr<Explanation> Explain(std::string_view text_a, std::string_view text_b,
                                     const SignatureSettings& settings);
 
-// Fills the numbers of *out (overlap, jaccard, containments, estimate) from
+// Fills out->measure (b = 1, the counts, jaccard, estimate) from
 // two sorted shingle sets and their signatures (equal lengths, from the same
 // settings). Leaves the spans and passages alone.
 void MeasureExplanation(absl::Span<const uint64_t> set_a, absl::Span<const uint64_t> set_b,

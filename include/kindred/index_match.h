@@ -24,23 +24,22 @@
 #include "kindred/index.h"
 #include "kindred/records.h"
 #include "kindred/settings.h"
+#include "kindred/scored_pairs.h"
 #include "kindred/signed_corpus.h"
 #include "kindred/sweep.h"
 
 namespace kindred {
 
-// One confirmed match of a batch document.
+// One confirmed match of a batch document: the measured pair (verify.h)
+// of the batch document Q (pair.a, sizes pair.size_a = |Q|) and the other
+// document O (pair.b, pair.size_b = |O|), and where O is.
 struct IndexMatch {
-  uint32_t query = 0;       // the batch document
-  bool in_index = false;    // other is an indexed document (else a batch one)
-  uint32_t other = 0;       // index document number, or an earlier batch document
-  uint32_t shared = 0;      // |Q n O|
-  uint32_t query_size = 0;  // |Q|
-  uint32_t other_size = 0;  // |O|
-  double jaccard = 0;       // exact
-  double estimate = 0;      // from the signatures
-  double QueryInOther() const { return query_size ? double(shared) / query_size : 0; }
-  double OtherInQuery() const { return other_size ? double(shared) / other_size : 0; }
+  ScoredPair pair;
+  bool in_index = false;  // O is an indexed document (else a batch one)
+
+  uint32_t query() const { return pair.a; }  // the batch document
+  // An index document number when in_index, else an earlier batch document.
+  uint32_t other() const { return pair.b; }
 };
 
 struct IndexMatchOptions {

@@ -24,21 +24,9 @@
 #include "kindred/groups.h"
 #include "kindred/settings.h"
 #include "kindred/signed_corpus.h"
-#include "kindred/verify.h"  // PassesThreshold
+#include "kindred/verify.h"  // VerifyPairs, ExhaustivePairs
 
 namespace kindred {
-
-// Confirms each candidate pair on the shingle sets; returns the pairs that
-// pass, in the order of `candidates` (ascending), with exact and estimated
-// similarity.
-std::vector<ScoredPair> VerifyPairs(const SignedCorpus& corpus,
-                                    absl::Span<const PackedPair> candidates,
-                                    const MatchSettings& match, int threads);
-
-// The reference: every pair compared exactly, no LSH. Quadratic; for small
-// corpora and for measuring LSH recall.
-std::vector<ScoredPair> ExhaustivePairs(const SignedCorpus& corpus, const MatchSettings& match,
-                                        int threads);
 
 // True when an LSH sweep with `match` proposes candidates by the containment
 // LSH (containment_lsh.h): measure containment with automatic banding. With

@@ -58,6 +58,7 @@
 #include "kindred/containment_lsh.h"
 #include "kindred/corpus.h"
 #include "kindred/labels.h"
+#include "kindred/scored_pairs.h"
 #include "kindred/settings.h"
 
 namespace kindred {
@@ -162,15 +163,6 @@ struct SettingScore {
   uint32_t grid_order = 0;
 };
 
-// A labelled pair under one shingle setting.
-struct PairMeasure {
-  uint32_t shared = 0;
-  uint32_t size_a = 0;
-  uint32_t size_b = 0;
-  double jaccard = 0;
-  double measure = 0;  // the measure compared with the threshold
-};
-
 // Candidate similarities in 20 bins of width 0.05: bin i holds [i/20,
 // (i+1)/20), the last also 1.0.
 using SimilarityHistogram = std::array<uint64_t, 20>;
@@ -192,7 +184,13 @@ struct SignatureEvaluation {
 struct ShingleEvaluation {
   ShingleChoice shingle;
   uint64_t empty_documents = 0;
-  std::vector<PairMeasure> labelled;  // per labelled pair
+  Measure measure = Measure::kJaccard;  // the measure compared with the threshold
+  // Per labelled pair, measured on its exact shingle sets (verify.h): a, b
+  // its documents, estimate 0 (the estimates are per signing, in
+  // SignatureEvaluation).
+  std::vector<ScoredPair> labelled;
+  // The value of `measure` for labelled pair i.
+  double MeasureOf(size_t i) const;
 };
 
 struct TuneResult {
@@ -217,7 +215,7 @@ struct TuneResult {
 // PassesThreshold does, with `min_contained_size` for containment). Appends
 // the wrong pairs' indices to *wrong when not null.
 LabelScore ScoreLabels(absl::Span<const ResolvedPair> labelled,
-                       absl::Span<const PairMeasure> measures, absl::Span<const uint8_t> candidate,
+                       absl::Span<const ScoredPair> measures, absl::Span<const uint8_t> candidate,
                        double threshold, Measure measure, double beta,
                        std::vector<uint32_t>* wrong,
                        uint32_t min_contained_size = kDefaultMinContainedSize);

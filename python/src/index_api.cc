@@ -66,9 +66,11 @@ class PyIndex {
     Check(status);
     py::list out;
     for (const IndexMatch& m : matches) {
-      const std::string other = m.in_index ? std::string(matched_->id(m.other)) : batch.id(m.other);
-      out.append(py::make_tuple(batch.id(m.query), other, m.in_index, m.jaccard, m.estimate,
-                                m.shared, m.query_size, m.other_size));
+      const std::string other =
+          m.in_index ? std::string(matched_->id(m.other())) : batch.id(m.other());
+      const ScoredPair& p = m.pair;
+      out.append(py::make_tuple(batch.id(m.query()), other, m.in_index, p.jaccard, p.estimate,
+                                p.shared, p.size_a, p.size_b));
     }
     py::list actions;
     if (appended.has_value()) {

@@ -94,7 +94,7 @@ void CheckSet(const U64Array& set, const char* name) {
   }
 }
 
-Overlap OverlapOf(const U64Array& a, const U64Array& b) {
+ScoredPair OverlapOf(const U64Array& a, const U64Array& b) {
   CheckSet(a, "a");
   CheckSet(b, "b");
   py::gil_scoped_release release;
@@ -133,12 +133,12 @@ void RegisterText(py::module_& module) {
   module.def(
       "overlap",
       [](const U64Array& a, const U64Array& b) {
-        const Overlap o = OverlapOf(a, b);
+        const ScoredPair o = OverlapOf(a, b);
         return py::make_tuple(o.shared, o.size_a, o.size_b);
       },
       py::arg("a"), py::arg("b"), "(shared, size_a, size_b) of two shingle sets.");
   module.def(
-      "jaccard", [](const U64Array& a, const U64Array& b) { return OverlapOf(a, b).Jaccard(); },
+      "jaccard", [](const U64Array& a, const U64Array& b) { return OverlapOf(a, b).jaccard; },
       py::arg("a"), py::arg("b"),
       "Exact Jaccard similarity |A n B| / |A u B| of two shingle sets (0 for two empty sets).");
   module.def(

@@ -119,7 +119,7 @@ absl::StatusOr<Explanation> ExplainFromIndex(const ExplainFlags& flags, const Su
 }
 
 std::string Numbers(const Subject& subject, const Explanation& e) {
-  const Overlap& o = e.overlap;
+  const ScoredPair& o = e.measure;
   std::string out = absl::StrFormat(
       "a: %s\nb: %s\nsettings: %s\n\n"
       "exact Jaccard            %.4f\nsignature estimate       %.4f  (%u "
@@ -128,8 +128,8 @@ std::string Numbers(const Subject& subject, const Explanation& e) {
       "shingles of a            %u\nshingles of b            %u\nshared "
       "shingles          %u\n"
       "only in a                %u\nonly in b                %u\n",
-      subject.name_a, subject.name_b, e.settings.ToString(), e.jaccard, e.estimate,
-      e.settings.perms, e.containment_a_in_b, e.containment_b_in_a, o.size_a, o.size_b, o.shared,
+      subject.name_a, subject.name_b, e.settings.ToString(), o.jaccard, o.estimate,
+      e.settings.perms, o.ContainmentOfAInB(), o.ContainmentOfBInA(), o.size_a, o.size_b, o.shared,
       o.size_a - o.shared, o.size_b - o.shared);
   for (const auto& [name, size] : {std::pair{"a", o.size_a}, std::pair{"b", o.size_b}}) {
     if (size == 0) {
@@ -208,11 +208,12 @@ std::string JsonRecord(const Subject& subject, const Explanation& e) {
   RecordWriter record(RecordFormat::kJsonLines, std::move(columns), &out);
   record.String(subject.name_a);
   record.String(subject.name_b);
-  for (double value : {e.jaccard, e.estimate, e.containment_a_in_b, e.containment_b_in_a}) {
+  const ScoredPair& m = e.measure;
+  for (double value : {m.jaccard, m.estimate, m.ContainmentOfAInB(), m.ContainmentOfBInA()}) {
     record.Similarity(value);
   }
-  for (uint64_t value : {uint64_t{e.overlap.size_a}, uint64_t{e.overlap.size_b},
-                         uint64_t{e.overlap.shared}, uint64_t{e.settings.perms}}) {
+  for (uint64_t value : {uint64_t{m.size_a}, uint64_t{m.size_b}, uint64_t{m.shared},
+                         uint64_t{e.settings.perms}}) {
     record.Number(value);
   }
   if (subject.has_texts) {

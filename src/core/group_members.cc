@@ -46,7 +46,7 @@ std::vector<ScoredPair> ExpandGroups(const SignedCorpus& corpus, const GroupMemb
     if (members.size() < 2 || size == 0 || !PassesThreshold(size, size, size, match)) continue;
     ScoredPair same;
     same.shared = same.size_a = same.size_b = size;
-    same.jaccard = Overlap{size, size, size}.Jaccard();
+    same.jaccard = JaccardOf(size, size, size);
     same.estimate = EstimateJaccard(corpus.signature(rep), corpus.signature(rep));
     for (size_t x = 0; x < members.size(); ++x) {
       for (size_t y = x + 1; y < members.size(); ++y) {

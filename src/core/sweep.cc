@@ -4,9 +4,6 @@
 #include <chrono>
 
 #include "core/group_members.h"
-#include "core/verify_pairs.h"
-
-#include "core/parallel.h"
 #include "core/reload.h"
 #include "kindred/signer.h"
 #include "kindred/sweep_stages.h"
@@ -18,62 +15,6 @@ namespace {
 double SecondsSince(std::chrono::steady_clock::time_point start) {
   return std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
 }
-
-// The sets and signatures of a corpus's documents for verification: those
-// of their representatives (the documents themselves unless the corpus
-// groups identical sets).
-struct RepresentativeSets {
-  const SignedCorpus& corpus;
-  absl::Span<const uint64_t> shingles(uint32_t doc) const {
-    return corpus.shingles(corpus.representative(doc));
-  }
-  absl::Span<const uint32_t> signature(uint32_t doc) const {
-    return corpus.signature(corpus.representative(doc));
-  }
-};
-
-}  // namespace
-
-bool UsesContainmentSearch(const MatchSettings& match) {
-  return match.measure == Measure::kContainment && match.bands == 0;
-}
-
-std::vector<ScoredPair> VerifyPairs(const SignedCorpus& corpus,
-                                    absl::Span<const PackedPair> candidates,
-                                    const MatchSettings& match, int threads) {
-  return internal::VerifyWith(candidates, RepresentativeSets{corpus}, match, threads);
-}
-
-std::vector<ScoredPair> ExhaustivePairs(const SignedCorpus& corpus, const MatchSettings& match,
-                                        int threads) {
-  const size_t n = corpus.size();
-  std::vector<std::vector<ScoredPair>> parts(n);
-  ParallelFor(n, threads, [&](size_t begin, size_t end, int) {
-    for (size_t a = begin; a < end; ++a) {
-      const auto set_a = corpus.shingles(a);
-      for (size_t b = a + 1; b < n; ++b) {
-        const auto set_b = corpus.shingles(b);
-        // Exact pruning for Jaccard: J <= min/max of the set sizes.
-        if (match.measure == Measure::kJaccard &&
-            std::min(set_a.size(), set_b.size()) <
-                match.threshold * std::max(set_a.size(), set_b.size()) - 1e-9) {
-          continue;
-        }
-        if (match.measure == Measure::kContainment &&
-            std::min(set_a.size(), set_b.size()) < match.min_contained_size) {
-          continue;
-        }
-        const Overlap overlap = MeasureOverlap(set_a, set_b);
-        if (PassesThreshold(overlap.shared, overlap.size_a, overlap.size_b, match)) {
-          parts[a].push_back(internal::Score(a, b, overlap, corpus.signature(a), corpus.signature(b)));
-        }
-      }
-    }
-  });
-  return internal::Concatenate(parts);
-}
-
-namespace {
 
 Banding BandingFor(const SweepOptions& options) {
   return ResolveBanding(options.match, options.signature.perms);
@@ -224,6 +165,10 @@ absl::StatusOr<SweepResult> RunSweep(CorpusReader& reader, const SweepOptions& o
     return status;
   }
   return result;
+}
+
+bool UsesContainmentSearch(const MatchSettings& match) {
+  return match.measure == Measure::kContainment && match.bands == 0;
 }
 
 }  // namespace kindred

@@ -15,13 +15,12 @@ void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
                        "shared", "shingles_a", "shingles_b"},
                       out);
   for (const ScoredPair& pair : pairs) {
-    const Overlap overlap{pair.shared, pair.size_a, pair.size_b};
     writer.String(ids[pair.a]);
     writer.String(ids[pair.b]);
     writer.Similarity(pair.jaccard);
     writer.Similarity(pair.estimate);
-    writer.Similarity(overlap.ContainmentOfAInB());
-    writer.Similarity(overlap.ContainmentOfBInA());
+    writer.Similarity(pair.ContainmentOfAInB());
+    writer.Similarity(pair.ContainmentOfBInA());
     writer.Number(pair.shared);
     writer.Number(pair.size_a);
     writer.Number(pair.size_b);

@@ -1,8 +1,9 @@
 #include "kindred/verify.h"
 
-#include "core/verify_pairs.h"
-
 #include <algorithm>
+
+#include "core/parallel.h"
+#include "core/verify_pairs.h"
 
 namespace kindred {
 namespace {
@@ -79,55 +80,59 @@ uint32_t GallopCount(absl::Span<const uint64_t> small, absl::Span<const uint64_t
 
 }  // namespace
 
-double Overlap::Jaccard() const {
+double JaccardOf(uint32_t shared, uint32_t size_a, uint32_t size_b) {
   const uint64_t uni = uint64_t{size_a} + size_b - shared;
   return uni == 0 ? 0.0 : static_cast<double>(shared) / static_cast<double>(uni);
 }
 
-double Overlap::ContainmentOfAInB() const {
-  return size_a == 0 ? 0.0 : static_cast<double>(shared) / size_a;
+double MeasureOf(const ScoredPair& pair, Measure measure) {
+  return measure == Measure::kJaccard ? pair.jaccard : pair.Containment();
 }
 
-double Overlap::ContainmentOfBInA() const {
-  return size_b == 0 ? 0.0 : static_cast<double>(shared) / size_b;
-}
+namespace {
 
-double Overlap::Containment() const { return std::max(ContainmentOfAInB(), ContainmentOfBInA()); }
-
-Overlap MeasureOverlap(absl::Span<const uint64_t> a, absl::Span<const uint64_t> b) {
-  Overlap overlap;
-  overlap.size_a = static_cast<uint32_t>(a.size());
-  overlap.size_b = static_cast<uint32_t>(b.size());
-  if (a.empty() || b.empty()) return overlap;
+// The shared count of two sets (MeasureOverlap without the Jaccard).
+uint32_t CountShared(absl::Span<const uint64_t> a, absl::Span<const uint64_t> b) {
+  if (a.empty() || b.empty()) return 0;
   // Disjoint ranges share nothing.
-  if (a.back() < b.front() || b.back() < a.front()) return overlap;
-  const bool a_small = a.size() * 16 < b.size();
-  const bool b_small = b.size() * 16 < a.size();
-  if (a_small) {
-    overlap.shared = GallopCount(a, b);
-  } else if (b_small) {
-    overlap.shared = GallopCount(b, a);
-  } else {
-    overlap.shared = MergeCount(a.data(), a.data() + a.size(), b.data(), b.data() + b.size());
-  }
-  return overlap;
+  if (a.back() < b.front() || b.back() < a.front()) return 0;
+  if (a.size() * 16 < b.size()) return GallopCount(a, b);
+  if (b.size() * 16 < a.size()) return GallopCount(b, a);
+  return MergeCount(a.data(), a.data() + a.size(), b.data(), b.data() + b.size());
+}
+
+}  // namespace
+
+ScoredPair MeasureOverlap(absl::Span<const uint64_t> a, absl::Span<const uint64_t> b) {
+  ScoredPair pair;
+  pair.size_a = static_cast<uint32_t>(a.size());
+  pair.size_b = static_cast<uint32_t>(b.size());
+  pair.shared = CountShared(a, b);
+  pair.jaccard = JaccardOf(pair.shared, pair.size_a, pair.size_b);
+  return pair;
 }
 
 bool MeasureOverlapAtLeast(absl::Span<const uint64_t> a, absl::Span<const uint64_t> b,
-                           uint32_t needed, Overlap* out) {
-  *out = Overlap{0, static_cast<uint32_t>(a.size()), static_cast<uint32_t>(b.size())};
+                           uint32_t needed, ScoredPair* out) {
+  *out = ScoredPair{};
+  out->size_a = static_cast<uint32_t>(a.size());
+  out->size_b = static_cast<uint32_t>(b.size());
   if (needed == 0) {
     *out = MeasureOverlap(a, b);
     return true;
   }
   if (a.empty() || b.empty() || a.back() < b.front() || b.back() < a.front()) return false;
+  bool reached;
   if (a.size() * 16 < b.size() || b.size() * 16 < a.size()) {
     const bool a_small = a.size() < b.size();
     out->shared = a_small ? GallopCount(a, b, needed) : GallopCount(b, a, needed);
-    return out->shared >= needed;
+    reached = out->shared >= needed;
+  } else {
+    reached = BoundedMergeCount(a.data(), a.data() + a.size(), b.data(), b.data() + b.size(),
+                                needed, &out->shared);
   }
-  return BoundedMergeCount(a.data(), a.data() + a.size(), b.data(), b.data() + b.size(), needed,
-                           &out->shared);
+  if (reached) out->jaccard = JaccardOf(out->shared, out->size_a, out->size_b);
+  return reached;
 }
 
 bool PassesThreshold(uint32_t shared, uint32_t size_a, uint32_t size_b,
@@ -154,5 +159,57 @@ uint32_t NeededShared(size_t size_a, size_t size_b, const MatchSettings& match) 
 }
 
 }  // namespace internal
+
+namespace {
+
+// The sets and signatures of a corpus's documents for verification: those
+// of their representatives (the documents themselves unless the corpus
+// groups identical sets).
+struct RepresentativeSets {
+  const SignedCorpus& corpus;
+  absl::Span<const uint64_t> shingles(uint32_t doc) const {
+    return corpus.shingles(corpus.representative(doc));
+  }
+  absl::Span<const uint32_t> signature(uint32_t doc) const {
+    return corpus.signature(corpus.representative(doc));
+  }
+};
+
+}  // namespace
+
+std::vector<ScoredPair> VerifyPairs(const SignedCorpus& corpus,
+                                    absl::Span<const PackedPair> candidates,
+                                    const MatchSettings& match, int threads) {
+  return internal::VerifyWith(candidates, RepresentativeSets{corpus}, match, threads);
+}
+
+std::vector<ScoredPair> ExhaustivePairs(const SignedCorpus& corpus, const MatchSettings& match,
+                                        int threads) {
+  const size_t n = corpus.size();
+  std::vector<std::vector<ScoredPair>> parts(n);
+  ParallelFor(n, threads, [&](size_t begin, size_t end, int) {
+    for (size_t a = begin; a < end; ++a) {
+      const auto set_a = corpus.shingles(a);
+      for (size_t b = a + 1; b < n; ++b) {
+        const auto set_b = corpus.shingles(b);
+        // Exact pruning for Jaccard: J <= min/max of the set sizes.
+        if (match.measure == Measure::kJaccard &&
+            std::min(set_a.size(), set_b.size()) <
+                match.threshold * std::max(set_a.size(), set_b.size()) - 1e-9) {
+          continue;
+        }
+        if (match.measure == Measure::kContainment &&
+            std::min(set_a.size(), set_b.size()) < match.min_contained_size) {
+          continue;
+        }
+        const ScoredPair overlap = MeasureOverlap(set_a, set_b);
+        if (PassesThreshold(overlap, match)) {
+          parts[a].push_back(internal::Score(a, b, overlap, corpus.signature(a), corpus.signature(b)));
+        }
+      }
+    }
+  });
+  return internal::Concatenate(parts);
+}
 
 }  // namespace kindred

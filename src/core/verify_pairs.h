@@ -36,19 +36,14 @@ std::vector<T> Concatenate(std::vector<std::vector<T>>& parts) {
   return all;
 }
 
-// The pair (a, b) scored from its overlap and the two signatures.
-inline ScoredPair Score(uint32_t a, uint32_t b, const Overlap& overlap,
+// The pair (a, b) scored from its measured overlap and the two signatures.
+inline ScoredPair Score(uint32_t a, uint32_t b, ScoredPair overlap,
                         absl::Span<const uint32_t> signature_a,
                         absl::Span<const uint32_t> signature_b) {
-  ScoredPair pair;
-  pair.a = a;
-  pair.b = b;
-  pair.shared = overlap.shared;
-  pair.size_a = overlap.size_a;
-  pair.size_b = overlap.size_b;
-  pair.jaccard = overlap.Jaccard();
-  pair.estimate = EstimateJaccard(signature_a, signature_b);
-  return pair;
+  overlap.a = a;
+  overlap.b = b;
+  overlap.estimate = EstimateJaccard(signature_a, signature_b);
+  return overlap;
 }
 
 // The candidates that pass `match`, in the order of `candidates`. `sets`
@@ -71,12 +66,12 @@ std::vector<ScoredPair> VerifyWith(absl::Span<const PackedPair> candidates, cons
         const uint32_t b = PairSecond(candidates[i]);
         const absl::Span<const uint64_t> set_a = sets.shingles(a);
         const absl::Span<const uint64_t> set_b = sets.shingles(b);
-        Overlap overlap;
+        ScoredPair overlap;
         if (!MeasureOverlapAtLeast(set_a, set_b, NeededShared(set_a.size(), set_b.size(), match),
                                    &overlap)) {
           continue;
         }
-        if (PassesThreshold(overlap.shared, overlap.size_a, overlap.size_b, match)) {
+        if (PassesThreshold(overlap, match)) {
           parts[chunk].push_back(Score(a, b, overlap, sets.signature(a), sets.signature(b)));
         }
       }

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <chrono>
 #include <mutex>
+#include <utility>
 
 #include "index/containment_lookup.h"
 #include "kindred/banding.h"
@@ -36,13 +37,41 @@ absl::Status MatchOne(const IndexReader& reader, const index::ContainmentLookup*
   for (uint32_t doc : candidates) {
     if (options.exclude_same_id && reader.id(doc) == batch.id(q)) continue;
     if (absl::Status read = reader.ReadShingles(doc, &stored); !read.ok()) return read;
-    Overlap overlap = MeasureOverlap(query, stored);
-    if (!PassesThreshold(overlap.shared, overlap.size_a, overlap.size_b, options.match)) continue;
-    out->push_back(IndexMatch{q, true, doc, overlap.shared, overlap.size_a, overlap.size_b,
-                              overlap.Jaccard(),
-                              EstimateJaccard(batch.signature(q), reader.signature(doc))});
+    IndexMatch match{MeasureOverlap(query, stored), true};
+    if (!PassesThreshold(match.pair, options.match)) continue;
+    match.pair.a = q;
+    match.pair.b = doc;
+    match.pair.estimate = EstimateJaccard(batch.signature(q), reader.signature(doc));
+    out->push_back(match);
   }
   return absl::OkStatus();
+}
+
+// Within the batch: each confirmed pair (a < b) is reported once, as a
+// match of the later document b with the earlier a, appended to
+// (*per_query)[b]. (One document has no pairs; skipping the search saves its
+// tables, most of a one-document check's time.)
+void MatchWithinBatch(const IndexReader& reader, const index::ContainmentLookup* containment,
+                      const SignedCorpus& batch, const IndexMatchOptions& options,
+                      std::vector<std::vector<IndexMatch>>* per_query) {
+  const uint64_t cap = options.max_bucket == 0 ? kDefaultMaxBucket : options.max_bucket;
+  std::vector<PackedPair> candidates;
+  if (containment != nullptr) {
+    ContainmentPlanOptions plan = containment->plan().options();
+    ContainmentCandidateStats stats;
+    candidates = FindContainmentCandidates(batch, PlanForCorpus(batch, plan),
+                                           std::max(1, options.threads), &stats, cap);
+  } else {
+    CandidateStats stats;
+    candidates = FindCandidatePairs(batch, Banding{reader.bands(), reader.rows()},
+                                    options.threads, &stats, cap);
+  }
+  for (ScoredPair pair : VerifyPairs(batch, candidates, options.match, options.threads)) {
+    // The later batch document is the query.
+    std::swap(pair.a, pair.b);
+    std::swap(pair.size_a, pair.size_b);
+    (*per_query)[pair.a].push_back(IndexMatch{pair, false});
+  }
 }
 
 }  // namespace
@@ -82,32 +111,11 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
   });
   if (!error.ok()) return error;
   if (options.crowded_keys != nullptr) *options.crowded_keys = crowded_total;
-  // Within the batch: each confirmed pair (a < b) is reported once, as a
-  // match of the later document b with the earlier a. (One document has no
-  // pairs; skipping the search saves its tables, most of a one-document
-  // check's time.)
-  if (batch.size() > 1) {
-    const uint64_t cap = options.max_bucket == 0 ? kDefaultMaxBucket : options.max_bucket;
-    std::vector<PackedPair> candidates;
-    if (containment != nullptr) {
-      ContainmentPlanOptions plan = containment->plan().options();
-      ContainmentCandidateStats stats;
-      candidates = FindContainmentCandidates(batch, PlanForCorpus(batch, plan),
-                                             std::max(1, options.threads), &stats, cap);
-    } else {
-      CandidateStats stats;
-      candidates = FindCandidatePairs(batch, Banding{reader.bands(), reader.rows()},
-                                      options.threads, &stats, cap);
-    }
-    for (const ScoredPair& pair : VerifyPairs(batch, candidates, options.match, options.threads)) {
-      per_query[pair.b].push_back(IndexMatch{pair.b, false, pair.a, pair.shared, pair.size_b,
-                                             pair.size_a, pair.jaccard, pair.estimate});
-    }
-  }
+  if (batch.size() > 1) MatchWithinBatch(reader, containment.get(), batch, options, &per_query);
   std::vector<IndexMatch> matches;
   for (auto& list : per_query) {
     std::stable_sort(list.begin(), list.end(), [](const IndexMatch& x, const IndexMatch& y) {
-      return x.in_index != y.in_index ? x.in_index : x.other < y.other;
+      return x.in_index != y.in_index ? x.in_index : x.other() < y.other();
     });
     matches.insert(matches.end(), list.begin(), list.end());
   }
@@ -115,9 +123,9 @@ absl::StatusOr<std::vector<IndexMatch>> MatchAgainstIndex(const IndexReader& rea
 }
 
 const char* ContainedWay(const IndexMatch& match, double threshold) {
-  const auto inside = [&](uint32_t size) { return match.shared >= threshold * size - 1e-9; };
-  const bool id_in_match = inside(match.query_size);
-  const bool match_in_id = inside(match.other_size);
+  const auto inside = [&](uint32_t size) { return match.pair.shared >= threshold * size - 1e-9; };
+  const bool id_in_match = inside(match.pair.size_a);
+  const bool match_in_id = inside(match.pair.size_b);
   if (id_in_match && match_in_id) return "both";
   return id_in_match ? "id_in_match" : "match_in_id";
 }
@@ -139,16 +147,16 @@ std::vector<std::string> MatchRecordColumns(const MatchSettings* match) {
 
 void WriteMatchFields(const IndexMatch& m, const IndexReader& reader, const SignedCorpus& batch,
                       const MatchSettings* match, RecordWriter* writer) {
-  writer->String(batch.id(m.query));
-  writer->String(m.in_index ? reader.id(m.other) : std::string_view(batch.id(m.other)));
+  writer->String(batch.id(m.query()));
+  writer->String(m.in_index ? reader.id(m.other()) : std::string_view(batch.id(m.other())));
   writer->String(m.in_index ? "index" : "batch");
-  writer->Similarity(m.jaccard);
-  writer->Similarity(m.estimate);
-  writer->Similarity(m.QueryInOther());
-  writer->Similarity(m.OtherInQuery());
-  writer->Number(m.shared);
-  writer->Number(m.query_size);
-  writer->Number(m.other_size);
+  writer->Similarity(m.pair.jaccard);
+  writer->Similarity(m.pair.estimate);
+  writer->Similarity(m.pair.ContainmentOfAInB());
+  writer->Similarity(m.pair.ContainmentOfBInA());
+  writer->Number(m.pair.shared);
+  writer->Number(m.pair.size_a);
+  writer->Number(m.pair.size_b);
   if (match != nullptr && match->measure == Measure::kContainment) {
     writer->String(ContainedWay(m, match->threshold));
   }

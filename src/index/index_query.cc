@@ -53,8 +53,8 @@ size_t CountMatchedUploads(absl::Span<const IndexMatch> matches, size_t uploads)
   std::vector<bool> matched(uploads);
   size_t count = 0;
   for (const IndexMatch& m : matches) {
-    if (m.in_index && !matched[m.query]) {
-      matched[m.query] = true;
+    if (m.in_index && !matched[m.query()]) {
+      matched[m.query()] = true;
       ++count;
     }
   }

@@ -43,20 +43,20 @@ absl::Status WriteMatchList(absl::Span<const IndexMatch> matches, const ServiceR
     RecordWriter record = reply->ListItem(columns);
     WriteMatchFields(m, reader, batch, &match, &record);
     if (request.marked_spans) {
-      if (!texts[m.query].has_value()) {
-        auto made = ShingleTexts(request.documents[m.query].text, reader.settings().signature);
+      if (!texts[m.query()].has_value()) {
+        auto made = ShingleTexts(request.documents[m.query()].text, reader.settings().signature);
         if (!made.ok()) return made.status();
-        texts[m.query] = std::move(*made);
+        texts[m.query()] = std::move(*made);
       }
-      // m.other is an index document number, or a batch one.
+      // m.other() is an index document number, or a batch one.
       absl::Span<const uint64_t> other;
       if (m.in_index) {
-        if (absl::Status read = reader.ReadShingles(m.other, &stored); !read.ok()) return read;
+        if (absl::Status read = reader.ReadShingles(m.other(), &stored); !read.ok()) return read;
         other = stored;
       } else {
-        other = batch.shingles(m.other);
+        other = batch.shingles(m.other());
       }
-      WriteMarkedSpans(*texts[m.query], other, reader.settings().signature.seed, &record);
+      WriteMarkedSpans(*texts[m.query()], other, reader.settings().signature.seed, &record);
     }
     record.EndItem();
   }

@@ -5,6 +5,7 @@
 #include "absl/container/flat_hash_map.h"
 #include "absl/strings/str_cat.h"
 #include "kindred/signer.h"
+#include "kindred/verify.h"
 
 namespace kindred {
 namespace {
@@ -94,11 +95,9 @@ std::vector<AlignedPassage> AlignPassages(absl::Span<const ShingleText> a,
 void MeasureExplanation(absl::Span<const uint64_t> set_a, absl::Span<const uint64_t> set_b,
                         absl::Span<const uint32_t> signature_a,
                         absl::Span<const uint32_t> signature_b, Explanation* out) {
-  out->overlap = MeasureOverlap(set_a, set_b);
-  out->jaccard = out->overlap.Jaccard();
-  out->containment_a_in_b = out->overlap.ContainmentOfAInB();
-  out->containment_b_in_a = out->overlap.ContainmentOfBInA();
-  out->estimate = EstimateJaccard(signature_a, signature_b);
+  out->measure = MeasureOverlap(set_a, set_b);
+  out->measure.b = 1;
+  out->measure.estimate = EstimateJaccard(signature_a, signature_b);
 }
 
 absl::StatusOr<Explanation> Explain(std::string_view text_a, std::string_view text_b,

@@ -60,10 +60,10 @@ std::string SCurvePlot(const TuneReportInput& input) {
   for (size_t i = 0; i < r.labelled.size(); ++i) {
     const LabelledPair& label = r.labels[r.labelled[i].label];
     const bool duplicate = label.duplicate;
-    plot.Dot(shingles.labelled[i].measure, duplicate ? -0.07 : -0.15,
+    plot.Dot(shingles.MeasureOf(i), duplicate ? -0.07 : -0.15,
              duplicate ? kPalette[2] : kPalette[4],
              absl::StrFormat("%s / %s: %.4f, labelled %s%s", label.a, label.b,
-                             shingles.labelled[i].measure, duplicate ? "duplicate" : "distinct",
+                             shingles.MeasureOf(i), duplicate ? "duplicate" : "distinct",
                              wrong.count(i) ? " (wrong)" : ""),
              wrong.count(i) > 0);
   }
@@ -166,24 +166,25 @@ std::string MarkedText(const std::string& text, const std::vector<TextSpan>& spa
 std::string WrongPair(const TuneReportInput& input, uint32_t i, const ExplainedPair* explained) {
   const TuneResult& r = *input.result;
   const LabelledPair& label = r.labels[r.labelled[i].label];
-  const PairMeasure& m = r.ShinglesOf(r.recommended().setting).labelled[i];
+  const ShingleEvaluation& shingles = r.ShinglesOf(r.recommended().setting);
   std::string out = absl::StrFormat(
       "<div class=\"pair\">\n<h3>%s and %s</h3>\n<p>Labelled %s (line %u); %s. "
       "Exact %s %.4f, "
       "signature estimate %.4f.</p>\n",
       EscapeXml(label.a), EscapeXml(label.b), label.duplicate ? "duplicate" : "distinct",
-      label.line, WrongReason(r, *input.options, i), MeasureName(input.options->measure), m.measure,
+      label.line, WrongReason(r, *input.options, i), MeasureName(input.options->measure), shingles.MeasureOf(i),
       r.SignatureOf(r.recommended().setting).estimates[i]);
   if (explained != nullptr) {
     const Explanation& e = explained->explanation;
+    const ScoredPair& o = e.measure;
     out += absl::StrFormat(
         "<p>Jaccard %.4f, containment of a in b %.4f, of b in "
         "a %.4f; shared shingles %u, only "
         "in a %u, only in b %u. Shared passages are "
         "marked.</p>\n<div class=\"texts\"><pre>%s"
         "</pre><pre>%s</pre></div>\n",
-        e.jaccard, e.containment_a_in_b, e.containment_b_in_a, e.overlap.shared,
-        e.overlap.size_a - e.overlap.shared, e.overlap.size_b - e.overlap.shared,
+        o.jaccard, o.ContainmentOfAInB(), o.ContainmentOfBInA(), o.shared, o.size_a - o.shared,
+        o.size_b - o.shared,
         MarkedText(explained->text_a, e.marked_a), MarkedText(explained->text_b, e.marked_b));
   }
   return out + "</div>\n";

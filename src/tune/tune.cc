@@ -57,10 +57,6 @@ std::vector<PlannedSetting> PlanSettings(const TuneGrid& grid, uint32_t perms, M
   return planned;
 }
 
-double MeasureOf(const Overlap& overlap, Measure measure) {
-  return measure == Measure::kJaccard ? overlap.Jaccard() : overlap.Containment();
-}
-
 // Re-signs the documents of `base` with another perms.
 SignedCorpus Resign(const SignedCorpus& base, const SignatureSettings& settings, int threads) {
   const Signer signer(settings);
@@ -112,8 +108,8 @@ SimilarityHistogram CandidateHistogram(const SignedCorpus& corpus, const TuneSet
     for (size_t chunk = begin; chunk < end; ++chunk) {
       const size_t last = std::min(pairs.size(), (chunk + 1) * kChunk);
       for (size_t i = chunk * kChunk; i < last; ++i) {
-        const Overlap overlap = MeasureOverlap(corpus.shingles(PairFirst(pairs[i])),
-                                               corpus.shingles(PairSecond(pairs[i])));
+        const ScoredPair overlap = MeasureOverlap(corpus.shingles(PairFirst(pairs[i])),
+                                                  corpus.shingles(PairSecond(pairs[i])));
         ++parts[chunk][HistogramBin(MeasureOf(overlap, measure))];
       }
     }
@@ -278,11 +274,12 @@ absl::Status EvaluateShingle(const OpenCorpus& open_corpus, uint32_t shingle_ind
         absl::StrFormat("the corpus changed between two readings: %d documents now, %d before",
                         base.size(), result.documents));
   }
-  ShingleEvaluation evaluation{choice, stats.empty_documents, {}};
+  ShingleEvaluation evaluation{choice, stats.empty_documents, options.measure, {}};
   for (const ResolvedPair& pair : result.labelled) {
-    const Overlap overlap = MeasureOverlap(base.shingles(pair.a), base.shingles(pair.b));
-    evaluation.labelled.push_back({overlap.shared, overlap.size_a, overlap.size_b,
-                                   overlap.Jaccard(), MeasureOf(overlap, options.measure)});
+    ScoredPair measured = MeasureOverlap(base.shingles(pair.a), base.shingles(pair.b));
+    measured.a = pair.a;
+    measured.b = pair.b;
+    evaluation.labelled.push_back(measured);
   }
   result.shingles.push_back(std::move(evaluation));
   for (size_t p = 0; p < options.grid.perms.size(); ++p) {
@@ -308,6 +305,10 @@ const SignatureEvaluation& TuneResult::SignatureOf(const TuneSetting& setting) c
     }
   }
   return signatures.front();
+}
+
+double ShingleEvaluation::MeasureOf(size_t i) const {
+  return kindred::MeasureOf(labelled[i], measure);
 }
 
 const ShingleEvaluation& TuneResult::ShinglesOf(const TuneSetting& setting) const {

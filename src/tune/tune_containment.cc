@@ -49,7 +49,7 @@ std::vector<uint8_t> PlanLabelledCandidates(const SignedCorpus& corpus,
   return candidate;
 }
 
-double PlanProbability(const ContainmentPlan& plan, const PairMeasure& pair) {
+double PlanProbability(const ContainmentPlan& plan, const ScoredPair& pair) {
   const PartitionBanding* banding = BandingOfPair(plan, pair.size_a, pair.size_b);
   if (banding == nullptr) return 0;
   return CandidateProbability(pair.jaccard, banding->banding.bands, banding->banding.rows);
@@ -65,8 +65,8 @@ std::vector<CandidateRateBin> CandidateRates(const TuneResult& result) {
     bins[b].to = (b + 1) / 10.0;
   }
   for (size_t i = 0; i < result.labelled.size(); ++i) {
-    const PairMeasure& m = shingles.labelled[i];
-    const double scaled = std::floor(m.measure * 10 + 1e-9);
+    const ScoredPair& m = shingles.labelled[i];
+    const double scaled = std::floor(shingles.MeasureOf(i) * 10 + 1e-9);
     CandidateRateBin& bin = bins[static_cast<size_t>(std::clamp(scaled, 0.0, 9.0))];
     ++bin.pairs;
     bin.candidates += signing.best_candidates[i];

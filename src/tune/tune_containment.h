@@ -40,7 +40,7 @@ std::vector<uint8_t> PlanLabelledCandidates(const SignedCorpus& corpus,
 // 1 - (1 - J^r)^b with J the pair's exact Jaccard (the agreement
 // probability of one MinHash slot, Broder 1997) and b x r the banding of its
 // partitions; 0 when BandingOfPair is null.
-double PlanProbability(const ContainmentPlan& plan, const PairMeasure& pair);
+double PlanProbability(const ContainmentPlan& plan, const ScoredPair& pair);
 
 // The labelled pairs in one containment bin [from, to) (the last bin also
 // holds 1), how many are candidates, and the mean probability the plan

@@ -175,7 +175,7 @@ size_t HistogramBin(double similarity) {
 }
 
 LabelScore ScoreLabels(absl::Span<const ResolvedPair> labelled,
-                       absl::Span<const PairMeasure> measures, absl::Span<const uint8_t> candidate,
+                       absl::Span<const ScoredPair> measures, absl::Span<const uint8_t> candidate,
                        double threshold, Measure measure, double beta,
                        std::vector<uint32_t>* wrong, uint32_t min_contained_size) {
   MatchSettings match;
@@ -184,8 +184,7 @@ LabelScore ScoreLabels(absl::Span<const ResolvedPair> labelled,
   match.min_contained_size = min_contained_size;
   LabelScore score;
   for (size_t i = 0; i < labelled.size(); ++i) {
-    const PairMeasure& m = measures[i];
-    const bool predicted = candidate[i] && PassesThreshold(m.shared, m.size_a, m.size_b, match);
+    const bool predicted = candidate[i] && PassesThreshold(measures[i], match);
     if (predicted && labelled[i].duplicate) ++score.true_positives;
     if (predicted && !labelled[i].duplicate) ++score.false_positives;
     if (!predicted && labelled[i].duplicate) ++score.false_negatives;

@@ -86,7 +86,7 @@ std::string WrongList(const TuneReportInput& input) {
     const LabelledPair& label = r.labels[r.labelled[i].label];
     out +=
         absl::StrFormat("%6u  %-9s  %7.4f  %8.4f  %-25s  %s, %s\n", label.line,
-                        label.duplicate ? "duplicate" : "distinct", shingles.labelled[i].measure,
+                        label.duplicate ? "duplicate" : "distinct", shingles.MeasureOf(i),
                         signing.estimates[i], WrongReason(r, *input.options, i), label.a, label.b);
   }
   return out + "\n";
@@ -157,7 +157,8 @@ void AppendSettingRecord(const SettingScore& s, size_t rank, const TuneResult& r
 void AppendWrongRecord(const TuneReportInput& input, uint32_t i, std::string* out) {
   const TuneResult& r = *input.result;
   const LabelledPair& label = r.labels[r.labelled[i].label];
-  const PairMeasure& m = r.ShinglesOf(r.recommended().setting).labelled[i];
+  const ShingleEvaluation& shingles = r.ShinglesOf(r.recommended().setting);
+  const ScoredPair& m = shingles.labelled[i];
   RecordWriter row(RecordFormat::kJsonLines,
                    {"record", "a", "b", "line", "label", "jaccard", "measure", "estimate", "reason"},
                    out);
@@ -167,7 +168,7 @@ void AppendWrongRecord(const TuneReportInput& input, uint32_t i, std::string* ou
   row.Number(label.line);
   row.String(label.duplicate ? "duplicate" : "distinct");
   row.Similarity(m.jaccard);
-  row.Similarity(m.measure);
+  row.Similarity(shingles.MeasureOf(i));
   row.Similarity(r.SignatureOf(r.recommended().setting).estimates[i]);
   row.String(WrongReason(r, *input.options, i));
   row.EndRow();
@@ -197,7 +198,7 @@ void AppendSummaryRecord(const TuneReportInput& input, std::string* out) {
 std::string WrongReason(const TuneResult& result, const TuneOptions& options, uint32_t i) {
   const SettingScore& best = result.recommended();
   if (!result.SignatureOf(best.setting).best_candidates[i]) {
-    const PairMeasure& m = result.ShinglesOf(best.setting).labelled[i];
+    const ScoredPair& m = result.ShinglesOf(best.setting).labelled[i];
     if (best.setting.plan != nullptr && std::min(m.size_a, m.size_b) > 0 &&
         std::min(m.size_a, m.size_b) < options.min_contained_size) {
       return "smaller under the least size";
