@@ -85,6 +85,10 @@ absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSetti
   shard.documents.documents.resize(corpus->size());
   shard.sets = SetStore(settings.perms);
   std::vector<uint64_t> keys(banding.bands);
+  // Rows band by band (documents ascending in each), so that sorting each
+  // band by key sorts the table; reserved, not grown by doubling.
+  std::vector<std::vector<BandKeyRecord>> bands(banding.bands);
+  for (std::vector<BandKeyRecord>& band : bands) band.reserve(corpus->size());
   for (size_t doc = 0; doc < corpus->size(); ++doc) {
     const uint32_t number = options.first_document + static_cast<uint32_t>(doc);
     DocumentRecord& record = shard.documents.documents[doc];
@@ -102,10 +106,19 @@ absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSetti
         keys[band] = corpus->band_key(doc, band);
     }
     for (uint32_t band = 0; band < banding.bands; ++band) {
-      if (keys[band] != kNoBandKey) shard.band_keys.records.push_back({band, keys[band], number});
+      if (keys[band] != kNoBandKey) bands[band].push_back({band, keys[band], number});
     }
   }
-  SortBandKeys(&shard.band_keys);
+  size_t rows = 0;
+  for (const std::vector<BandKeyRecord>& band : bands) rows += band.size();
+  shard.band_keys.records.reserve(rows);
+  for (std::vector<BandKeyRecord>& band : bands) {
+    std::sort(band.begin(), band.end(), [](const BandKeyRecord& x, const BandKeyRecord& y) {
+      return x.key != y.key ? x.key < y.key : x.document < y.document;
+    });
+    shard.band_keys.records.insert(shard.band_keys.records.end(), band.begin(), band.end());
+    std::vector<BandKeyRecord>().swap(band);
+  }
   return shard;
 }
 

@@ -107,13 +107,23 @@ def _first_error(futures):
 
 
 def _stage(summary, name, client, futures, sizes_of):
-    """Waits for a stage, and records its tasks, time and output bytes."""
+    """Waits for a stage, and records its tasks and time; the bytes of
+    `sizes_of` (its outputs) are counted on the workers and gathered at the
+    end (_sizes), so that the stage does not wait for them."""
     start = summary._clock
     _first_error(futures)
-    sizes = client.gather([client.submit(stages.size, f, pure=False) for f in sizes_of])
     now = time.monotonic()
-    summary.stages.append(StageSummary(name, len(futures), now - start, sum(sizes)))
+    summary.stages.append(StageSummary(name, len(futures), now - start, 0))
+    summary._sizes.append([client.submit(stages.size, f, pure=False) for f in sizes_of])
     summary._clock = now
+
+
+def _sizes(summary, client):
+    """Fills in the bytes of every stage, and the pair counts."""
+    sizes, counts = client.gather([summary._sizes, summary._counts])
+    for stage, stage_sizes in zip(summary.stages, sizes):
+        stage.bytes_out = sum(stage_sizes)
+    summary.candidate_pairs, summary.confirmed_pairs = (sum(c) for c in counts)
 
 
 def _components(summary, client, scored, parts):
@@ -123,8 +133,7 @@ def _components(summary, client, scored, parts):
     submit = client.submit
     firsts = [submit(stages.first_edges, f, parts) for f in scored]
     lists = [[submit(stages.pick, f, p) for p in range(parts)] for f in firsts]
-    tasks, moved, steps = len(firsts), [], 0
-    moved += [x for row in lists for x in row]
+    tasks, moved, steps = len(firsts), list(firsts), 0
     while True:
         large = [submit(stages.large_star, [row[p] for row in lists], parts) for p in range(parts)]
         to_small = [[submit(stages.pick, submit(stages.pick, f, 0), p) for p in range(parts)]
@@ -138,15 +147,14 @@ def _components(summary, client, scored, parts):
                               [submit(stages.pick, f, 2) for f in small])
         tasks += 2 * parts
         steps += 2
-        moved += [x for row in to_small for x in row]
+        moved += large + small
         if not any(flags):
             break
-        moved += [x for row in lists for x in row]
     stars = submit(stages.join, star_parts)
     _first_error([stars])
-    sizes = client.gather([submit(stages.size, f, pure=False) for f in moved + [stars]])
     now = time.monotonic()
-    summary.stages.append(StageSummary("groups", tasks, now - summary._clock, sum(sizes)))
+    summary.stages.append(StageSummary("groups", tasks, now - summary._clock, 0))
+    summary._sizes.append([submit(stages.size, f, pure=False) for f in moved])
     summary.component_steps = steps
     summary._clock = now
     return stars
@@ -196,6 +204,7 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
                    priority_field=priority_field)
     summary = ClusterSummary(0, len(shards), partitions, ranges, bands, rows, 0, 0)
     summary._clock = time.monotonic()
+    summary._sizes, summary._counts = [], []
     submit = client.submit
 
     signed = [submit(stages.sign_shard, path, settings, options, bands, rows, partitions)
@@ -208,7 +217,7 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
     offsets = [sum(counts[:n]) for n in range(len(counts) + 1)]
     documents = offsets[-1]
     summary.documents = documents
-    _stage(summary, "sign", client, signed, [k for row in keys for k in row] + tables)
+    _stage(summary, "sign", client, signed, signed)
 
     found = [submit(stages.candidates, [keys[s][p] for s in range(len(shards))], offsets,
                     documents, ranges, max_bucket)
@@ -221,9 +230,8 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
     pairs = [submit(stages.pick, f, 0) for f in plans]
     wanted = [[submit(stages.pick, submit(stages.pick, f, 1), s) for s in range(len(shards))]
               for f in plans]
-    _stage(summary, "plan", client, plans, [w for row in wanted for w in row] + pairs)
-    summary.candidate_pairs = sum(client.gather([submit(stages.candidate_count, f)
-                                                 for f in pairs]))
+    _stage(summary, "plan", client, plans, plans)
+    summary._counts = [[submit(stages.candidate_count, f) for f in pairs]]
 
     extracted = [submit(stages.read_sets, shards[s], settings, options, tables[s],
                         [wanted[v][s] for v in range(ranges)], offsets[s])
@@ -234,8 +242,7 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
     scored = [submit(stages.verify, pairs[v], [sets[s][v] for s in range(len(shards))],
                      threshold, bands, rows) for v in range(ranges)]
     _stage(summary, "verify", client, scored, scored)
-    summary.confirmed_pairs = sum(client.gather([submit(stages.scored_count, f)
-                                                 for f in scored]))
+    summary._counts.append([submit(stages.scored_count, f) for f in scored])
 
     stars = None
     if grouping == "components":
@@ -250,4 +257,6 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
         summary.kept = sum(client.gather(kept))
         summary.stages.append(StageSummary("kept", len(kept), time.monotonic() - summary._clock,
                                            0))
+        summary._sizes.append([])
+    _sizes(summary, client)
     return summary
