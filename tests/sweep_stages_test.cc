@@ -201,5 +201,41 @@ TEST_CASE("A banding that does not fit the signature is refused", "[stages]") {
   CHECK(ResolveBanding(given, 128) == Banding{4, 8});
 }
 
+TEST_CASE("Reading a shard again gives the wanted sets and notices a changed document",
+          "[stages]") {
+  testing::TempDir dir;
+  const std::string lines =
+      "{\"id\":\"a\",\"text\":\"one two three four five six\"}\n"
+      "{\"id\":\"b\",\"text\":\"seven eight nine ten eleven\"}\n"
+      "{\"id\":\"c\",\"text\":\"twelve thirteen fourteen\"}\n";
+  const std::string path = dir.Write("s.jsonl", lines);
+  SignatureSettings settings;
+  auto reader = Open({path});
+  auto shard = SignShard(*reader, settings, Banding{16, 8}, ShardOptions{});
+  REQUIRE(shard.ok());
+  ShardOptions options;
+  options.first_document = 10;
+  options.expected = &shard->documents;
+  auto again = Open({path});
+  auto sets = ReadShardSets(*again, settings, options, {9, 10, 12, 13});
+  REQUIRE(sets.ok());
+  CHECK(sets->documents() == std::vector<uint32_t>{10, 12});
+  CHECK(sets->shingles(10).size() == 2);  // word 5-shingles of six words
+  // The third document, one word longer now: named by file, line and id.
+  std::string changed = lines;
+  changed.replace(changed.find("fourteen"), 8, "fourteen fifteen");
+  dir.Write("s.jsonl", changed);
+  auto third = Open({path});
+  const absl::Status status = ReadShardSets(*third, settings, options, {12}).status();
+  CHECK(KindOf(status) == ErrorKind::kInputChanged);
+  CHECK(status.message() ==
+        absl::StrCat(path, ":3: document \"c\" changed since it was first read; run again"));
+  // A shard cut short.
+  dir.Write("s.jsonl", lines.substr(0, lines.find('\n') + 1));
+  auto cut = Open({path});
+  CHECK(KindOf(ReadShardSets(*cut, settings, options, {11}).status()) ==
+        ErrorKind::kInputChanged);
+}
+
 }  // namespace
 }  // namespace kindred

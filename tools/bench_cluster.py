@@ -15,6 +15,7 @@ import argparse
 import filecmp
 import os
 import pathlib
+import resource
 import statistics
 import subprocess
 import sys
@@ -39,11 +40,17 @@ def make_shards(directory, docs, shards, seed):
     return paths
 
 
-def timed(command, env=None):
+def timed(command, env=None, cpu=None):
+    """Runs `command`: (wall seconds, its stderr); appends to `cpu` the CPU
+    seconds (user + system) of it and the processes it waited for."""
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
     start = time.monotonic()
     done = subprocess.run(command, capture_output=True, env=env)
     if done.returncode != 0:
         sys.exit(f"{' '.join(command[:4])}...: exit {done.returncode}\n{done.stderr.decode()}")
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    if cpu is not None:
+        cpu.append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
     return time.monotonic() - start, done.stderr.decode()
 
 
@@ -64,21 +71,28 @@ def main():
     env = dict(os.environ)
     env.setdefault("PYTHONPATH", str(ROOT / "build" / "python"))
     local, cluster, summary = [], [], ""
+    local_cpu, cluster_cpu, loads = [], [], [os.getloadavg()[0]]
     for run in range(args.runs):
         seconds, _ = timed([args.binary, "sweep", "--threads", "2", "-q", "-o",
-                            str(work / "local"), *shards])
+                            str(work / "local"), *shards], cpu=local_cpu)
         local.append(seconds)
         seconds, summary = timed(["/usr/bin/python3", "-m", "kindred.cluster", "sweep",
                                   "--local-workers", str(args.workers), "-o",
-                                  str(work / "cluster"), *shards], env)
+                                  str(work / "cluster"), *shards], env, cpu=cluster_cpu)
         cluster.append(seconds)
+        loads.append(os.getloadavg()[0])
     same = all(filecmp.cmp(work / "local" / f"{k}.jsonl", work / "cluster" / f"{k}.jsonl",
                            shallow=False) for k in ("pairs", "groups", "decisions"))
     print(f"documents {sum(1 for s in shards for _ in open(s, 'rb'))} in {len(shards)} shards; "
           f"{args.workers} workers; medians of {args.runs} runs")
-    print(f"kindred sweep --threads 2   {statistics.median(local):8.2f} s")
-    print(f"kindred.cluster sweep       {statistics.median(cluster):8.2f} s  "
-          f"({statistics.median(cluster) / statistics.median(local):.2f}x)")
+    print(f"load average (1 min) before and after each run: "
+          f"{' '.join(f'{x:.1f}' for x in loads)}")
+    print(f"kindred sweep --threads 2   {statistics.median(local):8.2f} s wall "
+          f"{statistics.median(local_cpu):8.2f} s CPU")
+    print(f"kindred.cluster sweep       {statistics.median(cluster):8.2f} s wall "
+          f"{statistics.median(cluster_cpu):8.2f} s CPU "
+          f"({statistics.median(cluster) / statistics.median(local):.2f}x wall, "
+          f"{statistics.median(cluster_cpu) / statistics.median(local_cpu):.2f}x CPU)")
     print(f"outputs identical: {'yes' if same else 'NO'}")
     print(summary.rstrip())
     return 0 if same else 1

@@ -53,7 +53,16 @@ struct ShardOptions {
   // count from 0 in each shard).
   uint32_t first_input = 0;
   // Also keep every document's shingle set and signature (SignedShard::sets).
+  // Without it signing is lean, as a local sweep signs: band keys only, and
+  // a document's shingle_count is the size of its bag of shingles (0 still
+  // exactly when it has none).
   bool keep_sets = false;
+  // ReadShardSets only: the shard's document table from SignShard (local
+  // or whole-corpus numbers alike). Each document read again must have the
+  // same id, text length, line and byte offset and be empty or not alike,
+  // otherwise the shard changed between the readings (InputChanged naming
+  // the shard, line and id). Not owned; null: no check.
+  const DocumentTable* expected = nullptr;
   SignOptions sign;  // threads, batch sizes, progress (not flush)
 };
 
@@ -72,8 +81,10 @@ absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSetti
 
 // Reads the shard again and returns the sets and signatures of `documents`
 // (numbers in the whole corpus, ascending; those outside the shard are
-// ignored). Errors: the reader's; InputChanged when the shard no longer has
-// the documents it had when signed (fewer documents).
+// ignored). Only those documents are parsed and signed; the others are
+// skipped. Errors: the reader's; InputChanged when the shard no longer has
+// the documents it had when signed (fewer documents, or one that differs
+// from its row of options.expected).
 absl::StatusOr<SetStore> ReadShardSets(CorpusReader& reader, const SignatureSettings& settings,
                                        const ShardOptions& options,
                                        absl::Span<const uint32_t> documents);

@@ -1,27 +1,24 @@
-// The stages of the cluster sweep (kindred.cluster), each a pure function
-// from bytes to bytes over the library's public API, so that a task re-run
-// after a lost worker gives the same bytes. The records are described in
-// python/kindred/cluster/RECORDS.md; all integers little-endian.
+// The map-side stages of the cluster sweep (kindred.cluster): each a pure
+// function from bytes to bytes that calls the library's stage functions
+// (kindred/sweep_stages.h) over the records documented in
+// src/core/RECORDS.md, so that the cluster and a local sweep share one
+// implementation. A task re-run after a lost worker gives the same bytes.
+// python/kindred/cluster/RECORDS.md says what each task sends where.
 //
-//   sign_shard      a shard, signed lean -> document table, band-key
-//                   records split into P partitions by key hash, and a
-//                   band-key digest per document
-//   candidates      one partition's band keys from every shard -> candidate
-//                   pairs (FindCandidatePairs on those keys, so the crowded
-//                   bucket cap is applied exactly as in a local sweep),
-//                   routed by first document into V verify ranges
-//   verify_plan     one range's candidate pairs from every partition ->
-//                   the pairs, sorted and distinct, and the documents each
-//                   shard must send for them
-//   read_sets       a shard read again for the wanted documents only ->
-//                   their sets and signatures (checked against the digests
-//                   of the first reading), one record per verify range
-//   verify          pairs and the sets of their documents -> scored pairs
-//                   (VerifyPairs)
-//   finish          every document table and scored pair -> groups
-//                   (GroupPairs) and the three record files' bytes
-//   write_kept      a shard's kept documents, in its own format
-// Verify and finish are in stages_reduce.cc.
+//   sign_shard   a shard -> SignShard (lean, documents numbered 0.. in the
+//                shard) -> its document table and its band-key table cut
+//                into P partitions (PartitionBandKeys)
+//   candidates   one partition's band-key tables from every shard, their
+//                documents numbered on by the shards' offsets ->
+//                MergeBandKeys -> FindPartitionCandidates, cut into V verify
+//                ranges of first documents
+//   plan         one range's candidate pairs from every partition ->
+//                MergeCandidatePairs, and CandidateDocuments by shard
+//   read_sets    a shard read again for its wanted documents only ->
+//                ReadShardSets (checked against the shard's document
+//                table) -> one set store per verify range
+//   write_kept   a shard's kept documents, in its own format
+// Verify, the connected-components edges and finish are in stages_reduce.cc.
 #include <pybind11/stl.h>
 
 #include <algorithm>
@@ -29,27 +26,16 @@
 #include <string>
 #include <vector>
 
-#include "absl/container/flat_hash_map.h"
-#include "absl/strings/str_cat.h"
 #include "convert.h"
 #include "kindred/banding.h"
-#include "kindred/candidates.h"
 #include "kindred/corpus.h"
 #include "kindred/errors.h"
 #include "kindred/kept_writer.h"
-#include "kindred/shingles.h"
-#include "kindred/signed_corpus.h"
-#include "kindred/signer.h"
-#include "kindred/sweep.h"
+#include "kindred/sweep_stages.h"
 #include "stage_bytes.h"
 
 namespace kindred::python {
 namespace {
-
-// The partition of the bucket (band, key).
-uint32_t PartitionOf(uint32_t band, uint64_t key, uint32_t partitions) {
-  return static_cast<uint32_t>(Mix(key ^ (uint64_t{band} << 56 | band)) % partitions);
-}
 
 // The verify range of document `doc` among `documents`: ranges of
 // consecutive documents, so that ranges in order give pairs in order.
@@ -57,249 +43,164 @@ uint32_t RangeOf(uint32_t doc, uint64_t documents, uint32_t ranges) {
   return static_cast<uint32_t>(uint64_t{doc} * ranges / std::max<uint64_t>(documents, 1));
 }
 
-// A signed shard's records: its document table, the band-key digest of
-// each document (to know it again when it is read again), and its band
-// keys by partition and band.
-struct ShardRecords {
-  Out table, digests;
-  std::vector<std::vector<Out>> keys;  // [partition][band]
-};
-
-// `corpus` is lean (band keys only) under `banding`.
-void WriteShardRecords(const SignedCorpus& corpus, Banding banding, uint32_t partitions,
-                       ShardRecords* out) {
-  out->keys.assign(partitions, std::vector<Out>(banding.bands));
-  out->table.Put<uint32_t>(static_cast<uint32_t>(corpus.size()));
-  for (uint32_t doc = 0; doc < corpus.size(); ++doc) {
-    const KeepFacts& facts = corpus.facts(doc);
-    out->table.Put<uint64_t>(facts.length);
-    out->table.Put<double>(facts.priority);
-    out->table.Put<uint8_t>(facts.has_priority);
-    out->table.Put<uint32_t>(corpus.shingle_count(doc));
-    out->table.Put<uint64_t>(corpus.origin(doc).line);
-    out->table.PutString(corpus.id(doc));
-    out->digests.Put<uint32_t>(corpus.band_key_digest(doc));
-    if (corpus.shingle_count(doc) == 0) continue;
-    for (uint32_t band = 0; band < banding.bands; ++band) {
-      const uint64_t key = corpus.band_key(doc, band);
-      if (key == kNoBandKey) continue;
-      Out& part = out->keys[PartitionOf(band, key, partitions)][band];
-      part.Put<uint64_t>(key);
-      part.Put<uint32_t>(doc);
-    }
-  }
-}
-
-// sign_shard: reads and signs one shard (SignCorpus, whole), returns
-// (document table, [band keys of partition p], band-key digests). Signing
-// is lean (band keys only, as a local sweep signs): the sets of candidate
-// documents are read again by read_sets.
-py::tuple SignShard(const std::string& path, const py::handle& settings_object,
-                    const std::string& input_format, const std::string& id_field,
-                    const std::string& text_field, const std::string& priority_field,
-                    uint32_t bands, uint32_t rows, uint32_t partitions, int threads) {
-  const SignatureSettings settings = ToSignature(settings_object);
-  const InputOptions input = ToInput(input_format, id_field, text_field, priority_field);
-  ShardRecords records;
-  absl::Status status;
-  {
-    py::gil_scoped_release release;
-    const Banding banding{bands, rows};
-    SignedCorpus corpus = SignedCorpus::Lean(settings.perms, banding);
-    auto reader = CorpusReader::Open({path}, input);
-    status = reader.status();
-    if (status.ok()) {
-      SignOptions sign;
-      sign.threads = std::max(1, threads);
-      SignStats stats;
-      status = SignCorpus(**reader, settings, sign, &corpus, &stats);
-    }
-    if (status.ok()) WriteShardRecords(corpus, banding, partitions, &records);
-  }
-  Check(status);
-  py::list parts;
-  for (std::vector<Out>& part : records.keys) {  // per band: u32 count, then (key, doc)s
-    Out joined;
-    for (Out& band : part) {
-      joined.Put<uint32_t>(static_cast<uint32_t>(band.str().size() / 12));
-      joined.str().append(band.str());
-    }
-    parts.append(joined.Bytes());
-  }
-  return py::make_tuple(records.table.Bytes(), parts, records.digests.Bytes());
-}
-
-// candidates: the band keys of one partition from every shard (in shard
-// order; shard s numbers its documents from offsets[s]) -> [pairs of range v].
-py::list Candidates(const std::vector<py::bytes>& parts, const std::vector<uint64_t>& offsets,
-                    uint64_t documents, uint32_t perms, uint32_t bands, uint32_t rows,
-                    uint32_t ranges, uint64_t max_bucket) {
-  std::vector<std::string_view> views;
-  for (const py::bytes& part : parts) views.push_back(View(part));
-  std::vector<Out> out(ranges);
-  {
-    py::gil_scoped_release release;
-    // The documents with a key here, by global number; their other bands
-    // hold kNoBandKey, so only this partition's buckets propose pairs.
-    struct Entry {
-      uint32_t doc, band;
-      uint64_t key;
-    };
-    std::vector<Entry> entries;
-    for (size_t s = 0; s < views.size(); ++s) {
-      In in(views[s]);
-      for (uint32_t band = 0; band < bands; ++band) {
-        for (uint32_t n = in.Get<uint32_t>(); n > 0; --n) {
-          const uint64_t key = in.Get<uint64_t>();
-          entries.push_back({static_cast<uint32_t>(offsets[s] + in.Get<uint32_t>()), band, key});
-        }
-      }
-    }
-    std::sort(entries.begin(), entries.end(),
-              [](const Entry& a, const Entry& b) { return a.doc < b.doc; });
-    const Banding banding{bands, rows};
-    SignedCorpus local = SignedCorpus::Lean(perms, banding);
-    std::vector<uint32_t> global;
-    std::vector<uint64_t> keys(bands, kNoBandKey);
-    for (size_t i = 0; i < entries.size();) {
-      std::fill(keys.begin(), keys.end(), kNoBandKey);
-      const uint32_t doc = entries[i].doc;
-      for (; i < entries.size() && entries[i].doc == doc; ++i)
-        keys[entries[i].band] = entries[i].key;
-      global.push_back(doc);
-      local.AddWithBandKeys(std::string(), KeepFacts(), DocumentOrigin(), 1, keys);
-    }
-    CandidateStats stats;
-    for (PackedPair pair : FindCandidatePairs(local, banding, 1, &stats, max_bucket)) {
-      const uint32_t a = global[PairFirst(pair)], b = global[PairSecond(pair)];
-      out[RangeOf(a, documents, ranges)].Put<uint64_t>(PackPair(a, b));
-    }
-  }
-  py::list result;
-  for (const Out& o : out) result.append(o.Bytes());
-  return result;
-}
-
-// verify_plan: range v's pairs from every partition -> (pairs, sorted and
-// distinct; [documents wanted from shard s, local numbers]).
-py::tuple VerifyPlan(const std::vector<py::bytes>& parts, const std::vector<uint64_t>& offsets) {
-  std::vector<std::string_view> views;
-  for (const py::bytes& part : parts) views.push_back(View(part));
-  Out pairs_out;
-  std::vector<Out> wanted(offsets.size());
-  {
-    py::gil_scoped_release release;
-    std::vector<uint64_t> pairs;
-    for (std::string_view view : views) {
-      const size_t start = pairs.size();
-      pairs.resize(start + view.size() / 8);
-      std::memcpy(pairs.data() + start, view.data(), view.size() / 8 * 8);
-    }
-    std::sort(pairs.begin(), pairs.end());
-    pairs.erase(std::unique(pairs.begin(), pairs.end()), pairs.end());
-    pairs_out.PutAll(absl::MakeConstSpan(pairs));
-    std::vector<uint32_t> docs;
-    for (uint64_t pair : pairs) {
-      docs.push_back(PairFirst(pair));
-      docs.push_back(PairSecond(pair));
-    }
-    std::sort(docs.begin(), docs.end());
-    docs.erase(std::unique(docs.begin(), docs.end()), docs.end());
-    size_t shard = 0;
-    for (uint32_t doc : docs) {
-      while (shard + 1 < offsets.size() && doc >= offsets[shard + 1]) ++shard;
-      wanted[shard].Put<uint32_t>(static_cast<uint32_t>(doc - offsets[shard]));
-    }
-  }
-  py::list want;
-  for (const Out& w : wanted) want.append(w.Bytes());
-  return py::make_tuple(pairs_out.Bytes(), want);
-}
-
-// Signs the wanted documents of a shard again (read with a filter, so
-// that the others are only skipped) and checks each against the band-key
-// digest of its first reading. Returns ordinal -> (set size, signature, set).
-absl::StatusOr<absl::flat_hash_map<uint32_t, std::string>> SignAgain(
-    const std::string& path, const InputOptions& input, const SignatureSettings& settings,
-    Banding banding, const std::vector<uint32_t>& digests, const std::vector<uint8_t>& wanted) {
-  auto reader = CorpusReader::Open({path}, input);
-  if (!reader.ok()) return reader.status();
-  auto shingler = Shingler::Create(settings);
-  if (!shingler.ok()) return shingler.status();
-  (*reader)->SetFilter([&wanted](uint64_t n) { return n < wanted.size() && wanted[n] != 0; });
-  const Signer signer(settings);
-  std::vector<uint32_t> signature(settings.perms);
-  std::vector<uint64_t> keys(banding.bands);
-  ShingleSet set;
-  std::vector<Document> batch;
-  absl::flat_hash_map<uint32_t, std::string> out;
-  for (;;) {
-    absl::StatusOr<size_t> count = (*reader)->ReadBatch(&batch, 1024, 16 << 20);
-    if (!count.ok()) return count.status();
-    if (*count == 0) break;
-    for (const Document& doc : batch) {
-      if (absl::Status s = (*shingler)->Shingle(doc.text, &set); !s.ok()) return s;
-      signer.Sign(set, absl::MakeSpan(signature));
-      SignedCorpus::LeanBandKeys(banding, set.empty(), signature, absl::MakeSpan(keys));
-      if (doc.ordinal >= digests.size() ||
-          SignedCorpus::BandKeyDigest(keys) != digests[doc.ordinal]) {
-        return InputChanged(absl::StrCat(path, doc.source.line > 0 ? ":" : "",
-                                         doc.source.line > 0 ? absl::StrCat(doc.source.line) : "",
-                                         ": document \"", doc.id,
-                                         "\" changed since it was first read; run again"));
-      }
-      Out record;
-      record.Put<uint32_t>(static_cast<uint32_t>(set.size()));
-      record.PutAll(absl::MakeConstSpan(signature));
-      record.PutAll(absl::MakeConstSpan(set));
-      out[static_cast<uint32_t>(doc.ordinal)] = std::move(record.str());
-    }
-  }
+std::vector<uint32_t> U32s(std::string_view bytes) {
+  std::vector<uint32_t> out(bytes.size() / 4);
+  std::memcpy(out.data(), bytes.data(), out.size() * 4);
   return out;
 }
 
-// read_sets: a shard read again for the documents each verify range wants
-// from it (local numbers) -> per range: (global number, set size,
-// signature, set).
-py::list ReadSets(const std::string& path, const py::handle& settings_object,
-                  const std::string& input_format, const std::string& id_field,
-                  const std::string& text_field, const std::string& priority_field, uint32_t bands,
-                  uint32_t rows, const py::bytes& digest_bytes,
-                  const std::vector<py::bytes>& wanted, uint64_t offset) {
+py::bytes U32Bytes(absl::Span<const uint32_t> values) {
+  return py::bytes(reinterpret_cast<const char*>(values.data()), values.size() * 4);
+}
+
+// sign_shard: (document table, [band-key table of partition p]).
+py::tuple SignShardStage(const std::string& path, const py::handle& settings_object,
+                         const std::string& input_format, const std::string& id_field,
+                         const std::string& text_field, const std::string& priority_field,
+                         uint32_t bands, uint32_t rows, uint32_t partitions, int threads) {
   const SignatureSettings settings = ToSignature(settings_object);
   const InputOptions input = ToInput(input_format, id_field, text_field, priority_field);
-  const std::string_view digest_view = View(digest_bytes);
-  std::vector<uint32_t> digests(digest_view.size() / 4);
-  std::memcpy(digests.data(), digest_view.data(), digests.size() * 4);
-  std::vector<std::vector<uint32_t>> lists;
-  std::vector<uint8_t> any(digests.size(), 0);
-  for (const py::bytes& w : wanted) {
-    const std::string_view view = View(w);
-    lists.emplace_back(view.size() / 4);
-    std::memcpy(lists.back().data(), view.data(), lists.back().size() * 4);
-    for (uint32_t doc : lists.back()) any[doc] = 1;
-  }
-  std::vector<Out> out(lists.size());
+  std::string table;
+  std::vector<std::string> parts;
   absl::Status status;
   {
     py::gil_scoped_release release;
-    auto records = SignAgain(path, input, settings, Banding{bands, rows}, digests, any);
-    status = records.status();
-    for (size_t v = 0; status.ok() && v < lists.size(); ++v) {
-      for (uint32_t doc : lists[v]) {
-        auto it = records->find(doc);
-        if (it == records->end()) {
-          status = InputChanged(absl::StrCat(path, ": fewer documents than when first read"));
-          break;
+    auto reader = CorpusReader::Open({path}, input);
+    status = reader.status();
+    if (status.ok()) {
+      ShardOptions options;
+      options.sign.threads = std::max(1, threads);
+      auto shard = SignShard(**reader, settings, Banding{bands, rows}, options);
+      status = shard.status();
+      if (status.ok()) {
+        table = SerializeDocumentTable(shard->documents);
+        for (const BandKeyTable& part : PartitionBandKeys(shard->band_keys, partitions)) {
+          parts.push_back(SerializeBandKeyTable(part));
         }
-        out[v].Put<uint32_t>(static_cast<uint32_t>(offset + doc));
-        out[v].str().append(it->second);
+      }
+    }
+  }
+  Check(status);
+  py::list out;
+  for (const std::string& part : parts) out.append(py::bytes(part));
+  return py::make_tuple(py::bytes(table), out);
+}
+
+// candidates: one partition's band-key tables, one per shard in order
+// (shard s numbers its documents from 0; offsets[s] before it) -> [the
+// candidate pairs whose first document is in range v]. The counts of the
+// search travel in range 0's record.
+py::list CandidatesStage(const std::vector<py::bytes>& parts, const std::vector<uint64_t>& offsets,
+                         uint64_t documents, uint32_t ranges, uint64_t max_bucket) {
+  std::vector<std::string_view> views;
+  for (const py::bytes& part : parts) views.push_back(View(part));
+  std::vector<std::string> out(ranges);
+  absl::Status status;
+  {
+    py::gil_scoped_release release;
+    std::vector<BandKeyTable> tables;
+    for (size_t s = 0; s < views.size() && status.ok(); ++s) {
+      auto table = ParseBandKeyTable(views[s]);
+      status = table.status();
+      if (!status.ok()) break;
+      for (BandKeyRecord& row : table->records) row.document += static_cast<uint32_t>(offsets[s]);
+      tables.push_back(*std::move(table));
+    }
+    if (status.ok()) {
+      const CandidatePairs found = FindPartitionCandidates(MergeBandKeys(tables), max_bucket);
+      std::vector<CandidatePairs> split(ranges);
+      split[0].stats = found.stats;
+      for (PackedPair pair : found.pairs) {
+        split[RangeOf(PairFirst(pair), documents, ranges)].pairs.push_back(pair);
+      }
+      for (uint32_t v = 0; v < ranges; ++v) {
+        split[v].stats.candidate_pairs = split[v].pairs.size();
+        out[v] = SerializeCandidatePairs(split[v]);
       }
     }
   }
   Check(status);
   py::list result;
-  for (const Out& o : out) result.append(o.Bytes());
+  for (const std::string& o : out) result.append(py::bytes(o));
+  return result;
+}
+
+// plan: one range's candidate pairs from every partition -> (the pairs
+// merged, [documents wanted from shard s: u32 numbers in the whole corpus,
+// ascending]).
+py::tuple PlanStage(const std::vector<py::bytes>& parts, const std::vector<uint64_t>& offsets) {
+  std::vector<std::string_view> views;
+  for (const py::bytes& part : parts) views.push_back(View(part));
+  std::string merged;
+  std::vector<std::vector<uint32_t>> wanted(offsets.size());
+  absl::Status status;
+  {
+    py::gil_scoped_release release;
+    std::vector<CandidatePairs> found;
+    for (std::string_view view : views) {
+      auto pairs = ParseCandidatePairs(view);
+      status = pairs.status();
+      if (!status.ok()) break;
+      found.push_back(*std::move(pairs));
+    }
+    if (status.ok()) {
+      const CandidatePairs all = MergeCandidatePairs(found);
+      merged = SerializeCandidatePairs(all);
+      size_t shard = 0;
+      for (uint32_t doc : CandidateDocuments(all.pairs)) {
+        while (shard + 1 < offsets.size() && doc >= offsets[shard + 1]) ++shard;
+        wanted[shard].push_back(doc);
+      }
+    }
+  }
+  Check(status);
+  py::list want;
+  for (const std::vector<uint32_t>& w : wanted) want.append(U32Bytes(w));
+  return py::make_tuple(py::bytes(merged), want);
+}
+
+// read_sets: a shard read again for the documents each verify range wants
+// from it (u32 numbers in the whole corpus) -> [set store of range v].
+// `table` is the shard's document table from sign_shard: a document that
+// differs from its row is an InputChangedError naming the shard and line.
+py::list ReadSetsStage(const std::string& path, const py::handle& settings_object,
+                       const std::string& input_format, const std::string& id_field,
+                       const std::string& text_field, const std::string& priority_field,
+                       const py::bytes& table_bytes, const std::vector<py::bytes>& wanted,
+                       uint64_t offset) {
+  const SignatureSettings settings = ToSignature(settings_object);
+  const InputOptions input = ToInput(input_format, id_field, text_field, priority_field);
+  const std::string_view table_view = View(table_bytes);
+  std::vector<std::vector<uint32_t>> lists;
+  for (const py::bytes& w : wanted) lists.push_back(U32s(View(w)));
+  std::vector<std::string> out(lists.size());
+  absl::Status status;
+  {
+    py::gil_scoped_release release;
+    std::vector<uint32_t> all;
+    for (const std::vector<uint32_t>& list : lists) all.insert(all.end(), list.begin(), list.end());
+    std::sort(all.begin(), all.end());
+    all.erase(std::unique(all.begin(), all.end()), all.end());
+    auto table = ParseDocumentTable(table_view);
+    auto reader = CorpusReader::Open({path}, input);
+    status = table.ok() ? reader.status() : table.status();
+    absl::StatusOr<SetStore> sets = SetStore(settings.perms);
+    if (status.ok()) {
+      ShardOptions options;
+      options.first_document = static_cast<uint32_t>(offset);
+      options.expected = &*table;
+      sets = ReadShardSets(**reader, settings, options, all);
+      status = sets.status();
+    }
+    for (size_t v = 0; status.ok() && v < lists.size(); ++v) {
+      SetStore part(settings.perms);
+      for (uint32_t doc : lists[v]) part.Add(doc, sets->shingles(doc), sets->signature(doc));
+      out[v] = SerializeSetStore(part);
+    }
+  }
+  Check(status);
+  py::list result;
+  for (const std::string& o : out) result.append(py::bytes(o));
   return result;
 }
 
@@ -312,9 +213,7 @@ uint64_t WriteKeptShard(const std::string& path, const std::string& input_format
                         const std::string& priority_field, const py::bytes& dropped_bytes,
                         uint64_t documents, const std::string& lines_path) {
   const InputOptions input = ToInput(input_format, id_field, text_field, priority_field);
-  const std::string_view view = View(dropped_bytes);
-  std::vector<uint32_t> dropped(view.size() / 4);
-  std::memcpy(dropped.data(), view.data(), dropped.size() * 4);
+  const std::vector<uint32_t> dropped = U32s(View(dropped_bytes));
   absl::StatusOr<KeptCounts> counts;
   {
     py::gil_scoped_release release;
@@ -339,18 +238,16 @@ uint64_t WriteKeptShard(const std::string& path, const std::string& input_format
 }  // namespace
 
 void RegisterStages(py::module_& module) {
-  module.def("stage_sign_shard", &SignShard, py::arg("path"), py::arg("settings"),
+  module.def("stage_sign_shard", &SignShardStage, py::arg("path"), py::arg("settings"),
              py::arg("input_format"), py::arg("id_field"), py::arg("text_field"),
              py::arg("priority_field"), py::arg("bands"), py::arg("rows"), py::arg("partitions"),
              py::arg("threads") = 1);
-  module.def("stage_candidates", &Candidates, py::arg("parts"), py::arg("offsets"),
-             py::arg("documents"), py::arg("perms"), py::arg("bands"), py::arg("rows"),
-             py::arg("ranges"), py::arg("max_bucket"));
-  module.def("stage_verify_plan", &VerifyPlan, py::arg("parts"), py::arg("offsets"));
-  module.def("stage_read_sets", &ReadSets, py::arg("path"), py::arg("settings"),
+  module.def("stage_candidates", &CandidatesStage, py::arg("parts"), py::arg("offsets"),
+             py::arg("documents"), py::arg("ranges"), py::arg("max_bucket"));
+  module.def("stage_plan", &PlanStage, py::arg("parts"), py::arg("offsets"));
+  module.def("stage_read_sets", &ReadSetsStage, py::arg("path"), py::arg("settings"),
              py::arg("input_format"), py::arg("id_field"), py::arg("text_field"),
-             py::arg("priority_field"), py::arg("bands"), py::arg("rows"), py::arg("digests"),
-             py::arg("wanted"), py::arg("offset"));
+             py::arg("priority_field"), py::arg("table"), py::arg("wanted"), py::arg("offset"));
   module.def("stage_write_kept", &WriteKeptShard, py::arg("path"), py::arg("input_format"),
              py::arg("id_field"), py::arg("text_field"), py::arg("priority_field"),
              py::arg("dropped"), py::arg("documents"), py::arg("lines_path"));

@@ -1,9 +1,13 @@
-// The last stages of the cluster sweep (see stages.cc for the list): verify
-// a range's pairs on their sets, and finish: groups and the record files'
-// bytes. Pure functions from bytes to bytes over the public API.
+// The reduce-side stages of the cluster sweep (see stages.cc for the
+// others): verify a range's candidate pairs on their sets, the edges of the
+// confirmed pairs for the connected-components rounds, and finish: groups
+// and the record files' bytes. Pure functions from bytes to bytes over the
+// library's stage functions (kindred/sweep_stages.h) and records.
 #include <pybind11/stl.h>
 
 #include <algorithm>
+#include <cstring>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -13,81 +17,16 @@
 #include "kindred/errors.h"
 #include "kindred/groups.h"
 #include "kindred/records.h"
-#include "kindred/signed_corpus.h"
-#include "kindred/sweep.h"
+#include "kindred/sweep_stages.h"
 #include "stage_bytes.h"
 
 namespace kindred::python {
 namespace {
 
-// The extracted sets of a range (from every shard), as a whole corpus of
-// those documents in ascending global order; global[i] is the number of
-// its document i.
-SignedCorpus ReadExtracted(const std::vector<std::string_view>& views, uint32_t perms,
-                           std::vector<uint32_t>* global) {
-  struct Doc {
-    uint32_t global;
-    std::string_view record;  // set size, signature, set
-  };
-  std::vector<Doc> docs;
-  for (std::string_view view : views) {
-    In in(view);
-    size_t at = 0;
-    while (!in.done()) {
-      const uint32_t number = in.Get<uint32_t>();
-      const uint32_t size = in.Get<uint32_t>();
-      const size_t rest = perms * sizeof(uint32_t) + size * sizeof(uint64_t);
-      in.Skip(rest);
-      docs.push_back({number, view.substr(at + 4, 4 + rest)});
-      at += 8 + rest;
-    }
-  }
-  std::sort(docs.begin(), docs.end(),
-            [](const Doc& a, const Doc& b) { return a.global < b.global; });
-  SignedCorpus corpus(perms);
-  std::vector<uint32_t> signature(perms);
-  std::vector<uint64_t> set;
-  for (const Doc& doc : docs) {
-    In in(doc.record);
-    set.resize(in.Get<uint32_t>());
-    in.GetAll(signature.size(), signature.data());
-    in.GetAll(set.size(), set.data());
-    corpus.Add(std::string(), KeepFacts(), DocumentOrigin(), set, signature);
-    global->push_back(doc.global);
-  }
-  return corpus;
-}
-
-void PutScored(const ScoredPair& p, Out* out) {
-  out->Put<uint32_t>(p.a);
-  out->Put<uint32_t>(p.b);
-  out->Put<uint32_t>(p.shared);
-  out->Put<uint32_t>(p.size_a);
-  out->Put<uint32_t>(p.size_b);
-  out->Put<uint32_t>(0);
-  out->Put<double>(p.jaccard);
-  out->Put<double>(p.estimate);
-}
-
-ScoredPair GetScored(In* in) {
-  ScoredPair p;
-  p.a = in->Get<uint32_t>();
-  p.b = in->Get<uint32_t>();
-  p.shared = in->Get<uint32_t>();
-  p.size_a = in->Get<uint32_t>();
-  p.size_b = in->Get<uint32_t>();
-  in->Get<uint32_t>();
-  p.jaccard = in->Get<double>();
-  p.estimate = in->Get<double>();
-  return p;
-}
-
-// verify: a range's pairs and the sets of their documents (from every
-// shard) -> scored pairs, ascending (40 bytes each; RECORDS.md).
-py::bytes Verify(const py::bytes& pairs_bytes, const std::vector<py::bytes>& sets,
-                 const py::handle& settings_object, double threshold, uint32_t bands,
-                 uint32_t rows) {
-  const SignatureSettings settings = ToSignature(settings_object);
+// verify: a range's candidate pairs and the set stores of their documents
+// (one per shard) -> scored pairs, ascending (VerifyCandidates).
+py::bytes VerifyStage(const py::bytes& pairs_bytes, const std::vector<py::bytes>& sets,
+                      double threshold, uint32_t bands, uint32_t rows) {
   MatchSettings match;
   match.threshold = threshold;
   match.bands = bands;
@@ -95,76 +34,88 @@ py::bytes Verify(const py::bytes& pairs_bytes, const std::vector<py::bytes>& set
   const std::string_view pair_view = View(pairs_bytes);
   std::vector<std::string_view> views;
   for (const py::bytes& s : sets) views.push_back(View(s));
-  Out out;
+  std::string out;
+  absl::Status status;
   {
     py::gil_scoped_release release;
-    std::vector<uint32_t> global;
-    const SignedCorpus local = ReadExtracted(views, settings.perms, &global);
-    std::vector<PackedPair> pairs(pair_view.size() / 8);
-    std::memcpy(pairs.data(), pair_view.data(), pairs.size() * 8);
-    auto local_of = [&global](uint32_t doc) {
-      return static_cast<uint32_t>(std::lower_bound(global.begin(), global.end(), doc) -
-                                   global.begin());
-    };
-    for (PackedPair& pair : pairs)
-      pair = PackPair(local_of(PairFirst(pair)), local_of(PairSecond(pair)));
-    for (ScoredPair p : VerifyPairs(local, pairs, match, 1)) {
-      p.a = global[p.a];
-      p.b = global[p.b];
-      PutScored(p, &out);
+    auto pairs = ParseCandidatePairs(pair_view);
+    status = pairs.status();
+    SetStore store;
+    for (size_t s = 0; status.ok() && s < views.size(); ++s) {
+      auto part = ParseSetStore(views[s]);
+      status = part.status();
+      if (!status.ok()) break;
+      if (s == 0) store = SetStore(part->perms());
+      store.Merge(*part);
+    }
+    if (status.ok()) {
+      auto scored = VerifyCandidates(pairs->pairs, store, match, 1);
+      status = scored.status();
+      if (status.ok()) out = SerializeScoredPairs(*scored);
     }
   }
-  return out.Bytes();
+  Check(status);
+  return py::bytes(out);
 }
 
-// What finish needs of every document, from the document tables.
-struct Documents {
-  std::vector<std::string> ids;
-  std::vector<KeepFacts> facts;
-  std::vector<uint8_t> empty;
-  std::vector<std::pair<uint32_t, uint64_t>> places;  // shard, line
-};
+// pair_ends: scored pairs -> their two documents, u32 a then u32 b each.
+py::bytes PairEnds(const py::bytes& scored) {
+  const std::string_view view = View(scored);
+  std::vector<uint32_t> ends;
+  absl::Status status;
+  {
+    py::gil_scoped_release release;
+    auto pairs = ParseScoredPairs(view);
+    status = pairs.status();
+    if (status.ok()) {
+      ends.reserve(pairs->size() * 2);
+      for (const ScoredPair& p : *pairs) {
+        ends.push_back(p.a);
+        ends.push_back(p.b);
+      }
+    }
+  }
+  Check(status);
+  return py::bytes(reinterpret_cast<const char*>(ends.data()), ends.size() * 4);
+}
 
-Documents ReadTables(const std::vector<std::string_view>& views) {
-  Documents docs;
+// Every shard's document table joined into the whole corpus's (shard s's
+// rows numbered on from the documents before it, DocumentOrigin::input set
+// to s); an id repeated across or within shards is the error a local sweep
+// reports, worded alike, naming the shards.
+absl::StatusOr<DocumentTable> JoinTables(const std::vector<std::string_view>& views,
+                                         const std::vector<std::string>& shards) {
+  std::vector<DocumentTable> parts;
+  uint32_t first = 0;
   for (size_t s = 0; s < views.size(); ++s) {
-    In in(views[s]);
-    const uint32_t count = in.Get<uint32_t>();
-    for (uint32_t doc = 0; doc < count; ++doc) {
-      KeepFacts f;
-      f.length = in.Get<uint64_t>();
-      f.priority = in.Get<double>();
-      f.has_priority = in.Get<uint8_t>() != 0;
-      docs.facts.push_back(f);
-      docs.empty.push_back(in.Get<uint32_t>() == 0);
-      docs.places.emplace_back(static_cast<uint32_t>(s), in.Get<uint64_t>());
-      docs.ids.push_back(in.GetString());
+    auto table = ParseDocumentTable(views[s]);
+    if (!table.ok()) return table.status();
+    table->first_document = first;
+    for (DocumentRecord& row : table->documents) row.origin.input = static_cast<uint32_t>(s);
+    first += static_cast<uint32_t>(table->documents.size());
+    parts.push_back(*std::move(table));
+  }
+  auto where = [&](const DocumentOrigin& origin) {
+    return origin.line > 0 ? absl::StrCat(shards[origin.input], ":", origin.line)
+                           : shards[origin.input];
+  };
+  absl::flat_hash_map<std::string_view, const DocumentRecord*> seen;
+  for (const DocumentTable& part : parts) {
+    for (const DocumentRecord& doc : part.documents) {
+      auto [it, added] = seen.emplace(doc.id, &doc);
+      if (added) continue;
+      const DocumentOrigin& was = it->second->origin;
+      return BadInput(absl::StrCat(
+          where(doc.origin), ": duplicate id \"", doc.id, "\" (first seen at ", where(was), ")",
+          was.input != doc.origin.input ? "; --ids-with-path makes ids name their files" : ""));
     }
   }
-  return docs;
-}
-
-// The error a local sweep reports for the first repeated id, worded alike.
-absl::Status CheckUniqueIds(const Documents& docs, const std::vector<std::string>& shards) {
-  auto where = [&](const std::pair<uint32_t, uint64_t>& place) {
-    return place.second > 0 ? absl::StrCat(shards[place.first], ":", place.second)
-                            : shards[place.first];
-  };
-  absl::flat_hash_map<std::string_view, uint32_t> seen;
-  for (uint32_t doc = 0; doc < docs.ids.size(); ++doc) {
-    auto [it, added] = seen.emplace(docs.ids[doc], doc);
-    if (added) continue;
-    const auto& first = docs.places[it->second];
-    const auto& place = docs.places[doc];
-    return BadInput(absl::StrCat(
-        where(place), ": duplicate id \"", docs.ids[doc], "\" (first seen at ", where(first), ")",
-        first.first != place.first ? "; --ids-with-path makes ids name their files" : ""));
-  }
-  return absl::OkStatus();
+  return JoinDocumentTables(std::move(parts));
 }
 
 // The drops of `groups`, by shard, as local numbers ascending.
-void DropsByShard(const std::vector<Group>& groups, const Documents& docs, std::vector<Out>* out) {
+std::vector<std::vector<uint32_t>> DropsByShard(const std::vector<Group>& groups,
+                                                const DocumentTable& table, size_t shards) {
   std::vector<uint32_t> drops;
   for (const Group& group : groups) {
     for (uint32_t member : group.members) {
@@ -172,59 +123,84 @@ void DropsByShard(const std::vector<Group>& groups, const Documents& docs, std::
     }
   }
   std::sort(drops.begin(), drops.end());
-  std::vector<uint32_t> first(out->size(), 0);  // the number of each shard's first document
-  for (uint32_t doc = docs.places.size(); doc-- > 0;) first[docs.places[doc].first] = doc;
-  for (uint32_t doc : drops) {
-    const uint32_t shard = docs.places[doc].first;
-    (*out)[shard].Put<uint32_t>(doc - first[shard]);
+  std::vector<uint32_t> first(shards, 0);  // the number of each shard's first document
+  for (uint32_t doc = table.documents.size(); doc-- > 0;) {
+    first[table.documents[doc].origin.input] = doc;
   }
+  std::vector<std::vector<uint32_t>> out(shards);
+  for (uint32_t doc : drops) {
+    const uint32_t shard = table.documents[doc].origin.input;
+    out[shard].push_back(doc - first[shard]);
+  }
+  return out;
 }
 
-// finish: every shard's document table (its name for messages) and every
-// range's scored pairs, in order -> (pairs, groups, decisions) record bytes.
-py::tuple Finish(const std::vector<py::bytes>& tables, const std::vector<std::string>& shards,
-                 const std::vector<py::bytes>& scored, const std::string& keep_name,
-                 const std::string& grouping_name, const std::string& format_name) {
-  const KeepPolicy keep = Take(ParseKeepPolicy(keep_name));
-  const Grouping grouping = Take(ParseGrouping(grouping_name));
-  const RecordFormat format = Take(ParseRecordFormat(format_name));
+// finish: every shard's document table (its name for messages), every
+// range's scored pairs in order, and the components as star edges (u32
+// member, u32 smallest member of its component; from the
+// connected-components rounds; None with grouping "keepers", which is not
+// a components question) -> (pairs, groups, decisions record bytes, [drops
+// of shard s, u32 local numbers]).
+py::tuple FinishStage(const std::vector<py::bytes>& tables, const std::vector<std::string>& shards,
+                      const std::vector<py::bytes>& scored, const std::optional<py::bytes>& stars,
+                      const std::string& keep_name, const std::string& grouping_name,
+                      const std::string& format_name) {
+  SweepRecordOptions options;
+  options.keep = Take(ParseKeepPolicy(keep_name));
+  options.grouping = Take(ParseGrouping(grouping_name));
+  options.format = Take(ParseRecordFormat(format_name));
   std::vector<std::string_view> table_views, scored_views;
   for (const py::bytes& t : tables) table_views.push_back(View(t));
   for (const py::bytes& s : scored) scored_views.push_back(View(s));
-  std::string pairs_out, groups_out, decisions_out;
-  std::vector<Out> dropped(tables.size());  // per shard: u32 local numbers of its drops
+  const std::string_view star_view = stars ? View(*stars) : std::string_view();
+  SweepRecords records;
+  std::vector<std::vector<uint32_t>> dropped;
   absl::Status status;
   {
     py::gil_scoped_release release;
-    const Documents docs = ReadTables(table_views);
-    status = CheckUniqueIds(docs, shards);
+    auto table = JoinTables(table_views, shards);
+    status = table.status();
+    std::vector<std::vector<ScoredPair>> parts;
+    for (size_t v = 0; status.ok() && v < scored_views.size(); ++v) {
+      auto part = ParseScoredPairs(scored_views[v]);
+      status = part.status();
+      if (status.ok()) parts.push_back(*std::move(part));
+    }
     if (status.ok()) {
-      std::vector<ScoredPair> pairs;
-      for (std::string_view view : scored_views) {
-        for (In in(view); !in.done();) pairs.push_back(GetScored(&in));
+      const std::vector<ScoredPair> pairs = MergeScoredPairs(parts);
+      // A star per component (its smallest member and every other member)
+      // has the components of the confirmed pairs; grouping it is linear.
+      std::vector<ScoredPair> star;
+      for (size_t i = 0; i + 8 <= star_view.size(); i += 8) {
+        ScoredPair edge;
+        std::memcpy(&edge.b, star_view.data() + i, 4);
+        std::memcpy(&edge.a, star_view.data() + i + 4, 4);
+        star.push_back(edge);
       }
-      const std::vector<Group> groups = GroupPairs(pairs, docs.facts, keep, grouping);
-      WritePairRecords(format, pairs, docs.ids, &pairs_out);
-      WriteGroupRecords(format, groups, docs.ids, keep, &groups_out, grouping);
-      WriteDecisionRecords(format, groups, pairs, docs.ids, docs.empty, keep, &decisions_out,
-                           docs.facts, grouping);
-      DropsByShard(groups, docs, &dropped);
+      const bool by_star = stars.has_value() && options.grouping == Grouping::kComponents;
+      const std::vector<Group> groups =
+          GroupDocuments(*table, by_star ? star : pairs, options.keep, options.grouping);
+      records = FormatSweepRecords(*table, pairs, groups, options);
+      dropped = DropsByShard(groups, *table, tables.size());
     }
   }
   Check(status);
   py::list drops;
-  for (const Out& d : dropped) drops.append(d.Bytes());
-  return py::make_tuple(py::bytes(pairs_out), py::bytes(groups_out), py::bytes(decisions_out),
-                        drops);
+  for (const std::vector<uint32_t>& d : dropped) {
+    drops.append(py::bytes(reinterpret_cast<const char*>(d.data()), d.size() * 4));
+  }
+  return py::make_tuple(py::bytes(records.pairs), py::bytes(records.groups),
+                        py::bytes(records.decisions), drops);
 }
 
 }  // namespace
 
 void RegisterReduceStages(py::module_& module) {
-  module.def("stage_verify", &Verify, py::arg("pairs"), py::arg("sets"), py::arg("settings"),
-             py::arg("threshold"), py::arg("bands"), py::arg("rows"));
-  module.def("stage_finish", &Finish, py::arg("tables"), py::arg("shards"), py::arg("scored"),
-             py::arg("keep"), py::arg("grouping"), py::arg("format"));
+  module.def("stage_verify", &VerifyStage, py::arg("pairs"), py::arg("sets"), py::arg("threshold"),
+             py::arg("bands"), py::arg("rows"));
+  module.def("stage_pair_ends", &PairEnds, py::arg("scored"));
+  module.def("stage_finish", &FinishStage, py::arg("tables"), py::arg("shards"), py::arg("scored"),
+             py::arg("stars"), py::arg("keep"), py::arg("grouping"), py::arg("format"));
 }
 
 }  // namespace kindred::python

@@ -51,7 +51,7 @@ def test_cluster_sweep_writes_the_program_s_bytes(client, shards, tmp_path):
         same_files(want, got, fmt)
         assert summary.documents == 147 and summary.confirmed_pairs > 0
         assert [s.name for s in summary.stages] == [
-            "sign", "candidates", "plan", "sets", "verify", "finish"]
+            "sign", "candidates", "plan", "sets", "verify", "groups", "finish"]
         assert "per doc" in summary.text()
     # Kept documents: the shards' kept files, in shard order, hold the bytes
     # of the program's --write-kept file.
@@ -98,14 +98,17 @@ def test_a_shard_that_changed_before_its_second_reading_is_an_error(shards, tmp_
     shard = tmp_path / "shard.jsonl"
     shard.write_bytes(open(shards[0], "rb").read())
     settings = kindred.Settings()
-    table, keys, digests = stages.sign_shard(str(shard), settings, options, 15, 8, 2)
-    wanted = [struct.pack("<II", 0, 3)]
-    sets = stages.read_sets(str(shard), settings, options, 15, 8, digests, wanted, 100)
-    assert struct.unpack_from("<I", sets[0])[0] == 100 and len(sets) == 1
+    table, keys = stages.sign_shard(str(shard), settings, options, 15, 8, 2)
+    wanted = [struct.pack("<II", 100, 103)]
+    sets = stages.read_sets(str(shard), settings, options, table, wanted, 100)
+    # A set store record (src/core/RECORDS.md): u32 perms, u64 count, then
+    # the first entry's u32 document.
+    assert len(sets) == 1 and sets[0][:8] == b"KNDRSETS"
+    assert struct.unpack_from("<IQI", sets[0], 24) == (128, 2, 100)
     lines = shard.read_bytes().splitlines(keepends=True)
     lines[3] = lines[3].replace(b"the", b"a", 3)
     shard.write_bytes(b"".join(lines))
     with pytest.raises(kindred.InputChangedError) as caught:
-        stages.read_sets(str(shard), settings, options, 15, 8, digests, wanted, 100)
+        stages.read_sets(str(shard), settings, options, table, wanted, 100)
     assert str(caught.value).startswith(f"{shard}:4: document ")
     assert caught.value.exit_code == 3

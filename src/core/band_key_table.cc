@@ -33,8 +33,18 @@ uint32_t BandKeyPartition(uint64_t key, uint32_t partitions) {
 
 std::vector<BandKeyTable> PartitionBandKeys(const BandKeyTable& table, uint32_t partitions) {
   std::vector<BandKeyTable> out(std::max<uint32_t>(partitions, 1));
-  for (const BandKeyRecord& record : table.records) {
-    out[BandKeyPartition(record.key, static_cast<uint32_t>(out.size()))].records.push_back(record);
+  const uint32_t parts = static_cast<uint32_t>(out.size());
+  // The partition of every row, counted first, so that each table is
+  // reserved at its size instead of grown by doubling.
+  std::vector<uint32_t> where(table.records.size());
+  std::vector<size_t> sizes(parts, 0);
+  for (size_t i = 0; i < table.records.size(); ++i) {
+    where[i] = BandKeyPartition(table.records[i].key, parts);
+    ++sizes[where[i]];
+  }
+  for (uint32_t p = 0; p < parts; ++p) out[p].records.reserve(sizes[p]);
+  for (size_t i = 0; i < table.records.size(); ++i) {
+    out[where[i]].records.push_back(table.records[i]);
   }
   return out;  // each keeps the table's order: sorted
 }

@@ -7,15 +7,20 @@
 #include "absl/strings/str_cat.h"
 #include "core/verify_pairs.h"
 #include "kindred/errors.h"
+#include "kindred/shingles.h"
+#include "kindred/signer.h"
 
 namespace kindred {
 namespace {
 
-// Signs the whole shard into a corpus that keeps every set and signature.
+// Signs the whole shard: into a corpus that keeps every set and signature
+// with options.keep_sets, otherwise into a lean one (band keys of `banding`).
 absl::StatusOr<SignedCorpus> SignWhole(CorpusReader& reader, const SignatureSettings& settings,
-                                       const ShardOptions& options, SignStats* stats) {
+                                       Banding banding, const ShardOptions& options,
+                                       SignStats* stats) {
   if (absl::Status status = settings.Validate(); !status.ok()) return status;
-  SignedCorpus corpus(settings.perms);
+  SignedCorpus corpus = options.keep_sets ? SignedCorpus(settings.perms)
+                                          : SignedCorpus::Lean(settings.perms, banding);
   SignOptions sign = options.sign;
   sign.flush = nullptr;
   if (absl::Status status = SignCorpus(reader, settings, sign, &corpus, stats); !status.ok()) {
@@ -25,6 +30,20 @@ absl::StatusOr<SignedCorpus> SignWhole(CorpusReader& reader, const SignatureSett
     return LimitExceeded("a shard's documents are numbered beyond 2^32");
   }
   return corpus;
+}
+
+// Whether document `doc`, read again, is the one of row `row` of the table
+// signing made.
+bool SameDocument(const Document& doc, bool empty, const DocumentRecord& row) {
+  return doc.id == row.id && doc.text.size() == row.facts.length &&
+         doc.source.line == row.origin.line && doc.source.offset == row.origin.offset &&
+         empty == (row.shingle_count == 0);
+}
+
+// The document's place for a message: "path:line", or the path.
+std::string Where(const Document& doc) {
+  return doc.source.line > 0 ? absl::StrCat(doc.source.path, ":", doc.source.line)
+                             : doc.source.path;
 }
 
 // The pairs of one bucket (documents ascending) into *pairs, and its counts.
@@ -60,12 +79,16 @@ absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSetti
                                        " does not fit signatures of ", settings.perms, " slots"));
   }
   SignedShard shard;
-  absl::StatusOr<SignedCorpus> corpus = SignWhole(reader, settings, options, &shard.stats);
+  absl::StatusOr<SignedCorpus> corpus = SignWhole(reader, settings, banding, options, &shard.stats);
   if (!corpus.ok()) return corpus.status();
   shard.documents.first_document = options.first_document;
   shard.documents.documents.resize(corpus->size());
   shard.sets = SetStore(settings.perms);
   std::vector<uint64_t> keys(banding.bands);
+  // Rows band by band (documents ascending in each), so that sorting each
+  // band by key sorts the table; reserved, not grown by doubling.
+  std::vector<std::vector<BandKeyRecord>> bands(banding.bands);
+  for (std::vector<BandKeyRecord>& band : bands) band.reserve(corpus->size());
   for (size_t doc = 0; doc < corpus->size(); ++doc) {
     const uint32_t number = options.first_document + static_cast<uint32_t>(doc);
     DocumentRecord& record = shard.documents.documents[doc];
@@ -76,27 +99,68 @@ absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSetti
     record.shingle_count = corpus->shingle_count(doc);
     if (options.keep_sets) shard.sets.Add(number, corpus->shingles(doc), corpus->signature(doc));
     if (record.shingle_count == 0) continue;
-    BandKeys(corpus->signature(doc), banding, absl::MakeSpan(keys));
+    if (options.keep_sets) {
+      BandKeys(corpus->signature(doc), banding, absl::MakeSpan(keys));
+    } else {
+      for (uint32_t band = 0; band < banding.bands; ++band)
+        keys[band] = corpus->band_key(doc, band);
+    }
     for (uint32_t band = 0; band < banding.bands; ++band) {
-      if (keys[band] != kNoBandKey) shard.band_keys.records.push_back({band, keys[band], number});
+      if (keys[band] != kNoBandKey) bands[band].push_back({band, keys[band], number});
     }
   }
-  SortBandKeys(&shard.band_keys);
+  size_t rows = 0;
+  for (const std::vector<BandKeyRecord>& band : bands) rows += band.size();
+  shard.band_keys.records.reserve(rows);
+  for (std::vector<BandKeyRecord>& band : bands) {
+    std::sort(band.begin(), band.end(), [](const BandKeyRecord& x, const BandKeyRecord& y) {
+      return x.key != y.key ? x.key < y.key : x.document < y.document;
+    });
+    shard.band_keys.records.insert(shard.band_keys.records.end(), band.begin(), band.end());
+    std::vector<BandKeyRecord>().swap(band);
+  }
   return shard;
 }
 
 absl::StatusOr<SetStore> ReadShardSets(CorpusReader& reader, const SignatureSettings& settings,
                                        const ShardOptions& options,
                                        absl::Span<const uint32_t> documents) {
-  SignStats stats;
-  absl::StatusOr<SignedCorpus> corpus = SignWhole(reader, settings, options, &stats);
-  if (!corpus.ok()) return corpus.status();
-  SetStore sets(settings.perms);
+  if (absl::Status status = settings.Validate(); !status.ok()) return status;
+  auto shingler = Shingler::Create(settings);
+  if (!shingler.ok()) return shingler.status();
+  std::vector<uint64_t> wanted;  // shard-local numbers, ascending
+  const DocumentTable* expected = options.expected;
   for (const uint32_t number : documents) {
     if (number < options.first_document) continue;
     const uint64_t doc = number - options.first_document;
-    if (doc >= corpus->size()) continue;
-    sets.Add(number, corpus->shingles(doc), corpus->signature(doc));
+    if (expected == nullptr || doc < expected->documents.size()) wanted.push_back(doc);
+  }
+  reader.SetFilter(
+      [&wanted](uint64_t n) { return std::binary_search(wanted.begin(), wanted.end(), n); });
+  const Signer signer(settings);
+  std::vector<uint32_t> signature(settings.perms);
+  ShingleSet set;
+  std::vector<Document> batch;
+  SetStore sets(settings.perms);
+  for (;;) {
+    absl::StatusOr<size_t> count = reader.ReadBatch(&batch, 1024, 16 << 20);
+    if (!count.ok()) return count.status();
+    if (*count == 0) break;
+    for (const Document& doc : batch) {
+      if (absl::Status s = (*shingler)->Shingle(doc.text, &set); !s.ok()) return s;
+      if (expected != nullptr &&
+          (doc.ordinal >= expected->documents.size() ||
+           !SameDocument(doc, set.empty(), expected->documents[doc.ordinal]))) {
+        return InputChanged(absl::StrCat(Where(doc), ": document \"", doc.id,
+                                         "\" changed since it was first read; run again"));
+      }
+      signer.Sign(set, absl::MakeSpan(signature));
+      sets.Add(options.first_document + static_cast<uint32_t>(doc.ordinal), set, signature);
+    }
+  }
+  if (expected != nullptr && sets.size() < wanted.size()) {
+    const std::string name = reader.inputs().empty() ? "a shard" : reader.inputs()[0];
+    return InputChanged(absl::StrCat(name, ": fewer documents than when it was first read"));
   }
   return sets;
 }
@@ -157,8 +221,7 @@ void WriteSweepRecords(const SweepRecordOptions& options, absl::Span<const Score
 }
 
 SweepRecords FormatSweepRecords(const DocumentTable& table, absl::Span<const ScoredPair> pairs,
-                                absl::Span<const Group> groups,
-                                const SweepRecordOptions& options) {
+                                absl::Span<const Group> groups, const SweepRecordOptions& options) {
   std::vector<std::string> ids;
   std::vector<KeepFacts> facts;
   std::vector<uint8_t> empty;

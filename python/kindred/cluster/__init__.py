@@ -4,27 +4,30 @@ The stages of a local sweep, as tasks over the shards of a corpus; the files
 written are byte-identical to those of ``kindred sweep -o OUT`` over the same
 shards in the same order, for any number of workers and partitions:
 
-  sign       a task per shard: signs it lean (band keys only, as a local
+  sign       a task per shard: SignShard, lean (band keys only, as a local
              sweep signs; documents numbered by shard, then position, as a
-             local sweep numbers them), emits its document table, its band
-             keys split into P partitions by key hash, and a 4-byte
-             band-key digest per document
+             local sweep numbers them): its document table and its band-key
+             table cut into P partitions by key hash
   candidates a task per partition: that partition's band keys from every
-             shard -> candidate pairs, the crowded-bucket cap applied
-             exactly as locally, routed into V ranges of first documents
-  plan       a task per range: its pairs, sorted and distinct, and the
-             documents each shard must send for them
-  sets       a task per shard: reads the shard again, skipping all but the
-             wanted documents, signs those again (each checked against its
-             digest: a shard that changed is an error) and emits their sets
-  verify     a task per range: exact Jaccard on the sets (VerifyPairs)
-  finish     one task: connected components (union-find over the confirmed
-             pairs, which the pairs file lists in full anyway), keep
+             shard -> FindPartitionCandidates (the crowded-bucket cap
+             applied exactly as locally), cut into V ranges of first
+             documents
+  plan       a task per range: MergeCandidatePairs, and the documents each
+             shard must send
+  sets       a task per shard: ReadShardSets, reading the shard again and
+             parsing only the wanted documents, each checked against the
+             shard's document table (a shard that changed is an error)
+  verify     a task per range: VerifyCandidates on the sets
+  groups     connected components of the confirmed pairs, in large-star /
+             small-star rounds over edge lists partitioned by node
+             (components.py), a task per partition and step
+  finish     one task: GroupDocuments on the components' stars, keep
              decisions, the three record files written by the worker
   kept       with write_kept, a task per shard: its kept documents, in its
              own format, into a file of the shard's name
 
-Every task is a pure function of its inputs (RECORDS.md), so a task re-run
+The tasks exchange the library's records (src/core/RECORDS.md) as bytes;
+RECORDS.md beside this file says which go where. Every task is a pure function of its inputs (RECORDS.md), so a task re-run
 after a worker is lost gives the same bytes.
 
     >>> from distributed import Client, LocalCluster
@@ -68,6 +71,7 @@ class ClusterSummary:
     candidate_pairs: int
     confirmed_pairs: int
     kept: Optional[int] = None  # documents written by write_kept
+    component_steps: int = 0    # large-star and small-star steps of the groups stage
     stages: List[StageSummary] = field(default_factory=list)
 
     @property
@@ -103,13 +107,57 @@ def _first_error(futures):
 
 
 def _stage(summary, name, client, futures, sizes_of):
-    """Waits for a stage, and records its tasks, time and output bytes."""
+    """Waits for a stage, and records its tasks and time; the bytes of
+    `sizes_of` (its outputs) are counted on the workers and gathered at the
+    end (_sizes), so that the stage does not wait for them."""
     start = summary._clock
     _first_error(futures)
-    sizes = client.gather([client.submit(stages.size, f, pure=False) for f in sizes_of])
     now = time.monotonic()
-    summary.stages.append(StageSummary(name, len(futures), now - start, sum(sizes)))
+    summary.stages.append(StageSummary(name, len(futures), now - start, 0))
+    summary._sizes.append([client.submit(stages.size, f, pure=False) for f in sizes_of])
     summary._clock = now
+
+
+def _sizes(summary, client):
+    """Fills in the bytes of every stage, and the pair counts."""
+    sizes, counts = client.gather([summary._sizes, summary._counts])
+    for stage, stage_sizes in zip(summary.stages, sizes):
+        stage.bytes_out = sum(stage_sizes)
+    summary.candidate_pairs, summary.confirmed_pairs = (sum(c) for c in counts)
+
+
+def _components(summary, client, scored, parts):
+    """The connected components of the confirmed pairs (components.py:
+    large-star / small-star rounds, a task per node partition and step) ->
+    a future of the star edges (member, smallest member), one bytes."""
+    submit = client.submit
+    firsts = [submit(stages.first_edges, f, parts) for f in scored]
+    lists = [[submit(stages.pick, f, p) for p in range(parts)] for f in firsts]
+    tasks, moved, steps = len(firsts), list(firsts), 0
+    while True:
+        large = [submit(stages.large_star, [row[p] for row in lists], parts) for p in range(parts)]
+        to_small = [[submit(stages.pick, submit(stages.pick, f, 0), p) for p in range(parts)]
+                    for f in large]
+        small = [submit(stages.small_star, [row[p] for row in to_small], parts)
+                 for p in range(parts)]
+        lists = [[submit(stages.pick, submit(stages.pick, f, 0), p) for p in range(parts)]
+                 for f in small]
+        star_parts = [submit(stages.pick, f, 1) for f in small]
+        flags = client.gather([submit(stages.pick, f, 1) for f in large] +
+                              [submit(stages.pick, f, 2) for f in small])
+        tasks += 2 * parts
+        steps += 2
+        moved += large + small
+        if not any(flags):
+            break
+    stars = submit(stages.join, star_parts)
+    _first_error([stars])
+    now = time.monotonic()
+    summary.stages.append(StageSummary("groups", tasks, now - summary._clock, 0))
+    summary._sizes.append([submit(stages.size, f, pure=False) for f in moved])
+    summary.component_steps = steps
+    summary._clock = now
+    return stars
 
 
 def sweep(client, shards: Sequence[str], output_dir: str, *,
@@ -156,6 +204,7 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
                    priority_field=priority_field)
     summary = ClusterSummary(0, len(shards), partitions, ranges, bands, rows, 0, 0)
     summary._clock = time.monotonic()
+    summary._sizes, summary._counts = [], []
     submit = client.submit
 
     signed = [submit(stages.sign_shard, path, settings, options, bands, rows, partitions)
@@ -163,41 +212,42 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
     tables = [submit(stages.pick, f, 0) for f in signed]
     keys = [[submit(stages.pick, submit(stages.pick, f, 1), p) for p in range(partitions)]
             for f in signed]
-    digests = [submit(stages.pick, f, 2) for f in signed]
     _first_error(signed)
     counts = client.gather([submit(stages.document_count, t) for t in tables])
     offsets = [sum(counts[:n]) for n in range(len(counts) + 1)]
     documents = offsets[-1]
     summary.documents = documents
-    _stage(summary, "sign", client, signed,
-           [k for row in keys for k in row] + tables + digests)
+    _stage(summary, "sign", client, signed, signed)
 
     found = [submit(stages.candidates, [keys[s][p] for s in range(len(shards))], offsets,
-                    documents, settings.perms, bands, rows, ranges, max_bucket)
+                    documents, ranges, max_bucket)
              for p in range(partitions)]
     routed = [[submit(stages.pick, f, v) for v in range(ranges)] for f in found]
     _stage(summary, "candidates", client, found, found)
 
-    plans = [submit(stages.verify_plan, [routed[p][v] for p in range(partitions)], offsets)
+    plans = [submit(stages.plan, [routed[p][v] for p in range(partitions)], offsets)
              for v in range(ranges)]
     pairs = [submit(stages.pick, f, 0) for f in plans]
     wanted = [[submit(stages.pick, submit(stages.pick, f, 1), s) for s in range(len(shards))]
               for f in plans]
-    _stage(summary, "plan", client, plans, [w for row in wanted for w in row] + pairs)
-    summary.candidate_pairs = sum(client.gather([submit(stages.size, f) for f in pairs])) // 8
+    _stage(summary, "plan", client, plans, plans)
+    summary._counts = [[submit(stages.candidate_count, f) for f in pairs]]
 
-    extracted = [submit(stages.read_sets, shards[s], settings, options, bands, rows, digests[s],
+    extracted = [submit(stages.read_sets, shards[s], settings, options, tables[s],
                         [wanted[v][s] for v in range(ranges)], offsets[s])
                  for s in range(len(shards))]
     sets = [[submit(stages.pick, f, v) for v in range(ranges)] for f in extracted]
     _stage(summary, "sets", client, extracted, extracted)
 
     scored = [submit(stages.verify, pairs[v], [sets[s][v] for s in range(len(shards))],
-                     settings, threshold, bands, rows) for v in range(ranges)]
+                     threshold, bands, rows) for v in range(ranges)]
     _stage(summary, "verify", client, scored, scored)
-    summary.confirmed_pairs = sum(client.gather([submit(stages.size, f) for f in scored])) // 40
+    summary._counts.append([submit(stages.scored_count, f) for f in scored])
 
-    done = submit(stages.finish, tables, shards, scored, keep, grouping, format,
+    stars = None
+    if grouping == "components":
+        stars = _components(summary, client, scored, partitions)
+    done = submit(stages.finish, tables, shards, scored, stars, keep, grouping, format,
                   os.fspath(output_dir))
     _stage(summary, "finish", client, [done], [done] if write_kept else [])
     if write_kept:
@@ -207,4 +257,6 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
         summary.kept = sum(client.gather(kept))
         summary.stages.append(StageSummary("kept", len(kept), time.monotonic() - summary._clock,
                                            0))
+        summary._sizes.append([])
+    _sizes(summary, client)
     return summary
