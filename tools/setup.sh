@@ -27,6 +27,8 @@ packages=(
   # crawl archives: HTML5 reference parser, brotli, the independent html5lib
   # reference and GNU wget (writes the WARC test crawls)
   libgumbo-dev libbrotli-dev python3-html5lib wget
+  # whole gzip members of crawl archives decompressed in one call
+  libdeflate-dev
   # kindred serve: HTTP server library; its browser test
   libcpp-httplib-dev chromium chromium-driver python3-selenium
   # the Python package and the cluster sweep

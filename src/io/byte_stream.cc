@@ -2,7 +2,6 @@
 
 #include <fcntl.h>
 #include <unistd.h>
-#include <zlib.h>
 #include <zstd.h>
 
 #include <cerrno>
@@ -12,6 +11,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "io/gzip_stream.h"
 #include "kindred/errors.h"
 
 namespace kindred::io {
@@ -50,6 +50,7 @@ class FdStream : public ByteStream {
       if (errno != EINTR) return InputErrno(errno, absl::StrCat(name_, ": read failed"));
     }
   }
+  uint64_t RawOffsetOf(uint64_t decoded) override { return decoded; }
 
  private:
   int fd_;
@@ -89,59 +90,6 @@ class CompressedInput {
   std::vector<char> buffer_;
   bool eof_ = false;
   uint64_t total_ = 0;
-};
-
-// gzip members, one after another (RFC 1952), inflated by zlib with
-// automatic header detection (windowBits 15 + 32).
-class GzipStream : public ByteStream {
- public:
-  GzipStream(std::unique_ptr<ByteStream> raw, std::string name)
-      : input_(std::move(raw)), name_(std::move(name)) {
-    std::memset(&z_, 0, sizeof(z_));
-    init_result_ = inflateInit2(&z_, 15 + 32);
-  }
-  ~GzipStream() override { inflateEnd(&z_); }
-
-  absl::StatusOr<size_t> Read(char* dst, size_t capacity) override {
-    if (init_result_ != Z_OK) return absl::InternalError("zlib initialization failed");
-    for (;;) {
-      const unsigned char* next = z_.next_in;
-      size_t available = z_.avail_in;
-      absl::StatusOr<bool> has_data = input_.EnsureData(&next, &available);
-      if (!has_data.ok()) return has_data.status();
-      z_.next_in = const_cast<unsigned char*>(next);
-      z_.avail_in = static_cast<uInt>(available);
-      if (member_done_) {
-        if (!*has_data) return 0;  // clean end after a complete member
-        inflateReset(&z_);
-        member_done_ = false;
-      }
-      z_.next_out = reinterpret_cast<unsigned char*>(dst);
-      z_.avail_out = static_cast<uInt>(std::min<size_t>(capacity, 1u << 30));
-      const uInt out_before = z_.avail_out;
-      int result = inflate(&z_, Z_NO_FLUSH);
-      size_t produced = out_before - z_.avail_out;
-      if (result == Z_STREAM_END) {
-        member_done_ = true;
-      } else if (result != Z_OK && result != Z_BUF_ERROR) {
-        return absl::InvalidArgumentError(absl::StrFormat(
-            "%s: corrupt gzip stream near byte %d: %s", name_, input_.total() - z_.avail_in,
-            z_.msg != nullptr ? z_.msg : zError(result)));
-      }
-      if (produced > 0) return produced;
-      if (!*has_data && !member_done_) {
-        return absl::InvalidArgumentError(
-            absl::StrFormat("%s: truncated gzip stream after %d bytes", name_, input_.total()));
-      }
-    }
-  }
-
- private:
-  CompressedInput input_;
-  std::string name_;
-  z_stream z_;
-  int init_result_;
-  bool member_done_ = false;
 };
 
 // zstd frames, one after another (RFC 8878), by ZSTD_decompressStream.
@@ -203,6 +151,7 @@ class LimitedStream : public ByteStream {
     }
     return n;
   }
+  uint64_t RawOffsetOf(uint64_t decoded) override { return inner_->RawOffsetOf(decoded); }
 
  private:
   std::unique_ptr<ByteStream> inner_;
@@ -237,6 +186,8 @@ class TeeStream : public ByteStream {
     if (!written.ok()) return written;
     return n;
   }
+  // The copy holds the decoded bytes.
+  uint64_t RawOffsetOf(uint64_t decoded) override { return decoded; }
 
  private:
   std::unique_ptr<ByteStream> inner_;
@@ -287,7 +238,8 @@ absl::StatusOr<std::unique_ptr<ByteStream>> OpenRaw(const std::string& path) {
 
 absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
                                                         const DecodeOptions& options,
-                                                        Compression* compression) {
+                                                        Compression* compression,
+                                                        uint64_t offset) {
   const bool is_stdin = path == "-";
   const std::string name = DisplayName(path);
   int fd = STDIN_FILENO;
@@ -295,6 +247,11 @@ absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
     absl::StatusOr<int> opened = OpenForReading(path);
     if (!opened.ok()) return opened.status();
     fd = *opened;
+    if (offset > 0 && lseek(fd, static_cast<off_t>(offset), SEEK_SET) < 0) {
+      const int error = errno;
+      close(fd);
+      return InputErrno(error, absl::StrCat(name, ": cannot read at byte ", offset));
+    }
   }
   absl::StatusOr<std::string> magic = ReadMagic(fd, name);
   if (!magic.ok()) {
@@ -306,7 +263,7 @@ absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
   std::unique_ptr<ByteStream> stream = std::make_unique<FdStream>(fd, !is_stdin, name, *magic, options.raw_bytes);
   if (detected != Compression::kNone) {
     if (detected == Compression::kGzip) {
-      stream = std::make_unique<GzipStream>(std::move(stream), name);
+      stream = MakeGzipStream(std::move(stream), name);
     } else {
       stream = std::make_unique<ZstdStream>(std::move(stream), name);
     }

@@ -21,6 +21,9 @@ inline constexpr size_t kChunkBytes = 256 * 1024;
 
 enum class Compression { kNone, kGzip, kZstd };
 
+// ByteStream::RawOffsetOf when the place is not known.
+inline constexpr uint64_t kNoRawOffset = ~uint64_t{0};
+
 // A source of bytes.
 class ByteStream {
  public:
@@ -28,6 +31,13 @@ class ByteStream {
   // Copies up to `capacity` (>= 1) bytes into `dst`. Returns the number
   // copied; 0 means the end of the stream.
   virtual absl::StatusOr<size_t> Read(char* dst, size_t capacity) = 0;
+  // Where the byte that came out at `decoded` (counted from the stream's
+  // first byte) can be read again from the file: for bytes passed through,
+  // the same offset (counted from where the file was opened); for gzip
+  // members, the file offset of the member that starts exactly there, if it
+  // started recently; otherwise (zstd, the middle of a member)
+  // kNoRawOffset. Calls must come in increasing order of `decoded`.
+  virtual uint64_t RawOffsetOf(uint64_t decoded) { return kNoRawOffset; }
 };
 
 // The name used in messages: "standard input" for "-", else the path.
@@ -48,12 +58,15 @@ struct DecodeOptions {
 };
 
 // Opens `path` ("-" = standard input) and returns a stream of its decoded
-// bytes: gzip (magic 1f 8b, any number of members) and zstd (magic 28 b5 2f
-// fd, any number of frames) are decompressed, anything else passes through.
-// *compression, when not null, receives what was detected.
+// bytes: gzip (magic 1f 8b, any number of members; io/gzip_stream.h) and
+// zstd (magic 28 b5 2f fd, any number of frames) are decompressed, anything
+// else passes through. *compression, when not null, receives what was
+// detected. A file (not standard input) is read from byte `offset` on, the
+// magic looked for there.
 absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
                                                         const DecodeOptions& options,
-                                                        Compression* compression = nullptr);
+                                                        Compression* compression = nullptr,
+                                                        uint64_t offset = 0);
 
 // Opens `path` for reading raw bytes (no decompression, "-" not allowed).
 absl::StatusOr<std::unique_ptr<ByteStream>> OpenRaw(const std::string& path);

@@ -28,6 +28,8 @@ class PrefixStream : public ByteStream {
     }
     return inner_->Read(dst, capacity);
   }
+  // The prefix was read from `inner`: offsets are the same.
+  uint64_t RawOffsetOf(uint64_t decoded) override { return inner_->RawOffsetOf(decoded); }
 
  private:
   std::string prefix_;
