@@ -1,7 +1,8 @@
 // Pairs of documents from pairs of groups of identical sets.
+#include "core/group_members.h"
+
 #include <algorithm>
 
-#include "core/group_members.h"
 #include "kindred/candidates.h"
 #include "kindred/signer.h"
 #include "kindred/sweep.h"
@@ -15,8 +16,7 @@ bool ByDocuments(const ScoredPair& x, const ScoredPair& y) {
 }
 
 // Appends (x, y) scored as `scored`, which measured x's set as set a.
-void AppendOrdered(uint32_t x, uint32_t y, const ScoredPair& scored,
-                   std::vector<ScoredPair>* out) {
+void AppendOrdered(uint32_t x, uint32_t y, const ScoredPair& scored, std::vector<ScoredPair>* out) {
   ScoredPair pair = scored;
   if (x < y) {
     pair.a = x;
@@ -34,16 +34,30 @@ void AppendOrdered(uint32_t x, uint32_t y, const ScoredPair& scored,
 std::vector<ScoredPair> ExpandGroups(const SignedCorpus& corpus, const GroupMembers& groups,
                                      absl::Span<const ScoredPair> rep_pairs,
                                      const MatchSettings& match) {
+  // The pairs counted first, so that `out` is allocated once (growing it
+  // by doubling copied it and faulted in fresh pages, on one thread).
+  size_t count = 0;
+  for (const ScoredPair& rep_pair : rep_pairs) {
+    count += groups.of(rep_pair.a).size() * groups.of(rep_pair.b).size();
+  }
+  const auto same_set_pairs = [&](size_t rep) -> size_t {
+    const uint32_t size = corpus.shingle_count(rep);
+    const size_t members = groups.of(static_cast<uint32_t>(rep)).size();
+    if (members < 2 || size == 0 || !PassesThreshold(size, size, size, match)) return 0;
+    return members * (members - 1) / 2;
+  };
+  for (size_t rep = 0; rep < corpus.size(); ++rep) count += same_set_pairs(rep);
   std::vector<ScoredPair> out;
+  out.reserve(count);
   for (const ScoredPair& rep_pair : rep_pairs) {
     for (uint32_t x : groups.of(rep_pair.a)) {
       for (uint32_t y : groups.of(rep_pair.b)) AppendOrdered(x, y, rep_pair, &out);
     }
   }
   for (size_t rep = 0; rep < corpus.size(); ++rep) {
+    if (same_set_pairs(rep) == 0) continue;
     const uint32_t size = corpus.shingle_count(rep);
     const absl::Span<const uint32_t> members = groups.of(static_cast<uint32_t>(rep));
-    if (members.size() < 2 || size == 0 || !PassesThreshold(size, size, size, match)) continue;
     ScoredPair same;
     same.shared = same.size_a = same.size_b = size;
     same.jaccard = JaccardOf(size, size, size);

@@ -10,12 +10,10 @@
 #include <memory>
 
 #include "absl/strings/str_cat.h"
-#include "io/json_line.h"
-#include "kindred/banding.h"
-#include "kindred/errors.h"
+#include "core/document_signer.h"
 #include "core/parallel.h"
-#include "kindred/shingles.h"
-#include "kindred/signer.h"
+#include "io/json_line.h"
+#include "kindred/errors.h"
 
 namespace kindred {
 namespace {
@@ -27,17 +25,11 @@ class Attacher {
   // Fills a document's text in a worker thread (null: the text is there).
   using ReadText = std::function<absl::Status(Document& doc)>;
 
-  Attacher(const InputOptions& options, const SignatureSettings& settings, int threads,
-           std::vector<std::unique_ptr<Shingler>> shinglers, SignedCorpus* corpus)
-      : threads_(threads),
-        shinglers_(std::move(shinglers)),
-        signer_(settings),
-        perms_(settings.perms),
-        banding_(corpus->lean_banding()),
-        corpus_(corpus),
-        keys_(threads, std::vector<uint64_t>(banding_.bands)) {
-    for (int t = 0; t < threads; ++t) parsers_.push_back(std::make_unique<LineParser>(options));
-  }
+  Attacher(std::vector<DocumentSigner> signers, uint32_t perms, SignedCorpus* corpus)
+      : threads_(static_cast<int>(signers.size())),
+        signers_(std::move(signers)),
+        perms_(perms),
+        corpus_(corpus) {}
 
   // Documents attached so far.
   size_t attached() const { return attached_; }
@@ -61,11 +53,12 @@ class Attacher {
           read_errors_[i] = read(batch[i]);
           if (!read_errors_[i].ok()) continue;
         }
+        DocumentSigner& signer = signers_[worker];
         const auto signature = absl::MakeSpan(&signatures_[i * perms_], perms_);
-        const bool parsed = parsers_[worker]->Finish(&batch[i]).ok() &&
-                            shinglers_[worker]->Shingle(batch[i].text, &sets_[i]).ok();
-        if (parsed) signer_.Sign(sets_[i], signature);
-        same_[i] = parsed && Unchanged(batch[i], sets_[i], signature, keys_[worker]);
+        const bool parsed =
+            signer.Parse(&batch[i]).ok() &&
+            signer.Sign(batch[i], /*sorted=*/true, &sets_[i], nullptr, signature, {}).ok();
+        same_[i] = parsed && Unchanged(batch[i], sets_[i], signature, signer);
       }
     });
     // Documents before the first failure are attached (filled, whatever
@@ -108,30 +101,26 @@ class Attacher {
   // Whether the document read again is the one signing saw: same id, same
   // emptiness, same band keys (by their digest). Reads the corpus only.
   bool Unchanged(const Document& doc, const ShingleSet& set, absl::Span<const uint32_t> signature,
-                 std::vector<uint64_t>& keys) const {
+                 DocumentSigner& signer) const {
     const uint64_t ordinal = doc.ordinal;
     if (ordinal >= corpus_->size() || doc.id != corpus_->id(ordinal) ||
         set.empty() != (corpus_->shingle_count(ordinal) == 0)) {
       return false;
     }
     if (set.empty()) return true;
-    BandKeys(signature, banding_, absl::MakeSpan(keys));
-    return SignedCorpus::BandKeyDigest(keys) == corpus_->band_key_digest(ordinal);
+    return SignedCorpus::BandKeyDigest(signer.BandKeysOf(signature)) ==
+           corpus_->band_key_digest(ordinal);
   }
 
   const int threads_;
-  std::vector<std::unique_ptr<Shingler>> shinglers_;
-  std::vector<std::unique_ptr<LineParser>> parsers_;
-  const Signer signer_;
+  std::vector<DocumentSigner> signers_;  // per worker
   const uint32_t perms_;
-  const Banding banding_;
   SignedCorpus* corpus_;
   std::vector<ShingleSet> sets_;
   std::vector<uint32_t> signatures_;
   std::vector<absl::Status> read_errors_;
   std::vector<uint8_t> same_;
   std::vector<SignedCorpus::AttachedRoom> rooms_;
-  std::vector<std::vector<uint64_t>> keys_;  // per worker
   size_t attached_ = 0;
 };
 
@@ -217,9 +206,9 @@ absl::Status ReloadShingles(const std::vector<ResolvedInput>& inputs, const Inpu
                             int threads, SignedCorpus* corpus) {
   if (docs.empty()) return absl::OkStatus();
   threads = std::max(1, threads);
-  auto made = Shingler::CreateMany(settings, threads);
+  auto made = DocumentSigner::Make(options, settings, corpus->lean_banding(), threads);
   if (!made.ok()) return made.status();
-  Attacher attacher(options, settings, threads, *std::move(made), corpus);
+  Attacher attacher(*std::move(made), settings.perms, corpus);
 
   // A JSON line whose offset is known is read where it starts; the other
   // documents are found by reading the inputs again, skipping the rest.

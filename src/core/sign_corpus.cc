@@ -6,7 +6,8 @@
 //   read    any thread, one at a time (the reader is single-threaded): finds
 //           the next lines or files; JSON is not parsed here;
 //   sign    any thread, batches in parallel: parses the JSON lines, shingles
-//           and signs each document, computes band keys;
+//           and signs each document, computes band keys (sign_batch.h, by
+//           the per-document recipe of document_signer.h);
 //   commit  the calling thread only, batches strictly in read order: checks
 //           for repeated ids, appends to the corpus, reports, flushes and
 //           spills.
@@ -21,7 +22,6 @@
 #include <condition_variable>
 #include <memory>
 #include <mutex>
-#include <shared_mutex>
 #include <thread>
 #include <vector>
 
@@ -29,38 +29,15 @@
 #include "absl/container/flat_hash_set.h"
 #include "absl/hash/hash.h"
 #include "absl/strings/str_cat.h"
+#include "core/sign_batch.h"
 #include "kindred/corpus.h"
 #include "kindred/errors.h"
-#include "kindred/shingles.h"
 #include "kindred/signed_corpus.h"
-#include "kindred/signer.h"
-#include "xxhash.h"
 
 namespace kindred {
 namespace {
 
-// One batch of documents and what signing found for each; reused.
-struct Batch {
-  uint64_t sequence = 0;  // position in read order
-  std::vector<Document> docs;
-  // The read that made this batch failed after these documents: the batch is
-  // committed, then this error ends signing.
-  absl::Status read_error;
-  std::vector<ShingleSet> sets;     // kept sets (not for lean corpora)
-  std::vector<uint32_t> set_sizes;  // size of each set or bag
-  std::vector<uint32_t> signatures;
-  std::vector<uint64_t> band_keys;  // lean corpora only
-  std::vector<TextStats> text_stats;
-  std::vector<absl::Status> errors;
-  std::vector<uint8_t> unparsable;  // errors[i] is the line's own parse error
-  // Grouping identical sets (SignedCorpus::groups_identical()): digests of
-  // the texts and the sets, and for a text seen before the document that
-  // had it (else -1).
-  std::vector<SignedCorpus::Digest> text_digests;
-  std::vector<SignedCorpus::Digest> set_digests;
-  std::vector<int64_t> same_text;
-  std::vector<uint8_t> sorted;  // sets[i] is a sorted set (else a bag, or nothing)
-};
+using Batch = SigningBatch;
 
 std::string Place(const CorpusReader& reader, const Document& doc) {
   const std::string& input = reader.inputs()[doc.source.input];
@@ -108,23 +85,19 @@ struct IdEq {
 class Pipeline {
  public:
   Pipeline(CorpusReader& reader, const SignatureSettings& settings, const SignOptions& options,
-           std::vector<std::unique_ptr<Shingler>> shinglers, SignedCorpus* out, SignStats* stats)
+           std::vector<DocumentSigner> signers, SignedCorpus* out, SignStats* stats)
       : reader_(reader),
         options_(options),
-        threads_(static_cast<int>(shinglers.size())),
-        signer_(settings),
+        threads_(static_cast<int>(signers.size())),
         perms_(settings.perms),
         lean_(out->lean()),
         grouped_(out->groups_identical()),
         banding_(out->lean_banding()),
-        per_thread_(threads_),
         out_(out),
         stats_(stats),
         seen_(0, IdHash{out}, IdEq{out}) {
-    for (int t = 0; t < threads_; ++t) {
-      per_thread_[t].shingler = std::move(shinglers[t]);
-      per_thread_[t].parser = std::make_unique<LineParser>(reader.options());
-    }
+    per_thread_.reserve(threads_);
+    for (DocumentSigner& signer : signers) per_thread_.push_back(PerThread{std::move(signer)});
     // Enough batches for every thread to hold one being signed and one
     // waiting to be committed.
     for (int b = 0; b < 2 * threads_ + 2; ++b) free_.push_back(std::make_unique<Batch>());
@@ -245,102 +218,11 @@ class Pipeline {
   }
 
   void Sign(Batch* batch, int worker) {
-    if (grouped_) return SignGrouped(batch, worker);
-    const size_t n = batch->docs.size();
-    batch->sets.resize(lean_ ? 0 : n);
-    batch->set_sizes.resize(n);
-    batch->signatures.resize(n * perms_);
-    batch->band_keys.resize(n * banding_.bands);
-    batch->text_stats.assign(n, TextStats{});
-    batch->errors.assign(n, absl::OkStatus());
-    batch->unparsable.assign(n, 0);
-    PerThread& mine = per_thread_[worker];
-    for (size_t i = 0; i < n; ++i) {
-      Document& doc = batch->docs[i];
-      if (absl::Status parsed = mine.parser->Finish(&doc); !parsed.ok()) {
-        batch->errors[i] = std::move(parsed);
-        batch->unparsable[i] = 1;
-        continue;
-      }
-      // A lean corpus keeps no sets, and the signature of the unsorted bag
-      // is that of the set: skip the sort, and reuse one bag per worker.
-      ShingleSet& set = lean_ ? mine.bag : batch->sets[i];
-      batch->errors[i] = lean_ ? mine.shingler->ShingleBag(doc.text, &set, &batch->text_stats[i])
-                               : mine.shingler->Shingle(doc.text, &set, &batch->text_stats[i]);
-      batch->set_sizes[i] = static_cast<uint32_t>(set.size());
-      const auto signature = absl::MakeSpan(&batch->signatures[i * perms_], perms_);
-      signer_.Sign(set, signature);
-      if (lean_) {
-        SignedCorpus::LeanBandKeys(
-            banding_, set.empty(), signature,
-            absl::MakeSpan(&batch->band_keys[i * banding_.bands], banding_.bands));
-      }
-    }
-  }
-
-  // Clears the per-document results of a batch of n documents.
-  void ResetResults(Batch* batch, size_t n) {
-    batch->sets.resize(n);
-    batch->set_sizes.assign(n, 0);
-    batch->signatures.resize(n * perms_);
-    batch->band_keys.resize(n * banding_.bands);
-    batch->text_stats.assign(n, TextStats{});
-    batch->errors.assign(n, absl::OkStatus());
-    batch->unparsable.assign(n, 0);
-    batch->text_digests.resize(n);
-    batch->set_digests.resize(n);
-    batch->same_text.assign(n, -1);
-    batch->sorted.assign(n, 0);
-  }
-
-  // Sign() for a corpus that groups identical sets. A text seen before (by
-  // its 128-bit digest, among the documents committed so far) is not
-  // shingled again, unless the document that had it kept no set while sets
-  // are being kept: then this copy provides it. While sets are kept
-  // (keeping_), the others get sorted sets and set digests; otherwise bags,
-  // as a lean corpus signs them. Whatever is caught or kept here, the
-  // commit gives the same documents and pairs: this only saves work.
-  void SignGrouped(Batch* batch, int worker) {
-    const size_t n = batch->docs.size();
-    ResetResults(batch, n);
-    PerThread& mine = per_thread_[worker];
-    for (size_t i = 0; i < n; ++i) {
-      Document& doc = batch->docs[i];
-      if (absl::Status parsed = mine.parser->Finish(&doc); !parsed.ok()) {
-        batch->errors[i] = std::move(parsed);
-        batch->unparsable[i] = 1;
-        continue;
-      }
-      const XXH128_hash_t hash = XXH3_128bits(doc.text.data(), doc.text.size());
-      batch->text_digests[i] = {hash.low64, hash.high64};
-    }
-    const bool keeping = keeping_.load(std::memory_order_relaxed);
-    {
-      std::shared_lock<std::shared_mutex> lock(texts_mu_);
-      for (size_t i = 0; i < n; ++i) {
-        if (batch->unparsable[i]) continue;
-        if (auto it = texts_.find(batch->text_digests[i]); it != texts_.end()) {
-          batch->same_text[i] = it->second.doc;
-          batch->text_stats[i].invalid_utf8 = it->second.invalid_utf8;
-          batch->sorted[i] = keeping && !it->second.has_set;
-        } else {
-          batch->sorted[i] = keeping;
-        }
-      }
-    }
-    for (size_t i = 0; i < n; ++i) {
-      if (batch->unparsable[i] || (batch->same_text[i] >= 0 && !batch->sorted[i])) continue;
-      ShingleSet& set = batch->sets[i];
-      TextStats* stats = batch->same_text[i] >= 0 ? nullptr : &batch->text_stats[i];
-      batch->errors[i] = batch->sorted[i] ? mine.shingler->Shingle(batch->docs[i].text, &set, stats)
-                                          : mine.shingler->ShingleBag(batch->docs[i].text, &set, stats);
-      batch->set_sizes[i] = static_cast<uint32_t>(set.size());
-      const auto signature = absl::MakeSpan(&batch->signatures[i * perms_], perms_);
-      signer_.Sign(set, signature);
-      SignedCorpus::LeanBandKeys(
-          banding_, set.empty(), signature,
-          absl::MakeSpan(&batch->band_keys[i * banding_.bands], banding_.bands));
-      if (batch->sorted[i]) batch->set_digests[i] = SignedCorpus::SetDigest(set);
+    DocumentSigner& signer = per_thread_[worker].signer;
+    if (grouped_) {
+      SignGroupedBatch(batch, texts_, keeping_.load(std::memory_order_relaxed), signer);
+    } else {
+      SignPlainBatch(batch, lean_, signer);
     }
   }
 
@@ -371,19 +253,7 @@ class Pipeline {
   // in a corpus of few duplicates, the few candidate documents are cheaper
   // to read again than every set is to sort and keep.
   void RememberTexts(const Batch& batch, size_t first_doc) {
-    std::unique_lock<std::shared_mutex> lock(texts_mu_);
-    for (size_t i = 0; i < batch.docs.size(); ++i) {
-      const int64_t same = batch.same_text[i];
-      const uint32_t doc = static_cast<uint32_t>(first_doc + i);
-      const uint32_t rep = out_->representative(same >= 0 ? same : doc);
-      const bool has_set = out_->has_shingles(rep) || out_->shingle_count(rep) == 0;
-      if (same >= 0) {
-        if (has_set) texts_[batch.text_digests[i]].has_set = true;
-        continue;
-      }
-      texts_.try_emplace(batch.text_digests[i],
-                         TextSeen{doc, batch.text_stats[i].invalid_utf8, has_set});
-    }
+    texts_.Remember(batch, first_doc, *out_);
     const size_t docs = out_->size();
     keeping_.store(out_->set_room() && (docs < 4096 || repeated_texts_ * 16 >= docs),
                    std::memory_order_relaxed);
@@ -429,10 +299,9 @@ class Pipeline {
       }
       if (auto it = seen_.find(absl::string_view(doc.id)); it != seen_.end()) {
         std::lock_guard<std::mutex> reading(read_mu_);  // ResolvedInputs() while others read
-        return absl::InvalidArgumentError(absl::StrCat(Place(reader_, doc), ": duplicate id \"",
-                                                       doc.id, "\" (first seen at ",
-                                                       PlaceOf(reader_, *out_, *it), ")",
-                                                       HintFor(reader_, *out_, *it, doc)));
+        return absl::InvalidArgumentError(
+            absl::StrCat(Place(reader_, doc), ": duplicate id \"", doc.id, "\" (first seen at ",
+                         PlaceOf(reader_, *out_, *it), ")", HintFor(reader_, *out_, *it, doc)));
       }
       if (grouped_ && batch->same_text[i] >= 0) {
         batch->set_sizes[i] = out_->shingle_count(batch->same_text[i]);
@@ -475,7 +344,6 @@ class Pipeline {
   CorpusReader& reader_;
   const SignOptions& options_;
   const int threads_;
-  const Signer signer_;
   const uint32_t perms_;
   const bool lean_;
   const bool grouped_;
@@ -485,9 +353,7 @@ class Pipeline {
   // two threads writing one line slow each other down (measured: 15% more
   // CPU on two threads).
   struct alignas(64) PerThread {
-    std::unique_ptr<Shingler> shingler;
-    std::unique_ptr<LineParser> parser;
-    ShingleSet bag;  // lean: the document being signed
+    DocumentSigner signer;
   };
   std::vector<PerThread> per_thread_;
   // Commit state: the calling thread only.
@@ -495,17 +361,10 @@ class Pipeline {
   SignStats* stats_;
   absl::flat_hash_set<uint32_t, IdHash, IdEq> seen_;  // ids so far, to name repeats
 
-  // Texts committed so far (grouping identical sets): digest -> the first
-  // document with it and the invalid UTF-8 its shingling counted.
-  struct TextSeen {
-    uint32_t doc;
-    uint32_t invalid_utf8;
-    bool has_set;  // its representative's set is kept (or empty)
-  };
+  // Texts committed so far (grouping identical sets).
+  SeenTexts texts_;
   std::atomic<bool> keeping_{true};
   uint64_t repeated_texts_ = 0;  // commit thread
-  std::shared_mutex texts_mu_;
-  absl::flat_hash_map<SignedCorpus::Digest, TextSeen> texts_;
 
   std::mutex read_mu_;  // held while reading; guards the two below
   bool reader_done_ = false;
@@ -525,7 +384,8 @@ class Pipeline {
 
 absl::Status SignCorpus(CorpusReader& reader, const SignatureSettings& settings,
                         const SignOptions& options, SignedCorpus* out, SignStats* stats) {
-  auto made = Shingler::CreateMany(settings, std::max(1, options.threads));
+  auto made = DocumentSigner::Make(reader.options(), settings, out->lean_banding(),
+                                   std::max(1, options.threads));
   if (!made.ok()) return made.status();
   // JSON lines are parsed on the signing threads, not by the reader: the
   // reader only finds lines, and so keeps up with the workers.
