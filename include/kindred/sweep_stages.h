@@ -82,9 +82,10 @@ absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSetti
 // Reads the shard again and returns the sets and signatures of `documents`
 // (numbers in the whole corpus, ascending; those outside the shard are
 // ignored). Only those documents are parsed and signed; the others are
-// skipped. Errors: the reader's; InputChanged when the shard no longer has
-// the documents it had when signed (fewer documents, or one that differs
-// from its row of options.expected).
+// skipped, on the calling thread (options.sign.threads is not used).
+// Errors: the reader's; with options.expected, InputChanged when the shard
+// no longer has the documents it had when signed (fewer documents, or one
+// that differs from its row of the table).
 absl::StatusOr<SetStore> ReadShardSets(CorpusReader& reader, const SignatureSettings& settings,
                                        const ShardOptions& options,
                                        absl::Span<const uint32_t> documents);

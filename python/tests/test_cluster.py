@@ -112,3 +112,53 @@ def test_a_shard_that_changed_before_its_second_reading_is_an_error(shards, tmp_
         stages.read_sets(str(shard), settings, options, table, wanted, 100)
     assert str(caught.value).startswith(f"{shard}:4: document ")
     assert caught.value.exit_code == 3
+
+
+def _stars_in_process(pairs, parts):
+    """The components rounds run in this process, as the cluster runs them
+    (a task per partition and step; every task reads every list sent to its
+    partition). Returns ({member: smallest member}, steps)."""
+    import numpy as np
+    from kindred.cluster import components
+    ends = np.array(pairs, dtype="<u4").tobytes()
+    lists = [components.first_edges(ends, parts)]
+    steps = 0
+    while True:
+        large = [components.large_star([row[p] for row in lists], parts) for p in range(parts)]
+        small = [components.small_star([out[0][p] for out in large], parts)
+                 for p in range(parts)]
+        lists = [out[0] for out in small]
+        steps += 2
+        if not any(out[1] for out in large) and not any(out[2] for out in small):
+            break
+        assert steps < 100
+    star = np.frombuffer(b"".join(out[1] for out in small), dtype="<u4").reshape(-1, 2)
+    return {int(m): int(c) for m, c in star}, steps
+
+
+def test_components_rounds_agree_with_union_find():
+    # Reference: union-find over the same edges (a plain Python one here),
+    # each component named by its smallest member.
+    import random
+    rng = random.Random(5)
+    graphs = [[(n, n + 1) for n in range(200)],                   # a long path
+              [(n, 199 - n) for n in range(100)],                 # a matching
+              [(0, n) for n in range(1, 50)] + [(n, 60) for n in range(50, 60)]]
+    for _ in range(5):
+        graphs.append([tuple(sorted(rng.sample(range(300), 2))) for _ in range(250)])
+    for pairs in graphs:
+        parent = {}
+
+        def find(x):
+            while parent.setdefault(x, x) != x:
+                x = parent[x]
+            return x
+        for a, b in pairs:
+            ra, rb = find(a), find(b)
+            parent[max(ra, rb)] = min(ra, rb)
+        want = {n: find(n) for n in parent if find(n) != n}
+        for parts in (1, 3):
+            got, steps = _stars_in_process(pairs, parts)
+            assert got == want
+    # A path of 200 nodes needs several rounds, not one.
+    assert _stars_in_process(graphs[0], 2)[1] > 2

@@ -67,36 +67,48 @@ def pause_dir(tmp_path_factory):
 
 
 @pytest.fixture(scope="module")
-def three(pause_dir):
-    """A LocalCluster of 3 worker processes whose tasks can be held at the
-    start of a stage (stages._test_hook) while a test kills their worker."""
+def local(pause_dir):
+    """A LocalCluster of 3 worker processes (scaled down to 2 by the test of
+    two) whose tasks can be held at the start of a stage (stages._test_hook)
+    while a test kills their worker. Started once: starting one costs
+    seconds."""
     os.environ["KINDRED_CLUSTER_TEST_PAUSE"] = str(pause_dir)
     try:
         with distributed.LocalCluster(n_workers=3, threads_per_worker=1, processes=True,
                                       dashboard_address=None) as cluster, \
                 distributed.Client(cluster) as client:
-            yield client
+            yield cluster, client
     finally:
         del os.environ["KINDRED_CLUSTER_TEST_PAUSE"]
 
 
-def test_two_local_workers(corpus, tmp_path):
+def workers(client):
+    return len(client.scheduler_info()["workers"])
+
+
+def test_three_local_workers(local, corpus, tmp_path):
     shards, reference = corpus
-    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                                  dashboard_address=None) as cluster, \
-            distributed.Client(cluster) as client:
-        summary = kindred.cluster.sweep(client, shards, str(tmp_path / "out"), **OPTIONS)
+    cluster, client = local
+    assert workers(client) == 3
+    summary = kindred.cluster.sweep(client, shards, str(tmp_path / "out"), partitions=5,
+                                    ranges=7, **OPTIONS)
     same_files(reference, tmp_path / "out")
-    assert summary.documents == 50000 and summary.partitions == 4
+    assert summary.documents == 50000 and summary.partitions == 5
     groups = next(s for s in summary.stages if s.name == "groups")
-    assert groups.tasks > 4 and summary.component_steps >= 2
+    assert groups.tasks > 5 and summary.component_steps >= 2
 
 
-def test_three_local_workers(three, corpus, tmp_path):
+def test_two_local_workers(local, corpus, tmp_path):
     shards, reference = corpus
-    kindred.cluster.sweep(three, shards, str(tmp_path / "out"), partitions=5, ranges=7,
-                          **OPTIONS)
+    cluster, client = local
+    cluster.scale(2)
+    deadline = time.monotonic() + 60
+    while workers(client) != 2 and time.monotonic() < deadline:
+        time.sleep(0.05)
+    assert workers(client) == 2
+    summary = kindred.cluster.sweep(client, shards, str(tmp_path / "out"), **OPTIONS)
     same_files(reference, tmp_path / "out")
+    assert summary.partitions == 4  # two per worker
 
 
 def _holding(pause_dir, run, actions):
@@ -149,25 +161,27 @@ def _kill(pid):
     os.kill(pid, signal.SIGKILL)
 
 
-def test_workers_killed_in_the_map_and_in_the_shuffle(three, corpus, pause_dir, tmp_path):
+def test_workers_killed_in_the_map_and_in_the_shuffle(local, corpus, pause_dir, tmp_path):
     # sign: the map stage; candidates: the shuffle (each task gathers its
     # partition from every map output). The killed workers' outputs are
     # made again; the files are the same.
     shards, reference = corpus
-    error = _holding(pause_dir, lambda: kindred.cluster.sweep(three, shards, str(tmp_path / "out"),
-                                                              **OPTIONS),
+    client = local[1]
+    error = _holding(pause_dir, lambda: kindred.cluster.sweep(client, shards,
+                                                              str(tmp_path / "out"), **OPTIONS),
                      [("sign", _kill), ("candidates", _kill)])
     assert error is None
     same_files(reference, tmp_path / "out")
-    three.wait_for_workers(3, timeout=60)
+    client.wait_for_workers(2, timeout=60)
 
 
-def test_bad_shards(three, corpus, pause_dir, tmp_path):
+def test_bad_shards(local, corpus, pause_dir, tmp_path):
     shards = corpus[0][:8]
+    client = local[1]
     # A missing shard: named, no output.
     missing = shards[:3] + [str(tmp_path / "gone.jsonl")] + shards[3:]
     with pytest.raises(kindred.KindredError) as caught:
-        kindred.cluster.sweep(three, missing, str(tmp_path / "a"))
+        kindred.cluster.sweep(client, missing, str(tmp_path / "a"))
     done = run_cli("sweep", *missing, "-q", "-o", str(tmp_path / "a-cli"), check=False)
     assert done.stderr.decode() == f"kindred: {caught.value}\n"
     assert "gone.jsonl" in str(caught.value) and done.returncode == caught.value.exit_code != 0
@@ -179,7 +193,7 @@ def test_bad_shards(three, corpus, pause_dir, tmp_path):
     lines[100] = b'{"id": "x", "text": \n'
     open(bad[6], "wb").write(b"".join(lines))
     with pytest.raises(kindred.BadInputError) as caught:
-        kindred.cluster.sweep(three, bad, str(tmp_path / "b"))
+        kindred.cluster.sweep(client, bad, str(tmp_path / "b"))
     done = run_cli("sweep", *bad, "-q", "-o", str(tmp_path / "b-cli"), check=False)
     assert str(caught.value).startswith(f"{bad[6]}:101")
     assert done.stderr.decode() == f"kindred: {caught.value}\n"
@@ -195,7 +209,8 @@ def test_bad_shards(three, corpus, pause_dir, tmp_path):
         data = open(changed[4], "rb").read()
         open(changed[4], "wb").write(data.replace(b'"text": "', b'"text": "also '))
 
-    error = _holding(pause_dir, lambda: kindred.cluster.sweep(three, changed, str(tmp_path / "c")),
+    error = _holding(pause_dir,
+                     lambda: kindred.cluster.sweep(client, changed, str(tmp_path / "c")),
                      [("candidates", lambda pid: change())])
     assert isinstance(error, kindred.InputChangedError), error
     assert str(error).startswith(f"{changed[4]}:") and "changed since it was first read" in \

@@ -27,8 +27,9 @@ shards in the same order, for any number of workers and partitions:
              own format, into a file of the shard's name
 
 The tasks exchange the library's records (src/core/RECORDS.md) as bytes;
-RECORDS.md beside this file says which go where. Every task is a pure function of its inputs (RECORDS.md), so a task re-run
-after a worker is lost gives the same bytes.
+RECORDS.md beside this file says which go where. Every task is a pure
+function of its inputs, so a task re-run after a worker is lost gives the
+same bytes.
 
     >>> from distributed import Client, LocalCluster
     >>> import kindred.cluster

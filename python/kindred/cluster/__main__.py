@@ -73,8 +73,16 @@ def _run(args) -> int:
         with Client(args.scheduler) as client:
             summary = sweep(client, args.shards, args.output_dir, **options)
     else:
-        with LocalCluster(n_workers=args.local_workers, threads_per_worker=1,
-                          processes=True, dashboard_address=None) as cluster, \
+        import dask
+        # Dask starts workers with MALLOC_TRIM_THRESHOLD_=65536, which hands
+        # freed memory back at once, so that every large record a stage makes
+        # is fresh pages to fault in. The sweep's workers keep it for reuse.
+        environ = dict(dask.config.get("distributed.nanny.pre-spawn-environ", {}))
+        environ["MALLOC_TRIM_THRESHOLD_"] = 1 << 30
+        environ["MALLOC_MMAP_THRESHOLD_"] = 1 << 30
+        with dask.config.set({"distributed.nanny.pre-spawn-environ": environ}), \
+                LocalCluster(n_workers=args.local_workers, threads_per_worker=1,
+                             processes=True, dashboard_address=None) as cluster, \
                 Client(cluster) as client:
             summary = sweep(client, args.shards, args.output_dir, **options)
     if not args.quiet:
