@@ -84,13 +84,13 @@ class GzipStream : public ByteStream {
   bool eof_ = false;
   uint64_t total_ = 0;    // raw bytes read
   uint64_t decoded_ = 0;  // decoded bytes made
-  Buffer out_;  // a member decoded whole
+  Buffer out_;            // a member decoded whole
   size_t out_pos_ = 0, out_end_ = 0;
   libdeflate_decompressor* decompressor_;
   z_stream z_;
   int init_result_;
-  bool started_ = false;    // a member was begun
-  bool in_member_ = false;  // zlib is inside a member
+  bool started_ = false;                               // a member was begun
+  bool in_member_ = false;                             // zlib is inside a member
   std::deque<std::pair<uint64_t, uint64_t>> members_;  // (decoded, raw) starts
 };
 

@@ -234,10 +234,10 @@ absl::Status ReadWarcDocumentAt(const std::string& path, uint64_t offset,
   if (read.ok() && *read && record.role.document) {
     return records.MakeDocument(record, doc, /*defer_html=*/true);
   }
-  return InputChanged(absl::StrCat(
-      DisplayName(path), ": no document record at byte ", offset,
-      read.ok() ? "" : absl::StrCat(" (", read.status().message(), ")"),
-      "; the file changed while kindred was reading it; run again"));
+  return InputChanged(
+      absl::StrCat(DisplayName(path), ": no document record at byte ", offset,
+                   read.ok() ? "" : absl::StrCat(" (", read.status().message(), ")"),
+                   "; the file changed while kindred was reading it; run again"));
 }
 
 }  // namespace kindred::io
