@@ -14,6 +14,7 @@
 #include "io/html_text.h"
 #include "io/http_payload.h"
 #include "io/sha1.h"
+#include "io/warc_documents.h"
 #include "kindred/corpus.h"
 #include "testlib/gzip.h"
 #include "testlib/temp_dir.h"
@@ -361,8 +362,10 @@ TEST_CASE("gzip members: same bytes whole or streamed, and their offsets", "[war
     std::string data = absl::StrCat("record ", i, " ", std::string(i * 37 % 5000, 'a' + i % 26));
     std::string member = testing::GzipMember(data);
     if (i == 7) member = WithHeaderCrc(member);
-    if (i == 50) data = noise, member = testing::GzipMember(data);
-    if (i == 90) data = std::string(io::kWholeMemberOutput + 1, 'z'), member = testing::GzipMember(data);
+    if (i == 50 || i == 90) {
+      data = i == 50 ? noise : std::string(io::kWholeMemberOutput + 1, 'z');
+      member = testing::GzipMember(data);
+    }
     starts.emplace_back(expected.size(), file.size());
     expected += data;
     file += member;
@@ -389,6 +392,60 @@ TEST_CASE("gzip members: same bytes whole or streamed, and their offsets", "[war
   }
 }
 
+// The second reading finds a record by the offset of its gzip member, or
+// of the record in a plain file, and makes the same document there.
+TEST_CASE("WARC documents are found again at their member or record offsets", "[warc]") {
+  TempDir dir;
+  const std::vector<std::string> records = {
+      Record("warcinfo", "", "software: test\r\n", "Content-Type: application/warc-fields\r\n"),
+      Response("http://a.test/1", Http("200 OK", "Content-Type: text/html\r\n", "<p>one</p>")),
+      Record("request", "http://a.test/2", "GET /2 HTTP/1.1\r\n\r\n"),
+      Response("http://a.test/2", Http("200 OK", "Content-Type: text/html\r\n", "<b>two</b>")),
+      Record("resource", "http://a.test/3", "three", "Content-Type: text/plain\r\n")};
+  std::string plain, gz, shared;  // shared: the last two records in one member
+  std::vector<uint64_t> plain_at, gz_at;
+  for (size_t i = 0; i < records.size(); ++i) {
+    plain_at.push_back(plain.size());
+    gz_at.push_back(gz.size());
+    plain += records[i];
+    gz += testing::GzipMember(records[i]);
+    if (i < 3) shared += testing::GzipMember(records[i]);
+  }
+  shared += testing::GzipMember(records[3] + records[4]);
+  struct Case {
+    std::string path;
+    std::vector<uint64_t> offsets;  // of documents 1, 3 and 4
+  };
+  const uint64_t unknown = kUnknownOffset;
+  for (const Case& c : {Case{dir.Write("p.warc", plain), {plain_at[1], plain_at[3], plain_at[4]}},
+                        Case{dir.Write("g.warc.gz", gz), {gz_at[1], gz_at[3], gz_at[4]}},
+                        Case{dir.Write("s.warc.gz", shared), {gz_at[1], gz_at[3], unknown}}}) {
+    INFO(c.path);
+    ReadResult read = ReadAll(c.path);
+    REQUIRE(read.status.ok());
+    REQUIRE(read.docs.size() == 3);
+    LineParser parser{InputOptions()};
+    for (size_t i = 0; i < 3; ++i) {
+      CHECK(read.docs[i].source.offset == c.offsets[i]);
+      if (c.offsets[i] == unknown) continue;
+      Document again;
+      REQUIRE(io::ReadWarcDocumentAt(c.path, c.offsets[i], InputOptions(), &again).ok());
+      REQUIRE(parser.Finish(&again).ok());
+      CHECK(again.id == read.docs[i].id);
+      CHECK(again.text == read.docs[i].text);
+    }
+    // Where no document record starts, the file changed.
+    Document none;
+    absl::Status changed = io::ReadWarcDocumentAt(c.path, c.offsets[0] + 1, InputOptions(), &none);
+    CHECK(changed.code() == absl::StatusCode::kInvalidArgument);
+    CHECK(absl::StrContains(changed.message(), "no document record at byte"));
+  }
+  // A WARC file inside a tree is no input of its own: no offsets.
+  dir.Write("t/g.warc.gz", gz);
+  ReadResult tree = ReadAll(dir.File("t"));
+  REQUIRE(tree.docs.size() == 3);
+  CHECK(tree.docs[0].source.offset == unknown);
+}
+
 }  // namespace
 }  // namespace kindred
-

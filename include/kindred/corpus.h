@@ -185,7 +185,10 @@ struct DocumentSource {
   uint64_t line = 0;   // 1-based line for JSON Lines, 0 otherwise
   // JSON Lines: where the line starts in the input's read_path (see
   // ResolvedInput), for an input that is an uncompressed file or standard
-  // input; else kUnknownOffset (compressed files, files of a tree, text
+  // input. WARC files given as inputs: where the document's record starts
+  // in read_path, or its gzip member when the record has one of its own
+  // (else unknown: zstd, several records in one member). Else
+  // kUnknownOffset (other compressed files, files of a tree, text
   // documents).
   uint64_t offset = kUnknownOffset;
   std::string path;  // the file read: for trees, the full path of the file;

@@ -11,6 +11,7 @@
 
 #include "absl/strings/str_cat.h"
 #include "core/document_signer.h"
+#include "io/warc_documents.h"
 #include "core/parallel.h"
 #include "io/json_line.h"
 #include "kindred/errors.h"
@@ -152,7 +153,8 @@ absl::Status ReadLineAt(int fd, uint64_t offset, uint64_t max_bytes, const std::
 }
 
 // Reads documents `docs` (each with a known offset) at their offsets, in
-// the workers (pread on one descriptor per input).
+// the workers (JSON lines by pread on one descriptor per input, WARC
+// records each from its own stream).
 absl::Status ReadAtOffsets(const std::vector<ResolvedInput>& inputs, const InputOptions& options,
                            const SignedCorpus& corpus, absl::Span<const uint32_t> docs,
                            Attacher* attacher) {
@@ -166,6 +168,9 @@ absl::Status ReadAtOffsets(const std::vector<ResolvedInput>& inputs, const Input
   std::vector<Document> batch;
   const auto read = [&](Document& doc) {
     const DocumentOrigin& origin = corpus.origin(doc.ordinal);
+    if (inputs[origin.input].format == InputFormat::kWarc) {
+      return io::ReadWarcDocumentAt(inputs[origin.input].read_path, origin.offset, options, &doc);
+    }
     return ReadLineAt(fds[origin.input].fd, origin.offset, options.max_document_bytes,
                       inputs[origin.input].name, &doc.text);
   };

@@ -238,8 +238,7 @@ absl::StatusOr<std::unique_ptr<ByteStream>> OpenRaw(const std::string& path) {
 
 absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
                                                         const DecodeOptions& options,
-                                                        Compression* compression,
-                                                        uint64_t offset) {
+                                                        Compression* compression, uint64_t offset) {
   const bool is_stdin = path == "-";
   const std::string name = DisplayName(path);
   int fd = STDIN_FILENO;
@@ -260,7 +259,8 @@ absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
   }
   const Compression detected = DetectCompression(*magic);
   if (compression != nullptr) *compression = detected;
-  std::unique_ptr<ByteStream> stream = std::make_unique<FdStream>(fd, !is_stdin, name, *magic, options.raw_bytes);
+  std::unique_ptr<ByteStream> stream =
+      std::make_unique<FdStream>(fd, !is_stdin, name, *magic, options.raw_bytes);
   if (detected != Compression::kNone) {
     if (detected == Compression::kGzip) {
       stream = MakeGzipStream(std::move(stream), name);

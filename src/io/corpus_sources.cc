@@ -48,6 +48,9 @@ absl::StatusOr<bool> CorpusReader::Impl::NextWarcDocument(Document* doc) {
     }
     doc->source.input = static_cast<uint32_t>(current_);
     doc->source.path = warc_path_;
+    // A WARC file of a tree is not an input of its own: no offset there.
+    const uint64_t at = record_.header.raw_offset;
+    if (!tree_ && at != io::kNoRawOffset) doc->source.offset = at;
     return true;
   }
 }

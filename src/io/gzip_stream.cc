@@ -18,6 +18,27 @@ namespace {
 
 constexpr size_t kRecentMembers = 4096;
 
+// A growable buffer that is not zero-filled: a stream opened for one
+// record of a second reading pays only for the bytes it touches.
+class Buffer {
+ public:
+  explicit Buffer(size_t size = 0) { Resize(size, 0); }
+  unsigned char* data() { return data_.get(); }
+  size_t size() const { return size_; }
+  bool empty() const { return size_ == 0; }
+  // Keeps the first `keep` bytes.
+  void Resize(size_t size, size_t keep) {
+    std::unique_ptr<unsigned char[]> bigger(new unsigned char[size]);
+    if (keep > 0) std::memcpy(bigger.get(), data_.get(), keep);
+    data_ = std::move(bigger);
+    size_ = size;
+  }
+
+ private:
+  std::unique_ptr<unsigned char[]> data_;
+  size_t size_ = 0;
+};
+
 class GzipStream : public ByteStream {
  public:
   GzipStream(std::unique_ptr<ByteStream> raw, std::string name)
@@ -58,18 +79,18 @@ class GzipStream : public ByteStream {
 
   std::unique_ptr<ByteStream> raw_;
   std::string name_;
-  std::vector<unsigned char> in_;
+  Buffer in_;
   size_t in_pos_ = 0, in_end_ = 0;
   bool eof_ = false;
   uint64_t total_ = 0;    // raw bytes read
   uint64_t decoded_ = 0;  // decoded bytes made
-  std::vector<char> out_;  // a member decoded whole
+  Buffer out_;            // a member decoded whole
   size_t out_pos_ = 0, out_end_ = 0;
   libdeflate_decompressor* decompressor_;
   z_stream z_;
   int init_result_;
-  bool started_ = false;    // a member was begun
-  bool in_member_ = false;  // zlib is inside a member
+  bool started_ = false;                               // a member was begun
+  bool in_member_ = false;                             // zlib is inside a member
   std::deque<std::pair<uint64_t, uint64_t>> members_;  // (decoded, raw) starts
 };
 
@@ -80,7 +101,7 @@ absl::StatusOr<bool> GzipStream::ReadMore(size_t room) {
     in_end_ -= in_pos_;
     in_pos_ = 0;
   }
-  if (in_.size() - in_end_ < room) in_.resize(in_end_ + room);
+  if (in_.size() - in_end_ < room) in_.Resize(in_end_ + room, in_end_);
   absl::StatusOr<size_t> n =
       raw_->Read(reinterpret_cast<char*>(in_.data() + in_end_), in_.size() - in_end_);
   if (!n.ok()) return n.status();
@@ -102,7 +123,7 @@ absl::StatusOr<bool> GzipStream::TryWholeMember() {
       return false;
     }
     if (Buffered() >= 18) {
-      if (out_.empty()) out_.resize(1 << 20);
+      if (out_.empty()) out_.Resize(1 << 20, 0);
       size_t used_in = 0, used_out = 0;
       const libdeflate_result result = libdeflate_gzip_decompress_ex(
           decompressor_, p, Buffered(), out_.data(), out_.size(), &used_in, &used_out);
@@ -115,7 +136,7 @@ absl::StatusOr<bool> GzipStream::TryWholeMember() {
       }
       if (result == LIBDEFLATE_INSUFFICIENT_SPACE) {
         if (out_.size() >= kWholeMemberOutput) return false;
-        out_.resize(out_.size() * 2);
+        out_.Resize(out_.size() * 2, 0);
         continue;
       }
     }

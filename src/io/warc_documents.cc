@@ -222,4 +222,22 @@ absl::Status WarcDocuments::MakeDocument(const WarcRecord& record, Document* doc
   return absl::OkStatus();
 }
 
+absl::Status ReadWarcDocumentAt(const std::string& path, uint64_t offset,
+                                const InputOptions& options, Document* doc) {
+  DecodeOptions decode;
+  decode.max_decompressed_bytes = options.max_decompressed_bytes;
+  auto stream = OpenDecoded(path, decode, nullptr, offset);
+  if (!stream.ok()) return stream.status();
+  WarcDocuments records(std::move(*stream), DisplayName(path), options, nullptr);
+  WarcRecord record;
+  absl::StatusOr<bool> read = records.Next(&record);
+  if (read.ok() && *read && record.role.document) {
+    return records.MakeDocument(record, doc, /*defer_html=*/true);
+  }
+  return InputChanged(
+      absl::StrCat(DisplayName(path), ": no document record at byte ", offset,
+                   read.ok() ? "" : absl::StrCat(" (", read.status().message(), ")"),
+                   "; the file changed while kindred was reading it; run again"));
+}
+
 }  // namespace kindred::io

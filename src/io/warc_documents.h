@@ -95,6 +95,14 @@ class WarcDocuments {
   std::string payload_, utf8_;  // reused buffers
 };
 
+// The second reading of one document: reads the record at byte `offset`
+// of `path` (WarcHeader::raw_offset: a gzip member, or a record of a plain
+// file) and makes its document as MakeDocument does, HTML left for
+// LineParser::Finish. InputChanged when there is no document record there
+// (the file changed). Thread-safe (each call opens its own stream).
+absl::Status ReadWarcDocumentAt(const std::string& path, uint64_t offset,
+                                const InputOptions& options, Document* doc);
+
 // The text of a payload: converted to UTF-8 by the charset rules, and for
 // HTML reduced to its text. `declared` is the Content-Type charset.
 // *by_reference as HtmlToText sets it.

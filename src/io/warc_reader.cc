@@ -140,6 +140,7 @@ absl::StatusOr<bool> WarcReader::NextHeader(WarcHeader* header) {
     if (!line.empty()) break;
   }
   header->offset = record_offset_;
+  header->raw_offset = stream_->RawOffsetOf(record_offset_);
   if (!absl::StartsWith(line, kMagic)) {
     return absl::InvalidArgumentError(
         absl::StrCat(Where(), ": expected a WARC record (\"WARC/1.0\" or \"WARC/1.1\"), found \"",

@@ -40,6 +40,11 @@ struct WarcLimits {
 // The header of one record.
 struct WarcHeader {
   uint64_t offset = 0;  // decoded offset of the version line
+  // Where the record can be read again in the file: the offset of its
+  // gzip member when one starts with it, of the record itself in a plain
+  // file (ByteStream::RawOffsetOf); kNoRawOffset when not known (zstd, a
+  // member holding several records).
+  uint64_t raw_offset = kNoRawOffset;
   std::string raw;      // the header bytes as read: version line
                         // through the empty line, line endings
                         // included
