@@ -6,7 +6,7 @@
 
 #include "core/contract_internal.h"
 #include "core/group_members.h"
-#include "kindred/band_spill.h"
+#include "core/band_spill.h"
 #include "core/parallel.h"
 
 namespace kindred {

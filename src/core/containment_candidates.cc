@@ -8,7 +8,7 @@
 #include <utility>
 
 #include "core/contract_internal.h"
-#include "kindred/band_spill.h"
+#include "core/band_spill.h"
 #include "core/parallel.h"
 
 namespace kindred {
