@@ -174,8 +174,8 @@ void SignedCorpus::AddKeys(std::string id, const KeepFacts& facts, const Documen
 
 void SignedCorpus::GrowKeyTable(size_t docs) {
   const size_t values = docs * banding_.bands;
-  std::unique_ptr<uint64_t[], FreeKeyTable> table(
-      HugePageAllocator<uint64_t>().allocate(values), FreeKeyTable{values});
+  std::unique_ptr<uint64_t[], FreeKeyTable> table(HugePageAllocator<uint64_t>().allocate(values),
+                                                  FreeKeyTable{values});
   const size_t resident = store_->ids.size() - first_resident_;
   for (uint32_t band = 0; band < banding_.bands && resident > 0; ++band) {
     std::memcpy(table.get() + band * docs, store_->key_table.get() + band * key_stride_,
@@ -246,7 +246,8 @@ void SignedCorpus::AddGrouped(std::string id, const KeepFacts& facts,
                                      : signed_doc.bag_size;
   if (signed_doc.same_text_as >= 0) {
     const uint32_t earlier = store_->rep_of[signed_doc.same_text_as];
-    if (store_->shingle_count[earlier] > 0 && signed_doc.sorted && store_->signature_data[earlier] == nullptr) {
+    if (store_->shingle_count[earlier] > 0 && signed_doc.sorted &&
+        store_->signature_data[earlier] == nullptr) {
       KeepSet(earlier, signed_doc.set, signed_doc.signature);
     }
     count = store_->shingle_count[earlier];
@@ -259,7 +260,8 @@ void SignedCorpus::AddGrouped(std::string id, const KeepFacts& facts,
   if (rep != doc) {
     ++store_->group_size[rep];
     AddKeys(std::move(id), facts, origin, count, store_->no_keys);
-    store_->band_key_digests.back() = store_->band_key_digests[rep];  // what reading it again must give
+    store_->band_key_digests.back() =
+        store_->band_key_digests[rep];  // what reading it again must give
     return;
   }
   AddKeys(std::move(id), facts, origin, count, count > 0 ? signed_doc.band_keys : store_->no_keys);
