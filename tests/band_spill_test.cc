@@ -1,7 +1,7 @@
 // Spilled band keys: the merge of sorted runs and resident entries gives
 // every entry once, in (key, doc) order, as one in-memory sort does; scratch
 // files that cannot be made are errors, not crashes.
-#include "kindred/band_spill.h"
+#include "core/band_spill.h"
 
 #include <algorithm>
 #include <catch2/catch.hpp>

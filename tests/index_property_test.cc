@@ -70,9 +70,8 @@ std::vector<Pair> IncrementalPairs(const SignedCorpus& corpus, const IndexSettin
     for (const IndexMatch& m : *matches) {
       uint32_t query = static_cast<uint32_t>(cuts[c]) + m.query();
       uint32_t other = m.in_index ? m.other() : static_cast<uint32_t>(cuts[c]) + m.other();
-      pairs.push_back(
-          {std::min(query, other), std::max(query, other), m.pair.shared, m.pair.jaccard,
-           m.pair.estimate});
+      pairs.push_back({std::min(query, other), std::max(query, other), m.pair.shared,
+                       m.pair.jaccard, m.pair.estimate});
     }
     REQUIRE((*writer)->Append(batch, DuplicateIdPolicy::kError).ok());
   }

@@ -29,9 +29,9 @@
 #include "absl/status/statusor.h"
 #include "absl/types/span.h"
 #include "kindred/corpus.h"
+#include "kindred/scored_pairs.h"
 #include "kindred/settings.h"
 #include "kindred/shingles.h"
-#include "kindred/scored_pairs.h"
 
 namespace kindred {
 

@@ -23,8 +23,8 @@
 #include "kindred/groups.h"
 #include "kindred/index.h"
 #include "kindred/records.h"
-#include "kindred/settings.h"
 #include "kindred/scored_pairs.h"
+#include "kindred/settings.h"
 #include "kindred/signed_corpus.h"
 #include "kindred/sweep.h"
 

@@ -12,7 +12,8 @@
 //     and most of a sweep's time on fresh memory is saved.
 // Storage is flat (large blocks that never move, arrays advised as huge
 // pages; lean band keys one column per band), so a million documents cost a
-// few allocations, not millions.
+// few allocations, not millions. How it is stored is private to
+// src/core/signed_corpus.cc; spilled band keys are src/core/band_spill.h.
 //
 // SignCorpus() fills one from a CorpusReader on a fixed pool of `threads`
 // threads (the calling thread is one of them): each reads a small batch in
@@ -29,14 +30,12 @@
 #include <functional>
 #include <memory>
 #include <string>
+#include <utility>
 #include <vector>
 
-#include "absl/container/flat_hash_map.h"
 #include "absl/status/status.h"
 #include "absl/types/span.h"
-#include "kindred/band_spill.h"
 #include "kindred/banding.h"
-#include "kindred/block_arena.h"
 #include "kindred/corpus.h"
 #include "kindred/document_table.h"  // DocumentOrigin
 #include "kindred/groups.h"
@@ -44,26 +43,21 @@
 
 namespace kindred {
 
-namespace internal {
-// Frees a SignedCorpus key table (HugePageAllocator, `values` keys).
-struct FreeKeyTable {
-  size_t values = 0;
-  void operator()(uint64_t* table) const {
-    HugePageAllocator<uint64_t>().deallocate(table, values);
-  }
-};
-}  // namespace internal
+class BandSpill;  // band keys spilled to sorted runs (internal)
 
 class SignedCorpus {
  public:
   // Keeps signatures and shingle sets of every document.
-  explicit SignedCorpus(uint32_t perms) : perms_(perms) {}
+  explicit SignedCorpus(uint32_t perms);
+  ~SignedCorpus();
+  SignedCorpus(SignedCorpus&& other) noexcept;
+  SignedCorpus& operator=(SignedCorpus&& other) noexcept;
   // Keeps the band keys of `banding` and set sizes only. Requires
   // banding.slots() <= perms.
   static SignedCorpus Lean(uint32_t perms, Banding banding);
 
   uint32_t perms() const { return perms_; }
-  size_t size() const { return ids_.size(); }
+  size_t size() const { return view_.size; }
   // Makes room for `documents` in all, so that the per-document arrays do
   // not grow by doubling (copies, fresh pages, and up to twice the memory).
   void Reserve(size_t documents);
@@ -103,40 +97,40 @@ class SignedCorpus {
   };
   AttachedRoom AttachRoom(uint32_t doc, size_t shingles);
 
-  const std::string& id(size_t doc) const { return ids_[doc]; }
-  absl::Span<const std::string> ids() const { return ids_; }
-  const KeepFacts& facts(size_t doc) const { return facts_[doc]; }
-  absl::Span<const KeepFacts> all_facts() const { return facts_; }
-  const DocumentOrigin& origin(size_t doc) const { return origins_[doc]; }
+  const std::string& id(size_t doc) const { return view_.ids[doc]; }
+  absl::Span<const std::string> ids() const { return {view_.ids, view_.size}; }
+  const KeepFacts& facts(size_t doc) const { return view_.facts[doc]; }
+  absl::Span<const KeepFacts> all_facts() const { return {view_.facts, view_.size}; }
+  const DocumentOrigin& origin(size_t doc) const { return view_.origins[doc]; }
   // Size of the document's shingle set. In a lean corpus before
   // AttachRoom, only whether it is zero is known (signing skips the
   // sort that would count duplicates).
-  uint32_t shingle_count(size_t doc) const { return shingle_count_[doc]; }
+  uint32_t shingle_count(size_t doc) const { return view_.shingle_count[doc]; }
   // Whether shingles() and signature() may be called: always when not lean,
   // after AttachRoom (and filling) when lean.
-  bool has_shingles(size_t doc) const { return signature_data_[doc] != nullptr; }
+  bool has_shingles(size_t doc) const { return view_.signature_data[doc] != nullptr; }
   // Requires has_shingles(doc).
   absl::Span<const uint64_t> shingles(size_t doc) const {
-    return absl::MakeConstSpan(shingle_data_[doc], shingle_count_[doc]);
+    return absl::MakeConstSpan(view_.shingle_data[doc], view_.shingle_count[doc]);
   }
   // Requires has_shingles(doc).
   absl::Span<const uint32_t> signature(size_t doc) const {
-    return absl::MakeConstSpan(signature_data_[doc], perms_);
+    return absl::MakeConstSpan(view_.signature_data[doc], perms_);
   }
   // Lean only: the key of document `doc` in `band`. Requires
   // doc >= first_resident() and band < lean_banding().bands.
   uint64_t band_key(size_t doc, uint32_t band) const {
-    return key_table_[band * key_stride_ + (doc - first_resident_)];
+    return view_.key_table[band * key_stride_ + (doc - first_resident_)];
   }
   // Lean only: the keys in `band` of the documents held in memory, from
   // first_resident() on. Keys are stored band by band, so that candidate
   // search reads each band's keys in one sequential sweep.
   absl::Span<const uint64_t> band_column(uint32_t band) const {
-    return absl::MakeConstSpan(key_table_.get() + band * key_stride_, size() - first_resident_);
+    return absl::MakeConstSpan(view_.key_table + band * key_stride_, size() - first_resident_);
   }
   // Lean only: a 32-bit digest of the document's band keys (kept for every
   // document, spilled or not), to check a document read again.
-  uint32_t band_key_digest(size_t doc) const { return band_key_digests_[doc]; }
+  uint32_t band_key_digest(size_t doc) const { return view_.band_key_digests[doc]; }
   static uint32_t BandKeyDigest(absl::Span<const uint64_t> keys);
 
   // Lean only: groups documents whose shingle sets are identical. Each
@@ -185,14 +179,16 @@ class SignedCorpus {
                   const SignedDocument& signed_doc);
   // The representative of doc's group (doc itself when it is one, when the
   // corpus does not group identical sets, and for empty documents).
-  uint32_t representative(size_t doc) const { return identical_ ? rep_of_[doc] : doc; }
+  uint32_t representative(size_t doc) const {
+    return identical_ ? view_.rep_of[doc] : static_cast<uint32_t>(doc);
+  }
   // Members of the group doc represents (0 for a document that is not a
   // representative; 1 when not grouping).
-  uint32_t group_size(size_t doc) const { return identical_ ? group_size_[doc] : 1; }
+  uint32_t group_size(size_t doc) const { return identical_ ? view_.group_size[doc] : 1; }
 
   // Lean only, spilling: once the band keys held in memory take more than
   // `budget_bytes`, spill_due() says so and SpillBandKeys() moves them to
-  // sorted runs in a scratch file in `dir` (see band_spill.h), keeping the
+  // sorted runs in a scratch file in `dir` (see sweep.h), keeping the
   // memory for the next documents.
   void SetSpill(uint64_t budget_bytes, std::string dir);
   bool spill_due() const { return spill_budget_ > 0 && resident_key_bytes() > spill_budget_; }
@@ -201,47 +197,52 @@ class SignedCorpus {
   // The first document whose band keys are in memory (0 when none were
   // spilled), and the spilled ones (null when none).
   size_t first_resident() const { return first_resident_; }
-  const BandSpill* spill() const { return spill_.get(); }
+  const BandSpill* spill() const { return view_.spill; }
 
  private:
+  struct Store;  // the arrays, arenas and tables (signed_corpus.cc)
+  // Where the inline accessors read: the arrays of store_, refreshed by
+  // Sync() after every change that may move them.
+  struct View {
+    size_t size = 0;
+    const std::string* ids = nullptr;
+    const KeepFacts* facts = nullptr;
+    const DocumentOrigin* origins = nullptr;
+    const uint64_t* const* shingle_data = nullptr;
+    const uint32_t* shingle_count = nullptr;
+    const uint32_t* const* signature_data = nullptr;
+    const uint64_t* key_table = nullptr;
+    const uint32_t* band_key_digests = nullptr;
+    const uint32_t* rep_of = nullptr;
+    const uint32_t* group_size = nullptr;
+    const BandSpill* spill = nullptr;
+  };
+  void Sync();
   void AddKeys(std::string id, const KeepFacts& facts, const DocumentOrigin& origin,
                uint32_t shingle_count, absl::Span<const uint64_t> keys);
   // Keeps a representative's set and signature when the budget allows.
   void KeepSet(uint32_t doc, absl::Span<const uint64_t> set, absl::Span<const uint32_t> signature);
+  // Makes room for `docs` resident documents in every band's column.
+  void GrowKeyTable(size_t docs);
   size_t resident_key_bytes() const {
     return (size() - first_resident_) * banding_.bands * sizeof(uint64_t);
   }
 
   uint32_t perms_;
   Banding banding_{0, 0};
-  HugePageVector<std::string> ids_;
-  HugePageVector<KeepFacts> facts_;
-  HugePageVector<DocumentOrigin> origins_;
-  HugePageVector<const uint64_t*> shingle_data_;
-  HugePageVector<uint32_t> shingle_count_;
-  HugePageVector<const uint32_t*> signature_data_;
-  BlockArena<uint64_t> shingles_;
-  BlockArena<uint32_t> signatures_;
-  // Makes room for `docs` resident documents in every band's column.
-  void GrowKeyTable(size_t docs);
-  // Lean only: one allocation (huge pages) holding a column of key_stride_
-  // keys per band: the key of document first_resident_ + i in band b is at
+  std::unique_ptr<Store> store_;
+  View view_;
+  // Lean only: the key table holds a column of key_stride_ keys per band:
+  // the key of document first_resident_ + i in band b is at
   // b * key_stride_ + i.
-  std::unique_ptr<uint64_t[], internal::FreeKeyTable> key_table_;
   size_t key_stride_ = 0;
-  HugePageVector<uint32_t> band_key_digests_;  // lean only
   uint64_t spill_budget_ = 0;
   std::string spill_dir_;
-  std::unique_ptr<BandSpill> spill_;
   size_t first_resident_ = 0;
   // Grouping identical sets (GroupIdenticalSets).
   bool identical_ = false;
   uint64_t set_budget_ = 0;
   uint64_t kept_set_bytes_ = 0;
-  HugePageVector<uint32_t> rep_of_;
-  HugePageVector<uint32_t> group_size_;
-  absl::flat_hash_map<Digest, uint32_t> by_set_;  // set digest -> representative
-  std::vector<uint64_t> no_keys_;                 // bands x kNoBandKey
 };
 
 // What signing saw, beyond the documents themselves.

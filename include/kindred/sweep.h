@@ -56,7 +56,7 @@ struct SweepOptions {
   bool keep_sets = false;
   // Memory budget in bytes (0: none). A lean sweep keeps its band keys in at
   // most half of it and spills the rest as sorted runs to a scratch file in
-  // `scratch_dir` (see band_spill.h); the other half is for ids and
+  // `scratch_dir` (src/core/band_spill.h); the other half is for ids and
   // per-document facts (about 100 bytes plus the id each) and the batch
   // being signed. Results are the same with and without spilling.
   // The exact shingle sets of the documents (one per group of identical

@@ -216,8 +216,7 @@ struct TuneResult {
 // the wrong pairs' indices to *wrong when not null.
 LabelScore ScoreLabels(absl::Span<const ResolvedPair> labelled,
                        absl::Span<const ScoredPair> measures, absl::Span<const uint8_t> candidate,
-                       double threshold, Measure measure, double beta,
-                       std::vector<uint32_t>* wrong,
+                       double threshold, Measure measure, double beta, std::vector<uint32_t>* wrong,
                        uint32_t min_contained_size = kDefaultMinContainedSize);
 
 // True when `x` ranks before `y` (see the file comment).

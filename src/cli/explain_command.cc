@@ -212,8 +212,8 @@ std::string JsonRecord(const Subject& subject, const Explanation& e) {
   for (double value : {m.jaccard, m.estimate, m.ContainmentOfAInB(), m.ContainmentOfBInA()}) {
     record.Similarity(value);
   }
-  for (uint64_t value : {uint64_t{m.size_a}, uint64_t{m.size_b}, uint64_t{m.shared},
-                         uint64_t{e.settings.perms}}) {
+  for (uint64_t value :
+       {uint64_t{m.size_a}, uint64_t{m.size_b}, uint64_t{m.shared}, uint64_t{e.settings.perms}}) {
     record.Number(value);
   }
   if (subject.has_texts) {

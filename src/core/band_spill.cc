@@ -1,4 +1,4 @@
-#include "kindred/band_spill.h"
+#include "core/band_spill.h"
 
 #include <fcntl.h>
 #include <unistd.h>

@@ -4,9 +4,9 @@
 #include <bit>
 #include <memory>
 
+#include "core/band_spill.h"
 #include "core/contract_internal.h"
 #include "core/group_members.h"
-#include "kindred/band_spill.h"
 #include "core/parallel.h"
 
 namespace kindred {

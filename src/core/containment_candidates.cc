@@ -7,8 +7,8 @@
 #include <map>
 #include <utility>
 
+#include "core/band_spill.h"
 #include "core/contract_internal.h"
-#include "kindred/band_spill.h"
 #include "core/parallel.h"
 
 namespace kindred {

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <chrono>
 
+#include "core/band_spill.h"
 #include "core/group_members.h"
 #include "core/reload.h"
 #include "kindred/signer.h"

@@ -204,7 +204,8 @@ std::vector<ScoredPair> ExhaustivePairs(const SignedCorpus& corpus, const MatchS
         }
         const ScoredPair overlap = MeasureOverlap(set_a, set_b);
         if (PassesThreshold(overlap, match)) {
-          parts[a].push_back(internal::Score(a, b, overlap, corpus.signature(a), corpus.signature(b)));
+          parts[a].push_back(
+              internal::Score(a, b, overlap, corpus.signature(a), corpus.signature(b)));
         }
       }
     }

@@ -5,11 +5,11 @@
 #include <mutex>
 #include <utility>
 
+#include "core/parallel.h"
 #include "index/containment_lookup.h"
 #include "kindred/banding.h"
 #include "kindred/candidates.h"
 #include "kindred/containment_candidates.h"
-#include "core/parallel.h"
 #include "kindred/signer.h"
 #include "kindred/verify.h"
 
@@ -63,8 +63,8 @@ void MatchWithinBatch(const IndexReader& reader, const index::ContainmentLookup*
                                            std::max(1, options.threads), &stats, cap);
   } else {
     CandidateStats stats;
-    candidates = FindCandidatePairs(batch, Banding{reader.bands(), reader.rows()},
-                                    options.threads, &stats, cap);
+    candidates = FindCandidatePairs(batch, Banding{reader.bands(), reader.rows()}, options.threads,
+                                    &stats, cap);
   }
   for (ScoredPair pair : VerifyPairs(batch, candidates, options.match, options.threads)) {
     // The later batch document is the query.

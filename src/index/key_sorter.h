@@ -18,7 +18,7 @@
 #include <vector>
 
 #include "absl/status/status.h"
-#include "kindred/band_spill.h"
+#include "core/band_spill.h"
 
 namespace kindred::index {
 

@@ -11,8 +11,8 @@
 
 #include "absl/status/statusor.h"
 #include "absl/strings/string_view.h"
+#include "core/block_arena.h"
 #include "io/byte_stream.h"
-#include "kindred/block_arena.h"
 
 namespace kindred::io {
 

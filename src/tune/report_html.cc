@@ -60,12 +60,11 @@ std::string SCurvePlot(const TuneReportInput& input) {
   for (size_t i = 0; i < r.labelled.size(); ++i) {
     const LabelledPair& label = r.labels[r.labelled[i].label];
     const bool duplicate = label.duplicate;
-    plot.Dot(shingles.MeasureOf(i), duplicate ? -0.07 : -0.15,
-             duplicate ? kPalette[2] : kPalette[4],
-             absl::StrFormat("%s / %s: %.4f, labelled %s%s", label.a, label.b,
-                             shingles.MeasureOf(i), duplicate ? "duplicate" : "distinct",
-                             wrong.count(i) ? " (wrong)" : ""),
-             wrong.count(i) > 0);
+    plot.Dot(
+        shingles.MeasureOf(i), duplicate ? -0.07 : -0.15, duplicate ? kPalette[2] : kPalette[4],
+        absl::StrFormat("%s / %s: %.4f, labelled %s%s", label.a, label.b, shingles.MeasureOf(i),
+                        duplicate ? "duplicate" : "distinct", wrong.count(i) ? " (wrong)" : ""),
+        wrong.count(i) > 0);
   }
   plot.DotLegend(kPalette[2],
                  absl::StrCat("labelled duplicate (", best.setting.shingle.ToString(), ")"));
@@ -172,8 +171,8 @@ std::string WrongPair(const TuneReportInput& input, uint32_t i, const ExplainedP
       "Exact %s %.4f, "
       "signature estimate %.4f.</p>\n",
       EscapeXml(label.a), EscapeXml(label.b), label.duplicate ? "duplicate" : "distinct",
-      label.line, WrongReason(r, *input.options, i), MeasureName(input.options->measure), shingles.MeasureOf(i),
-      r.SignatureOf(r.recommended().setting).estimates[i]);
+      label.line, WrongReason(r, *input.options, i), MeasureName(input.options->measure),
+      shingles.MeasureOf(i), r.SignatureOf(r.recommended().setting).estimates[i]);
   if (explained != nullptr) {
     const Explanation& e = explained->explanation;
     const ScoredPair& o = e.measure;
@@ -184,8 +183,8 @@ std::string WrongPair(const TuneReportInput& input, uint32_t i, const ExplainedP
         "marked.</p>\n<div class=\"texts\"><pre>%s"
         "</pre><pre>%s</pre></div>\n",
         o.jaccard, o.ContainmentOfAInB(), o.ContainmentOfBInA(), o.shared, o.size_a - o.shared,
-        o.size_b - o.shared,
-        MarkedText(explained->text_a, e.marked_a), MarkedText(explained->text_b, e.marked_b));
+        o.size_b - o.shared, MarkedText(explained->text_a, e.marked_a),
+        MarkedText(explained->text_b, e.marked_b));
   }
   return out + "</div>\n";
 }

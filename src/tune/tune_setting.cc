@@ -176,8 +176,8 @@ size_t HistogramBin(double similarity) {
 
 LabelScore ScoreLabels(absl::Span<const ResolvedPair> labelled,
                        absl::Span<const ScoredPair> measures, absl::Span<const uint8_t> candidate,
-                       double threshold, Measure measure, double beta,
-                       std::vector<uint32_t>* wrong, uint32_t min_contained_size) {
+                       double threshold, Measure measure, double beta, std::vector<uint32_t>* wrong,
+                       uint32_t min_contained_size) {
   MatchSettings match;
   match.threshold = threshold;
   match.measure = measure;

@@ -8,8 +8,8 @@
 // pages where the kernel allows it, which cuts page faults by ~500x.
 //
 // Not thread-safe for Append; reads of appended data may be concurrent.
-#ifndef KINDRED_BLOCK_ARENA_H_
-#define KINDRED_BLOCK_ARENA_H_
+#ifndef KINDRED_CORE_BLOCK_ARENA_H_
+#define KINDRED_CORE_BLOCK_ARENA_H_
 
 #include <sys/mman.h>
 
@@ -159,4 +159,4 @@ using HugePageVector = std::vector<T, HugePageAllocator<T>>;
 
 }  // namespace kindred
 
-#endif  // KINDRED_BLOCK_ARENA_H_
+#endif  // KINDRED_CORE_BLOCK_ARENA_H_

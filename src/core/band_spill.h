@@ -15,8 +15,8 @@
 //
 // Thread-safety: AddRun is not thread-safe; once all runs are added, any
 // number of BandMergers (one per thread) may read concurrently.
-#ifndef KINDRED_BAND_SPILL_H_
-#define KINDRED_BAND_SPILL_H_
+#ifndef KINDRED_CORE_BAND_SPILL_H_
+#define KINDRED_CORE_BAND_SPILL_H_
 
 #include <cstdint>
 #include <memory>
@@ -26,7 +26,7 @@
 #include "absl/status/status.h"
 #include "absl/status/statusor.h"
 #include "absl/types/span.h"
-#include "kindred/block_arena.h"
+#include "core/block_arena.h"
 
 namespace kindred {
 
@@ -100,4 +100,4 @@ class BandMerger {
 
 }  // namespace kindred
 
-#endif  // KINDRED_BAND_SPILL_H_
+#endif  // KINDRED_CORE_BAND_SPILL_H_
