@@ -2,6 +2,7 @@
 #include <cstdio>
 
 #include "cli/cli.h"
+#include "cli/huge_pages.h"
 #include "kindred/errors.h"
 #include "kindred/temp_files.h"
 #include "cli/usage.h"
@@ -45,6 +46,7 @@ int Fail(const absl::Status& status) { return Fail(ExitCodeFor(status), status);
 
 int main(int argc, char** argv) {
   using namespace kindred::cli;
+  StartWithHugePages(argc, argv);
   CLI::App app{"kindred: find near-duplicate text documents", "kindred"};
   app.failure_message(ParseErrorMessage);
   app.require_subcommand(1);

@@ -1,0 +1,36 @@
+#include "cli/huge_pages.h"
+
+#include <stdlib.h>
+#include <unistd.h>
+
+#include <cstring>
+#include <string>
+
+namespace kindred::cli {
+
+// glibc reads its tunables once, before main, from GLIBC_TUNABLES; the only
+// way for a program to set one for itself is to start again with it set.
+// glibc.malloc.hugetlb=1 makes malloc ask for transparent huge pages
+// (madvise MADV_HUGEPAGE) on the memory it maps: a sweep of 111 MB of real
+// text (x3) then takes about 6% less CPU on one thread and 10% less on two,
+// most of it fewer page faults on fresh memory (medians of 9 runs).
+void StartWithHugePages(int argc, char** argv) {
+  // Starting again costs about 14 ms (loading the program twice): only the
+  // commands that read whole corpora pay it back.
+  static constexpr const char* kCorpusCommands[] = {"sweep", "build", "add",
+                                                    "tune",  "plan",  "compact"};
+  bool corpus_command = false;
+  for (const char* command : kCorpusCommands) {
+    corpus_command |= argc > 1 && strcmp(argv[1], command) == 0;
+  }
+  if (!corpus_command) return;
+  const char* tunables = getenv("GLIBC_TUNABLES");
+  if (getenv("KINDRED_NO_HUGE_PAGES") != nullptr) return;
+  if (tunables != nullptr && strstr(tunables, "glibc.malloc.hugetlb") != nullptr) return;
+  std::string value = "glibc.malloc.hugetlb=1";
+  if (tunables != nullptr && *tunables != '\0') value = std::string(tunables) + ":" + value;
+  if (setenv("GLIBC_TUNABLES", value.c_str(), 1) != 0) return;
+  execv("/proc/self/exe", argv);  // returns only on failure: go on as we are
+}
+
+}  // namespace kindred::cli
