@@ -83,8 +83,9 @@ def _run(args) -> int:
         environ["MALLOC_MMAP_THRESHOLD_"] = 1 << 30
         # And, as the kindred program does, malloc asks for transparent huge
         # pages (fewer page faults on the records' fresh memory).
-        if "KINDRED_NO_HUGE_PAGES" not in os.environ:
-            environ["GLIBC_TUNABLES"] = "glibc.malloc.hugetlb=1"
+        tunables = os.environ.get("GLIBC_TUNABLES", "")
+        if "KINDRED_NO_HUGE_PAGES" not in os.environ and "glibc.malloc.hugetlb" not in tunables:
+            environ["GLIBC_TUNABLES"] = ":".join(filter(None, [tunables, "glibc.malloc.hugetlb=1"]))
         with dask.config.set({"distributed.nanny.pre-spawn-environ": environ}), \
                 LocalCluster(n_workers=args.local_workers, threads_per_worker=1,
                              processes=True, dashboard_address=None) as cluster, \
