@@ -2,7 +2,8 @@
 // segment stores it (FORMAT.md, "band_keys"), as a reader builds it in
 // memory for a banding other than the stored one or for containment keys
 // not stored, and as audit recomputes it. Built here, one way, for all of
-// them.
+// them; compact, whose table may exceed memory, feeds DocumentKeys into its
+// external sort (key_sorter.h) instead.
 //
 // A document's keys are those of one banding (kNoBandKey left out) and,
 // with a containment plan, its containment keys (containment_keys.h). A
