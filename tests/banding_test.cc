@@ -210,5 +210,17 @@ TEST_CASE("band keys are deterministic and skip empty slots", "[banding]") {
   CHECK(changed == std::vector<uint64_t>(20, kNoBandKey));
 }
 
+TEST_CASE("a banding left open is kept or chosen, a given one used", "[banding]") {
+  MatchSettings match;
+  match.threshold = 0.6;
+  const Banding chosen = ChooseBanding(0.6, 128);
+  CHECK(ResolveBanding(match, 128) == chosen);
+  CHECK(ResolveBanding(match, 128, Banding{5, 3}) == Banding{5, 3});
+  match.bands = 10;
+  match.rows = 12;
+  CHECK(ResolveBanding(match, 128) == Banding{10, 12});
+  CHECK(ResolveBanding(match, 128, Banding{5, 3}) == Banding{10, 12});
+}
+
 }  // namespace
 }  // namespace kindred

@@ -27,9 +27,11 @@
 #define KINDRED_BANDING_H_
 
 #include <cstdint>
+#include <optional>
 #include <vector>
 
 #include "absl/types/span.h"
+#include "kindred/settings.h"
 
 namespace kindred {
 
@@ -87,6 +89,17 @@ Banding ChooseBanding(double threshold, uint32_t perms,
                       double fn_weight = kDefaultFalseNegativeWeight,
                       double fp_weight = kDefaultFalsePositiveWeight,
                       double min_recall = kDefaultMinRecall);
+
+// The one rule for a banding left open. Returns match.bands x match.rows
+// when bands is not 0; otherwise `kept` when given (a banding in use that
+// stays while the threshold it was chosen for does: an index's stored
+// banding for a query that names no threshold), else
+// ChooseBanding(match.threshold, perms). Requires perms >= 1 and a match
+// that passed MatchSettings::Validate. A containment match with bands 0
+// means the containment search instead, which has no banding: callers ask
+// UsesContainmentSearch() (sweep.h) first.
+Banding ResolveBanding(const MatchSettings& match, uint32_t perms,
+                       std::optional<Banding> kept = std::nullopt);
 
 // The key of a band that must never match: one of its slots is kEmptySlot.
 // Real keys are never kNoBandKey (a hash equal to it is replaced by 1).

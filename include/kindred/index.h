@@ -223,6 +223,11 @@ class IndexReader {
   // The DataLoss status for a damaged shingle set of `doc`.
   absl::Status ShingleError(uint32_t doc) const;
   const Segment& SegmentOf(uint32_t doc, uint32_t* local) const;
+  // The entries of one band key in one table (src/index/index_lookup.cc).
+  struct KeyRange;
+  // Appends to *ranges the entries of `key` under the current banding,
+  // document numbers ascending across them; returns their count.
+  uint64_t FindKeyRanges(uint64_t key, std::vector<KeyRange>* ranges) const;
 
   std::string path_;
   std::unique_ptr<MappedFile> mapping_;

@@ -41,10 +41,6 @@
 
 namespace kindred {
 
-// The banding of a sweep: match.bands x match.rows when given, otherwise
-// (bands 0) the automatic choice ChooseBanding(match.threshold, perms).
-Banding ResolveBanding(const MatchSettings& match, uint32_t perms);
-
 struct ShardOptions {
   // The number of the shard's first document in the whole corpus (the count
   // of documents in the shards before it).

@@ -133,8 +133,7 @@ void CreateEmpty(const std::string& path, const py::handle& settings_object, dou
   match.bands = bands;
   match.rows = rows;
   Check(WithKind(match.Validate(settings.signature), ErrorKind::kInvalidRequest));
-  const Banding banding =
-      bands != 0 ? Banding{bands, rows} : ChooseBanding(threshold, settings.signature.perms);
+  const Banding banding = ResolveBanding(match, settings.signature.perms);
   settings.bands = banding.bands;
   settings.rows = banding.rows;
   settings.threshold = threshold;

@@ -16,7 +16,6 @@
 #include "kindred/banding.h"
 #include "kindred/index_writer.h"
 #include "kindred/signed_corpus.h"
-#include "kindred/sweep_stages.h"  // ResolveBanding
 #include "kindred/temp_files.h"
 #include "kindred/text.h"
 

@@ -57,9 +57,6 @@ int RunIndexSweep(const SweepFlags& flags) {
       code != kExitOk) {
     return code;
   }
-  if (options.match.measure == Measure::kContainment && flags.match.bands == 0) {
-    options.match.bands = options.match.rows = 0;  // the containment LSH, not the stored banding
-  }
   auto records = ToRecordOutputs(flags, /*corpus=*/false);
   if (!records.ok()) return Fail(kExitUsage, records.status());
   options.keep = records->keep;

@@ -161,6 +161,12 @@ Banding ChooseBanding(double threshold, uint32_t perms, double fn_weight, double
   return RankBandings(threshold, perms, fn_weight, fp_weight, min_recall).front().banding;
 }
 
+Banding ResolveBanding(const MatchSettings& match, uint32_t perms, std::optional<Banding> kept) {
+  if (match.bands != 0) return Banding{match.bands, match.rows};
+  if (kept.has_value()) return *kept;
+  return ChooseBanding(match.threshold, perms);
+}
+
 void BandKeys(absl::Span<const uint32_t> signature, Banding banding, absl::Span<uint64_t> out) {
   internal::RequireContract(
       out.size() == banding.bands && banding.rows >= 1 && banding.slots() <= signature.size(),

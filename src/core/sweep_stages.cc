@@ -67,11 +67,6 @@ void PairBucket(absl::Span<const BandKeyRecord> bucket, uint64_t max_bucket,
 
 }  // namespace
 
-Banding ResolveBanding(const MatchSettings& match, uint32_t perms) {
-  return match.bands != 0 ? Banding{match.bands, match.rows}
-                          : ChooseBanding(match.threshold, perms);
-}
-
 absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSettings& settings,
                                       Banding banding, const ShardOptions& options) {
   if (banding.bands == 0 || banding.rows == 0 || banding.slots() > settings.perms) {

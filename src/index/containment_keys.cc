@@ -56,29 +56,5 @@ bool Proposes(const ContainmentPlan& plan, int i, int j, uint32_t rows, uint32_t
   return b.rows == rows && band < b.bands;
 }
 
-void DocumentKeys(const IndexSettings& settings, const ContainmentPlan* plan,
-                  absl::Span<const uint32_t> signature, uint32_t shingle_count,
-                  std::vector<uint64_t>* keys) {
-  keys->clear();
-  std::vector<uint64_t> band(settings.bands);
-  BandKeys(signature, Banding{settings.bands, settings.rows}, absl::MakeSpan(band));
-  for (uint64_t key : band) {
-    if (key != kNoBandKey) keys->push_back(key);
-  }
-  if (plan == nullptr) return;
-  const int partition = shingle_count == 0 ? -1 : plan->PartitionOf(shingle_count);
-  if (partition >= 0) {
-    for (const Banding& banding : NeededBandings(*plan, partition)) {
-      band.resize(banding.bands);
-      BandKeys(signature, banding, absl::MakeSpan(band));
-      for (uint64_t key : band) {
-        if (key != kNoBandKey) keys->push_back(key);
-      }
-    }
-  }
-  std::sort(keys->begin(), keys->end());
-  keys->erase(std::unique(keys->begin(), keys->end()), keys->end());
-}
-
 }  // namespace index
 }  // namespace kindred

@@ -1,5 +1,6 @@
-// The band keys an index stores for one document, and the containment
-// search over them (FORMAT.md, "Containment keys").
+// The containment keys an index stores for a document (built with its band
+// keys by key_table.h), and the containment search over them (FORMAT.md,
+// "Containment keys").
 //
 // LSH Ensemble (Zhu, Nargesian, Pu, Miller, "LSH Ensemble: Internet-Scale
 // Domain Search", PVLDB 9(12), VLDB 2016; see containment_lsh.h) proposes a
@@ -39,14 +40,6 @@ std::vector<Banding> NeededBandings(const ContainmentPlan& plan, int partition);
 // Whether the plan proposes a pair of partitions i and j that agree on band
 // `band` of `rows` rows.
 bool Proposes(const ContainmentPlan& plan, int i, int j, uint32_t rows, uint32_t band);
-
-// The distinct band keys a segment stores for a document: its keys under
-// the stored banding (band order, kNoBandKey left out), then, when `plan` is
-// not null (settings.containment.stored()), its containment keys, the whole
-// list sorted and without repeats. Replaces *keys.
-void DocumentKeys(const IndexSettings& settings, const ContainmentPlan* plan,
-                  absl::Span<const uint32_t> signature, uint32_t shingle_count,
-                  std::vector<uint64_t>* keys);
 
 }  // namespace kindred::index
 

@@ -3,6 +3,7 @@
 #include <algorithm>
 
 #include "index/containment_keys.h"
+#include "index/key_table.h"
 #include "kindred/banding.h"
 
 namespace kindred::index {
@@ -28,18 +29,13 @@ std::unique_ptr<ContainmentLookup> ContainmentLookup::Create(const IndexReader& 
   // No stored keys for this query: every document's, in memory.
   const uint32_t count = reader.document_count();
   if (earlier == nullptr || earlier->stored_ || earlier->covered_ > count) {
-    auto table = std::make_shared<KeyTable>();
-    lookup->AddKeys(0, count, table.get());
-    std::sort(table->begin(), table->end());
-    lookup->base_ = std::move(table);
+    lookup->base_ = std::make_shared<const KeyTable>(lookup->BuildTable(0, count));
     lookup->covered_ = count;
     return lookup;
   }
   // The earlier base table is shared; the keys added since join its recent
   // part, which is merged into a new base once it is no longer small.
-  KeyTable added;
-  lookup->AddKeys(earlier->covered_, count, &added);
-  std::sort(added.begin(), added.end());
+  const KeyTable added = lookup->BuildTable(earlier->covered_, count);
   KeyTable recent(earlier->recent_.size() + added.size());
   std::merge(earlier->recent_.begin(), earlier->recent_.end(), added.begin(), added.end(),
              recent.begin());
@@ -57,15 +53,12 @@ std::unique_ptr<ContainmentLookup> ContainmentLookup::Create(const IndexReader& 
   return lookup;
 }
 
-void ContainmentLookup::AddKeys(uint32_t from, uint32_t to, KeyTable* table) const {
-  IndexSettings memory_settings = reader_.settings();
-  memory_settings.containment = keys_;
-  std::vector<uint64_t> doc_keys;
-  for (uint32_t doc = from; doc < to; ++doc) {
-    DocumentKeys(memory_settings, plan_.get(), reader_.signature(doc), reader_.shingle_count(doc),
-                 &doc_keys);
-    for (uint64_t key : doc_keys) table->emplace_back(key, doc);
-  }
+KeyTable ContainmentLookup::BuildTable(uint32_t from, uint32_t to) const {
+  const IndexSettings& settings = reader_.settings();
+  return BuildKeyTable(KeyPlan{Banding{settings.bands, settings.rows}, plan_}, from, to,
+                       [this](uint32_t doc) {
+                         return KeyedDocument{reader_.signature(doc), reader_.shingle_count(doc)};
+                       });
 }
 
 void ContainmentLookup::Lookup(uint64_t key, uint64_t max_bucket, std::vector<uint32_t>* out,

@@ -21,6 +21,7 @@
 #include <vector>
 
 #include "absl/types/span.h"
+#include "index/key_table.h"
 #include "kindred/containment_lsh.h"
 #include "kindred/index.h"
 #include "kindred/settings.h"
@@ -62,9 +63,9 @@ class ContainmentLookup {
   void Lookup(uint64_t key, uint64_t max_bucket, std::vector<uint32_t>* out,
               uint64_t* crowded) const;
 
-  using KeyTable = std::vector<std::pair<uint64_t, uint32_t>>;  // (key, doc), sorted
-  // Appends the (key, doc) of documents [from, to) to *table, unsorted.
-  void AddKeys(uint32_t from, uint32_t to, KeyTable* table) const;
+  // The sorted table of the keys (stored banding and this lookup's
+  // containment keys) of documents [from, to).
+  KeyTable BuildTable(uint32_t from, uint32_t to) const;
 
   const IndexReader& reader_;
   ContainmentKeys keys_;

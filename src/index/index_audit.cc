@@ -5,8 +5,8 @@
 
 #include "absl/container/flat_hash_map.h"
 #include "absl/strings/str_format.h"
-#include "index/containment_keys.h"
 #include "index/format.h"
+#include "index/key_table.h"
 #include "index/segment.h"
 #include "kindred/banding.h"
 #include "kindred/index_writer.h"
@@ -60,22 +60,14 @@ void CheckDocuments(const IndexReader& reader, AuditReport* report) {
 // signatures (retired documents' keys are skipped by the reader, so both
 // sides are compared over live documents).
 void CheckBandKeys(const IndexReader& reader, AuditReport* report) {
-  std::vector<std::pair<uint64_t, uint32_t>> stored, expected;
+  index::KeyTable stored;
   reader.ForEachBandKey([&](uint64_t key, uint32_t doc) { stored.emplace_back(key, doc); });
-  const IndexSettings& settings = reader.settings();
-  std::shared_ptr<const ContainmentPlan> plan;
-  if (settings.containment.stored()) {
-    plan = index::PlanOf(settings.containment, settings.signature.perms);
-  }
-  std::vector<uint64_t> keys;
-  for (uint32_t doc = 0; doc < reader.document_count(); ++doc) {
-    if (!reader.is_live(doc)) continue;
-    index::DocumentKeys(settings, plan.get(), reader.signature(doc), reader.shingle_count(doc),
-                        &keys);
-    for (uint64_t key : keys) expected.emplace_back(key, doc);
-  }
   std::sort(stored.begin(), stored.end());
-  std::sort(expected.begin(), expected.end());
+  const index::KeyTable expected = index::BuildKeyTable(
+      index::StoredKeyPlan(reader.settings()), 0, reader.document_count(), [&](uint32_t doc) {
+        return index::KeyedDocument{reader.signature(doc), reader.shingle_count(doc),
+                                    !reader.is_live(doc)};
+      });
   if (stored != expected) {
     report->problems.push_back("the band-key tables do not match the stored signatures");
   }

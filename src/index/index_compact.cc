@@ -13,9 +13,9 @@
 #include "absl/strings/str_format.h"
 #include "index/codec.h"
 #include "index/commit_area.h"
-#include "index/containment_keys.h"
 #include "index/format.h"
 #include "index/key_sorter.h"
+#include "index/key_table.h"
 #include "index/segment.h"
 #include "index/write_util.h"
 #include "io/atomic_file.h"
@@ -89,10 +89,7 @@ struct Plan {
 // and sorts the band keys of the new banding into *keys.
 absl::Status Survey(const IndexReader& reader, const IndexSettings& settings, Plan* plan,
                     index::KeySorter* keys) {
-  std::shared_ptr<const ContainmentPlan> containment;
-  if (settings.containment.stored()) {
-    containment = index::PlanOf(settings.containment, settings.signature.perms);
-  }
+  const index::KeyPlan key_plan = index::StoredKeyPlan(settings);
   std::vector<uint64_t> band_keys;
   std::vector<uint64_t> shingles;
   index::SegmentHeader& h = plan->header;
@@ -107,8 +104,7 @@ absl::Status Survey(const IndexReader& reader, const IndexSettings& settings, Pl
     plan->live.push_back(doc);
     h.id_bytes += reader.id(doc).size();
     h.shingle_bytes += set.size();
-    index::DocumentKeys(settings, containment.get(), reader.signature(doc),
-                        reader.shingle_count(doc), &band_keys);
+    index::DocumentKeys(key_plan, reader.signature(doc), reader.shingle_count(doc), &band_keys);
     for (uint64_t key : band_keys) {
       if (absl::Status added = keys->Add(key, number); !added.ok()) return added;
     }

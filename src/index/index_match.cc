@@ -190,9 +190,11 @@ absl::StatusOr<SweepResult> SweepIndex(const IndexReader& reader, const MatchSet
   SweepOptions options;
   options.signature = reader.settings().signature;
   options.match = match;
-  if (options.match.bands == 0 && options.match.measure == Measure::kJaccard) {
-    options.match.bands = reader.bands();
-    options.match.rows = reader.rows();
+  if (!UsesContainmentSearch(options.match)) {
+    const Banding banding = ResolveBanding(options.match, options.signature.perms,
+                                           Banding{reader.bands(), reader.rows()});
+    options.match.bands = banding.bands;
+    options.match.rows = banding.rows;
   }
   options.keep = keep;
   options.sign.threads = threads;

@@ -1,5 +1,7 @@
 #include "kindred/index_query.h"
 
+#include <optional>
+
 #include "absl/container/flat_hash_set.h"
 #include "absl/strings/str_cat.h"
 #include "core/plural.h"
@@ -22,18 +24,14 @@ absl::StatusOr<MatchSettings> ResolveQueryMatch(const IndexSettings& stored,
     match.min_contained_size = *request.min_contained_size;
   }
   if (absl::Status status = match.Validate(stored.signature); !status.ok()) return status;
-  if (match.bands == 0 && match.measure == Measure::kContainment) return match;
-  if (match.bands == 0) {
-    if (request.threshold.has_value()) {
-      // The stored banding was chosen for the stored threshold; choose again.
-      const Banding banding = ChooseBanding(match.threshold, stored.signature.perms);
-      match.bands = banding.bands;
-      match.rows = banding.rows;
-    } else {
-      match.bands = stored.bands;
-      match.rows = stored.rows;
-    }
-  }
+  if (UsesContainmentSearch(match)) return match;
+  // The stored banding was chosen for the stored threshold: kept unless
+  // the query names a threshold.
+  std::optional<Banding> kept;
+  if (!request.threshold.has_value()) kept = Banding{stored.bands, stored.rows};
+  const Banding banding = ResolveBanding(match, stored.signature.perms, kept);
+  match.bands = banding.bands;
+  match.rows = banding.rows;
   return match;
 }
 

@@ -7,15 +7,13 @@
 #include "index/commit_area.h"
 #include "index/containment_lookup.h"
 #include "index/format.h"
-#include "index/segment.h"
+#include "index/reader_segment.h"
 #include "index/tail_tables.h"
 #include "kindred/banding.h"
 #include "kindred/errors.h"
 #include "kindred/index.h"
 
 namespace kindred {
-
-struct IndexReader::Segment : index::SegmentView {};
 
 IndexReader::~IndexReader() = default;
 
@@ -328,110 +326,6 @@ std::optional<uint32_t> IndexReader::FindLive(std::string_view id) const {
     }
   }
   return std::nullopt;
-}
-
-absl::Status IndexReader::UseBanding(uint32_t bands, uint32_t rows) {
-  if (bands < 1 || rows < 1 || uint64_t{bands} * rows > settings_.signature.perms) {
-    return absl::InvalidArgumentError(
-        absl::StrFormat("bands x rows = %u x %u does not fit the index's %u-slot signatures", bands,
-                        rows, settings_.signature.perms));
-  }
-  bands_ = bands;
-  rows_ = rows;
-  memory_keys_.clear();
-  if (bands == settings_.bands && rows == settings_.rows) return absl::OkStatus();
-  std::vector<uint64_t> keys(bands);
-  for (uint32_t doc = 0; doc < document_count_; ++doc) {
-    if (!is_live(doc)) continue;
-    BandKeys(signature(doc), Banding{bands, rows}, absl::MakeSpan(keys));
-    for (uint64_t key : keys) {
-      if (key != kNoBandKey) memory_keys_.emplace_back(key, doc);
-    }
-  }
-  std::sort(memory_keys_.begin(), memory_keys_.end());
-  return absl::OkStatus();
-}
-
-void IndexReader::Candidates(absl::Span<const uint64_t> keys, std::vector<uint32_t>* out,
-                             uint64_t max_bucket, uint64_t* crowded) const {
-  const size_t start = out->size();
-  const bool stored = memory_keys_.empty() && bands_ == settings_.bands && rows_ == settings_.rows;
-  // The entries of a key: one range of the in-memory table, or one range
-  // per segment (document numbers ascending across them).
-  using Entry = std::pair<uint64_t, uint32_t>;
-  struct Range {
-    const Entry* table;  // an in-memory table, or null for segment `segment`
-    size_t segment;
-    size_t begin, end;
-  };
-  std::vector<Range> ranges;
-  const auto doc_at = [&](const Range& range, size_t i) {
-    if (range.table != nullptr) return range.table[i].second;
-    const Segment& segment = segment_views_[range.segment];
-    return segment_first_doc_[range.segment] + segment.key_docs()[i];
-  };
-  const auto add_table = [&ranges](const std::vector<Entry>& table, uint64_t key) {
-    const auto [lo, hi] =
-        std::equal_range(table.begin(), table.end(), std::make_pair(key, uint32_t{0}),
-                         [](const Entry& x, const Entry& y) { return x.first < y.first; });
-    if (lo != hi) {
-      ranges.push_back({table.data(), 0, static_cast<size_t>(lo - table.begin()),
-                        static_cast<size_t>(hi - table.begin())});
-    }
-    return static_cast<uint64_t>(hi - lo);
-  };
-  for (uint64_t key : keys) {
-    if (key == kNoBandKey) continue;
-    ranges.clear();
-    uint64_t entries = 0;
-    if (!stored) {
-      entries += add_table(memory_keys_, key);
-    } else {
-      // Segments one by one up to the tail, then the tail's runs: document
-      // numbers ascend across the ranges either way.
-      const size_t tail_from = tail_ != nullptr ? tail_from_ : segment_views_.size();
-      for (size_t s = 0; s < tail_from; ++s) {
-        const Segment& segment = segment_views_[s];
-        const uint64_t* end = segment.keys() + segment.key_count();
-        const auto [lo, hi] = std::equal_range(segment.keys(), end, key);
-        if (lo == hi) continue;
-        ranges.push_back({nullptr, s, static_cast<size_t>(lo - segment.keys()),
-                          static_cast<size_t>(hi - segment.keys())});
-        entries += hi - lo;
-      }
-      if (tail_ != nullptr) {
-        for (const std::vector<Entry>& run : tail_->runs()) entries += add_table(run, key);
-      }
-    }
-    const bool capped = max_bucket > 0 && entries > max_bucket;
-    if (capped && crowded != nullptr) ++*crowded;
-    bool found = false;
-    for (const Range& range : ranges) {
-      for (size_t i = range.begin; i < range.end && !(capped && found); ++i) {
-        const uint32_t doc = doc_at(range, i);
-        if (!is_live(doc)) continue;
-        out->push_back(doc);
-        found = true;
-      }
-    }
-  }
-  std::sort(out->begin() + start, out->end());
-  out->erase(std::unique(out->begin() + start, out->end()), out->end());
-}
-
-void IndexReader::ForEachBandKey(
-    const std::function<void(uint64_t key, uint32_t doc)>& visit) const {
-  if (!(bands_ == settings_.bands && rows_ == settings_.rows)) {
-    for (const auto& [key, doc] : memory_keys_) visit(key, doc);
-    return;
-  }
-  for (size_t s = 0; s < segment_views_.size(); ++s) {
-    const Segment& segment = segment_views_[s];
-    for (uint64_t i = 0; i < segment.key_count(); ++i) {
-      uint32_t doc = segment_first_doc_[s] + segment.key_docs()[i];
-      if (is_live(doc)) visit(segment.keys()[i], doc);
-    }
-  }
 }
 
 absl::Status CheckIndexSettings(const IndexSettings& stored, const SignatureSettings& wanted,

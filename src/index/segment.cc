@@ -5,7 +5,7 @@
 #include <numeric>
 
 #include "absl/strings/str_format.h"
-#include "index/containment_keys.h"
+#include "index/key_table.h"
 #include "kindred/banding.h"
 
 namespace kindred::index {
@@ -14,27 +14,6 @@ namespace {
 bool AllZero(std::string_view bytes) {
   return std::all_of(bytes.begin(), bytes.end(), [](char c) { return c == 0; });
 }
-
-// The sorted (key, local doc) table of `docs`: the stored banding's keys,
-// and the containment keys when the settings store them.
-std::vector<std::pair<uint64_t, uint32_t>> BandKeyTable(absl::Span<const SegmentDocument> docs,
-                                                        const IndexSettings& settings) {
-  std::shared_ptr<const ContainmentPlan> plan;
-  if (settings.containment.stored()) plan = PlanOf(settings.containment, settings.signature.perms);
-  std::vector<uint64_t> keys;
-  std::vector<std::pair<uint64_t, uint32_t>> table;
-  for (uint32_t i = 0; i < docs.size(); ++i) {
-    DocumentKeys(settings, plan.get(), docs[i].signature,
-                 static_cast<uint32_t>(docs[i].shingles.size()), &keys);
-    for (uint64_t key : keys) table.emplace_back(key, i);
-  }
-  std::sort(table.begin(), table.end());
-  return table;
-}
-
-}  // namespace
-
-namespace {
 
 // Writes document `i` (its doc_table record, id, signature and shingle set)
 // into `body`, laid out per `layout`; `shingle_end` holds the prefix sums of
@@ -62,8 +41,7 @@ void WriteDocument(const SegmentDocument& doc, uint32_t i, const SectionLayout& 
 }
 
 // Writes the id order, band-key and retired tables into `body`.
-void WriteTables(absl::Span<const SegmentDocument> docs,
-                 absl::Span<const std::pair<uint64_t, uint32_t>> keys,
+void WriteTables(absl::Span<const SegmentDocument> docs, absl::Span<const KeyRow> keys,
                  absl::Span<const uint64_t> retired, const SectionLayout& layout, char* body) {
   std::vector<uint32_t> order(docs.size());
   std::iota(order.begin(), order.end(), 0);
@@ -91,7 +69,9 @@ EncodedSegment EncodeSegment(uint32_t segment_number, uint64_t first_doc,
     shingle_end[i + 1] = shingle_end[i] + EncodedShingleSetLength(docs[i].shingles);
   }
   header.shingle_bytes = shingle_end[count];
-  auto keys = BandKeyTable(docs, settings);
+  const KeyTable keys = BuildKeyTable(StoredKeyPlan(settings), 0, count, [&](uint32_t i) {
+    return KeyedDocument{docs[i].signature, static_cast<uint32_t>(docs[i].shingles.size())};
+  });
   header.key_count = keys.size();
   SectionLayout layout;
   ComputeLayout(header, settings.signature.perms, UINT64_MAX, &layout);
