@@ -9,6 +9,7 @@
 #include <set>
 #include <tuple>
 
+#include "core/parallel.h"
 #include "testlib/similar_sets.h"
 
 namespace kindred {
@@ -208,6 +209,57 @@ TEST_CASE("Grouping around keepers matches a plain scan on random graphs", "[gro
           if (member == groups[g].keeper) continue;
           CHECK(seen.count({std::min(member, groups[g].keeper), std::max(member, groups[g].keeper)}));
         }
+      }
+    }
+  }
+}
+
+// Grouping sorts with ParallelSort; on its own first: what std::sort gives,
+// for sizes around the piece size and any thread count.
+TEST_CASE("A parallel sort gives what std::sort gives", "[groups]") {
+  testing::SplitMix64 random(5);
+  for (size_t n : {size_t{0}, size_t{1}, kParallelSortPiece - 1, 2 * kParallelSortPiece + 3,
+                   5 * kParallelSortPiece + 1}) {
+    std::vector<uint64_t> values(n);
+    for (uint64_t& value : values) value = random.Between(0, n / 2 + 1);  // repeats
+    std::vector<uint64_t> want = values;
+    std::sort(want.begin(), want.end());
+    for (int threads : {1, 2, 3, 7}) {
+      std::vector<uint64_t> got = values;
+      ParallelSort(got.begin(), got.end(), std::less<uint64_t>(), threads);
+      CHECK(got == want);
+    }
+  }
+}
+
+// Enough pairs that grouping sorts and numbers them on several threads.
+TEST_CASE("Grouping on several threads gives the groups of one", "[groups]") {
+  testing::SplitMix64 random(17);
+  const size_t n = 30000;
+  std::vector<ScoredPair> pairs;
+  std::set<std::pair<uint32_t, uint32_t>> seen;
+  while (pairs.size() < 3 * kParallelSortPiece) {
+    const auto a = static_cast<uint32_t>(random.Between(0, n - 1));
+    const auto b = static_cast<uint32_t>(random.Between(0, n - 1));
+    if (a == b || !seen.insert({std::min(a, b), std::max(a, b)}).second) continue;
+    pairs.push_back(Pair(std::min(a, b), std::max(a, b)));
+  }
+  std::vector<KeepFacts> facts(n);
+  for (KeepFacts& f : facts) f.length = random.Between(0, 5);
+  const std::vector<std::vector<uint32_t>> components = ComponentsByBfs(n, pairs);
+  for (Grouping grouping : {Grouping::kComponents, Grouping::kKeepers}) {
+    const std::vector<Group> one = GroupPairs(pairs, facts, KeepPolicy::kLongest, grouping, 1);
+    if (grouping == Grouping::kComponents) {
+      REQUIRE(one.size() == components.size());
+      for (size_t g = 0; g < one.size(); ++g) CHECK(one[g].members == components[g]);
+    }
+    for (int threads : {2, 3, 4}) {
+      const std::vector<Group> many =
+          GroupPairs(pairs, facts, KeepPolicy::kLongest, grouping, threads);
+      REQUIRE(many.size() == one.size());
+      for (size_t g = 0; g < one.size(); ++g) {
+        CHECK(many[g].keeper == one[g].keeper);
+        CHECK(many[g].members == one[g].members);
       }
     }
   }

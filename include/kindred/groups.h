@@ -65,8 +65,11 @@ struct Group {
 
 // Groups `pairs` over documents 0..facts.size()-1. Returns the groups of two
 // or more members, ordered by their smallest member; members ascending.
+// Works on up to `threads` threads (the caller's among them); the groups
+// are the same for any count.
 std::vector<Group> GroupPairs(absl::Span<const ScoredPair> pairs, absl::Span<const KeepFacts> facts,
-                              KeepPolicy policy, Grouping grouping = Grouping::kComponents);
+                              KeepPolicy policy, Grouping grouping = Grouping::kComponents,
+                              int threads = 1);
 
 }  // namespace kindred
 

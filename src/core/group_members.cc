@@ -3,6 +3,7 @@
 
 #include <algorithm>
 
+#include "core/parallel.h"
 #include "kindred/candidates.h"
 #include "kindred/signer.h"
 #include "kindred/sweep.h"
@@ -33,7 +34,7 @@ void AppendOrdered(uint32_t x, uint32_t y, const ScoredPair& scored, std::vector
 
 std::vector<ScoredPair> ExpandGroups(const SignedCorpus& corpus, const GroupMembers& groups,
                                      absl::Span<const ScoredPair> rep_pairs,
-                                     const MatchSettings& match) {
+                                     const MatchSettings& match, int threads) {
   // The pairs counted first, so that `out` is allocated once (growing it
   // by doubling copied it and faulted in fresh pages, on one thread).
   size_t count = 0;
@@ -68,28 +69,26 @@ std::vector<ScoredPair> ExpandGroups(const SignedCorpus& corpus, const GroupMemb
       }
     }
   }
-  std::sort(out.begin(), out.end(), ByDocuments);
+  ParallelSort(out.begin(), out.end(), ByDocuments, threads);  // pairs are distinct
   return out;
 }
 
 std::vector<uint32_t> RepresentativesToRead(const SignedCorpus& corpus,
                                             absl::Span<const uint64_t> pairs) {
-  std::vector<uint32_t> reps;
-  reps.reserve(2 * pairs.size());
+  // Marks over the corpus, not a sort of the pairs' ends: a corpus of
+  // duplicates has many more candidate pairs than documents.
+  std::vector<uint8_t> needed(corpus.size(), 0);
   for (PackedPair pair : pairs) {
-    reps.push_back(corpus.representative(PairFirst(pair)));
-    reps.push_back(corpus.representative(PairSecond(pair)));
+    needed[corpus.representative(PairFirst(pair))] = 1;
+    needed[corpus.representative(PairSecond(pair))] = 1;
   }
+  std::vector<uint32_t> reps;
   for (size_t doc = 0; doc < corpus.size(); ++doc) {
-    if (corpus.group_size(doc) >= 2 && corpus.shingle_count(doc) > 0) {
+    const bool group = corpus.group_size(doc) >= 2 && corpus.shingle_count(doc) > 0;
+    if ((needed[doc] != 0 || group) && !corpus.has_shingles(doc)) {
       reps.push_back(static_cast<uint32_t>(doc));
     }
   }
-  std::sort(reps.begin(), reps.end());
-  reps.erase(std::unique(reps.begin(), reps.end()), reps.end());
-  reps.erase(std::remove_if(reps.begin(), reps.end(),
-                            [&](uint32_t rep) { return corpus.has_shingles(rep); }),
-             reps.end());
   return reps;
 }
 

@@ -39,10 +39,10 @@ struct GroupMembers {
 // `match` (Jaccard 1, no intersection needed; the signature estimate of the
 // representative with itself). Requires the signature of every such
 // representative. Ascending (a, b): the pairs a search over every document
-// confirms.
+// confirms. Sorts on up to `threads` threads; the same for any count.
 std::vector<ScoredPair> ExpandGroups(const SignedCorpus& corpus, const GroupMembers& groups,
                                      absl::Span<const ScoredPair> rep_pairs,
-                                     const MatchSettings& match);
+                                     const MatchSettings& match, int threads = 1);
 
 // The representatives whose sets verification needs: those in
 // `rep_pairs` (pairs of documents, or of representatives) and those of

@@ -4,6 +4,7 @@
 #include <numeric>
 
 #include "absl/strings/str_cat.h"
+#include "core/parallel.h"
 
 namespace kindred {
 namespace {
@@ -50,14 +51,13 @@ bool Better(const KeepFacts& candidate, const KeepFacts& best, KeepPolicy policy
 }
 
 // The documents of `pairs`, ascending, without repeats.
-std::vector<uint32_t> PairedDocuments(absl::Span<const ScoredPair> pairs) {
-  std::vector<uint32_t> docs;
-  docs.reserve(2 * pairs.size());
-  for (const ScoredPair& pair : pairs) {
-    docs.push_back(pair.a);
-    docs.push_back(pair.b);
+std::vector<uint32_t> PairedDocuments(absl::Span<const ScoredPair> pairs, int threads) {
+  std::vector<uint32_t> docs(2 * pairs.size());
+  for (size_t i = 0; i < pairs.size(); ++i) {
+    docs[2 * i] = pairs[i].a;
+    docs[2 * i + 1] = pairs[i].b;
   }
-  std::sort(docs.begin(), docs.end());
+  ParallelSort(docs.begin(), docs.end(), std::less<uint32_t>(), threads);
   docs.erase(std::unique(docs.begin(), docs.end()), docs.end());
   return docs;
 }
@@ -66,20 +66,32 @@ uint32_t IndexOf(const std::vector<uint32_t>& docs, uint32_t doc) {
   return static_cast<uint32_t>(std::lower_bound(docs.begin(), docs.end(), doc) - docs.begin());
 }
 
+// The two documents of each pair as indices into `docs` (PairedDocuments):
+// pair i is (ends[2i], ends[2i + 1]).
+std::vector<uint32_t> PairEnds(absl::Span<const ScoredPair> pairs,
+                               const std::vector<uint32_t>& docs, int threads) {
+  std::vector<uint32_t> ends(2 * pairs.size());
+  ParallelFor(pairs.size(), threads, [&](size_t begin, size_t end, int) {
+    for (size_t i = begin; i < end; ++i) {
+      ends[2 * i] = IndexOf(docs, pairs[i].a);
+      ends[2 * i + 1] = IndexOf(docs, pairs[i].b);
+    }
+  });
+  return ends;
+}
+
 // Groups around keepers (Grouping::kKeepers). `docs` from PairedDocuments.
-std::vector<Group> GroupAroundKeepers(absl::Span<const ScoredPair> pairs,
-                                      absl::Span<const KeepFacts> facts, KeepPolicy policy,
-                                      const std::vector<uint32_t>& docs) {
+// `ends` from PairEnds.
+std::vector<Group> GroupAroundKeepers(absl::Span<const KeepFacts> facts, KeepPolicy policy,
+                                      const std::vector<uint32_t>& docs,
+                                      const std::vector<uint32_t>& ends) {
   // Partners of each document, as compact indices (CSR).
   std::vector<uint32_t> start(docs.size() + 1, 0);
-  for (const ScoredPair& pair : pairs) {
-    ++start[IndexOf(docs, pair.a) + 1];
-    ++start[IndexOf(docs, pair.b) + 1];
-  }
+  for (const uint32_t end : ends) ++start[end + 1];
   for (size_t i = 1; i < start.size(); ++i) start[i] += start[i - 1];
   std::vector<uint32_t> partners(start.back()), fill(start.begin(), start.end() - 1);
-  for (const ScoredPair& pair : pairs) {
-    const uint32_t a = IndexOf(docs, pair.a), b = IndexOf(docs, pair.b);
+  for (size_t i = 0; i < ends.size(); i += 2) {
+    const uint32_t a = ends[i], b = ends[i + 1];
     partners[fill[a]++] = b;
     partners[fill[b]++] = a;
   }
@@ -145,15 +157,16 @@ const char* KeepPolicyName(KeepPolicy policy) {
 }
 
 std::vector<Group> GroupPairs(absl::Span<const ScoredPair> pairs, absl::Span<const KeepFacts> facts,
-                              KeepPolicy policy, Grouping grouping) {
+                              KeepPolicy policy, Grouping grouping, int threads) {
   // Only documents in a pair can be in a group: the union-find runs over
   // them alone (numbered in document order, so roots stay the smallest
   // members), and the work and memory follow the pairs, not the corpus.
-  const std::vector<uint32_t> docs = PairedDocuments(pairs);
-  if (grouping == Grouping::kKeepers) return GroupAroundKeepers(pairs, facts, policy, docs);
-  const auto index_of = [&docs](uint32_t doc) { return IndexOf(docs, doc); };
+  // Sorting and numbering run on all threads, the union-find on one.
+  const std::vector<uint32_t> docs = PairedDocuments(pairs, threads);
+  const std::vector<uint32_t> ends = PairEnds(pairs, docs, threads);
+  if (grouping == Grouping::kKeepers) return GroupAroundKeepers(facts, policy, docs, ends);
   UnionFind components(docs.size());
-  for (const ScoredPair& pair : pairs) components.Unite(index_of(pair.a), index_of(pair.b));
+  for (size_t i = 0; i < ends.size(); i += 2) components.Unite(ends[i], ends[i + 1]);
 
   // Visiting documents in order yields groups ordered by their smallest
   // member, members ascending.

@@ -22,7 +22,8 @@ Banding BandingFor(const SweepOptions& options) {
 }
 // Groups result->pairs and fills the counts of result->stats.
 void GroupAndCount(const SignedCorpus& corpus, const SweepOptions& options, SweepResult* result) {
-  result->groups = GroupPairs(result->pairs, corpus.all_facts(), options.keep, options.grouping);
+  result->groups = GroupPairs(result->pairs, corpus.all_facts(), options.keep, options.grouping,
+                              std::max(1, options.sign.threads));
   SweepStats& stats = result->stats;
   stats.confirmed_pairs = result->pairs.size();
   stats.groups = result->groups.size();
@@ -136,7 +137,8 @@ absl::Status MatchLeanCorpus(const CorpusReader& reader, const SweepOptions& opt
   }
   result->pairs = VerifyPairs(corpus, candidates->pairs, options.match, threads);
   if (!candidates->expanded) {
-    result->pairs = ExpandGroups(corpus, GroupMembers(corpus), result->pairs, options.match);
+    result->pairs =
+        ExpandGroups(corpus, GroupMembers(corpus), result->pairs, options.match, threads);
   }
   GroupAndCount(corpus, options, result);
   stats.match_seconds = SecondsSince(start);
