@@ -58,9 +58,18 @@ std::vector<BandKeyTable> PartitionBandKeys(const BandKeyTable& table, uint32_t 
 // of that partition from every shard).
 BandKeyTable MergeBandKeys(absl::Span<const BandKeyTable> tables);
 
+// The table in the current format (version 2: rows grouped by band, keys by
+// differences, documents from the table's least). Requires a sorted table.
 std::string SerializeBandKeyTable(const BandKeyTable& table);
-// Errors: BadInput when `bytes` are not a whole, intact band-key table, or
-// its rows are not sorted.
+
+// The same bytes as SerializeBandKeyTable of each of
+// PartitionBandKeys(table, partitions), without building those tables.
+// Requires a sorted table.
+std::vector<std::string> SerializeBandKeyPartitions(const BandKeyTable& table,
+                                                    uint32_t partitions);
+
+// Reads versions 1 and 2. Errors: BadInput when `bytes` are not a whole,
+// intact band-key table, or its rows are not sorted.
 absl::StatusOr<BandKeyTable> ParseBandKeyTable(std::string_view bytes);
 
 }  // namespace kindred

@@ -7,7 +7,7 @@
 //
 //   sign_shard   a shard -> SignShard (lean, documents numbered 0.. in the
 //                shard) -> its document table and its band-key table cut
-//                into P partitions (PartitionBandKeys)
+//                into P partitions (SerializeBandKeyPartitions)
 //   candidates   one partition's band-key tables from every shard, their
 //                documents numbered on by the shards' offsets ->
 //                MergeBandKeys -> FindPartitionCandidates, cut into V verify
@@ -74,9 +74,7 @@ py::tuple SignShardStage(const std::string& path, const py::handle& settings_obj
       status = shard.status();
       if (status.ok()) {
         table = SerializeDocumentTable(shard->documents);
-        for (const BandKeyTable& part : PartitionBandKeys(shard->band_keys, partitions)) {
-          parts.push_back(SerializeBandKeyTable(part));
-        }
+        parts = SerializeBandKeyPartitions(shard->band_keys, partitions);
       }
     }
   }

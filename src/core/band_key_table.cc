@@ -12,7 +12,126 @@ namespace {
 
 constexpr std::string_view kTag = "BKEY";
 constexpr std::string_view kWhat = "band-key table";
-constexpr size_t kRowBytes = 4 + 8 + 4;
+// Version 2 is written; versions 1 and 2 are read (RECORDS.md).
+constexpr uint32_t kVersion = 2;
+constexpr size_t kRowBytes = 4 + 8 + 4;  // version 1
+
+// Bytes for numbers up to `value` (1 to 4).
+int WidthOf(uint32_t value) {
+  int width = 1;
+  while (width < 4 && (value >> (8 * width)) != 0) ++width;
+  return width;
+}
+
+// The low bytes of a key difference written as they are, the rest as a
+// varint: the most whole bytes under the band's mean difference (at most 7),
+// so that what is left of a difference mostly fits one varint byte.
+int LowBytesFor(uint64_t mean) {
+  int low = 0;
+  while (low < 7 && (mean >> (8 * (low + 1))) != 0) ++low;
+  return low;
+}
+
+// The version 2 payload of `count` sorted rows, row i being at(i).
+template <typename At>
+void WriteRows(size_t count, const At& at, internal::RecordBuilder* out) {
+  uint32_t base = count == 0 ? 0 : UINT32_MAX, top = 0;
+  for (size_t i = 0; i < count; ++i) {
+    base = std::min(base, at(i).document);
+    top = std::max(top, at(i).document);
+  }
+  const int width = count == 0 ? 0 : WidthOf(top - base);
+  out->Reserve(13 + count * (2 + 6 + width));
+  out->U64(count);
+  out->U32(base);
+  out->U8(static_cast<uint8_t>(width));
+  for (size_t begin = 0; begin < count;) {
+    const uint32_t band = at(begin).band;
+    size_t end = begin + 1;
+    while (end < count && at(end).band == band) ++end;
+    // The differences from 0 through the band's keys add up to its last key.
+    const int low = LowBytesFor(at(end - 1).key / (end - begin));
+    out->Varint(band);
+    out->Varint(end - begin);
+    out->U8(static_cast<uint8_t>(low));
+    uint64_t previous = 0;
+    for (size_t i = begin; i < end; ++i) {
+      const BandKeyRecord& row = at(i);
+      const uint64_t difference = row.key - previous;
+      previous = row.key;
+      out->Varint(difference >> (8 * low));
+      out->Low(difference, low);
+      out->Low(row.document - base, width);
+    }
+    begin = end;
+  }
+}
+
+// Version 1: fixed 16-byte rows.
+absl::Status ReadRowsV1(internal::RecordParser& in, BandKeyTable* table) {
+  uint64_t count = 0;
+  if (!in.U64(&count)) return absl::OkStatus();  // Finish() says why
+  if (count != in.remaining() / kRowBytes || in.remaining() % kRowBytes != 0) {
+    return in.Corrupt(absl::StrCat("counts ", count, " rows in ", in.remaining(), " bytes"));
+  }
+  table->records.resize(count);
+  for (size_t i = 0; i < count; ++i) {
+    BandKeyRecord& record = table->records[i];
+    in.U32(&record.band);
+    in.U64(&record.key);
+    in.U32(&record.document);
+    if (i > 0 && record < table->records[i - 1]) {
+      return in.Corrupt(absl::StrCat("rows out of order at row ", i + 1));
+    }
+  }
+  return absl::OkStatus();
+}
+
+// Version 2: bands in groups, keys by differences, documents from a base.
+absl::Status ReadRowsV2(internal::RecordParser& in, BandKeyTable* table) {
+  uint64_t count = 0;
+  uint32_t base = 0;
+  uint8_t width = 0;
+  if (!(in.U64(&count) && in.U32(&base) && in.U8(&width))) return absl::OkStatus();
+  if (count == 0 ? (width != 0 || base != 0) : (width < 1 || width > 4)) {
+    return in.Corrupt(absl::StrCat("documents of ", width, " bytes in ", count, " rows"));
+  }
+  if (count > in.remaining() / (1 + width)) {
+    return in.Corrupt(absl::StrCat("counts ", count, " rows in ", in.remaining(), " bytes"));
+  }
+  table->records.resize(count);
+  const auto out_of_order = [&in](size_t row) {
+    return in.Corrupt(absl::StrCat("rows out of order at row ", row + 1));
+  };
+  for (size_t i = 0; i < count;) {
+    uint64_t band = 0, rows = 0;
+    uint8_t low = 0;
+    if (!(in.Varint(&band) && in.Varint(&rows) && in.U8(&low))) return absl::OkStatus();
+    if (band > UINT32_MAX || (i > 0 && band <= table->records[i - 1].band)) return out_of_order(i);
+    if (rows == 0 || rows > count - i || low > 7) {
+      return in.Corrupt(absl::StrCat("a band of ", rows, " rows with ", low, " low bytes at row ",
+                                     i + 1, " of ", count));
+    }
+    uint64_t key = 0;
+    for (const size_t end = i + rows; i < end; ++i) {
+      uint64_t high = 0, bits = 0, document = 0;
+      if (!(in.Varint(&high) && in.Low(low, &bits) && in.Low(width, &document))) {
+        return absl::OkStatus();
+      }
+      if (low > 0 && (high >> (64 - 8 * low)) != 0) return out_of_order(i);
+      const uint64_t difference = (high << (8 * low)) | bits;
+      document += base;
+      BandKeyRecord& record = table->records[i];
+      record = {static_cast<uint32_t>(band), key + difference, static_cast<uint32_t>(document)};
+      if (difference > ~key || document > UINT32_MAX ||
+          (difference == 0 && i > 0 && record < table->records[i - 1])) {
+        return out_of_order(i);
+      }
+      key += difference;
+    }
+  }
+  return absl::OkStatus();
+}
 
 }  // namespace
 
@@ -74,36 +193,44 @@ BandKeyTable MergeBandKeys(absl::Span<const BandKeyTable> tables) {
 }
 
 std::string SerializeBandKeyTable(const BandKeyTable& table) {
-  internal::RecordBuilder out(kTag);
-  out.Reserve(8 + table.records.size() * kRowBytes);
-  out.U64(table.records.size());
-  for (const BandKeyRecord& record : table.records) {
-    out.U32(record.band);
-    out.U64(record.key);
-    out.U32(record.document);
-  }
+  internal::RecordBuilder out(kTag, kVersion);
+  WriteRows(table.records.size(), [&](size_t i) -> const BandKeyRecord& { return table.records[i]; },
+            &out);
   return std::move(out).Finish();
 }
 
-absl::StatusOr<BandKeyTable> ParseBandKeyTable(std::string_view bytes) {
-  internal::RecordParser in(bytes, kTag, kWhat);
-  BandKeyTable table;
-  uint64_t count = 0;
-  if (in.U64(&count)) {
-    if (count != in.remaining() / kRowBytes || in.remaining() % kRowBytes != 0) {
-      return in.Corrupt(absl::StrCat("counts ", count, " rows in ", in.remaining(), " bytes"));
-    }
-    table.records.resize(count);
-    for (size_t i = 0; i < count; ++i) {
-      BandKeyRecord& record = table.records[i];
-      in.U32(&record.band);
-      in.U64(&record.key);
-      in.U32(&record.document);
-      if (i > 0 && record < table.records[i - 1]) {
-        return in.Corrupt(absl::StrCat("rows out of order at row ", i + 1));
-      }
+std::vector<std::string> SerializeBandKeyPartitions(const BandKeyTable& table,
+                                                    uint32_t partitions) {
+  const uint32_t parts = std::max<uint32_t>(partitions, 1);
+  // Each partition's rows as indices into the table (in the table's order),
+  // encoded from there: no copy of the rows themselves.
+  std::vector<std::vector<uint32_t>> rows(parts);
+  if (parts == 1) {
+    rows[0].resize(table.records.size());
+    for (size_t i = 0; i < rows[0].size(); ++i) rows[0][i] = static_cast<uint32_t>(i);
+  } else {
+    for (auto& part : rows) part.reserve(table.records.size() / parts * 9 / 8 + 16);
+    for (size_t i = 0; i < table.records.size(); ++i) {
+      rows[BandKeyPartition(table.records[i].key, parts)].push_back(static_cast<uint32_t>(i));
     }
   }
+  std::vector<std::string> out;
+  out.reserve(parts);
+  for (const std::vector<uint32_t>& part : rows) {
+    internal::RecordBuilder bytes(kTag, kVersion);
+    WriteRows(part.size(),
+              [&](size_t i) -> const BandKeyRecord& { return table.records[part[i]]; }, &bytes);
+    out.push_back(std::move(bytes).Finish());
+  }
+  return out;
+}
+
+absl::StatusOr<BandKeyTable> ParseBandKeyTable(std::string_view bytes) {
+  internal::RecordParser in(bytes, kTag, kWhat, 1, kVersion);
+  BandKeyTable table;
+  absl::Status rows = in.version() == 1 ? ReadRowsV1(in, &table) : ReadRowsV2(in, &table);
+  if (!in.status().ok()) return in.status();
+  if (!rows.ok()) return rows;
   if (absl::Status status = in.Finish(); !status.ok()) return status;
   return table;
 }
