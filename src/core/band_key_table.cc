@@ -56,12 +56,20 @@ void WriteRows(size_t count, const At& at, internal::RecordBuilder* out) {
     out->U8(static_cast<uint8_t>(low));
     uint64_t previous = 0;
     for (size_t i = begin; i < end; ++i) {
+      // A row is put together here and appended at once (at most 10 + 7 + 4
+      // bytes).
+      char row_bytes[24];
+      char* next = row_bytes;
       const BandKeyRecord& row = at(i);
       const uint64_t difference = row.key - previous;
       previous = row.key;
-      out->Varint(difference >> (8 * low));
-      out->Low(difference, low);
-      out->Low(row.document - base, width);
+      uint64_t high = difference >> (8 * low);
+      for (; high >= 0x80; high >>= 7) *next++ = static_cast<char>(high | 0x80);
+      *next++ = static_cast<char>(high);
+      for (int b = 0; b < low; ++b) *next++ = static_cast<char>(difference >> (8 * b));
+      const uint32_t document = row.document - base;
+      for (int b = 0; b < width; ++b) *next++ = static_cast<char>(document >> (8 * b));
+      out->Raw(std::string_view(row_bytes, next - row_bytes));
     }
     begin = end;
   }

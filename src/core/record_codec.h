@@ -34,6 +34,7 @@ class RecordBuilder {
     }
     bytes_.push_back(static_cast<char>(value));
   }
+  void Raw(std::string_view bytes) { bytes_.append(bytes); }
   // The low `count` (<= 8) bytes of `value`, little-endian.
   void Low(uint64_t value, int count) {
     for (int i = 0; i < count; ++i) bytes_.push_back(static_cast<char>(value >> (8 * i)));

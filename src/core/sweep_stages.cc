@@ -2,6 +2,7 @@
 #include "kindred/sweep_stages.h"
 
 #include <algorithm>
+#include <bit>
 #include <utility>
 
 #include "absl/strings/str_cat.h"
@@ -65,6 +66,42 @@ void PairBucket(absl::Span<const BandKeyRecord> bucket, uint64_t max_bucket,
   }
 }
 
+// Appends the rows of `band` to *rows, sorted by (key, document): document
+// i's key is column[i] (none when kNoBandKey or the document is empty),
+// numbered first + i. A counting sort on the keys' top bits, then a sort of
+// each bucket: band keys are hashes, so a bucket holds a few rows.
+void AppendBandRows(uint32_t band, absl::Span<const uint64_t> column,
+                    const std::vector<DocumentRecord>& documents, uint32_t first,
+                    std::vector<uint32_t>* scratch, std::vector<BandKeyRecord>* rows) {
+  const auto has = [&](size_t i) {
+    return column[i] != kNoBandKey && documents[i].shingle_count != 0;
+  };
+  const int bits = std::clamp(static_cast<int>(std::bit_width(column.size())) - 3, 1, 16);
+  const int shift = 64 - bits;
+  std::vector<uint32_t> ends((size_t{1} << bits) + 1, 0);
+  for (size_t i = 0; i < column.size(); ++i) {
+    if (has(i)) ++ends[(column[i] >> shift) + 1];
+  }
+  for (size_t b = 1; b < ends.size(); ++b) ends[b] += ends[b - 1];
+  // The documents in bucket order, then their rows appended in that order
+  // (written once, not zeroed first).
+  std::vector<uint32_t>& order = *scratch;
+  order.resize(ends.back());
+  for (size_t i = 0; i < column.size(); ++i) {
+    if (has(i)) order[ends[column[i] >> shift]++] = static_cast<uint32_t>(i);
+  }
+  const size_t start = rows->size();
+  for (const uint32_t i : order) rows->push_back({band, column[i], first + i});
+  BandKeyRecord* out = rows->data() + start;
+  // Now ends[b] is the end of bucket b; documents ascend within a bucket.
+  size_t begin = 0;
+  for (size_t b = 0; b + 1 < ends.size(); ++b) {
+    const size_t end = ends[b];
+    std::sort(out + begin, out + end);
+    begin = end;
+  }
+}
+
 }  // namespace
 
 Banding ResolveBanding(const MatchSettings& match, uint32_t perms) {
@@ -81,43 +118,44 @@ absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSetti
   SignedShard shard;
   absl::StatusOr<SignedCorpus> corpus = SignWhole(reader, settings, banding, options, &shard.stats);
   if (!corpus.ok()) return corpus.status();
+  const size_t count = corpus->size();
   shard.documents.first_document = options.first_document;
-  shard.documents.documents.resize(corpus->size());
+  shard.documents.documents.resize(count);
   shard.sets = SetStore(settings.perms);
-  std::vector<uint64_t> keys(banding.bands);
-  // Rows band by band (documents ascending in each), so that sorting each
-  // band by key sorts the table; reserved, not grown by doubling.
-  std::vector<std::vector<BandKeyRecord>> bands(banding.bands);
-  for (std::vector<BandKeyRecord>& band : bands) band.reserve(corpus->size());
-  for (size_t doc = 0; doc < corpus->size(); ++doc) {
-    const uint32_t number = options.first_document + static_cast<uint32_t>(doc);
+  size_t with_shingles = 0;
+  for (size_t doc = 0; doc < count; ++doc) {
     DocumentRecord& record = shard.documents.documents[doc];
     record.id = corpus->id(doc);
     record.facts = corpus->facts(doc);
     record.origin = corpus->origin(doc);
     record.origin.input += options.first_input;
     record.shingle_count = corpus->shingle_count(doc);
-    if (options.keep_sets) shard.sets.Add(number, corpus->shingles(doc), corpus->signature(doc));
-    if (record.shingle_count == 0) continue;
+    if (record.shingle_count != 0) ++with_shingles;
     if (options.keep_sets) {
-      BandKeys(corpus->signature(doc), banding, absl::MakeSpan(keys));
-    } else {
-      for (uint32_t band = 0; band < banding.bands; ++band)
-        keys[band] = corpus->band_key(doc, band);
-    }
-    for (uint32_t band = 0; band < banding.bands; ++band) {
-      if (keys[band] != kNoBandKey) bands[band].push_back({band, keys[band], number});
+      shard.sets.Add(options.first_document + static_cast<uint32_t>(doc), corpus->shingles(doc),
+                     corpus->signature(doc));
     }
   }
-  size_t rows = 0;
-  for (const std::vector<BandKeyRecord>& band : bands) rows += band.size();
-  shard.band_keys.records.reserve(rows);
-  for (std::vector<BandKeyRecord>& band : bands) {
-    std::sort(band.begin(), band.end(), [](const BandKeyRecord& x, const BandKeyRecord& y) {
-      return x.key != y.key ? x.key < y.key : x.document < y.document;
-    });
-    shard.band_keys.records.insert(shard.band_keys.records.end(), band.begin(), band.end());
-    std::vector<BandKeyRecord>().swap(band);
+  // The keys band by band (a lean corpus holds them so; a full one's are
+  // computed from the signatures), each band's rows sorted into place.
+  std::vector<uint64_t> computed;
+  if (options.keep_sets) {
+    computed.assign(size_t{banding.bands} * count, kNoBandKey);
+    std::vector<uint64_t> keys(banding.bands);
+    for (size_t doc = 0; doc < count; ++doc) {
+      if (corpus->shingle_count(doc) == 0) continue;
+      BandKeys(corpus->signature(doc), banding, absl::MakeSpan(keys));
+      for (uint32_t band = 0; band < banding.bands; ++band) computed[band * count + doc] = keys[band];
+    }
+  }
+  shard.band_keys.records.reserve(with_shingles * banding.bands);
+  std::vector<uint32_t> scratch;
+  for (uint32_t band = 0; band < banding.bands; ++band) {
+    const absl::Span<const uint64_t> column =
+        options.keep_sets ? absl::MakeConstSpan(computed).subspan(band * count, count)
+                          : corpus->band_column(band);
+    AppendBandRows(band, column, shard.documents.documents, options.first_document, &scratch,
+                   &shard.band_keys.records);
   }
   return shard;
 }
