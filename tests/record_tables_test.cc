@@ -92,6 +92,70 @@ TEST_CASE("Document tables round-trip and reject damage", "[records]") {
   CHECK(ParseDocumentTable(SerializeDocumentTable(DocumentTable{})).ok());
 }
 
+// A version 2 document table of one row: u32 first document 0, u64 count 1,
+// then what `row` appends.
+std::string DocumentBytes(const std::function<void(internal::RecordBuilder&)>& row) {
+  internal::RecordBuilder out("DOCS", 2);
+  out.U32(0);
+  out.U64(1);
+  row(out);
+  return std::move(out).Finish();
+}
+
+TEST_CASE("Document tables of version 2 use varints, and version 1 is still read", "[records]") {
+  const DocumentTable table = SomeDocuments();
+  const std::string bytes = SerializeDocumentTable(table);
+  CHECK(bytes.substr(8, 4) == std::string("\x02\0\0\0", 4));
+  // Row 1: id 1+1, length 1, flags 1, input 1, line 1, offset 1, shingles 1.
+  CHECK(bytes.size() < 24 + 12 + 8 + 3 * 18 + 2 * 8);
+  internal::RecordBuilder v1("DOCS", 1);
+  v1.U32(table.first_document);
+  v1.U64(table.documents.size());
+  for (const DocumentRecord& doc : table.documents) {
+    v1.Bytes(doc.id);
+    v1.U64(doc.facts.length);
+    v1.F64(doc.facts.priority);
+    v1.U8(doc.facts.has_priority ? 1 : 0);
+    v1.U32(doc.origin.input);
+    v1.U64(doc.origin.line);
+    v1.U64(doc.origin.offset);
+    v1.U32(doc.shingle_count);
+  }
+  auto old = ParseDocumentTable(std::move(v1).Finish());
+  REQUIRE(old.ok());
+  CHECK(*old == table);
+
+  const auto error = [](const std::string& b) {
+    const absl::Status status = ParseDocumentTable(b).status();
+    CHECK(KindOf(status) == ErrorKind::kBadInput);
+    return std::string(status.message());
+  };
+  // id "a", length 3, flags, [priority], input, line, [offset], shingles.
+  CHECK(ParseDocumentTable(DocumentBytes([](auto& out) {
+          out.Varint(1), out.Raw("a"), out.Varint(3), out.U8(1 | 2), out.F64(-2.5);
+          out.Varint(4), out.Varint(5), out.Varint(6), out.Varint(7);
+        }))->documents[0] == DocumentRecord{"a", {3, -2.5, true}, {4, 5, 6}, 7});
+  CHECK(error(DocumentBytes([](auto& out) {
+          out.Varint(1), out.Raw("a"), out.Varint(3), out.U8(8);
+          out.Varint(4), out.Varint(5), out.Varint(6), out.Varint(7);
+        })) == "document table: unknown flags 8 in a row");
+  CHECK(error(DocumentBytes([](auto& out) {
+          out.Varint(1), out.Raw("a"), out.Varint(3), out.U8(2), out.F64(0.0);
+          out.Varint(4), out.Varint(5), out.Varint(6), out.Varint(7);
+        })) == "document table: a priority of +0.0 written out");
+  CHECK(error(DocumentBytes([](auto& out) {
+          out.Varint(1), out.Raw("a"), out.Varint(3), out.U8(0);
+          out.Varint(4), out.Varint(5), out.Varint(~uint64_t{0}), out.Varint(7);
+        })) == "document table: an offset of 2^64-1 written out");
+  CHECK(error(DocumentBytes([](auto& out) {
+          out.Varint(1), out.Raw("a"), out.Varint(3), out.U8(4);
+          out.Varint(uint64_t{1} << 32), out.Varint(5), out.Varint(7);
+        })) == "document table: an input number or shingle count beyond 32 bits");
+  CHECK(error(DocumentBytes([](auto& out) {  // the id runs past the end
+          out.Varint(9), out.Raw("abcdef");
+        })) == "document table: payload ends inside a field (its counts are damaged)");
+}
+
 TEST_CASE("A record of another type or version is refused by name", "[records]") {
   const std::string keys = SerializeBandKeyTable(SomeBandKeys());
   const absl::Status wrong_type = ParseDocumentTable(keys).status();
@@ -99,9 +163,9 @@ TEST_CASE("A record of another type or version is refused by name", "[records]")
   CHECK(wrong_type.message() ==
         "document table: not a document table record (its first bytes are not \"KNDRDOCS\")");
   std::string newer = SerializeDocumentTable(SomeDocuments());
-  newer[8] = 2;  // version 2, checksum left as it was: the version is named first
+  newer[8] = 3;  // version 3, checksum left as it was: the version is named first
   CHECK(ParseDocumentTable(newer).status().message() ==
-        "document table: format version 2 (this build reads version 1)");
+        "document table: format version 3 (this build reads versions 1 to 2)");
 }
 
 TEST_CASE("The frame's bytes are fixed: header, little-endian fields, checksum", "[records]") {

@@ -70,6 +70,8 @@ class RecordParser {
   bool Low(int count, uint64_t* value);
   bool F64(double* value);
   bool Bytes(std::string* value);
+  // `count` bytes in place (valid while the record's bytes are).
+  bool Take(size_t count, const char** data);
   // The frame's format version (valid when status() is OK).
   uint32_t version() const { return version_; }
   // Bytes of payload not yet read.
@@ -81,8 +83,6 @@ class RecordParser {
   absl::Status Finish() const;
 
  private:
-  bool Take(size_t count, const char** data);
-
   std::string_view what_;
   std::string_view payload_;
   size_t position_ = 0;
