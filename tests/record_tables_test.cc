@@ -49,7 +49,8 @@ SetStore SomeSets() {
 }
 
 std::vector<ScoredPair> SomeScoredPairs() {
-  return {{0, 1, 10, 11, 12, 10.0 / 13, 0.75}, {0, 4, 3, 3, 3, 1.0, 1.0},
+  return {{0, 1, 10, 11, 12, 10.0 / 13, 0.75},
+          {0, 4, 3, 3, 3, 1.0, 1.0},
           {2, 3, 0, 0, 1, 0, std::numeric_limits<double>::denorm_min()}};
 }
 
@@ -292,7 +293,8 @@ TEST_CASE("Band-key tables of version 2 are compact, and version 1 is still read
   REQUIRE(old.ok());
   CHECK(*old == big);
 
-  CHECK(BandKeyError(BandKeyBytes(0, 0, 0, [](auto&) {}, 3)) ==
+  CHECK(BandKeyError(BandKeyBytes(
+            0, 0, 0, [](auto&) {}, 3)) ==
         "band-key table: format version 3 (this build reads versions 1 to 2)");
 }
 
@@ -315,41 +317,42 @@ TEST_CASE("A version 2 band-key table is read only when intact and sorted", "[re
 
   const std::string order = "band-key table: rows out of order at row 2";
   CHECK(BandKeyError(BandKeyBytes(2, 0, 1, [&](auto& out) {  // the same band twice
-    out.Varint(1), out.Varint(1), out.U8(0), row(out, 5, 0, 0, 0);
-    out.Varint(1), out.Varint(1), out.U8(0), row(out, 6, 0, 0, 0);
-  })) == order);
+          out.Varint(1), out.Varint(1), out.U8(0), row(out, 5, 0, 0, 0);
+          out.Varint(1), out.Varint(1), out.U8(0), row(out, 6, 0, 0, 0);
+        })) == order);
   CHECK(BandKeyError(BandKeyBytes(2, 0, 1, [&](auto& out) {  // an equal key, a smaller document
-    out.Varint(1), out.Varint(2), out.U8(0), row(out, 5, 0, 0, 3), row(out, 0, 0, 0, 2);
-  })) == order);
+          out.Varint(1), out.Varint(2), out.U8(0), row(out, 5, 0, 0, 3), row(out, 0, 0, 0, 2);
+        })) == order);
   CHECK(BandKeyError(BandKeyBytes(2, 0, 1, [&](auto& out) {  // a key past 2^64 - 1
-    out.Varint(1), out.Varint(2), out.U8(0), row(out, ~uint64_t{0}, 0, 0, 3), row(out, 1, 0, 0, 4);
-  })) == order);
+          out.Varint(1), out.Varint(2), out.U8(0), row(out, ~uint64_t{0}, 0, 0, 3),
+              row(out, 1, 0, 0, 4);
+        })) == order);
   CHECK(BandKeyError(BandKeyBytes(1, 0, 1, [&](auto& out) {  // a difference past 64 bits
-    out.Varint(1), out.Varint(1), out.U8(7), row(out, 256, 0, 7, 3);
-  })) == "band-key table: rows out of order at row 1");
+          out.Varint(1), out.Varint(1), out.U8(7), row(out, 256, 0, 7, 3);
+        })) == "band-key table: rows out of order at row 1");
   CHECK(BandKeyError(BandKeyBytes(1, ~uint32_t{0}, 1, [&](auto& out) {  // a document past 2^32
-    out.Varint(1), out.Varint(1), out.U8(0), row(out, 9, 0, 0, 1);
-  })) == "band-key table: rows out of order at row 1");
+          out.Varint(1), out.Varint(1), out.U8(0), row(out, 9, 0, 0, 1);
+        })) == "band-key table: rows out of order at row 1");
   CHECK(BandKeyError(BandKeyBytes(1, 0, 1, [&](auto& out) {
-    out.Varint(1), out.Varint(2), out.U8(0), row(out, 9, 0, 0, 1);
-  })) == "band-key table: a band of 2 rows with 0 low bytes at row 1 of 1");
+          out.Varint(1), out.Varint(2), out.U8(0), row(out, 9, 0, 0, 1);
+        })) == "band-key table: a band of 2 rows with 0 low bytes at row 1 of 1");
   CHECK(BandKeyError(BandKeyBytes(1, 0, 1, [&](auto& out) {
-    out.Varint(1), out.Varint(1), out.U8(8), row(out, 9, 0, 0, 1);
-  })) == "band-key table: a band of 1 rows with 8 low bytes at row 1 of 1");
+          out.Varint(1), out.Varint(1), out.U8(8), row(out, 9, 0, 0, 1);
+        })) == "band-key table: a band of 1 rows with 8 low bytes at row 1 of 1");
   CHECK(BandKeyError(BandKeyBytes(1, 0, 5, [](auto&) {})) ==
         "band-key table: documents of 5 bytes in 1 rows");
   CHECK(BandKeyError(BandKeyBytes(9, 0, 1, [&](auto& out) {
-    out.Varint(1), out.Varint(1), out.U8(0), row(out, 9, 0, 0, 1);
-  })) == "band-key table: counts 9 rows in 5 bytes");
+          out.Varint(1), out.Varint(1), out.U8(0), row(out, 9, 0, 0, 1);
+        })) == "band-key table: counts 9 rows in 5 bytes");
   // A varint longer than its shortest form: 5 as 0x85 0x00.
   CHECK(BandKeyError(BandKeyBytes(1, 0, 1, [&](auto& out) {
-    out.Varint(1), out.Varint(1), out.U8(0), out.U8(0x85), out.U8(0), out.U8(1);
-  })) == "band-key table: a varint longer than its shortest form or than 64 bits");
+          out.Varint(1), out.Varint(1), out.U8(0), out.U8(0x85), out.U8(0), out.U8(1);
+        })) == "band-key table: a varint longer than its shortest form or than 64 bits");
   CHECK(BandKeyError(BandKeyBytes(1, 0, 1, [&](auto& out) {  // 2^64 as a varint
-    out.Varint(1), out.Varint(1), out.U8(0);
-    for (int i = 0; i < 9; ++i) out.U8(0x80);
-    out.U8(2), out.U8(1);
-  })) == "band-key table: a varint longer than its shortest form or than 64 bits");
+          out.Varint(1), out.Varint(1), out.U8(0);
+          for (int i = 0; i < 9; ++i) out.U8(0x80);
+          out.U8(2), out.U8(1);
+        })) == "band-key table: a varint longer than its shortest form or than 64 bits");
 }
 
 TEST_CASE("Candidate pairs round-trip, merge and name their documents", "[records]") {

@@ -65,8 +65,7 @@ std::string SerializeBandKeyTable(const BandKeyTable& table);
 // The same bytes as SerializeBandKeyTable of each of
 // PartitionBandKeys(table, partitions), without building those tables.
 // Requires a sorted table.
-std::vector<std::string> SerializeBandKeyPartitions(const BandKeyTable& table,
-                                                    uint32_t partitions);
+std::vector<std::string> SerializeBandKeyPartitions(const BandKeyTable& table, uint32_t partitions);
 
 // Reads versions 1 and 2. Errors: BadInput when `bytes` are not a whole,
 // intact band-key table, or its rows are not sorted.

@@ -202,8 +202,9 @@ BandKeyTable MergeBandKeys(absl::Span<const BandKeyTable> tables) {
 
 std::string SerializeBandKeyTable(const BandKeyTable& table) {
   internal::RecordBuilder out(kTag, kVersion);
-  WriteRows(table.records.size(), [&](size_t i) -> const BandKeyRecord& { return table.records[i]; },
-            &out);
+  WriteRows(
+      table.records.size(), [&](size_t i) -> const BandKeyRecord& { return table.records[i]; },
+      &out);
   return std::move(out).Finish();
 }
 
@@ -226,8 +227,9 @@ std::vector<std::string> SerializeBandKeyPartitions(const BandKeyTable& table,
   out.reserve(parts);
   for (const std::vector<uint32_t>& part : rows) {
     internal::RecordBuilder bytes(kTag, kVersion);
-    WriteRows(part.size(),
-              [&](size_t i) -> const BandKeyRecord& { return table.records[part[i]]; }, &bytes);
+    WriteRows(
+        part.size(), [&](size_t i) -> const BandKeyRecord& { return table.records[part[i]]; },
+        &bytes);
     out.push_back(std::move(bytes).Finish());
   }
   return out;

@@ -152,8 +152,8 @@ absl::StatusOr<DocumentTable> JoinDocumentTables(std::vector<DocumentTable> part
     auto [it, fresh] = seen.emplace(doc.id, static_cast<uint32_t>(i));
     if (!fresh) {
       return BadInput(absl::StrCat("duplicate id \"", doc.id, "\" (", Place(doc.origin),
-                                   "; first seen at ",
-                                   Place(all.documents[it->second].origin), ")"));
+                                   "; first seen at ", Place(all.documents[it->second].origin),
+                                   ")"));
     }
   }
   return all;

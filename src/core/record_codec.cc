@@ -58,17 +58,18 @@ RecordParser::RecordParser(std::string_view bytes, std::string_view tag, std::st
     return;
   }
   if (bytes.substr(0, 4) != kMagic || bytes.substr(4, 4) != tag) {
-    status_ = Corrupt(absl::StrCat("not a ", std::string(what), " record (its first bytes are not \"",
-                                   std::string(kMagic), std::string(tag), "\")"));
+    status_ =
+        Corrupt(absl::StrCat("not a ", std::string(what), " record (its first bytes are not \"",
+                             std::string(kMagic), std::string(tag), "\")"));
     return;
   }
   const uint64_t version = GetLe(bytes.data() + 8, 4);
   if (version < oldest || version > newest) {
-    status_ = Corrupt(absl::StrCat(
-        "format version ", version, " (this build reads ",
-        oldest == newest ? absl::StrCat("version ", newest)
-                         : absl::StrCat("versions ", oldest, " to ", newest),
-        ")"));
+    status_ =
+        Corrupt(absl::StrCat("format version ", version, " (this build reads ",
+                             oldest == newest ? absl::StrCat("version ", newest)
+                                              : absl::StrCat("versions ", oldest, " to ", newest),
+                             ")"));
     return;
   }
   version_ = static_cast<uint32_t>(version);

@@ -39,7 +39,7 @@ class RecordBuilder {
   void Low(uint64_t value, int count) {
     for (int i = 0; i < count; ++i) bytes_.push_back(static_cast<char>(value >> (8 * i)));
   }
-  void F64(double value);  // its IEEE 754 bits
+  void F64(double value);              // its IEEE 754 bits
   void Bytes(std::string_view value);  // u32 length, then the bytes
   void Reserve(size_t payload_bytes) { bytes_.reserve(bytes_.size() + payload_bytes + 8); }
   // The whole record (header with the payload length, payload, checksum).

@@ -145,7 +145,8 @@ absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSetti
     for (size_t doc = 0; doc < count; ++doc) {
       if (corpus->shingle_count(doc) == 0) continue;
       BandKeys(corpus->signature(doc), banding, absl::MakeSpan(keys));
-      for (uint32_t band = 0; band < banding.bands; ++band) computed[band * count + doc] = keys[band];
+      for (uint32_t band = 0; band < banding.bands; ++band)
+        computed[band * count + doc] = keys[band];
     }
   }
   shard.band_keys.records.reserve(with_shingles * banding.bands);
