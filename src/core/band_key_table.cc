@@ -54,12 +54,16 @@ void WriteRows(size_t count, const At& at, internal::RecordBuilder* out) {
     out->Varint(band);
     out->Varint(end - begin);
     out->U8(static_cast<uint8_t>(low));
+    // Rows are put together in a buffer and appended a few thousand bytes
+    // at a time (a row takes at most 10 + 7 + 4 bytes).
+    char buffer[4096];
+    char* next = buffer;
     uint64_t previous = 0;
     for (size_t i = begin; i < end; ++i) {
-      // A row is put together here and appended at once (at most 10 + 7 + 4
-      // bytes).
-      char row_bytes[24];
-      char* next = row_bytes;
+      if (next > buffer + sizeof(buffer) - 24) {
+        out->Raw(std::string_view(buffer, next - buffer));
+        next = buffer;
+      }
       const BandKeyRecord& row = at(i);
       const uint64_t difference = row.key - previous;
       previous = row.key;
@@ -69,8 +73,8 @@ void WriteRows(size_t count, const At& at, internal::RecordBuilder* out) {
       for (int b = 0; b < low; ++b) *next++ = static_cast<char>(difference >> (8 * b));
       const uint32_t document = row.document - base;
       for (int b = 0; b < width; ++b) *next++ = static_cast<char>(document >> (8 * b));
-      out->Raw(std::string_view(row_bytes, next - row_bytes));
     }
+    out->Raw(std::string_view(buffer, next - buffer));
     begin = end;
   }
 }
