@@ -2,7 +2,6 @@
 #include "kindred/sweep_stages.h"
 
 #include <algorithm>
-#include <bit>
 #include <utility>
 
 #include "absl/strings/str_cat.h"
@@ -66,42 +65,6 @@ void PairBucket(absl::Span<const BandKeyRecord> bucket, uint64_t max_bucket,
   }
 }
 
-// Appends the rows of `band` to *rows, sorted by (key, document): document
-// i's key is column[i] (none when kNoBandKey or the document is empty),
-// numbered first + i. A counting sort on the keys' top bits, then a sort of
-// each bucket: band keys are hashes, so a bucket holds a few rows.
-void AppendBandRows(uint32_t band, absl::Span<const uint64_t> column,
-                    const std::vector<DocumentRecord>& documents, uint32_t first,
-                    std::vector<uint32_t>* scratch, std::vector<BandKeyRecord>* rows) {
-  const auto has = [&](size_t i) {
-    return column[i] != kNoBandKey && documents[i].shingle_count != 0;
-  };
-  const int bits = std::clamp(static_cast<int>(std::bit_width(column.size())) - 3, 1, 16);
-  const int shift = 64 - bits;
-  std::vector<uint32_t> ends((size_t{1} << bits) + 1, 0);
-  for (size_t i = 0; i < column.size(); ++i) {
-    if (has(i)) ++ends[(column[i] >> shift) + 1];
-  }
-  for (size_t b = 1; b < ends.size(); ++b) ends[b] += ends[b - 1];
-  // The documents in bucket order, then their rows appended in that order
-  // (written once, not zeroed first).
-  std::vector<uint32_t>& order = *scratch;
-  order.resize(ends.back());
-  for (size_t i = 0; i < column.size(); ++i) {
-    if (has(i)) order[ends[column[i] >> shift]++] = static_cast<uint32_t>(i);
-  }
-  const size_t start = rows->size();
-  for (const uint32_t i : order) rows->push_back({band, column[i], first + i});
-  BandKeyRecord* out = rows->data() + start;
-  // Now ends[b] is the end of bucket b; documents ascend within a bucket.
-  size_t begin = 0;
-  for (size_t b = 0; b + 1 < ends.size(); ++b) {
-    const size_t end = ends[b];
-    std::sort(out + begin, out + end);
-    begin = end;
-  }
-}
-
 }  // namespace
 
 Banding ResolveBanding(const MatchSettings& match, uint32_t perms) {
@@ -122,7 +85,7 @@ absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSetti
   shard.documents.first_document = options.first_document;
   shard.documents.documents.resize(count);
   shard.sets = SetStore(settings.perms);
-  size_t with_shingles = 0;
+  std::vector<uint8_t> present(count);
   for (size_t doc = 0; doc < count; ++doc) {
     DocumentRecord& record = shard.documents.documents[doc];
     record.id = corpus->id(doc);
@@ -130,33 +93,36 @@ absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSetti
     record.origin = corpus->origin(doc);
     record.origin.input += options.first_input;
     record.shingle_count = corpus->shingle_count(doc);
-    if (record.shingle_count != 0) ++with_shingles;
+    present[doc] = record.shingle_count != 0;
     if (options.keep_sets) {
       shard.sets.Add(options.first_document + static_cast<uint32_t>(doc), corpus->shingles(doc),
                      corpus->signature(doc));
     }
   }
-  // The keys band by band (a lean corpus holds them so; a full one's are
-  // computed from the signatures), each band's rows sorted into place.
+  // The keys band by band: a lean corpus holds them so; a full one's are
+  // computed from the signatures.
   std::vector<uint64_t> computed;
   if (options.keep_sets) {
     computed.assign(size_t{banding.bands} * count, kNoBandKey);
     std::vector<uint64_t> keys(banding.bands);
     for (size_t doc = 0; doc < count; ++doc) {
-      if (corpus->shingle_count(doc) == 0) continue;
+      if (!present[doc]) continue;
       BandKeys(corpus->signature(doc), banding, absl::MakeSpan(keys));
-      for (uint32_t band = 0; band < banding.bands; ++band)
+      for (uint32_t band = 0; band < banding.bands; ++band) {
         computed[band * count + doc] = keys[band];
+      }
     }
   }
-  shard.band_keys.records.reserve(with_shingles * banding.bands);
-  std::vector<uint32_t> scratch;
+  std::vector<absl::Span<const uint64_t>> columns;
   for (uint32_t band = 0; band < banding.bands; ++band) {
-    const absl::Span<const uint64_t> column =
-        options.keep_sets ? absl::MakeConstSpan(computed).subspan(band * count, count)
-                          : corpus->band_column(band);
-    AppendBandRows(band, column, shard.documents.documents, options.first_document, &scratch,
-                   &shard.band_keys.records);
+    columns.push_back(options.keep_sets ? absl::MakeConstSpan(computed).subspan(band * count, count)
+                                        : corpus->band_column(band));
+  }
+  const BandKeyColumns keys{columns, present, options.first_document};
+  if (options.key_partitions == 0) {
+    shard.band_keys = BandKeyTableOf(keys);
+  } else {
+    shard.band_key_bytes = SerializeBandKeyColumns(keys, options.key_partitions);
   }
   return shard;
 }
