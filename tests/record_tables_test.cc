@@ -6,6 +6,7 @@
 #include <functional>
 #include <limits>
 
+#include "core/record_codec.h"
 #include "kindred/band_key_table.h"
 #include "kindred/candidate_pairs.h"
 #include "kindred/document_table.h"
@@ -48,7 +49,8 @@ SetStore SomeSets() {
 }
 
 std::vector<ScoredPair> SomeScoredPairs() {
-  return {{0, 1, 10, 11, 12, 10.0 / 13, 0.75}, {0, 4, 3, 3, 3, 1.0, 1.0},
+  return {{0, 1, 10, 11, 12, 10.0 / 13, 0.75},
+          {0, 4, 3, 3, 3, 1.0, 1.0},
           {2, 3, 0, 0, 1, 0, std::numeric_limits<double>::denorm_min()}};
 }
 
@@ -91,6 +93,70 @@ TEST_CASE("Document tables round-trip and reject damage", "[records]") {
   CHECK(ParseDocumentTable(SerializeDocumentTable(DocumentTable{})).ok());
 }
 
+// A version 2 document table of one row: u32 first document 0, u64 count 1,
+// then what `row` appends.
+std::string DocumentBytes(const std::function<void(internal::RecordBuilder&)>& row) {
+  internal::RecordBuilder out("DOCS", 2);
+  out.U32(0);
+  out.U64(1);
+  row(out);
+  return std::move(out).Finish();
+}
+
+TEST_CASE("Document tables of version 2 use varints, and version 1 is still read", "[records]") {
+  const DocumentTable table = SomeDocuments();
+  const std::string bytes = SerializeDocumentTable(table);
+  CHECK(bytes.substr(8, 4) == std::string("\x02\0\0\0", 4));
+  // Row 1: id 1+1, length 1, flags 1, input 1, line 1, offset 1, shingles 1.
+  CHECK(bytes.size() < 24 + 12 + 8 + 3 * 18 + 2 * 8);
+  internal::RecordBuilder v1("DOCS", 1);
+  v1.U32(table.first_document);
+  v1.U64(table.documents.size());
+  for (const DocumentRecord& doc : table.documents) {
+    v1.Bytes(doc.id);
+    v1.U64(doc.facts.length);
+    v1.F64(doc.facts.priority);
+    v1.U8(doc.facts.has_priority ? 1 : 0);
+    v1.U32(doc.origin.input);
+    v1.U64(doc.origin.line);
+    v1.U64(doc.origin.offset);
+    v1.U32(doc.shingle_count);
+  }
+  auto old = ParseDocumentTable(std::move(v1).Finish());
+  REQUIRE(old.ok());
+  CHECK(*old == table);
+
+  const auto error = [](const std::string& b) {
+    const absl::Status status = ParseDocumentTable(b).status();
+    CHECK(KindOf(status) == ErrorKind::kBadInput);
+    return std::string(status.message());
+  };
+  // id "a", length 3, flags, [priority], input, line, [offset], shingles.
+  CHECK(ParseDocumentTable(DocumentBytes([](auto& out) {
+          out.Varint(1), out.Raw("a"), out.Varint(3), out.U8(1 | 2), out.F64(-2.5);
+          out.Varint(4), out.Varint(5), out.Varint(6), out.Varint(7);
+        }))->documents[0] == DocumentRecord{"a", {3, -2.5, true}, {4, 5, 6}, 7});
+  CHECK(error(DocumentBytes([](auto& out) {
+          out.Varint(1), out.Raw("a"), out.Varint(3), out.U8(8);
+          out.Varint(4), out.Varint(5), out.Varint(6), out.Varint(7);
+        })) == "document table: unknown flags 8 in a row");
+  CHECK(error(DocumentBytes([](auto& out) {
+          out.Varint(1), out.Raw("a"), out.Varint(3), out.U8(2), out.F64(0.0);
+          out.Varint(4), out.Varint(5), out.Varint(6), out.Varint(7);
+        })) == "document table: a priority of +0.0 written out");
+  CHECK(error(DocumentBytes([](auto& out) {
+          out.Varint(1), out.Raw("a"), out.Varint(3), out.U8(0);
+          out.Varint(4), out.Varint(5), out.Varint(~uint64_t{0}), out.Varint(7);
+        })) == "document table: an offset of 2^64-1 written out");
+  CHECK(error(DocumentBytes([](auto& out) {
+          out.Varint(1), out.Raw("a"), out.Varint(3), out.U8(4);
+          out.Varint(uint64_t{1} << 32), out.Varint(5), out.Varint(7);
+        })) == "document table: an input number or shingle count beyond 32 bits");
+  CHECK(error(DocumentBytes([](auto& out) {  // the id runs past the end
+          out.Varint(9), out.Raw("abcdef");
+        })) == "document table: payload ends inside a field (its counts are damaged)");
+}
+
 TEST_CASE("A record of another type or version is refused by name", "[records]") {
   const std::string keys = SerializeBandKeyTable(SomeBandKeys());
   const absl::Status wrong_type = ParseDocumentTable(keys).status();
@@ -98,9 +164,9 @@ TEST_CASE("A record of another type or version is refused by name", "[records]")
   CHECK(wrong_type.message() ==
         "document table: not a document table record (its first bytes are not \"KNDRDOCS\")");
   std::string newer = SerializeDocumentTable(SomeDocuments());
-  newer[8] = 2;  // version 2, checksum left as it was: the version is named first
+  newer[8] = 3;  // version 3, checksum left as it was: the version is named first
   CHECK(ParseDocumentTable(newer).status().message() ==
-        "document table: format version 2 (this build reads version 1)");
+        "document table: format version 3 (this build reads versions 1 to 2)");
 }
 
 TEST_CASE("The frame's bytes are fixed: header, little-endian fields, checksum", "[records]") {
@@ -167,6 +233,149 @@ TEST_CASE("Band-key tables round-trip, partition whole buckets and merge", "[rec
   }
   CHECK(MergeBandKeys(parts) == big);
   CHECK(PartitionBandKeys(big, 1)[0] == big);
+}
+
+// A version 2 band-key payload written field by field: u64 count, u32 base,
+// u8 document bytes, then what `rows` appends.
+std::string BandKeyBytes(uint64_t count, uint32_t base, uint8_t width,
+                         const std::function<void(internal::RecordBuilder&)>& rows,
+                         uint32_t version = 2) {
+  internal::RecordBuilder out("BKEY", version);
+  out.U64(count);
+  out.U32(base);
+  out.U8(width);
+  rows(out);
+  return std::move(out).Finish();
+}
+
+std::string BandKeyError(const std::string& bytes) {
+  const absl::Status status = ParseBandKeyTable(bytes).status();
+  CHECK(KindOf(status) == ErrorKind::kBadInput);
+  return std::string(status.message());
+}
+
+TEST_CASE("Band-key tables of version 2 are compact, and version 1 is still read", "[records]") {
+  // 3 bands x 2000 documents numbered from 1000000, keys of a 64-bit mix.
+  BandKeyTable big;
+  uint64_t x = 7;
+  for (uint32_t doc = 1000000; doc < 1002000; ++doc) {
+    for (uint32_t band = 0; band < 3; ++band) {
+      x = x * 6364136223846793005ULL + 1442695040888963407ULL;  // Knuth's MMIX LCG
+      big.records.push_back({band, x | 1, doc});
+    }
+  }
+  big.records.push_back({2, big.records[5].key, 999999});  // a bucket of two
+  SortBandKeys(&big);
+  const std::string bytes = SerializeBandKeyTable(big);
+  auto parsed = ParseBandKeyTable(bytes);
+  REQUIRE(parsed.ok());
+  CHECK(*parsed == big);
+  CHECK(bytes.substr(8, 4) == std::string("\x02\0\0\0", 4));
+  // About 2^64 / 2000 between keys: 6 low bytes, 1 varint byte, 2 bytes of
+  // document (against 16 bytes a row in version 1).
+  CHECK(bytes.size() < 9.1 * big.records.size() + 64);
+  const std::vector<BandKeyTable> parts = PartitionBandKeys(big, 3);
+  const std::vector<std::string> part_bytes = SerializeBandKeyPartitions(big, 3);
+  REQUIRE(part_bytes.size() == 3);
+  for (size_t p = 0; p < 3; ++p) CHECK(part_bytes[p] == SerializeBandKeyTable(parts[p]));
+  CHECK(SerializeBandKeyPartitions(big, 1)[0] == bytes);
+  CHECK(SerializeBandKeyPartitions(BandKeyTable{}, 2)[1] == SerializeBandKeyTable(BandKeyTable{}));
+  CHECK(ParseBandKeyTable(SerializeBandKeyTable(BandKeyTable{})).ok());
+
+  internal::RecordBuilder v1("BKEY", 1);
+  v1.U64(big.records.size());
+  for (const BandKeyRecord& row : big.records) {
+    v1.U32(row.band);
+    v1.U64(row.key);
+    v1.U32(row.document);
+  }
+  auto old = ParseBandKeyTable(std::move(v1).Finish());
+  REQUIRE(old.ok());
+  CHECK(*old == big);
+
+  CHECK(BandKeyError(BandKeyBytes(
+            0, 0, 0, [](auto&) {}, 3)) ==
+        "band-key table: format version 3 (this build reads versions 1 to 2)");
+}
+
+TEST_CASE("Band keys by columns give the sorted table and its partitions' bytes", "[records]") {
+  // 3 bands x 300 documents numbered from 40: some keys absent, some
+  // documents absent, keys repeated (buckets) and spread over 64 bits.
+  std::vector<std::vector<uint64_t>> columns(3, std::vector<uint64_t>(300));
+  std::vector<uint8_t> present(300);
+  BandKeyTable expected;
+  for (uint32_t i = 0; i < 300; ++i) {
+    present[i] = i % 17 != 5;
+    for (uint32_t band = 0; band < 3; ++band) {
+      const uint64_t key = i % 11 == 3 ? 0 : ((i % 97) + 1) * 0x9e3779b97f4a7c15ULL + band;
+      columns[band][i] = key;
+      if (present[i] && key != 0) expected.records.push_back({band, key, 40 + i});
+    }
+  }
+  SortBandKeys(&expected);
+  std::vector<absl::Span<const uint64_t>> spans(columns.begin(), columns.end());
+  const BandKeyColumns keys{spans, present, 40};
+  CHECK(BandKeyTableOf(keys) == expected);
+  for (const uint32_t parts : {1u, 4u}) {
+    CHECK(SerializeBandKeyColumns(keys, parts) == SerializeBandKeyPartitions(expected, parts));
+  }
+}
+
+TEST_CASE("A version 2 band-key table is read only when intact and sorted", "[records]") {
+  const auto row = [](internal::RecordBuilder& out, uint64_t high, uint64_t low, int low_bytes,
+                      uint64_t doc) {
+    out.Varint(high);
+    out.Low(low, low_bytes);
+    out.U8(static_cast<uint8_t>(doc));
+  };
+  // Band 0: keys 5 and 7; band 3: key 2^56 + 1 (one low byte).
+  const std::string good = BandKeyBytes(3, 10, 1, [&](auto& out) {
+    out.Varint(0), out.Varint(2), out.U8(0), row(out, 5, 0, 0, 1), row(out, 2, 0, 0, 0);
+    out.Varint(3), out.Varint(1), out.U8(1), row(out, uint64_t{1} << 48, 1, 1, 4);
+  });
+  auto parsed = ParseBandKeyTable(good);
+  REQUIRE(parsed.ok());
+  CHECK(parsed->records ==
+        std::vector<BandKeyRecord>{{0, 5, 11}, {0, 7, 10}, {3, (uint64_t{1} << 56) + 1, 14}});
+
+  const std::string order = "band-key table: rows out of order at row 2";
+  CHECK(BandKeyError(BandKeyBytes(2, 0, 1, [&](auto& out) {  // the same band twice
+          out.Varint(1), out.Varint(1), out.U8(0), row(out, 5, 0, 0, 0);
+          out.Varint(1), out.Varint(1), out.U8(0), row(out, 6, 0, 0, 0);
+        })) == order);
+  CHECK(BandKeyError(BandKeyBytes(2, 0, 1, [&](auto& out) {  // an equal key, a smaller document
+          out.Varint(1), out.Varint(2), out.U8(0), row(out, 5, 0, 0, 3), row(out, 0, 0, 0, 2);
+        })) == order);
+  CHECK(BandKeyError(BandKeyBytes(2, 0, 1, [&](auto& out) {  // a key past 2^64 - 1
+          out.Varint(1), out.Varint(2), out.U8(0), row(out, ~uint64_t{0}, 0, 0, 3),
+              row(out, 1, 0, 0, 4);
+        })) == order);
+  CHECK(BandKeyError(BandKeyBytes(1, 0, 1, [&](auto& out) {  // a difference past 64 bits
+          out.Varint(1), out.Varint(1), out.U8(7), row(out, 256, 0, 7, 3);
+        })) == "band-key table: rows out of order at row 1");
+  CHECK(BandKeyError(BandKeyBytes(1, ~uint32_t{0}, 1, [&](auto& out) {  // a document past 2^32
+          out.Varint(1), out.Varint(1), out.U8(0), row(out, 9, 0, 0, 1);
+        })) == "band-key table: rows out of order at row 1");
+  CHECK(BandKeyError(BandKeyBytes(1, 0, 1, [&](auto& out) {
+          out.Varint(1), out.Varint(2), out.U8(0), row(out, 9, 0, 0, 1);
+        })) == "band-key table: a band of 2 rows with 0 low bytes at row 1 of 1");
+  CHECK(BandKeyError(BandKeyBytes(1, 0, 1, [&](auto& out) {
+          out.Varint(1), out.Varint(1), out.U8(8), row(out, 9, 0, 0, 1);
+        })) == "band-key table: a band of 1 rows with 8 low bytes at row 1 of 1");
+  CHECK(BandKeyError(BandKeyBytes(1, 0, 5, [](auto&) {})) ==
+        "band-key table: documents of 5 bytes in 1 rows");
+  CHECK(BandKeyError(BandKeyBytes(9, 0, 1, [&](auto& out) {
+          out.Varint(1), out.Varint(1), out.U8(0), row(out, 9, 0, 0, 1);
+        })) == "band-key table: counts 9 rows in 5 bytes");
+  // A varint longer than its shortest form: 5 as 0x85 0x00.
+  CHECK(BandKeyError(BandKeyBytes(1, 0, 1, [&](auto& out) {
+          out.Varint(1), out.Varint(1), out.U8(0), out.U8(0x85), out.U8(0), out.U8(1);
+        })) == "band-key table: a varint longer than its shortest form or than 64 bits");
+  CHECK(BandKeyError(BandKeyBytes(1, 0, 1, [&](auto& out) {  // 2^64 as a varint
+          out.Varint(1), out.Varint(1), out.U8(0);
+          for (int i = 0; i < 9; ++i) out.U8(0x80);
+          out.U8(2), out.U8(1);
+        })) == "band-key table: a varint longer than its shortest form or than 64 bits");
 }
 
 TEST_CASE("Candidate pairs round-trip, merge and name their documents", "[records]") {

@@ -93,6 +93,16 @@ StagedSweep RunStages(const std::vector<std::string>& shards, const SweepOptions
     for (uint32_t p = 0; p < partitions; ++p) {
       partition_bytes[p].push_back(SerializeBandKeyTable(parts[p]));
     }
+    // Signed again with the partitions written from the signer's keys: the
+    // same bytes, and no table.
+    ShardOptions direct = shard_options;
+    direct.key_partitions = partitions;
+    auto again = SignShard(*Open({shards[s]}), options.signature, banding, direct);
+    REQUIRE(again.ok());
+    CHECK(again->band_keys.records.empty());
+    for (uint32_t p = 0; p < partitions; ++p) {
+      CHECK(again->band_key_bytes.at(p) == partition_bytes[p].back());
+    }
     shard_options.first_document += static_cast<uint32_t>(shard->documents.documents.size());
   }
   std::vector<CandidatePairs> found;

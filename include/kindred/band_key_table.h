@@ -58,9 +58,34 @@ std::vector<BandKeyTable> PartitionBandKeys(const BandKeyTable& table, uint32_t 
 // of that partition from every shard).
 BandKeyTable MergeBandKeys(absl::Span<const BandKeyTable> tables);
 
+// The table in the current format (version 2: rows grouped by band, keys by
+// differences, documents from the table's least). Requires a sorted table.
 std::string SerializeBandKeyTable(const BandKeyTable& table);
-// Errors: BadInput when `bytes` are not a whole, intact band-key table, or
-// its rows are not sorted.
+
+// The same bytes as SerializeBandKeyTable of each of
+// PartitionBandKeys(table, partitions), without building those tables.
+// Requires a sorted table.
+std::vector<std::string> SerializeBandKeyPartitions(const BandKeyTable& table, uint32_t partitions);
+
+// Band keys held by columns, as a signer holds them: in band b (of
+// columns.size()), document first + i has key columns[b][i], or none when
+// that is kNoBandKey or present[i] is 0. Every column has present.size()
+// keys. Views; the caller owns the data.
+struct BandKeyColumns {
+  absl::Span<const absl::Span<const uint64_t>> columns;
+  absl::Span<const uint8_t> present;
+  uint32_t first = 0;
+};
+
+// The sorted table of those keys.
+BandKeyTable BandKeyTableOf(const BandKeyColumns& keys);
+
+// SerializeBandKeyPartitions(BandKeyTableOf(keys), partitions), the same
+// bytes, written from the columns without building the table.
+std::vector<std::string> SerializeBandKeyColumns(const BandKeyColumns& keys, uint32_t partitions);
+
+// Reads versions 1 and 2. Errors: BadInput when `bytes` are not a whole,
+// intact band-key table, or its rows are not sorted.
 absl::StatusOr<BandKeyTable> ParseBandKeyTable(std::string_view bytes);
 
 }  // namespace kindred

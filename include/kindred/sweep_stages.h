@@ -53,6 +53,11 @@ struct ShardOptions {
   // a document's shingle_count is the size of its bag of shingles (0 still
   // exactly when it has none).
   bool keep_sets = false;
+  // SignShard only: 0, the band keys as a table (SignedShard::band_keys);
+  // P >= 1, instead their table cut into P partitions, serialized
+  // (SignedShard::band_key_bytes: the bytes of SerializeBandKeyPartitions),
+  // written from the signer's keys without building the table.
+  uint32_t key_partitions = 0;
   // ReadShardSets only: the shard's document table from SignShard (local
   // or whole-corpus numbers alike). Each document read again must have the
   // same id, text length, line and byte offset and be empty or not alike,
@@ -64,8 +69,9 @@ struct ShardOptions {
 
 struct SignedShard {
   DocumentTable documents;
-  BandKeyTable band_keys;  // sorted
-  SetStore sets;           // empty unless ShardOptions::keep_sets
+  BandKeyTable band_keys;                   // sorted; empty with ShardOptions::key_partitions
+  std::vector<std::string> band_key_bytes;  // with ShardOptions::key_partitions
+  SetStore sets;                            // empty unless ShardOptions::keep_sets
   SignStats stats;
 };
 

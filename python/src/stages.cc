@@ -7,7 +7,8 @@
 //
 //   sign_shard   a shard -> SignShard (lean, documents numbered 0.. in the
 //                shard) -> its document table and its band-key table cut
-//                into P partitions (PartitionBandKeys)
+//                into P partitions (ShardOptions::key_partitions: written
+//                from the signer's keys)
 //   candidates   one partition's band-key tables from every shard, their
 //                documents numbered on by the shards' offsets ->
 //                MergeBandKeys -> FindPartitionCandidates, cut into V verify
@@ -70,13 +71,12 @@ py::tuple SignShardStage(const std::string& path, const py::handle& settings_obj
     if (status.ok()) {
       ShardOptions options;
       options.sign.threads = std::max(1, threads);
+      options.key_partitions = std::max<uint32_t>(partitions, 1);
       auto shard = SignShard(**reader, settings, Banding{bands, rows}, options);
       status = shard.status();
       if (status.ok()) {
         table = SerializeDocumentTable(shard->documents);
-        for (const BandKeyTable& part : PartitionBandKeys(shard->band_keys, partitions)) {
-          parts.push_back(SerializeBandKeyTable(part));
-        }
+        parts = std::move(shard->band_key_bytes);
       }
     }
   }

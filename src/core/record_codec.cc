@@ -26,10 +26,10 @@ uint64_t GetLe(const char* data, int bytes) {
 
 }  // namespace
 
-RecordBuilder::RecordBuilder(std::string_view tag) {
+RecordBuilder::RecordBuilder(std::string_view tag, uint32_t version) {
   bytes_.append(kMagic);
   bytes_.append(tag.substr(0, 4));
-  PutU32(&bytes_, kRecordVersion);
+  PutU32(&bytes_, version);
   PutU32(&bytes_, 0);  // flags
   PutU64(&bytes_, 0);  // payload length, set by Finish
 }
@@ -49,7 +49,8 @@ std::string RecordBuilder::Finish() && {
   return std::move(bytes_);
 }
 
-RecordParser::RecordParser(std::string_view bytes, std::string_view tag, std::string_view what)
+RecordParser::RecordParser(std::string_view bytes, std::string_view tag, std::string_view what,
+                           uint32_t oldest, uint32_t newest)
     : what_(what) {
   if (bytes.size() < kRecordHeaderBytes + kRecordTrailerBytes) {
     status_ = Corrupt(absl::StrCat("truncated: ", bytes.size(), " bytes, shorter than a record's ",
@@ -57,16 +58,21 @@ RecordParser::RecordParser(std::string_view bytes, std::string_view tag, std::st
     return;
   }
   if (bytes.substr(0, 4) != kMagic || bytes.substr(4, 4) != tag) {
-    status_ = Corrupt(absl::StrCat("not a ", std::string(what), " record (its first bytes are not \"",
-                                   std::string(kMagic), std::string(tag), "\")"));
+    status_ =
+        Corrupt(absl::StrCat("not a ", std::string(what), " record (its first bytes are not \"",
+                             std::string(kMagic), std::string(tag), "\")"));
     return;
   }
   const uint64_t version = GetLe(bytes.data() + 8, 4);
-  if (version != kRecordVersion) {
-    status_ = Corrupt(absl::StrCat("format version ", version, " (this build reads version ",
-                                   kRecordVersion, ")"));
+  if (version < oldest || version > newest) {
+    status_ =
+        Corrupt(absl::StrCat("format version ", version, " (this build reads ",
+                             oldest == newest ? absl::StrCat("version ", newest)
+                                              : absl::StrCat("versions ", oldest, " to ", newest),
+                             ")"));
     return;
   }
+  version_ = static_cast<uint32_t>(version);
   const uint64_t length = GetLe(bytes.data() + 16, 8);
   const uint64_t whole = bytes.size() - kRecordHeaderBytes - kRecordTrailerBytes;
   if (length != whole) {
@@ -115,6 +121,30 @@ bool RecordParser::U64(uint64_t* value) {
   *value = GetLe(data, 8);
   return true;
 }
+bool RecordParser::Varint(uint64_t* value) {
+  uint64_t result = 0;
+  for (int shift = 0;; shift += 7) {
+    const char* data;
+    if (!Take(1, &data)) return false;
+    const uint64_t byte = static_cast<uint8_t>(data[0]);
+    // The tenth byte may carry only the 64th bit; a last byte of 0 after
+    // others is a longer form than needed.
+    if ((shift == 63 && byte > 1) || (shift > 0 && byte == 0)) {
+      bad_varint_ = overrun_ = true;
+      return false;
+    }
+    result |= (byte & 0x7f) << shift;
+    if (byte < 0x80) break;
+  }
+  *value = result;
+  return true;
+}
+bool RecordParser::Low(int count, uint64_t* value) {
+  const char* data;
+  if (!Take(static_cast<size_t>(count), &data)) return false;
+  *value = GetLe(data, count);
+  return true;
+}
 bool RecordParser::F64(double* value) {
   uint64_t bits;
   if (!U64(&bits)) return false;
@@ -135,6 +165,7 @@ absl::Status RecordParser::Corrupt(std::string_view message) const {
 
 absl::Status RecordParser::Finish() const {
   if (!status_.ok()) return status_;
+  if (bad_varint_) return Corrupt("a varint longer than its shortest form or than 64 bits");
   if (overrun_) return Corrupt("payload ends inside a field (its counts are damaged)");
   if (position_ != payload_.size()) {
     return Corrupt(absl::StrCat(payload_.size() - position_, " bytes left after the last field"));

@@ -76,43 +76,48 @@ absl::StatusOr<SignedShard> SignShard(CorpusReader& reader, const SignatureSetti
   SignedShard shard;
   absl::StatusOr<SignedCorpus> corpus = SignWhole(reader, settings, banding, options, &shard.stats);
   if (!corpus.ok()) return corpus.status();
+  const size_t count = corpus->size();
   shard.documents.first_document = options.first_document;
-  shard.documents.documents.resize(corpus->size());
+  shard.documents.documents.resize(count);
   shard.sets = SetStore(settings.perms);
-  std::vector<uint64_t> keys(banding.bands);
-  // Rows band by band (documents ascending in each), so that sorting each
-  // band by key sorts the table; reserved, not grown by doubling.
-  std::vector<std::vector<BandKeyRecord>> bands(banding.bands);
-  for (std::vector<BandKeyRecord>& band : bands) band.reserve(corpus->size());
-  for (size_t doc = 0; doc < corpus->size(); ++doc) {
-    const uint32_t number = options.first_document + static_cast<uint32_t>(doc);
+  std::vector<uint8_t> present(count);
+  for (size_t doc = 0; doc < count; ++doc) {
     DocumentRecord& record = shard.documents.documents[doc];
     record.id = corpus->id(doc);
     record.facts = corpus->facts(doc);
     record.origin = corpus->origin(doc);
     record.origin.input += options.first_input;
     record.shingle_count = corpus->shingle_count(doc);
-    if (options.keep_sets) shard.sets.Add(number, corpus->shingles(doc), corpus->signature(doc));
-    if (record.shingle_count == 0) continue;
+    present[doc] = record.shingle_count != 0;
     if (options.keep_sets) {
-      BandKeys(corpus->signature(doc), banding, absl::MakeSpan(keys));
-    } else {
-      for (uint32_t band = 0; band < banding.bands; ++band)
-        keys[band] = corpus->band_key(doc, band);
-    }
-    for (uint32_t band = 0; band < banding.bands; ++band) {
-      if (keys[band] != kNoBandKey) bands[band].push_back({band, keys[band], number});
+      shard.sets.Add(options.first_document + static_cast<uint32_t>(doc), corpus->shingles(doc),
+                     corpus->signature(doc));
     }
   }
-  size_t rows = 0;
-  for (const std::vector<BandKeyRecord>& band : bands) rows += band.size();
-  shard.band_keys.records.reserve(rows);
-  for (std::vector<BandKeyRecord>& band : bands) {
-    std::sort(band.begin(), band.end(), [](const BandKeyRecord& x, const BandKeyRecord& y) {
-      return x.key != y.key ? x.key < y.key : x.document < y.document;
-    });
-    shard.band_keys.records.insert(shard.band_keys.records.end(), band.begin(), band.end());
-    std::vector<BandKeyRecord>().swap(band);
+  // The keys band by band: a lean corpus holds them so; a full one's are
+  // computed from the signatures.
+  std::vector<uint64_t> computed;
+  if (options.keep_sets) {
+    computed.assign(size_t{banding.bands} * count, kNoBandKey);
+    std::vector<uint64_t> keys(banding.bands);
+    for (size_t doc = 0; doc < count; ++doc) {
+      if (!present[doc]) continue;
+      BandKeys(corpus->signature(doc), banding, absl::MakeSpan(keys));
+      for (uint32_t band = 0; band < banding.bands; ++band) {
+        computed[band * count + doc] = keys[band];
+      }
+    }
+  }
+  std::vector<absl::Span<const uint64_t>> columns;
+  for (uint32_t band = 0; band < banding.bands; ++band) {
+    columns.push_back(options.keep_sets ? absl::MakeConstSpan(computed).subspan(band * count, count)
+                                        : corpus->band_column(band));
+  }
+  const BandKeyColumns keys{columns, present, options.first_document};
+  if (options.key_partitions == 0) {
+    shard.band_keys = BandKeyTableOf(keys);
+  } else {
+    shard.band_key_bytes = SerializeBandKeyColumns(keys, options.key_partitions);
   }
   return shard;
 }

@@ -115,3 +115,52 @@ printf '<p>caf\xe9 \x93q\x94</p>' | seed html cp1252 002
 printf '<svg><text>x</text></svg><math><mi>y</mi></math><template>z</template><noscript>n</noscript>ok &amp; &eacute &#0; \0 <![CDATA[c]]>' | seed html hostile 001
 printf '\xff\xfe<\0p\0>\0h\0i\0' | seed html bom_utf16 000
 printf 'plain text \xe6\xb8\xaf' | seed html plain 011
+
+# --- records: control byte (bit 0 document table, else band-key table; bit 1 fix the frame), then the record ---
+# Records of the first lines of the demo corpus signed by the Python package's
+# map stage (built beside the program), in the current versions, and the
+# same tables in version 1 (fixed-width rows, written here field by field).
+head -n 20 "$seeds/../../../sample_corpus/archive.jsonl" >"$work/shard.jsonl"
+PYTHONPATH="$(dirname "$kindred")/python" python3 - "$work/shard.jsonl" "$seeds/records" <<'PY'
+import ctypes, os, struct, sys
+from kindred import Settings, _kindred
+xxh3 = ctypes.CDLL("libxxhash.so.0").XXH3_64bits
+xxh3.restype, xxh3.argtypes = ctypes.c_uint64, [ctypes.c_char_p, ctypes.c_size_t]
+def frame(tag, version, payload):
+    head = b"KNDR" + tag + struct.pack("<IIQ", version, 0, len(payload)) + payload
+    return head + struct.pack("<Q", xxh3(head, len(head)))
+def varint(data, at):
+    value = shift = 0
+    while True:
+        byte = data[at]; at += 1
+        value |= (byte & 0x7f) << shift; shift += 7
+        if byte < 0x80: return value, at
+def band_rows(record):  # version 2 payload -> [(band, key, document)]
+    payload, rows = record[24:-8], []
+    count, base, width = struct.unpack_from("<QIB", payload); at = 13
+    while len(rows) < count:
+        band, at = varint(payload, at); n, at = varint(payload, at); low = payload[at]; at += 1
+        key = 0
+        for _ in range(n):
+            high, at = varint(payload, at)
+            key += (high << (8 * low)) | int.from_bytes(payload[at:at + low], "little"); at += low
+            rows.append((band, key, base + int.from_bytes(payload[at:at + width], "little")))
+            at += width
+    return rows
+table, parts = _kindred.stage_sign_shard(sys.argv[1], Settings(), "auto", "id", "text", "",
+                                         15, 8, 2, 1)
+os.makedirs(sys.argv[2], exist_ok=True)
+def seed(name, control, data):
+    with open(os.path.join(sys.argv[2], name), "wb") as out:
+        out.write(bytes([control]) + data)
+seed("band_keys", 0, parts[0])
+seed("band_keys_fix", 2, parts[1])
+rows = band_rows(parts[0])
+seed("band_keys_v1", 0, frame(b"BKEY", 1, struct.pack("<Q", len(rows)) +
+                              b"".join(struct.pack("<IQI", *r) for r in rows)))
+seed("band_keys_empty", 0, frame(b"BKEY", 2, struct.pack("<QIB", 0, 0, 0)))
+seed("documents", 1, table)
+seed("documents_fix", 3, table)
+seed("documents_v1", 1, frame(b"DOCS", 1, struct.pack("<IQ", 0, 1) + struct.pack("<I", 1) + b"a" +
+                              struct.pack("<QdBIQQI", 3, 0.0, 0, 0, 1, 0, 4)))
+PY
