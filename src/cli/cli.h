@@ -12,28 +12,9 @@
 
 #include "CLI/CLI.hpp"
 #include "absl/status/status.h"
+#include "cli/exit_codes.h"
 
 namespace kindred::cli {
-
-// Exit codes. Documented in README.md ("Exit codes"); keep the two in step.
-enum ExitCode : int {
-  kExitOk = 0,
-  kExitMatched = 1,        // check --fail-on-match: at least one upload matched
-  kExitUsage = 2,          // bad command line or invalid settings
-  kExitInput = 3,          // unreadable or malformed input, a limit exceeded,
-                           // an input that changed between two readings
-  kExitIndexCorrupt = 4,   // index file corrupt, truncated or not an index
-  kExitIndexMismatch = 5,  // index made with other settings or a newer format
-  kExitIndexBusy = 6,      // another writer holds the index lock
-  kExitOutput = 7,         // an output could not be written (disk full, ...)
-  kExitInternal = 8,       // a bug: please report it
-};
-
-// The exit code of a library status, by its kind (kindred/errors.h: KindOf):
-// invalid request -> 2; bad input, limit exceeded, input changed -> 3;
-// index damaged -> 4; settings mismatch -> 5; index busy -> 6; disk full,
-// write failed -> 7; internal -> 8. The one place kinds become exit codes.
-int ExitCodeFor(const absl::Status& status);
 
 // Prints "kindred: <status message>" on stderr and returns `exit_code`.
 int Fail(int exit_code, const absl::Status& status);

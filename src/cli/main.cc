@@ -3,35 +3,10 @@
 
 #include "cli/cli.h"
 #include "cli/huge_pages.h"
-#include "kindred/errors.h"
-#include "kindred/temp_files.h"
 #include "cli/usage.h"
+#include "kindred/temp_files.h"
 
 namespace kindred::cli {
-
-int ExitCodeFor(const absl::Status& status) {
-  if (status.ok()) return kExitOk;
-  switch (KindOf(status)) {
-    case ErrorKind::kInvalidRequest:
-      return kExitUsage;
-    case ErrorKind::kBadInput:
-    case ErrorKind::kLimitExceeded:
-    case ErrorKind::kInputChanged:
-      return kExitInput;
-    case ErrorKind::kIndexDamaged:
-      return kExitIndexCorrupt;
-    case ErrorKind::kSettingsMismatch:
-      return kExitIndexMismatch;
-    case ErrorKind::kIndexBusy:
-      return kExitIndexBusy;
-    case ErrorKind::kDiskFull:
-    case ErrorKind::kWriteFailed:
-      return kExitOutput;
-    case ErrorKind::kInternal:
-      break;
-  }
-  return kExitInternal;
-}
 
 int Fail(int exit_code, const absl::Status& status) {
   // Usage errors name the command ("kindred: sweep: ..."), as parse errors do.

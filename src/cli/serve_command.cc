@@ -1,24 +1,25 @@
 // kindred serve: hold an index open and answer checks (and, with
 // --allow-add, adds) over HTTP; serve a page for editors. The service core
-// is src/service/, the HTTP layer src/cli/serve_http.*.
-#include <pthread.h>
-#include <signal.h>
+// is src/service/, the HTTP layer the module of src/serve/ (serve_module.h):
+// this file checks the command line, loads the module and hands it over.
+#include <dlfcn.h>
+#include <unistd.h>
 
-#include <atomic>
-#include <cstdio>
 #include <fstream>
 #include <sstream>
-#include <thread>
 
 #include "absl/strings/numbers.h"
 #include "absl/strings/str_cat.h"
 #include "cli/cli.h"
 #include "cli/output.h"
-#include "cli/serve_http.h"
-#include "service/index_service.h"
+#include "serve/serve_module.h"
 
 namespace kindred::cli {
 namespace {
+
+using serve::HttpOptions;
+
+constexpr char kServeModuleName[] = "kindred_serve.so";
 
 struct ServeFlags {
   std::string index;
@@ -106,50 +107,46 @@ absl::StatusOr<HttpOptions> ToHttpOptions(const ServeFlags& flags) {
   return options;
 }
 
+// The HTTP service module (serve_module.h): beside the program (the build
+// tree), else where it is installed. Errors: Internal, naming both places.
+absl::StatusOr<serve::ServeEntry> LoadServeModule() {
+  std::string beside;
+  char self[4096];
+  const ssize_t length = readlink("/proc/self/exe", self, sizeof(self) - 1);
+  if (length > 0) {
+    beside.assign(self, length);
+    beside.resize(beside.rfind('/') + 1);
+  }
+  beside += kServeModuleName;
+  std::string tried;
+  for (const std::string& path : {beside, std::string(KINDRED_SERVE_MODULE_INSTALLED)}) {
+    void* module = dlopen(path.c_str(), RTLD_NOW | RTLD_LOCAL);
+    if (module == nullptr) {
+      absl::StrAppend(&tried, tried.empty() ? "" : "; ", dlerror());
+      continue;
+    }
+    if (void* entry = dlsym(module, serve::kServeEntryName); entry != nullptr) {
+      return reinterpret_cast<serve::ServeEntry>(entry);
+    }
+    absl::StrAppend(&tried, tried.empty() ? "" : "; ", path, " has no ", serve::kServeEntryName);
+  }
+  return absl::InternalError(
+      absl::StrCat("cannot load the HTTP service module ", kServeModuleName, ": ", tried));
+}
+
 int RunServe(const ServeFlags& flags) {
   auto options = ToHttpOptions(flags);
   if (!options.ok()) return Fail(kExitUsage, options.status());
-  // SIGINT and SIGTERM are taken by one thread (sigwait), so every other
-  // thread, started after this, leaves them blocked.
-  sigset_t stop_signals;
-  sigemptyset(&stop_signals);
-  sigaddset(&stop_signals, SIGINT);
-  sigaddset(&stop_signals, SIGTERM);
-  pthread_sigmask(SIG_BLOCK, &stop_signals, nullptr);
-  signal(SIGPIPE, SIG_IGN);
-  service::ServiceOptions service_options;
-  service_options.path = flags.index;
-  service_options.allow_add = flags.allow_add;
-  auto service = service::IndexService::Open(service_options);
-  if (!service.ok()) return Fail(service.status());
-  HttpServer server(service->get(), *options);
-  auto port = server.Bind();
-  if (!port.ok()) return Fail(kExitUsage, port.status());
-  uint32_t live = 0;
-  (*service)->WithReader([&live](const IndexReader& reader) { live = reader.live_count(); });
-  std::fprintf(stderr, "kindred serve: listening on http://%s:%d/ (index %s, %u documents, %s)\n",
-               options->host.find(':') == std::string::npos ? options->host.c_str()
-                                                            : ("[" + options->host + "]").c_str(),
-               *port, flags.index.c_str(), live,
-               flags.allow_add ? "adds allowed with the token" : "read-only");
-  std::atomic<bool> running{true};
-  std::thread stopper([&server, &running, stop_signals] {
-    int signal_number = 0;
-    sigwait(&stop_signals, &signal_number);
-    if (!running.load()) return;
-    std::fprintf(stderr, "kindred serve: stopping (signal %d)\n", signal_number);
-    while (running.load()) {  // until Run() returned (a stop before it started is lost)
-      server.Stop();
-      std::this_thread::sleep_for(std::chrono::milliseconds(50));
-    }
-  });
-  server.Run();
-  running = false;
-  pthread_kill(stopper.native_handle(), SIGTERM);  // wakes sigwait when no signal came
-  stopper.join();
-  service->reset();  // answers queued adds, releases the writer lock
-  std::fprintf(stderr, "kindred serve: stopped\n");
-  return kExitOk;
+  auto entry = LoadServeModule();
+  if (!entry.ok()) return Fail(entry.status());
+  serve::ServeLaunch launch;
+  launch.index = flags.index;
+  launch.allow_add = flags.allow_add;
+  launch.http = *std::move(options);
+  serve::ServeOutcome outcome;
+  (*entry)(&launch, &outcome);
+  if (outcome.exit_code == kExitOk) return kExitOk;
+  return Fail(outcome.exit_code, absl::UnknownError(outcome.message));
 }
 
 }  // namespace
@@ -167,7 +164,10 @@ void RegisterServe(CLI::App& app, int* exit_code) {
                       "file holding the bearer token that requests must carry");
   command->add_flag("--allow-add", flags->allow_add,
                     "accept adds (takes the writer lock; needs --token-file)");
-  command->add_option("--workers", flags->workers, "worker threads; each open connection holds one (default 32)")->group("Limits");
+  command
+      ->add_option("--workers", flags->workers,
+                   "worker threads; each open connection holds one (default 32)")
+      ->group("Limits");
   command
       ->add_option("--queue", flags->queue,
                    "connections waiting for a worker before 503 (default 64)")

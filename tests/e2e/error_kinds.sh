@@ -28,4 +28,15 @@ wait "$writer" 2>/dev/null
 expect_exit 0 "tune, unchanged input" -- "$KINDRED" tune -q "$WORK/second.jsonl" \
   --labels "$WORK/labels.tsv" --shingles word:3,word:5 --perms 16 --thresholds 0.5
 
+# 3. `serve` loads its HTTP module from beside the program: a program copied
+# alone says what is missing (exit 8), and the other commands still run.
+mkdir -p "$WORK/alone"
+cp "$KINDRED" "$WORK/alone/kindred"
+expect_exit 0 "build with the program alone" -- "$WORK/alone/kindred" build -q \
+  "$WORK/alone.kin" "$SOURCE_DIR/sample_corpus/archive.jsonl"
+expect_exit 8 "serve without its module" -- "$WORK/alone/kindred" serve "$WORK/alone.kin" \
+  --listen 127.0.0.1:0
+expect_stderr "kindred: cannot load the HTTP service module kindred_serve.so: " \
+  "serve without its module"
+
 finish

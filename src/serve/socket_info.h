@@ -1,12 +1,12 @@
 // Socket facts and settings for `kindred serve` that cpp-httplib does not
 // expose. Kept apart from the HTTP headers: the kernel's <linux/tcp.h>,
 // which has the byte counter, clashes with the C library's <netinet/tcp.h>.
-#ifndef KINDRED_CLI_SOCKET_INFO_H_
-#define KINDRED_CLI_SOCKET_INFO_H_
+#ifndef KINDRED_SERVE_SOCKET_INFO_H_
+#define KINDRED_SERVE_SOCKET_INFO_H_
 
 #include <cstdint>
 
-namespace kindred::cli {
+namespace kindred::serve {
 
 // Bytes received on socket `fd` so far; 0 when the kernel does not say.
 uint64_t BytesReceived(int fd);
@@ -16,6 +16,6 @@ uint64_t BytesReceived(int fd);
 // new connections has SYNs dropped and retried a second later).
 void WidenListenBacklogs(int backlog);
 
-}  // namespace kindred::cli
+}  // namespace kindred::serve
 
-#endif  // KINDRED_CLI_SOCKET_INFO_H_
+#endif  // KINDRED_SERVE_SOCKET_INFO_H_

@@ -10,8 +10,8 @@
 //
 // Thread-safety: Run() blocks on the calling thread; Stop() may be called
 // from any thread (it makes Run() return after the in-flight requests).
-#ifndef KINDRED_CLI_SERVE_HTTP_H_
-#define KINDRED_CLI_SERVE_HTTP_H_
+#ifndef KINDRED_SERVE_SERVE_HTTP_H_
+#define KINDRED_SERVE_SERVE_HTTP_H_
 
 #include <chrono>
 #include <cstdint>
@@ -23,7 +23,7 @@
 #include "service/metrics.h"
 #include "service/service_request.h"
 
-namespace kindred::cli {
+namespace kindred::serve {
 
 struct HttpOptions {
   std::string host = "127.0.0.1";
@@ -58,6 +58,6 @@ class HttpServer {
 // The page served at GET / (self-contained HTML).
 const char* ServicePage();
 
-}  // namespace kindred::cli
+}  // namespace kindred::serve
 
-#endif  // KINDRED_CLI_SERVE_HTTP_H_
+#endif  // KINDRED_SERVE_SERVE_HTTP_H_

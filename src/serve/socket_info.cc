@@ -1,4 +1,4 @@
-#include "cli/socket_info.h"
+#include "serve/socket_info.h"
 
 #include <dirent.h>
 
@@ -9,7 +9,7 @@
 #include <cstddef>
 #include <cstdlib>
 
-namespace kindred::cli {
+namespace kindred::serve {
 
 uint64_t BytesReceived(int fd) {
   tcp_info info{};
@@ -34,4 +34,4 @@ void WidenListenBacklogs(int backlog) {
   closedir(dir);
 }
 
-}  // namespace kindred::cli
+}  // namespace kindred::serve

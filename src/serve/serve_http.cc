@@ -1,20 +1,18 @@
-#include "cli/serve_http.h"
+#include "serve/serve_http.h"
 
 #include <cstdio>
 
 #include "absl/strings/numbers.h"
 #include "absl/strings/str_cat.h"
-#include "cli/serve_pool.h"
-#include "cli/socket_info.h"
+#include "serve/serve_pool.h"
+#include "serve/socket_info.h"
 #include "core/plural.h"
 #include "kindred/errors.h"
+#include "service/index_info.h"
 #include "service/service_errors.h"
 #include "service/service_replies.h"
 
-namespace kindred::cli {
-
-std::string IndexInfoJson(const IndexReader& reader);  // info_command.cc
-
+namespace kindred::serve {
 namespace {
 
 using Clock = std::chrono::steady_clock;
@@ -254,7 +252,7 @@ void HttpServer::Impl::Install() {
   });
   server.Get("/v1/info", [this](const httplib::Request&, httplib::Response& res) {
     std::string body;
-    service->WithReader([&body](const IndexReader& reader) { body = IndexInfoJson(reader); });
+    service->WithReader([&body](const IndexReader& reader) { body = service::IndexInfoJson(reader); });
     res.set_content(body, "application/json");
   });
   server.Get("/v1/health", [this](const httplib::Request&, httplib::Response& res) {
@@ -311,4 +309,4 @@ void HttpServer::Run() {
 
 void HttpServer::Stop() { impl_->server.stop(); }
 
-}  // namespace kindred::cli
+}  // namespace kindred::serve

@@ -3,9 +3,9 @@
 // the index, and read each match with its exact Jaccard similarity and
 // containments, and the passages of the upload whose shingles the matched
 // document holds, highlighted.
-#include "cli/serve_http.h"
+#include "serve/serve_http.h"
 
-namespace kindred::cli {
+namespace kindred::serve {
 
 const char* ServicePage() {
   return R"PAGE(<!DOCTYPE html>
@@ -148,4 +148,4 @@ $("form").addEventListener("submit", async (event) => {
 )PAGE";
 }
 
-}  // namespace kindred::cli
+}  // namespace kindred::serve

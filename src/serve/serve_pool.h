@@ -19,8 +19,8 @@
 // number; the byte bound keeps a flood of headers from taking memory.)
 //
 // Thread-safety: all methods may be called concurrently.
-#ifndef KINDRED_CLI_SERVE_POOL_H_
-#define KINDRED_CLI_SERVE_POOL_H_
+#ifndef KINDRED_SERVE_SERVE_POOL_H_
+#define KINDRED_SERVE_SERVE_POOL_H_
 
 #include <httplib.h>
 
@@ -36,7 +36,7 @@
 #include <thread>
 #include <vector>
 
-namespace kindred::cli {
+namespace kindred::serve {
 
 class WorkerPool : public httplib::TaskQueue {
  public:
@@ -94,6 +94,6 @@ class ConnectionWatchdog {
   std::thread thread_;
 };
 
-}  // namespace kindred::cli
+}  // namespace kindred::serve
 
-#endif  // KINDRED_CLI_SERVE_POOL_H_
+#endif  // KINDRED_SERVE_SERVE_POOL_H_

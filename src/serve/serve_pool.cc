@@ -1,4 +1,4 @@
-#include "cli/serve_pool.h"
+#include "serve/serve_pool.h"
 
 #include <arpa/inet.h>
 #include <dirent.h>
@@ -11,9 +11,9 @@
 #include <cstring>
 #include <set>
 
-#include "cli/socket_info.h"
+#include "serve/socket_info.h"
 
-namespace kindred::cli {
+namespace kindred::serve {
 namespace {
 
 thread_local bool t_rejecting = false;
@@ -209,4 +209,4 @@ void ConnectionWatchdog::Scan() {
   }
 }
 
-}  // namespace kindred::cli
+}  // namespace kindred::serve
