@@ -72,7 +72,8 @@ class ScratchFile {
   virtual ~ScratchFile() = default;
   // Appends all of `bytes`. Errors: DiskFull (no space, quota or file size
   // limit), else WriteFailed; the message names the scratch directory. After
-  // an error the file's end is unknown: read only what earlier appends wrote.
+  // an error, size() counts what part of `bytes` was written: read only what
+  // earlier appends wrote, at the offsets size() gave before them.
   virtual absl::Status Append(std::string_view bytes) = 0;
   // Reads exactly out.size() bytes at `offset` into `out`. Requires
   // offset + out.size() <= size() (else Internal). Errors: WriteFailed
