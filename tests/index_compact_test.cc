@@ -1,14 +1,18 @@
 // Tests of streamed compaction: the band-key sort under a memory budget
-// gives the order of one in-memory sort, and compaction with a budget
-// writes the same bytes as without.
+// gives the order of one in-memory sort (and reports a full disk under its
+// runs as one), and compaction with a budget writes the same bytes as
+// without.
 #include <algorithm>
 #include <catch2/catch.hpp>
 #include <random>
 #include <vector>
 
 #include "index/key_sorter.h"
+#include "kindred/errors.h"
+#include "kindred/file_io.h"
 #include "kindred/index.h"
 #include "kindred/index_writer.h"
+#include "testlib/fault_file_system.h"
 #include "testlib/index_fixture.h"
 #include "testlib/temp_dir.h"
 
@@ -34,8 +38,8 @@ TEST_CASE("the key sort under a budget merges runs into the order of one sort", 
     // Few distinct keys: many ties, broken by document.
     for (int band = 0; band < 3; ++band) entries.push_back({random() % 700 + 1, doc});
   }
-  index::KeySorter bounded(64 * 1000, dir.path());  // runs of 1000 entries
-  index::KeySorter whole(0, dir.path());
+  index::KeySorter bounded(64 * 1000, dir.path(), DefaultFileSystem());  // runs of 1000 entries
+  index::KeySorter whole(0, dir.path(), DefaultFileSystem());
   for (const BucketEntry& e : entries) {
     REQUIRE(bounded.Add(e.key, e.doc).ok());
     REQUIRE(whole.Add(e.key, e.doc).ok());
@@ -58,11 +62,26 @@ TEST_CASE("the key sort under a budget merges runs into the order of one sort", 
 }
 
 TEST_CASE("a scratch directory that cannot be written is an Aborted error", "[compact]") {
-  index::KeySorter sorter(64 * 10, "/nonexistent-kindred-dir");
+  index::KeySorter sorter(64 * 10, "/nonexistent-kindred-dir", DefaultFileSystem());
   absl::Status status;
   for (uint32_t doc = 0; doc < 20 && status.ok(); ++doc) status = sorter.Add(doc + 1, doc);
   REQUIRE(absl::IsAborted(status));
+  REQUIRE(KindOf(status) == ErrorKind::kWriteFailed);
   REQUIRE(status.message().find("/nonexistent-kindred-dir") != std::string::npos);
+}
+
+TEST_CASE("a full disk under the sorter's runs is a DiskFull error", "[compact]") {
+  TempDir dir;
+  // Step 0 creates the scratch file, 1 writes the first run, 2 the second.
+  testing::FaultFileSystem fs(DefaultFileSystem(), testing::FaultKind::kDiskFull, 2);
+  index::KeySorter sorter(64 * 10, dir.path(), &fs);  // runs of 10 entries
+  absl::Status status;
+  uint32_t doc = 0;
+  for (; doc < 100 && status.ok(); ++doc) status = sorter.Add(doc + 1, doc);
+  REQUIRE(fs.fired());
+  CHECK(doc == 20);
+  CHECK(KindOf(status) == ErrorKind::kDiskFull);
+  CHECK(status.message().find("scratch directory " + dir.path()) != std::string::npos);
 }
 
 TEST_CASE("compaction under a memory budget writes the same bytes", "[compact]") {

@@ -10,6 +10,7 @@
 #include <set>
 
 #include "absl/strings/str_cat.h"
+#include "kindred/errors.h"
 #include "kindred/records.h"
 #include "core/reload.h"
 #include "kindred/shingles.h"
@@ -321,6 +322,18 @@ TEST_CASE("A document changed between the two readings is an error", "[sweep]") 
     REQUIRE(status.code() == absl::StatusCode::kInvalidArgument);
     CHECK_THAT(std::string(status.message()),
                Catch::Contains("corpus.jsonl:2") && Catch::Contains("\"b\" changed"));
+  }
+  SECTION("replaced by a directory: an input error, whatever the errno") {
+    // open() of a directory succeeds; reading it fails with EISDIR, whose
+    // canonical code (FailedPrecondition) alone would read as an index made
+    // with other settings.
+    std::filesystem::remove(path);
+    std::filesystem::create_directory(path);
+    const std::vector<uint32_t> docs = {1};
+    const absl::Status status = ReloadShingles((*reader)->ResolvedInputs(), (*reader)->options(),
+                                               settings, docs, 1, &corpus);
+    CHECK(KindOf(status) == ErrorKind::kBadInput);
+    CHECK_THAT(std::string(status.message()), Catch::Contains("corpus.jsonl: cannot read"));
   }
 }
 

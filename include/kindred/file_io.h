@@ -5,12 +5,18 @@
 // sync, a crash after the Nth write) without root or special file systems.
 // DefaultFileSystem() is the real POSIX implementation.
 //
-// Errors are values: writes report ResourceExhausted when the disk (or quota)
-// is full and Aborted for any other failed system call, with the path and
+// Scratch data (sorted runs of band keys spilled under a memory budget) goes
+// through a FileSystem too, as a ScratchFile.
+//
+// Errors are values (kindred/errors.h), with the kind decided here, where
+// they arise: writes report DiskFull (ResourceExhausted) when the disk, the
+// quota or the file size limit is full (ENOSPC, EDQUOT, EFBIG) and
+// WriteFailed (Aborted) for any other failed system call, with the path and
 // the system's message. Lock conflicts report Unavailable.
 //
 // Thread-safety: a FileSystem may be shared by threads; each AppendFile,
-// FileLock and MappedFile belongs to one thread at a time.
+// FileLock and MappedFile belongs to one thread at a time; a ScratchFile is
+// read by any number of threads at once (see there).
 #ifndef KINDRED_FILE_IO_H_
 #define KINDRED_FILE_IO_H_
 
@@ -21,6 +27,7 @@
 
 #include "absl/status/status.h"
 #include "absl/status/statusor.h"
+#include "absl/types/span.h"
 
 namespace kindred {
 
@@ -49,6 +56,32 @@ class MappedFile {
  public:
   virtual ~MappedFile() = default;
   virtual std::string_view bytes() const = 0;
+};
+
+// A temporary file without a name, for data too large for memory. It is
+// created in a directory (the scratch directory) with no name there (or
+// unlinked at once), so nothing is left behind when it is destroyed, nor
+// when the process dies. Bytes are appended at the end and read back at
+// any offset; nothing is synced.
+//
+// Thread-safety: Append is called by one thread at a time, never during a
+// ReadAt; once written, any number of threads may ReadAt at once (reads
+// share no position). size() follows the last Append.
+class ScratchFile {
+ public:
+  virtual ~ScratchFile() = default;
+  // Appends all of `bytes`. Errors: DiskFull (no space, quota or file size
+  // limit), else WriteFailed; the message names the scratch directory. After
+  // an error, size() counts what part of `bytes` was written: read only what
+  // earlier appends wrote, at the offsets size() gave before them.
+  virtual absl::Status Append(std::string_view bytes) = 0;
+  // Reads exactly out.size() bytes at `offset` into `out`. Requires
+  // offset + out.size() <= size() (else Internal). Errors: WriteFailed
+  // naming the scratch directory (the system could not read back what it
+  // took: the scratch data is lost).
+  virtual absl::Status ReadAt(uint64_t offset, absl::Span<char> out) const = 0;
+  // Bytes appended so far.
+  virtual uint64_t size() const = 0;
 };
 
 // An exclusive advisory lock, released when destroyed.
@@ -82,6 +115,10 @@ class FileSystem {
   virtual absl::Status SyncDirectoryOf(const std::string& path) = 0;
   // Whether `path` exists.
   virtual bool Exists(const std::string& path) = 0;
+  // Creates an empty ScratchFile in directory `dir`; the caller owns it.
+  // Errors: DiskFull, or WriteFailed (a missing directory, no permission),
+  // naming `dir`.
+  virtual absl::StatusOr<std::unique_ptr<ScratchFile>> CreateScratch(const std::string& dir) = 0;
 };
 
 // The POSIX file system. Never null; lives for the whole program.

@@ -43,7 +43,8 @@
 
 namespace kindred {
 
-class BandSpill;  // band keys spilled to sorted runs (internal)
+class BandSpill;   // band keys spilled to sorted runs (internal)
+class FileSystem;  // kindred/file_io.h
 
 class SignedCorpus {
  public:
@@ -188,11 +189,14 @@ class SignedCorpus {
 
   // Lean only, spilling: once the band keys held in memory take more than
   // `budget_bytes`, spill_due() says so and SpillBandKeys() moves them to
-  // sorted runs in a scratch file in `dir` (see sweep.h), keeping the
-  // memory for the next documents.
-  void SetSpill(uint64_t budget_bytes, std::string dir);
+  // sorted runs in a scratch file of `fs` (borrowed; must outlive the
+  // corpus) in directory `dir` (see sweep.h), keeping the memory for the
+  // next documents.
+  void SetSpill(uint64_t budget_bytes, std::string dir, FileSystem* fs);
   bool spill_due() const { return spill_budget_ > 0 && resident_key_bytes() > spill_budget_; }
-  // Errors: Aborted when the scratch file cannot be created or written.
+  // Errors: DiskFull when the scratch file's disk is full, else
+  // WriteFailed when it cannot be created or written (naming the scratch
+  // directory). The documents of a failed spill stay in memory.
   absl::Status SpillBandKeys();
   // The first document whose band keys are in memory (0 when none were
   // spilled), and the spilled ones (null when none).
@@ -238,6 +242,7 @@ class SignedCorpus {
   size_t key_stride_ = 0;
   uint64_t spill_budget_ = 0;
   std::string spill_dir_;
+  FileSystem* spill_fs_ = nullptr;
   size_t first_resident_ = 0;
   // Grouping identical sets (GroupIdenticalSets).
   bool identical_ = false;

@@ -21,6 +21,7 @@
 #include "kindred/candidates.h"
 #include "kindred/containment_candidates.h"
 #include "kindred/corpus.h"
+#include "kindred/file_io.h"
 #include "kindred/groups.h"
 #include "kindred/settings.h"
 #include "kindred/signed_corpus.h"
@@ -65,6 +66,8 @@ struct SweepOptions {
   // candidate pairs whose sets were not kept are read a second time.
   uint64_t memory = 0;
   std::string scratch_dir = "/tmp";
+  // Where the scratch file of spilled band keys is made (borrowed).
+  FileSystem* file_system = DefaultFileSystem();
 };
 
 struct SweepStats {

@@ -1,16 +1,11 @@
 #include "core/band_spill.h"
 
-#include <fcntl.h>
-#include <unistd.h>
-
 #include <algorithm>
 #include <bit>
-#include <cerrno>
-#include <cstring>
 
 #include "absl/base/internal/endian.h"
-#include "absl/strings/str_cat.h"
 #include "kindred/banding.h"
+#include "kindred/errors.h"
 
 namespace kindred {
 
@@ -47,26 +42,16 @@ namespace {
 constexpr size_t kEntryBytes = 12;
 constexpr size_t kCursorEntries = 4096;  // entries buffered per file cursor
 
-absl::Status WriteFailed(const std::string& dir, int error) {
-  return absl::AbortedError(absl::StrCat("scratch directory ", dir,
-                                         ": cannot write spilled band keys: ", strerror(error)));
-}
-
 }  // namespace
 
-absl::StatusOr<std::unique_ptr<BandSpill>> BandSpill::Create(const std::string& dir,
+absl::StatusOr<std::unique_ptr<BandSpill>> BandSpill::Create(FileSystem* fs, const std::string& dir,
                                                              uint32_t bands) {
-  std::string path = absl::StrCat(dir, "/kindred-bands-XXXXXX");
-  const int fd = mkostemp(path.data(), O_CLOEXEC);
-  if (fd < 0) {
-    return absl::AbortedError(
-        absl::StrCat("scratch directory ", dir, ": cannot create a file: ", strerror(errno)));
-  }
-  unlink(path.c_str());  // gone when closed, whatever happens
-  return std::unique_ptr<BandSpill>(new BandSpill(fd, dir, bands));
+  absl::StatusOr<std::unique_ptr<ScratchFile>> file = fs->CreateScratch(dir);
+  if (!file.ok()) return Annotate(file.status(), "cannot spill band keys");
+  return std::unique_ptr<BandSpill>(new BandSpill(*std::move(file), dir, bands));
 }
 
-BandSpill::~BandSpill() { close(fd_); }
+BandSpill::~BandSpill() = default;
 
 absl::Status BandSpill::AddRun(uint32_t first_doc, size_t docs,
                                absl::Span<const uint64_t* const> columns) {
@@ -90,14 +75,11 @@ absl::Status BandSpill::AddRun(uint32_t first_doc, size_t docs,
       absl::little_endian::Store32(out + 8, entry.doc);
       out += kEntryBytes;
     }
-    sections[band] = Section{end_, entries.size()};
-    for (size_t done = 0; done < bytes.size();) {
-      const ssize_t n = pwrite(fd_, bytes.data() + done, bytes.size() - done, end_ + done);
-      if (n < 0 && errno == EINTR) continue;
-      if (n <= 0) return WriteFailed(dir_, n < 0 ? errno : ENOSPC);
-      done += static_cast<size_t>(n);
+    sections[band] = Section{file_->size(), entries.size()};
+    if (bytes.empty()) continue;
+    if (absl::Status status = file_->Append(bytes); !status.ok()) {
+      return Annotate(status, "cannot spill band keys");
     }
-    end_ += bytes.size();
   }
   runs_.push_back(std::move(sections));
   return absl::OkStatus();
@@ -116,20 +98,14 @@ struct BandMerger::Cursor {
   bool has() const { return next < (spill == nullptr ? memory.size() : buffer.size()); }
   const BucketEntry& head() const { return spill == nullptr ? memory[next] : buffer[next]; }
 
-  // Refills the buffer when it is used up; Aborted when a read fails.
+  // Refills the buffer when it is used up; the scratch file's error when a
+  // read fails.
   absl::Status Fill() {
     if (spill == nullptr || next < buffer.size() || left == 0) return absl::OkStatus();
     const size_t count = static_cast<size_t>(std::min<uint64_t>(left, kCursorEntries));
     std::string bytes(count * kEntryBytes, '\0');
-    for (size_t done = 0; done < bytes.size();) {
-      const ssize_t n = pread(spill->fd_, bytes.data() + done, bytes.size() - done, offset + done);
-      if (n < 0 && errno == EINTR) continue;
-      if (n <= 0) {
-        return absl::AbortedError(absl::StrCat(
-            "scratch directory ", spill->dir_,
-            ": cannot read spilled band keys: ", n < 0 ? strerror(errno) : "file too short"));
-      }
-      done += static_cast<size_t>(n);
+    if (absl::Status status = spill->file_->ReadAt(offset, absl::MakeSpan(bytes)); !status.ok()) {
+      return Annotate(status, "cannot read spilled band keys");
     }
     buffer.resize(count);
     for (size_t i = 0; i < count; ++i) {

@@ -9,9 +9,10 @@
 // exactly the (key, document) order an in-memory sort gives, so the candidate
 // pairs are identical with and without spilling.
 //
-// The scratch file is created in the scratch directory under a private name
-// (mkstemp) and unlinked at once: nothing is left behind, even after a
-// crash. Entries are 12 bytes: key (u64) and document (u32), little-endian.
+// The runs go to one ScratchFile (kindred/file_io.h) of a FileSystem, made
+// in the scratch directory without a name: nothing is left behind, even
+// after a crash. Entries are 12 bytes: key (u64) and document (u32),
+// little-endian.
 //
 // Thread-safety: AddRun is not thread-safe; once all runs are added, any
 // number of BandMergers (one per thread) may read concurrently.
@@ -27,6 +28,7 @@
 #include "absl/status/statusor.h"
 #include "absl/types/span.h"
 #include "core/block_arena.h"
+#include "kindred/file_io.h"
 
 namespace kindred {
 
@@ -49,21 +51,26 @@ void SortEntries(EntryVector& entries, EntryVector& scratch, HugePageVector<uint
 
 class BandSpill {
  public:
-  // Errors: Aborted naming the directory when the file cannot be created.
-  static absl::StatusOr<std::unique_ptr<BandSpill>> Create(const std::string& dir, uint32_t bands);
+  // A spill to a scratch file of `fs` (borrowed; must outlive the spill) in
+  // directory `dir`. Errors: those of FileSystem::CreateScratch (DiskFull,
+  // WriteFailed), naming the directory.
+  static absl::StatusOr<std::unique_ptr<BandSpill>> Create(FileSystem* fs, const std::string& dir,
+                                                           uint32_t bands);
   ~BandSpill();
   BandSpill(const BandSpill&) = delete;
   BandSpill& operator=(const BandSpill&) = delete;
 
   // Writes one run of documents first_doc, ..., first_doc + docs - 1:
   // columns[band][i] is the key of document first_doc + i in `band`
-  // (entries equal to kNoBandKey are left out). Errors: Aborted (disk
-  // full, ...).
+  // (entries equal to kNoBandKey are left out). Errors: DiskFull when the
+  // scratch file's disk is full, else WriteFailed; the runs added before
+  // stay readable.
   absl::Status AddRun(uint32_t first_doc, size_t docs, absl::Span<const uint64_t* const> columns);
 
   uint32_t bands() const { return bands_; }
   size_t runs() const { return runs_.size(); }
-  uint64_t bytes_written() const { return end_; }
+  uint64_t bytes_written() const { return file_->size(); }
+  const std::string& dir() const { return dir_; }
 
  private:
   friend class BandMerger;
@@ -71,13 +78,12 @@ class BandSpill {
     uint64_t offset;  // byte offset in the file
     uint64_t count;   // entries
   };
-  BandSpill(int fd, std::string dir, uint32_t bands)
-      : fd_(fd), dir_(std::move(dir)), bands_(bands) {}
+  BandSpill(std::unique_ptr<ScratchFile> file, std::string dir, uint32_t bands)
+      : file_(std::move(file)), dir_(std::move(dir)), bands_(bands) {}
 
-  int fd_;
+  std::unique_ptr<ScratchFile> file_;
   std::string dir_;
   uint32_t bands_;
-  uint64_t end_ = 0;
   std::vector<std::vector<Section>> runs_;  // runs_[run][band]
 };
 
@@ -87,8 +93,8 @@ class BandMerger {
  public:
   BandMerger(const BandSpill& spill, uint32_t band, absl::Span<const BucketEntry> resident);
   ~BandMerger();
-  // The next entry into *entry; false at the end. Errors: Aborted (a read
-  // failed or the file is shorter than written).
+  // The next entry into *entry; false at the end. Errors: those of
+  // ScratchFile::ReadAt (WriteFailed: a read failed).
   absl::StatusOr<bool> Next(BucketEntry* entry);
 
  private:

@@ -140,7 +140,7 @@ absl::Status ReadLineAt(int fd, uint64_t offset, uint64_t max_bytes, const std::
       line->resize(have);
       continue;
     }
-    if (n < 0) return absl::ErrnoToStatus(errno, absl::StrCat(name, ": cannot read"));
+    if (n < 0) return InputErrno(errno, absl::StrCat(name, ": cannot read"));
     const char* newline = static_cast<const char*>(std::memchr(line->data() + have, '\n', n));
     if (newline != nullptr) {
       line->resize(static_cast<size_t>(newline - line->data()));
@@ -186,7 +186,7 @@ absl::Status ReadAtOffsets(const std::vector<ResolvedInput>& inputs, const Input
       if (fd.fd < 0) {
         fd.fd = open(input.read_path.c_str(), O_RDONLY | O_CLOEXEC);
         if (fd.fd < 0) {
-          return absl::ErrnoToStatus(errno, absl::StrCat(input.name, ": cannot open"));
+          return InputErrno(errno, absl::StrCat(input.name, ": cannot open"));
         }
       }
       Document& doc = batch[i];

@@ -59,6 +59,7 @@ SignedCorpus& SignedCorpus::operator=(SignedCorpus&& other) noexcept {
   key_stride_ = std::exchange(other.key_stride_, 0);
   spill_budget_ = other.spill_budget_;
   spill_dir_ = std::move(other.spill_dir_);
+  spill_fs_ = other.spill_fs_;
   first_resident_ = std::exchange(other.first_resident_, 0);
   identical_ = other.identical_;
   set_budget_ = other.set_budget_;
@@ -198,16 +199,17 @@ uint32_t SignedCorpus::BandKeyDigest(absl::Span<const uint64_t> keys) {
   return static_cast<uint32_t>(XXH3_64bits(keys.data(), keys.size() * sizeof(uint64_t)));
 }
 
-void SignedCorpus::SetSpill(uint64_t budget_bytes, std::string dir) {
+void SignedCorpus::SetSpill(uint64_t budget_bytes, std::string dir, FileSystem* fs) {
   spill_budget_ = budget_bytes;
   spill_dir_ = std::move(dir);
+  spill_fs_ = fs;
 }
 
 absl::Status SignedCorpus::SpillBandKeys() {
   if (first_resident_ == store_->ids.size()) return absl::OkStatus();
   if (store_->spill == nullptr) {
     absl::StatusOr<std::unique_ptr<BandSpill>> spill =
-        BandSpill::Create(spill_dir_, banding_.bands);
+        BandSpill::Create(spill_fs_, spill_dir_, banding_.bands);
     if (!spill.ok()) return spill.status();
     store_->spill = *std::move(spill);
   }

@@ -106,7 +106,9 @@ bool SweepsLean(const CorpusReader& reader, const SweepOptions& options) {
 // while they take a quarter of it (kDefaultSetMemory without a budget).
 SignedCorpus LeanCorpus(const SweepOptions& options) {
   SignedCorpus corpus = SignedCorpus::Lean(options.signature.perms, BandingFor(options));
-  if (options.memory > 0) corpus.SetSpill(options.memory / 2, options.scratch_dir);
+  if (options.memory > 0) {
+    corpus.SetSpill(options.memory / 2, options.scratch_dir, options.file_system);
+  }
   corpus.GroupIdenticalSets(options.memory > 0 ? options.memory / 4 : kDefaultSetMemory);
   return corpus;
 }

@@ -251,7 +251,7 @@ absl::StatusOr<CompactResult> CompactIndex(const std::string& path, const Compac
   }
   constexpr uint64_t kLeastBudget = uint64_t{4} << 20;
   index::KeySorter keys(compact.memory == 0 ? 0 : std::max(compact.memory, kLeastBudget),
-                        compact.scratch_dir.empty() ? DirectoryOf(path) : compact.scratch_dir);
+                        compact.scratch_dir.empty() ? DirectoryOf(path) : compact.scratch_dir, fs);
   Plan plan;
   if (absl::Status surveyed = Survey(**reader, settings, &plan, &keys); !surveyed.ok()) {
     return surveyed;

@@ -2,9 +2,9 @@
 // (FORMAT.md, "band_keys" and "band_docs") under a memory budget.
 //
 // Entries are collected in memory; with a budget, each time the collected
-// entries reach it they are sorted and written as one run to a scratch file
-// (created in the scratch directory under a private name and unlinked at
-// once, so nothing is left behind, even after a crash). Reading merges the
+// entries reach it they are sorted and written as one run to a ScratchFile
+// of a FileSystem (kindred/file_io.h: made in the scratch directory without
+// a name, so nothing is left behind, even after a crash). Reading merges the
 // runs, in exactly the (key, document) order one in-memory sort gives, so a
 // table written from it is the same bytes with and without a budget.
 //
@@ -14,11 +14,13 @@
 
 #include <cstdint>
 #include <functional>
+#include <memory>
 #include <string>
 #include <vector>
 
 #include "absl/status/status.h"
 #include "core/band_spill.h"
+#include "kindred/file_io.h"
 
 namespace kindred::index {
 
@@ -26,13 +28,15 @@ class KeySorter {
  public:
   // budget_bytes 0: every entry stays in memory (16 bytes each, plus as
   // much again while sorting). Otherwise memory stays near the budget (runs
-  // of budget / 64 entries) and runs go to a scratch file in `scratch_dir`.
-  KeySorter(uint64_t budget_bytes, std::string scratch_dir);
+  // of budget / 64 entries) and runs go to a scratch file of `fs`
+  // (borrowed; must outlive the sorter) in `scratch_dir`.
+  KeySorter(uint64_t budget_bytes, std::string scratch_dir, FileSystem* fs);
   ~KeySorter();
   KeySorter(const KeySorter&) = delete;
   KeySorter& operator=(const KeySorter&) = delete;
 
-  // Errors: Aborted naming the scratch directory (cannot create or write).
+  // Errors: DiskFull when the scratch file's disk is full, else
+  // WriteFailed, naming the scratch directory.
   absl::Status Add(uint64_t key, uint32_t doc);
   // Sorts what is left in memory; call once, after the last Add.
   absl::Status Finish();
@@ -42,7 +46,8 @@ class KeySorter {
   size_t runs() const { return runs_.size(); }
 
   // After Finish(): calls visit(entry) for every entry in (key, doc) order.
-  // May be called more than once. Errors: Aborted (a scratch read failed).
+  // May be called more than once. Errors: WriteFailed (a scratch read
+  // failed).
   absl::Status ForEach(const std::function<void(const BucketEntry&)>& visit) const;
 
  private:
@@ -56,8 +61,8 @@ class KeySorter {
   std::string dir_;
   size_t run_capacity_;  // entries per run (budget 0: unlimited)
   EntryVector entries_;
-  int fd_ = -1;
-  uint64_t end_ = 0;  // bytes written to the scratch file
+  FileSystem* fs_;
+  std::unique_ptr<ScratchFile> file_;  // made by the first run
   std::vector<Run> runs_;
   uint64_t count_ = 0;
 };

@@ -113,6 +113,73 @@ class PosixAppendFile : public AppendFile {
   uint64_t size_;
 };
 
+// A failed call on a scratch file in `dir`: DiskFull when the disk, the quota
+// or the file size limit is full, else WriteFailed (the scratch data is the
+// program's own output, whatever the call).
+absl::Status ScratchErrno(const std::string& dir, const char* what, int error) {
+  std::string message =
+      absl::StrCat("scratch directory ", dir, ": cannot ", what, ": ", std::strerror(error));
+  if (error == ENOSPC || error == EDQUOT || error == EFBIG) return DiskFull(message);
+  return WriteFailed(message);
+}
+
+class PosixScratchFile : public ScratchFile {
+ public:
+  PosixScratchFile(std::string dir, int fd) : dir_(std::move(dir)), fd_(fd) {}
+  ~PosixScratchFile() override { close(fd_); }
+
+  absl::Status Append(std::string_view bytes) override {
+    while (!bytes.empty()) {
+      const ssize_t n = pwrite(fd_, bytes.data(), bytes.size(), static_cast<off_t>(size_));
+      if (n < 0) {
+        if (errno == EINTR) continue;
+        return ScratchErrno(dir_, "write the scratch file", errno);
+      }
+      size_ += static_cast<uint64_t>(n);
+      bytes.remove_prefix(static_cast<size_t>(n));
+    }
+    return absl::OkStatus();
+  }
+
+  absl::Status ReadAt(uint64_t offset, absl::Span<char> out) const override {
+    if (offset > size_ || out.size() > size_ - offset) {
+      return absl::InternalError(absl::StrCat("scratch directory ", dir_, ": read of ", out.size(),
+                                              " bytes at ", offset, " beyond the scratch file's ",
+                                              size_));
+    }
+    for (size_t done = 0; done < out.size();) {
+      const ssize_t n =
+          pread(fd_, out.data() + done, out.size() - done, static_cast<off_t>(offset + done));
+      if (n < 0 && errno == EINTR) continue;
+      if (n <= 0) return ScratchErrno(dir_, "read the scratch file back", n < 0 ? errno : EIO);
+      done += static_cast<size_t>(n);
+    }
+    return absl::OkStatus();
+  }
+
+  uint64_t size() const override { return size_; }
+
+ private:
+  std::string dir_;
+  int fd_;
+  uint64_t size_ = 0;
+};
+
+// A new file in `dir` without a name: O_TMPFILE, or where the file system
+// lacks it, a private name (mkostemp) unlinked at once.
+absl::StatusOr<int> OpenAnonymous(const std::string& dir) {
+  int fd = open(dir.c_str(), O_TMPFILE | O_RDWR | O_CLOEXEC, 0600);
+  if (fd >= 0) return fd;
+  if (errno != EOPNOTSUPP && errno != EISDIR && errno != EINVAL) {
+    return ScratchErrno(dir, "create a scratch file", errno);
+  }
+  std::string path = absl::StrCat(dir, "/kindred-scratch-XXXXXX");
+  fd = mkostemp(path.data(), O_CLOEXEC);
+  if (fd < 0) return ScratchErrno(dir, "create a scratch file", errno);
+  unlink(path.c_str());  // gone when closed, whatever happens
+  return fd;
+}
+
 class PosixMappedFile : public MappedFile {
  public:
   PosixMappedFile(void* data, size_t size) : data_(data), size_(size) {}
@@ -237,6 +304,12 @@ class PosixFileSystem : public FileSystem {
   bool Exists(const std::string& path) override {
     struct stat st;
     return stat(path.c_str(), &st) == 0;
+  }
+
+  absl::StatusOr<std::unique_ptr<ScratchFile>> CreateScratch(const std::string& dir) override {
+    absl::StatusOr<int> fd = OpenAnonymous(dir);
+    if (!fd.ok()) return fd.status();
+    return std::make_unique<PosixScratchFile>(dir, *fd);
   }
 
  private:

@@ -132,5 +132,14 @@ expect_stderr "is not a size" "bad --memory message"
 expect_exit 7 "sweep --scratch-dir missing" -- "$KINDRED" sweep --memory 1M --scratch-dir "$WORK/missing" \
   "$WORK/big.jsonl"
 expect_stderr "scratch directory" "missing scratch directory message"
+# A full disk under the scratch file (a file size limit with SIGXFSZ ignored:
+# writes fail with EFBIG, as on a full disk with ENOSPC): exit 7 naming the
+# scratch directory, no output, nothing left in the scratch directory.
+expect_exit 7 "sweep --memory on a full disk" -- bash -c 'trap "" XFSZ; ulimit -f 64; exec "$@"' limit \
+  "$KINDRED" sweep -q --memory 1M --scratch-dir "$WORK/scratch" -o "$WORK/fullspill" "$WORK/big.jsonl"
+expect_stderr "cannot spill band keys: scratch directory $WORK/scratch: cannot write the scratch file: File too large" \
+  "full disk under the scratch file message"
+[[ -z $(ls -A "$WORK/fullspill") ]] || fail "a sweep that failed to spill left $(ls -A "$WORK/fullspill")"
+[[ -z $(ls -A "$WORK/scratch") ]] || fail "scratch directory not left empty: $(ls "$WORK/scratch")"
 
 finish

@@ -68,6 +68,35 @@ class FaultAppendFile : public AppendFile {
   std::unique_ptr<AppendFile> base_;
 };
 
+// A scratch file whose appends are steps; reads pass through.
+class FaultScratchFile : public ScratchFile {
+ public:
+  FaultScratchFile(FaultFileSystem* owner, std::unique_ptr<ScratchFile> base, std::string dir)
+      : owner_(owner), base_(std::move(base)), dir_(std::move(dir)) {}
+
+  absl::Status Append(std::string_view bytes) override {
+    switch (owner_->NextStep(/*is_append=*/true, /*is_sync=*/false)) {
+      case FaultFileSystem::Verdict::kProceed:
+        return base_->Append(bytes);
+      case FaultFileSystem::Verdict::kHalfThenFail:
+        base_->Append(bytes.substr(0, bytes.size() / 2)).IgnoreError();
+        break;
+      case FaultFileSystem::Verdict::kFail:
+        break;
+    }
+    return Annotate(owner_->FaultStatus(), "scratch directory " + dir_);
+  }
+  absl::Status ReadAt(uint64_t offset, absl::Span<char> out) const override {
+    return base_->ReadAt(offset, out);
+  }
+  uint64_t size() const override { return base_->size(); }
+
+ private:
+  FaultFileSystem* owner_;
+  std::unique_ptr<ScratchFile> base_;
+  std::string dir_;
+};
+
 }  // namespace
 
 FaultFileSystem::Verdict FaultFileSystem::NextStep(bool is_append, bool is_sync,
@@ -125,6 +154,20 @@ absl::Status FaultFileSystem::Remove(const std::string& path) {
 absl::Status FaultFileSystem::SyncDirectoryOf(const std::string& path) {
   if (NextStep(false, /*is_sync=*/true) != Verdict::kProceed) return FaultStatus();
   return base_->SyncDirectoryOf(path);
+}
+
+}  // namespace kindred::testing
+
+namespace kindred::testing {
+
+absl::StatusOr<std::unique_ptr<ScratchFile>> FaultFileSystem::CreateScratch(
+    const std::string& dir) {
+  if (NextStep(false, false) != Verdict::kProceed) {
+    return Annotate(FaultStatus(), "scratch directory " + dir);
+  }
+  auto file = base_->CreateScratch(dir);
+  if (!file.ok()) return file.status();
+  return std::unique_ptr<ScratchFile>(new FaultScratchFile(this, *std::move(file), dir));
 }
 
 }  // namespace kindred::testing

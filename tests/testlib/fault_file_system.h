@@ -1,7 +1,8 @@
 // Test-only: a FileSystem that forwards to another and injects faults, for
 // tests of crash safety and full disks (index writers, output files). Each
 // mutating call (Append, WriteAt, Sync, Truncate, Rename, Remove,
-// SyncDirectoryOf, CreateNew) counts as one step. When the step numbered
+// SyncDirectoryOf, CreateNew, CreateScratch, and a ScratchFile's Append)
+// counts as one step. When the step numbered
 // `fail_at` (0-based) comes:
 //
 // * kCrash: an Append or WriteAt writes only the first half of its bytes,
@@ -14,7 +15,11 @@
 //   run.
 // * kSyncFails: the step fails only if it is a Sync; other steps pass.
 //
-// Reads (Map, Exists, LockExclusive) are never failed. Not thread-safe.
+// A scratch file's failed Append names its directory, as the real one does.
+//
+// Reads (Map, Exists, LockExclusive, a ScratchFile's ReadAt) are never
+// failed. Not thread-safe, except that a ScratchFile's ReadAt (which counts
+// no step) may be called from several threads at once.
 #ifndef KINDRED_TESTS_TESTLIB_FAULT_FILE_SYSTEM_H_
 #define KINDRED_TESTS_TESTLIB_FAULT_FILE_SYSTEM_H_
 
@@ -58,6 +63,7 @@ class FaultFileSystem : public FileSystem {
   absl::Status Remove(const std::string& path) override;
   absl::Status SyncDirectoryOf(const std::string& path) override;
   bool Exists(const std::string& path) override { return base_->Exists(path); }
+  absl::StatusOr<std::unique_ptr<ScratchFile>> CreateScratch(const std::string& dir) override;
 
   // One mutating step. Returns what the step must do.
   enum class Verdict { kProceed, kHalfThenFail, kFail };
