@@ -12,12 +12,12 @@
 #      (tools/check_sizes.py).
 # Prints a summary and exits non-zero when a step failed.
 #
-#   tools/ci_checks.sh                      # both steps, 50 s per fuzz target
+#   tools/ci_checks.sh                      # both steps, 40 s per fuzz target
 #   KINDRED_FUZZ_SECONDS=300 tools/ci_checks.sh fuzz
 #   tools/ci_checks.sh asan
 #   tools/ci_checks.sh sizes
 #
-# Environment: KINDRED_FUZZ_SECONDS (default 50) per target, KINDRED_FUZZ_SEED
+# Environment: KINDRED_FUZZ_SECONDS (default 40) per target, KINDRED_FUZZ_SEED
 # (default 1), KINDRED_JOBS (default: all cores). A finding is saved as
 # build-fuzz/findings/<target>-crash-<sha1>; once the bug is fixed, commit it
 # under tests/fuzz/regressions/<target>/ so every build replays it.
@@ -27,7 +27,7 @@ cd "$(dirname "$0")/.." || exit 2
 steps=("$@")
 ((${#steps[@]} > 0)) || steps=(asan fuzz sizes)
 jobs=${KINDRED_JOBS:-$(nproc)}
-fuzz_seconds=${KINDRED_FUZZ_SECONDS:-50}
+fuzz_seconds=${KINDRED_FUZZ_SECONDS:-40}
 fuzz_seed=${KINDRED_FUZZ_SEED:-1}
 summary=()
 failed=0
