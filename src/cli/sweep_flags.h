@@ -78,9 +78,13 @@ absl::Status ToSweepPlan(const SweepFlags& flags, SweepPlan* plan);
 // Whether any of --write-kept, --copy-kept, --list-kept is given.
 bool WantsKept(const SweepFlags& flags);
 
+// The directory of the scratch file of --memory: --scratch-dir, else
+// $TMPDIR, else /tmp.
+std::string ScratchDirectoryOf(const SweepFlags& flags);
+
 // The checks made after the inputs are resolved and before any is read:
-// record files and kept outputs. Returns kExitOk, or the exit code after
-// printing the error.
+// record files, kept outputs, and with --memory the scratch directory.
+// Returns kExitOk, or the exit code after printing the error.
 int CheckSweepOutputs(const SweepFlags& flags, const RecordOutputs& records,
                       const CorpusReader& reader);
 

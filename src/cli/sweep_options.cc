@@ -91,15 +91,17 @@ absl::Status ToResources(const SweepFlags& flags, SweepOptions* options) {
     }
     options->memory = *memory;
   }
-  options->scratch_dir = flags.scratch_dir;
-  if (options->scratch_dir.empty()) {
-    const char* tmpdir = std::getenv("TMPDIR");
-    options->scratch_dir = tmpdir != nullptr && *tmpdir != '\0' ? tmpdir : "/tmp";
-  }
+  options->scratch_dir = ScratchDirectoryOf(flags);
   return absl::OkStatus();
 }
 
 }  // namespace
+
+std::string ScratchDirectoryOf(const SweepFlags& flags) {
+  if (!flags.scratch_dir.empty()) return flags.scratch_dir;
+  const char* tmpdir = std::getenv("TMPDIR");
+  return tmpdir != nullptr && *tmpdir != '\0' ? tmpdir : "/tmp";
+}
 
 void AddSweepOptions(CLI::App* command, SweepFlags* flags) {
   AddInputsArgument(command, &flags->inputs);

@@ -13,6 +13,7 @@
 #include "io/output_guard.h"
 #include "io/warc_reader.h"
 #include "kindred/errors.h"
+#include "kindred/file_io.h"
 #include "kindred/sweep_stages.h"
 
 namespace kindred::cli {
@@ -128,6 +129,11 @@ absl::Status CheckOutputLocations(const SweepFlags& flags) {
   if (status.ok()) status = CheckKeptFile(flags.write_kept);
   if (status.ok()) status = CheckKeptFile(flags.list_kept);
   if (status.ok()) status = CheckCopyDirectory(flags.copy_kept);
+  // With --memory, a scratch file made in the scratch directory (and
+  // dropped: it has no name there) before the work, not at the first spill.
+  if (status.ok() && !flags.memory.empty()) {
+    status = DefaultFileSystem()->CreateScratch(ScratchDirectoryOf(flags)).status();
+  }
   return status;
 }
 

@@ -132,6 +132,12 @@ expect_stderr "is not a size" "bad --memory message"
 expect_exit 7 "sweep --scratch-dir missing" -- "$KINDRED" sweep --memory 1M --scratch-dir "$WORK/missing" \
   "$WORK/big.jsonl"
 expect_stderr "scratch directory" "missing scratch directory message"
+# The scratch directory is checked before any input is read: an input that
+# is malformed on its fifth line is not reached.
+{ head -n 4 "$WORK/big.jsonl"; echo '{"id": "broken"'; } >"$WORK/broken.jsonl"
+expect_exit 7 "sweep --scratch-dir missing, checked first" -- "$KINDRED" sweep --memory 1M \
+  --scratch-dir "$WORK/missing" "$WORK/broken.jsonl"
+expect_stderr "kindred: scratch directory $WORK/missing: cannot" "scratch directory checked first"
 # A full disk under the scratch file (a file size limit with SIGXFSZ ignored:
 # writes fail with EFBIG, as on a full disk with ENOSPC): exit 7 naming the
 # scratch directory, no output, nothing left in the scratch directory.
