@@ -4,7 +4,7 @@
 // Growing one std::vector by doubling copies everything several times and
 // faults in fresh pages at each step; on a corpus of millions of documents
 // that cost more than signing itself. Blocks are never moved, so appending
-// copies each value once, and blocks are 2 MiB aligned and advised as huge
+// copies each value once, and blocks from 2 MiB on are 2 MiB aligned and advised as huge
 // pages where the kernel allows it, which cuts page faults by ~500x.
 //
 // Not thread-safe for Append; reads of appended data may be concurrent.
@@ -38,7 +38,12 @@ template <typename T>
 class BlockArena {
  public:
   static constexpr size_t kAlignment = size_t{2} << 20;    // one huge page
-  static constexpr size_t kBlockBytes = size_t{32} << 20;  // per block
+  static constexpr size_t kSmallAlignment = 64;             // a cache line
+  static constexpr size_t kBlockBytes = size_t{32} << 20;  // per block, at most
+  // The first block; each next one doubles up to kBlockBytes, so that a
+  // corpus of a few documents (a query, a test) does not fault in a whole
+  // huge page per arena.
+  static constexpr size_t kFirstBlockBytes = size_t{64} << 10;
 
   BlockArena() = default;
   BlockArena(BlockArena&&) noexcept = default;
@@ -99,9 +104,18 @@ class BlockArena {
         return;
       }
     }
-    const size_t bytes =
-        (std::max(kBlockBytes, at_least * sizeof(T)) + kAlignment - 1) / kAlignment * kAlignment;
-    void* memory = AllocateHugePages(bytes);
+    const size_t grown = blocks_.empty() ? kFirstBlockBytes
+                                         : std::min(kBlockBytes, 2 * blocks_.back().values * sizeof(T));
+    size_t bytes = std::max(grown, at_least * sizeof(T));
+    void* memory;
+    if (bytes >= kAlignment) {
+      bytes = (bytes + kAlignment - 1) / kAlignment * kAlignment;
+      memory = AllocateHugePages(bytes);
+    } else {
+      bytes = (bytes + kSmallAlignment - 1) / kSmallAlignment * kSmallAlignment;
+      memory = std::aligned_alloc(kSmallAlignment, bytes);
+      if (memory == nullptr) throw std::bad_alloc();
+    }
     blocks_.push_back(Block{std::unique_ptr<T, Free>(static_cast<T*>(memory)), bytes / sizeof(T)});
     current_ = blocks_.size() - 1;
     next_ = blocks_.back().data.get();

@@ -238,7 +238,9 @@ expect_exit 0 "add after the disk has room" -- "$KINDRED" add -q "$INDEX" "$WORK
 expect_exit 7 "build on a full disk" -- limited 8 "$KINDRED" build -q "$WORK/full.kin" "$WORK/big.jsonl"
 [[ ! -e "$WORK/full.kin" ]] || fail "a failed build left an index file"
 mkdir -p "$WORK/fullout"
-expect_exit 7 "sweep -o on a full disk" -- limited 8 "$KINDRED" sweep -q "$WORK/big.jsonl" -o "$WORK/fullout" --threshold 0.5
+# 200 documents give some 400 kB of pairs at 0.5 (all 2000: 46 MB).
+head -n 200 "$WORK/big.jsonl" >"$WORK/some.jsonl"
+expect_exit 7 "sweep -o on a full disk" -- limited 8 "$KINDRED" sweep -q "$WORK/some.jsonl" -o "$WORK/fullout" --threshold 0.5
 expect_no_outputs "$WORK/fullout" "sweep -o on a full disk"
 [[ -z "$(ls -A "$WORK/fullout")" ]] || fail "temporary outputs left behind: $(ls -A "$WORK/fullout")"
 
@@ -284,18 +286,22 @@ expect_no_outputs "$WORK/killed" "kill -9 while reading"
 $PY - "$WORK/many.jsonl" <<'PY'
 import json, sys
 with open(sys.argv[1], "w") as out:
-    for i in range(40000):
+    for i in range(12000):
         out.write(json.dumps({"id": f"m{i}", "text": f"notice {i % 500}: the council meets on day {i % 28} to discuss item {i % 97} of the agenda"}) + "\n")
 PY
 "$KINDRED" sweep -q "$WORK/good.jsonl" -o "$WORK/killed" --threshold 0.5
+start=$(date +%s.%N)
 "$KINDRED" sweep -q "$WORK/many.jsonl" -o "$WORK/complete" --threshold 0.5
-for delay in 0.1 0.3 0.6 1 1.5; do
+took=$(echo "$start $(date +%s.%N)" | awk '{print $2 - $1}')
+# Kills spread over the time a whole sweep took on this build (a sanitizer
+# build is ten times slower): early, mid-way, and while writing.
+for fraction in 0.1 0.3 0.5 0.7 0.9; do
+  delay=$(echo "$took $fraction" | awk '{printf "%.3f", $1 * $2}')
   cp -r "$WORK/killed" "$WORK/before_kill"
-  "$KINDRED" sweep -q "$WORK/many.jsonl" -o "$WORK/killed" --threshold 0.5 >/dev/null 2>&1 &
-  pid=$!
-  sleep "$delay"
-  kill -9 $pid 2>/dev/null
-  wait $pid 2>/dev/null
+  # (timeout, the program's parent, kills it: never another process that
+  # took the pid of a sweep already done.)
+  timeout -s KILL "$delay" "$KINDRED" sweep -q "$WORK/many.jsonl" -o "$WORK/killed" \
+    --threshold 0.5 >/dev/null 2>&1
   for name in pairs groups decisions; do
     cmp -s "$WORK/killed/$name.jsonl" "$WORK/before_kill/$name.jsonl" ||
       cmp -s "$WORK/killed/$name.jsonl" "$WORK/complete/$name.jsonl" ||

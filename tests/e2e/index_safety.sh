@@ -191,12 +191,10 @@ expect_stderr "removed $WORK/x.kin.tmp.$dead (3000 bytes), left by process $dead
 rm -f "$WORK/x.kin.tmp.$$"
 
 # SIGTERM during build --memory: the partial file goes with the process.
-"$KINDRED" build -q --memory 1M "$WORK/built.kin" "$WORK/corpus.jsonl" "$WORK/corpus.jsonl" \
-  "$WORK/corpus.jsonl" 2>/dev/null &
-pid=$!
-sleep 0.05
-kill -TERM "$pid" 2>/dev/null
-{ wait "$pid"; } 2>/dev/null
+# (timeout sends the signals: it is the program's parent, so the signal
+# cannot reach another process that took a finished program's pid.)
+timeout -s TERM 0.05 "$KINDRED" build -q --memory 1M "$WORK/built.kin" "$WORK/corpus.jsonl" \
+  "$WORK/corpus.jsonl" "$WORK/corpus.jsonl" 2>/dev/null
 [[ -z $(find "$WORK" -name 'built.kin.*') ]] || fail "build left: $(ls "$WORK")"
 
 # Compact killed at random moments (SIGTERM, then SIGKILL): the old index
@@ -206,11 +204,7 @@ RANDOM=7
 for trial in $(seq 1 20); do
   signal=TERM
   ((trial % 2 == 0)) && signal=KILL
-  "$KINDRED" compact -q "$WORK/k.kin" 2>/dev/null &
-  pid=$!
-  sleep "0.00$((RANDOM % 10))"
-  kill -"$signal" "$pid" 2>/dev/null
-  { wait "$pid"; } 2>/dev/null
+  timeout -s "$signal" "0.00$((RANDOM % 9 + 1))" "$KINDRED" compact -q "$WORK/k.kin" 2>/dev/null
   expect_exit 0 "audit after compact killed by SIG$signal (trial $trial)" -- "$KINDRED" audit \
     "$WORK/k.kin"
   grep -q "450 documents" "$WORK/err" || fail "trial $trial: $(cat "$WORK/err")"
