@@ -97,68 +97,94 @@ class ClusterSummary:
         return "\n".join(lines)
 
 
-def _first_error(futures):
-    """Waits for `futures`; raises the exception of the first (in order)
-    that failed, as a local sweep reports the first bad shard."""
+def _raise_first(stages_in_order):
+    """Waits for the stages' futures in order and raises the exception of
+    the first task (stage by stage, in order within a stage) that failed,
+    as a local sweep reports the first bad shard; returns if none did."""
     from distributed import wait
-    wait(futures)
-    for future in futures:
-        if future.status == "error":
-            raise future.exception()
+    for futures in stages_in_order:
+        wait(futures)
+        for future in futures:
+            if future.status == "error":
+                raise future.exception()
 
 
-def _stage(summary, name, client, futures, sizes_of):
-    """Waits for a stage, and records its tasks and time; the bytes of
-    `sizes_of` (its outputs) are counted on the workers and gathered at the
-    end (_sizes), so that the stage does not wait for them."""
-    start = summary._clock
-    _first_error(futures)
-    now = time.monotonic()
-    summary.stages.append(StageSummary(name, len(futures), now - start, 0))
-    summary._sizes.append([client.submit(stages.size, f, pure=False) for f in sizes_of])
-    summary._clock = now
+class _Clock:
+    """When each stage's last task finished, from the futures' done
+    callbacks (the whole graph is submitted at once: no stage waits for the
+    one before it to finish before its tasks are submitted)."""
+
+    def __init__(self):
+        self.start = time.monotonic()
+        self.ends = {}
+
+    def watch(self, name, futures):
+        def done(_future, name=name):
+            now = time.monotonic()
+            self.ends[name] = max(self.ends.get(name, 0.0), now)
+        for future in futures:
+            future.add_done_callback(done)
+
+    def seconds(self, names):
+        """Each stage's wall time: from the end of the stage before (the
+        start, for the first) to the end of its own last task."""
+        out, before = [], self.start
+        for name in names:
+            end = max(self.ends.get(name, before), before)
+            out.append(end - before)
+            before = end
+        return out
 
 
-def _sizes(summary, client):
-    """Fills in the bytes of every stage, and the pair counts."""
-    sizes, counts = client.gather([summary._sizes, summary._counts])
-    for stage, stage_sizes in zip(summary.stages, sizes):
-        stage.bytes_out = sum(stage_sizes)
-    summary.candidate_pairs, summary.confirmed_pairs = (sum(c) for c in counts)
+def _bytes_of(client, leaves):
+    """The bytes of each list of futures of `leaves` (each holding one bytes
+    object), from the sizes the workers reported to the scheduler (for
+    bytes, their length); measured by a task where the scheduler has none."""
+    keys = [f.key for stage in leaves for f in stage]
+
+    def nbytes(keys, dask_scheduler=None):
+        tasks = dask_scheduler.tasks
+        return [tasks[k].nbytes if k in tasks else -1 for k in keys]
+
+    sizes = iter(client.run_on_scheduler(nbytes, keys))
+    out = []
+    for stage in leaves:
+        got = [next(sizes) for _ in stage]
+        missing = [f for f, n in zip(stage, got) if n < 0]
+        if missing:
+            got = [n for n in got if n >= 0] + client.gather(
+                [client.submit(stages.size, f, pure=False) for f in missing])
+        out.append(sum(got))
+    return out
 
 
-def _components(summary, client, scored, parts):
+def _components(client, scored, parts, watch):
     """The connected components of the confirmed pairs (components.py:
     large-star / small-star rounds, a task per node partition and step) ->
-    a future of the star edges (member, smallest member), one bytes."""
+    (a future of the star edges (member, smallest member), one bytes; the
+    tasks; the futures of the edge lists handed on; the steps)."""
     submit = client.submit
     firsts = [submit(stages.first_edges, f, parts) for f in scored]
     lists = [[submit(stages.pick, f, p) for p in range(parts)] for f in firsts]
-    tasks, moved, steps = len(firsts), list(firsts), 0
+    tasks, moved, steps = len(firsts), [x for row in lists for x in row], 0
     while True:
         large = [submit(stages.large_star, [row[p] for row in lists], parts) for p in range(parts)]
-        to_small = [[submit(stages.pick, submit(stages.pick, f, 0), p) for p in range(parts)]
-                    for f in large]
+        to_small = [[submit(stages.pick, f, p) for p in range(parts)] for f in large]
         small = [submit(stages.small_star, [row[p] for row in to_small], parts)
                  for p in range(parts)]
-        lists = [[submit(stages.pick, submit(stages.pick, f, 0), p) for p in range(parts)]
-                 for f in small]
-        star_parts = [submit(stages.pick, f, 1) for f in small]
-        flags = client.gather([submit(stages.pick, f, 1) for f in large] +
-                              [submit(stages.pick, f, 2) for f in small])
+        lists = [[submit(stages.pick, f, p) for p in range(parts)] for f in small]
+        star_parts = [submit(stages.pick, f, parts) for f in small]
+        watch(large + small)
+        flags = client.gather([submit(stages.pick, f, parts) for f in large] +
+                              [submit(stages.pick, f, parts + 1) for f in small])
         tasks += 2 * parts
         steps += 2
-        moved += large + small
+        moved += [x for row in to_small + lists for x in row]
         if not any(flags):
             break
     stars = submit(stages.join, star_parts)
-    _first_error([stars])
-    now = time.monotonic()
-    summary.stages.append(StageSummary("groups", tasks, now - summary._clock, 0))
-    summary._sizes.append([submit(stages.size, f, pure=False) for f in moved])
-    summary.component_steps = steps
-    summary._clock = now
-    return stars
+    watch([stars])
+    return stars, tasks, moved + star_parts, steps
 
 
 def sweep(client, shards: Sequence[str], output_dir: str, *,
@@ -204,60 +230,73 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
     options = dict(input_format=input_format, id_field=id_field, text_field=text_field,
                    priority_field=priority_field)
     summary = ClusterSummary(0, len(shards), partitions, ranges, bands, rows, 0, 0)
-    summary._clock = time.monotonic()
-    summary._sizes, summary._counts = [], []
+    clock = _Clock()
     submit = client.submit
+    n = len(shards)
 
+    # The whole graph up to finish, at once: the scheduler runs each task as
+    # soon as its inputs are there (a pick runs where its tuple is).
     signed = [submit(stages.sign_shard, path, settings, options, bands, rows, partitions)
               for path in shards]
     tables = [submit(stages.pick, f, 0) for f in signed]
-    keys = [[submit(stages.pick, submit(stages.pick, f, 1), p) for p in range(partitions)]
-            for f in signed]
-    _first_error(signed)
-    counts = client.gather([submit(stages.document_count, t) for t in tables])
-    offsets = [sum(counts[:n]) for n in range(len(counts) + 1)]
-    documents = offsets[-1]
-    summary.documents = documents
-    _stage(summary, "sign", client, signed, signed)
-
-    found = [submit(stages.candidates, [keys[s][p] for s in range(len(shards))], offsets,
-                    documents, ranges, max_bucket)
-             for p in range(partitions)]
+    keys = [[submit(stages.pick, f, 1 + p) for p in range(partitions)] for f in signed]
+    counts = [submit(stages.document_count, t) for t in tables]
+    found = [submit(stages.candidates, [keys[s][p] for s in range(n)], counts, ranges,
+                    max_bucket) for p in range(partitions)]
     routed = [[submit(stages.pick, f, v) for v in range(ranges)] for f in found]
-    _stage(summary, "candidates", client, found, found)
-
-    plans = [submit(stages.plan, [routed[p][v] for p in range(partitions)], offsets)
+    plans = [submit(stages.plan, [routed[p][v] for p in range(partitions)], counts)
              for v in range(ranges)]
     pairs = [submit(stages.pick, f, 0) for f in plans]
-    wanted = [[submit(stages.pick, submit(stages.pick, f, 1), s) for s in range(len(shards))]
-              for f in plans]
-    _stage(summary, "plan", client, plans, plans)
-    summary._counts = [[submit(stages.candidate_count, f) for f in pairs]]
-
+    wanted = [[submit(stages.pick, f, 1 + s) for s in range(n)] for f in plans]
     extracted = [submit(stages.read_sets, shards[s], settings, options, tables[s],
-                        [wanted[v][s] for v in range(ranges)], offsets[s])
-                 for s in range(len(shards))]
+                        [wanted[v][s] for v in range(ranges)], counts[:s])
+                 for s in range(n)]
     sets = [[submit(stages.pick, f, v) for v in range(ranges)] for f in extracted]
-    _stage(summary, "sets", client, extracted, extracted)
-
-    scored = [submit(stages.verify, pairs[v], [sets[s][v] for s in range(len(shards))],
+    scored = [submit(stages.verify, pairs[v], [sets[s][v] for s in range(n)],
                      threshold, bands, rows) for v in range(ranges)]
-    _stage(summary, "verify", client, scored, scored)
-    summary._counts.append([submit(stages.scored_count, f) for f in scored])
-
-    stars = None
-    if grouping == "components":
-        stars = _components(summary, client, scored, partitions)
-    done = submit(stages.finish, tables, shards, scored, stars, keep, grouping, format,
-                  os.fspath(output_dir))
-    _stage(summary, "finish", client, [done], [done] if write_kept else [])
+    stage_futures = [signed, found, plans, extracted, scored]
+    names = ["sign", "candidates", "plan", "sets", "verify"]
+    for name, futures in zip(names, stage_futures):
+        clock.watch(name, futures)
+    task_counts = [len(f) for f in stage_futures]
+    leaves = [tables + [k for row in keys for k in row], [r for row in routed for r in row],
+              pairs + [w for row in wanted for w in row], [x for row in sets for x in row],
+              scored]
+    try:
+        stars = None
+        if grouping == "components":
+            stars, tasks, moved, summary.component_steps = _components(
+                client, scored, partitions, lambda fs: clock.watch("groups", fs))
+            names.append("groups")
+            task_counts.append(tasks)
+            leaves.append(moved)
+        done = submit(stages.finish, tables, shards, scored, stars, keep, grouping, format,
+                      os.fspath(output_dir))
+        clock.watch("finish", [done])
+        names.append("finish")
+        task_counts.append(1)
+        drops = [submit(stages.pick, done, s) for s in range(n)] if write_kept else []
+        leaves.append(drops)
+        kept = []
+        if write_kept:
+            kept = [submit(stages.write_kept, shards[s], options, drops[s], counts[s],
+                           os.fspath(write_kept)) for s in range(n)]
+            clock.watch("kept", kept)
+            names.append("kept")
+            task_counts.append(n)
+            leaves.append([])
+        documents, kept_counts = client.gather([counts, kept])
+        _raise_first([[done]])
+    except Exception:
+        _raise_first(stage_futures)
+        raise
+    summary.documents = sum(documents)
     if write_kept:
-        kept = [submit(stages.write_kept, shards[s], options, submit(stages.pick, done, s),
-                       counts[s], os.fspath(write_kept)) for s in range(len(shards))]
-        _first_error(kept)
-        summary.kept = sum(client.gather(kept))
-        summary.stages.append(StageSummary("kept", len(kept), time.monotonic() - summary._clock,
-                                           0))
-        summary._sizes.append([])
-    _sizes(summary, client)
+        summary.kept = sum(kept_counts)
+    for name, tasks, seconds, size in zip(names, task_counts, clock.seconds(names),
+                                          _bytes_of(client, leaves)):
+        summary.stages.append(StageSummary(name, tasks, seconds, size))
+    pair_counts = client.gather([[submit(stages.candidate_count, f) for f in pairs],
+                                 [submit(stages.scored_count, f) for f in scored]])
+    summary.candidate_pairs, summary.confirmed_pairs = (sum(c) for c in pair_counts)
     return summary
