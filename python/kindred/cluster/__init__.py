@@ -41,6 +41,7 @@ from __future__ import annotations
 
 import os
 import time
+import uuid
 from dataclasses import dataclass, field
 from typing import List, Optional, Sequence
 
@@ -125,6 +126,10 @@ class _Clock:
         for future in futures:
             future.add_done_callback(done)
 
+    def last(self, name):
+        """`name` finished now (its done callbacks may be late)."""
+        self.ends[name] = time.monotonic()
+
     def seconds(self, names):
         """Each stage's wall time: from the end of the stage before (the
         start, for the first) to the end of its own last task."""
@@ -158,33 +163,65 @@ def _bytes_of(client, leaves):
     return out
 
 
-def _components(client, scored, parts, watch):
+class _Graph:
+    """Tasks to submit together: one call for a whole graph, not a call per
+    task (each submission costs the client and the scheduler more than a
+    small task's work). A task's arguments name the tasks of the same graph
+    by key, and those of graphs submitted before by their futures."""
+
+    def __init__(self, tag: str):
+        self.tag, self.tasks = tag, {}
+
+    def add(self, name: str, function, *args) -> str:
+        key = f"kindred-{name}-{self.tag}-{len(self.tasks)}"
+        self.tasks[key] = (function, *args)
+        return key
+
+    def pick(self, key, index: int) -> str:
+        return self.add("pick", stages.pick, key, index)
+
+    def submit(self, client) -> dict:
+        """Submits the tasks: key -> future."""
+        keys = list(self.tasks)
+        return dict(zip(keys, client.get(self.tasks, keys, sync=False)))
+
+
+def _components(client, scored, parts, watch, tag):
     """The connected components of the confirmed pairs (components.py:
-    large-star / small-star rounds, a task per node partition and step) ->
-    (a future of the star edges (member, smallest member), one bytes; the
-    tasks; the futures of the edge lists handed on; the steps)."""
-    submit = client.submit
-    firsts = [submit(stages.first_edges, f, parts) for f in scored]
-    lists = [[submit(stages.pick, f, p) for p in range(parts)] for f in firsts]
+    large-star / small-star rounds, a task per node partition and step; a
+    graph a step, as each round depends on whether the one before changed
+    anything) -> (a future of the star edges (member, smallest member), one
+    bytes; the tasks; the futures of the edge lists handed on; the steps)."""
+    graph = _Graph(f"{tag}-edges")
+    firsts = [graph.add("first-edges", stages.first_edges, f, parts) for f in scored]
+    lists = [[graph.pick(f, p) for p in range(parts)] for f in firsts]
+    futures = graph.submit(client)
+    lists = [[futures[k] for k in row] for row in lists]
     tasks, moved, steps = len(firsts), [x for row in lists for x in row], 0
     while True:
-        large = [submit(stages.large_star, [row[p] for row in lists], parts) for p in range(parts)]
-        to_small = [[submit(stages.pick, f, p) for p in range(parts)] for f in large]
-        small = [submit(stages.small_star, [row[p] for row in to_small], parts)
+        graph = _Graph(f"{tag}-round-{steps // 2}")
+        large = [graph.add("large-star", stages.large_star, [row[p] for row in lists], parts)
                  for p in range(parts)]
-        lists = [[submit(stages.pick, f, p) for p in range(parts)] for f in small]
-        star_parts = [submit(stages.pick, f, parts) for f in small]
-        watch(large + small)
-        flags = client.gather([submit(stages.pick, f, parts) for f in large] +
-                              [submit(stages.pick, f, parts + 1) for f in small])
+        to_small = [[graph.pick(f, p) for p in range(parts)] for f in large]
+        small = [graph.add("small-star", stages.small_star, [row[p] for row in to_small], parts)
+                 for p in range(parts)]
+        lists = [[graph.pick(f, p) for p in range(parts)] for f in small]
+        star_parts = [graph.pick(f, parts) for f in small]
+        flags = [graph.pick(f, parts) for f in large] + [graph.pick(f, parts + 1) for f in small]
+        futures = graph.submit(client)
+        watch([futures[k] for k in large + small])
+        flags = client.gather([futures[k] for k in flags])
+        lists = [[futures[k] for k in row] for row in lists]
         tasks += 2 * parts
         steps += 2
-        moved += [x for row in to_small + lists for x in row]
+        moved += [futures[k] for row in to_small for k in row] + [x for row in lists for x in row]
         if not any(flags):
             break
-    stars = submit(stages.join, star_parts)
+    graph = _Graph(f"{tag}-stars")
+    stars = graph.add("stars", stages.join, [futures[k] for k in star_parts])
+    stars = graph.submit(client)[stars]
     watch([stars])
-    return stars, tasks, moved + star_parts, steps
+    return stars, tasks, moved + [futures[k] for k in star_parts], steps
 
 
 def sweep(client, shards: Sequence[str], output_dir: str, *,
@@ -231,62 +268,74 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
                    priority_field=priority_field)
     summary = ClusterSummary(0, len(shards), partitions, ranges, bands, rows, 0, 0)
     clock = _Clock()
-    submit = client.submit
     n = len(shards)
+    tag = uuid.uuid4().hex
 
-    # The whole graph up to finish, at once: the scheduler runs each task as
-    # soon as its inputs are there (a pick runs where its tuple is).
-    signed = [submit(stages.sign_shard, path, settings, options, bands, rows, partitions)
+    # The whole graph up to the components, at once: the scheduler runs each
+    # task as soon as its inputs are there (a pick runs where its tuple is).
+    graph = _Graph(tag)
+    add, pick = graph.add, graph.pick
+    signed = [add("sign", stages.sign_shard, path, settings, options, bands, rows, partitions)
               for path in shards]
-    tables = [submit(stages.pick, f, 0) for f in signed]
-    keys = [[submit(stages.pick, f, 1 + p) for p in range(partitions)] for f in signed]
-    counts = [submit(stages.document_count, t) for t in tables]
-    found = [submit(stages.candidates, [keys[s][p] for s in range(n)], counts, ranges,
-                    max_bucket) for p in range(partitions)]
-    routed = [[submit(stages.pick, f, v) for v in range(ranges)] for f in found]
-    plans = [submit(stages.plan, [routed[p][v] for p in range(partitions)], counts)
+    tables = [pick(f, 0) for f in signed]
+    keys = [[pick(f, 1 + p) for p in range(partitions)] for f in signed]
+    counts = [add("count", stages.document_count, t) for t in tables]
+    found = [add("candidates", stages.candidates, [keys[s][p] for s in range(n)], counts,
+                 ranges, max_bucket) for p in range(partitions)]
+    routed = [[pick(f, v) for v in range(ranges)] for f in found]
+    plans = [add("plan", stages.plan, [routed[p][v] for p in range(partitions)], counts)
              for v in range(ranges)]
-    pairs = [submit(stages.pick, f, 0) for f in plans]
-    wanted = [[submit(stages.pick, f, 1 + s) for s in range(n)] for f in plans]
-    extracted = [submit(stages.read_sets, shards[s], settings, options, tables[s],
-                        [wanted[v][s] for v in range(ranges)], counts[:s])
-                 for s in range(n)]
-    sets = [[submit(stages.pick, f, v) for v in range(ranges)] for f in extracted]
-    scored = [submit(stages.verify, pairs[v], [sets[s][v] for s in range(n)],
-                     threshold, bands, rows) for v in range(ranges)]
-    stage_futures = [signed, found, plans, extracted, scored]
+    pairs = [pick(f, 0) for f in plans]
+    wanted = [[pick(f, 1 + s) for s in range(n)] for f in plans]
+    extracted = [add("sets", stages.read_sets, shards[s], settings, options, tables[s],
+                     [wanted[v][s] for v in range(ranges)], counts[:s]) for s in range(n)]
+    sets = [[pick(f, v) for v in range(ranges)] for f in extracted]
+    scored = [add("verify", stages.verify, pairs[v], [sets[s][v] for s in range(n)], threshold,
+                  bands, rows) for v in range(ranges)]
+    pair_counts = [add("count", stages.candidate_count, f) for f in pairs] + \
+        [add("count", stages.scored_count, f) for f in scored]
+    futures = graph.submit(client)
+
+    def of(names):
+        return [futures[k] for k in names]
+
+    stage_futures = [of(signed), of(found), of(plans), of(extracted), of(scored)]
     names = ["sign", "candidates", "plan", "sets", "verify"]
-    for name, futures in zip(names, stage_futures):
-        clock.watch(name, futures)
+    for name, stage in zip(names, stage_futures):
+        clock.watch(name, stage)
     task_counts = [len(f) for f in stage_futures]
-    leaves = [tables + [k for row in keys for k in row], [r for row in routed for r in row],
-              pairs + [w for row in wanted for w in row], [x for row in sets for x in row],
-              scored]
+    leaves = [of(tables + [k for row in keys for k in row]), of([r for row in routed for r in row]),
+              of(pairs + [w for row in wanted for w in row]), of([x for row in sets for x in row]),
+              of(scored)]
     try:
         stars = None
         if grouping == "components":
             stars, tasks, moved, summary.component_steps = _components(
-                client, scored, partitions, lambda fs: clock.watch("groups", fs))
+                client, of(scored), partitions, lambda fs: clock.watch("groups", fs), tag)
             names.append("groups")
             task_counts.append(tasks)
             leaves.append(moved)
-        done = submit(stages.finish, tables, shards, scored, stars, keep, grouping, format,
-                      os.fspath(output_dir))
+        graph = _Graph(f"{tag}-finish")
+        done = graph.add("finish", stages.finish, of(tables), shards, of(scored), stars, keep,
+                         grouping, format, os.fspath(output_dir))
+        drops = [graph.pick(done, s) for s in range(n)] if write_kept else []
+        kept = [graph.add("kept", stages.write_kept, shards[s], options, drops[s],
+                          futures[counts[s]], os.fspath(write_kept))
+                for s in range(n)] if write_kept else []
+        last = graph.submit(client)
+        done, drops, kept = last[done], [last[k] for k in drops], [last[k] for k in kept]
         clock.watch("finish", [done])
         names.append("finish")
         task_counts.append(1)
-        drops = [submit(stages.pick, done, s) for s in range(n)] if write_kept else []
         leaves.append(drops)
-        kept = []
         if write_kept:
-            kept = [submit(stages.write_kept, shards[s], options, drops[s], counts[s],
-                           os.fspath(write_kept)) for s in range(n)]
             clock.watch("kept", kept)
             names.append("kept")
             task_counts.append(n)
             leaves.append([])
-        documents, kept_counts = client.gather([counts, kept])
+        documents, kept_counts, pair_counts = client.gather([of(counts), kept, of(pair_counts)])
         _raise_first([[done]])
+        clock.last(names[-1])
     except Exception:
         _raise_first(stage_futures)
         raise
@@ -296,7 +345,6 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
     for name, tasks, seconds, size in zip(names, task_counts, clock.seconds(names),
                                           _bytes_of(client, leaves)):
         summary.stages.append(StageSummary(name, tasks, seconds, size))
-    pair_counts = client.gather([[submit(stages.candidate_count, f) for f in pairs],
-                                 [submit(stages.scored_count, f) for f in scored]])
-    summary.candidate_pairs, summary.confirmed_pairs = (sum(c) for c in pair_counts)
+    summary.candidate_pairs = sum(pair_counts[:ranges])
+    summary.confirmed_pairs = sum(pair_counts[ranges:])
     return summary
