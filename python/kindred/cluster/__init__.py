@@ -231,6 +231,44 @@ def _components(client, scored, parts, watch, tag):
     return stars, tasks, moved + [futures[k] for k in star_parts], steps
 
 
+def _map_graph(client, tag, shards, settings, options, threshold, bands, rows, partitions,
+               ranges, max_bucket):
+    """The whole graph up to the components, submitted at once: the
+    scheduler runs each task as soon as its inputs are there (a pick runs
+    where its tuple is). -> (key -> future; the keys of the tasks of sign,
+    candidates, plan, sets and verify; the keys of the bytes each stage
+    hands on; the keys of the document tables, of the document counts, of
+    the candidate then confirmed pair counts, of the scored pairs)."""
+    n = len(shards)
+    graph = _Graph(tag)
+    add, pick = graph.add, graph.pick
+    signed = [add("sign", stages.sign_shard, path, settings, options, bands, rows, partitions)
+              for path in shards]
+    tables = [pick(f, 0) for f in signed]
+    keys = [[pick(f, 1 + p) for p in range(partitions)] for f in signed]
+    counts = [add("count", stages.document_count, t) for t in tables]
+    found = [add("candidates", stages.candidates, [keys[s][p] for s in range(n)], counts,
+                 ranges, max_bucket) for p in range(partitions)]
+    routed = [[pick(f, v) for v in range(ranges)] for f in found]
+    plans = [add("plan", stages.plan, [routed[p][v] for p in range(partitions)], counts)
+             for v in range(ranges)]
+    pairs = [pick(f, 0) for f in plans]
+    wanted = [[pick(f, 1 + s) for s in range(n)] for f in plans]
+    extracted = [add("sets", stages.read_sets, shards[s], settings, options, tables[s],
+                     [wanted[v][s] for v in range(ranges)], counts[:s]) for s in range(n)]
+    sets = [[pick(f, v) for v in range(ranges)] for f in extracted]
+    scored = [add("verify", stages.verify, pairs[v], [sets[s][v] for s in range(n)], threshold,
+                  bands, rows) for v in range(ranges)]
+    pair_counts = [add("count", stages.candidate_count, f) for f in pairs] + \
+        [add("count", stages.scored_count, f) for f in scored]
+    futures = graph.submit(client)
+    stages_keys = [signed, found, plans, extracted, scored]
+    leaves = [tables + [k for row in keys for k in row], [r for row in routed for r in row],
+              pairs + [w for row in wanted for w in row], [x for row in sets for x in row],
+              scored]
+    return futures, stages_keys, leaves, tables, counts, pair_counts, scored
+
+
 def sweep(client, shards: Sequence[str], output_dir: str, *,
           settings: Optional[Settings] = None, threshold: float = 0.8, bands: int = 0,
           rows: int = 0, keep: str = "first", grouping: str = "components",
@@ -278,42 +316,19 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
     n = len(shards)
     tag = uuid.uuid4().hex
 
-    # The whole graph up to the components, at once: the scheduler runs each
-    # task as soon as its inputs are there (a pick runs where its tuple is).
-    graph = _Graph(tag)
-    add, pick = graph.add, graph.pick
-    signed = [add("sign", stages.sign_shard, path, settings, options, bands, rows, partitions)
-              for path in shards]
-    tables = [pick(f, 0) for f in signed]
-    keys = [[pick(f, 1 + p) for p in range(partitions)] for f in signed]
-    counts = [add("count", stages.document_count, t) for t in tables]
-    found = [add("candidates", stages.candidates, [keys[s][p] for s in range(n)], counts,
-                 ranges, max_bucket) for p in range(partitions)]
-    routed = [[pick(f, v) for v in range(ranges)] for f in found]
-    plans = [add("plan", stages.plan, [routed[p][v] for p in range(partitions)], counts)
-             for v in range(ranges)]
-    pairs = [pick(f, 0) for f in plans]
-    wanted = [[pick(f, 1 + s) for s in range(n)] for f in plans]
-    extracted = [add("sets", stages.read_sets, shards[s], settings, options, tables[s],
-                     [wanted[v][s] for v in range(ranges)], counts[:s]) for s in range(n)]
-    sets = [[pick(f, v) for v in range(ranges)] for f in extracted]
-    scored = [add("verify", stages.verify, pairs[v], [sets[s][v] for s in range(n)], threshold,
-                  bands, rows) for v in range(ranges)]
-    pair_counts = [add("count", stages.candidate_count, f) for f in pairs] + \
-        [add("count", stages.scored_count, f) for f in scored]
-    futures = graph.submit(client)
+    futures, stage_keys, leaf_keys, tables, counts, pair_counts, scored = _map_graph(
+        client, tag, shards, settings, options, threshold, bands, rows, partitions, ranges,
+        max_bucket)
 
     def of(names):
         return [futures[k] for k in names]
 
-    stage_futures = [of(signed), of(found), of(plans), of(extracted), of(scored)]
+    stage_futures = [of(k) for k in stage_keys]
     names = ["sign", "candidates", "plan", "sets", "verify"]
     for name, stage in zip(names, stage_futures):
         clock.watch(name, stage)
     task_counts = [len(f) for f in stage_futures]
-    leaves = [of(tables + [k for row in keys for k in row]), of([r for row in routed for r in row]),
-              of(pairs + [w for row in wanted for w in row]), of([x for row in sets for x in row]),
-              of(scored)]
+    leaves = [of(k) for k in leaf_keys]
     try:
         stars = None
         if grouping == "components":
