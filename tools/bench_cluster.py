@@ -46,19 +46,24 @@ def make_shards(directory, docs, shards, seed):
     return paths
 
 
-def timed(command, env=None, cpu=None):
-    """Runs `command`: (wall seconds, its stderr); appends to `cpu` the CPU
-    seconds (user + system) of it and the processes it waited for."""
+def timed(command, env=None, cpu=None, lingering=None):
+    """Runs `command`: (wall seconds until it exits, its stderr); appends to
+    `cpu` the CPU seconds (user + system) of it and of the processes it
+    started, and to `lingering` the seconds its last descendant outlived
+    it."""
     before = resource.getrusage(resource.RUSAGE_CHILDREN)
     start = time.monotonic()
     done = subprocess.run(command, capture_output=True, env=env)
+    exited = time.monotonic()
     if done.returncode != 0:
         sys.exit(f"{' '.join(command[:4])}...: exit {done.returncode}\n{done.stderr.decode()}")
     _reap()
     after = resource.getrusage(resource.RUSAGE_CHILDREN)
     if cpu is not None:
         cpu.append(after.ru_utime - before.ru_utime + after.ru_stime - before.ru_stime)
-    return time.monotonic() - start, done.stderr.decode()
+    if lingering is not None:
+        lingering.append(time.monotonic() - exited)
+    return exited - start, done.stderr.decode()
 
 
 def _subreaper():
@@ -132,14 +137,15 @@ def main():
     env = dict(os.environ)
     env.setdefault("PYTHONPATH", str(ROOT / "build" / "python"))
     local, cluster, summary = [], [], ""
-    local_cpu, cluster_cpu, loads = [], [], [os.getloadavg()[0]]
+    local_cpu, cluster_cpu, lingering, loads = [], [], [], [os.getloadavg()[0]]
     for run in range(args.runs):
         seconds, _ = timed([args.binary, "sweep", "--threads", "2", "-q", "-o",
                             str(work / "local"), *shards], cpu=local_cpu)
         local.append(seconds)
         seconds, summary = timed(["/usr/bin/python3", "-m", "kindred.cluster", "sweep",
                                   "--local-workers", str(args.workers), "-o",
-                                  str(work / "cluster"), *shards], env, cpu=cluster_cpu)
+                                  str(work / "cluster"), *shards], env, cpu=cluster_cpu,
+                                 lingering=lingering)
         cluster.append(seconds)
         loads.append(os.getloadavg()[0])
     done = subprocess.run(["/usr/bin/python3", __file__, "--running-cluster", str(args.workers),
@@ -162,7 +168,8 @@ def main():
     print(f"kindred.cluster sweep       {statistics.median(cluster):8.2f} s wall "
           f"{statistics.median(cluster_cpu):8.2f} s CPU "
           f"({statistics.median(cluster) / statistics.median(local):.2f}x wall, "
-          f"{statistics.median(cluster_cpu) / statistics.median(local_cpu):.2f}x CPU)")
+          f"{statistics.median(cluster_cpu) / statistics.median(local_cpu):.2f}x CPU); "
+          f"its workers outlived it by {statistics.median(lingering):.2f} s")
     sweep = statistics.median(phases["sweeps"])
     print(f"on a running cluster        {sweep:8.2f} s wall "
           f"{statistics.median(phases['cpu']):8.2f} s CPU "
