@@ -57,9 +57,11 @@ __all__ = ["sweep", "StageSummary", "ClusterSummary"]
 
 @dataclass
 class StageSummary:
-    """One stage: its tasks, its wall time, and the bytes its tasks handed
-    on to the next stages (moved between workers unless the scheduler ran
-    the consumer where the bytes were)."""
+    """One stage: its tasks, its wall time (from the end of the stage
+    before, or the start, to the end of its own last task: the stages
+    overlap, as the graph is submitted at once), and the bytes its tasks
+    handed on to the next stages (moved between workers unless the
+    scheduler ran the consumer where the bytes were)."""
     name: str
     tasks: int
     seconds: float
