@@ -98,7 +98,7 @@ def test_a_shard_that_changed_before_its_second_reading_is_an_error(shards, tmp_
     shard = tmp_path / "shard.jsonl"
     shard.write_bytes(open(shards[0], "rb").read())
     settings = kindred.Settings()
-    table, keys = stages.sign_shard(str(shard), settings, options, 15, 8, 2)
+    table, *keys = stages.sign_shard(str(shard), settings, options, 15, 8, 2)
     wanted = [struct.pack("<II", 100, 103)]
     sets = stages.read_sets(str(shard), settings, options, table, wanted, 100)
     # A set store record (src/core/RECORDS.md): u32 perms, u64 count, then

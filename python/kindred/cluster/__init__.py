@@ -26,6 +26,10 @@ shards in the same order, for any number of workers and partitions:
   kept       with write_kept, a task per shard: its kept documents, in its
              own format, into a file of the shard's name
 
+The graph is submitted at once (then a round of the groups stage at a
+time, as each depends on whether the one before changed anything): no
+stage waits for the one before to end before its tasks are submitted.
+
 The tasks exchange the library's records (src/core/RECORDS.md) as bytes;
 RECORDS.md beside this file says which go where. Every task is a pure
 function of its inputs, so a task re-run after a worker is lost gives the
@@ -41,6 +45,7 @@ from __future__ import annotations
 
 import os
 import time
+import uuid
 from dataclasses import dataclass, field
 from typing import List, Optional, Sequence
 
@@ -52,9 +57,11 @@ __all__ = ["sweep", "StageSummary", "ClusterSummary"]
 
 @dataclass
 class StageSummary:
-    """One stage: its tasks, its wall time, and the bytes its tasks handed
-    on to the next stages (moved between workers unless the scheduler ran
-    the consumer where the bytes were)."""
+    """One stage: its tasks, its wall time (from the end of the stage
+    before, or the start, to the end of its own last task: the stages
+    overlap, as the graph is submitted at once), and the bytes its tasks
+    handed on to the next stages (moved between workers unless the
+    scheduler ran the consumer where the bytes were)."""
     name: str
     tasks: int
     seconds: float
@@ -97,68 +104,171 @@ class ClusterSummary:
         return "\n".join(lines)
 
 
-def _first_error(futures):
-    """Waits for `futures`; raises the exception of the first (in order)
-    that failed, as a local sweep reports the first bad shard."""
+def _raise_first(stages_in_order):
+    """Waits for the stages' futures in order and raises the exception of
+    the first task (stage by stage, in order within a stage) that failed,
+    as a local sweep reports the first bad shard; returns if none did."""
     from distributed import wait
-    wait(futures)
-    for future in futures:
-        if future.status == "error":
-            raise future.exception()
+    for futures in stages_in_order:
+        wait(futures)
+        for future in futures:
+            if future.status == "error":
+                raise future.exception()
 
 
-def _stage(summary, name, client, futures, sizes_of):
-    """Waits for a stage, and records its tasks and time; the bytes of
-    `sizes_of` (its outputs) are counted on the workers and gathered at the
-    end (_sizes), so that the stage does not wait for them."""
-    start = summary._clock
-    _first_error(futures)
-    now = time.monotonic()
-    summary.stages.append(StageSummary(name, len(futures), now - start, 0))
-    summary._sizes.append([client.submit(stages.size, f, pure=False) for f in sizes_of])
-    summary._clock = now
+class _Clock:
+    """When each stage's last task finished, from the futures' done
+    callbacks (the whole graph is submitted at once: no stage waits for the
+    one before it to finish before its tasks are submitted)."""
+
+    def __init__(self):
+        self.start = time.monotonic()
+        self.ends = {}
+
+    def watch(self, name, futures):
+        def done(_future, name=name):
+            now = time.monotonic()
+            self.ends[name] = max(self.ends.get(name, 0.0), now)
+        for future in futures:
+            future.add_done_callback(done)
+
+    def last(self, name):
+        """`name` finished now (its done callbacks may be late)."""
+        self.ends[name] = time.monotonic()
+
+    def seconds(self, names):
+        """Each stage's wall time: from the end of the stage before (the
+        start, for the first) to the end of its own last task."""
+        out, before = [], self.start
+        for name in names:
+            end = max(self.ends.get(name, before), before)
+            out.append(end - before)
+            before = end
+        return out
 
 
-def _sizes(summary, client):
-    """Fills in the bytes of every stage, and the pair counts."""
-    sizes, counts = client.gather([summary._sizes, summary._counts])
-    for stage, stage_sizes in zip(summary.stages, sizes):
-        stage.bytes_out = sum(stage_sizes)
-    summary.candidate_pairs, summary.confirmed_pairs = (sum(c) for c in counts)
+def _bytes_of(client, leaves):
+    """The bytes of each list of futures of `leaves` (each holding one bytes
+    object), from the sizes the workers reported to the scheduler (for
+    bytes, their length); measured by a task where the scheduler has none."""
+    keys = [f.key for stage in leaves for f in stage]
+
+    def nbytes(keys, dask_scheduler=None):
+        tasks = dask_scheduler.tasks
+        return [tasks[k].nbytes if k in tasks else -1 for k in keys]
+
+    try:
+        sizes = iter(client.run_on_scheduler(nbytes, keys))
+    except Exception:  # a scheduler that runs no code of clients: measure them all
+        sizes = iter([-1] * len(keys))
+    out = []
+    for stage in leaves:
+        got = [next(sizes) for _ in stage]
+        missing = [f for f, n in zip(stage, got) if n < 0]
+        if missing:
+            got = [n for n in got if n >= 0] + client.gather(
+                [client.submit(stages.size, f, pure=False) for f in missing])
+        out.append(sum(got))
+    return out
 
 
-def _components(summary, client, scored, parts):
+class _Graph:
+    """Tasks to submit together: one call for a whole graph, not a call per
+    task (each submission costs the client and the scheduler more than a
+    small task's work). A task's arguments name the tasks of the same graph
+    by key, and those of graphs submitted before by their futures."""
+
+    def __init__(self, tag: str):
+        self.tag, self.tasks = tag, {}
+
+    def add(self, name: str, function, *args) -> str:
+        key = f"kindred-{name}-{self.tag}-{len(self.tasks)}"
+        self.tasks[key] = (function, *args)
+        return key
+
+    def pick(self, key, index: int) -> str:
+        return self.add("pick", stages.pick, key, index)
+
+    def submit(self, client) -> dict:
+        """Submits the tasks: key -> future."""
+        keys = list(self.tasks)
+        return dict(zip(keys, client.get(self.tasks, keys, sync=False)))
+
+
+def _components(client, scored, parts, watch, tag):
     """The connected components of the confirmed pairs (components.py:
-    large-star / small-star rounds, a task per node partition and step) ->
-    a future of the star edges (member, smallest member), one bytes."""
-    submit = client.submit
-    firsts = [submit(stages.first_edges, f, parts) for f in scored]
-    lists = [[submit(stages.pick, f, p) for p in range(parts)] for f in firsts]
-    tasks, moved, steps = len(firsts), list(firsts), 0
+    large-star / small-star rounds, a task per node partition and step; a
+    graph a step, as each round depends on whether the one before changed
+    anything) -> (a future of the star edges (member, smallest member), one
+    bytes; the tasks; the futures of the edge lists handed on; the steps)."""
+    graph = _Graph(f"{tag}-edges")
+    firsts = [graph.add("first-edges", stages.first_edges, f, parts) for f in scored]
+    lists = [[graph.pick(f, p) for p in range(parts)] for f in firsts]
+    futures = graph.submit(client)
+    lists = [[futures[k] for k in row] for row in lists]
+    tasks, moved, steps = len(firsts), [x for row in lists for x in row], 0
     while True:
-        large = [submit(stages.large_star, [row[p] for row in lists], parts) for p in range(parts)]
-        to_small = [[submit(stages.pick, submit(stages.pick, f, 0), p) for p in range(parts)]
-                    for f in large]
-        small = [submit(stages.small_star, [row[p] for row in to_small], parts)
+        graph = _Graph(f"{tag}-round-{steps // 2}")
+        large = [graph.add("large-star", stages.large_star, [row[p] for row in lists], parts)
                  for p in range(parts)]
-        lists = [[submit(stages.pick, submit(stages.pick, f, 0), p) for p in range(parts)]
-                 for f in small]
-        star_parts = [submit(stages.pick, f, 1) for f in small]
-        flags = client.gather([submit(stages.pick, f, 1) for f in large] +
-                              [submit(stages.pick, f, 2) for f in small])
+        to_small = [[graph.pick(f, p) for p in range(parts)] for f in large]
+        small = [graph.add("small-star", stages.small_star, [row[p] for row in to_small], parts)
+                 for p in range(parts)]
+        lists = [[graph.pick(f, p) for p in range(parts)] for f in small]
+        star_parts = [graph.pick(f, parts) for f in small]
+        flags = [graph.pick(f, parts) for f in large] + [graph.pick(f, parts + 1) for f in small]
+        futures = graph.submit(client)
+        watch([futures[k] for k in large + small])
+        flags = client.gather([futures[k] for k in flags])
+        lists = [[futures[k] for k in row] for row in lists]
         tasks += 2 * parts
         steps += 2
-        moved += large + small
+        moved += [futures[k] for row in to_small for k in row] + [x for row in lists for x in row]
         if not any(flags):
             break
-    stars = submit(stages.join, star_parts)
-    _first_error([stars])
-    now = time.monotonic()
-    summary.stages.append(StageSummary("groups", tasks, now - summary._clock, 0))
-    summary._sizes.append([submit(stages.size, f, pure=False) for f in moved])
-    summary.component_steps = steps
-    summary._clock = now
-    return stars
+    graph = _Graph(f"{tag}-stars")
+    stars = graph.add("stars", stages.join, [futures[k] for k in star_parts])
+    stars = graph.submit(client)[stars]
+    watch([stars])
+    return stars, tasks, moved + [futures[k] for k in star_parts], steps
+
+
+def _map_graph(client, tag, shards, settings, options, threshold, bands, rows, partitions,
+               ranges, max_bucket):
+    """The whole graph up to the components, submitted at once: the
+    scheduler runs each task as soon as its inputs are there (a pick runs
+    where its tuple is). -> (key -> future; the keys of the tasks of sign,
+    candidates, plan, sets and verify; the keys of the bytes each stage
+    hands on; the keys of the document tables, of the document counts, of
+    the candidate then confirmed pair counts, of the scored pairs)."""
+    n = len(shards)
+    graph = _Graph(tag)
+    add, pick = graph.add, graph.pick
+    signed = [add("sign", stages.sign_shard, path, settings, options, bands, rows, partitions)
+              for path in shards]
+    tables = [pick(f, 0) for f in signed]
+    keys = [[pick(f, 1 + p) for p in range(partitions)] for f in signed]
+    counts = [add("count", stages.document_count, t) for t in tables]
+    found = [add("candidates", stages.candidates, [keys[s][p] for s in range(n)], counts,
+                 ranges, max_bucket) for p in range(partitions)]
+    routed = [[pick(f, v) for v in range(ranges)] for f in found]
+    plans = [add("plan", stages.plan, [routed[p][v] for p in range(partitions)], counts)
+             for v in range(ranges)]
+    pairs = [pick(f, 0) for f in plans]
+    wanted = [[pick(f, 1 + s) for s in range(n)] for f in plans]
+    extracted = [add("sets", stages.read_sets, shards[s], settings, options, tables[s],
+                     [wanted[v][s] for v in range(ranges)], counts[:s]) for s in range(n)]
+    sets = [[pick(f, v) for v in range(ranges)] for f in extracted]
+    scored = [add("verify", stages.verify, pairs[v], [sets[s][v] for s in range(n)], threshold,
+                  bands, rows) for v in range(ranges)]
+    pair_counts = [add("count", stages.candidate_count, f) for f in pairs] + \
+        [add("count", stages.scored_count, f) for f in scored]
+    futures = graph.submit(client)
+    stages_keys = [signed, found, plans, extracted, scored]
+    leaves = [tables + [k for row in keys for k in row], [r for row in routed for r in row],
+              pairs + [w for row in wanted for w in row], [x for row in sets for x in row],
+              scored]
+    return futures, stages_keys, leaves, tables, counts, pair_counts, scored
 
 
 def sweep(client, shards: Sequence[str], output_dir: str, *,
@@ -204,60 +314,61 @@ def sweep(client, shards: Sequence[str], output_dir: str, *,
     options = dict(input_format=input_format, id_field=id_field, text_field=text_field,
                    priority_field=priority_field)
     summary = ClusterSummary(0, len(shards), partitions, ranges, bands, rows, 0, 0)
-    summary._clock = time.monotonic()
-    summary._sizes, summary._counts = [], []
-    submit = client.submit
+    clock = _Clock()
+    n = len(shards)
+    tag = uuid.uuid4().hex
 
-    signed = [submit(stages.sign_shard, path, settings, options, bands, rows, partitions)
-              for path in shards]
-    tables = [submit(stages.pick, f, 0) for f in signed]
-    keys = [[submit(stages.pick, submit(stages.pick, f, 1), p) for p in range(partitions)]
-            for f in signed]
-    _first_error(signed)
-    counts = client.gather([submit(stages.document_count, t) for t in tables])
-    offsets = [sum(counts[:n]) for n in range(len(counts) + 1)]
-    documents = offsets[-1]
-    summary.documents = documents
-    _stage(summary, "sign", client, signed, signed)
+    futures, stage_keys, leaf_keys, tables, counts, pair_counts, scored = _map_graph(
+        client, tag, shards, settings, options, threshold, bands, rows, partitions, ranges,
+        max_bucket)
 
-    found = [submit(stages.candidates, [keys[s][p] for s in range(len(shards))], offsets,
-                    documents, ranges, max_bucket)
-             for p in range(partitions)]
-    routed = [[submit(stages.pick, f, v) for v in range(ranges)] for f in found]
-    _stage(summary, "candidates", client, found, found)
+    def of(names):
+        return [futures[k] for k in names]
 
-    plans = [submit(stages.plan, [routed[p][v] for p in range(partitions)], offsets)
-             for v in range(ranges)]
-    pairs = [submit(stages.pick, f, 0) for f in plans]
-    wanted = [[submit(stages.pick, submit(stages.pick, f, 1), s) for s in range(len(shards))]
-              for f in plans]
-    _stage(summary, "plan", client, plans, plans)
-    summary._counts = [[submit(stages.candidate_count, f) for f in pairs]]
-
-    extracted = [submit(stages.read_sets, shards[s], settings, options, tables[s],
-                        [wanted[v][s] for v in range(ranges)], offsets[s])
-                 for s in range(len(shards))]
-    sets = [[submit(stages.pick, f, v) for v in range(ranges)] for f in extracted]
-    _stage(summary, "sets", client, extracted, extracted)
-
-    scored = [submit(stages.verify, pairs[v], [sets[s][v] for s in range(len(shards))],
-                     threshold, bands, rows) for v in range(ranges)]
-    _stage(summary, "verify", client, scored, scored)
-    summary._counts.append([submit(stages.scored_count, f) for f in scored])
-
-    stars = None
-    if grouping == "components":
-        stars = _components(summary, client, scored, partitions)
-    done = submit(stages.finish, tables, shards, scored, stars, keep, grouping, format,
-                  os.fspath(output_dir))
-    _stage(summary, "finish", client, [done], [done] if write_kept else [])
+    stage_futures = [of(k) for k in stage_keys]
+    names = ["sign", "candidates", "plan", "sets", "verify"]
+    for name, stage in zip(names, stage_futures):
+        clock.watch(name, stage)
+    task_counts = [len(f) for f in stage_futures]
+    leaves = [of(k) for k in leaf_keys]
+    try:
+        stars = None
+        if grouping == "components":
+            stars, tasks, moved, summary.component_steps = _components(
+                client, of(scored), partitions, lambda fs: clock.watch("groups", fs), tag)
+            names.append("groups")
+            task_counts.append(tasks)
+            leaves.append(moved)
+        graph = _Graph(f"{tag}-finish")
+        done = graph.add("finish", stages.finish, of(tables), shards, of(scored), stars, keep,
+                         grouping, format, os.fspath(output_dir))
+        drops = [graph.pick(done, s) for s in range(n)] if write_kept else []
+        kept = [graph.add("kept", stages.write_kept, shards[s], options, drops[s],
+                          futures[counts[s]], os.fspath(write_kept))
+                for s in range(n)] if write_kept else []
+        last = graph.submit(client)
+        done, drops, kept = last[done], [last[k] for k in drops], [last[k] for k in kept]
+        clock.watch("finish", [done])
+        names.append("finish")
+        task_counts.append(1)
+        leaves.append(drops)
+        if write_kept:
+            clock.watch("kept", kept)
+            names.append("kept")
+            task_counts.append(n)
+            leaves.append([])
+        documents, kept_counts, pair_counts = client.gather([of(counts), kept, of(pair_counts)])
+        _raise_first([[done]])
+        clock.last(names[-1])
+    except Exception:
+        _raise_first(stage_futures)
+        raise
+    summary.documents = sum(documents)
     if write_kept:
-        kept = [submit(stages.write_kept, shards[s], options, submit(stages.pick, done, s),
-                       counts[s], os.fspath(write_kept)) for s in range(len(shards))]
-        _first_error(kept)
-        summary.kept = sum(client.gather(kept))
-        summary.stages.append(StageSummary("kept", len(kept), time.monotonic() - summary._clock,
-                                           0))
-        summary._sizes.append([])
-    _sizes(summary, client)
+        summary.kept = sum(kept_counts)
+    for name, tasks, seconds, size in zip(names, task_counts, clock.seconds(names),
+                                          _bytes_of(client, leaves)):
+        summary.stages.append(StageSummary(name, tasks, seconds, size))
+    summary.candidate_pairs = sum(pair_counts[:ranges])
+    summary.confirmed_pairs = sum(pair_counts[ranges:])
     return summary

@@ -11,6 +11,8 @@ Writes pairs, groups and decisions files into OUT, byte-identical to those of
 from __future__ import annotations
 
 import argparse
+import contextlib
+import logging
 import os
 import sys
 import warnings
@@ -56,8 +58,40 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
+@contextlib.contextmanager
+def local_cluster(workers: int):
+    """A LocalCluster of `workers` single-threaded worker processes, as the
+    command starts one (a context manager: the cluster, stopped at the
+    end)."""
+    from distributed import LocalCluster
+    import dask
+    # Dask starts workers with MALLOC_TRIM_THRESHOLD_=65536, which hands
+    # freed memory back at once, so that every large record a stage makes
+    # is fresh pages to fault in. The sweep's workers keep it for reuse.
+    environ = dict(dask.config.get("distributed.nanny.pre-spawn-environ", {}))
+    environ["MALLOC_TRIM_THRESHOLD_"] = 1 << 30
+    environ["MALLOC_MMAP_THRESHOLD_"] = 1 << 30
+    # And, as the kindred program does, malloc asks for transparent huge
+    # pages (fewer page faults on the records' fresh memory).
+    tunables = os.environ.get("GLIBC_TUNABLES", "")
+    if "KINDRED_NO_HUGE_PAGES" not in os.environ and "glibc.malloc.hugetlb" not in tunables:
+        environ["GLIBC_TUNABLES"] = ":".join(filter(None, [tunables, "glibc.malloc.hugetlb=1"]))
+    # Workers come from a fork server that has imported distributed,
+    # NumPy and the task functions once (Dask's default, spawn, starts
+    # a fresh interpreter per worker that imports them all again).
+    config = {"distributed.nanny.pre-spawn-environ": environ,
+              "distributed.worker.multiprocessing-method": "forkserver"}
+    with dask.config.set(config):
+        from distributed.utils import get_mp_context
+        get_mp_context().set_forkserver_preload(["distributed", "numpy",
+                                                 "kindred.cluster.stages"])
+    with dask.config.set(config), LocalCluster(n_workers=workers, threads_per_worker=1,
+                                               processes=True, dashboard_address=None) as cluster:
+        yield cluster
+
+
 def _run(args) -> int:
-    from distributed import Client, LocalCluster
+    from distributed import Client
     from . import sweep
 
     seed = {} if args.seed is None else {"seed": args.seed}
@@ -74,32 +108,28 @@ def _run(args) -> int:
         with Client(args.scheduler) as client:
             summary = sweep(client, args.shards, args.output_dir, **options)
     else:
-        import dask
-        # Dask starts workers with MALLOC_TRIM_THRESHOLD_=65536, which hands
-        # freed memory back at once, so that every large record a stage makes
-        # is fresh pages to fault in. The sweep's workers keep it for reuse.
-        environ = dict(dask.config.get("distributed.nanny.pre-spawn-environ", {}))
-        environ["MALLOC_TRIM_THRESHOLD_"] = 1 << 30
-        environ["MALLOC_MMAP_THRESHOLD_"] = 1 << 30
-        # And, as the kindred program does, malloc asks for transparent huge
-        # pages (fewer page faults on the records' fresh memory).
-        tunables = os.environ.get("GLIBC_TUNABLES", "")
-        if "KINDRED_NO_HUGE_PAGES" not in os.environ and "glibc.malloc.hugetlb" not in tunables:
-            environ["GLIBC_TUNABLES"] = ":".join(filter(None, [tunables, "glibc.malloc.hugetlb=1"]))
-        with dask.config.set({"distributed.nanny.pre-spawn-environ": environ}), \
-                LocalCluster(n_workers=args.local_workers, threads_per_worker=1,
-                             processes=True, dashboard_address=None) as cluster, \
-                Client(cluster) as client:
+        with local_cluster(args.local_workers) as cluster, Client(cluster) as client:
             summary = sweep(client, args.shards, args.output_dir, **options)
     if not args.quiet:
         print(summary.text(), file=sys.stderr)
     return 0
 
 
+def _quiet_batched_send_timeouts(record) -> bool:
+    """A logging filter for asyncio's log: drops its report of a timeout no
+    one retrieved (a wait of distributed's batched sender on its timer,
+    left when the client closes, seen on a loaded machine), which is not
+    the sweep's and would follow the program's one line on stderr."""
+    text = record.getMessage()
+    return not (text.startswith("Future exception was never retrieved") and
+                "exception=TimeoutError('Timeout')" in text)
+
+
 def main(argv=None) -> int:
     args = _parser().parse_args(argv)
     # Debian's tornado warns on every event loop distributed makes: noise.
     warnings.filterwarnings("ignore", category=DeprecationWarning)
+    logging.getLogger("asyncio").addFilter(_quiet_batched_send_timeouts)
     try:
         return _run(args)
     except errors.KindredError as error:

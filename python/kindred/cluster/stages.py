@@ -13,11 +13,14 @@ from . import components
 
 
 def sign_shard(path: str, settings, options: dict, bands: int, rows: int,
-               partitions: int) -> Tuple[bytes, List[bytes]]:
+               partitions: int) -> Tuple[bytes, ...]:
+    """(its document table, then its band keys' P partitions), one flat
+    tuple, so that each element is one pick away."""
     _test_hook("sign", path)
-    return _kindred.stage_sign_shard(path, settings, options["input_format"],
-                                     options["id_field"], options["text_field"],
-                                     options["priority_field"], bands, rows, partitions, 1)
+    table, keys = _kindred.stage_sign_shard(path, settings, options["input_format"],
+                                            options["id_field"], options["text_field"],
+                                            options["priority_field"], bands, rows, partitions, 1)
+    return (table, *keys)
 
 
 def pick(value, index: int):
@@ -31,14 +34,26 @@ def document_count(table: bytes) -> int:
     return struct.unpack_from("<Q", table, 28)[0]
 
 
-def candidates(parts: Sequence[bytes], offsets: List[int], documents: int, ranges: int,
+def offsets_of(counts: Sequence[int]) -> List[int]:
+    """The number of each shard's first document, and then the corpus's
+    documents, from the shards' document counts."""
+    offsets = [0]
+    for count in counts:
+        offsets.append(offsets[-1] + count)
+    return offsets
+
+
+def candidates(parts: Sequence[bytes], counts: Sequence[int], ranges: int,
                max_bucket: int) -> List[bytes]:
     _test_hook("candidates", None)
-    return _kindred.stage_candidates(list(parts), offsets, documents, ranges, max_bucket)
+    offsets = offsets_of(counts)
+    return _kindred.stage_candidates(list(parts), offsets, offsets[-1], ranges, max_bucket)
 
 
-def plan(parts: Sequence[bytes], offsets: List[int]) -> Tuple[bytes, List[bytes]]:
-    return _kindred.stage_plan(list(parts), offsets)
+def plan(parts: Sequence[bytes], counts: Sequence[int]) -> Tuple[bytes, ...]:
+    """(the range's pairs, then each shard's document list), one flat tuple."""
+    pairs, wanted = _kindred.stage_plan(list(parts), offsets_of(counts))
+    return (pairs, *wanted)
 
 
 def candidate_count(pairs: bytes) -> int:
@@ -48,7 +63,11 @@ def candidate_count(pairs: bytes) -> int:
 
 
 def read_sets(path: str, settings, options: dict, table: bytes, wanted: Sequence[bytes],
-              offset: int) -> List[bytes]:
+              offset) -> List[bytes]:
+    """`offset`: the number of the shard's first document, or the document
+    counts of the shards before it."""
+    if not isinstance(offset, int):
+        offset = sum(offset)
     return _kindred.stage_read_sets(path, settings, options["input_format"], options["id_field"],
                                     options["text_field"], options["priority_field"], table,
                                     list(wanted), offset)
@@ -67,12 +86,16 @@ def first_edges(scored: bytes, parts: int) -> List[bytes]:
     return components.first_edges(_kindred.stage_pair_ends(scored), parts)
 
 
-def large_star(lists: Sequence[bytes], parts: int):
-    return components.large_star(list(lists), parts)
+def large_star(lists: Sequence[bytes], parts: int) -> tuple:
+    """(the P edge lists, then whether it changed anything), flat."""
+    out, changed = components.large_star(list(lists), parts)
+    return (*out, changed)
 
 
-def small_star(lists: Sequence[bytes], parts: int):
-    return components.small_star(list(lists), parts)
+def small_star(lists: Sequence[bytes], parts: int) -> tuple:
+    """(the P edge lists, the star edges, whether it changed anything), flat."""
+    out, star, changed = components.small_star(list(lists), parts)
+    return (*out, star, changed)
 
 
 def join(parts: Sequence[bytes]) -> bytes:
