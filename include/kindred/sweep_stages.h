@@ -117,6 +117,8 @@ struct SweepRecordOptions {
   Grouping grouping = Grouping::kComponents;
   // Which of the three to write (the others stay empty).
   bool pairs = true, groups = true, decisions = true;
+  // Threads that format the rows (the bytes are the same for any count).
+  int threads = 1;
 };
 // The three record files of a sweep (pairs, groups, decisions), as
 // `kindred sweep --output-dir` writes them.

@@ -148,6 +148,7 @@ SweepRecords FormatRecords(const RecordOutputs& records, const SweepResult& resu
   options.pairs = all || records.print == PrintedRecords::kPairs;
   options.groups = all || records.print == PrintedRecords::kGroups;
   options.decisions = all || records.print == PrintedRecords::kDecisions;
+  options.threads = records.threads;
   std::vector<uint8_t> empty;
   if (options.decisions) {
     empty.resize(result.corpus.size());

@@ -210,13 +210,15 @@ void WriteSweepRecords(const SweepRecordOptions& options, absl::Span<const Score
                        absl::Span<const Group> groups, absl::Span<const std::string> ids,
                        absl::Span<const KeepFacts> facts, absl::Span<const uint8_t> empty,
                        SweepRecords* out) {
-  if (options.pairs) WritePairRecords(options.format, pairs, ids, &out->pairs);
+  const int threads = options.threads;
+  if (options.pairs) WritePairRecords(options.format, pairs, ids, &out->pairs, threads);
   if (options.groups) {
-    WriteGroupRecords(options.format, groups, ids, options.keep, &out->groups, options.grouping);
+    WriteGroupRecords(options.format, groups, ids, options.keep, &out->groups, options.grouping,
+                      threads);
   }
   if (options.decisions) {
     WriteDecisionRecords(options.format, groups, pairs, ids, empty, options.keep, &out->decisions,
-                         facts, options.grouping);
+                         facts, options.grouping, threads);
   }
 }
 
