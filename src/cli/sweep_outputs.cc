@@ -1,6 +1,8 @@
 // The outputs of kindred sweep: the checks made before any input is read,
 // the record files and standard output, and the kept corpus.
 #include <filesystem>
+#include <iterator>
+#include <memory>
 #include <utility>
 
 #include "absl/strings/match.h"
@@ -9,6 +11,8 @@
 #include "cli/output.h"
 #include "cli/output_checks.h"
 #include "cli/sweep_flags.h"
+#include "core/parallel.h"
+#include "io/atomic_file.h"
 #include "io/byte_stream.h"
 #include "io/output_guard.h"
 #include "io/warc_reader.h"
@@ -162,6 +166,10 @@ SweepRecords FormatRecords(const RecordOutputs& records, const SweepResult& resu
   return out;
 }
 
+// Writes the record files: each is written and synced under its temporary
+// name, the three at once on up to `threads` threads (a sync mostly waits
+// for the disk), then committed in order, so that a failure leaves what
+// writing them one by one would: the files before it committed, none after.
 absl::Status WriteRecordFiles(const RecordOutputs& records, const SweepRecords& formatted) {
   std::error_code error;
   std::filesystem::create_directories(records.output_dir, error);
@@ -169,12 +177,28 @@ absl::Status WriteRecordFiles(const RecordOutputs& records, const SweepRecords& 
     return WriteFailed(
         absl::StrCat("cannot create output directory ", records.output_dir, ": ", error.message()));
   }
-  const std::string suffix = RecordFormatSuffix(records.format);
-  for (const auto& [name, data] :
-       {std::pair{"pairs", &formatted.pairs}, std::pair{"groups", &formatted.groups},
-        std::pair{"decisions", &formatted.decisions}}) {
-    const std::string path = absl::StrCat(records.output_dir, "/", name, ".", suffix);
-    if (absl::Status status = WriteOutputFile(path, *data); !status.ok()) return status;
+  const std::string* data[] = {&formatted.pairs, &formatted.groups, &formatted.decisions};
+  constexpr size_t kFiles = std::size(kRecordNames);
+  std::string paths[kFiles];
+  std::unique_ptr<io::AtomicFile> files[kFiles];
+  absl::Status written[kFiles];
+  for (size_t k = 0; k < kFiles; ++k) {
+    paths[k] = absl::StrCat(records.output_dir, "/", kRecordNames[k], ".",
+                            RecordFormatSuffix(records.format));
+  }
+  ParallelFor(kFiles, records.threads, [&](size_t begin, size_t end, int) {
+    for (size_t k = begin; k < end; ++k) {
+      auto file = io::AtomicFile::Create(paths[k], DefaultFileSystem());
+      written[k] = file.status();
+      if (!file.ok()) continue;
+      files[k] = *std::move(file);
+      written[k] = files[k]->Append(*data[k]);
+      if (written[k].ok()) written[k] = files[k]->Sync();
+    }
+  });
+  for (size_t k = 0; k < kFiles; ++k) {
+    absl::Status status = written[k].ok() ? files[k]->Commit() : written[k];
+    if (!status.ok()) return Annotate(status, absl::StrCat("cannot write ", paths[k]));
   }
   return absl::OkStatus();
 }
