@@ -102,11 +102,21 @@ class RecordWriter {
   bool list_started_ = false;  // an element was added to the open list
 };
 
-// The three record kinds of a sweep, appended to *out. `ids` maps document
-// index to id. `threads` > 1 formats the rows in parts on that many threads
-// (the calling thread among them); the bytes are the same for any count.
+// Record text in consecutive parts (formatted apart, on several threads):
+// the parts joined are the records. A writer can append them one by one and
+// spare the join.
+using RecordParts = std::vector<std::string>;
+// Appends the parts, in order, to *out.
+void JoinParts(const RecordParts& parts, std::string* out);
+
+// The three record kinds of a sweep, appended to *out (or as parts to
+// *parts). `ids` maps document index to id. `threads` > 1 formats the rows
+// in parts on that many threads (the calling thread among them); the bytes
+// are the same for any count.
 void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
                       absl::Span<const std::string> ids, std::string* out, int threads = 1);
+void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
+                      absl::Span<const std::string> ids, RecordParts* parts, int threads = 1);
 // Groups: JSON Lines writes one record per group with the drops as an array;
 // TSV and CSV write one row per drop (columns group, size, keeper, drop,
 // policy), so every id is a field of its own and any id round-trips. Groups
@@ -114,6 +124,9 @@ void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
 // groups of connected components (the default) do not.
 void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
                        absl::Span<const std::string> ids, KeepPolicy policy, std::string* out,
+                       Grouping grouping = Grouping::kComponents, int threads = 1);
+void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
+                       absl::Span<const std::string> ids, KeepPolicy policy, RecordParts* parts,
                        Grouping grouping = Grouping::kComponents, int threads = 1);
 // One decision per document that belongs to a group (keep for its keeper,
 // drop for the others), in document order. Documents in no group are kept and
@@ -125,6 +138,11 @@ void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
 void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
                           absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
                           absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out,
+                          absl::Span<const KeepFacts> facts = {},
+                          Grouping grouping = Grouping::kComponents, int threads = 1);
+void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
+                          absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
+                          absl::Span<const uint8_t> empty, KeepPolicy policy, RecordParts* parts,
                           absl::Span<const KeepFacts> facts = {},
                           Grouping grouping = Grouping::kComponents, int threads = 1);
 

@@ -134,6 +134,15 @@ void WriteSweepRecords(const SweepRecordOptions& options, absl::Span<const Score
                        absl::Span<const Group> groups, absl::Span<const std::string> ids,
                        absl::Span<const KeepFacts> facts, absl::Span<const uint8_t> empty,
                        SweepRecords* out);
+// The same, each kind in parts (records.h: RecordParts) that a writer
+// appends one by one.
+struct SweepRecordParts {
+  RecordParts pairs, groups, decisions;
+};
+void WriteSweepRecordParts(const SweepRecordOptions& options, absl::Span<const ScoredPair> pairs,
+                           absl::Span<const Group> groups, absl::Span<const std::string> ids,
+                           absl::Span<const KeepFacts> facts, absl::Span<const uint8_t> empty,
+                           SweepRecordParts* out);
 
 }  // namespace kindred
 

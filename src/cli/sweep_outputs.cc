@@ -143,7 +143,7 @@ absl::Status CheckOutputLocations(const SweepFlags& flags) {
 
 // The three record kinds, formatted when wanted (all three for record
 // files, else the printed one only), by the sweep's record stage.
-SweepRecords FormatRecords(const RecordOutputs& records, const SweepResult& result) {
+SweepRecordParts FormatRecords(const RecordOutputs& records, const SweepResult& result) {
   const bool all = !records.output_dir.empty();
   SweepRecordOptions options;
   options.format = records.format;
@@ -160,9 +160,9 @@ SweepRecords FormatRecords(const RecordOutputs& records, const SweepResult& resu
       empty[doc] = result.corpus.shingle_count(doc) == 0;
     }
   }
-  SweepRecords out;
-  WriteSweepRecords(options, result.pairs, result.groups, result.corpus.ids(),
-                    result.corpus.all_facts(), empty, &out);
+  SweepRecordParts out;
+  WriteSweepRecordParts(options, result.pairs, result.groups, result.corpus.ids(),
+                        result.corpus.all_facts(), empty, &out);
   return out;
 }
 
@@ -170,14 +170,14 @@ SweepRecords FormatRecords(const RecordOutputs& records, const SweepResult& resu
 // name, the three at once on up to `threads` threads (a sync mostly waits
 // for the disk), then committed in order, so that a failure leaves what
 // writing them one by one would: the files before it committed, none after.
-absl::Status WriteRecordFiles(const RecordOutputs& records, const SweepRecords& formatted) {
+absl::Status WriteRecordFiles(const RecordOutputs& records, const SweepRecordParts& formatted) {
   std::error_code error;
   std::filesystem::create_directories(records.output_dir, error);
   if (error) {
     return WriteFailed(
         absl::StrCat("cannot create output directory ", records.output_dir, ": ", error.message()));
   }
-  const std::string* data[] = {&formatted.pairs, &formatted.groups, &formatted.decisions};
+  const RecordParts* data[] = {&formatted.pairs, &formatted.groups, &formatted.decisions};
   constexpr size_t kFiles = std::size(kRecordNames);
   std::string paths[kFiles];
   std::unique_ptr<io::AtomicFile> files[kFiles];
@@ -192,13 +192,22 @@ absl::Status WriteRecordFiles(const RecordOutputs& records, const SweepRecords& 
       written[k] = file.status();
       if (!file.ok()) continue;
       files[k] = *std::move(file);
-      written[k] = files[k]->Append(*data[k]);
+      for (const std::string& part : *data[k]) {
+        if (written[k].ok()) written[k] = files[k]->Append(part);
+      }
       if (written[k].ok()) written[k] = files[k]->Sync();
     }
   });
   for (size_t k = 0; k < kFiles; ++k) {
     absl::Status status = written[k].ok() ? files[k]->Commit() : written[k];
     if (!status.ok()) return Annotate(status, absl::StrCat("cannot write ", paths[k]));
+  }
+  return absl::OkStatus();
+}
+
+absl::Status PrintParts(const RecordParts& parts) {
+  for (const std::string& part : parts) {
+    if (absl::Status status = WriteOutputFile("-", part); !status.ok()) return status;
   }
   return absl::OkStatus();
 }
@@ -224,17 +233,17 @@ int CheckSweepOutputs(const SweepFlags& flags, const RecordOutputs& records,
 }
 
 absl::Status WriteRecordOutputs(const RecordOutputs& records, const SweepResult& result) {
-  const SweepRecords formatted = FormatRecords(records, result);
+  const SweepRecordParts formatted = FormatRecords(records, result);
   if (!records.output_dir.empty()) {
     if (absl::Status status = WriteRecordFiles(records, formatted); !status.ok()) return status;
   }
   switch (records.print) {
     case PrintedRecords::kPairs:
-      return WriteOutputFile("-", formatted.pairs);
+      return PrintParts(formatted.pairs);
     case PrintedRecords::kGroups:
-      return WriteOutputFile("-", formatted.groups);
+      return PrintParts(formatted.groups);
     case PrintedRecords::kDecisions:
-      return WriteOutputFile("-", formatted.decisions);
+      return PrintParts(formatted.decisions);
     case PrintedRecords::kNone:
       break;
   }

@@ -4,7 +4,6 @@
 // of its own record: rows are formatted in parts on several threads and
 // joined in order, which gives the bytes one pass gives.
 #include <algorithm>
-#include <cstring>
 #include <functional>
 
 #include "absl/strings/str_cat.h"
@@ -20,28 +19,28 @@ namespace {
 // beside its formatting.
 constexpr size_t kRowsPerPart = 2048;
 
-// Appends rows [0, rows) to *out: format(begin, end, part) appends rows
-// [begin, end) to *part (no header); with several threads, in parts formatted
-// concurrently and then copied into place in order.
-void FormatRows(size_t rows, int threads, std::string* out,
-                const std::function<void(size_t, size_t, std::string*)>& format) {
-  const size_t parts = std::min<size_t>(rows / kRowsPerPart, size_t{8} * std::max(1, threads));
-  if (threads <= 1 || parts <= 1) {
-    format(0, rows, out);
+// Appends to *parts the header of `writer_columns` (TSV, CSV) and then rows
+// [0, rows): format(begin, end, part) appends rows [begin, end) to *part (no
+// header). With several threads, the rows are formatted in parts
+// concurrently.
+void FormatRows(RecordFormat format, std::vector<std::string> columns, size_t rows, int threads,
+                RecordParts* parts,
+                const std::function<void(size_t, size_t, std::string*)>& format_rows) {
+  std::string header;
+  RecordWriter(format, std::move(columns), &header);
+  if (!header.empty()) parts->push_back(std::move(header));
+  const size_t count = std::min<size_t>(rows / kRowsPerPart, size_t{8} * std::max(1, threads));
+  if (threads <= 1 || count <= 1) {
+    parts->emplace_back();
+    format_rows(0, rows, &parts->back());
     return;
   }
-  std::vector<std::string> texts(parts);
-  ParallelFor(parts, threads, [&](size_t begin, size_t end, int) {
-    for (size_t p = begin; p < end; ++p)
-      format(rows * p / parts, rows * (p + 1) / parts, &texts[p]);
-  });
-  std::vector<size_t> at(parts + 1, out->size());
-  for (size_t p = 0; p < parts; ++p) at[p + 1] = at[p] + texts[p].size();
-  out->resize(at[parts]);
-  char* const bytes = out->data();
-  ParallelFor(parts, threads, [&](size_t begin, size_t end, int) {
-    for (size_t p = begin; p < end; ++p)
-      std::memcpy(bytes + at[p], texts[p].data(), texts[p].size());
+  const size_t first = parts->size();
+  parts->resize(first + count);
+  ParallelFor(count, threads, [&](size_t begin, size_t end, int) {
+    for (size_t p = begin; p < end; ++p) {
+      format_rows(rows * p / count, rows * (p + 1) / count, &(*parts)[first + p]);
+    }
   });
 }
 
@@ -250,36 +249,66 @@ void DecisionRows(const DecisionInputs& in, size_t begin, size_t end, std::strin
 
 }  // namespace
 
+void JoinParts(const RecordParts& parts, std::string* out) {
+  size_t size = out->size();
+  for (const std::string& part : parts) size += part.size();
+  out->reserve(size);
+  for (const std::string& part : parts) out->append(part);
+}
+
+void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
+                      absl::Span<const std::string> ids, RecordParts* parts, int threads) {
+  FormatRows(format, PairColumns(), pairs.size(), threads, parts,
+             [&](size_t begin, size_t end, std::string* part) {
+               PairRows(format, pairs.subspan(begin, end - begin), ids, part);
+             });
+}
+
+void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
+                       absl::Span<const std::string> ids, KeepPolicy policy, RecordParts* parts,
+                       Grouping grouping, int threads) {
+  FormatRows(format, GroupColumns(format, grouping), groups.size(), threads, parts,
+             [&](size_t begin, size_t end, std::string* part) {
+               GroupRows(format, groups, begin, end, ids, policy, part, grouping);
+             });
+}
+
+void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
+                          absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
+                          absl::Span<const uint8_t> empty, KeepPolicy policy, RecordParts* parts,
+                          absl::Span<const KeepFacts> facts, Grouping grouping, int threads) {
+  const DecisionInputs inputs{
+      format,   groups,
+      ids,      empty,
+      policy,   facts,
+      grouping, CollectMemberMatches(groups, pairs, grouping == Grouping::kKeepers)};
+  FormatRows(
+      format, DecisionColumns(grouping), ids.size(), threads, parts,
+      [&](size_t begin, size_t end, std::string* part) { DecisionRows(inputs, begin, end, part); });
+}
+
 void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
                       absl::Span<const std::string> ids, std::string* out, int threads) {
-  RecordWriter header(format, PairColumns(), out);
-  FormatRows(pairs.size(), threads, out, [&](size_t begin, size_t end, std::string* part) {
-    PairRows(format, pairs.subspan(begin, end - begin), ids, part);
-  });
+  RecordParts parts;
+  WritePairRecords(format, pairs, ids, &parts, threads);
+  JoinParts(parts, out);
 }
 
 void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
                        absl::Span<const std::string> ids, KeepPolicy policy, std::string* out,
                        Grouping grouping, int threads) {
-  RecordWriter header(format, GroupColumns(format, grouping), out);
-  FormatRows(groups.size(), threads, out, [&](size_t begin, size_t end, std::string* part) {
-    GroupRows(format, groups, begin, end, ids, policy, part, grouping);
-  });
+  RecordParts parts;
+  WriteGroupRecords(format, groups, ids, policy, &parts, grouping, threads);
+  JoinParts(parts, out);
 }
 
 void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
                           absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
                           absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out,
                           absl::Span<const KeepFacts> facts, Grouping grouping, int threads) {
-  RecordWriter header(format, DecisionColumns(grouping), out);
-  const DecisionInputs inputs{
-      format,   groups,
-      ids,      empty,
-      policy,   facts,
-      grouping, CollectMemberMatches(groups, pairs, grouping == Grouping::kKeepers)};
-  FormatRows(ids.size(), threads, out, [&](size_t begin, size_t end, std::string* part) {
-    DecisionRows(inputs, begin, end, part);
-  });
+  RecordParts parts;
+  WriteDecisionRecords(format, groups, pairs, ids, empty, policy, &parts, facts, grouping, threads);
+  JoinParts(parts, out);
 }
 
 }  // namespace kindred
