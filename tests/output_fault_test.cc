@@ -154,5 +154,47 @@ TEST_CASE("a full disk while a record file is written keeps the old file", "[out
   CHECK(!std::filesystem::exists(fresh));
 }
 
+// A file synced apart before its commit (the record files are written and
+// synced on several threads, then committed in order): a fault at any step
+// still leaves the old file or, past the rename, the whole new one; never a
+// part, and no temporary file unless the process crashed.
+TEST_CASE("a fault in a sync done before the commit keeps the old file", "[output_fault]") {
+  TempDir dir;
+  const std::string old_contents = "{\"group\":0}\n";
+  const std::string path = dir.Write("groups.jsonl", old_contents);
+  const std::string groups(20000, 'g');
+  const auto write = [&](FileSystem* fs) {
+    auto file = io::AtomicFile::Create(path, fs);
+    if (!file.ok()) return file.status();
+    absl::Status status = (*file)->Append(groups);
+    if (status.ok()) status = (*file)->Sync();
+    if (status.ok()) status = (*file)->Commit();
+    return status;
+  };
+  FaultFileSystem counter(DefaultFileSystem(), FaultKind::kSyncFails, -1, 4096);
+  REQUIRE(write(&counter).ok());
+  REQUIRE(ReadFile(path) == groups);
+  for (FaultKind kind : {FaultKind::kSyncFails, FaultKind::kCrash}) {
+    int fired = 0;
+    for (int64_t step = 0; step < counter.steps(); ++step) {
+      for (const std::string& left : Names(dir.path())) std::filesystem::remove(dir.File(left));
+      dir.Write("groups.jsonl", old_contents);
+      FaultFileSystem faulty(DefaultFileSystem(), kind, step, 4096);
+      const absl::Status status = write(&faulty);
+      if (!faulty.fired()) continue;
+      ++fired;
+      INFO("fault kind " << static_cast<int>(kind) << " at step " << step);
+      CHECK(KindOf(status) == ErrorKind::kWriteFailed);
+      const std::string now = ReadFile(path);
+      CHECK((now == old_contents || now == groups));
+      if (kind != FaultKind::kCrash) {
+        CHECK(Names(dir.path()) == std::vector<std::string>{"groups.jsonl"});
+      }
+    }
+    CHECK(fired > 0);
+    if (kind == FaultKind::kCrash) CHECK(fired == counter.steps());
+  }
+}
+
 }  // namespace
 }  // namespace kindred

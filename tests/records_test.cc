@@ -240,5 +240,53 @@ TEST_CASE("TSV and CSV groups: one row per drop, ids with separators kept whole"
         "\"policy\":\"first\"}\n");
 }
 
+// Enough rows that several threads format each kind in parts: the bytes
+// must not depend on where the parts begin and end.
+TEST_CASE("Records formatted in parts on threads are the bytes of one pass", "[records]") {
+  constexpr uint32_t kDocuments = 30000;
+  std::vector<std::string> ids;
+  std::vector<uint8_t> empty(kDocuments, 0);
+  for (uint32_t doc = 0; doc < kDocuments; ++doc) {
+    ids.push_back(
+        absl::StrCat(doc % 7 == 0 ? "tab\t,\"" : "doc", doc, doc % 11 == 0 ? "\xFF" : ""));
+    empty[doc] = doc % 13 == 5;
+  }
+  std::vector<Group> groups;
+  std::vector<ScoredPair> pairs;
+  for (uint32_t first = 0; first + 2 < kDocuments; first += 5) {
+    groups.push_back(Group{first + first % 3, {first, first + 1, first + 2}});
+    for (uint32_t b : {first + 1, first + 2}) {
+      ScoredPair pair;
+      pair.a = first;
+      pair.b = b;
+      pair.size_a = 100 + first % 50;
+      pair.size_b = 90 + b % 40;
+      pair.shared = 80 + (first + b) % 9;
+      pair.jaccard = static_cast<double>(pair.shared) / (pair.size_a + pair.size_b - pair.shared);
+      pair.estimate = (first % 128) / 128.0;
+      pairs.push_back(pair);
+    }
+  }
+  for (RecordFormat format : {RecordFormat::kJsonLines, RecordFormat::kTsv, RecordFormat::kCsv}) {
+    for (Grouping grouping : {Grouping::kComponents, Grouping::kKeepers}) {
+      std::string one[3];
+      for (int threads : {1, 2, 5}) {
+        std::string out[3] = {"x", "y", "z"};  // appended to, never replaced
+        WritePairRecords(format, pairs, ids, &out[0], threads);
+        WriteGroupRecords(format, groups, ids, KeepPolicy::kFirst, &out[1], grouping, threads);
+        WriteDecisionRecords(format, groups, pairs, ids, empty, KeepPolicy::kFirst, &out[2], {},
+                             grouping, threads);
+        if (threads == 1) {
+          for (int kind = 0; kind < 3; ++kind) one[kind] = out[kind];
+          const size_t header = format == RecordFormat::kJsonLines ? 0 : 1;
+          CHECK(std::count(one[0].begin(), one[0].end(), '\n') == pairs.size() + header);
+          continue;
+        }
+        for (int kind = 0; kind < 3; ++kind) CHECK(out[kind] == one[kind]);
+      }
+    }
+  }
+}
+
 }  // namespace
 }  // namespace kindred

@@ -45,6 +45,10 @@ class RecordWriter {
   // `columns` are the field names, in order. The header (TSV/CSV) is
   // appended at once.
   RecordWriter(RecordFormat format, std::vector<std::string> columns, std::string* out);
+  // A writer of rows that continue a table whose header is already written
+  // (rows formatted apart, to be joined after it): no header is appended.
+  static RecordWriter Continuing(RecordFormat format, std::vector<std::string> columns,
+                                 std::string* out);
 
   // Fields of the current row, in column order. A row holds exactly one
   // field per column; EndRow() finishes it.
@@ -84,19 +88,35 @@ class RecordWriter {
   void EndItem();
 
  private:
+  RecordWriter(RecordFormat format, std::vector<std::string> columns, std::string* out,
+               bool header);
   void BeginField();
   void NextItem();
 
   RecordFormat format_;
   std::vector<std::string> columns_;
+  // JSON Lines: what opens each field, its name quoted ("{\"a\":", ",\"b\":").
+  std::vector<std::string> keys_;
   std::string* out_;
   size_t field_ = 0;
   bool list_started_ = false;  // an element was added to the open list
 };
 
-// The three record kinds of a sweep. `ids` maps document index to id.
+// Record text in consecutive parts (formatted apart, on several threads):
+// the parts joined are the records. A writer can append them one by one and
+// spare the join.
+using RecordParts = std::vector<std::string>;
+// Appends the parts, in order, to *out.
+void JoinParts(const RecordParts& parts, std::string* out);
+
+// The three record kinds of a sweep, appended to *out (or as parts to
+// *parts). `ids` maps document index to id. `threads` > 1 formats the rows
+// in parts on that many threads (the calling thread among them); the bytes
+// are the same for any count.
 void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
-                      absl::Span<const std::string> ids, std::string* out);
+                      absl::Span<const std::string> ids, std::string* out, int threads = 1);
+void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
+                      absl::Span<const std::string> ids, RecordParts* parts, int threads = 1);
 // Groups: JSON Lines writes one record per group with the drops as an array;
 // TSV and CSV write one row per drop (columns group, size, keeper, drop,
 // policy), so every id is a field of its own and any id round-trips. Groups
@@ -104,7 +124,10 @@ void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
 // groups of connected components (the default) do not.
 void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
                        absl::Span<const std::string> ids, KeepPolicy policy, std::string* out,
-                       Grouping grouping = Grouping::kComponents);
+                       Grouping grouping = Grouping::kComponents, int threads = 1);
+void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
+                       absl::Span<const std::string> ids, KeepPolicy policy, RecordParts* parts,
+                       Grouping grouping = Grouping::kComponents, int threads = 1);
 // One decision per document that belongs to a group (keep for its keeper,
 // drop for the others), in document order. Documents in no group are kept and
 // not listed. `empty` marks documents with no shingles, which are listed as
@@ -116,7 +139,12 @@ void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
                           absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
                           absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out,
                           absl::Span<const KeepFacts> facts = {},
-                          Grouping grouping = Grouping::kComponents);
+                          Grouping grouping = Grouping::kComponents, int threads = 1);
+void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
+                          absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
+                          absl::Span<const uint8_t> empty, KeepPolicy policy, RecordParts* parts,
+                          absl::Span<const KeepFacts> facts = {},
+                          Grouping grouping = Grouping::kComponents, int threads = 1);
 
 }  // namespace kindred
 

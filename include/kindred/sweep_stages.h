@@ -117,6 +117,8 @@ struct SweepRecordOptions {
   Grouping grouping = Grouping::kComponents;
   // Which of the three to write (the others stay empty).
   bool pairs = true, groups = true, decisions = true;
+  // Threads that format the rows (the bytes are the same for any count).
+  int threads = 1;
 };
 // The three record files of a sweep (pairs, groups, decisions), as
 // `kindred sweep --output-dir` writes them.
@@ -132,6 +134,15 @@ void WriteSweepRecords(const SweepRecordOptions& options, absl::Span<const Score
                        absl::Span<const Group> groups, absl::Span<const std::string> ids,
                        absl::Span<const KeepFacts> facts, absl::Span<const uint8_t> empty,
                        SweepRecords* out);
+// The same, each kind in parts (records.h: RecordParts) that a writer
+// appends one by one.
+struct SweepRecordParts {
+  RecordParts pairs, groups, decisions;
+};
+void WriteSweepRecordParts(const SweepRecordOptions& options, absl::Span<const ScoredPair> pairs,
+                           absl::Span<const Group> groups, absl::Span<const std::string> ids,
+                           absl::Span<const KeepFacts> facts, absl::Span<const uint8_t> empty,
+                           SweepRecordParts* out);
 
 }  // namespace kindred
 

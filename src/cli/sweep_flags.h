@@ -57,6 +57,7 @@ struct RecordOutputs {
   Grouping grouping = Grouping::kComponents;
   PrintedRecords print = PrintedRecords::kGroups;
   std::string output_dir;  // empty: no record files
+  int threads = 1;         // that format the records
 };
 
 // --keep, --grouping, --format, --print and --output-dir, validated. For a

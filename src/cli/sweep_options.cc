@@ -143,6 +143,7 @@ absl::StatusOr<RecordOutputs> ToRecordOutputs(const SweepFlags& flags, bool corp
   if (!print.ok()) return print.status();
   records.print = *print;
   records.output_dir = flags.output_dir;
+  records.threads = ThreadCount(flags.general);
   return records;
 }
 

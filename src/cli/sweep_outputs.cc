@@ -1,6 +1,8 @@
 // The outputs of kindred sweep: the checks made before any input is read,
 // the record files and standard output, and the kept corpus.
 #include <filesystem>
+#include <iterator>
+#include <memory>
 #include <utility>
 
 #include "absl/strings/match.h"
@@ -9,6 +11,8 @@
 #include "cli/output.h"
 #include "cli/output_checks.h"
 #include "cli/sweep_flags.h"
+#include "core/parallel.h"
+#include "io/atomic_file.h"
 #include "io/byte_stream.h"
 #include "io/output_guard.h"
 #include "io/warc_reader.h"
@@ -139,7 +143,7 @@ absl::Status CheckOutputLocations(const SweepFlags& flags) {
 
 // The three record kinds, formatted when wanted (all three for record
 // files, else the printed one only), by the sweep's record stage.
-SweepRecords FormatRecords(const RecordOutputs& records, const SweepResult& result) {
+SweepRecordParts FormatRecords(const RecordOutputs& records, const SweepResult& result) {
   const bool all = !records.output_dir.empty();
   SweepRecordOptions options;
   options.format = records.format;
@@ -148,6 +152,7 @@ SweepRecords FormatRecords(const RecordOutputs& records, const SweepResult& resu
   options.pairs = all || records.print == PrintedRecords::kPairs;
   options.groups = all || records.print == PrintedRecords::kGroups;
   options.decisions = all || records.print == PrintedRecords::kDecisions;
+  options.threads = records.threads;
   std::vector<uint8_t> empty;
   if (options.decisions) {
     empty.resize(result.corpus.size());
@@ -155,25 +160,54 @@ SweepRecords FormatRecords(const RecordOutputs& records, const SweepResult& resu
       empty[doc] = result.corpus.shingle_count(doc) == 0;
     }
   }
-  SweepRecords out;
-  WriteSweepRecords(options, result.pairs, result.groups, result.corpus.ids(),
-                    result.corpus.all_facts(), empty, &out);
+  SweepRecordParts out;
+  WriteSweepRecordParts(options, result.pairs, result.groups, result.corpus.ids(),
+                        result.corpus.all_facts(), empty, &out);
   return out;
 }
 
-absl::Status WriteRecordFiles(const RecordOutputs& records, const SweepRecords& formatted) {
+// Writes the record files: each is written and synced under its temporary
+// name, the three at once on up to `threads` threads (a sync mostly waits
+// for the disk), then committed in order, so that a failure leaves what
+// writing them one by one would: the files before it committed, none after.
+absl::Status WriteRecordFiles(const RecordOutputs& records, const SweepRecordParts& formatted) {
   std::error_code error;
   std::filesystem::create_directories(records.output_dir, error);
   if (error) {
     return WriteFailed(
         absl::StrCat("cannot create output directory ", records.output_dir, ": ", error.message()));
   }
-  const std::string suffix = RecordFormatSuffix(records.format);
-  for (const auto& [name, data] :
-       {std::pair{"pairs", &formatted.pairs}, std::pair{"groups", &formatted.groups},
-        std::pair{"decisions", &formatted.decisions}}) {
-    const std::string path = absl::StrCat(records.output_dir, "/", name, ".", suffix);
-    if (absl::Status status = WriteOutputFile(path, *data); !status.ok()) return status;
+  const RecordParts* data[] = {&formatted.pairs, &formatted.groups, &formatted.decisions};
+  constexpr size_t kFiles = std::size(kRecordNames);
+  std::string paths[kFiles];
+  std::unique_ptr<io::AtomicFile> files[kFiles];
+  absl::Status written[kFiles];
+  for (size_t k = 0; k < kFiles; ++k) {
+    paths[k] = absl::StrCat(records.output_dir, "/", kRecordNames[k], ".",
+                            RecordFormatSuffix(records.format));
+  }
+  ParallelFor(kFiles, records.threads, [&](size_t begin, size_t end, int) {
+    for (size_t k = begin; k < end; ++k) {
+      auto file = io::AtomicFile::Create(paths[k], DefaultFileSystem());
+      written[k] = file.status();
+      if (!file.ok()) continue;
+      files[k] = *std::move(file);
+      for (const std::string& part : *data[k]) {
+        if (written[k].ok()) written[k] = files[k]->Append(part);
+      }
+      if (written[k].ok()) written[k] = files[k]->Sync();
+    }
+  });
+  for (size_t k = 0; k < kFiles; ++k) {
+    absl::Status status = written[k].ok() ? files[k]->Commit() : written[k];
+    if (!status.ok()) return Annotate(status, absl::StrCat("cannot write ", paths[k]));
+  }
+  return absl::OkStatus();
+}
+
+absl::Status PrintParts(const RecordParts& parts) {
+  for (const std::string& part : parts) {
+    if (absl::Status status = WriteOutputFile("-", part); !status.ok()) return status;
   }
   return absl::OkStatus();
 }
@@ -199,17 +233,17 @@ int CheckSweepOutputs(const SweepFlags& flags, const RecordOutputs& records,
 }
 
 absl::Status WriteRecordOutputs(const RecordOutputs& records, const SweepResult& result) {
-  const SweepRecords formatted = FormatRecords(records, result);
+  const SweepRecordParts formatted = FormatRecords(records, result);
   if (!records.output_dir.empty()) {
     if (absl::Status status = WriteRecordFiles(records, formatted); !status.ok()) return status;
   }
   switch (records.print) {
     case PrintedRecords::kPairs:
-      return WriteOutputFile("-", formatted.pairs);
+      return PrintParts(formatted.pairs);
     case PrintedRecords::kGroups:
-      return WriteOutputFile("-", formatted.groups);
+      return PrintParts(formatted.groups);
     case PrintedRecords::kDecisions:
-      return WriteOutputFile("-", formatted.decisions);
+      return PrintParts(formatted.decisions);
     case PrintedRecords::kNone:
       break;
   }

@@ -1,19 +1,58 @@
 // The pair, group and decision records of a sweep (declared in records.h).
+//
+// Each kind is a header (TSV, CSV) and then rows, each row's text a function
+// of its own record: rows are formatted in parts on several threads and
+// joined in order, which gives the bytes one pass gives.
 #include <algorithm>
+#include <functional>
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "core/parallel.h"
 #include "kindred/records.h"
 #include "kindred/verify.h"
 
 namespace kindred {
+namespace {
 
-void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
-                      absl::Span<const std::string> ids, std::string* out) {
-  RecordWriter writer(format,
-                      {"a", "b", "jaccard", "estimate", "containment_a_in_b", "containment_b_in_a",
-                       "shared", "shingles_a", "shingles_b"},
-                      out);
+// Rows per part: enough that a part's own string and task cost little
+// beside its formatting.
+constexpr size_t kRowsPerPart = 2048;
+
+// Appends to *parts the header of `writer_columns` (TSV, CSV) and then rows
+// [0, rows): format(begin, end, part) appends rows [begin, end) to *part (no
+// header). With several threads, the rows are formatted in parts
+// concurrently.
+void FormatRows(RecordFormat format, std::vector<std::string> columns, size_t rows, int threads,
+                RecordParts* parts,
+                const std::function<void(size_t, size_t, std::string*)>& format_rows) {
+  std::string header;
+  RecordWriter(format, std::move(columns), &header);
+  if (!header.empty()) parts->push_back(std::move(header));
+  const size_t count = std::min<size_t>(rows / kRowsPerPart, size_t{8} * std::max(1, threads));
+  if (threads <= 1 || count <= 1) {
+    parts->emplace_back();
+    format_rows(0, rows, &parts->back());
+    return;
+  }
+  const size_t first = parts->size();
+  parts->resize(first + count);
+  ParallelFor(count, threads, [&](size_t begin, size_t end, int) {
+    for (size_t p = begin; p < end; ++p) {
+      format_rows(rows * p / count, rows * (p + 1) / count, &(*parts)[first + p]);
+    }
+  });
+}
+
+std::vector<std::string> PairColumns() {
+  return {
+      "a",      "b",          "jaccard",   "estimate", "containment_a_in_b", "containment_b_in_a",
+      "shared", "shingles_a", "shingles_b"};
+}
+
+void PairRows(RecordFormat format, absl::Span<const ScoredPair> pairs,
+              absl::Span<const std::string> ids, std::string* out) {
+  RecordWriter writer = RecordWriter::Continuing(format, PairColumns(), out);
   for (const ScoredPair& pair : pairs) {
     writer.String(ids[pair.a]);
     writer.String(ids[pair.b]);
@@ -28,17 +67,23 @@ void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
   }
 }
 
-void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
-                       absl::Span<const std::string> ids, KeepPolicy policy, std::string* out,
-                       Grouping grouping) {
+std::vector<std::string> GroupColumns(RecordFormat format, Grouping grouping) {
+  // TSV and CSV: one row per drop, as a list of ids in one field could not
+  // be split back when ids hold the separator.
+  std::vector<std::string> columns = {
+      "group", "size", "keeper", format == RecordFormat::kJsonLines ? "drops" : "drop", "policy"};
+  if (grouping == Grouping::kKeepers) columns.push_back("grouping");
+  return columns;
+}
+
+// The rows of groups [begin, end).
+void GroupRows(RecordFormat format, absl::Span<const Group> groups, size_t begin, size_t end,
+               absl::Span<const std::string> ids, KeepPolicy policy, std::string* out,
+               Grouping grouping) {
   const bool keepers = grouping == Grouping::kKeepers;
+  RecordWriter writer = RecordWriter::Continuing(format, GroupColumns(format, grouping), out);
   if (format != RecordFormat::kJsonLines) {
-    // One row per drop: a list of ids in one field could not be split back
-    // when ids hold the separator.
-    std::vector<std::string> columns = {"group", "size", "keeper", "drop", "policy"};
-    if (keepers) columns.push_back("grouping");
-    RecordWriter writer(format, std::move(columns), out);
-    for (size_t g = 0; g < groups.size(); ++g) {
+    for (size_t g = begin; g < end; ++g) {
       for (uint32_t member : groups[g].members) {
         if (member == groups[g].keeper) continue;
         writer.Number(g + 1);
@@ -52,11 +97,8 @@ void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
     }
     return;
   }
-  std::vector<std::string> columns = {"group", "size", "keeper", "drops", "policy"};
-  if (keepers) columns.push_back("grouping");
-  RecordWriter writer(format, std::move(columns), out);
   std::vector<std::string_view> drops;
-  for (size_t g = 0; g < groups.size(); ++g) {
+  for (size_t g = begin; g < end; ++g) {
     drops.clear();
     for (uint32_t member : groups[g].members) {
       if (member != groups[g].keeper) drops.push_back(ids[member]);
@@ -70,8 +112,6 @@ void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
     writer.EndRow();
   }
 }
-
-namespace {
 
 // For each document in a pair: its most similar confirmed partner (ties to
 // the partner seen first).
@@ -96,9 +136,10 @@ std::string Reason(const Group& group, uint32_t doc, absl::Span<const std::strin
                    KeepPolicy policy, absl::Span<const KeepFacts> facts, double keeper_jaccard) {
   const bool priorities = policy == KeepPolicy::kPriority && !facts.empty();
   if (doc == group.keeper) {
-    if (!priorities) return absl::StrCat("keeper of its group (policy ", KeepPolicyName(policy), ")");
-    return absl::StrCat("keeper of its group (policy priority, priority ",
-                        PriorityText(facts[doc]), ")");
+    if (!priorities)
+      return absl::StrCat("keeper of its group (policy ", KeepPolicyName(policy), ")");
+    return absl::StrCat("keeper of its group (policy priority, priority ", PriorityText(facts[doc]),
+                        ")");
   }
   std::string reason = absl::StrCat("near-duplicate; ", ids[group.keeper], " is kept");
   if (keeper_jaccard >= 0) {
@@ -149,50 +190,125 @@ MemberMatches CollectMemberMatches(absl::Span<const Group> groups,
   return out;
 }
 
-}  // namespace
-
-void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
-                          absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
-                          absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out,
-                          absl::Span<const KeepFacts> facts, Grouping grouping) {
-  const bool keepers = grouping == Grouping::kKeepers;
+std::vector<std::string> DecisionColumns(Grouping grouping) {
   std::vector<std::string> columns = {"id",         "decision", "group", "keeper",
                                       "best_match", "jaccard",  "reason"};
-  if (keepers) columns.push_back("grouping");
-  RecordWriter writer(format, std::move(columns), out);
-  const MemberMatches matches = CollectMemberMatches(groups, pairs, keepers);
-  const auto& members = matches.members;
-  size_t next = 0;  // next member, in document order
-  for (size_t doc = 0; doc < ids.size(); ++doc) {
+  if (grouping == Grouping::kKeepers) columns.push_back("grouping");
+  return columns;
+}
+
+// What the decision rows are made of.
+struct DecisionInputs {
+  RecordFormat format;
+  absl::Span<const Group> groups;
+  absl::Span<const std::string> ids;
+  absl::Span<const uint8_t> empty;
+  KeepPolicy policy;
+  absl::Span<const KeepFacts> facts;
+  Grouping grouping;
+  MemberMatches matches;
+};
+
+// The decision rows of documents [begin, end).
+void DecisionRows(const DecisionInputs& in, size_t begin, size_t end, std::string* out) {
+  const bool keepers = in.grouping == Grouping::kKeepers;
+  RecordWriter writer = RecordWriter::Continuing(in.format, DecisionColumns(in.grouping), out);
+  const auto& members = in.matches.members;
+  // The next member, in document order.
+  size_t next = std::lower_bound(members.begin(), members.end(),
+                                 std::pair<uint32_t, uint32_t>{static_cast<uint32_t>(begin), 0}) -
+                members.begin();
+  for (size_t doc = begin; doc < end; ++doc) {
     if (next == members.size() || members[next].first != doc) {
-      if (!empty[doc]) continue;
-      writer.String(ids[doc]);
+      if (!in.empty[doc]) continue;
+      writer.String(in.ids[doc]);
       writer.String("keep");
-      writer.Null();
-      writer.Null();
-      writer.Null();
-      writer.Null();
+      for (int field = 0; field < 4; ++field) writer.Null();
       writer.String("empty document: no shingles, never a duplicate");
-      if (keepers) writer.String(GroupingName(grouping));
+      if (keepers) writer.String(GroupingName(in.grouping));
       writer.EndRow();
       continue;
     }
     const uint32_t g = members[next].second;
-    const BestMatch& match = matches.best[next];
-    const double keeper_jaccard = keepers ? matches.with_keeper[next] : -1;
+    const BestMatch& match = in.matches.best[next];
+    const double keeper_jaccard = keepers ? in.matches.with_keeper[next] : -1;
     ++next;
-    const Group& group = groups[g];
-    const bool keeper = group.keeper == doc;
-    writer.String(ids[doc]);
-    writer.String(keeper ? "keep" : "drop");
+    const Group& group = in.groups[g];
+    writer.String(in.ids[doc]);
+    writer.String(group.keeper == doc ? "keep" : "drop");
     writer.Number(g + 1);
-    writer.String(ids[group.keeper]);
-    writer.String(ids[match.partner]);
+    writer.String(in.ids[group.keeper]);
+    writer.String(in.ids[match.partner]);
     writer.Similarity(match.jaccard);
-    writer.String(Reason(group, static_cast<uint32_t>(doc), ids, policy, facts, keeper_jaccard));
-    if (keepers) writer.String(GroupingName(grouping));
+    writer.String(
+        Reason(group, static_cast<uint32_t>(doc), in.ids, in.policy, in.facts, keeper_jaccard));
+    if (keepers) writer.String(GroupingName(in.grouping));
     writer.EndRow();
   }
+}
+
+}  // namespace
+
+void JoinParts(const RecordParts& parts, std::string* out) {
+  size_t size = out->size();
+  for (const std::string& part : parts) size += part.size();
+  out->reserve(size);
+  for (const std::string& part : parts) out->append(part);
+}
+
+void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
+                      absl::Span<const std::string> ids, RecordParts* parts, int threads) {
+  FormatRows(format, PairColumns(), pairs.size(), threads, parts,
+             [&](size_t begin, size_t end, std::string* part) {
+               PairRows(format, pairs.subspan(begin, end - begin), ids, part);
+             });
+}
+
+void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
+                       absl::Span<const std::string> ids, KeepPolicy policy, RecordParts* parts,
+                       Grouping grouping, int threads) {
+  FormatRows(format, GroupColumns(format, grouping), groups.size(), threads, parts,
+             [&](size_t begin, size_t end, std::string* part) {
+               GroupRows(format, groups, begin, end, ids, policy, part, grouping);
+             });
+}
+
+void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
+                          absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
+                          absl::Span<const uint8_t> empty, KeepPolicy policy, RecordParts* parts,
+                          absl::Span<const KeepFacts> facts, Grouping grouping, int threads) {
+  const DecisionInputs inputs{
+      format,   groups,
+      ids,      empty,
+      policy,   facts,
+      grouping, CollectMemberMatches(groups, pairs, grouping == Grouping::kKeepers)};
+  FormatRows(
+      format, DecisionColumns(grouping), ids.size(), threads, parts,
+      [&](size_t begin, size_t end, std::string* part) { DecisionRows(inputs, begin, end, part); });
+}
+
+void WritePairRecords(RecordFormat format, absl::Span<const ScoredPair> pairs,
+                      absl::Span<const std::string> ids, std::string* out, int threads) {
+  RecordParts parts;
+  WritePairRecords(format, pairs, ids, &parts, threads);
+  JoinParts(parts, out);
+}
+
+void WriteGroupRecords(RecordFormat format, absl::Span<const Group> groups,
+                       absl::Span<const std::string> ids, KeepPolicy policy, std::string* out,
+                       Grouping grouping, int threads) {
+  RecordParts parts;
+  WriteGroupRecords(format, groups, ids, policy, &parts, grouping, threads);
+  JoinParts(parts, out);
+}
+
+void WriteDecisionRecords(RecordFormat format, absl::Span<const Group> groups,
+                          absl::Span<const ScoredPair> pairs, absl::Span<const std::string> ids,
+                          absl::Span<const uint8_t> empty, KeepPolicy policy, std::string* out,
+                          absl::Span<const KeepFacts> facts, Grouping grouping, int threads) {
+  RecordParts parts;
+  WriteDecisionRecords(format, groups, pairs, ids, empty, policy, &parts, facts, grouping, threads);
+  JoinParts(parts, out);
 }
 
 }  // namespace kindred

@@ -206,18 +206,31 @@ std::vector<Group> GroupDocuments(const DocumentTable& table, absl::Span<const S
   return GroupPairs(pairs, facts, keep, grouping);
 }
 
+void WriteSweepRecordParts(const SweepRecordOptions& options, absl::Span<const ScoredPair> pairs,
+                           absl::Span<const Group> groups, absl::Span<const std::string> ids,
+                           absl::Span<const KeepFacts> facts, absl::Span<const uint8_t> empty,
+                           SweepRecordParts* out) {
+  const int threads = options.threads;
+  if (options.pairs) WritePairRecords(options.format, pairs, ids, &out->pairs, threads);
+  if (options.groups) {
+    WriteGroupRecords(options.format, groups, ids, options.keep, &out->groups, options.grouping,
+                      threads);
+  }
+  if (options.decisions) {
+    WriteDecisionRecords(options.format, groups, pairs, ids, empty, options.keep, &out->decisions,
+                         facts, options.grouping, threads);
+  }
+}
+
 void WriteSweepRecords(const SweepRecordOptions& options, absl::Span<const ScoredPair> pairs,
                        absl::Span<const Group> groups, absl::Span<const std::string> ids,
                        absl::Span<const KeepFacts> facts, absl::Span<const uint8_t> empty,
                        SweepRecords* out) {
-  if (options.pairs) WritePairRecords(options.format, pairs, ids, &out->pairs);
-  if (options.groups) {
-    WriteGroupRecords(options.format, groups, ids, options.keep, &out->groups, options.grouping);
-  }
-  if (options.decisions) {
-    WriteDecisionRecords(options.format, groups, pairs, ids, empty, options.keep, &out->decisions,
-                         facts, options.grouping);
-  }
+  SweepRecordParts parts;
+  WriteSweepRecordParts(options, pairs, groups, ids, facts, empty, &parts);
+  JoinParts(parts.pairs, &out->pairs);
+  JoinParts(parts.groups, &out->groups);
+  JoinParts(parts.decisions, &out->decisions);
 }
 
 SweepRecords FormatSweepRecords(const DocumentTable& table, absl::Span<const ScoredPair> pairs,

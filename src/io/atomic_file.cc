@@ -43,6 +43,11 @@ absl::Status AtomicFile::Append(std::string_view bytes) {
   return file_->Append(bytes);
 }
 
+absl::Status AtomicFile::Sync() {
+  if (file_ == nullptr) return absl::InternalError(absl::StrCat(path_, ": already committed"));
+  return file_->Sync();
+}
+
 absl::Status AtomicFile::Commit() {
   if (file_ == nullptr) return absl::InternalError(absl::StrCat(path_, ": already committed"));
   absl::Status status = file_->Sync();

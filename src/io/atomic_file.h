@@ -39,6 +39,9 @@ class AtomicFile {
 
   // Appends bytes to the temporary file. Call before Commit.
   absl::Status Append(std::string_view bytes);
+  // Syncs the bytes appended so far, so that Commit has only them to sync
+  // again (done apart, on other threads, while other work goes on).
+  absl::Status Sync();
   // Syncs, renames onto the final path and syncs its directory. Call once;
   // on failure the temporary file is removed and the path is untouched.
   absl::Status Commit();
