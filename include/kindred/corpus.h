@@ -95,6 +95,8 @@
 
 namespace kindred {
 
+class FileSystem;  // kindred/file_io.h
+
 enum class InputFormat : uint8_t {
   kAuto,       // decided per input, as described above
   kText,       // a file (or each file of a tree) is one document
@@ -173,6 +175,11 @@ struct InputOptions {
   // removes the file when done.
   std::string stdin_copy_path;
   WarcOptions warc;
+  // The file system every input file and tree is read through (standard
+  // input excepted), by the reader and by whatever reads the inputs again
+  // (Reopen, the second reading of a sweep, WriteKept); null:
+  // DefaultFileSystem(). Borrowed: it must outlive every reader.
+  FileSystem* file_system = nullptr;
 };
 
 // DocumentSource::offset when the line cannot be found again by its offset.

@@ -6,17 +6,24 @@
 // DefaultFileSystem() is the real POSIX implementation.
 //
 // Scratch data (sorted runs of band keys spilled under a memory budget) goes
-// through a FileSystem too, as a ScratchFile.
+// through a FileSystem too, as a ScratchFile. So do the inputs (ReadableFile,
+// Stat, ListDirectory) and the directories outputs are written into
+// (CreateDirectories, CreateDirectory), so that tests can fail a read or a
+// directory at any place. Standard input is no file of a FileSystem.
 //
 // Errors are values (kindred/errors.h), with the kind decided here, where
 // they arise: writes report DiskFull (ResourceExhausted) when the disk, the
 // quota or the file size limit is full (ENOSPC, EDQUOT, EFBIG) and
 // WriteFailed (Aborted) for any other failed system call, with the path and
-// the system's message. Lock conflicts report Unavailable.
+// the system's message. Lock conflicts report Unavailable. Reads of inputs
+// (OpenRead, ReadableFile, Stat, ListDirectory) report BadInput with the
+// errno's canonical code (NotFound for a missing file), the message
+// "<path>: <what>: <system's message>".
 //
 // Thread-safety: a FileSystem may be shared by threads; each AppendFile,
-// FileLock and MappedFile belongs to one thread at a time; a ScratchFile is
-// read by any number of threads at once (see there).
+// FileLock and MappedFile belongs to one thread at a time; a ScratchFile and
+// a ReadableFile are read at offsets by any number of threads at once (see
+// there).
 #ifndef KINDRED_FILE_IO_H_
 #define KINDRED_FILE_IO_H_
 
@@ -24,6 +31,7 @@
 #include <memory>
 #include <string>
 #include <string_view>
+#include <vector>
 
 #include "absl/status/status.h"
 #include "absl/status/statusor.h"
@@ -84,6 +92,58 @@ class ScratchFile {
   virtual uint64_t size() const = 0;
 };
 
+// A file open for reading: sequential reads from a position (which starts
+// at byte 0), and reads at any offset, which share no position. The file is
+// read as it is when each read happens (no snapshot).
+//
+// Thread-safety: Read and Seek by one thread at a time; ReadAt by any
+// number of threads at once, also during a Read.
+class ReadableFile {
+ public:
+  virtual ~ReadableFile() = default;
+  // Reads up to out.size() (>= 1) bytes at the position and moves it past
+  // them. Returns the count; 0 only at the end of the file. Errors: BadInput
+  // "<path>: read failed: <system's message>".
+  virtual absl::StatusOr<size_t> Read(absl::Span<char> out) = 0;
+  // Reads up to out.size() bytes at `offset`; fewer only where the file
+  // ends (0 at or past its end). The position does not move. Errors:
+  // BadInput "<path>: cannot read: <system's message>".
+  virtual absl::StatusOr<size_t> ReadAt(uint64_t offset, absl::Span<char> out) const = 0;
+  // Moves the position to `offset` (past the end is allowed: reads there
+  // return 0). Errors: BadInput "<path>: cannot read at byte <offset>: ...".
+  virtual absl::Status Seek(uint64_t offset) = 0;
+};
+
+// What a path names.
+enum class FileKind : uint8_t {
+  kFile,  // a regular file
+  kDirectory,
+  kLink,        // a symbolic link (not followed)
+  kBrokenLink,  // a symbolic link, followed, that leads nowhere
+  kFifo,
+  kSocket,
+  kDevice,  // a character or block device, or anything else
+  kGone,    // listed, but gone (or not readable) when looked at
+};
+
+struct FileInfo {
+  FileKind kind = FileKind::kFile;
+  uint64_t size = 0;  // bytes, for a regular file
+  // The file's identity: equal pairs name one file.
+  uint64_t device = 0;
+  uint64_t inode = 0;
+};
+
+struct DirectoryEntry {
+  std::string name;  // not "." or ".."
+  FileKind kind = FileKind::kGone;
+};
+
+struct DirectoryListing {
+  uint64_t device = 0, inode = 0;       // the directory's identity (FileInfo)
+  std::vector<DirectoryEntry> entries;  // in the order the system gives
+};
+
 // An exclusive advisory lock, released when destroyed.
 class FileLock {
  public:
@@ -106,10 +166,14 @@ class FileSystem {
   virtual absl::StatusOr<std::unique_ptr<FileLock>> LockExclusive(const std::string& path) = 0;
   // True when `path` still names the file `lock` was taken on.
   virtual bool LockStillNamesPath(const FileLock& lock, const std::string& path) = 0;
-  // Atomically renames `from` to `to`. With replace == false, fails with
-  // AlreadyExists instead of replacing an existing `to`.
+  // Atomically renames `from` to `to` (files, or directories: a directory
+  // replaces only an empty one). With replace == false, fails with
+  // AlreadyExists instead of replacing an existing `to`; a directory `to`
+  // that is not empty is AlreadyExists either way. Messages: "cannot rename
+  // to <to>: <system's message>".
   virtual absl::Status Rename(const std::string& from, const std::string& to, bool replace) = 0;
-  // Removes a file (used to clean up temporary files).
+  // Removes a file, or an empty directory (used to clean up temporary
+  // files and directories).
   virtual absl::Status Remove(const std::string& path) = 0;
   // Syncs the directory that holds `path`, making a creation or rename durable.
   virtual absl::Status SyncDirectoryOf(const std::string& path) = 0;
@@ -119,10 +183,35 @@ class FileSystem {
   // Errors: DiskFull, or WriteFailed (a missing directory, no permission),
   // naming `dir`.
   virtual absl::StatusOr<std::unique_ptr<ScratchFile>> CreateScratch(const std::string& dir) = 0;
+
+  // Opens an existing file for reading; the caller owns it. Errors: BadInput
+  // "<path>: cannot open: <system's message>" (NotFound when missing).
+  virtual absl::StatusOr<std::unique_ptr<ReadableFile>> OpenRead(const std::string& path) = 0;
+  // What `path` names, following symbolic links. Errors: BadInput
+  // "<path>: cannot open: <system's message>" (NotFound when missing).
+  virtual absl::StatusOr<FileInfo> Stat(const std::string& path) = 0;
+  // The entries of directory `path`. An entry's kind is that of the entry
+  // itself (a symbolic link is kLink); with `follow_links`, a link has the
+  // kind of what it leads to, or kBrokenLink. Errors: BadInput "<path>:
+  // cannot read directory: <system's message>".
+  virtual absl::StatusOr<DirectoryListing> ListDirectory(const std::string& path,
+                                                         bool follow_links) = 0;
+  // Creates directory `path` and its missing parents (mode 0755 less the
+  // umask); an existing directory is no error. Errors: as writes (DiskFull,
+  // else WriteFailed), "<path>: cannot create directory: <system's
+  // message>".
+  virtual absl::Status CreateDirectories(const std::string& path) = 0;
+  // Creates one directory, mode 0755 less the umask. Errors: AlreadyExists
+  // when `path` exists, else as CreateDirectories.
+  virtual absl::Status CreateDirectory(const std::string& path) = 0;
 };
 
 // The POSIX file system. Never null; lives for the whole program.
 FileSystem* DefaultFileSystem();
+
+// Reads `file` from its position to its end (for small files: labels, a
+// token, a list of ids). Errors: those of ReadableFile::Read.
+absl::StatusOr<std::string> ReadToEnd(ReadableFile& file);
 
 }  // namespace kindred
 

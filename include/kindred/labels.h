@@ -32,6 +32,7 @@
 
 #include "absl/status/statusor.h"
 #include "absl/types/span.h"
+#include "kindred/file_io.h"
 
 namespace kindred {
 
@@ -53,8 +54,10 @@ absl::StatusOr<std::vector<LabelledPair>> ParseLabels(std::string_view content,
                                                       std::string_view name);
 
 // Reads and parses the labels file at `path` (plain text; NotFound when it
-// cannot be opened).
-absl::StatusOr<std::vector<LabelledPair>> ReadLabels(const std::string& path);
+// cannot be opened, BadInput "<path>: read error" when it cannot be read to
+// its end) through `fs` (null: DefaultFileSystem()).
+absl::StatusOr<std::vector<LabelledPair>> ReadLabels(const std::string& path,
+                                                     FileSystem* fs = nullptr);
 
 // A labelled pair whose ids were found in a corpus: documents are the dense
 // indices 0..n-1 of the corpus.

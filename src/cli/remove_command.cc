@@ -1,13 +1,14 @@
 // kindred remove: retire documents of an index by id (a takedown without a
 // rebuild), in one new segment that holds only the retired list.
 #include <cstdio>
-#include <fstream>
 
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
+#include "absl/strings/str_split.h"
 #include "cli/cli.h"
 #include "cli/index_options.h"
 #include "core/plural.h"
+#include "kindred/file_io.h"
 #include "kindred/index_writer.h"
 
 namespace kindred::cli {
@@ -23,14 +24,14 @@ struct RemoveFlags {
 
 // One id per line; empty lines are skipped, a trailing CR is dropped.
 absl::Status ReadIds(const std::string& path, std::vector<std::string>* ids) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) return absl::NotFoundError(absl::StrCat("cannot open ", path));
-  std::string line;
-  while (std::getline(in, line)) {
-    if (!line.empty() && line.back() == '\r') line.pop_back();
-    if (!line.empty()) ids->push_back(line);
+  auto file = DefaultFileSystem()->OpenRead(path);
+  if (!file.ok()) return absl::NotFoundError(absl::StrCat("cannot open ", path));
+  absl::StatusOr<std::string> content = ReadToEnd(**file);
+  if (!content.ok()) return absl::DataLossError(absl::StrCat("cannot read ", path));
+  for (absl::string_view line : absl::StrSplit(*content, '\n')) {
+    if (!line.empty() && line.back() == '\r') line.remove_suffix(1);
+    if (!line.empty()) ids->emplace_back(line);
   }
-  if (in.bad()) return absl::DataLossError(absl::StrCat("cannot read ", path));
   return absl::OkStatus();
 }
 

@@ -5,13 +5,11 @@
 #include <dlfcn.h>
 #include <unistd.h>
 
-#include <fstream>
-#include <sstream>
-
 #include "absl/strings/numbers.h"
 #include "absl/strings/str_cat.h"
 #include "cli/cli.h"
 #include "cli/output.h"
+#include "kindred/file_io.h"
 #include "serve/serve_module.h"
 
 namespace kindred::cli {
@@ -56,11 +54,11 @@ bool IsLoopback(const std::string& host) {
 }
 
 absl::StatusOr<std::string> ReadToken(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) return absl::NotFoundError(absl::StrCat("cannot read the token file ", path));
-  std::stringstream buffer;
-  buffer << in.rdbuf();
-  std::string token = buffer.str();
+  auto file = DefaultFileSystem()->OpenRead(path);
+  absl::StatusOr<std::string> read =
+      file.ok() ? ReadToEnd(**file) : absl::StatusOr<std::string>(file.status());
+  if (!read.ok()) return absl::NotFoundError(absl::StrCat("cannot read the token file ", path));
+  std::string token = *std::move(read);
   while (!token.empty() && (token.back() == '\n' || token.back() == '\r' || token.back() == ' ')) {
     token.pop_back();
   }

@@ -1,20 +1,18 @@
 #include "core/reload.h"
 
-#include <fcntl.h>
-#include <unistd.h>
-
 #include <algorithm>
-#include <cerrno>
 #include <cstring>
 #include <functional>
 #include <memory>
 
+#include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
 #include "core/document_signer.h"
-#include "io/warc_documents.h"
 #include "core/parallel.h"
 #include "io/json_line.h"
+#include "io/warc_documents.h"
 #include "kindred/errors.h"
+#include "kindred/file_io.h"
 
 namespace kindred {
 namespace {
@@ -125,54 +123,59 @@ class Attacher {
   size_t attached_ = 0;
 };
 
-// Reads the line that starts at `offset` of `fd` (without its "\n"; all that
-// is left when no "\n" ends it) into *line. Stops past max_bytes: the
+// Reads the line that starts at `offset` of `file` (without its "\n"; all
+// that is left when no "\n" ends it) into *line. Stops past max_bytes: the
 // document then fails the check that it is unchanged.
-absl::Status ReadLineAt(int fd, uint64_t offset, uint64_t max_bytes, const std::string& name,
+absl::Status ReadLineAt(const ReadableFile& file, uint64_t offset, uint64_t max_bytes,
                         std::string* line) {
   line->clear();
   size_t chunk = 4096;
   for (;;) {
     const size_t have = line->size();
     line->resize(have + chunk);
-    const ssize_t n = pread(fd, line->data() + have, chunk, static_cast<off_t>(offset + have));
-    if (n < 0 && errno == EINTR) {
-      line->resize(have);
-      continue;
-    }
-    if (n < 0) return InputErrno(errno, absl::StrCat(name, ": cannot read"));
+    const absl::StatusOr<size_t> read =
+        file.ReadAt(offset + have, absl::MakeSpan(line->data() + have, chunk));
+    if (!read.ok()) return read.status();
+    const size_t n = *read;
     const char* newline = static_cast<const char*>(std::memchr(line->data() + have, '\n', n));
     if (newline != nullptr) {
       line->resize(static_cast<size_t>(newline - line->data()));
       return absl::OkStatus();
     }
-    line->resize(have + static_cast<size_t>(n));
+    line->resize(have + n);
     if (n == 0 || line->size() > max_bytes) return absl::OkStatus();
     chunk *= 2;
   }
 }
 
+// `status` of a read of `input`'s read_path, naming the input as given
+// (standard input as "-", not its copy).
+absl::Status NamedAsGiven(const absl::Status& status, const ResolvedInput& input) {
+  if (status.ok() || input.read_path == input.name ||
+      !absl::StartsWith(status.message(), input.read_path)) {
+    return status;
+  }
+  return WithMessage(status,
+                     absl::StrCat(input.name, status.message().substr(input.read_path.size())));
+}
+
 // Reads documents `docs` (each with a known offset) at their offsets, in
-// the workers (JSON lines by pread on one descriptor per input, WARC
-// records each from its own stream).
+// the workers (JSON lines by reads at offsets of one ReadableFile per input,
+// WARC records each from its own stream).
 absl::Status ReadAtOffsets(const std::vector<ResolvedInput>& inputs, const InputOptions& options,
                            const SignedCorpus& corpus, absl::Span<const uint32_t> docs,
                            Attacher* attacher) {
-  struct Fd {
-    int fd = -1;
-    ~Fd() {
-      if (fd >= 0) close(fd);
-    }
-  };
-  std::vector<Fd> fds(inputs.size());
+  FileSystem* fs = options.file_system != nullptr ? options.file_system : DefaultFileSystem();
+  std::vector<std::unique_ptr<ReadableFile>> files(inputs.size());
   std::vector<Document> batch;
   const auto read = [&](Document& doc) {
     const DocumentOrigin& origin = corpus.origin(doc.ordinal);
     if (inputs[origin.input].format == InputFormat::kWarc) {
       return io::ReadWarcDocumentAt(inputs[origin.input].read_path, origin.offset, options, &doc);
     }
-    return ReadLineAt(fds[origin.input].fd, origin.offset, options.max_document_bytes,
-                      inputs[origin.input].name, &doc.text);
+    return NamedAsGiven(
+        ReadLineAt(*files[origin.input], origin.offset, options.max_document_bytes, &doc.text),
+        inputs[origin.input]);
   };
   constexpr size_t kBatch = 1024;
   for (size_t start = 0; start < docs.size(); start += kBatch) {
@@ -182,12 +185,10 @@ absl::Status ReadAtOffsets(const std::vector<ResolvedInput>& inputs, const Input
       const uint32_t ordinal = docs[start + i];
       const DocumentOrigin& origin = corpus.origin(ordinal);
       const ResolvedInput& input = inputs[origin.input];
-      Fd& fd = fds[origin.input];
-      if (fd.fd < 0) {
-        fd.fd = open(input.read_path.c_str(), O_RDONLY | O_CLOEXEC);
-        if (fd.fd < 0) {
-          return InputErrno(errno, absl::StrCat(input.name, ": cannot open"));
-        }
+      if (files[origin.input] == nullptr && input.format != InputFormat::kWarc) {
+        absl::StatusOr<std::unique_ptr<ReadableFile>> opened = fs->OpenRead(input.read_path);
+        if (!opened.ok()) return NamedAsGiven(opened.status(), input);
+        files[origin.input] = *std::move(opened);
       }
       Document& doc = batch[i];
       doc.unparsed = true;

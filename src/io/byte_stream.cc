@@ -17,21 +17,33 @@
 namespace kindred::io {
 namespace {
 
-// Reads a file descriptor, first handing out bytes already read from it
-// (`prefix`, used to sniff the compression magic).
-class FdStream : public ByteStream {
+// Standard input as a ReadableFile: it is no file of a FileSystem (a pipe, a
+// terminal), so it stays a read(2) on descriptor 0, sequential only.
+class StandardInput : public ReadableFile {
  public:
-  FdStream(int fd, bool owned, std::string name, std::string prefix,
-           std::atomic<uint64_t>* counter = nullptr)
-      : fd_(fd),
-        owned_(owned),
-        name_(std::move(name)),
-        prefix_(std::move(prefix)),
-        counter_(counter) {
-    if (counter_ != nullptr) counter_->fetch_add(prefix_.size(), std::memory_order_relaxed);
+  absl::StatusOr<size_t> Read(absl::Span<char> out) override {
+    for (;;) {
+      ssize_t n = read(STDIN_FILENO, out.data(), out.size());
+      if (n >= 0) return static_cast<size_t>(n);
+      if (errno != EINTR) return InputErrno(errno, "standard input: read failed");
+    }
   }
-  ~FdStream() override {
-    if (owned_) close(fd_);
+  absl::StatusOr<size_t> ReadAt(uint64_t, absl::Span<char>) const override {
+    return absl::InternalError("standard input is read in order only");
+  }
+  absl::Status Seek(uint64_t) override {
+    return absl::InternalError("standard input is read in order only");
+  }
+};
+
+// Reads a file, first handing out bytes already read from it (`prefix`,
+// used to sniff the compression magic).
+class FileStream : public ByteStream {
+ public:
+  FileStream(std::unique_ptr<ReadableFile> file, std::string prefix,
+             std::atomic<uint64_t>* counter = nullptr)
+      : file_(std::move(file)), prefix_(std::move(prefix)), counter_(counter) {
+    if (counter_ != nullptr) counter_->fetch_add(prefix_.size(), std::memory_order_relaxed);
   }
 
   absl::StatusOr<size_t> Read(char* dst, size_t capacity) override {
@@ -41,21 +53,14 @@ class FdStream : public ByteStream {
       prefix_used_ += n;
       return n;
     }
-    for (;;) {
-      ssize_t n = read(fd_, dst, capacity);
-      if (n >= 0) {
-        if (counter_ != nullptr) counter_->fetch_add(n, std::memory_order_relaxed);
-        return static_cast<size_t>(n);
-      }
-      if (errno != EINTR) return InputErrno(errno, absl::StrCat(name_, ": read failed"));
-    }
+    absl::StatusOr<size_t> n = file_->Read(absl::MakeSpan(dst, capacity));
+    if (n.ok() && counter_ != nullptr) counter_->fetch_add(*n, std::memory_order_relaxed);
+    return n;
   }
   uint64_t RawOffsetOf(uint64_t decoded) override { return decoded; }
 
  private:
-  int fd_;
-  bool owned_;
-  std::string name_;
+  std::unique_ptr<ReadableFile> file_;
   std::string prefix_;
   size_t prefix_used_ = 0;
   std::atomic<uint64_t>* counter_;
@@ -195,28 +200,21 @@ class TeeStream : public ByteStream {
   std::string copy_path_;
 };
 
-absl::StatusOr<int> OpenForReading(const std::string& path) {
-  for (;;) {
-    int fd = open(path.c_str(), O_RDONLY | O_CLOEXEC);
-    if (fd >= 0) return fd;
-    if (errno != EINTR) return InputErrno(errno, absl::StrCat(path, ": cannot open"));
-  }
-}
-
 // Reads up to 4 bytes (fewer only at the end of the stream).
-absl::StatusOr<std::string> ReadMagic(int fd, const std::string& name) {
+absl::StatusOr<std::string> ReadMagic(ReadableFile& file) {
   std::string magic(4, '\0');
   size_t have = 0;
   while (have < magic.size()) {
-    ssize_t n = read(fd, magic.data() + have, magic.size() - have);
-    if (n < 0 && errno == EINTR) continue;
-    if (n < 0) return InputErrno(errno, absl::StrCat(name, ": read failed"));
-    if (n == 0) break;
-    have += static_cast<size_t>(n);
+    absl::StatusOr<size_t> n = file.Read(absl::MakeSpan(magic.data() + have, magic.size() - have));
+    if (!n.ok()) return n.status();
+    if (*n == 0) break;
+    have += *n;
   }
   magic.resize(have);
   return magic;
 }
+
+FileSystem* Resolved(FileSystem* fs) { return fs != nullptr ? fs : DefaultFileSystem(); }
 
 Compression DetectCompression(const std::string& magic) {
   if (magic.size() >= 2 && magic[0] == '\x1f' && magic[1] == '\x8b') return Compression::kGzip;
@@ -230,37 +228,34 @@ std::string DisplayName(const std::string& path) {
   return path == "-" ? std::string("standard input") : path;
 }
 
-absl::StatusOr<std::unique_ptr<ByteStream>> OpenRaw(const std::string& path) {
-  absl::StatusOr<int> fd = OpenForReading(path);
-  if (!fd.ok()) return fd.status();
-  return std::make_unique<FdStream>(*fd, true, path, std::string());
+absl::StatusOr<std::unique_ptr<ByteStream>> OpenRaw(const std::string& path, FileSystem* fs) {
+  absl::StatusOr<std::unique_ptr<ReadableFile>> file = Resolved(fs)->OpenRead(path);
+  if (!file.ok()) return file.status();
+  return std::make_unique<FileStream>(*std::move(file), std::string());
 }
 
 absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
                                                         const DecodeOptions& options,
                                                         Compression* compression, uint64_t offset) {
-  const bool is_stdin = path == "-";
   const std::string name = DisplayName(path);
-  int fd = STDIN_FILENO;
-  if (!is_stdin) {
-    absl::StatusOr<int> opened = OpenForReading(path);
+  std::unique_ptr<ReadableFile> file;
+  if (path == "-") {
+    file = std::make_unique<StandardInput>();
+  } else {
+    absl::StatusOr<std::unique_ptr<ReadableFile>> opened =
+        Resolved(options.file_system)->OpenRead(path);
     if (!opened.ok()) return opened.status();
-    fd = *opened;
-    if (offset > 0 && lseek(fd, static_cast<off_t>(offset), SEEK_SET) < 0) {
-      const int error = errno;
-      close(fd);
-      return InputErrno(error, absl::StrCat(name, ": cannot read at byte ", offset));
+    file = *std::move(opened);
+    if (offset > 0) {
+      if (absl::Status moved = file->Seek(offset); !moved.ok()) return moved;
     }
   }
-  absl::StatusOr<std::string> magic = ReadMagic(fd, name);
-  if (!magic.ok()) {
-    if (!is_stdin) close(fd);
-    return magic.status();
-  }
+  absl::StatusOr<std::string> magic = ReadMagic(*file);
+  if (!magic.ok()) return magic.status();
   const Compression detected = DetectCompression(*magic);
   if (compression != nullptr) *compression = detected;
   std::unique_ptr<ByteStream> stream =
-      std::make_unique<FdStream>(fd, !is_stdin, name, *magic, options.raw_bytes);
+      std::make_unique<FileStream>(std::move(file), *magic, options.raw_bytes);
   if (detected != Compression::kNone) {
     if (detected == Compression::kGzip) {
       stream = MakeGzipStream(std::move(stream), name);
@@ -273,6 +268,8 @@ absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
     }
   }
   if (!options.copy_path.empty()) {
+    // Stays a raw open(2): O_TRUNC | O_NOFOLLOW with mode 0600, which no
+    // FileSystem call offers (the copy is private scratch, never synced).
     int copy_fd = open(options.copy_path.c_str(),
                        O_WRONLY | O_CREAT | O_TRUNC | O_NOFOLLOW | O_CLOEXEC, 0600);
     if (copy_fd < 0) {

@@ -13,6 +13,7 @@
 
 #include "absl/status/status.h"
 #include "absl/status/statusor.h"
+#include "kindred/file_io.h"
 
 namespace kindred::io {
 
@@ -55,6 +56,9 @@ struct DecodeOptions {
   // (compressed bytes for compressed input) is added here as reading goes,
   // for progress reports. May be read from another thread.
   std::atomic<uint64_t>* raw_bytes = nullptr;
+  // The file system files are read through (not standard input); null:
+  // DefaultFileSystem(). Borrowed for the stream's life.
+  FileSystem* file_system = nullptr;
 };
 
 // Opens `path` ("-" = standard input) and returns a stream of its decoded
@@ -68,8 +72,10 @@ absl::StatusOr<std::unique_ptr<ByteStream>> OpenDecoded(const std::string& path,
                                                         Compression* compression = nullptr,
                                                         uint64_t offset = 0);
 
-// Opens `path` for reading raw bytes (no decompression, "-" not allowed).
-absl::StatusOr<std::unique_ptr<ByteStream>> OpenRaw(const std::string& path);
+// Opens `path` for reading raw bytes (no decompression, "-" not allowed),
+// through `fs` (null: DefaultFileSystem()), borrowed for the stream's life.
+absl::StatusOr<std::unique_ptr<ByteStream>> OpenRaw(const std::string& path,
+                                                    FileSystem* fs = nullptr);
 
 }  // namespace kindred::io
 

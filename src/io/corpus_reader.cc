@@ -1,15 +1,13 @@
 // CorpusReader: walks the inputs in order and turns them into documents.
 // Opening each input is in corpus_start.cc, reading each kind of source in
 // corpus_sources.cc; the reader's state is corpus_reader_impl.h.
-#include <sys/stat.h>
-
-#include <cerrno>
 #include <utility>
 
 #include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
 #include "io/corpus_reader_impl.h"
 #include "kindred/errors.h"
+#include "kindred/file_io.h"
 
 namespace kindred {
 
@@ -38,11 +36,10 @@ absl::StatusOr<ResolvedInput> Resolve(const std::string& name, const InputOption
     input.format = options.format;
     return input;
   }
-  struct stat info;
-  if (stat(name.c_str(), &info) != 0) {
-    return InputErrno(errno, absl::StrCat(name, ": cannot open"));
-  }
-  input.is_directory = S_ISDIR(info.st_mode);
+  FileSystem* fs = options.file_system != nullptr ? options.file_system : DefaultFileSystem();
+  absl::StatusOr<FileInfo> info = fs->Stat(name);
+  if (!info.ok()) return info.status();
+  input.is_directory = info->kind == FileKind::kDirectory;
   if (options.format != InputFormat::kAuto) {
     input.format = options.format;
   } else if (!input.is_directory && HasJsonLinesName(name)) {
@@ -134,14 +131,15 @@ absl::StatusOr<std::unique_ptr<CorpusReader>> CorpusReader::Open(std::vector<std
     resolved.push_back(std::move(*input));
   }
   uint64_t total = 0;
+  FileSystem* fs = options.file_system != nullptr ? options.file_system : DefaultFileSystem();
   for (const ResolvedInput& input : resolved) {
-    struct stat info;
-    if (input.is_stdin || input.is_directory || stat(input.name.c_str(), &info) != 0 ||
-        !S_ISREG(info.st_mode)) {
+    absl::StatusOr<FileInfo> info = absl::NotFoundError("no file");
+    if (!input.is_stdin && !input.is_directory) info = fs->Stat(input.name);
+    if (!info.ok() || info->kind != FileKind::kFile) {
       total = 0;
       break;
     }
-    total += static_cast<uint64_t>(info.st_size);
+    total += info->size;
   }
   auto impl = std::make_unique<Impl>(std::move(inputs), std::move(options), std::move(resolved));
   impl->raw_total_ = total;
@@ -186,8 +184,6 @@ uint64_t CorpusReader::raw_bytes_read() const {
   return impl_->raw_bytes_.load(std::memory_order_relaxed);
 }
 uint64_t CorpusReader::raw_bytes_total() const { return impl_->raw_total_; }
-std::map<std::string, uint64_t> CorpusReader::RecordCounts() const {
-  return impl_->record_counts_;
-}
+std::map<std::string, uint64_t> CorpusReader::RecordCounts() const { return impl_->record_counts_; }
 
 }  // namespace kindred

@@ -15,6 +15,7 @@ io::DecodeOptions CorpusReader::Impl::DecodeOptionsFor(const std::string& path) 
   io::DecodeOptions decode;
   decode.max_decompressed_bytes = options_.max_decompressed_bytes;
   decode.raw_bytes = &raw_bytes_;
+  decode.file_system = options_.file_system;
   if (path == "-") decode.copy_path = options_.stdin_copy_path;
   return decode;
 }
@@ -114,7 +115,7 @@ absl::StatusOr<bool> CorpusReader::Impl::NextLineDocument(Document* doc) {
 }
 
 absl::Status CorpusReader::Impl::ReadFileDocument(const std::string& path, Document* doc,
-                                                   bool* skip) {
+                                                  bool* skip) {
   *skip = false;
   std::string why;
   auto input = OpenBuffered(path);

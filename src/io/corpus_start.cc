@@ -10,7 +10,7 @@ namespace kindred {
 absl::StatusOr<bool> CorpusReader::Impl::StartInput(Document* doc) {
   ResolvedInput& input = resolved_[current_];
   if (input.is_directory) {
-    tree_.emplace(input.name, options_.follow_links);
+    tree_.emplace(input.name, options_.follow_links, options_.file_system);
     skipped_here_.clear();
     if (reopened_) skipped_here_.insert(input.skipped_files.begin(), input.skipped_files.end());
     return false;

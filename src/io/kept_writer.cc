@@ -93,6 +93,7 @@ absl::Status KeptPass::OpenOutputs(bool needs_lines, bool needs_text) {
 absl::Status KeptPass::CopyLines(const std::string& path) {
   io::DecodeOptions decode;
   decode.max_decompressed_bytes = request_.options.max_decompressed_bytes;
+  decode.file_system = request_.options.file_system;
   auto stream = io::OpenDecoded(path, decode);
   if (!stream.ok()) return stream.status();
   io::BufferedInput input(std::move(*stream), path, request_.options.max_document_bytes);
@@ -141,6 +142,7 @@ absl::Status KeptPass::CopyWarc(const std::string& path) {
 absl::StatusOr<bool> KeptPass::IsWarcFile(const std::string& path) const {
   if (request_.options.format != InputFormat::kAuto) return false;
   io::DecodeOptions decode;
+  decode.file_system = request_.options.file_system;
   auto stream = io::OpenDecoded(path, decode);
   if (!stream.ok()) return stream.status();
   return io::SniffWarc(&*stream);
@@ -150,7 +152,8 @@ absl::Status KeptPass::ReadInput(const ResolvedInput& input) {
   if (input.skipped) return absl::OkStatus();  // binary or unreadable: not a document
   if (input.format == InputFormat::kWarc && !input.is_directory) return CopyWarc(input.read_path);
   if (input.is_directory) {
-    io::TreeWalker walker(input.read_path, request_.options.follow_links);
+    io::TreeWalker walker(input.read_path, request_.options.follow_links,
+                          request_.options.file_system);
     const absl::flat_hash_set<std::string> skipped(input.skipped_files.begin(),
                                                    input.skipped_files.end());
     std::string relative, full;
@@ -161,7 +164,7 @@ absl::Status KeptPass::ReadInput(const ResolvedInput& input) {
       if (skipped.contains(relative)) continue;
       absl::StatusOr<bool> warc = input.format == InputFormat::kWarc ? true : IsWarcFile(full);
       if (!warc.ok()) return warc.status();
-      absl::Status done = *warc ? CopyWarc(full)
+      absl::Status done = *warc                                     ? CopyWarc(full)
                           : input.format == InputFormat::kJsonLines ? CopyLines(full)
                                                                     : KeepText(relative, full);
       if (!done.ok()) return done;

@@ -1,14 +1,11 @@
 #include "io/output_file.h"
 
-#include <fcntl.h>
-#include <sys/stat.h>
 #include <unistd.h>
 #include <zlib.h>
 #include <zstd.h>
 
-#include <cerrno>
+#include <atomic>
 #include <cstring>
-#include <filesystem>
 #include <utility>
 
 #include "absl/strings/match.h"
@@ -20,16 +17,29 @@
 namespace kindred::io {
 namespace {
 
-absl::Status MakeDirectories(const std::string& dir) {
-  std::error_code error;
-  std::filesystem::create_directories(dir, error);
-  if (error) return OutputErrno(error.value(), absl::StrCat(dir, ": cannot create directory"));
-  return absl::OkStatus();
-}
-
 std::string BaseName(const std::string& path) {
   size_t slash = path.find_last_of('/');
   return slash == std::string::npos ? path : path.substr(slash + 1);
+}
+
+// `status` with a message that names `from` (at its start) naming `to`
+// instead: a path under the temporary directory shown as the final one.
+absl::Status Renamed(const absl::Status& status, const std::string& from, const std::string& to) {
+  if (status.ok() || !absl::StartsWith(status.message(), from)) return status;
+  return WithMessage(status, absl::StrCat(to, status.message().substr(from.size())));
+}
+
+// Creates a new directory named "<prefix><pid>-<n>" for the first n that is
+// free; returns its path. Errors name `shown`.
+absl::StatusOr<std::string> CreateUniqueDirectory(const std::string& prefix,
+                                                  const std::string& shown, FileSystem* fs) {
+  static std::atomic<uint64_t> counter{0};
+  for (int attempt = 0;; ++attempt) {
+    std::string path = absl::StrCat(prefix, getpid(), "-", counter.fetch_add(1));
+    absl::Status made = fs->CreateDirectory(path);
+    if (made.ok()) return path;
+    if (!absl::IsAlreadyExists(made) || attempt == 1000) return Renamed(made, path, shown);
+  }
 }
 
 }  // namespace
@@ -75,7 +85,7 @@ OutputFile::~OutputFile() = default;  // an uncommitted AtomicFile removes itsel
 
 absl::StatusOr<std::unique_ptr<OutputFile>> OutputFile::Create(const std::string& path,
                                                                FileSystem* fs) {
-  absl::Status made = MakeDirectories(ParentDirectory(path));
+  absl::Status made = fs->CreateDirectories(ParentDirectory(path));
   if (!made.ok()) return made;
   auto atomic = AtomicFile::Create(path, fs);
   if (!atomic.ok()) return atomic.status();
@@ -189,34 +199,32 @@ CopyTree::CopyTree(std::string dir, std::string temp_dir, FileSystem* fs)
 CopyTree::~CopyTree() {
   if (committed_) return;
   for (auto it = created_.rbegin(); it != created_.rend(); ++it) {
-    const std::string path = absl::StrCat(temp_dir_, "/", *it);
-    if (!fs_->Remove(path).ok()) rmdir(path.c_str());  // a file, else a directory
+    fs_->Remove(absl::StrCat(temp_dir_, "/", it->relative)).IgnoreError();
   }
-  rmdir(temp_dir_.c_str());
+  fs_->Remove(temp_dir_).IgnoreError();
 }
 
 absl::StatusOr<std::unique_ptr<CopyTree>> CopyTree::Create(const std::string& dir, FileSystem* fs) {
   std::string final_dir = dir;
   while (final_dir.size() > 1 && final_dir.back() == '/') final_dir.pop_back();
   const std::string parent = ParentDirectory(final_dir);
-  absl::Status made = MakeDirectories(parent);
+  absl::Status made = fs->CreateDirectories(parent);
   if (!made.ok()) return made;
-  std::string temp = absl::StrCat(parent, "/.", BaseName(final_dir), ".tmp-XXXXXX");
-  if (mkdtemp(temp.data()) == nullptr) {
-    return OutputErrno(errno, absl::StrCat(dir, ": cannot create directory"));
-  }
-  chmod(temp.c_str(), 0755);
-  return std::unique_ptr<CopyTree>(new CopyTree(final_dir, temp, fs));
+  const std::string prefix = absl::StrCat(parent, "/.", BaseName(final_dir), ".tmp-");
+  absl::StatusOr<std::string> temp = CreateUniqueDirectory(prefix, dir, fs);
+  if (!temp.ok()) return temp.status();
+  return std::unique_ptr<CopyTree>(new CopyTree(final_dir, *std::move(temp), fs));
 }
 
 absl::Status CopyTree::MakeParents(const std::string& relative) {
   for (size_t slash = relative.find('/'); slash != std::string::npos;
        slash = relative.find('/', slash + 1)) {
     std::string part = relative.substr(0, slash);
-    if (mkdir(absl::StrCat(temp_dir_, "/", part).c_str(), 0755) == 0) {
-      created_.push_back(std::move(part));
-    } else if (errno != EEXIST) {
-      return OutputErrno(errno, absl::StrCat(dir_, "/", part, ": cannot create directory"));
+    absl::Status made = fs_->CreateDirectory(absl::StrCat(temp_dir_, "/", part));
+    if (made.ok()) {
+      created_.push_back({std::move(part), /*is_directory=*/true});
+    } else if (!absl::IsAlreadyExists(made)) {
+      return Renamed(made, temp_dir_, dir_);
     }
   }
   return absl::OkStatus();
@@ -236,8 +244,8 @@ absl::Status CopyTree::Add(const std::string& relative, const std::string& sourc
         absl::StrCat(shown, ": two kept documents would be copied to the same path"));
   }
   if (!file.ok()) return file.status();
-  created_.push_back(relative);
-  absl::StatusOr<std::unique_ptr<ByteStream>> input = OpenRaw(source);
+  created_.push_back({relative, /*is_directory=*/false});
+  absl::StatusOr<std::unique_ptr<ByteStream>> input = OpenRaw(source, fs_);
   absl::Status status = input.status();
   std::string buffer(input.ok() ? kChunkBytes : 0, '\0');
   while (status.ok()) {
@@ -253,22 +261,25 @@ absl::Status CopyTree::Add(const std::string& relative, const std::string& sourc
 }
 
 absl::Status CopyTree::Commit() {
-  for (const std::string& part : created_) {
-    const std::string path = absl::StrCat(temp_dir_, "/", part);
-    struct stat info;
-    if (lstat(path.c_str(), &info) == 0 && S_ISDIR(info.st_mode)) {
-      absl::Status synced = SyncDirectory(path, fs_);
-      if (!synced.ok()) return synced;
-    }
+  for (const Created& part : created_) {
+    if (!part.is_directory) continue;
+    absl::Status synced = SyncDirectory(absl::StrCat(temp_dir_, "/", part.relative), fs_);
+    if (!synced.ok()) return synced;
   }
   absl::Status synced = SyncDirectory(temp_dir_, fs_);
   if (!synced.ok()) return synced;
   // rename(2) replaces an empty directory and refuses a non-empty one.
-  if (rename(temp_dir_.c_str(), dir_.c_str()) != 0) {
-    if (errno == ENOTEMPTY || errno == EEXIST) {
-      return InvalidRequest(absl::StrCat(dir_, ": exists and is not empty"));
-    }
-    return OutputErrno(errno, absl::StrCat(dir_, ": cannot rename into place"));
+  absl::Status renamed = fs_->Rename(temp_dir_, dir_, /*replace=*/true);
+  if (absl::IsAlreadyExists(renamed)) {
+    return InvalidRequest(absl::StrCat(dir_, ": exists and is not empty"));
+  }
+  if (!renamed.ok()) {
+    // The file system says "cannot rename to <dir>: <reason>"; the message
+    // names the tree first, as every other message of the tree does.
+    const std::string said = absl::StrCat("cannot rename to ", dir_, ": ");
+    absl::string_view reason = renamed.message();
+    if (absl::StartsWith(reason, said)) reason.remove_prefix(said.size());
+    return WithMessage(renamed, absl::StrCat(dir_, ": cannot rename into place: ", reason));
   }
   committed_ = true;
   return SyncDirectory(ParentDirectory(dir_), fs_);

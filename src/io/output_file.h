@@ -3,8 +3,8 @@
 // OutputFile writes through an AtomicFile (io/atomic_file.h): under a
 // temporary name beside its final path, renamed into place on Commit (after
 // fsync of the file, then of the directory), through a FileSystem. CopyTree
-// builds a directory tree the same way; its files go through the FileSystem,
-// its directories (made, renamed, removed) through POSIX calls directly.
+// builds a directory tree the same way; its files and directories (made,
+// renamed, removed) and the files it copies from go through the FileSystem.
 // Either one, destroyed without Commit, removes what it wrote.
 //
 // Not thread-safe.
@@ -65,7 +65,8 @@ class CopyTree {
                                                           FileSystem* fs = DefaultFileSystem());
   ~CopyTree();
 
-  // Copies the raw bytes of `source` to `relative` under the tree, creating
+  // Copies the raw bytes of `source` (read through the FileSystem) to
+  // `relative` under the tree, creating
   // directories as needed. `relative` must be a relative path without empty,
   // "." or ".." components; two copies to one path are an error.
   absl::Status Add(const std::string& relative, const std::string& source);
@@ -79,7 +80,11 @@ class CopyTree {
   std::string dir_;
   std::string temp_dir_;
   FileSystem* fs_;
-  std::vector<std::string> created_;  // paths under temp_dir_, in creation order
+  struct Created {
+    std::string relative;  // path under temp_dir_
+    bool is_directory = false;
+  };
+  std::vector<Created> created_;  // in creation order
   bool committed_ = false;
 };
 

@@ -11,6 +11,8 @@
 // subdirectories and walking depth-first gives exactly the byte-wise order of
 // the full relative paths ("a-b" < "a/c" because '-' < '/').
 //
+// Directories are listed through a FileSystem (kindred/file_io.h).
+//
 // Not thread-safe. Memory: the sorted entries of each directory on the
 // current path.
 #ifndef KINDRED_IO_TREE_WALKER_H_
@@ -24,6 +26,7 @@
 #include <vector>
 
 #include "absl/status/statusor.h"
+#include "kindred/file_io.h"
 
 namespace kindred::io {
 
@@ -41,8 +44,9 @@ struct TreeCounts {
 
 class TreeWalker {
  public:
-  // `root` is a directory path; trailing slashes are ignored.
-  explicit TreeWalker(std::string root, bool follow_links = false);
+  // `root` is a directory path; trailing slashes are ignored. Borrows `fs`
+  // (null: DefaultFileSystem()), which must outlive the walker.
+  explicit TreeWalker(std::string root, bool follow_links = false, FileSystem* fs = nullptr);
 
   const TreeCounts& counts() const { return counts_; }
 
@@ -64,6 +68,7 @@ class TreeWalker {
 
   std::string root_;
   bool follow_links_;
+  FileSystem* fs_;
   TreeCounts counts_;
   std::set<std::pair<uint64_t, uint64_t>> walked_;  // (device, inode) of directories
   bool started_ = false;

@@ -226,6 +226,7 @@ absl::Status ReadWarcDocumentAt(const std::string& path, uint64_t offset,
                                 const InputOptions& options, Document* doc) {
   DecodeOptions decode;
   decode.max_decompressed_bytes = options.max_decompressed_bytes;
+  decode.file_system = options.file_system;
   auto stream = OpenDecoded(path, decode, nullptr, offset);
   if (!stream.ok()) return stream.status();
   WarcDocuments records(std::move(*stream), DisplayName(path), options, nullptr);

@@ -16,6 +16,7 @@ absl::StatusOr<std::unique_ptr<WarcDocuments>> Open(const std::string& path,
                                                     const InputOptions& options) {
   DecodeOptions decode;
   decode.max_decompressed_bytes = options.max_decompressed_bytes;
+  decode.file_system = options.file_system;
   auto stream = OpenDecoded(path, decode);
   if (!stream.ok()) return stream.status();
   return std::make_unique<WarcDocuments>(std::move(*stream), DisplayName(path), options, nullptr);

@@ -3,8 +3,6 @@
 #include <simdjson.h>
 
 #include <algorithm>
-#include <fstream>
-#include <sstream>
 #include <utility>
 
 #include "absl/container/flat_hash_map.h"
@@ -12,6 +10,7 @@
 #include "absl/strings/str_cat.h"
 #include "absl/strings/str_format.h"
 #include "kindred/errors.h"
+#include "kindred/file_io.h"
 
 namespace kindred {
 namespace {
@@ -242,13 +241,13 @@ absl::StatusOr<std::vector<LabelledPair>> ParseLabels(std::string_view content,
   return pairs;
 }
 
-absl::StatusOr<std::vector<LabelledPair>> ReadLabels(const std::string& path) {
-  std::ifstream file(path, std::ios::binary);
-  if (!file) return absl::NotFoundError(absl::StrCat(path, ": cannot open the labels file"));
-  std::ostringstream content;
-  content << file.rdbuf();
-  if (file.bad()) return BadInput(absl::StrCat(path, ": read error"));
-  return ParseLabels(content.str(), path);
+absl::StatusOr<std::vector<LabelledPair>> ReadLabels(const std::string& path, FileSystem* fs) {
+  if (fs == nullptr) fs = DefaultFileSystem();
+  absl::StatusOr<std::unique_ptr<ReadableFile>> file = fs->OpenRead(path);
+  if (!file.ok()) return absl::NotFoundError(absl::StrCat(path, ": cannot open the labels file"));
+  absl::StatusOr<std::string> content = ReadToEnd(**file);
+  if (!content.ok()) return BadInput(absl::StrCat(path, ": read error"));
+  return ParseLabels(*content, path);
 }
 
 absl::StatusOr<std::vector<ResolvedPair>> ResolveLabels(absl::Span<const LabelledPair> pairs,

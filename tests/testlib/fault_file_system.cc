@@ -1,5 +1,8 @@
 #include "testlib/fault_file_system.h"
 
+#include <algorithm>
+#include <cerrno>
+
 #include "kindred/errors.h"
 
 namespace kindred::testing {
@@ -168,6 +171,84 @@ absl::StatusOr<std::unique_ptr<ScratchFile>> FaultFileSystem::CreateScratch(
   auto file = base_->CreateScratch(dir);
   if (!file.ok()) return file.status();
   return std::unique_ptr<ScratchFile>(new FaultScratchFile(this, *std::move(file), dir));
+}
+
+}  // namespace kindred::testing
+
+namespace kindred::testing {
+namespace {
+
+bool EndsWith(const std::string& path, const std::string& suffix) {
+  return !suffix.empty() && path.size() >= suffix.size() &&
+         path.compare(path.size() - suffix.size(), suffix.size(), suffix) == 0;
+}
+
+// A readable file whose reads past `limit` fail as an I/O error would.
+class FaultReadableFile : public ReadableFile {
+ public:
+  FaultReadableFile(FaultFileSystem* owner, std::unique_ptr<ReadableFile> base, std::string path,
+                    uint64_t limit)
+      : owner_(owner), base_(std::move(base)), path_(std::move(path)), limit_(limit) {}
+
+  absl::StatusOr<size_t> Read(absl::Span<char> out) override {
+    if (position_ >= limit_) {
+      owner_->CountReadFault();
+      return InputErrno(EIO, path_ + ": read failed");
+    }
+    const size_t wanted = static_cast<size_t>(std::min<uint64_t>(out.size(), limit_ - position_));
+    absl::StatusOr<size_t> n = base_->Read(out.subspan(0, wanted));
+    if (n.ok()) position_ += *n;
+    return n;
+  }
+  absl::StatusOr<size_t> ReadAt(uint64_t offset, absl::Span<char> out) const override {
+    if (offset + out.size() > limit_) {
+      owner_->CountReadFault();
+      return InputErrno(EIO, path_ + ": cannot read");
+    }
+    return base_->ReadAt(offset, out);
+  }
+  absl::Status Seek(uint64_t offset) override {
+    position_ = offset;
+    return base_->Seek(offset);
+  }
+
+ private:
+  FaultFileSystem* owner_;
+  std::unique_ptr<ReadableFile> base_;
+  std::string path_;
+  uint64_t limit_;
+  uint64_t position_ = 0;
+};
+
+}  // namespace
+
+absl::StatusOr<std::unique_ptr<ReadableFile>> FaultFileSystem::OpenRead(const std::string& path) {
+  if (EndsWith(path, open_suffix_)) return InputErrno(EIO, path + ": cannot open");
+  auto file = base_->OpenRead(path);
+  if (!file.ok() || !EndsWith(path, read_suffix_) || read_opens_++ < read_from_open_) return file;
+  return std::unique_ptr<ReadableFile>(
+      new FaultReadableFile(this, *std::move(file), path, read_limit_));
+}
+
+absl::StatusOr<FileInfo> FaultFileSystem::Stat(const std::string& path) {
+  if (EndsWith(path, open_suffix_)) return InputErrno(EIO, path + ": cannot open");
+  return base_->Stat(path);
+}
+
+absl::StatusOr<DirectoryListing> FaultFileSystem::ListDirectory(const std::string& path,
+                                                                bool follow_links) {
+  if (EndsWith(path, open_suffix_)) return InputErrno(EIO, path + ": cannot read directory");
+  return base_->ListDirectory(path, follow_links);
+}
+
+absl::Status FaultFileSystem::CreateDirectories(const std::string& path) {
+  if (NextStep(false, false) != Verdict::kProceed) return FaultStatus();
+  return base_->CreateDirectories(path);
+}
+
+absl::Status FaultFileSystem::CreateDirectory(const std::string& path) {
+  if (NextStep(false, false) != Verdict::kProceed) return FaultStatus();
+  return base_->CreateDirectory(path);
 }
 
 }  // namespace kindred::testing

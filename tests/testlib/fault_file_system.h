@@ -1,7 +1,8 @@
 // Test-only: a FileSystem that forwards to another and injects faults, for
 // tests of crash safety and full disks (index writers, output files). Each
 // mutating call (Append, WriteAt, Sync, Truncate, Rename, Remove,
-// SyncDirectoryOf, CreateNew, CreateScratch, and a ScratchFile's Append)
+// SyncDirectoryOf, CreateNew, CreateScratch, CreateDirectories,
+// CreateDirectory, and a ScratchFile's Append)
 // counts as one step. When the step numbered
 // `fail_at` (0-based) comes:
 //
@@ -18,11 +19,17 @@
 // A scratch file's failed Append names its directory, as the real one does.
 //
 // Reads (Map, Exists, LockExclusive, a ScratchFile's ReadAt) are never
-// failed. Not thread-safe, except that a ScratchFile's ReadAt (which counts
-// no step) may be called from several threads at once.
+// failed by steps. Reads of inputs fail on request instead (FailReadsOf,
+// FailOpensOf), as an I/O error (EIO) of the real file system reports it:
+// BadInput with the system's message "Input/output error".
+//
+// Not thread-safe, except that a ScratchFile's ReadAt and a ReadableFile's
+// ReadAt (which count no step) may be called from several threads at once;
+// set the read faults before reading.
 #ifndef KINDRED_TESTS_TESTLIB_FAULT_FILE_SYSTEM_H_
 #define KINDRED_TESTS_TESTLIB_FAULT_FILE_SYSTEM_H_
 
+#include <atomic>
 #include <cstdint>
 #include <memory>
 #include <string>
@@ -64,6 +71,31 @@ class FaultFileSystem : public FileSystem {
   absl::Status SyncDirectoryOf(const std::string& path) override;
   bool Exists(const std::string& path) override { return base_->Exists(path); }
   absl::StatusOr<std::unique_ptr<ScratchFile>> CreateScratch(const std::string& dir) override;
+  absl::StatusOr<std::unique_ptr<ReadableFile>> OpenRead(const std::string& path) override;
+  absl::StatusOr<FileInfo> Stat(const std::string& path) override;
+  absl::StatusOr<DirectoryListing> ListDirectory(const std::string& path,
+                                                 bool follow_links) override;
+  absl::Status CreateDirectories(const std::string& path) override;
+  absl::Status CreateDirectory(const std::string& path) override;
+
+  // Files whose path ends in `suffix`, from their `from_open`-th opening
+  // on (0: the first; 1: the second, a second reading), fail every read
+  // that reaches past byte `after_bytes` ("<path>: read failed:
+  // Input/output error" for a read at the position, which first returns
+  // the bytes before the limit; "<path>: cannot read: ..." for a read at an
+  // offset). Opens succeed.
+  void FailReadsOf(std::string suffix, uint64_t after_bytes, int64_t from_open = 0) {
+    read_suffix_ = std::move(suffix);
+    read_limit_ = after_bytes;
+    read_from_open_ = from_open;
+  }
+  // Opening a file, listing a directory or asking what a path is fails for
+  // paths ending in `suffix` ("<path>: cannot open: Input/output error",
+  // "<path>: cannot read directory: ...").
+  void FailOpensOf(std::string suffix) { open_suffix_ = std::move(suffix); }
+  // Reads that failed on request so far.
+  int64_t read_faults() const { return read_faults_; }
+  void CountReadFault() { ++read_faults_; }
 
   // One mutating step. Returns what the step must do.
   enum class Verdict { kProceed, kHalfThenFail, kFail };
@@ -79,6 +111,11 @@ class FaultFileSystem : public FileSystem {
   size_t chunk_bytes_;
   int64_t steps_ = 0;
   bool fired_ = false;
+  std::string read_suffix_, open_suffix_;
+  uint64_t read_limit_ = 0;
+  int64_t read_from_open_ = 0;
+  std::atomic<int64_t> read_opens_{0};  // openings of files ending in read_suffix_
+  std::atomic<int64_t> read_faults_{0};
 };
 
 }  // namespace kindred::testing
