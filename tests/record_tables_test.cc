@@ -245,6 +245,15 @@ TEST_CASE("Band-key tables round-trip, partition whole buckets and merge", "[rec
   for (BandKeyTable& run : runs) SortBandKeys(&run);
   SortBandKeys(&all);
   CHECK(MergeBandKeys(runs) == all);
+  // Nothing to merge; rows of one band and one key only (one bucket).
+  CHECK(MergeBandKeys({}).records.empty());
+  CHECK(MergeBandKeys(std::vector<BandKeyTable>(3)).records.empty());
+  std::vector<BandKeyTable> same(2);
+  for (uint32_t i = 0; i < 200; ++i) same[i % 2].records.push_back({7, 5, 199 - i});
+  for (BandKeyTable& run : same) SortBandKeys(&run);
+  const BandKeyTable merged = MergeBandKeys(same);
+  REQUIRE(merged.records.size() == 200);
+  CHECK(std::is_sorted(merged.records.begin(), merged.records.end()));
 }
 
 // A version 2 band-key payload written field by field: u64 count, u32 base,

@@ -86,31 +86,41 @@ py::bytes PairEnds(const py::bytes& scored) {
 absl::StatusOr<DocumentTable> JoinTables(const std::vector<std::string_view>& views,
                                          const std::vector<std::string>& shards) {
   std::vector<DocumentTable> parts;
-  uint32_t first = 0;
+  size_t total = 0;
   for (size_t s = 0; s < views.size(); ++s) {
     auto table = ParseDocumentTable(views[s]);
     if (!table.ok()) return table.status();
-    table->first_document = first;
-    for (DocumentRecord& row : table->documents) row.origin.input = static_cast<uint32_t>(s);
-    first += static_cast<uint32_t>(table->documents.size());
+    total += table->documents.size();
     parts.push_back(*std::move(table));
   }
+  // The rows concatenated here (the numbers follow from the order), and
+  // the ids checked once, in a map sized for them up front: this runs over
+  // every document of the corpus in one task.
+  DocumentTable all;
+  all.documents.reserve(total);
+  for (size_t s = 0; s < parts.size(); ++s) {
+    for (DocumentRecord& row : parts[s].documents) {
+      row.origin.input = static_cast<uint32_t>(s);
+      all.documents.push_back(std::move(row));
+    }
+  }
+  parts.clear();
   auto where = [&](const DocumentOrigin& origin) {
     return origin.line > 0 ? absl::StrCat(shards[origin.input], ":", origin.line)
                            : shards[origin.input];
   };
-  absl::flat_hash_map<std::string_view, const DocumentRecord*> seen;
-  for (const DocumentTable& part : parts) {
-    for (const DocumentRecord& doc : part.documents) {
-      auto [it, added] = seen.emplace(doc.id, &doc);
-      if (added) continue;
-      const DocumentOrigin& was = it->second->origin;
-      return BadInput(absl::StrCat(
-          where(doc.origin), ": duplicate id \"", doc.id, "\" (first seen at ", where(was), ")",
-          was.input != doc.origin.input ? "; --ids-with-path makes ids name their files" : ""));
-    }
+  absl::flat_hash_map<std::string_view, uint32_t> seen;
+  seen.reserve(total);
+  for (size_t i = 0; i < all.documents.size(); ++i) {
+    const DocumentRecord& doc = all.documents[i];
+    auto [it, added] = seen.emplace(doc.id, static_cast<uint32_t>(i));
+    if (added) continue;
+    const DocumentOrigin& was = all.documents[it->second].origin;
+    return BadInput(absl::StrCat(
+        where(doc.origin), ": duplicate id \"", doc.id, "\" (first seen at ", where(was), ")",
+        was.input != doc.origin.input ? "; --ids-with-path makes ids name their files" : ""));
   }
-  return JoinDocumentTables(std::move(parts));
+  return all;
 }
 
 // The drops of `groups`, by shard, as local numbers ascending.
@@ -180,8 +190,20 @@ py::tuple FinishStage(const std::vector<py::bytes>& tables, const std::vector<st
       const bool by_star = stars.has_value() && options.grouping == Grouping::kComponents;
       const std::vector<Group> groups =
           GroupDocuments(*table, by_star ? star : pairs, options.keep, options.grouping);
-      records = FormatSweepRecords(*table, pairs, groups, options);
       dropped = DropsByShard(groups, *table, tables.size());
+      // FormatSweepRecords's columns, the ids moved out rather than copied.
+      std::vector<std::string> ids;
+      std::vector<KeepFacts> facts;
+      std::vector<uint8_t> empty;
+      ids.reserve(table->documents.size());
+      facts.reserve(table->documents.size());
+      empty.reserve(table->documents.size());
+      for (DocumentRecord& doc : table->documents) {
+        ids.push_back(std::move(doc.id));
+        facts.push_back(doc.facts);
+        empty.push_back(doc.shingle_count == 0);
+      }
+      WriteSweepRecords(options, pairs, groups, ids, facts, empty, &records);
     }
   }
   Check(status);

@@ -2,7 +2,6 @@
 
 #include <algorithm>
 #include <bit>
-#include <queue>
 #include <utility>
 
 #include "absl/strings/str_cat.h"
@@ -229,25 +228,39 @@ std::vector<BandKeyTable> PartitionBandKeys(const BandKeyTable& table, uint32_t 
 }
 
 BandKeyTable MergeBandKeys(absl::Span<const BandKeyTable> tables) {
+  // Not a k-way merge (a heap step per row, bound by its branches): the rows
+  // are scattered by (band, top bits of the key) into buckets of about
+  // eight, which keys made by hashing fill evenly, and each bucket is
+  // sorted. The order is the total order of the rows, so the result is the
+  // merge's whatever the buckets hold (skewed keys only cost time).
   BandKeyTable out;
   size_t total = 0;
-  for (const BandKeyTable& table : tables) total += table.records.size();
-  out.records.reserve(total);
-  // A k-way merge by a heap of (record, table) heads.
-  using Head = std::pair<BandKeyRecord, size_t>;
-  const auto later = [](const Head& x, const Head& y) {
-    return y.first < x.first || (!(x.first < y.first) && y.second < x.second);
-  };
-  std::priority_queue<Head, std::vector<Head>, decltype(later)> heads(later);
-  std::vector<size_t> next(tables.size(), 0);
-  for (size_t t = 0; t < tables.size(); ++t) {
-    if (!tables[t].records.empty()) heads.push({tables[t].records[0], t});
+  uint32_t bands = 0;
+  for (const BandKeyTable& table : tables) {
+    total += table.records.size();
+    if (!table.records.empty()) bands = std::max(bands, table.records.back().band + 1);
   }
-  while (!heads.empty()) {
-    const auto [record, t] = heads.top();
-    heads.pop();
-    out.records.push_back(record);
-    if (++next[t] < tables[t].records.size()) heads.push({tables[t].records[next[t]], t});
+  if (total == 0) return out;
+  int bits = 0;
+  while (bits < 22 && (uint64_t{bands} << (bits + 1)) * 8 <= total) ++bits;
+  const auto bucket = [bits](const BandKeyRecord& row) -> size_t {
+    const size_t high = bits == 0 ? 0 : static_cast<size_t>(row.key >> (64 - bits));
+    return (static_cast<size_t>(row.band) << bits) | high;
+  };
+  std::vector<size_t> start((size_t{bands} << bits) + 1, 0);
+  for (const BandKeyTable& table : tables) {
+    for (const BandKeyRecord& row : table.records) ++start[bucket(row) + 1];
+  }
+  for (size_t b = 1; b < start.size(); ++b) start[b] += start[b - 1];
+  out.records.resize(total);
+  std::vector<size_t> fill(start.begin(), start.end() - 1);
+  for (const BandKeyTable& table : tables) {
+    for (const BandKeyRecord& row : table.records) out.records[fill[bucket(row)]++] = row;
+  }
+  for (size_t b = 0; b + 1 < start.size(); ++b) {
+    if (start[b + 1] - start[b] > 1) {
+      std::sort(out.records.begin() + start[b], out.records.begin() + start[b + 1]);
+    }
   }
   return out;
 }
