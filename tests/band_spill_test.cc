@@ -30,16 +30,6 @@ using testing::FaultFileSystem;
 using testing::FaultKind;
 using testing::SplitMix64;
 
-// The names in `dir` (a scratch file has none).
-std::vector<std::string> NamesIn(const std::string& dir) {
-  std::vector<std::string> names;
-  for (const auto& entry : std::filesystem::directory_iterator(dir)) {
-    names.push_back(entry.path().filename().string());
-  }
-  std::sort(names.begin(), names.end());
-  return names;
-}
-
 // One run of `docs` documents from first_doc with key doc % 97 + 1 in every
 // band.
 absl::Status AddSimpleRun(BandSpill& spill, uint32_t first_doc, size_t docs) {
@@ -148,7 +138,7 @@ TEST_CASE("A scratch file reads back its bytes from several threads at once", "[
     expected += bytes;
   }
   CHECK((*file)->size() == expected.size());
-  CHECK(NamesIn(dir.path()).empty());  // no name in its directory
+  CHECK(testing::ListNames(dir.path()).empty());  // no name in its directory
   std::vector<int> mismatches(4, 0);
   std::vector<std::thread> readers;
   for (int t = 0; t < 4; ++t) {
@@ -227,7 +217,7 @@ int SpillUnderFileSizeLimit(const std::string& dir) {
 TEST_CASE("A real full disk during a spill is DiskFull, not a write failure", "[band_spill]") {
   testing::TempDir dir;
   CHECK(SpillUnderFileSizeLimit(dir.path()) == 0);
-  CHECK(NamesIn(dir.path()).empty());
+  CHECK(testing::ListNames(dir.path()).empty());
 }
 
 // Documents of random words, every third a copy of the one before.
@@ -279,8 +269,8 @@ TEST_CASE("A sweep whose spill meets a full disk fails as a full disk", "[band_s
     CHECK(KindOf(status) == ErrorKind::kDiskFull);
     CHECK(status.code() == absl::StatusCode::kResourceExhausted);
     CHECK_THAT(std::string(status.message()), Catch::Contains("scratch directory " + scratch));
-    CHECK(NamesIn(scratch).empty());
-    CHECK(NamesIn(dir.path()) == std::vector<std::string>{"corpus.jsonl", "scratch"});
+    CHECK(testing::ListNames(scratch).empty());
+    CHECK(testing::ListNames(dir.path()) == std::vector<std::string>{"corpus.jsonl", "scratch"});
     CHECK(testing::ReadFile(path) == corpus);
   }
 }

@@ -273,7 +273,7 @@ TEST_CASE("readers catch up with commits into reserved space without a mapping e
   auto reader = IndexReader::Open(f.path);
   REQUIRE(reader.ok());
   // Each commit retires and re-adds document 11 (replace), 40 times.
-  for (int round = 0; round < 40; ++round) {
+  for (uint32_t round = 0; round < 40; ++round) {
     REQUIRE((*writer)->Append(Slice(f.all, 11, 12), DuplicateIdPolicy::kReplace).ok());
     REQUIRE((*reader)->ReadAppended().ok());
     REQUIRE((*reader)->document_count() == 11 + round);

@@ -184,16 +184,6 @@ TEST_CASE("a read error on the second reading fails it, attaching nothing after 
   }
 }
 
-// The names in `dir`, sorted.
-std::vector<std::string> Names(const std::string& dir) {
-  std::vector<std::string> names;
-  for (const auto& entry : std::filesystem::directory_iterator(dir)) {
-    names.push_back(entry.path().filename().string());
-  }
-  std::sort(names.begin(), names.end());
-  return names;
-}
-
 // The resolved inputs and document count of a clean first reading.
 KeptRequest KeptRequestFor(const std::vector<std::string>& inputs, Faults& faults) {
   auto reader = CorpusReader::Open(inputs, InputOptions{});
@@ -220,7 +210,7 @@ TEST_CASE("a read error while the kept corpus is written leaves no output", "[in
     const absl::StatusOr<KeptCounts> written = WriteKept(request);
     CHECK(KindOf(written.status()) == ErrorKind::kBadInput);
     CHECK(std::string(written.status().message()) == absl::StrCat(path, ": read failed", kEio));
-    CHECK(Names(dir.path()) == std::vector<std::string>{"in.jsonl"});
+    CHECK(testing::ListNames(dir.path()) == std::vector<std::string>{"in.jsonl"});
   }
   SECTION("copies of kept text files") {
     dir.Write("in/tree/a.txt", "one two three");
@@ -234,7 +224,7 @@ TEST_CASE("a read error while the kept corpus is written leaves no output", "[in
     CHECK(KindOf(written.status()) == ErrorKind::kBadInput);
     CHECK(std::string(written.status().message()) ==
           absl::StrCat(dir.File("in/tree/sub/c.txt"), ": read failed", kEio));
-    CHECK(Names(dir.File("out")).empty());  // the copies' temporary tree is gone
+    CHECK(testing::ListNames(dir.File("out")).empty());  // the copies' temporary tree is gone
   }
 }
 

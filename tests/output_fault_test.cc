@@ -24,16 +24,6 @@ using testing::FaultKind;
 using testing::ReadFile;
 using testing::TempDir;
 
-// The names in `dir`, sorted.
-std::vector<std::string> Names(const std::string& dir) {
-  std::vector<std::string> names;
-  for (const auto& entry : std::filesystem::directory_iterator(dir)) {
-    names.push_back(entry.path().filename().string());
-  }
-  std::sort(names.begin(), names.end());
-  return names;
-}
-
 // Ten JSON Lines documents, every other one kept.
 struct KeptFixture {
   TempDir dir;
@@ -86,7 +76,7 @@ TEST_CASE("a fault at any step of writing the kept file loses nothing", "[output
       for (int64_t step = 0; step < steps; ++step) {
         // A crash leaves its temporary file (as a killed process would);
         // a later process has another id, so it is not in the way.
-        for (const std::string& left : Names(f.dir.path())) {
+        for (const std::string& left : testing::ListNames(f.dir.path())) {
           if (left != "in.jsonl") std::filesystem::remove(f.dir.File(left));
         }
         f.dir.Write(name, old_contents);
@@ -113,7 +103,7 @@ TEST_CASE("a fault at any step of writing the kept file loses nothing", "[output
         // A crash stops every later call, so its temporary file may stay;
         // otherwise nothing but the input and the output remains.
         if (kind != FaultKind::kCrash) {
-          CHECK(Names(f.dir.path()) == std::vector<std::string>{"in.jsonl", name});
+          CHECK(testing::ListNames(f.dir.path()) == std::vector<std::string>{"in.jsonl", name});
         }
       }
       // Every step is a crash point; a full disk or failed sync set on an
@@ -142,7 +132,7 @@ TEST_CASE("a full disk while a record file is written keeps the old file", "[out
     INFO("disk full at step " << step);
     CHECK(KindOf(status) == ErrorKind::kDiskFull);
     CHECK(ReadFile(path) == "{\"a\":\"old\"}\n");
-    CHECK(Names(dir.path()) == std::vector<std::string>{"pairs.jsonl"});
+    CHECK(testing::ListNames(dir.path()) == std::vector<std::string>{"pairs.jsonl"});
   }
   // 25 appends of 4096 bytes or less; a full disk set on the creation step
   // falls on the first append.
@@ -177,7 +167,7 @@ TEST_CASE("a fault in a sync done before the commit keeps the old file", "[outpu
   for (FaultKind kind : {FaultKind::kSyncFails, FaultKind::kCrash}) {
     int fired = 0;
     for (int64_t step = 0; step < counter.steps(); ++step) {
-      for (const std::string& left : Names(dir.path())) std::filesystem::remove(dir.File(left));
+      for (const std::string& left : testing::ListNames(dir.path())) std::filesystem::remove(dir.File(left));
       dir.Write("groups.jsonl", old_contents);
       FaultFileSystem faulty(DefaultFileSystem(), kind, step, 4096);
       const absl::Status status = write(&faulty);
@@ -188,7 +178,7 @@ TEST_CASE("a fault in a sync done before the commit keeps the old file", "[outpu
       const std::string now = ReadFile(path);
       CHECK((now == old_contents || now == groups));
       if (kind != FaultKind::kCrash) {
-        CHECK(Names(dir.path()) == std::vector<std::string>{"groups.jsonl"});
+        CHECK(testing::ListNames(dir.path()) == std::vector<std::string>{"groups.jsonl"});
       }
     }
     CHECK(fired > 0);

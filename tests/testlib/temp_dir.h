@@ -5,6 +5,7 @@
 
 #include <string>
 #include <string_view>
+#include <vector>
 
 namespace kindred::testing {
 
@@ -28,6 +29,9 @@ class TempDir {
 
 // The whole contents of a file ("" when it cannot be read).
 std::string ReadFile(const std::string& path);
+
+// The names of the entries of directory `dir`, sorted.
+std::vector<std::string> ListNames(const std::string& dir);
 
 }  // namespace kindred::testing
 
