@@ -79,7 +79,7 @@ absl::Status WithKind(absl::Status status, ErrorKind kind);
 
 // The kind of a failed status: its payload's, else derived from its code
 // (table above). kInternal for OK (which is no error).
-ErrorKind KindOf(const absl::Status &status);
+ErrorKind KindOf(const absl::Status& status);
 
 // "invalid_request", "bad_input", "limit_exceeded", "input_changed",
 // "index_damaged", "settings_mismatch", "index_busy", "disk_full",
@@ -88,10 +88,15 @@ std::string_view ErrorKindName(ErrorKind kind);
 
 // `status` with `context` put before its message ("<context>: <message>"),
 // its code and payloads (the kind) kept. OK stays OK.
-absl::Status Annotate(const absl::Status &status, std::string_view context);
+absl::Status Annotate(const absl::Status& status, std::string_view context);
 // `status` with its message replaced by `message`, its code and payloads
 // kept. OK stays OK.
-absl::Status WithMessage(const absl::Status &status, std::string_view message);
+absl::Status WithMessage(const absl::Status& status, std::string_view message);
+// `status` whose message starts with `path` (a file's name as a call saw it)
+// with `shown` in its place, code and payloads kept; any other status as it
+// is.
+absl::Status WithPathShownAs(const absl::Status& status, std::string_view path,
+                             std::string_view shown);
 
 }  // namespace kindred
 

@@ -6,6 +6,7 @@
 #include <utility>
 
 #include "absl/strings/cord.h"
+#include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
 
 namespace kindred {
@@ -98,7 +99,7 @@ absl::Status WithKind(absl::Status status, ErrorKind kind) {
   return status;
 }
 
-ErrorKind KindOf(const absl::Status &status) {
+ErrorKind KindOf(const absl::Status& status) {
   if (status.ok()) return ErrorKind::kInternal;
   if (const auto payload = status.GetPayload(PayloadUrl()); payload.has_value()) {
     for (ErrorKind kind : kAllKinds) {
@@ -135,15 +136,26 @@ std::string_view ErrorKindName(ErrorKind kind) {
   return "internal";
 }
 
-absl::Status WithMessage(const absl::Status &status, std::string_view message) {
+absl::Status WithMessage(const absl::Status& status, std::string_view message) {
   if (status.ok()) return status;
   absl::Status out(status.code(), absl::string_view(message.data(), message.size()));
   status.ForEachPayload(
-      [&out](absl::string_view url, const absl::Cord &payload) { out.SetPayload(url, payload); });
+      [&out](absl::string_view url, const absl::Cord& payload) { out.SetPayload(url, payload); });
   return out;
 }
 
-absl::Status Annotate(const absl::Status &status, std::string_view context) {
+absl::Status WithPathShownAs(const absl::Status& status, std::string_view path,
+                             std::string_view shown) {
+  const absl::string_view message = status.message();
+  if (status.ok() || path == shown ||
+      !absl::StartsWith(message, absl::string_view(path.data(), path.size()))) {
+    return status;
+  }
+  return WithMessage(status, absl::StrCat(absl::string_view(shown.data(), shown.size()),
+                                          message.substr(path.size())));
+}
+
+absl::Status Annotate(const absl::Status& status, std::string_view context) {
   if (status.ok()) return status;
   return WithMessage(status, absl::StrCat(absl::string_view(context.data(), context.size()), ": ",
                                           status.message()));

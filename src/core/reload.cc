@@ -5,7 +5,6 @@
 #include <functional>
 #include <memory>
 
-#include "absl/strings/match.h"
 #include "absl/strings/str_cat.h"
 #include "core/document_signer.h"
 #include "core/parallel.h"
@@ -151,12 +150,7 @@ absl::Status ReadLineAt(const ReadableFile& file, uint64_t offset, uint64_t max_
 // `status` of a read of `input`'s read_path, naming the input as given
 // (standard input as "-", not its copy).
 absl::Status NamedAsGiven(const absl::Status& status, const ResolvedInput& input) {
-  if (status.ok() || input.read_path == input.name ||
-      !absl::StartsWith(status.message(), input.read_path)) {
-    return status;
-  }
-  return WithMessage(status,
-                     absl::StrCat(input.name, status.message().substr(input.read_path.size())));
+  return WithPathShownAs(status, input.read_path, input.name);
 }
 
 // Reads documents `docs` (each with a known offset) at their offsets, in

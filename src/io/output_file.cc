@@ -22,13 +22,6 @@ std::string BaseName(const std::string& path) {
   return slash == std::string::npos ? path : path.substr(slash + 1);
 }
 
-// `status` with a message that names `from` (at its start) naming `to`
-// instead: a path under the temporary directory shown as the final one.
-absl::Status Renamed(const absl::Status& status, const std::string& from, const std::string& to) {
-  if (status.ok() || !absl::StartsWith(status.message(), from)) return status;
-  return WithMessage(status, absl::StrCat(to, status.message().substr(from.size())));
-}
-
 // Creates a new directory named "<prefix><pid>-<n>" for the first n that is
 // free; returns its path. Errors name `shown`.
 absl::StatusOr<std::string> CreateUniqueDirectory(const std::string& prefix,
@@ -38,7 +31,7 @@ absl::StatusOr<std::string> CreateUniqueDirectory(const std::string& prefix,
     std::string path = absl::StrCat(prefix, getpid(), "-", counter.fetch_add(1));
     absl::Status made = fs->CreateDirectory(path);
     if (made.ok()) return path;
-    if (!absl::IsAlreadyExists(made) || attempt == 1000) return Renamed(made, path, shown);
+    if (!absl::IsAlreadyExists(made) || attempt == 1000) return WithPathShownAs(made, path, shown);
   }
 }
 
@@ -224,7 +217,7 @@ absl::Status CopyTree::MakeParents(const std::string& relative) {
     if (made.ok()) {
       created_.push_back({std::move(part), /*is_directory=*/true});
     } else if (!absl::IsAlreadyExists(made)) {
-      return Renamed(made, temp_dir_, dir_);
+      return WithPathShownAs(made, temp_dir_, dir_);
     }
   }
   return absl::OkStatus();
